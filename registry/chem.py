@@ -1,0 +1,133 @@
+"""All use of RDKit lives here, imported lazily so that commands without chemistry start fast.
+
+Structures are stored as entered and as RDKit reads them. A SMILES that RDKit can parse but not
+sanitize (some organometallics: η⁵-rings, dative bonds, unusual valences) is kept with a flag and
+the reason; only text that cannot be read as SMILES at all is refused.
+
+Standardization on entry is deliberately light: RDKit's canonical SMILES and the standard InChI
+already unify aromatic/Kekulé forms and tautomer-free spelling differences; we do not neutralise,
+strip salts or rewrite tautomers (an iminol written ``N=C(O)`` stays an iminol), because the
+registry must show the structure the group reported.
+"""
+
+from __future__ import annotations
+
+import contextlib
+from dataclasses import dataclass
+from functools import cache
+from typing import Any
+
+from registry.errors import StructureError
+
+
+@dataclass(frozen=True)
+class Structure:
+    """What RDKit makes of one SMILES; ``ok`` is False when it parsed only unsanitized."""
+
+    smiles_input: str
+    smiles_canonical: str | None
+    inchi: str | None
+    inchikey: str | None
+    formula: str | None
+    net_charge: int | None
+    ok: bool
+    problem: str | None
+    mol_binary: bytes | None
+    pattern_fp: bytes | None
+
+
+@cache
+def _rdkit() -> Any:
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    return Chem
+
+
+def pattern_fingerprint_bytes(mol: Any) -> bytes:
+    """RDKit's substructure-screening (pattern) fingerprint, 2048 bits, as raw bytes."""
+    Chem = _rdkit()
+    from rdkit import DataStructs
+
+    fp = Chem.PatternFingerprint(mol, fpSize=2048)
+    return DataStructs.BitVectToBinaryText(fp)
+
+
+def read_structure(smiles: str, *, with_fingerprint: bool = True) -> Structure:
+    """Parse, canonicalize and identify one SMILES; raise :class:`StructureError` if unreadable."""
+    Chem = _rdkit()
+    text = (smiles or "").strip()
+    if not text:
+        raise StructureError(smiles, "empty SMILES")
+    mol = Chem.MolFromSmiles(text)
+    if mol is not None:
+        return _describe(text, mol, ok=True, problem=None, with_fingerprint=with_fingerprint)
+    raw = Chem.MolFromSmiles(text, sanitize=False)
+    if raw is None:
+        raise StructureError(smiles, "not a readable SMILES (syntax error)")
+    problem = _sanitize_problem(raw)
+    raw.UpdatePropertyCache(strict=False)
+    with contextlib.suppress(Exception):  # partial sanitization is best effort only
+        Chem.SanitizeMol(
+            raw,
+            Chem.SanitizeFlags.SANITIZE_ALL
+            ^ Chem.SanitizeFlags.SANITIZE_PROPERTIES
+            ^ Chem.SanitizeFlags.SANITIZE_KEKULIZE
+            ^ Chem.SanitizeFlags.SANITIZE_SETAROMATICITY,
+            catchErrors=True,
+        )
+    return _describe(text, raw, ok=False, problem=problem, with_fingerprint=with_fingerprint)
+
+
+def _sanitize_problem(mol: Any) -> str:
+    Chem = _rdkit()
+    probe = Chem.Mol(mol)
+    try:
+        Chem.SanitizeMol(probe)
+    except Exception as exc:  # RDKit raises several sanitization exception classes
+        return f"RDKit cannot sanitize: {exc}"
+    return "RDKit cannot sanitize this structure"
+
+
+def _describe(
+    text: str, mol: Any, *, ok: bool, problem: str | None, with_fingerprint: bool
+) -> Structure:
+    Chem = _rdkit()
+    from rdkit.Chem import rdMolDescriptors
+
+    try:
+        canonical = Chem.MolToSmiles(mol)
+    except Exception:
+        canonical = None
+    inchi = inchikey = None
+    try:
+        inchi = Chem.MolToInchi(mol) or None
+        inchikey = Chem.InchiToInchiKey(inchi) if inchi else None
+    except Exception:
+        inchi = inchikey = None
+    try:
+        formula = rdMolDescriptors.CalcMolFormula(mol)
+    except Exception:
+        formula = None
+    try:
+        charge = Chem.GetFormalCharge(mol)
+    except Exception:
+        charge = None
+    fp = None
+    if with_fingerprint:
+        try:
+            fp = pattern_fingerprint_bytes(mol)
+        except Exception:
+            fp = None
+    return Structure(
+        smiles_input=text,
+        smiles_canonical=canonical,
+        inchi=inchi,
+        inchikey=inchikey,
+        formula=formula,
+        net_charge=charge,
+        ok=ok,
+        problem=problem,
+        mol_binary=mol.ToBinary(),
+        pattern_fp=fp,
+    )

@@ -1,0 +1,224 @@
+"""Core commands: ``init``, ``info``, ``add``, ``show``, ``list``."""
+
+from __future__ import annotations
+
+import json
+from typing import Any
+
+import typer
+
+from registry.cli.context import state
+from registry.cli.output import render_record, render_rows
+from registry.errors import UsageError
+
+LIST_COLUMNS = ["id", "compound", "process", "method", "solvent", "dg_kj_mol", "dg_t_k", "status"]
+
+
+def register(app: typer.Typer) -> None:
+    app.command("init")(init)
+    app.command("info")(info)
+    app.command("add")(add)
+    app.command("show")(show)
+    app.command("list")(list_cmd)
+
+
+def init(
+    ctx: typer.Context,
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+) -> None:
+    """Create a registry (or bring an existing one up to the current schema)."""
+    from registry import api
+
+    result = api.init_registry(state(ctx).db)
+    if as_json:
+        render_record(result, as_json=True)
+        return
+    typer.echo(f"registry ready: {result['database']} (schema {result['schema_version']})")
+    for warning in result["warnings"]:
+        typer.echo(f"warning: {warning}", err=True)
+
+
+def info(
+    ctx: typer.Context,
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+) -> None:
+    """Which database, its schema version, and how much it holds."""
+    from registry import api
+
+    database = api.open_registry(state(ctx).db)
+    result = api.registry_info(database)
+    if as_json:
+        render_record(result, as_json=True)
+        return
+    typer.echo(f"database        {result['database']}")
+    typer.echo(f"backend         {result['backend']}")
+    typer.echo(f"schema          {result['schema_version']} (head {result['schema_head']})")
+    for name, count in result["counts"].items():
+        typer.echo(f"{name.replace('_', ' '):<16}{count}")
+    for warning in result["warnings"]:
+        typer.echo(f"warning: {warning}", err=True)
+
+
+def add(
+    ctx: typer.Context,
+    method: str = typer.Option(..., help="coalescence, lineshape, 2d-exchange, saturation-transfer, equilibration, computed"),
+    smiles: str = typer.Option(None, help="Structure as SMILES."),
+    compound: str = typer.Option(None, help="The group's compound label."),
+    name: str = typer.Option(None, help="Compound name."),
+    process: str = typer.Option(None, help="Process kind (bond-rotation, ring-inversion …)."),
+    sites: str = typer.Option(None, help="Which sites exchange, e.g. 'N-CH3 a/b'."),
+    nucleus: str = typer.Option(None, help="Observed nucleus, e.g. 1H, 13C, 19F."),
+    solvent: str = typer.Option(None, help="Solvent, e.g. CDCl3, toluene-d8."),
+    field: str = typer.Option(None, "--field", "--mhz", help="Spectrometer frequency, e.g. '400 MHz'."),
+    dg: str = typer.Option(None, help="ΔG‡ with unit, e.g. '14.2 ± 0.3 kcal/mol'."),
+    dg_t: str = typer.Option(None, "--dg-t", help="Temperature ΔG‡ refers to (default Tc)."),
+    dh: str = typer.Option(None, help="ΔH‡ with unit."),
+    ds: str = typer.Option(None, help="ΔS‡ with unit, e.g. '-5 e.u.'."),
+    ea: str = typer.Option(None, help="Arrhenius Ea with unit."),
+    log10_a: str = typer.Option(None, "--log10-a", help="log10 of the Arrhenius A factor (A in s-1)."),
+    tc: str = typer.Option(None, help="Coalescence temperature, e.g. '-12 °C'."),
+    dnu: str = typer.Option(None, help="Slow-exchange separation, e.g. '24 Hz' or '0.06 ppm'."),
+    j: str = typer.Option(None, "--j", help="Coupling between the exchanging sites (AB), e.g. '12 Hz'."),
+    population: str = typer.Option(None, help="Population ratio, e.g. '60:40'."),
+    t_min: str = typer.Option(None, "--t-min", help="Lowest temperature measured."),
+    t_max: str = typer.Option(None, "--t-max", help="Highest temperature measured."),
+    rate: list[str] = typer.Option(None, "--rate", help="A rate point 'T, k', e.g. '298 K, 12.5 s-1' (repeat)."),
+    reference: str = typer.Option(None, help="DOI, citation or notebook page."),
+    label: str = typer.Option(None, help="Label of this measurement (e.g. a notebook code)."),
+    status: str = typer.Option(None, help="draft (default), reviewed, flagged."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+) -> None:
+    """Add one measurement; values take units in any usual notation."""
+    from registry import api
+    from registry.entry import EntryInput
+
+    rates = []
+    for text in rate or []:
+        if "," not in text:
+            raise UsageError(f"--rate {text!r}: write 'T, k', e.g. '298 K, 12.5 s-1'")
+        t_text, k_text = (part.strip() for part in text.split(",", 1))
+        rates.append((t_text, k_text))
+    entry = EntryInput(
+        method=method, smiles=smiles, compound=compound, name=name, process=process, sites=sites,
+        nucleus=nucleus, solvent=solvent, field=field, dg=dg, dg_t=dg_t, dh=dh, ds=ds, ea=ea,
+        log10_a=log10_a, tc=tc, dnu=dnu, j=j, population=population, t_min=t_min, t_max=t_max,
+        reference=reference, label=label, status=status, rates=rates,
+        units={"field": "MHz"},  # the option is --mhz/--field: a bare number means MHz
+    )  # fmt: skip
+    st = state(ctx)
+    database = api.open_registry(st.db)
+    measurement_id = api.add_measurement(database, entry, actor=st.actor)
+    record = api.get_measurement(database, measurement_id)
+    if as_json:
+        render_record(record, as_json=True)
+    else:
+        typer.echo(f"added measurement {measurement_id} ({record['compound'].get('label') or record['compound'].get('name') or ''})")
+        for finding in record["findings"]:
+            typer.echo(f"  {finding['severity']}: {finding['message']}")
+
+
+def _id(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError as exc:
+        raise UsageError(f"{text!r} is not a measurement id (a whole number)") from exc
+    if value <= 0:
+        raise UsageError(f"{text!r} is not a measurement id (a whole number)")
+    return value
+
+
+def show(
+    ctx: typer.Context,
+    measurement_id: str = typer.Argument(..., help="Measurement id."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+) -> None:
+    """Everything stored about one measurement."""
+    from registry import api
+
+    database = api.open_registry(state(ctx).db)
+    record = api.get_measurement(database, _id(measurement_id))
+    if as_json:
+        render_record(record, as_json=True)
+        return
+    typer.echo(_show_text(record))
+
+
+def _fmt(value: Any, err: Any, unit: str, text: Any) -> str:
+    if value is None:
+        return "—"
+    core = f"{value:.2f}" + (f" ± {err:.2f}" if err else "") + f" {unit}"
+    return f"{core}   (reported: {text})" if text else core
+
+
+def _show_text(r: dict[str, Any]) -> str:
+    c, p = r["compound"], r["process"] or {}
+    lines = [
+        f"measurement {r['id']}  [{r['status']}]" + (f"  label {r['label']}" if r["label"] else ""),
+        f"  compound     {c.get('label') or ''} {c.get('name') or ''}".rstrip(),
+        f"  SMILES       {c.get('smiles_canonical') or c.get('smiles_input') or '—'}",
+    ]
+    if c.get("inchikey"):
+        lines.append(f"  InChIKey     {c['inchikey']}")
+    if c and not c.get("structure_ok", True):
+        lines.append(f"  structure    kept unsanitized: {c.get('structure_problem')}")
+    if p:
+        lines.append(f"  process      {p.get('kind')}  {p.get('sites') or ''}  {p.get('nucleus') or ''}".rstrip())
+    lines += [
+        f"  method       {r['method']}",
+        f"  solvent      {r['solvent_text'] or '—'}" + ("" if r["solvent_id"] or not r["solvent_text"] else "  (not in the solvent table)"),
+        f"  field        {_fmt(r['field_mhz'], None, 'MHz', r['field_text'])}",
+        f"  ΔG‡          {_fmt(r['dg_kj_mol'], r['dg_err_kj_mol'], 'kJ/mol', r['dg_text'])}",
+        f"  at T         {_fmt(r['dg_t_k'], None, 'K', r['dg_t_text'])}",
+    ]
+    for key, label, unit in (("dh", "ΔH‡", "kJ/mol"), ("ea", "Ea", "kJ/mol")):
+        if r[f"{key}_kj_mol"] is not None:
+            lines.append(f"  {label:<12} {_fmt(r[f'{key}_kj_mol'], r[f'{key}_err_kj_mol'], unit, r[f'{key}_text'])}")
+    if r["ds_j_mol_k"] is not None:
+        lines.append(f"  ΔS‡          {_fmt(r['ds_j_mol_k'], r['ds_err_j_mol_k'], 'J/(mol·K)', r['ds_text'])}")
+    if r["t_min_k"] is not None or r["t_max_k"] is not None:
+        lines.append(f"  T range      {_fmt(r['t_min_k'], None, 'K', None)} … {_fmt(r['t_max_k'], None, 'K', None)}")
+    for co in r["coalescence"]:
+        extra = (f", J {co['j_hz']:.1f} Hz" if co["j_hz"] else "") + (f", populations {co['population_text']}" if co["population_text"] else "")
+        lines.append(f"  coalescence  Tc {co['tc_k']:.1f} K ({co['tc_text']}), Δν {co['dnu_hz']:.2f} Hz ({co['dnu_text']}){extra}")
+    if r["rate_points"]:
+        lines.append(f"  rate points  {len(r['rate_points'])}")
+        for rp in r["rate_points"]:
+            lines.append(f"               T {rp['t_k']:.1f} K   k {rp['k_per_s']:.4g} s⁻¹   ({rp['t_text']}; {rp['k_text']})")
+    lines.append(f"  reference    {r['reference'] or '—'}")
+    lines.append(f"  entered      {r['entered_by']} at {r['entered_at']}")
+    if r["extra"]:
+        lines.append(f"  other        {json.dumps(r['extra'], ensure_ascii=False)}")
+    for f in r["findings"]:
+        accepted = f"  (accepted by {f['accepted_by']}: {f['accept_reason']})" if f.get("accepted_by") else ""
+        lines.append(f"  {f['severity']:<8}     [{f['rule_id']}] {f['message']}{accepted}")
+    lines.append(f"  history      {r['revision_count']} revision(s)")
+    return "\n".join(lines)
+
+
+def list_cmd(
+    ctx: typer.Context,
+    compound: str = typer.Option(None, help="Compound label or name contains this text."),
+    method: str = typer.Option(None, help="Only this method."),
+    solvent: str = typer.Option(None, help="Solvent contains this text."),
+    process: str = typer.Option(None, help="Only this process kind."),
+    status: str = typer.Option(None, help="Only this status."),
+    barrier_min: str = typer.Option(None, "--barrier-min", help="Lowest ΔG‡, any unit, e.g. '15 kcal/mol'."),
+    barrier_max: str = typer.Option(None, "--barrier-max", help="Highest ΔG‡, any unit."),
+    include_retracted: bool = typer.Option(False, "--include-retracted", help="Show retracted measurements too."),
+    limit: int = typer.Option(None, help="At most this many rows."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON (one object per measurement)."),
+    as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
+) -> None:
+    """List measurements with basic filters."""
+    from registry import api
+    from registry.units import parse_value
+
+    lo = parse_value(barrier_min, "energy", field="--barrier-min").value if barrier_min else None
+    hi = parse_value(barrier_max, "energy", field="--barrier-max").value if barrier_max else None
+    database = api.open_registry(state(ctx).db)
+    rows = api.list_measurements(
+        database, compound=compound, method=method, solvent=solvent, process=process,
+        status=status, dg_min_kj_mol=lo, dg_max_kj_mol=hi, include_retracted=include_retracted,
+        limit=limit,
+    )  # fmt: skip
+    render_rows(rows, as_json=as_json, as_csv=as_csv, columns=None if (as_json or as_csv) else LIST_COLUMNS)

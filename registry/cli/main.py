@@ -1,0 +1,101 @@
+"""The ``fluxledger`` command: global options, the error boundary, and the mounted command groups.
+
+Commands only parse, call :mod:`registry.api` and render. Heavy libraries are imported
+inside command bodies so that ``fluxledger --help`` starts fast.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+from typing import Any
+
+import typer
+from typer.core import TyperGroup
+
+from registry.cli.context import DEFAULT_DB, AppState
+from registry.errors import FluxledgerError
+
+
+class BoundaryGroup(TyperGroup):
+    """Turn a :class:`FluxledgerError` anywhere below into ``error: …`` on stderr and its exit code."""
+
+    def invoke(self, ctx: typer.Context) -> Any:
+        try:
+            return super().invoke(ctx)
+        except FluxledgerError as exc:
+            state = ctx.find_root().obj
+            if isinstance(state, AppState) and state.debug:
+                raise
+            typer.echo(f"error: {exc}", err=True)
+            ctx.exit(exc.exit_code)
+        except KeyboardInterrupt:
+            typer.echo("interrupted; nothing half-written was kept", err=True)
+            ctx.exit(130)
+
+
+app = typer.Typer(
+    cls=BoundaryGroup,
+    no_args_is_help=True,
+    pretty_exceptions_show_locals=False,
+    add_completion=False,
+    help="fluxledger: a shared registry of measured barriers of dynamic molecular processes.",
+)
+
+
+@app.callback()
+def main(
+    ctx: typer.Context,
+    db: str = typer.Option(
+        None,
+        "--db",
+        envvar="FLUXLEDGER_DB",
+        help="Database: a SQLite file path or a SQLAlchemy URL. Default ./fluxledger.sqlite.",
+    ),
+    actor: str = typer.Option(
+        None, "--as", help="Name recorded in the history (default: the OS user)."
+    ),
+    debug: bool = typer.Option(False, "--debug", help="Show tracebacks for user errors too."),
+) -> None:
+    """fluxledger: a shared registry of measured barriers of dynamic molecular processes."""
+    ctx.obj = AppState(
+        db=db or os.environ.get("FLUXLEDGER_DB") or DEFAULT_DB, actor=actor, debug=debug
+    )
+
+
+def _mount() -> None:
+    """Attach the command groups; each lives in its own module under ``registry.cli``."""
+    from registry.cli import commands_core
+
+    commands_core.register(app)
+    for name in _GROUPS:
+        module = __import__(f"registry.cli.{name}", fromlist=["app", "register"])
+        if hasattr(module, "register"):
+            module.register(app)
+        else:
+            app.add_typer(module.app, name=getattr(module, "NAME", name))
+
+
+#: optional command-group modules; each either has ``register(app)`` or ``app`` (+ ``NAME``)
+_GROUPS: list[str] = []
+for _candidate in (
+    "calc",
+    "io_commands",
+    "check",
+    "find",
+    "history",
+    "maintenance",
+    "plot",
+    "report",
+    "lineshape",
+    "pg",
+):
+    if os.path.exists(os.path.join(os.path.dirname(__file__), f"{_candidate}.py")):
+        _GROUPS.append(_candidate)
+
+_mount()
+
+
+def run() -> None:
+    """Console-script entry point."""
+    sys.exit(app(prog_name="fluxledger"))

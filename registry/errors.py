@@ -1,0 +1,119 @@
+"""One error hierarchy for everything a user can get wrong.
+
+The CLI catches only :class:`FluxledgerError`; anything else is a bug and may show a
+traceback. Each subclass carries structured fields and builds its message in
+``__str__`` so that library callers can inspect the fields and users read one line.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+class FluxledgerError(Exception):
+    """Base class of every error a user can cause. ``exit_code`` tells the CLI what to return."""
+
+    exit_code = 1
+
+
+class UsageError(FluxledgerError):
+    """The command was called wrongly (bad option combination, unknown id form …)."""
+
+    exit_code = 2
+
+
+class NotFoundError(FluxledgerError):
+    """A measurement, compound or file that the user named does not exist."""
+
+    exit_code = 1
+
+
+class DatabaseError(FluxledgerError):
+    """The database cannot be opened, is at the wrong schema version, or is damaged."""
+
+    exit_code = 1
+
+
+class UnitError(ValueError, FluxledgerError):
+    """A physical value whose text cannot be read as the quantity the field needs."""
+
+    exit_code = 1
+
+    def __init__(self, field: str, text: str, reason: str) -> None:
+        super().__init__(field, text, reason)
+        self.field = field
+        self.text = text
+        self.reason = reason
+
+    def __str__(self) -> str:
+        return f"{self.field}: cannot read {self.text!r}: {self.reason}"
+
+
+class StructureError(ValueError, FluxledgerError):
+    """A SMILES that cannot be read at all (not even unsanitized)."""
+
+    exit_code = 1
+
+    def __init__(self, smiles: str, reason: str) -> None:
+        super().__init__(smiles, reason)
+        self.smiles = smiles
+        self.reason = reason
+
+    def __str__(self) -> str:
+        return f"SMILES {self.smiles!r}: {self.reason}"
+
+
+@dataclass(frozen=True)
+class RowProblem:
+    """Where in a file a value is wrong, and why. ``row`` is the 1-based row as a spreadsheet shows it."""
+
+    file: str
+    sheet: str | None
+    row: int | None
+    column: str | None
+    text: str | None
+    reason: str
+
+    def __str__(self) -> str:
+        parts = [self.file]
+        if self.sheet:
+            parts.append(f"sheet {self.sheet!r}")
+        if self.row is not None:
+            parts.append(f"row {self.row}")
+        if self.column:
+            parts.append(f"column {self.column!r}")
+        where = ", ".join(parts)
+        text = f" {self.text!r}:" if self.text not in (None, "") else ""
+        return f"{where}:{text} {self.reason}"
+
+
+class ImportRowError(FluxledgerError):
+    """One or more rows of an input file are wrong; nothing was written."""
+
+    exit_code = 1
+
+    def __init__(self, problems: list[RowProblem]) -> None:
+        super().__init__(problems)
+        self.problems = problems
+
+    def __str__(self) -> str:
+        head = f"{len(self.problems)} problem(s) in the input; nothing was written"
+        shown = "\n  ".join(str(p) for p in self.problems[:50])
+        more = f"\n  … and {len(self.problems) - 50} more" if len(self.problems) > 50 else ""
+        return f"{head}\n  {shown}{more}"
+
+
+class FileFormatError(FluxledgerError):
+    """A whole file cannot be read (empty, wrong encoding, missing sheet …)."""
+
+    exit_code = 1
+
+    def __init__(self, file: str, reason: str, sheet: str | None = None) -> None:
+        super().__init__(file, reason, sheet)
+        self.file = file
+        self.reason = reason
+        self.sheet = sheet
+
+    def __str__(self) -> str:
+        where = f"{self.file}, sheet {self.sheet!r}" if self.sheet else self.file
+        return f"{where}: {self.reason}"

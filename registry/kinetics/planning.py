@@ -1,0 +1,222 @@
+"""Planning and interpreting: rates and half-lives at any T, the T for a target, the exchange
+regime on the NMR time scale, and the atropisomer stability class.
+
+A barrier is given either as ΔG‡ (taken as temperature-independent, i.e. ΔS‡ = 0 for the
+T-dependence) or as ΔH‡ and ΔS‡. Solving k(T) = k_target for T uses the Lambert W function:
+with a = ΔH‡/R and c = κ·(k_B/h)·e^(ΔS‡/R)/k_target, a/T − ln T = ln c gives T = a/W(a·c),
+exact and vectorized.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from registry.errors import UsageError
+from registry.kinetics.checks import check_finite, checked, scalar_or_array
+from registry.kinetics.coalescence import coalescence_rate
+from registry.kinetics.constants import (
+    BODY_TEMPERATURE_K,
+    KB_OVER_H_PER_S_K,
+    LN2,
+    R_J_MOL_K,
+    R_KJ_MOL_K,
+)
+from registry.kinetics.eyring import eyring_rate
+
+Number = float | NDArray[np.float64]
+
+#: k/k_c below this is slow exchange, above its inverse fast (common practice, no source)
+SLOW_BELOW = 0.1
+FAST_ABOVE = 10.0
+
+
+def _activation(
+    dg_kj_mol: ArrayLike | None, dh_kj_mol: ArrayLike | None, ds_j_mol_k: ArrayLike | None
+) -> tuple[NDArray, NDArray]:
+    """(ΔH‡ kJ/mol, ΔS‡ J/(mol·K)) from either ΔG‡ alone or ΔH‡ and ΔS‡ together."""
+    if dg_kj_mol is not None and (dh_kj_mol is not None or ds_j_mol_k is not None):
+        raise UsageError("give either ΔG‡ or ΔH‡ with ΔS‡, not both")
+    if dg_kj_mol is not None:
+        return check_finite("dg_kj_mol", dg_kj_mol), np.asarray(0.0)
+    if dh_kj_mol is None or ds_j_mol_k is None:
+        raise UsageError("give ΔG‡, or both ΔH‡ and ΔS‡")
+    return check_finite("dh_kj_mol", dh_kj_mol), check_finite("ds_j_mol_k", ds_j_mol_k)
+
+
+def rate_at(
+    t_k: ArrayLike,
+    dg_kj_mol: ArrayLike | None = None,
+    *,
+    dh_kj_mol: ArrayLike | None = None,
+    ds_j_mol_k: ArrayLike | None = None,
+    kappa: float = 1.0,
+) -> Number:
+    """Rate constant (s⁻¹) at T from ΔG‡, or from ΔH‡ and ΔS‡ (ΔG‡ = ΔH‡ − T·ΔS‡)."""
+    dh, ds = _activation(dg_kj_mol, dh_kj_mol, ds_j_mol_k)
+    t = checked("t_k", t_k, what="must be above 0 K")
+    return eyring_rate(dh - t * ds / 1000.0, t, kappa)
+
+
+def half_life(k_per_s: ArrayLike, *, pair: bool = False) -> Number:
+    """First-order half-life ln 2/k (s).
+
+    ``pair=True``: the excess of one of two equally stable forms that interconvert with rate
+    constant k each way (an enantiomer racemizing, a degenerate isomer equilibrating) decays
+    with 2k, so its half-life is ln 2/(2k).
+    """
+    k = checked("k_per_s", k_per_s, what="must be > 0 s⁻¹")
+    return scalar_or_array(LN2 / (2.0 * k if pair else k))
+
+
+def temperature_for_rate(
+    k_per_s: ArrayLike,
+    dg_kj_mol: ArrayLike | None = None,
+    *,
+    dh_kj_mol: ArrayLike | None = None,
+    ds_j_mol_k: ArrayLike | None = None,
+    kappa: float = 1.0,
+) -> Number:
+    """Temperature (K) at which the Eyring rate constant equals ``k_per_s``.
+
+    NaN where no positive temperature gives that rate (ΔH‡ ≤ 0).
+    """
+    from scipy.special import lambertw
+
+    k = checked("k_per_s", k_per_s, what="must be > 0 s⁻¹")
+    dh, ds = _activation(dg_kj_mol, dh_kj_mol, ds_j_mol_k)
+    kap = float(checked("kappa", kappa, what="must be > 0"))
+    a = dh / R_KJ_MOL_K  # kelvin
+    ln_ac = (
+        np.log(np.where(a > 0, a, np.nan)) + np.log(kap * KB_OVER_H_PER_S_K / k) + ds / R_J_MOL_K
+    )
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        arg = np.exp(ln_ac)
+        w = np.where(np.isfinite(arg), lambertw(arg).real, _w_asymptotic(ln_ac))
+        t = a / w
+    return scalar_or_array(np.where(np.isfinite(t) & (t > 0), t, np.nan))
+
+
+def _w_asymptotic(ln_z: NDArray) -> NDArray:
+    """W(z) for z too large for a float, from ln z (de Bruijn's series, two terms and a Newton step)."""
+    l1 = ln_z
+    l2 = np.log(np.maximum(l1, 1.0))
+    w = l1 - l2 + l2 / l1
+    return w - (w + np.log(w) - l1) / (1.0 + 1.0 / w)
+
+
+def temperature_for_half_life(
+    t_half_s: ArrayLike,
+    dg_kj_mol: ArrayLike | None = None,
+    *,
+    dh_kj_mol: ArrayLike | None = None,
+    ds_j_mol_k: ArrayLike | None = None,
+    kappa: float = 1.0,
+    pair: bool = False,
+) -> Number:
+    """Temperature (K) at which the half-life reaches ``t_half_s`` (see :func:`half_life`)."""
+    t_half = checked("t_half_s", t_half_s, what="must be > 0 s")
+    k = LN2 / t_half / (2.0 if pair else 1.0)
+    return temperature_for_rate(
+        k, dg_kj_mol, dh_kj_mol=dh_kj_mol, ds_j_mol_k=ds_j_mol_k, kappa=kappa
+    )
+
+
+def coalescence_temperature(
+    dnu_hz: ArrayLike,
+    dg_kj_mol: ArrayLike | None = None,
+    *,
+    j_hz: ArrayLike = 0.0,
+    dh_kj_mol: ArrayLike | None = None,
+    ds_j_mol_k: ArrayLike | None = None,
+    kappa: float = 1.0,
+) -> Number:
+    """Predicted Tc (K) of two equally populated sites Δν apart for a given barrier."""
+    k_c = coalescence_rate(dnu_hz, j_hz)
+    return temperature_for_rate(
+        k_c, dg_kj_mol, dh_kj_mol=dh_kj_mol, ds_j_mol_k=ds_j_mol_k, kappa=kappa
+    )
+
+
+@dataclass(frozen=True)
+class ExchangeRegime:
+    """Where exchange at rate k sits on the NMR time scale for two sites Δν apart.
+
+    ``ratio`` is k/k_c. ``extra_width_hz`` is the exchange broadening of each line for two
+    equally populated uncoupled sites: k/π in slow exchange, π·Δν²/(2k) in fast exchange
+    (the standard limits of the Bloch–McConnell equations); NaN in between, where only a
+    line-shape calculation says.
+    """
+
+    k_per_s: Number
+    dnu_hz: Number
+    k_c_per_s: Number
+    ratio: Number
+    regime: str | NDArray[np.str_]
+    extra_width_hz: Number
+
+
+def exchange_regime(k_per_s: ArrayLike, dnu_hz: ArrayLike, j_hz: ArrayLike = 0.0) -> ExchangeRegime:
+    """Classify exchange as slow, intermediate or fast: k below k_c/10, within, or above 10·k_c."""
+    k = checked("k_per_s", k_per_s, what="must be > 0 s⁻¹")
+    dnu = checked("dnu_hz", dnu_hz, what="must be > 0 Hz")
+    k_c = np.asarray(coalescence_rate(dnu, j_hz))
+    ratio = k / k_c
+    regime = np.where(
+        ratio < SLOW_BELOW, "slow", np.where(ratio > FAST_ABOVE, "fast", "intermediate")
+    )
+    width = np.where(
+        ratio < SLOW_BELOW,
+        k / np.pi,
+        np.where(ratio > FAST_ABOVE, np.pi * dnu**2 / (2 * k), np.nan),
+    )
+    reg: str | NDArray[np.str_] = str(regime) if regime.ndim == 0 else regime
+    return ExchangeRegime(
+        scalar_or_array(k),
+        scalar_or_array(dnu),
+        scalar_or_array(k_c),
+        scalar_or_array(ratio),
+        reg,
+        scalar_or_array(width),
+    )
+
+
+@lru_cache(maxsize=1)
+def _laplante_limits_kj_mol() -> tuple[float, float]:
+    from registry.units import convert
+
+    return convert(20.0, "kcal/mol", "kJ/mol"), convert(30.0, "kcal/mol", "kJ/mol")
+
+
+_CLASS_TEXT = {
+    1: "class 1: interconverts in seconds to minutes at 37 °C (treat as one compound)",
+    2: "class 2: interconverts in hours to months at 37 °C (a development risk)",
+    3: "class 3: stable for years at 37 °C (separable, stable atropisomers)",
+}
+
+
+@dataclass(frozen=True)
+class AtropisomerClass:
+    """Stability class of an atropisomeric axis (S. R. LaPlante et al., ChemMedChem 6, 505 (2011)).
+
+    Class 1: ΔG‡ < 20 kcal/mol; class 2: 20–30 kcal/mol; class 3: > 30 kcal/mol, with the
+    first-order half-life ln 2/k of interconversion at 37 °C.
+    """
+
+    stability_class: int
+    dg_kj_mol: float
+    half_life_37c_s: float
+    description: str
+
+
+def atropisomer_class(dg_kj_mol: float, *, kappa: float = 1.0) -> AtropisomerClass:
+    """LaPlante class of an axis with rotation barrier ΔG‡ (kJ/mol, taken at 37 °C)."""
+    dg = float(check_finite("dg_kj_mol", dg_kj_mol))
+    low, high = _laplante_limits_kj_mol()
+    cls = 1 if dg < low else (2 if dg <= high else 3)
+    k = float(eyring_rate(dg, BODY_TEMPERATURE_K, kappa))
+    t_half = LN2 / k if k > 0 else float("inf")
+    return AtropisomerClass(cls, dg, t_half, _CLASS_TEXT[cls])

@@ -1,0 +1,179 @@
+"""Engines, transactions and schema state for one registry (a SQLite file or a server URL).
+
+SQLite is opened in WAL mode with foreign keys on and a busy timeout; write transactions begin
+with ``BEGIN IMMEDIATE`` so that two writers queue for the lock instead of failing half-way, and
+:meth:`Database.write` retries with backoff if SQLite still reports the file as locked.
+"""
+
+from __future__ import annotations
+
+import os
+import random
+import time
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import TypeVar
+
+from sqlalchemy import Connection, Engine, create_engine, event, text
+from sqlalchemy.exc import OperationalError
+
+from registry.errors import DatabaseError
+
+T = TypeVar("T")
+
+BUSY_TIMEOUT_MS = 30_000
+WRITE_RETRIES = 8
+
+
+def to_url(db: str) -> str:
+    """A SQLAlchemy URL for a path or URL; plain paths become SQLite files."""
+    if "://" in db:
+        return db
+    return f"sqlite:///{Path(db).expanduser().resolve()}"
+
+
+@dataclass
+class Database:
+    """One open registry. ``write`` runs a function in a retried write transaction."""
+
+    url: str
+    engine: Engine
+    is_sqlite: bool
+    path: Path | None = None
+    warnings: list[str] = field(default_factory=list)
+
+    @contextmanager
+    def read(self) -> Iterator[Connection]:
+        """A read transaction (a consistent snapshot under WAL)."""
+        with self.engine.connect() as conn, conn.begin():
+            yield conn
+
+    @contextmanager
+    def _write_once(self) -> Iterator[Connection]:
+        with self.engine.connect() as conn:
+            conn.execution_options(sqlite_begin="IMMEDIATE")
+            with conn.begin():
+                yield conn
+
+    def write(self, work: Callable[[Connection], T]) -> T:
+        """Run ``work(conn)`` in one write transaction; all of it commits or none of it does."""
+        delay = 0.05
+        for attempt in range(WRITE_RETRIES):
+            try:
+                with self._write_once() as conn:
+                    return work(conn)
+            except OperationalError as exc:
+                if not _is_lock_error(exc) or attempt == WRITE_RETRIES - 1:
+                    raise
+                time.sleep(delay + random.uniform(0, delay))
+                delay = min(delay * 2, 2.0)
+        raise AssertionError("unreachable")  # pragma: no cover
+
+    def dispose(self) -> None:
+        self.engine.dispose()
+
+
+def _is_lock_error(exc: OperationalError) -> bool:
+    message = str(exc.orig).lower() if exc.orig else str(exc).lower()
+    return "locked" in message or "busy" in message or "could not serialize" in message
+
+
+def _network_fs_warning(path: Path) -> str | None:
+    """SQLite's locking is unreliable on NFS/SMB; say so rather than risk a corrupt file."""
+    try:
+        target = str(path.resolve().parent)
+        best, fstype = "", ""
+        with open("/proc/mounts", encoding="utf-8") as mounts:
+            for line in mounts:
+                parts = line.split()
+                if len(parts) >= 3 and target.startswith(parts[1]) and len(parts[1]) > len(best):
+                    best, fstype = parts[1], parts[2]
+    except OSError:
+        return None
+    if fstype.startswith(("nfs", "cifs", "smb", "fuse.sshfs", "9p", "afs")):
+        return (
+            f"the registry file is on a network file system ({fstype}) where SQLite's locking is "
+            "unreliable; keep it on a local disk or move the registry to a PostgreSQL server"
+        )
+    return None
+
+
+def _attach_sqlite_events(engine: Engine) -> None:
+    @event.listens_for(engine, "connect")
+    def _on_connect(dbapi_conn, _record):  # type: ignore[no-untyped-def]
+        dbapi_conn.isolation_level = None  # we issue BEGIN ourselves
+        cur = dbapi_conn.cursor()
+        cur.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_MS}")
+        cur.execute("PRAGMA foreign_keys = ON")
+        cur.execute("PRAGMA journal_mode = WAL")
+        cur.execute("PRAGMA synchronous = NORMAL")
+        cur.close()
+
+    @event.listens_for(engine, "begin")
+    def _on_begin(conn):  # type: ignore[no-untyped-def]
+        mode = conn.get_execution_options().get("sqlite_begin", "DEFERRED")
+        conn.exec_driver_sql(f"BEGIN {mode}")
+
+
+def open_database(db: str, *, must_exist: bool = True) -> Database:
+    """Open a registry by path or URL; ``must_exist`` guards against typos creating empty files."""
+    url = to_url(db)
+    if url.startswith("sqlite"):
+        path = Path(url.split("///", 1)[1]) if "///" in url else None
+        if path is not None and str(path) != ":memory:":
+            if must_exist and not path.exists():
+                raise DatabaseError(
+                    f"no registry at {path}; create one with 'fluxledger init' or choose one with --db"
+                )
+            if not path.parent.exists():
+                raise DatabaseError(f"folder {path.parent} does not exist")
+        engine = create_engine(url, connect_args={"timeout": BUSY_TIMEOUT_MS / 1000})
+        _attach_sqlite_events(engine)
+        database = Database(url=url, engine=engine, is_sqlite=True, path=path)
+        if path is not None:
+            warning = _network_fs_warning(path)
+            if warning:
+                database.warnings.append(warning)
+        return database
+    try:
+        engine = create_engine(url, pool_pre_ping=True)
+    except Exception as exc:  # bad driver name, missing driver package
+        raise DatabaseError(f"cannot use database URL {_redact(url)}: {exc}") from exc
+    return Database(url=url, engine=engine, is_sqlite=False)
+
+
+def _redact(url: str) -> str:
+    """Hide a password in a URL before it reaches a message."""
+    if "@" in url and "://" in url:
+        scheme, rest = url.split("://", 1)
+        cred, host = rest.rsplit("@", 1)
+        user = cred.split(":", 1)[0]
+        return f"{scheme}://{user}:***@{host}"
+    return url
+
+
+def redacted_url(database: Database) -> str:
+    return _redact(database.url)
+
+
+def current_user() -> str:
+    """The OS user, for the history when no ``--as`` name is given."""
+    for var in ("FLUXLEDGER_USER", "USER", "LOGNAME", "USERNAME"):
+        if os.environ.get(var):
+            return os.environ[var]
+    try:
+        import pwd
+
+        return pwd.getpwuid(os.getuid()).pw_name
+    except Exception:  # pragma: no cover - platform without pwd
+        return "unknown"
+
+
+def schema_revision(conn: Connection) -> str | None:
+    """The Alembic revision the database is at, or None for an empty database."""
+    try:
+        return conn.execute(text("SELECT version_num FROM alembic_version")).scalar()
+    except Exception:
+        return None

@@ -1,0 +1,16 @@
+#!/usr/bin/env bash
+# Build a fresh demo registry from seed_demo/ and walk through the main commands.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+mkdir -p demo_out
+export FLUXLEDGER_DB="$PWD/demo_out/demo.sqlite"
+export FLUXLEDGER_USER="demo"
+rm -f "$FLUXLEDGER_DB" "$FLUXLEDGER_DB-wal" "$FLUXLEDGER_DB-shm"
+step() { echo; echo "\$ fluxledger $*"; fluxledger "$@"; }
+step init
+step add --method coalescence --compound DEMO-ADD-1 --name "N,N-dimethylacetamide" \
+  --smiles "CC(=O)N(C)C" --process bond-rotation --nucleus 1H --solvent CDCl3 --mhz 400 \
+  --tc "70 °C" --dnu "0.12 ppm" --dg "18.1 kcal/mol" --reference "demo: invented value"
+step list
+step show 1
+step info

@@ -1,0 +1,57 @@
+"""Shared fixtures: registries on real temporary SQLite files, engines disposed after each test."""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Iterator
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from registry import api
+from registry.store import Database
+
+os.environ.setdefault("FLUXLEDGER_USER", "tester")
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+
+_OPEN: list[Database] = []
+
+
+@pytest.fixture
+def db_path(tmp_path: Path) -> Path:
+    """A freshly initialised registry file."""
+    path = tmp_path / "registry.sqlite"
+    api.init_registry(str(path))
+    return path
+
+
+@pytest.fixture
+def database(db_path: Path) -> Iterator[Database]:
+    """An open registry on a real temporary file."""
+    handle = api.open_registry(str(db_path))
+    _OPEN.append(handle)
+    yield handle
+
+
+@pytest.fixture(autouse=True)
+def _dispose_engines() -> Iterator[None]:
+    yield
+    while _OPEN:
+        _OPEN.pop().dispose()
+
+
+@pytest.fixture
+def runner() -> CliRunner:
+    return CliRunner()
+
+
+@pytest.fixture
+def cli(runner: CliRunner, db_path: Path):  # type: ignore[no-untyped-def]
+    """Run ``fluxledger --db <temp registry> ARGS``; returns the typer Result (stdout, stderr apart)."""
+    from registry.cli.main import app
+
+    def invoke(*args: str, input: str | None = None):  # type: ignore[no-untyped-def]
+        return runner.invoke(app, ["--db", str(db_path), *args], input=input)
+
+    return invoke
