@@ -7,10 +7,17 @@ export FLUXLEDGER_DB="$PWD/demo_out/demo.sqlite"
 export FLUXLEDGER_USER="demo"
 rm -f "$FLUXLEDGER_DB" "$FLUXLEDGER_DB-wal" "$FLUXLEDGER_DB-shm"
 step() { echo; echo "\$ fluxledger $*"; fluxledger "$@"; }
+# a step whose exit status 1 means "findings in the data" (expected for the planted slips)
+step_findings() { echo; echo "\$ fluxledger $*"; fluxledger "$@" || [ $? -eq 1 ]; }
+
 step init
+# --- import step ---
 step add --method coalescence --compound DEMO-ADD-1 --name "N,N-dimethylacetamide" \
   --smiles "CC(=O)N(C)C" --process bond-rotation --nucleus 1H --solvent CDCl3 --mhz 400 \
   --tc "70 °C" --dnu "0.12 ppm" --dg "18.1 kcal/mol" --reference "demo: invented value"
-step list
+# --- check step ---
+# --- find step ---
+step list --limit 10
 step show 1
+# --- calc step ---
 step info
