@@ -1,1 +1,75 @@
-"""(filled in by its issue)"""
+"""The kinetics engine: barriers from coalescence data, rate constants, Eyring/Arrhenius fits.
+
+Pure functions over floats and numpy arrays (10⁶ entries in one call are fine); no database.
+Canonical units throughout: kJ/mol, K, J/(mol·K), Hz, s⁻¹. Text with units is read by
+:mod:`registry.units` (see :mod:`.rate_table`), never here.
+
+Map:
+    constants    CODATA constants from scipy.constants (k_B, h, R, N_A)
+    checks       vectorized input checks and :class:`KineticsInputError`
+    eyring       k ↔ ΔG‡ at T (Eyring 1935)
+    coalescence  k_c and ΔG‡(Tc) with propagated uncertainty: Gutowsky–Holm, coupled AB,
+                 unequal populations (Shanan-Atidi and Bar-Eli 1970)
+    fits         weighted Eyring and Arrhenius fits with full covariance and warnings
+    planning     rate/half-life at T, T for a target, predicted Tc, exchange regime,
+                 atropisomer class (LaPlante 2011)
+    safety       caution text for hot, cold and above-boiling-point temperatures
+    experiment   a VT-NMR plan per spectrometer field (planning + safety)
+    rate_table   rate points from CSV/spreadsheets and command-line text (pandas, lazily)
+"""
+
+from registry.kinetics.checks import KineticsInputError
+from registry.kinetics.coalescence import (
+    CoalescenceBarrier,
+    UnequalPopulationBarriers,
+    coalescence_barrier,
+    coalescence_rate,
+    shanan_atidi_x,
+    unequal_population_barriers,
+)
+from registry.kinetics.experiment import ExperimentPlan, FieldPlan, plan_coalescence
+from registry.kinetics.eyring import dg_from_dh_ds, eyring_barrier, eyring_rate
+from registry.kinetics.fits import ArrheniusFit, BarrierAt, EyringFit, fit_arrhenius, fit_eyring
+from registry.kinetics.planning import (
+    AtropisomerClass,
+    ExchangeRegime,
+    atropisomer_class,
+    coalescence_temperature,
+    exchange_regime,
+    half_life,
+    rate_at,
+    temperature_for_half_life,
+    temperature_for_rate,
+)
+from registry.kinetics.safety import safety_notes
+
+__all__ = [
+    "ArrheniusFit",
+    "AtropisomerClass",
+    "BarrierAt",
+    "CoalescenceBarrier",
+    "ExchangeRegime",
+    "ExperimentPlan",
+    "EyringFit",
+    "FieldPlan",
+    "KineticsInputError",
+    "UnequalPopulationBarriers",
+    "atropisomer_class",
+    "coalescence_barrier",
+    "coalescence_rate",
+    "coalescence_temperature",
+    "dg_from_dh_ds",
+    "exchange_regime",
+    "eyring_barrier",
+    "eyring_rate",
+    "fit_arrhenius",
+    "fit_eyring",
+    "half_life",
+    "plan_coalescence",
+    "rate_at",
+    "safety_notes",
+    "shanan_atidi_x",
+    "temperature_for_half_life",
+    "temperature_for_rate",
+    "unequal_population_barriers",
+]

@@ -90,9 +90,9 @@ def temperature_for_rate(
     dh, ds = _activation(dg_kj_mol, dh_kj_mol, ds_j_mol_k)
     kap = float(checked("kappa", kappa, what="must be > 0"))
     a = dh / R_KJ_MOL_K  # kelvin
-    ln_ac = (
-        np.log(np.where(a > 0, a, np.nan)) + np.log(kap * KB_OVER_H_PER_S_K / k) + ds / R_J_MOL_K
-    )
+    a_pos = np.where(a > 0, a, np.nan)
+    with np.errstate(invalid="ignore"):
+        ln_ac = np.log(a_pos) + np.log(kap * KB_OVER_H_PER_S_K) - np.log(k) + ds / R_J_MOL_K
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         arg = np.exp(ln_ac)
         w = np.where(np.isfinite(arg), lambertw(arg).real, _w_asymptotic(ln_ac))
@@ -192,9 +192,9 @@ def _laplante_limits_kj_mol() -> tuple[float, float]:
 
 
 _CLASS_TEXT = {
-    1: "class 1: interconverts in seconds to minutes at 37 °C (treat as one compound)",
-    2: "class 2: interconverts in hours to months at 37 °C (a development risk)",
-    3: "class 3: stable for years at 37 °C (separable, stable atropisomers)",
+    1: "class 1 (ΔG‡ < 20 kcal/mol): interconverts rapidly at 37 °C (a minute or faster)",
+    2: "class 2 (20–30 kcal/mol): interconverts slowly at 37 °C (typically hours to months)",
+    3: "class 3 (> 30 kcal/mol): stable for years at 37 °C",
 }
 
 
@@ -203,7 +203,9 @@ class AtropisomerClass:
     """Stability class of an atropisomeric axis (S. R. LaPlante et al., ChemMedChem 6, 505 (2011)).
 
     Class 1: ΔG‡ < 20 kcal/mol; class 2: 20–30 kcal/mol; class 3: > 30 kcal/mol, with the
-    first-order half-life ln 2/k of interconversion at 37 °C.
+    first-order half-life ln 2/k of interconversion at 37 °C. The class limits are round
+    numbers: at 37 °C the Eyring half-life is ~13 s at 20 kcal/mol and ~5 years at 30, so the
+    computed half-life, not the class wording, is the number to quote.
     """
 
     stability_class: int
