@@ -24,13 +24,16 @@ from registry.errors import DatabaseError
 T = TypeVar("T")
 
 BUSY_TIMEOUT_MS = 30_000
-WRITE_RETRIES = 8
+WRITE_RETRIES = 12
+READ_RETRIES = 12
 
 
 def to_url(db: str) -> str:
     """A SQLAlchemy URL for a path or URL; plain paths become SQLite files."""
     if "://" in db:
         return db
+    if db == ":memory:":
+        return "sqlite://"
     return f"sqlite:///{Path(db).expanduser().resolve()}"
 
 
@@ -46,9 +49,32 @@ class Database:
 
     @contextmanager
     def read(self) -> Iterator[Connection]:
-        """A read transaction (a consistent snapshot under WAL)."""
-        with self.engine.connect() as conn, conn.begin():
-            yield conn
+        """A read transaction: one consistent snapshot under WAL, never blocked by writers.
+
+        Under WAL a reader can still meet ``SQLITE_BUSY`` while it *starts* its snapshot (the
+        WAL index is being rebuilt or reset by another connection, when the busy handler is not
+        always called). The snapshot is therefore opened here, with retries, before the caller's
+        first statement runs; after that SQLite guarantees the snapshot stays readable.
+        """
+        delay = 0.01
+        for attempt in range(READ_RETRIES):
+            conn = self.engine.connect()
+            try:
+                trans = conn.begin()
+                if self.is_sqlite:
+                    conn.exec_driver_sql("SELECT count(*) FROM sqlite_master").scalar()
+            except OperationalError as exc:
+                conn.close()
+                if not _is_lock_error(exc) or attempt == READ_RETRIES - 1:
+                    raise
+                time.sleep(delay + random.uniform(0, delay))
+                delay = min(delay * 2, 1.0)
+                continue
+            with conn:
+                with trans:
+                    yield conn
+                return
+        raise AssertionError("unreachable")  # pragma: no cover
 
     @contextmanager
     def _write_once(self) -> Iterator[Connection]:
@@ -58,15 +84,28 @@ class Database:
                 yield conn
 
     def write(self, work: Callable[[Connection], T]) -> T:
-        """Run ``work(conn)`` in one write transaction; all of it commits or none of it does."""
+        """Run ``work(conn)`` in one write transaction; all of it commits or none of it does.
+
+        ``work`` may run more than once: when SQLite still reports the file as locked after the
+        busy timeout (or reports a busy state in which it does not wait, such as WAL recovery),
+        the transaction is rolled back and ``work`` is called again on a fresh transaction,
+        after an exponential backoff with jitter. ``work`` must therefore not have effects
+        outside the database. A lock that outlasts every retry becomes a :class:`DatabaseError`
+        with a message a user can act on, never a traceback.
+        """
         delay = 0.05
         for attempt in range(WRITE_RETRIES):
             try:
                 with self._write_once() as conn:
                     return work(conn)
             except OperationalError as exc:
-                if not _is_lock_error(exc) or attempt == WRITE_RETRIES - 1:
+                if not _is_lock_error(exc):
                     raise
+                if attempt == WRITE_RETRIES - 1:
+                    raise DatabaseError(
+                        f"{redacted_url(self)} stayed locked by another writer for too long "
+                        f"({WRITE_RETRIES} attempts); try again, or find the process that holds it"
+                    ) from exc
                 time.sleep(delay + random.uniform(0, delay))
                 delay = min(delay * 2, 2.0)
         raise AssertionError("unreachable")  # pragma: no cover
@@ -80,24 +119,52 @@ def _is_lock_error(exc: OperationalError) -> bool:
     return "locked" in message or "busy" in message or "could not serialize" in message
 
 
-def _network_fs_warning(path: Path) -> str | None:
+_NETWORK_FS = ("nfs", "cifs", "smb", "fuse.sshfs", "9p", "afs", "ceph", "glusterfs", "lustre")
+
+
+def _mount_fstype(path: Path, mounts_text: str) -> str:
+    """The file-system type of the mount holding ``path`` (longest mount point that contains it)."""
+    target = path.resolve()
+    best_len, fstype = -1, ""
+    for line in mounts_text.splitlines():
+        parts = line.split()
+        if len(parts) < 3:
+            continue
+        mount_point = parts[1].replace("\\040", " ")  # /proc/mounts escapes spaces
+        mount = Path(mount_point)
+        if (target == mount or mount in target.parents) and len(mount_point) > best_len:
+            best_len, fstype = len(mount_point), parts[2]
+    return fstype
+
+
+def _network_fs_warning(path: Path, mounts_file: str = "/proc/mounts") -> str | None:
     """SQLite's locking is unreliable on NFS/SMB; say so rather than risk a corrupt file."""
     try:
-        target = str(path.resolve().parent)
-        best, fstype = "", ""
-        with open("/proc/mounts", encoding="utf-8") as mounts:
-            for line in mounts:
-                parts = line.split()
-                if len(parts) >= 3 and target.startswith(parts[1]) and len(parts[1]) > len(best):
-                    best, fstype = parts[1], parts[2]
+        with open(mounts_file, encoding="utf-8") as mounts:
+            fstype = _mount_fstype(path.parent, mounts.read())
     except OSError:
         return None
-    if fstype.startswith(("nfs", "cifs", "smb", "fuse.sshfs", "9p", "afs")):
+    if fstype.startswith(_NETWORK_FS):
         return (
             f"the registry file is on a network file system ({fstype}) where SQLite's locking is "
             "unreliable; keep it on a local disk or move the registry to a PostgreSQL server"
         )
     return None
+
+
+#: warnings about databases opened since the CLI last asked (see :func:`take_warnings`)
+_WARNINGS_SEEN: list[str] = []
+
+
+def take_warnings() -> list[str]:
+    """Warnings about the databases opened since the last call, each text once; then forget them.
+
+    The CLI boundary calls this once per command and prints what it gets, so a warning shows
+    once however many times a command opens the database.
+    """
+    fresh = list(dict.fromkeys(_WARNINGS_SEEN))
+    _WARNINGS_SEEN.clear()
+    return fresh
 
 
 def _attach_sqlite_events(engine: Engine) -> None:
@@ -136,6 +203,7 @@ def open_database(db: str, *, must_exist: bool = True) -> Database:
             warning = _network_fs_warning(path)
             if warning:
                 database.warnings.append(warning)
+                _WARNINGS_SEEN.append(warning)
         return database
     try:
         engine = create_engine(url, pool_pre_ping=True)

@@ -34,8 +34,6 @@ def init(
         render_record(result, as_json=True)
         return
     typer.echo(f"registry ready: {result['database']} (schema {result['schema_version']})")
-    for warning in result["warnings"]:
-        typer.echo(f"warning: {warning}", err=True)
 
 
 def info(
@@ -55,8 +53,6 @@ def info(
     typer.echo(f"schema          {result['schema_version']} (head {result['schema_head']})")
     for name, count in result["counts"].items():
         typer.echo(f"{name.replace('_', ' '):<16}{count}")
-    for warning in result["warnings"]:
-        typer.echo(f"warning: {warning}", err=True)
 
 
 def add(

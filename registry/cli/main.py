@@ -21,6 +21,7 @@ class BoundaryGroup(TyperGroup):
     """Turn a :class:`FluxledgerError` anywhere below into ``error: …`` on stderr and its exit code."""
 
     def invoke(self, ctx: typer.Context) -> Any:
+        _print_database_warnings(discard=True)  # left over from an earlier in-process call
         try:
             return super().invoke(ctx)
         except FluxledgerError as exc:
@@ -32,6 +33,17 @@ class BoundaryGroup(TyperGroup):
         except KeyboardInterrupt:
             typer.echo("interrupted; nothing half-written was kept", err=True)
             ctx.exit(130)
+        finally:
+            _print_database_warnings()
+
+
+def _print_database_warnings(discard: bool = False) -> None:
+    """Each warning about an opened database (e.g. on a network file system) once, on stderr."""
+    store = sys.modules.get("registry.store")  # not imported: no database was opened
+    if store is not None:
+        for warning in store.take_warnings():
+            if not discard:
+                typer.echo(f"warning: {warning}", err=True)
 
 
 app = typer.Typer(
