@@ -9,13 +9,11 @@ from __future__ import annotations
 import json
 from collections.abc import Sequence
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from sqlalchemy import Connection, func, insert, select
 
 from registry import audit, migrate
-from registry.chem import Structure, read_structure
-from registry.entry import EntryError, EntryInput, normalize_entry
 from registry.errors import DatabaseError, NotFoundError, UnitError
 from registry.models import (
     CoalescenceObservation,
@@ -29,7 +27,10 @@ from registry.models import (
     ValidationFinding,
 )
 from registry.store import Database, current_user, open_database, redacted_url
-from registry.writer import known_process_kinds, write_entries
+
+if TYPE_CHECKING:  # imported lazily at run time: units (pint) and RDKit are slow to load
+    from registry.chem import Structure
+    from registry.entry import EntryInput
 
 
 def init_registry(db: str) -> dict[str, Any]:
@@ -48,7 +49,9 @@ def open_registry(db: str) -> Database:
         raise DatabaseError(f"{redacted_url(database)} is not a readable registry: {exc}") from exc
     head = migrate.head_revision()
     if current is None:
-        raise DatabaseError(f"{redacted_url(database)} has no fluxledger schema; run 'fluxledger init'")
+        raise DatabaseError(
+            f"{redacted_url(database)} has no fluxledger schema; run 'fluxledger init'"
+        )
     if current != head:
         raise DatabaseError(
             f"the registry's schema is at {current}, this fluxledger needs {head}; "
@@ -92,11 +95,16 @@ def actor_name(actor: str | None) -> str:
 
 
 def structure_for(smiles: str | None) -> Structure | None:
+    from registry.chem import read_structure
+
     return read_structure(smiles) if smiles else None
 
 
 def add_measurement(database: Database, entry: EntryInput, *, actor: str | None = None) -> int:
     """Add one measurement (and its compound/process if new); returns its id."""
+    from registry.entry import EntryError, normalize_entry
+    from registry.writer import known_process_kinds, write_entries
+
     with database.read() as conn:
         kinds = known_process_kinds(conn)
     normalized, problems = normalize_entry(entry, kinds)
@@ -293,7 +301,9 @@ def add_rate_points(
             )
         ]
         if replace:
-            conn.execute(RatePoint.__table__.delete().where(RatePoint.measurement_id == measurement_id))
+            conn.execute(
+                RatePoint.__table__.delete().where(RatePoint.measurement_id == measurement_id)
+            )
         conn.execute(insert(RatePoint), rows)
         after = ([] if replace else before) + [[r["t_text"], r["k_text"]] for r in rows]
         audit.record(

@@ -203,8 +203,8 @@ def normalize_entry(
 
     tc = values["tc"]
     if (tc is None) != (dnu is None):
-        missing = "dnu (Δν)" if dnu is None else "tc"
-        problems.append(Problem(missing, "", "coalescence data needs both Tc and Δν"))
+        missing = "dnu" if dnu is None else "tc"
+        problems.append(Problem(missing, "", "missing: coalescence data needs both Tc and Δν"))
     if dnu is not None and dnu.value <= 0:
         problems.append(Problem("dnu", dnu.text, "Δν must be positive"))
     if field_v is not None and field_v.value <= 0:

@@ -46,6 +46,8 @@ class UnitError(ValueError, FluxledgerError):
         self.reason = reason
 
     def __str__(self) -> str:
+        if self.text in (None, ""):
+            return f"{self.field}: {self.reason}"
         return f"{self.field}: cannot read {self.text!r}: {self.reason}"
 
 

@@ -20,7 +20,16 @@ import pint
 
 from registry.errors import UnitError
 
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+
+def _make_registry() -> pint.UnitRegistry:
+    """Build the registry once; pint's on-disk cache of parsed definitions makes start-up fast."""
+    try:
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=False, cache_folder=":auto:")
+    except OSError:  # no writable cache directory: build without the cache
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+
+
+ureg = _make_registry()
 ureg.define("entropy_unit = calorie / mole / kelvin = eu")
 Q_ = ureg.Quantity
 
@@ -194,6 +203,16 @@ _ctx.add_transformation(
     "[mass] * [length] ** 2 / [time] ** 2",
     "[mass] * [length] ** 2 / [time] ** 2 / [substance]",
     lambda ureg, x: x * ureg.avogadro_constant,
+)
+_ctx.add_transformation(
+    "[mass] * [length] ** 2 / [time] ** 2 / [substance]",
+    "[length] ** -1",
+    lambda ureg, x: x / (ureg.planck_constant * ureg.speed_of_light * ureg.avogadro_constant),
+)
+_ctx.add_transformation(
+    "[mass] * [length] ** 2 / [time] ** 2 / [substance]",
+    "[mass] * [length] ** 2 / [time] ** 2",
+    lambda ureg, x: x / ureg.avogadro_constant,
 )
 ureg.add_context(_ctx)
 

@@ -13,7 +13,11 @@ from registry.store import open_database
 
 def _schema(engine) -> dict[str, set[str]]:  # type: ignore[no-untyped-def]
     insp = inspect(engine)
-    return {t: {c["name"] for c in insp.get_columns(t)} for t in insp.get_table_names() if t != "alembic_version"}
+    return {
+        t: {c["name"] for c in insp.get_columns(t)}
+        for t in insp.get_table_names()
+        if t != "alembic_version"
+    }
 
 
 def test_models_match_migration_head(tmp_path: Path) -> None:

@@ -57,7 +57,10 @@ def info(
 
 def add(
     ctx: typer.Context,
-    method: str = typer.Option(..., help="coalescence, lineshape, 2d-exchange, saturation-transfer, equilibration, computed"),
+    method: str = typer.Option(
+        ...,
+        help="coalescence, lineshape, 2d-exchange, saturation-transfer, equilibration, computed",
+    ),
     smiles: str = typer.Option(None, help="Structure as SMILES."),
     compound: str = typer.Option(None, help="The group's compound label."),
     name: str = typer.Option(None, help="Compound name."),
@@ -65,20 +68,28 @@ def add(
     sites: str = typer.Option(None, help="Which sites exchange, e.g. 'N-CH3 a/b'."),
     nucleus: str = typer.Option(None, help="Observed nucleus, e.g. 1H, 13C, 19F."),
     solvent: str = typer.Option(None, help="Solvent, e.g. CDCl3, toluene-d8."),
-    field: str = typer.Option(None, "--field", "--mhz", help="Spectrometer frequency, e.g. '400 MHz'."),
+    field: str = typer.Option(
+        None, "--field", "--mhz", help="Spectrometer frequency, e.g. '400 MHz'."
+    ),
     dg: str = typer.Option(None, help="ΔG‡ with unit, e.g. '14.2 ± 0.3 kcal/mol'."),
     dg_t: str = typer.Option(None, "--dg-t", help="Temperature ΔG‡ refers to (default Tc)."),
     dh: str = typer.Option(None, help="ΔH‡ with unit."),
     ds: str = typer.Option(None, help="ΔS‡ with unit, e.g. '-5 e.u.'."),
     ea: str = typer.Option(None, help="Arrhenius Ea with unit."),
-    log10_a: str = typer.Option(None, "--log10-a", help="log10 of the Arrhenius A factor (A in s-1)."),
+    log10_a: str = typer.Option(
+        None, "--log10-a", help="log10 of the Arrhenius A factor (A in s-1)."
+    ),
     tc: str = typer.Option(None, help="Coalescence temperature, e.g. '-12 °C'."),
     dnu: str = typer.Option(None, help="Slow-exchange separation, e.g. '24 Hz' or '0.06 ppm'."),
-    j: str = typer.Option(None, "--j", help="Coupling between the exchanging sites (AB), e.g. '12 Hz'."),
+    j: str = typer.Option(
+        None, "--j", help="Coupling between the exchanging sites (AB), e.g. '12 Hz'."
+    ),
     population: str = typer.Option(None, help="Population ratio, e.g. '60:40'."),
     t_min: str = typer.Option(None, "--t-min", help="Lowest temperature measured."),
     t_max: str = typer.Option(None, "--t-max", help="Highest temperature measured."),
-    rate: list[str] = typer.Option(None, "--rate", help="A rate point 'T, k', e.g. '298 K, 12.5 s-1' (repeat)."),
+    rate: list[str] = typer.Option(
+        None, "--rate", help="A rate point 'T, k', e.g. '298 K, 12.5 s-1' (repeat)."
+    ),
     reference: str = typer.Option(None, help="DOI, citation or notebook page."),
     label: str = typer.Option(None, help="Label of this measurement (e.g. a notebook code)."),
     status: str = typer.Option(None, help="draft (default), reviewed, flagged."),
@@ -108,7 +119,9 @@ def add(
     if as_json:
         render_record(record, as_json=True)
     else:
-        typer.echo(f"added measurement {measurement_id} ({record['compound'].get('label') or record['compound'].get('name') or ''})")
+        typer.echo(
+            f"added measurement {measurement_id} ({record['compound'].get('label') or record['compound'].get('name') or ''})"
+        )
         for finding in record["findings"]:
             typer.echo(f"  {finding['severity']}: {finding['message']}")
 
@@ -158,34 +171,53 @@ def _show_text(r: dict[str, Any]) -> str:
     if c and not c.get("structure_ok", True):
         lines.append(f"  structure    kept unsanitized: {c.get('structure_problem')}")
     if p:
-        lines.append(f"  process      {p.get('kind')}  {p.get('sites') or ''}  {p.get('nucleus') or ''}".rstrip())
+        lines.append(
+            f"  process      {p.get('kind')}  {p.get('sites') or ''}  {p.get('nucleus') or ''}".rstrip()
+        )
     lines += [
         f"  method       {r['method']}",
-        f"  solvent      {r['solvent_text'] or '—'}" + ("" if r["solvent_id"] or not r["solvent_text"] else "  (not in the solvent table)"),
+        f"  solvent      {r['solvent_text'] or '—'}"
+        + ("" if r["solvent_id"] or not r["solvent_text"] else "  (not in the solvent table)"),
         f"  field        {_fmt(r['field_mhz'], None, 'MHz', r['field_text'])}",
         f"  ΔG‡          {_fmt(r['dg_kj_mol'], r['dg_err_kj_mol'], 'kJ/mol', r['dg_text'])}",
         f"  at T         {_fmt(r['dg_t_k'], None, 'K', r['dg_t_text'])}",
     ]
     for key, label, unit in (("dh", "ΔH‡", "kJ/mol"), ("ea", "Ea", "kJ/mol")):
         if r[f"{key}_kj_mol"] is not None:
-            lines.append(f"  {label:<12} {_fmt(r[f'{key}_kj_mol'], r[f'{key}_err_kj_mol'], unit, r[f'{key}_text'])}")
+            lines.append(
+                f"  {label:<12} {_fmt(r[f'{key}_kj_mol'], r[f'{key}_err_kj_mol'], unit, r[f'{key}_text'])}"
+            )
     if r["ds_j_mol_k"] is not None:
-        lines.append(f"  ΔS‡          {_fmt(r['ds_j_mol_k'], r['ds_err_j_mol_k'], 'J/(mol·K)', r['ds_text'])}")
+        lines.append(
+            f"  ΔS‡          {_fmt(r['ds_j_mol_k'], r['ds_err_j_mol_k'], 'J/(mol·K)', r['ds_text'])}"
+        )
     if r["t_min_k"] is not None or r["t_max_k"] is not None:
-        lines.append(f"  T range      {_fmt(r['t_min_k'], None, 'K', None)} … {_fmt(r['t_max_k'], None, 'K', None)}")
+        lines.append(
+            f"  T range      {_fmt(r['t_min_k'], None, 'K', None)} … {_fmt(r['t_max_k'], None, 'K', None)}"
+        )
     for co in r["coalescence"]:
-        extra = (f", J {co['j_hz']:.1f} Hz" if co["j_hz"] else "") + (f", populations {co['population_text']}" if co["population_text"] else "")
-        lines.append(f"  coalescence  Tc {co['tc_k']:.1f} K ({co['tc_text']}), Δν {co['dnu_hz']:.2f} Hz ({co['dnu_text']}){extra}")
+        extra = (f", J {co['j_hz']:.1f} Hz" if co["j_hz"] else "") + (
+            f", populations {co['population_text']}" if co["population_text"] else ""
+        )
+        lines.append(
+            f"  coalescence  Tc {co['tc_k']:.1f} K ({co['tc_text']}), Δν {co['dnu_hz']:.2f} Hz ({co['dnu_text']}){extra}"
+        )
     if r["rate_points"]:
         lines.append(f"  rate points  {len(r['rate_points'])}")
         for rp in r["rate_points"]:
-            lines.append(f"               T {rp['t_k']:.1f} K   k {rp['k_per_s']:.4g} s⁻¹   ({rp['t_text']}; {rp['k_text']})")
+            lines.append(
+                f"               T {rp['t_k']:.1f} K   k {rp['k_per_s']:.4g} s⁻¹   ({rp['t_text']}; {rp['k_text']})"
+            )
     lines.append(f"  reference    {r['reference'] or '—'}")
     lines.append(f"  entered      {r['entered_by']} at {r['entered_at']}")
     if r["extra"]:
         lines.append(f"  other        {json.dumps(r['extra'], ensure_ascii=False)}")
     for f in r["findings"]:
-        accepted = f"  (accepted by {f['accepted_by']}: {f['accept_reason']})" if f.get("accepted_by") else ""
+        accepted = (
+            f"  (accepted by {f['accepted_by']}: {f['accept_reason']})"
+            if f.get("accepted_by")
+            else ""
+        )
         lines.append(f"  {f['severity']:<8}     [{f['rule_id']}] {f['message']}{accepted}")
     lines.append(f"  history      {r['revision_count']} revision(s)")
     return "\n".join(lines)
@@ -198,9 +230,13 @@ def list_cmd(
     solvent: str = typer.Option(None, help="Solvent contains this text."),
     process: str = typer.Option(None, help="Only this process kind."),
     status: str = typer.Option(None, help="Only this status."),
-    barrier_min: str = typer.Option(None, "--barrier-min", help="Lowest ΔG‡, any unit, e.g. '15 kcal/mol'."),
+    barrier_min: str = typer.Option(
+        None, "--barrier-min", help="Lowest ΔG‡, any unit, e.g. '15 kcal/mol'."
+    ),
     barrier_max: str = typer.Option(None, "--barrier-max", help="Highest ΔG‡, any unit."),
-    include_retracted: bool = typer.Option(False, "--include-retracted", help="Show retracted measurements too."),
+    include_retracted: bool = typer.Option(
+        False, "--include-retracted", help="Show retracted measurements too."
+    ),
     limit: int = typer.Option(None, help="At most this many rows."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON (one object per measurement)."),
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
@@ -217,4 +253,6 @@ def list_cmd(
         status=status, dg_min_kj_mol=lo, dg_max_kj_mol=hi, include_retracted=include_retracted,
         limit=limit,
     )  # fmt: skip
-    render_rows(rows, as_json=as_json, as_csv=as_csv, columns=None if (as_json or as_csv) else LIST_COLUMNS)
+    render_rows(
+        rows, as_json=as_json, as_csv=as_csv, columns=None if (as_json or as_csv) else LIST_COLUMNS
+    )
