@@ -26,10 +26,14 @@ T = TypeVar("T")
 BUSY_TIMEOUT_MS = 30_000
 WRITE_RETRIES = 12
 READ_RETRIES = 12
+PG_WRITE_LOCK_KEY = 0x666C7578  # the advisory lock audit.py takes for the hash chain
 
 
 def to_url(db: str) -> str:
     """A SQLAlchemy URL for a path or URL; plain paths become SQLite files."""
+    for plain in ("postgresql://", "postgres://"):  # the driver fluxledger installs: psycopg 3
+        if db.startswith(plain):
+            return "postgresql+psycopg://" + db[len(plain) :]
     if "://" in db:
         return db
     if db == ":memory:":
@@ -81,6 +85,9 @@ class Database:
         with self.engine.connect() as conn:
             conn.execution_options(sqlite_begin="IMMEDIATE")
             with conn.begin():
+                if conn.dialect.name == "postgresql":
+                    # writers queue here, as BEGIN IMMEDIATE makes them queue on SQLite
+                    conn.exec_driver_sql(f"SELECT pg_advisory_xact_lock({PG_WRITE_LOCK_KEY})")
                 yield conn
 
     def write(self, work: Callable[[Connection], T]) -> T:

@@ -222,7 +222,7 @@ def server_screen(conn: Connection, smarts: str) -> list[int] | None:
     try:
         with conn.begin_nested():
             readable = conn.execute(
-                text("SELECT mol_from_smarts(CAST(:smarts AS cstring)) IS NOT NULL"),
+                text("SELECT qmol_from_smarts(CAST(:smarts AS cstring)) IS NOT NULL"),
                 {"smarts": smarts},
             ).scalar()
             if not readable:
@@ -230,7 +230,7 @@ def server_screen(conn: Connection, smarts: str) -> list[int] | None:
             rows = conn.execute(
                 text(
                     f"SELECT id FROM compound WHERE {MOL_COLUMN} @> "
-                    "mol_from_smarts(CAST(:smarts AS cstring)) "
+                    "qmol_from_smarts(CAST(:smarts AS cstring)) "
                     f"UNION SELECT id FROM compound WHERE {MOL_COLUMN} IS NULL "
                     "ORDER BY id"
                 ),
