@@ -1,0 +1,374 @@
+"""Tables of barriers for papers and theses, as LaTeX (booktabs) or Markdown.
+
+Values are shown in the energy unit the reader asks for, with uncertainties in the usual
+notation (see :mod:`registry.reports.numbers`). Method and solvent are not columns: each
+distinct (method, solvent) pair becomes a lettered footnote on the ΔG‡ value, the way journals
+lay out such tables; references become numbered notes. Columns with no value in any row are
+left out. All user text is escaped for the target format.
+
+Rows are mappings with the keys of :func:`registry.api.list_measurements` plus optional
+``dh_err_kj_mol`` and ``ds_err_j_mol_k``; :func:`table_rows` fetches exactly that.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+from registry.errors import UsageError
+from registry.reports.numbers import format_uncertain
+from registry.units import convert, unit_of
+
+#: energy units a table header knows how to write; others are written as given
+_ENERGY_LABEL = {
+    "kJ/mol": ("kJ mol⁻¹", r"kJ\,mol$^{-1}$"),
+    "kcal/mol": ("kcal mol⁻¹", r"kcal\,mol$^{-1}$"),
+}
+_ENTROPY_LABEL = {
+    "J/(mol*K)": ("J mol⁻¹ K⁻¹", r"J\,mol$^{-1}$\,K$^{-1}$"),
+    "cal/(mol*K)": ("cal mol⁻¹ K⁻¹", r"cal\,mol$^{-1}$\,K$^{-1}$"),
+}
+_SUPERSCRIPT_LETTERS = dict(
+    zip("abcdefghijklmnoprstuvwxyz", "ᵃᵇᶜᵈᵉᶠᵍʰⁱʲᵏˡᵐⁿᵒᵖʳˢᵗᵘᵛʷˣʸᶻ", strict=True)
+)
+_SUBSCRIPT_DIGITS = str.maketrans("0123456789", "₀₁₂₃₄₅₆₇₈₉")
+
+
+@dataclass(frozen=True)
+class TableUnits:
+    """The units a table shows energies and entropies in, checked with the unit registry."""
+
+    energy: str
+    entropy: str
+    energy_label: tuple[str, str]
+    entropy_label: tuple[str, str]
+
+
+def table_units(energy_unit: str = "kJ/mol", entropy_unit: str | None = None) -> TableUnits:
+    """Normalise the requested units; ΔS‡ follows the energy unit (cal with kcal) unless given."""
+    energy = _canonical_energy(energy_unit)
+    if entropy_unit is None:
+        entropy = "cal/(mol*K)" if energy == "kcal/mol" else "J/(mol*K)"
+    else:
+        unit_of(entropy_unit, "entropy", field="--entropy-unit")
+        entropy = entropy_unit
+    e_label = _ENERGY_LABEL.get(energy, (energy, _latex_escape(energy)))
+    s_label = _ENTROPY_LABEL.get(entropy, (entropy, _latex_escape(entropy)))
+    return TableUnits(energy, entropy, e_label, s_label)
+
+
+def _canonical_energy(text: str) -> str:
+    unit_of(text, "energy", field="--energy-unit")
+    key = text.replace(" ", "").lower()
+    if key in ("kj/mol", "kjmol-1", "kjmol^-1", "kj/mole"):
+        return "kJ/mol"
+    if key in ("kcal/mol", "kcalmol-1", "kcalmol^-1", "kcal/mole"):
+        return "kcal/mol"
+    return text
+
+
+def table_rows(database: Any, **filters: Any) -> list[dict[str, Any]]:
+    """The rows a table needs: :func:`registry.api.list_measurements` plus ΔH‡/ΔS‡ errors."""
+    from sqlalchemy import select
+
+    from registry import api
+    from registry.models import Measurement
+
+    rows = api.list_measurements(database, **filters)
+    if not rows:
+        return rows
+    ids = [r["id"] for r in rows]
+    with database.read() as conn:
+        extra = {
+            mid: (dh_err, ds_err)
+            for mid, dh_err, ds_err in conn.execute(
+                select(Measurement.id, Measurement.dh_err_kj_mol, Measurement.ds_err_j_mol_k).where(
+                    Measurement.id.in_(ids)
+                )
+            )
+        }
+    for r in rows:
+        r["dh_err_kj_mol"], r["ds_err_j_mol_k"] = extra.get(r["id"], (None, None))
+    return rows
+
+
+# --- shared layout ---------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class _Cell:
+    """A number (already rounded text) or text, with an optional footnote marker."""
+
+    text: str
+    marker: str | None = None
+    number: bool = False
+
+
+@dataclass(frozen=True)
+class _Layout:
+    columns: list[tuple[str, str]]  # (key, kind) kind in text|energy|entropy|temperature|ref
+    rows: list[dict[str, _Cell]]
+    conditions: list[tuple[str, str | None, str | None]]  # (marker, method, solvent)
+    references: list[str]
+
+
+def _letters(index: int) -> str:
+    """a, b, … z, aa, ab … (no gaps)."""
+    out = ""
+    index += 1
+    while index:
+        index, rem = divmod(index - 1, 26)
+        out = chr(ord("a") + rem) + out
+    return out
+
+
+def _present(value: Any) -> bool:
+    return value is not None and not (isinstance(value, float) and not math.isfinite(value))
+
+
+def _temperature_text(t_k: Any) -> str:
+    if not _present(t_k):
+        return ""
+    text = format_uncertain(float(t_k), None, default_decimals=2)
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def _layout(
+    rows: Sequence[Mapping[str, Any]], units: TableUnits, style: str, minus: str, pm: str
+) -> _Layout:
+    conditions: dict[tuple[str | None, str | None], str] = {}
+    references: dict[str, int] = {}
+    out: list[dict[str, _Cell]] = []
+
+    def energy(value: Any, err: Any) -> str:
+        if not _present(value):
+            return ""
+        v = convert(float(value), "kJ/mol", units.energy)
+        e = convert(float(err), "kJ/mol", units.energy) if _present(err) else None
+        return format_uncertain(v, e, style=style, minus=minus, plus_minus=pm)
+
+    def entropy(value: Any, err: Any) -> str:
+        if not _present(value):
+            return ""
+        v = convert(float(value), "J/(mol*K)", units.entropy)
+        e = convert(float(err), "J/(mol*K)", units.entropy) if _present(err) else None
+        return format_uncertain(v, e, style=style, minus=minus, plus_minus=pm, default_decimals=0)
+
+    for r in rows:
+        key = (r.get("method") or None, r.get("solvent") or None)
+        marker = None
+        if any(key):
+            marker = conditions.setdefault(key, _letters(len(conditions)))
+        ref = (r.get("reference") or "").strip()
+        ref_no = references.setdefault(ref, len(references) + 1) if ref else None
+        out.append(
+            {
+                "compound": _Cell(str(r.get("compound") or r.get("compound_name") or "")),
+                "process": _Cell(str(r.get("process") or "")),
+                "dg": _Cell(energy(r.get("dg_kj_mol"), r.get("dg_err_kj_mol")), marker, True),
+                "dg_t": _Cell(_temperature_text(r.get("dg_t_k")), number=True),
+                "dh": _Cell(energy(r.get("dh_kj_mol"), r.get("dh_err_kj_mol")), number=True),
+                "ds": _Cell(entropy(r.get("ds_j_mol_k"), r.get("ds_err_j_mol_k")), number=True),
+                "ref": _Cell(str(ref_no) if ref_no else "", number=True),
+            }
+        )
+    columns = [
+        ("compound", "text"),
+        ("process", "text"),
+        ("dg", "energy"),
+        ("dg_t", "temperature"),
+        ("dh", "energy"),
+        ("ds", "entropy"),
+        ("ref", "ref"),
+    ]
+    keep = [c for c in columns if c[0] in ("compound", "dg") or any(row[c[0]].text for row in out)]
+    return _Layout(
+        keep,
+        out,
+        [(m, method, solvent) for (method, solvent), m in conditions.items()],
+        list(references),
+    )
+
+
+def _condition_text(method: str | None, solvent: str | None) -> tuple[str, str | None]:
+    from registry.vocab import METHODS
+
+    what = METHODS.get(method or "", method or "")
+    what = (what[:1].upper() + what[1:]) if what else "Method not stated"
+    return what, solvent
+
+
+def _check_rows(rows: Iterable[Mapping[str, Any]]) -> list[Mapping[str, Any]]:
+    rows = list(rows)
+    if not rows:
+        raise UsageError("no measurements to put in a table (is the selection empty?)")
+    return rows
+
+
+# --- Markdown --------------------------------------------------------------------------------
+
+_MD_SPECIAL = re.compile(r"([\\`*_\[\]<>|#])")
+
+
+def _md_escape(text: str) -> str:
+    return _MD_SPECIAL.sub(r"\\\1", text.replace("\n", " "))
+
+
+def _md_marker(marker: str) -> str:
+    if all(ch in _SUPERSCRIPT_LETTERS for ch in marker):
+        return "".join(_SUPERSCRIPT_LETTERS[ch] for ch in marker)
+    return f"^{marker}^"
+
+
+def _md_formula(text: str) -> str:
+    """CDCl3 → CDCl₃, toluene-d8 → toluene-d₈: digits after a letter in a formula-like word."""
+    return re.sub(r"(?<=[A-Za-z])(\d+)", lambda m: m.group(1).translate(_SUBSCRIPT_DIGITS), text)
+
+
+def render_markdown(
+    rows: Iterable[Mapping[str, Any]],
+    *,
+    energy_unit: str = "kJ/mol",
+    entropy_unit: str | None = None,
+    uncertainty: str = "paren",
+) -> str:
+    """A pipe table with lettered condition notes and numbered references below it."""
+    rows = _check_rows(rows)
+    units = table_units(energy_unit, entropy_unit)
+    layout = _layout(rows, units, uncertainty, "−", " ± ")
+    heads = {
+        "compound": "Compound",
+        "process": "Process",
+        "dg": f"ΔG‡ / {units.energy_label[0]}",
+        "dg_t": "T / K",
+        "dh": f"ΔH‡ / {units.energy_label[0]}",
+        "ds": f"ΔS‡ / {units.entropy_label[0]}",
+        "ref": "Ref.",
+    }
+    lines = [
+        "| " + " | ".join(heads[k] for k, _ in layout.columns) + " |",
+        "|" + "|".join(":---" if kind == "text" else "---:" for _, kind in layout.columns) + "|",
+    ]
+    for row in layout.rows:
+        cells = []
+        for key, _kind in layout.columns:
+            cell = row[key]
+            text = cell.text if cell.number else _md_escape(cell.text)
+            if cell.marker and text:
+                text += " " + _md_marker(cell.marker)
+            cells.append(text)
+        lines.append("| " + " | ".join(cells) + " |")
+    notes = []
+    for marker, method, solvent in layout.conditions:
+        what, solv = _condition_text(method, solvent)
+        where = f"; in {_md_formula(_md_escape(solv))}" if solv else ""
+        notes.append(f"{_md_marker(marker)} {_md_escape(what)}{where}.")
+    for number, ref in enumerate(layout.references, start=1):
+        notes.append(f"[{number}] {_md_escape(ref)}")
+    if uncertainty == "paren":
+        notes.append("Uncertainties in parentheses apply to the last digits given.")
+    return "\n".join(lines) + "\n\n" + "  \n".join(notes) + "\n"
+
+
+# --- LaTeX -----------------------------------------------------------------------------------
+
+_LATEX_SPECIAL = {
+    "\\": r"\textbackslash{}",
+    "&": r"\&",
+    "%": r"\%",
+    "$": r"\$",
+    "#": r"\#",
+    "_": r"\_",
+    "{": r"\{",
+    "}": r"\}",
+    "~": r"\textasciitilde{}",
+    "^": r"\textasciicircum{}",
+}
+_LATEX_TEXT = {"‡": r"\ddag{}", "°": r"\textdegree{}", "±": r"$\pm$", "−": "$-$"}
+
+
+def _latex_escape(text: str) -> str:
+    out = "".join(_LATEX_SPECIAL.get(ch, ch) for ch in text.replace("\n", " "))
+    for ch, repl in _LATEX_TEXT.items():
+        out = out.replace(ch, repl)
+    return out
+
+
+def _latex_formula(text: str) -> str:
+    """CDCl3 → CDCl$_3$ and toluene-d8 → toluene-$d_8$ (escaped first)."""
+    escaped = _latex_escape(text)
+    escaped = re.sub(r"-d(\d+)\b", r"-$d_{\1}$", escaped)
+    return re.sub(r"(?<=[A-Za-z])(\d+)", r"$_{\1}$", escaped)
+
+
+def _latex_number(text: str) -> str:
+    """A rounded number for a table cell: minus and ± set in math mode."""
+    if not text:
+        return ""
+    return "$" + text.replace("±", r"\pm") + "$"
+
+
+def render_latex(
+    rows: Iterable[Mapping[str, Any]],
+    *,
+    energy_unit: str = "kJ/mol",
+    entropy_unit: str | None = None,
+    uncertainty: str = "paren",
+    caption: str | None = None,
+    label: str = "tab:barriers",
+) -> str:
+    r"""A ``table`` environment (booktabs rules) with lettered condition notes below the tabular."""
+    rows = _check_rows(rows)
+    units = table_units(energy_unit, entropy_unit)
+    layout = _layout(rows, units, uncertainty, "-", " ± ")
+    heads = {
+        "compound": "Compound",
+        "process": "Process",
+        "dg": r"$\Delta G^{\ddagger}$ / " + units.energy_label[1],
+        "dg_t": r"$T$ / K",
+        "dh": r"$\Delta H^{\ddagger}$ / " + units.energy_label[1],
+        "ds": r"$\Delta S^{\ddagger}$ / " + units.entropy_label[1],
+        "ref": "Ref.",
+    }
+    spec = "".join("l" if kind == "text" else "r" for _, kind in layout.columns)
+    lines = [
+        "% written by fluxledger; needs \\usepackage{booktabs}",
+        r"\begin{table}",
+        r"  \centering",
+    ]
+    if caption:
+        lines.append(f"  \\caption{{{_latex_escape(caption)}}}")
+    lines.append(f"  \\label{{{_latex_escape(label)}}}")
+    lines += [
+        f"  \\begin{{tabular}}{{{spec}}}",
+        r"    \toprule",
+        "    " + " & ".join(heads[k] for k, _ in layout.columns) + r" \\",
+        r"    \midrule",
+    ]
+    for row in layout.rows:
+        cells = []
+        for key, _kind in layout.columns:
+            cell = row[key]
+            text = _latex_number(cell.text) if cell.number else _latex_escape(cell.text)
+            if cell.marker and text:
+                text += f"\\textsuperscript{{{cell.marker}}}"
+            cells.append(text)
+        lines.append("    " + " & ".join(cells) + r" \\")
+    lines += [r"    \bottomrule", r"  \end{tabular}"]
+    notes = []
+    for marker, method, solvent in layout.conditions:
+        what, solv = _condition_text(method, solvent)
+        where = f"; in {_latex_formula(solv)}" if solv else ""
+        notes.append(f"\\textsuperscript{{{marker}}}\\,{_latex_escape(what)}{where}.")
+    for number, ref in enumerate(layout.references, start=1):
+        notes.append(f"[{number}]\\,{_latex_escape(ref)}")
+    if uncertainty == "paren":
+        notes.append("Uncertainties in parentheses apply to the last digits given.")
+    if notes:
+        lines.append(r"  \par\smallskip\footnotesize")
+        lines += [f"  {note}\\\\" for note in notes[:-1]] + [f"  {notes[-1]}"]
+    lines.append(r"\end{table}")
+    return "\n".join(lines) + "\n"
