@@ -103,5 +103,6 @@ def scalar_or_array(values: NDArray) -> float | NDArray:
 
 
 def _short(values: object) -> object:
+    """The value itself when its repr is short, else the start of its repr (for messages)."""
     text = repr(values)
-    return text if len(text) <= 60 else text[:57] + "..."
+    return values if len(text) <= 60 else text[:57] + "..."

@@ -10,6 +10,7 @@ pandas is imported inside the functions so importing this module stays cheap.
 
 from __future__ import annotations
 
+import io
 import re
 from dataclasses import dataclass
 from pathlib import Path
@@ -20,6 +21,7 @@ from numpy.typing import NDArray
 
 from registry.errors import (
     FileFormatError,
+    FluxledgerError,
     ImportRowError,
     NotFoundError,
     RowProblem,
@@ -72,8 +74,13 @@ def _classify(header: str) -> tuple[str | None, str | None]:
     return None, None
 
 
-def points_from_frame(frame: Any, source: str, *, first_row: int = 2) -> RatePoints:
-    """Map the headers of a DataFrame of text cells and read every row; all problems at once."""
+def points_from_frame(
+    frame: Any, source: str, *, first_row: int = 2, decimal_comma: bool = False
+) -> RatePoints:
+    """Map the headers of a DataFrame of text cells and read every row; all problems at once.
+
+    ``decimal_comma``: the file separates fields with ';', so a ',' in a cell is a decimal mark.
+    """
     roles: dict[str, tuple[str, str | None]] = {}
     for column in frame.columns:
         role, unit = _classify(column)
@@ -90,11 +97,20 @@ def points_from_frame(frame: Any, source: str, *, first_row: int = 2) -> RatePoi
             source,
             f"no column for {missing} (headers: {headers}); name them e.g. 'T (°C)' and 'k (s-1)'",
         )
+    rate_unit = next(u for r, u in roles.values() if r == "k")
+    for col, (role, unit) in list(roles.items()):
+        if role == "err" and unit is None:
+            roles[col] = (role, rate_unit)  # σk in the unit of k unless its header says
+        elif unit is None and _all_bare_numbers(frame[col]):
+            example = "T (K)' or 'T (°C)" if role == "t" else "k (s-1)"
+            raise FileFormatError(
+                source, f"column {str(col)!r} has no unit: write it in the header, e.g. '{example}'"
+            )
     values: dict[str, list[float]] = {"t": [], "k": [], "err": []}
     problems: list[RowProblem] = []
     rows = 0
     for offset, (_, row) in enumerate(frame.iterrows()):
-        cells = {col: _text(row[col]) for col in roles}
+        cells = {col: _text(row[col], decimal_comma) for col in roles}
         if not any(cells.values()):
             continue
         rows += 1
@@ -137,10 +153,21 @@ def _errors(values: dict[str, list[float]], source: str) -> NDArray[np.float64] 
     return arr
 
 
-def _text(value: Any) -> str:
+def _text(value: Any, decimal_comma: bool = False) -> str:
     if value is None or (isinstance(value, float) and np.isnan(value)):
         return ""
-    return str(value).strip()
+    text = str(value).strip()
+    return text.replace(",", ".") if decimal_comma else text
+
+
+_BARE_NUMBER = re.compile(r"^\s*[-+−]?[\d.,]+(?:[eE][-+]?\d+)?\s*(?:(?:±|\+/-)\s*[\d.,]+)?\s*$")
+
+
+def _all_bare_numbers(column: Any) -> bool:
+    """True when every non-empty cell of a column is a number with no unit written."""
+    cells = [_text(v) for v in column]
+    cells = [c for c in cells if c]
+    return bool(cells) and all(_BARE_NUMBER.match(c) for c in cells)
 
 
 def read_rate_table(path: str | Path, *, sheet: str | None = None) -> RatePoints:
@@ -162,24 +189,31 @@ def read_rate_table(path: str | Path, *, sheet: str | None = None) -> RatePoints
         else:
             if sheet:
                 raise UsageError("--sheet applies to spreadsheets only")
-            frame = pd.read_csv(
-                _decode(file, name), sep=None, engine="python", dtype=str, keep_default_na=False
-            )
+            text = _decode(file, name)
+            sep = _separator(text)
+            frame = pd.read_csv(io.StringIO(text), sep=sep, dtype=str, keep_default_na=False)
+            return points_from_frame(frame, name, decimal_comma=sep == ";")
     except (pd.errors.EmptyDataError, pd.errors.ParserError) as exc:
         raise FileFormatError(name, f"cannot read as a table: {_first_line(exc)}") from exc
     except ValueError as exc:  # e.g. a missing sheet
         raise FileFormatError(name, _first_line(exc), sheet=sheet) from exc
+    except FluxledgerError:
+        raise
     except Exception as exc:  # calamine raises its own errors on damaged files
-        if isinstance(exc, UsageError):
-            raise
         raise FileFormatError(name, f"cannot read as a spreadsheet: {_first_line(exc)}") from exc
     return points_from_frame(frame, name)
 
 
-def _decode(file: Path, name: str) -> Any:
-    """The file's text (UTF-8 with or without BOM, else Windows-1252) as a stream for pandas."""
-    import io
+def _separator(text: str) -> str:
+    """';' (with decimal commas), tab or ',' — whichever the header line uses."""
+    header = text.lstrip().splitlines()[0]
+    if ";" in header:
+        return ";"
+    return "\t" if "\t" in header else ","
 
+
+def _decode(file: Path, name: str) -> str:
+    """The file's text: UTF-8 with or without BOM, else Windows-1252."""
     raw = file.read_bytes()
     if not raw.strip():
         raise FileFormatError(name, "the file is empty")
@@ -187,7 +221,7 @@ def _decode(file: Path, name: str) -> Any:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError:
         text = raw.decode("cp1252", errors="replace")
-    return io.StringIO(text)
+    return text
 
 
 def _first_line(exc: Exception) -> str:
