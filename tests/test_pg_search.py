@@ -1,0 +1,182 @@
+"""Server-side motif screening with the RDKit cartridge: a superset of the client's answer.
+
+The expected hits are computed here with the client's RDKit on the stored molecules; the server
+screen (an older RDKit inside PostgreSQL) must return every one of them, plus the compounds the
+server cannot read, and nothing else for these ordinary structures.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from registry import api
+from registry.entry import EntryInput
+from registry.pg import cartridge
+from registry.store import open_database
+
+pytest_plugins = ("conftest_pg",)
+
+# Real, public structures of the kind the registry holds (amides, biaryls, rings, N inversion …);
+# the measurements attached to them are invented demo values.
+STRUCTURES = {
+    "DMF": "CN(C)C=O",
+    "DMA": "CN(C)C(C)=O",
+    "DMBA": "CN(C)C(=O)c1ccccc1",
+    "thio-DMA": "CN(C)C(C)=S",
+    "carbamate": "COC(=O)N(C)C",
+    "urea": "CN(C)C(=O)N(C)C",
+    "NDMA": "CN(C)N=O",
+    "dimethylbiphenyl": "Cc1ccccc1-c1ccccc1C",
+    "binaphthyl": "c1ccc2c(c1)ccc(c2)-c1ccc2ccccc2c1",
+    "biphenyl": "c1ccc(cc1)-c1ccccc1",
+    "cyclohexane": "C1CCCCC1",
+    "methylcyclohexane": "CC1CCCCC1",
+    "cyclooctatetraene": "C1=CC=CC=CC=C1",
+    "N-methylpiperidine": "CN1CCCCC1",
+    "aziridine": "C1CN1C",
+    "pyridine-amide": "CN(C)C(=O)c1ccccn1",
+    "indole": "c1ccc2[nH]ccc2c1",
+    "thiophene-amide": "CN(C)C(=O)c1cccs1",
+    "furfural": "O=Cc1ccco1",
+    "acetanilide": "CC(=O)Nc1ccccc1",
+    "iminol": "CN=C(O)C",
+    "pentavalent": "CC(C)(C)(C)(C)C",  # RDKit parses it only unsanitized
+}
+
+MOTIFS = [
+    "C(=O)N",
+    "[NX3][CX3]=[OX1]",
+    "c1ccccc1",
+    "c-!@c",
+    "[n]",
+    "C=S",
+    "N=O",
+    "[r8]",
+    "[CH3]N",
+    "[$(C=O)]N",
+    "a1aaaa1",
+    "[#6]1~[#6]~[#6]~[#6]~[#6]~[#6]1",
+    "[Cl]",
+]
+
+
+def _fill(db: str) -> None:
+    api.init_registry(db)
+    database = api.open_registry(db)
+    try:
+        for label, smiles in STRUCTURES.items():
+            api.add_measurement(
+                database,
+                EntryInput(
+                    method="lineshape", compound=label, smiles=smiles, dg="60 kJ/mol", dg_t="298 K"
+                ),
+                actor="tester",
+            )
+    finally:
+        database.dispose()
+
+
+def _client_hits(db: str, smarts: str) -> list[int]:
+    """What the client's RDKit finds in the stored molecules (the answer on SQLite)."""
+    from rdkit import Chem
+
+    query = Chem.MolFromSmarts(smarts)
+    database = open_database(db)
+    try:
+        with database.read() as conn:
+            rows = conn.exec_driver_sql("SELECT id, mol_binary FROM compound ORDER BY id").all()
+    finally:
+        database.dispose()
+    return [cid for cid, blob in rows if blob and Chem.Mol(bytes(blob)).HasSubstructMatch(query)]
+
+
+def test_no_server_screen_on_sqlite(db_path: Path) -> None:
+    database = open_database(str(db_path))
+    try:
+        with database.read() as conn:
+            assert cartridge.server_screen(conn, "C(=O)N") is None
+            assert cartridge.status(conn).active is False
+            columns = {r[1] for r in conn.exec_driver_sql("PRAGMA table_info(compound)")}
+        assert "mol" not in columns  # migration 0002 leaves SQLite alone
+    finally:
+        database.dispose()
+
+
+@pytest.mark.postgres
+def test_server_screen_agrees_with_client_rdkit(pg_cartridge: str, tmp_path: Path) -> None:
+    sqlite_db = str(tmp_path / "r.sqlite")
+    _fill(sqlite_db)
+    _fill(pg_cartridge)
+    database = open_database(pg_cartridge)
+    try:
+        with database.read() as conn:
+            unreadable = {
+                r[0] for r in conn.exec_driver_sql("SELECT id FROM compound WHERE mol IS NULL")
+            }
+            screens = {smarts: cartridge.server_screen(conn, smarts) for smarts in MOTIFS}
+    finally:
+        database.dispose()
+    pentavalent = list(STRUCTURES).index("pentavalent") + 1
+    assert unreadable == {pentavalent}
+    for smarts, candidates in screens.items():
+        assert candidates is not None, smarts
+        expected = _client_hits(sqlite_db, smarts)
+        assert expected == _client_hits(pg_cartridge, smarts), smarts  # same data both sides
+        assert set(expected) <= set(candidates), smarts  # the screen never loses a hit
+        assert set(candidates) - unreadable == set(expected) - unreadable, smarts
+        assert pentavalent in candidates  # the client must judge what the server cannot read
+    assert len(screens["c1ccccc1"]) < len(STRUCTURES)  # a screen, not "everything"
+
+
+@pytest.mark.postgres
+def test_trigger_fills_and_refreshes_the_molecule(pg_cartridge: str) -> None:
+    _fill(pg_cartridge)
+    database = open_database(pg_cartridge)
+    try:
+        database.write(
+            lambda conn: conn.exec_driver_sql(
+                "UPDATE compound SET smiles_canonical = 'ClC1CCCCC1' WHERE label = 'cyclohexane'"
+            )
+        )
+        with database.read() as conn:
+            hits = cartridge.server_screen(conn, "[Cl]")
+            cid = conn.exec_driver_sql(
+                "SELECT id FROM compound WHERE label = 'cyclohexane'"
+            ).scalar()
+            assert cartridge.server_screen(conn, "C(=O") is None  # unreadable SMARTS: fall back
+    finally:
+        database.dispose()
+    assert hits is not None and cid in hits
+
+
+@pytest.mark.postgres
+def test_server_search_command_reports_and_enables(pg_cartridge: str) -> None:
+    from registry.cli.main import app
+
+    _fill(pg_cartridge)
+    runner = CliRunner()
+    shown = runner.invoke(app, ["--db", pg_cartridge, "server-search"])
+    assert shown.exit_code == 0, shown.stderr
+    assert shown.stdout.splitlines()[0] == "motif search screens on the server (RDKit cartridge)"
+    database = open_database(pg_cartridge)
+    database.write(cartridge.remove_mol_column)
+    with database.read() as conn:
+        assert cartridge.server_screen(conn, "C(=O)N") is None
+    database.dispose()
+    off = runner.invoke(app, ["--db", pg_cartridge, "server-search"])
+    assert off.stdout.splitlines()[0] == "motif search screens in the client"
+    on = runner.invoke(app, ["--db", pg_cartridge, "server-search", "--enable", "--json"])
+    assert on.exit_code == 0, on.stderr
+    assert '"server_search_active": true' in on.stdout
+    assert f'"molecules_indexed": {len(STRUCTURES) - 1}' in on.stdout
+
+
+def test_server_search_enable_refuses_sqlite(cli) -> None:  # type: ignore[no-untyped-def]
+    result = cli("server-search", "--enable")
+    assert result.exit_code == 2
+    assert (
+        result.stderr == "error: server-side search needs a PostgreSQL registry; this is SQLite\n"
+    )
