@@ -197,13 +197,16 @@ def unequal_population_barriers(
     rt = R_KJ_MOL_K * tc
     # The ratio enters through the root X, whose slope is infinite at ratio 1 (X² − 2 grows as
     # Δp^(2/3)), so propagate by a secant across ratio ± its uncertainty (clipped at 1).
-    hi = r + r_err
-    lo = np.maximum(r - r_err, 1.0)
-    step = np.where(hi > lo, hi - lo, 1.0)
-    ab_hi, ba_hi, _, _ = _unequal_rates(dnu, hi)
-    ab_lo, ba_lo, _, _ = _unequal_rates(dnu, lo)
-    dln_ab = (np.log(ab_hi) - np.log(ab_lo)) / step
-    dln_ba = (np.log(ba_hi) - np.log(ba_lo)) / step
+    if ratio_err is None:
+        dln_ab = dln_ba = np.asarray(0.0)
+    else:
+        hi = r + r_err
+        lo = np.maximum(r - r_err, 1.0)
+        step = np.where(hi > lo, hi - lo, 1.0)
+        ab_hi, ba_hi, _, _ = _unequal_rates(dnu, hi)
+        ab_lo, ba_lo, _, _ = _unequal_rates(dnu, lo)
+        dln_ab = (np.log(ab_hi) - np.log(ab_lo)) / step
+        dln_ba = (np.log(ba_hi) - np.log(ba_lo)) / step
 
     def total(dg: NDArray, dln_dr: NDArray) -> NDArray:
         from_tc = (dg / tc + R_KJ_MOL_K) * tc_err
