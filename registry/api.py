@@ -101,7 +101,11 @@ def structure_for(smiles: str | None) -> Structure | None:
 
 
 def add_measurement(database: Database, entry: EntryInput, *, actor: str | None = None) -> int:
-    """Add one measurement (and its compound/process if new); returns its id."""
+    """Add one measurement (and its compound/process if new), check it; returns its id.
+
+    The validation rules run on the new row right after the write, so its findings are stored
+    (``get_measurement(...)["findings"]``).
+    """
     from registry.entry import EntryError, normalize_entry
     from registry.writer import known_process_kinds, write_entries
 
@@ -120,6 +124,9 @@ def add_measurement(database: Database, entry: EntryInput, *, actor: str | None 
             conn, [normalized], [structure], actor=who, extras=[entry.extra or None]
         )
     )
+    from registry.validation import check_measurements  # pandas: import only when adding
+
+    check_measurements(database, result.measurement_ids, actor=who)
     return result.measurement_ids[0]
 
 

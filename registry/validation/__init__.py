@@ -1,1 +1,133 @@
-"""(filled in by its issue)"""
+"""Validation: recompute every stored barrier from its raw data, flag disagreements, name the slip.
+
+Map (data flows top to bottom):
+    data               load measurements, coalescence rows and rate points in bulk (one query
+                       per table) into pandas columns; the units each value was reported in
+    base               CheckConfig (tolerances), Finding, the Rule base class
+    coalescence_model  ΔG‡(Tc) for whole columns (Gutowsky–Holm, coupled AB, unequal populations)
+    slips              the usual slips, each a recomputation with one thing done wrong
+    rule_*             one module per family of rules, one class per rule
+    engine             RULES, run_rules (+ inputs_hash per finding)
+    store              reconcile a run with the stored findings; accept a finding
+
+:func:`check_measurements` is what ``fluxledger check``, ``add`` and the importer call.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+
+from registry.store import Database, current_user
+from registry.validation.base import SEVERITIES, SEVERITY_RANK, CheckConfig, Finding, Rule
+from registry.validation.data import load_check_data
+from registry.validation.engine import RULES, rule_by_id, run_rules
+from registry.validation.slips import SLIP_IDS
+from registry.validation.store import accept, reconcile
+
+__all__ = [
+    "RULES",
+    "SEVERITIES",
+    "SLIP_IDS",
+    "CheckConfig",
+    "CheckReport",
+    "Finding",
+    "Rule",
+    "accept_finding",
+    "check_measurements",
+    "rule_by_id",
+]
+
+
+@dataclass(frozen=True)
+class CheckReport:
+    """The findings of one check run for the measurements it covered, and their counts."""
+
+    findings: tuple[Finding, ...]
+    checked: int
+    ran_at: datetime
+    #: ids of the measurements checked (retracted ones and unknown ids are not)
+    measurement_ids: tuple[int, ...] = ()
+    actor: str | None = None
+    added: int = 0
+    removed: int = 0
+    counts: dict[str, int] = field(default_factory=dict)
+
+    @property
+    def has_errors(self) -> bool:
+        """True when an error-level finding has not been accepted (``check`` then exits 1)."""
+        return self.counts.get("error", 0) > 0
+
+    def select(self, *, severity: str | None = None, new_only: bool = False) -> list[Finding]:
+        """Findings at ``severity`` or more severe, optionally only those new in this run."""
+        limit = SEVERITY_RANK[severity] if severity else 99
+        return [
+            f
+            for f in self.findings
+            if SEVERITY_RANK.get(f.severity, 99) <= limit and (f.new or not new_only)
+        ]
+
+    def summary(self) -> str:
+        c = self.counts
+
+        def n(count: int, word: str) -> str:
+            return f"{count} {word}" + ("" if count == 1 else "s")
+
+        return (
+            f"checked {n(self.checked, 'measurement')}: {n(c['error'], 'error')}, "
+            f"{n(c['warning'], 'warning')}, {n(c['note'], 'note')} "
+            f"({c['new']} new since the last run, {c['accepted']} accepted)"
+        )
+
+
+def _counts(findings: Sequence[Finding]) -> dict[str, int]:
+    counts = {s: 0 for s in SEVERITIES}
+    counts.update(accepted=0, new=0, total=len(findings))
+    for f in findings:
+        if f.accepted:
+            counts["accepted"] += 1
+        else:
+            counts[f.severity] = counts.get(f.severity, 0) + 1
+        counts["new"] += int(f.new)
+    return counts
+
+
+def check_measurements(
+    database: Database,
+    ids: Sequence[int] | None = None,
+    *,
+    actor: str | None = None,
+    config: CheckConfig | None = None,
+) -> CheckReport:
+    """Run every rule on the measurements ``ids`` (None: all), store the findings, return them.
+
+    Findings whose inputs and rule version are unchanged keep their date and acceptance; new
+    ones are marked ``new``; ones no longer produced are removed. ``actor`` is who ran the check
+    (kept on the report; accepting a finding is what the history records).
+    """
+    cfg = config or CheckConfig()
+    id_list = None if ids is None else sorted({int(i) for i in ids})
+    with database.read() as conn:
+        data = load_check_data(conn, id_list)
+    findings = run_rules(data, cfg)
+    now = datetime.now(UTC)
+    stored, added, removed = database.write(lambda conn: reconcile(conn, id_list, findings, now))
+    return CheckReport(
+        findings=tuple(stored),
+        checked=len(data.m),
+        ran_at=now,
+        measurement_ids=tuple(int(i) for i in data.ids),
+        actor=actor,
+        added=added,
+        removed=removed,
+        counts=_counts(stored),
+    )
+
+
+def accept_finding(
+    database: Database, finding_id: int, reason: str, *, actor: str | None = None
+) -> Finding:
+    """Accept one finding (it stays accepted while its inputs are unchanged); recorded by name."""
+    who = actor or current_user()
+    return database.write(lambda conn: accept(conn, int(finding_id), reason, who))

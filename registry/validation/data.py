@@ -1,0 +1,440 @@
+"""Load what the rules need in bulk, as columns: one query per table, no ORM object per row.
+
+:class:`CheckData` holds one pandas row per measurement (measurement, compound, process and
+solvent columns, plus the coalescence observation the reported ΔG‡ refers to) and the rate
+points as a long table. It also knows the unit each value was *reported* in, so findings can
+speak the user's units (kcal/mol stays kcal/mol, °C stays °C).
+"""
+
+from __future__ import annotations
+
+import hashlib
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from functools import lru_cache
+
+import numpy as np
+import pandas as pd
+from numpy.typing import NDArray
+from sqlalchemy import Connection, select
+
+from registry import units
+from registry.models import (
+    CoalescenceObservation,
+    Compound,
+    Measurement,
+    Process,
+    RatePoint,
+    Solvent,
+)
+
+#: the leading number (with an optional "(3)" or "± 0.3" uncertainty) of a value as written
+_NUMBER_PREFIX = (
+    r"^\s*[-+−–]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?\s*(?:\(\d+\))?\s*"
+    r"(?:(?:±|\+/-|\+-|\+/−)\s*(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)?\s*"
+)
+_NUMBER = r"^\s*([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)"
+
+_MEASUREMENT_COLUMNS = {
+    "id": Measurement.id,
+    "compound_id": Measurement.compound_id,
+    "process_id": Measurement.process_id,
+    "method": Measurement.method,
+    "solvent_id": Measurement.solvent_id,
+    "solvent_text": Measurement.solvent_text,
+    "field_mhz": Measurement.field_mhz,
+    "t_min_k": Measurement.t_min_k,
+    "t_min_text": Measurement.t_min_text,
+    "t_max_k": Measurement.t_max_k,
+    "t_max_text": Measurement.t_max_text,
+    "dg_kj_mol": Measurement.dg_kj_mol,
+    "dg_err_kj_mol": Measurement.dg_err_kj_mol,
+    "dg_text": Measurement.dg_text,
+    "dg_t_k": Measurement.dg_t_k,
+    "dg_t_text": Measurement.dg_t_text,
+    "dh_kj_mol": Measurement.dh_kj_mol,
+    "dh_err_kj_mol": Measurement.dh_err_kj_mol,
+    "dh_text": Measurement.dh_text,
+    "ds_j_mol_k": Measurement.ds_j_mol_k,
+    "ds_err_j_mol_k": Measurement.ds_err_j_mol_k,
+    "ds_text": Measurement.ds_text,
+    "ea_kj_mol": Measurement.ea_kj_mol,
+    "ea_err_kj_mol": Measurement.ea_err_kj_mol,
+    "ea_text": Measurement.ea_text,
+    "status": Measurement.status,
+    "solvent_name": Solvent.name,
+    "mp_k": Solvent.mp_k,
+    "bp_k": Solvent.bp_k,
+    "compound_label": Compound.label,
+    "structure_ok": Compound.structure_ok,
+    "structure_problem": Compound.structure_problem,
+    "process_kind": Process.kind,
+    "nucleus": Process.nucleus,
+}
+
+_COALESCENCE_COLUMNS = {
+    "co_id": CoalescenceObservation.id,
+    "id": CoalescenceObservation.measurement_id,
+    "tc_k": CoalescenceObservation.tc_k,
+    "tc_err_k": CoalescenceObservation.tc_err_k,
+    "tc_text": CoalescenceObservation.tc_text,
+    "dnu_hz": CoalescenceObservation.dnu_hz,
+    "dnu_err_hz": CoalescenceObservation.dnu_err_hz,
+    "dnu_text": CoalescenceObservation.dnu_text,
+    "j_hz": CoalescenceObservation.j_hz,
+    "population_ratio": CoalescenceObservation.population_ratio,
+    "co_field_mhz": CoalescenceObservation.field_mhz,
+}
+
+_FLOAT_COLUMNS = (
+    "field_mhz",
+    "t_min_k",
+    "t_max_k",
+    "dg_kj_mol",
+    "dg_err_kj_mol",
+    "dg_t_k",
+    "dh_kj_mol",
+    "dh_err_kj_mol",
+    "ds_j_mol_k",
+    "ds_err_j_mol_k",
+    "ea_kj_mol",
+    "ea_err_kj_mol",
+    "mp_k",
+    "bp_k",
+    "tc_k",
+    "tc_err_k",
+    "dnu_hz",
+    "dnu_err_hz",
+    "j_hz",
+    "population_ratio",
+    "co_field_mhz",
+)
+
+#: the columns whose values make up a measurement's inputs hash
+HASHED_COLUMNS = (
+    "method",
+    "solvent_text",
+    "field_mhz",
+    "t_min_k",
+    "t_max_k",
+    "dg_kj_mol",
+    "dg_err_kj_mol",
+    "dg_text",
+    "dg_t_k",
+    "dh_kj_mol",
+    "dh_err_kj_mol",
+    "dh_text",
+    "ds_j_mol_k",
+    "ds_err_j_mol_k",
+    "ea_kj_mol",
+    "ea_err_kj_mol",
+    "ea_text",
+    "mp_k",
+    "bp_k",
+    "structure_ok",
+    "structure_problem",
+    "nucleus",
+    "tc_k",
+    "tc_err_k",
+    "tc_text",
+    "dnu_hz",
+    "dnu_err_hz",
+    "j_hz",
+    "population_ratio",
+    "co_field_mhz",
+    "co_count",
+    "rate_count",
+    "rate_sum_t",
+    "rate_sum_lnk",
+    "rate_sum_err",
+)
+
+_CHUNK = 2000
+
+
+@dataclass
+class CheckData:
+    """Every checked measurement as one row of ``m``; rate points in ``rates``."""
+
+    m: pd.DataFrame
+    rates: pd.DataFrame
+    #: the measurements a repeat could be compared with (same compounds), all columns of ``m``
+    #: that the comparison needs; for a full check this is ``m`` itself
+    peers: pd.DataFrame | None = None
+    _hash_cache: dict[int, str] = field(default_factory=dict)
+
+    @property
+    def ids(self) -> NDArray[np.int64]:
+        return self.m["id"].to_numpy(dtype=np.int64)
+
+    def col(self, name: str) -> NDArray[np.float64]:
+        """A numeric column as floats (NaN for missing)."""
+        return self.m[name].to_numpy(dtype=np.float64, na_value=np.nan)
+
+    def text(self, name: str) -> NDArray[np.object_]:
+        return self.m[name].to_numpy(dtype=object, na_value=None)
+
+    def digests(self, positions: Sequence[int]) -> dict[int, str]:
+        """sha256 of everything the rules read about each measurement at ``positions``."""
+        todo = sorted({int(p) for p in positions} - self._hash_cache.keys())
+        if todo:
+            block = self.m[list(HASHED_COLUMNS)].iloc[todo].to_numpy(dtype=object)
+            for p, row in zip(todo, block, strict=True):
+                body = "|".join(_canon(v) for v in row)
+                self._hash_cache[p] = hashlib.sha256(body.encode("utf-8")).hexdigest()
+        return {int(p): self._hash_cache[int(p)] for p in positions}
+
+
+def _canon(value: object) -> str:
+    if value is None:
+        return ""
+    if value is pd.NA or value is pd.NaT:
+        return ""
+    if isinstance(value, float | np.floating):
+        return "" if value != value else repr(round(float(value), 9))
+    if isinstance(value, np.integer | np.bool_):
+        return repr(value.item())
+    return str(value)
+
+
+def _fetch(conn: Connection, query, ids: Sequence[int] | None, id_column) -> list[tuple]:  # type: ignore[no-untyped-def]
+    if ids is None:
+        return list(conn.execute(query).tuples())
+    rows: list[tuple] = []
+    unique = sorted(set(int(i) for i in ids))
+    for start in range(0, len(unique), _CHUNK):
+        chunk = unique[start : start + _CHUNK]
+        rows.extend(conn.execute(query.where(id_column.in_(chunk))).tuples())
+    return rows
+
+
+def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> CheckData:
+    """Read the measurements (all, or ``ids``) with their coalescence data and rate points."""
+    mq = (
+        select(*(c.label(n) for n, c in _MEASUREMENT_COLUMNS.items()))
+        .select_from(Measurement)
+        .join(Compound, Compound.id == Measurement.compound_id)
+        .outerjoin(Process, Process.id == Measurement.process_id)
+        .outerjoin(Solvent, Solvent.id == Measurement.solvent_id)
+        .where(Measurement.status != "retracted")
+    )
+    m = pd.DataFrame.from_records(
+        _fetch(conn, mq, ids, Measurement.id), columns=list(_MEASUREMENT_COLUMNS)
+    )
+    cq = select(*(c.label(n) for n, c in _COALESCENCE_COLUMNS.items()))
+    co = pd.DataFrame.from_records(
+        _fetch(conn, cq, ids, CoalescenceObservation.measurement_id),
+        columns=list(_COALESCENCE_COLUMNS),
+    )
+    rq = select(
+        RatePoint.measurement_id.label("id"),
+        RatePoint.t_k,
+        RatePoint.k_per_s,
+        RatePoint.k_err_per_s,
+    )
+    rates = pd.DataFrame.from_records(
+        _fetch(conn, rq, ids, RatePoint.measurement_id),
+        columns=["id", "t_k", "k_per_s", "k_err_per_s"],
+    )
+    m = m.sort_values("id", kind="stable").reset_index(drop=True)
+    m = _attach_coalescence(m, co)
+    m = _attach_rate_summary(m, rates)
+    for name in _FLOAT_COLUMNS:
+        m[name] = pd.to_numeric(m[name], errors="coerce").astype(np.float64)
+    rates = rates[rates["id"].isin(m["id"])].reset_index(drop=True)
+    for name in ("t_k", "k_per_s", "k_err_per_s"):
+        rates[name] = pd.to_numeric(rates[name], errors="coerce").astype(np.float64)
+    peers = m[list(PEER_COLUMNS)] if ids is None else _load_peers(conn, m)
+    return CheckData(m=m, rates=rates, peers=peers)
+
+
+#: what a repeated measurement is matched and compared on
+PEER_COLUMNS = (
+    "id",
+    "compound_id",
+    "process_id",
+    "method",
+    "solvent_id",
+    "solvent_text",
+    "dg_kj_mol",
+    "dg_err_kj_mol",
+    "dg_t_k",
+)
+
+
+def _load_peers(conn: Connection, m: pd.DataFrame) -> pd.DataFrame:
+    """Every live measurement of the compounds in ``m`` (to find repeats of a checked one)."""
+    cols = [getattr(Measurement, c) for c in PEER_COLUMNS]
+    query = select(*cols).where(Measurement.status != "retracted")
+    compound_ids = m["compound_id"].dropna().astype(int).unique().tolist()
+    peers = pd.DataFrame.from_records(
+        _fetch(conn, query, compound_ids, Measurement.compound_id), columns=list(PEER_COLUMNS)
+    )
+    for name in ("dg_kj_mol", "dg_err_kj_mol", "dg_t_k"):
+        peers[name] = pd.to_numeric(peers[name], errors="coerce").astype(np.float64)
+    return peers
+
+
+def _attach_coalescence(m: pd.DataFrame, co: pd.DataFrame) -> pd.DataFrame:
+    """The coalescence row the reported ΔG‡ refers to: the one whose Tc is nearest ΔG‡'s T."""
+    if co.empty:
+        for name in _COALESCENCE_COLUMNS:
+            if name != "id":
+                m[name] = np.nan
+        m["co_count"] = 0
+        return m
+    co = co.merge(m[["id", "dg_t_k"]], on="id", how="inner")
+    tc = pd.to_numeric(co["tc_k"], errors="coerce")
+    dgt = pd.to_numeric(co["dg_t_k"], errors="coerce")
+    co["_dist"] = (tc - dgt).abs().fillna(0.0)
+    counts = co.groupby("id").size().rename("co_count")
+    chosen = co.sort_values(["id", "_dist", "co_id"]).drop_duplicates("id")
+    chosen = chosen.drop(columns=["_dist", "dg_t_k"])
+    m = m.merge(chosen, on="id", how="left").merge(counts, on="id", how="left")
+    m["co_count"] = m["co_count"].fillna(0).astype(np.int64)
+    return m
+
+
+def _attach_rate_summary(m: pd.DataFrame, rates: pd.DataFrame) -> pd.DataFrame:
+    """Per-measurement sums of the rate points (for the inputs hash)."""
+    if rates.empty:
+        for name in ("rate_count", "rate_sum_t", "rate_sum_lnk", "rate_sum_err"):
+            m[name] = 0.0
+        return m
+    r = rates.assign(
+        lnk=np.log(pd.to_numeric(rates["k_per_s"], errors="coerce")),
+        err=pd.to_numeric(rates["k_err_per_s"], errors="coerce").fillna(0.0),
+    )
+    agg = r.groupby("id").agg(
+        rate_count=("t_k", "size"),
+        rate_sum_t=("t_k", "sum"),
+        rate_sum_lnk=("lnk", "sum"),
+        rate_sum_err=("err", "sum"),
+    )
+    m = m.merge(agg, on="id", how="left")
+    for name in ("rate_count", "rate_sum_t", "rate_sum_lnk", "rate_sum_err"):
+        m[name] = m[name].fillna(0.0)
+    return m
+
+
+# --- the units values were reported in -------------------------------------------------------
+
+
+def unit_part(texts: pd.Series) -> pd.Series:
+    """What follows the number (and its uncertainty) in each text; NaN where there is no text."""
+    cleaned = texts.astype(object).where(texts.notna(), None)
+    s = pd.Series(cleaned, dtype="object")
+    return s.str.replace(_NUMBER_PREFIX, "", regex=True).str.strip()
+
+
+_KNOWN_LABELS = {
+    "energy": (("kJ/mol", "kJ/mol"), ("kcal/mol", "kcal/mol")),
+    "entropy": (("J/(mol*K)", "J/(mol·K)"), ("cal/(mol*K)", "cal/(mol·K)")),
+}
+
+
+@lru_cache(maxsize=256)
+def _unit_label(unit_text: str, quantity: str) -> tuple[str, float] | None:
+    """A display label and the factor from the canonical unit for a written unit, or None."""
+    try:
+        units.unit_of(unit_text, quantity)
+        factor = units.convert(1.0, units.CANONICAL[quantity], unit_text)
+    except Exception:
+        return None
+    for pint_unit, label in _KNOWN_LABELS.get(quantity, ()):
+        if abs(factor - units.convert(1.0, units.CANONICAL[quantity], pint_unit)) < 1e-9:
+            return label, factor
+    return unit_text, factor
+
+
+@lru_cache(maxsize=1)
+def kcal_per_kj() -> float:
+    """kcal/mol per kJ/mol (thermochemical calorie, via the unit registry)."""
+    return units.convert(1.0, "kJ/mol", "kcal/mol")
+
+
+def energy_units(texts: pd.Series, values_kj: pd.Series) -> tuple[NDArray, NDArray]:
+    """Display label and factor (display = kJ/mol × factor) of each reported energy."""
+    return value_units(texts, values_kj, "energy")
+
+
+def value_units(texts: pd.Series, values: pd.Series, quantity: str) -> tuple[NDArray, NDArray]:
+    """Display label and factor (display = canonical × factor) of each reported value.
+
+    A text without a unit (the unit came from a spreadsheet header) is matched by the ratio of
+    its number to the stored canonical value (kJ/mol or kcal/mol; J or cal per mol·K).
+    """
+    n = len(texts)
+    known = _KNOWN_LABELS[quantity]
+    labels = np.full(n, known[0][1], dtype=object)
+    factors = np.ones(n)
+    if n == 0:
+        return labels, factors
+    texts = texts.reset_index(drop=True)
+    parts = unit_part(texts)
+    for unit_text in parts.dropna().unique():
+        if not unit_text:
+            continue
+        found = _unit_label(str(unit_text), quantity)
+        if found is None:
+            continue
+        mask = (parts == unit_text).to_numpy()
+        labels[mask] = found[0]
+        factors[mask] = found[1]
+    bare = (parts == "").to_numpy()
+    if bare.any():
+        numbers = pd.to_numeric(
+            texts[bare].astype(str).str.extract(_NUMBER)[0].str.replace(",", "."),
+            errors="coerce",
+        ).to_numpy(dtype=float)
+        stored = np.asarray(values, dtype=float)[bare]
+        alt = units.convert(1.0, units.CANONICAL[quantity], known[1][0])
+        with np.errstate(invalid="ignore", divide="ignore"):
+            is_alt = np.abs(numbers / stored - alt) < 1e-3
+        idx = np.flatnonzero(bare)[is_alt]
+        labels[idx] = known[1][1]
+        factors[idx] = alt
+    return labels, factors
+
+
+@lru_cache(maxsize=64)
+def _temperature_map(unit_text: str) -> tuple[str, float, float] | None:
+    """(label, offset, scale) so that display = offset + scale·K for a written temperature unit."""
+    try:
+        normal = units.unit_of(unit_text, "temperature")
+        zero = units.convert(0.0, "K", normal)
+        one = units.convert(1.0, "K", normal)
+    except Exception:
+        return None
+    label = {"degC": "°C", "degF": "°F"}.get(normal, "K")
+    return label, zero, one - zero
+
+
+def temperature_units(texts: pd.Series) -> tuple[NDArray, NDArray, NDArray]:
+    """Display label, offset and scale (display = offset + scale·K) of each reported temperature."""
+    n = len(texts)
+    labels = np.full(n, "K", dtype=object)
+    offset = np.zeros(n)
+    scale = np.ones(n)
+    if n == 0:
+        return labels, offset, scale
+    parts = unit_part(texts.reset_index(drop=True))
+    for unit_text in parts.dropna().unique():
+        if not unit_text:
+            continue
+        found = _temperature_map(str(unit_text))
+        if found is None or found[0] == "K":
+            continue
+        mask = (parts == unit_text).to_numpy()
+        labels[mask] = found[0]
+        offset[mask] = found[1]
+        scale[mask] = found[2]
+    return labels, offset, scale
+
+
+def as_temperature(value_k: float, label: str) -> str:
+    """A temperature for a message: '333.2 K' or '60.0 °C (333.2 K)'."""
+    if label == "K" or value_k != value_k:
+        return f"{value_k:.1f} K"
+    shown = units.convert(value_k, "K", {"°C": "degC", "°F": "degF"}[label])
+    return f"{shown:.1f} {label} ({value_k:.1f} K)"

@@ -1,0 +1,129 @@
+"""Plausibility rules: the barrier inside what the method can measure; Δν consistent with the
+stated field and nucleus.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
+from registry.validation.data import CheckData, energy_units
+
+#: methods that watch exchange on the NMR time scale (dynamic NMR)
+DYNAMIC_NMR_METHODS = ("coalescence", "lineshape", "2d-exchange", "saturation-transfer")
+
+#: observe frequency of each nucleus relative to 1H in the same magnet: the IUPAC Ξ scale
+#: divided by 100 % (R. K. Harris et al., Pure Appl. Chem. 73, 1795 (2001), Table 1; from memory)
+FREQUENCY_RATIO_TO_1H: dict[str, float] = {
+    "1H": 1.0,
+    "2H": 0.15350609,
+    "7Li": 0.38863797,
+    "11B": 0.32083974,
+    "13C": 0.25145020,
+    "15N": 0.10136767,
+    "19F": 0.94094011,
+    "29Si": 0.19867187,
+    "31P": 0.40480742,
+}
+
+#: spectrometer (1H) frequencies outside this range are not NMR magnets (common practice, no source)
+FIELD_MIN_MHZ, FIELD_MAX_MHZ = 40.0, 1300.0
+
+
+class BarrierInMethodRange(Rule):
+    """A dynamic-NMR barrier outside roughly 20–100 kJ/mol is outside what the method can see.
+
+    Below ~20 kJ/mol exchange stays fast even at the lowest temperatures a probe reaches; above
+    ~100 kJ/mol it stays slow at the highest (common practice, no source).
+    """
+
+    id = "barrier-method-range"
+    version = 1
+    severity = "warning"
+    title = "barrier inside the range the method can measure"
+    uses = ("nmr_barrier_min_kj_mol", "nmr_barrier_max_kj_mol")
+
+    def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
+        dg = data.col("dg_kj_mol")
+        nmr = data.m["method"].isin(DYNAMIC_NMR_METHODS).to_numpy()
+        lo, hi = config.nmr_barrier_min_kj_mol, config.nmr_barrier_max_kj_mol
+        with np.errstate(invalid="ignore"):
+            rows = np.flatnonzero(nmr & np.isfinite(dg) & ((dg < lo) | (dg > hi)))
+        if rows.size == 0:
+            return []
+        labels, factors = energy_units(
+            data.m["dg_text"].iloc[rows].reset_index(drop=True),
+            data.m["dg_kj_mol"].iloc[rows].reset_index(drop=True),
+        )
+        method = data.text("method")
+        out = []
+        for i, p in enumerate(rows):
+            u, f = labels[i], float(factors[i])
+            edge = lo if dg[p] < lo else hi
+            side = "below" if dg[p] < lo else "above"
+            out.append(
+                self.finding(
+                    int(data.ids[p]),
+                    f"ΔG‡ {fnum(dg[p] * f, 2)} {u} is {side} the range dynamic NMR can measure "
+                    f"(about {fnum(lo * f, 0)}–{fnum(hi * f, 0)} {u}) for a {method[p]} "
+                    "measurement: check the value, its unit, or the method",
+                    reported=opt(dg[p] * f),
+                    recomputed=opt(edge * f),
+                    difference=opt((dg[p] - edge) * f),
+                    unit=u,
+                )
+            )
+        return out
+
+
+class ShiftMatchesField(Rule):
+    """Δν (Hz) divided by the nucleus' observe frequency must be a plausible shift difference."""
+
+    id = "dnu-field"
+    version = 1
+    severity = "warning"
+    title = "Δν consistent with the field and nucleus"
+    uses = ("max_shift_ppm",)
+
+    def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
+        out: list[Finding] = []
+        field = data.col("co_field_mhz")
+        field = np.where(np.isfinite(field), field, data.col("field_mhz"))
+        with np.errstate(invalid="ignore"):
+            odd_field = np.isfinite(field) & ((field < FIELD_MIN_MHZ) | (field > FIELD_MAX_MHZ))
+        for p in np.flatnonzero(odd_field):
+            out.append(
+                self.finding(
+                    int(data.ids[p]),
+                    f"spectrometer frequency {field[p]:g} MHz is outside {FIELD_MIN_MHZ:g}–"
+                    f"{FIELD_MAX_MHZ:g} MHz: not a 1H frequency of an NMR magnet; check the "
+                    "field and its unit",
+                    reported=opt(field[p]),
+                    unit="MHz",
+                    context="field",
+                )
+            )
+        nucleus = data.m["nucleus"].fillna("").astype(str).to_numpy()
+        ratio = np.array([FREQUENCY_RATIO_TO_1H.get(x, np.nan) for x in nucleus])
+        limit = np.array([config.max_shift_ppm.get(x, np.nan) for x in nucleus])
+        dnu = data.col("dnu_hz")
+        with np.errstate(invalid="ignore", divide="ignore"):
+            observe = field * ratio
+            ppm = dnu / observe
+            rows = np.flatnonzero(~odd_field & np.isfinite(ppm) & (ppm > limit))
+        for p in rows:
+            note = "" if nucleus[p] == "1H" else f" ({nucleus[p]} observed at {observe[p]:.1f} MHz)"
+            out.append(
+                self.finding(
+                    int(data.ids[p]),
+                    f"Δν {dnu[p]:.4g} Hz at {field[p]:g} MHz{note} is {ppm[p]:.3g} ppm, more than "
+                    f"the ~{limit[p]:g} ppm a {nucleus[p]} shift difference can plausibly be: "
+                    "Hz and ppm, or the field, may be mixed up",
+                    reported=opt(ppm[p]),
+                    recomputed=opt(limit[p]),
+                    difference=opt(ppm[p] - limit[p]),
+                    unit="ppm",
+                    context="dnu",
+                )
+            )
+        return out

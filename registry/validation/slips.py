@@ -1,0 +1,234 @@
+"""The usual slips behind a coalescence barrier that does not match its data, and how to spot them.
+
+Each slip recomputes ΔG‡ from the stored data with one thing done the wrong way. A slip is
+named only when it reproduces the reported number within the same tolerance the check used;
+when several do, all are named, best first (slips without a free choice before those that pick
+a field or a temperature from a list, then by closeness). The list mirrors the errors that
+recur in the dynamic-NMR literature (common practice, no source): unit mix-ups, Celsius taken
+for kelvin, ppm taken for Hz, the wrong k_c expression, log10 for ln, the wrong temperature.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.typing import NDArray
+
+from registry import units
+from registry.validation.coalescence_model import CoalescenceInputs, recompute
+
+Array = NDArray[np.float64]
+
+#: 0 °C in kelvin, through the unit registry (not an inline constant)
+ZERO_CELSIUS_K = units.convert(0.0, "degC", "K")
+_KJ_PER_KCAL = units.convert(1.0, "kcal/mol", "kJ/mol")
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """A slip's ΔG‡ for each row (NaN where it cannot apply) and a per-row detail for the text."""
+
+    values: Array
+    detail: list[str]
+
+
+@dataclass(frozen=True)
+class Slip:
+    id: str
+    #: True when the slip picks something from a list (a field, a temperature) to fit
+    parametric: bool
+    compute: Callable[[CoalescenceInputs, Array, tuple[float, ...]], Candidate]
+
+
+def _best(
+    inp: CoalescenceInputs, correct: Array, options: list[tuple[Array, list[str]]]
+) -> Candidate:
+    """Per row, the option closest to the reported value."""
+    n = inp.tc_k.size
+    values = np.full(n, np.nan)
+    detail = [""] * n
+    best = np.full(n, np.inf)
+    for vals, texts in options:
+        dist = np.abs(inp.reported_kj_mol - vals)
+        better = np.isfinite(dist) & (dist < best)
+        for i in np.flatnonzero(better):
+            detail[i] = texts[i]
+        values = np.where(better, vals, values)
+        best = np.where(better, dist, best)
+    return Candidate(values, detail)
+
+
+def _nearest(inp: CoalescenceInputs, **kwargs: object) -> Array:
+    return recompute(inp, **kwargs).nearest(inp.reported_kj_mol)[0]  # type: ignore[arg-type]
+
+
+def _kcal_as_kj(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+    return Candidate(correct / _KJ_PER_KCAL, ["a kcal/mol value labelled kJ/mol"] * correct.size)
+
+
+def _kj_as_kcal(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+    return Candidate(correct * _KJ_PER_KCAL, ["a kJ/mol value labelled kcal/mol"] * correct.size)
+
+
+def _tc_celsius_as_kelvin(
+    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+) -> Candidate:
+    t = inp.tc_k - ZERO_CELSIUS_K
+    t = np.where(t > 0, t, np.nan)
+    values = _nearest(inp, t_eyring_k=t)
+    detail = [
+        f"Tc in °C put into the Eyring equation as kelvin (T = {x:.1f} 'K')" for x in t.tolist()
+    ]
+    return Candidate(values, detail)
+
+
+def _tc_celsius_labelled_kelvin(
+    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+) -> Candidate:
+    t = inp.tc_k + ZERO_CELSIUS_K
+    values = _nearest(inp.with_(tc_k=t), t_eyring_k=t)
+    detail = [
+        f"Tc written in K but really in °C (the barrier fits Tc = {x:.1f} K)" for x in t.tolist()
+    ]
+    return Candidate(values, detail)
+
+
+def _dnu_ppm_as_hz(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+    with np.errstate(invalid="ignore", divide="ignore"):
+        ppm = np.where(inp.field_mhz > 0, inp.dnu_hz / inp.field_mhz, np.nan)
+    values = _nearest(inp.with_(dnu_hz=ppm))
+    detail = [f"Δν in ppm ({x:.3g}) used as if it were Hz" for x in ppm.tolist()]
+    return Candidate(values, detail)
+
+
+def _dnu_other_field(
+    inp: CoalescenceInputs, correct: Array, fields: tuple[float, ...]
+) -> Candidate:
+    options = []
+    for f in fields:
+        with np.errstate(invalid="ignore", divide="ignore"):
+            scale = np.where(
+                (inp.field_mhz > 0) & (np.abs(inp.field_mhz - f) > 1.0), f / inp.field_mhz, np.nan
+            )
+        vals = _nearest(inp.with_(dnu_hz=inp.dnu_hz * scale))
+        texts = [
+            f"Δν in Hz read at {f:g} MHz, not at the stated {fm:g} MHz"
+            for fm in inp.field_mhz.tolist()
+        ]
+        options.append((vals, texts))
+    return _best(inp, correct, options)
+
+
+def _coupled_as_uncoupled(
+    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+) -> Candidate:
+    coupled = inp.coupled
+    values = np.where(coupled, _nearest(inp.with_(j_hz=np.zeros_like(inp.j_hz))), np.nan)
+    detail = [
+        f"the coupled AB pair (J = {j:.1f} Hz) treated with the uncoupled k_c = πΔν/√2"
+        for j in inp.j_hz.tolist()
+    ]
+    return Candidate(values, detail)
+
+
+def _populations_ignored(
+    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+) -> Candidate:
+    unequal = inp.unequal
+    values = np.where(unequal, _nearest(inp.with_(ratio=np.ones_like(inp.ratio))), np.nan)
+    detail = [
+        f"the unequal populations ({r:.2f}:1) treated with the equal-population formula"
+        for r in inp.ratio.tolist()
+    ]
+    return Candidate(values, detail)
+
+
+def _kc_pi(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+    values = _nearest(inp, kc_scale=float(np.sqrt(2.0)))
+    return Candidate(values, ["k_c taken as πΔν instead of πΔν/√2"] * correct.size)
+
+
+def _kc_2pi(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+    values = _nearest(inp, kc_scale=float(2.0 * np.sqrt(2.0)))
+    return Candidate(values, ["k_c taken as 2πΔν instead of πΔν/√2"] * correct.size)
+
+
+def _log10(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+    values = _nearest(inp, log10=True)
+    return Candidate(values, ["log10 used where ln belongs in the Eyring equation"] * correct.size)
+
+
+def _other_temperature(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+    options = []
+    standard = units.convert(25.0, "degC", "K")
+    t_std = np.where(np.abs(inp.tc_k - standard) > 2.0, standard, np.nan)
+    t_stated = np.where(np.abs(inp.dg_t_k - inp.tc_k) > 2.0, inp.dg_t_k, np.nan)
+    for t in (t_std, t_stated):
+        vals = _nearest(inp, t_eyring_k=t)
+        texts = [
+            f"ΔG‡ evaluated at {x:.1f} K with the rate at Tc ({tc:.1f} K)"
+            for x, tc in zip(t.tolist(), inp.tc_k.tolist(), strict=True)
+        ]
+        options.append((vals, texts))
+    return _best(inp, correct, options)
+
+
+SLIPS: tuple[Slip, ...] = (
+    Slip("kcal-as-kj", False, _kcal_as_kj),
+    Slip("kj-as-kcal", False, _kj_as_kcal),
+    Slip("tc-celsius-as-kelvin", False, _tc_celsius_as_kelvin),
+    Slip("tc-celsius-labelled-kelvin", False, _tc_celsius_labelled_kelvin),
+    Slip("dnu-ppm-as-hz", False, _dnu_ppm_as_hz),
+    Slip("coupled-as-uncoupled", False, _coupled_as_uncoupled),
+    Slip("populations-ignored", False, _populations_ignored),
+    Slip("kc-pi-dnu", False, _kc_pi),
+    Slip("kc-2pi-dnu", False, _kc_2pi),
+    Slip("log10-for-ln", False, _log10),
+    Slip("dnu-other-field", True, _dnu_other_field),
+    Slip("dg-other-temperature", True, _other_temperature),
+)
+
+SLIP_IDS = tuple(s.id for s in SLIPS)
+
+
+@dataclass(frozen=True)
+class Diagnosis:
+    """For each row: the slips that reproduce the reported ΔG‡, best first."""
+
+    slips: list[tuple[str, ...]]
+    details: list[tuple[str, ...]]
+    values_kj_mol: list[tuple[float, ...]]
+
+
+def diagnose(
+    inp: CoalescenceInputs,
+    correct: Array,
+    tolerance_kj_mol: Array,
+    fields_mhz: tuple[float, ...],
+) -> Diagnosis:
+    """Which slips reproduce ``inp.reported_kj_mol`` within ``tolerance_kj_mol`` (per row)."""
+    n = inp.tc_k.size
+    found: list[list[tuple[int, float, str, str, float]]] = [[] for _ in range(n)]
+    for slip in SLIPS:
+        cand = slip.compute(inp, correct, fields_mhz)
+        resid = np.abs(inp.reported_kj_mol - cand.values)
+        ok = np.isfinite(resid) & (resid <= tolerance_kj_mol)
+        for i in np.flatnonzero(ok):
+            found[i].append(
+                (
+                    int(slip.parametric),
+                    float(resid[i]),
+                    slip.id,
+                    cand.detail[i],
+                    float(cand.values[i]),
+                )
+            )
+    slips, details, values = [], [], []
+    for hits in found:
+        hits.sort(key=lambda h: (h[0], h[1]))
+        slips.append(tuple(h[2] for h in hits))
+        details.append(tuple(h[3] for h in hits))
+        values.append(tuple(h[4] for h in hits))
+    return Diagnosis(slips, details, values)

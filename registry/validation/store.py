@@ -1,0 +1,167 @@
+"""Findings in the ``validation_finding`` table: reconcile a run with the last one, accept one.
+
+A run replaces, for the measurements it checked, every stored finding that is no longer
+produced (resolved, or recomputed because its inputs or the rule version changed) and inserts
+the ones that are new; a finding whose (measurement, rule, version, inputs_hash) is unchanged
+stays as it was, with its first date and its acceptance. Writes use executemany.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Sequence
+from datetime import UTC, datetime
+from typing import Any
+
+from sqlalchemy import Connection, bindparam, delete, insert, select, update
+
+from registry import audit
+from registry.errors import NotFoundError, UsageError
+from registry.models import ValidationFinding
+from registry.validation.base import SEVERITY_RANK, Finding
+
+_T = ValidationFinding.__table__
+_CHUNK = 2000
+_SLIP_RE = re.compile(r"\[([a-z0-9-]+)\](?=;|$)")
+
+Key = tuple[int, str, int, str | None]
+
+
+def _key(mid: int, rule: str, version: int, inputs_hash: str | None) -> Key:
+    return (int(mid), rule, int(version), inputs_hash)
+
+
+def _select_stored(
+    conn: Connection, measurement_ids: Sequence[int] | None, query: Any = None
+) -> list[Any]:
+    """Stored findings (all columns, or ``query``'s) of ``measurement_ids`` (None: all)."""
+    query = select(_T).order_by(_T.c.measurement_id, _T.c.id) if query is None else query
+    if measurement_ids is None:
+        return list(conn.execute(query).mappings())
+    rows: list[Any] = []
+    ids = sorted({int(i) for i in measurement_ids})
+    for start in range(0, len(ids), _CHUNK):
+        chunk = ids[start : start + _CHUNK]
+        rows.extend(conn.execute(query.where(_T.c.measurement_id.in_(chunk))).mappings())
+    return rows
+
+
+def finding_from_row(row: Any, new: bool = False) -> Finding:
+    cause = row["likely_cause"]
+    return Finding(
+        measurement_id=row["measurement_id"],
+        rule_id=row["rule_id"],
+        rule_version=row["rule_version"],
+        severity=row["severity"],
+        message=row["message"],
+        reported=row["reported"],
+        recomputed=row["recomputed"],
+        difference=row["difference"],
+        unit=row["unit"],
+        likely_cause=cause,
+        slips=tuple(_SLIP_RE.findall(cause)) if cause else (),
+        id=row["id"],
+        inputs_hash=row["inputs_hash"],
+        found_at=row["found_at"],
+        new=new,
+        accepted_by=row["accepted_by"],
+        accepted_at=row["accepted_at"],
+        accept_reason=row["accept_reason"],
+    )
+
+
+def reconcile(
+    conn: Connection,
+    measurement_ids: Sequence[int] | None,
+    findings: Sequence[Finding],
+    now: datetime,
+) -> tuple[list[Finding], int, int]:
+    """Store this run's findings for ``measurement_ids`` (None: all); return them, #new, #removed."""
+    keys_query = select(
+        _T.c.id, _T.c.measurement_id, _T.c.rule_id, _T.c.rule_version, _T.c.inputs_hash
+    )
+    existing: dict[Key, int] = {}
+    stale: list[int] = []
+    for row in _select_stored(conn, measurement_ids, keys_query):
+        fid, mid, rule, version, h = (row[c] for c in ("id", "measurement_id", "rule_id",
+                                                        "rule_version", "inputs_hash"))  # fmt: skip
+        key = _key(mid, rule, version, h)
+        if key in existing:
+            stale.append(fid)  # a duplicate left by an interrupted run
+        else:
+            existing[key] = fid
+    produced: set[Key] = set()
+    rows = []
+    for f in findings:
+        key = _key(f.measurement_id, f.rule_id, f.rule_version, f.inputs_hash)
+        if key in produced:
+            continue
+        produced.add(key)
+        if key in existing:
+            continue
+        rows.append(
+            {
+                "measurement_id": f.measurement_id,
+                "rule_id": f.rule_id,
+                "rule_version": f.rule_version,
+                "severity": f.severity,
+                "message": f.message,
+                "reported": f.reported,
+                "recomputed": f.recomputed,
+                "difference": f.difference,
+                "unit": f.unit,
+                "likely_cause": f.likely_cause,
+                "inputs_hash": f.inputs_hash,
+                "found_at": now,
+            }
+        )
+    stale += [fid for key, fid in existing.items() if key not in produced]
+    if stale:
+        conn.execute(delete(_T).where(_T.c.id == bindparam("fid")), [{"fid": i} for i in stale])
+    if rows:
+        conn.execute(insert(_T), rows)
+    inserted = {
+        _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"]) for r in rows
+    }
+    result = []
+    for r in _select_stored(conn, measurement_ids):
+        key = _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"])
+        result.append(finding_from_row(r, new=key in inserted))
+    result.sort(key=lambda f: (f.measurement_id, SEVERITY_RANK.get(f.severity, 9), f.rule_id))
+    return result, len(rows), len(stale)
+
+
+def accept(conn: Connection, finding_id: int, reason: str, actor: str) -> Finding:
+    """Mark a finding accepted with the reason, and record who did it in the history."""
+    if not reason or not reason.strip():
+        raise UsageError('accepting a finding needs a reason (--reason "…")')
+    row = conn.execute(select(_T).where(_T.c.id == finding_id)).mappings().first()
+    if row is None:
+        raise NotFoundError(
+            f"no finding with id {finding_id}; run 'fluxledger check' to see the current ones"
+        )
+    now = datetime.now(UTC)
+    conn.execute(
+        update(_T)
+        .where(_T.c.id == finding_id)
+        .values(accepted_by=actor, accepted_at=now, accept_reason=reason.strip())
+    )
+    audit.record(
+        conn,
+        entity="measurement",
+        entity_id=row["measurement_id"],
+        action="accept-finding",
+        actor=actor,
+        before={"finding": finding_id, "accepted_by": row["accepted_by"]},
+        after={
+            "finding": finding_id,
+            "rule": row["rule_id"],
+            "rule_version": row["rule_version"],
+            "severity": row["severity"],
+            "message": row["message"],
+            "inputs_hash": row["inputs_hash"],
+        },
+        reason=reason.strip(),
+    )
+    fresh = conn.execute(select(_T).where(_T.c.id == finding_id)).mappings().one()
+    return finding_from_row(fresh)
