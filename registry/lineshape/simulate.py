@@ -272,9 +272,7 @@ class ExchangeModel:
         if len(self.shifts_hz) < 2:
             raise ValueError("at least two sites are needed")
         if len(self.populations) != len(self.shifts_hz):
-            raise ValueError(
-                f"{len(self.shifts_hz)} sites but {len(self.populations)} populations"
-            )
+            raise ValueError(f"{len(self.shifts_hz)} sites but {len(self.populations)} populations")
         _check_populations(self.populations)
         if self.scheme not in SCHEMES:
             raise ValueError(f"unknown scheme {self.scheme!r}; choose one of {', '.join(SCHEMES)}")

@@ -1,0 +1,67 @@
+"""From fitted rates to the registry: the rate points a measurement holds.
+
+Per-temperature fits are what should be stored: each rate is an independent measurement, so the
+registry's own Eyring analysis (and anyone re-using the points) sees the real scatter. Rates
+from the global fit are tied by the Eyring equation; storing them would make a later Eyring fit
+of the stored points circular.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from typing import TYPE_CHECKING, Any
+
+from registry.errors import UsageError
+
+if TYPE_CHECKING:  # the fit module pulls in scipy; keep this one light
+    from registry.lineshape.fit import LineShapeFit
+
+
+def value_with_error_text(value: float, error: float | None, unit: str) -> str:
+    """``'123.5 ± 4.6 s-1'``: the error to two significant figures and the value to match.
+
+    The text reads back through :func:`registry.units.parse_value` to the same numbers.
+    """
+    if error is None or not math.isfinite(error) or error <= 0:
+        return f"{value:.4g} {unit}"
+    digits = 1 - math.floor(math.log10(error))  # decimals that keep two significant figures
+    if digits > 0:
+        return f"{value:.{digits}f} ± {error:.{digits}f} {unit}"
+    step = 10.0 ** (-digits)
+    return f"{round(value / step) * step:.0f} ± {round(error / step) * step:.0f} {unit}"
+
+
+def rate_points(fits: Sequence[LineShapeFit]) -> list[dict[str, Any]]:
+    """Rate points {t_k, t_text, k_per_s, k_err_per_s, k_text} for ``api.add_rate_points``."""
+    points = []
+    for fit in fits:
+        if fit.t_k is None:
+            raise UsageError(
+                f"{fit.source}: no temperature known, so its rate cannot be stored; "
+                "give the temperatures on the command line"
+            )
+        points.append(
+            {
+                "t_k": float(fit.t_k),
+                "t_text": fit.t_text or f"{fit.t_k:.2f} K",
+                "k_per_s": float(fit.k_per_s),
+                "k_err_per_s": None if fit.k_err_per_s is None else float(fit.k_err_per_s),
+                "k_text": value_with_error_text(fit.k_per_s, fit.k_err_per_s, "s-1"),
+            }
+        )
+    return points
+
+
+def store_rate_points(
+    db: str, measurement_id: int, fits: Sequence[LineShapeFit], *, actor: str | None = None
+) -> int:
+    """Add the fitted rates to measurement ``measurement_id`` of the registry at ``db``.
+
+    Returns the number of points written (one transaction, recorded in the history).
+    """
+    from registry import api
+
+    points = rate_points(fits)
+    database = api.open_registry(db)
+    return api.add_rate_points(database, measurement_id, points, actor=actor)
