@@ -1,0 +1,203 @@
+"""``import`` and ``export``: spreadsheets in and out (the work is in :mod:`registry.io`)."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import typer
+
+from registry.cli.context import state
+from registry.cli.output import print_json, table_text
+
+
+def register(app: typer.Typer) -> None:
+    app.command(
+        "import",
+        help=(
+            "Import a spreadsheet (.xlsx, .ods, .csv, .tsv) of measurements and/or rate points.\n\n"
+            "Headers are recognised in their usual spellings with units in the header "
+            "('ΔG‡ (kcal/mol)', 'Tc (°C)', 'Δν (Hz)'); a unit written in a cell wins. Unknown "
+            "columns are kept as extra attributes. The whole file is one transaction: all rows or "
+            "none (with --skip-bad the rejected rows go to a side CSV). Importing the same file "
+            "again adds nothing; a corrected file updates the matching measurements.\n\n"
+            "Exit status: 0 when the import succeeded (also when validation findings were "
+            "reported — they are listed in the summary), 1 when the data has problems (nothing "
+            "written), 2 for usage errors."
+        ),
+    )(import_cmd)
+    app.command(
+        "export",
+        help=(
+            "Export measurements (filters as for 'list') as csv, xlsx or json: reported texts, "
+            "normalized values, findings and references. Text cells that a spreadsheet would "
+            "evaluate get a leading apostrophe; the importer removes it again."
+        ),
+    )(export_cmd)
+
+
+def import_cmd(
+    ctx: typer.Context,
+    file: str = typer.Argument(..., help="The spreadsheet: .xlsx, .ods, .csv or .tsv."),
+    sheet: str = typer.Option(None, "--sheet", help="Import only this sheet of a workbook."),
+    map_file: str = typer.Option(
+        None, "--map", help="Mapping file (TOML): columns, units, defaults, sheets."
+    ),
+    dry_run: bool = typer.Option(
+        False,
+        "--dry-run",
+        help="Show the inferred mapping, the first rows as stored, and the problems; write nothing.",
+    ),
+    skip_bad: bool = typer.Option(
+        False,
+        "--skip-bad",
+        help="Import the good rows; write the rejected ones (row, column, reason) to a side CSV.",
+    ),
+    rejects: str = typer.Option(
+        None, "--rejects", help="Where --skip-bad writes rejected rows (default FILE.rejected.csv)."
+    ),
+    as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
+) -> None:
+    from registry import api
+    from registry.io import import_table
+
+    st = state(ctx)
+    database = api.open_registry(st.db)
+    summary = import_table(
+        database,
+        file,
+        sheet=sheet,
+        mapping_path=map_file,
+        dry_run=dry_run,
+        skip_bad=skip_bad,
+        rejects_path=rejects,
+        actor=st.actor,
+        progress=not as_json,
+    )
+    if as_json:
+        print_json(summary)
+    else:
+        typer.echo(render_summary(summary))
+    if dry_run and summary["problems"] and not skip_bad:
+        raise typer.Exit(1)
+
+
+def render_summary(s: dict[str, Any]) -> str:
+    """The import summary as text (the --json form carries the same data)."""
+    lines: list[str] = []
+    if s["dry_run"]:
+        lines.append(f"dry run of {s['file']} — nothing written")
+        for sheet, rows in s["mapping"].items():
+            lines.append(f"\nsheet {sheet} ({s['sheet_kinds'][sheet]}): columns")
+            lines.append(
+                _indent(table_text(rows, ["column", "header", "field", "unit", "role", "from"]))
+            )
+        if s.get("preview"):
+            lines.append("\nfirst rows as they would be stored")
+            cols = [
+                "compound",
+                "method",
+                "solvent",
+                "dg_kj_mol",
+                "dg_text",
+                "tc_k",
+                "dnu_hz",
+                "field_mhz",
+                "rate_points",
+                "inchikey",
+            ]
+            lines.append(_indent(table_text(s["preview"], cols)))
+        lines.append(
+            f"\nwould add {s['would_add']}, update {s['would_update']}, leave "
+            f"{s['unchanged']} unchanged; {s['would_reject']} row(s) with problems"
+        )
+    else:
+        lines.append(
+            f"imported {s['file']} (batch {s['batch_id']}): {s['added']} added, "
+            f"{s['updated']} updated, {s['unchanged']} unchanged, {s['rejected']} rejected"
+        )
+        v = s.get("validation") or {}
+        if v.get("available"):
+            counts = v.get("findings") or {}
+            text = ", ".join(f"{n} {sev}" for sev, n in sorted(counts.items()) if n) or "none"
+            lines.append(f"validation findings on the new/changed rows: {text}")
+            for f in v.get("list", [])[:20]:
+                message = f["message"] if len(f["message"]) <= 160 else f["message"][:157] + "…"
+                lines.append(
+                    f"  measurement {f['measurement_id']}: {f['severity']} [{f['rule_id']}] {message}"
+                )
+            if len(v.get("list", [])) > 20:
+                lines.append(f"  … and {len(v['list']) - 20} more ('fluxledger check' lists all)")
+        else:
+            lines.append("validation: not available in this installation (rules not installed)")
+        if s.get("rejects_file"):
+            lines.append(f"rejected rows written to {s['rejects_file']}")
+    for note in s["notes"]:
+        lines.append(f"note: {note}")
+    if s["problems"]:
+        lines.append(f"{len(s['problems'])} problem(s):")
+        for p in s["problems"][:50]:
+            where = ", ".join(
+                x
+                for x in (
+                    f"sheet {p['sheet']!r}" if p["sheet"] else "",
+                    f"row {p['row']}" if p["row"] is not None else "",
+                    f"column {p['column']!r}" if p["column"] else "",
+                )
+                if x
+            )
+            text = f" {p['text']!r}:" if p["text"] else ""
+            lines.append(f"  {where}:{text} {p['reason']}")
+        if len(s["problems"]) > 50:
+            lines.append(f"  … and {len(s['problems']) - 50} more")
+    return "\n".join(lines)
+
+
+def _indent(text: str) -> str:
+    return "\n".join("  " + line for line in text.splitlines())
+
+
+def export_cmd(
+    ctx: typer.Context,
+    output: str = typer.Option(..., "-o", "--output", help="File to write."),
+    fmt: str = typer.Option(
+        None, "--format", help="csv, xlsx or json (default: from the file name)."
+    ),
+    compound: str = typer.Option(None, help="Compound label or name contains this text."),
+    method: str = typer.Option(None, help="Only this method."),
+    solvent: str = typer.Option(None, help="Solvent contains this text."),
+    process: str = typer.Option(None, help="Only this process kind."),
+    status: str = typer.Option(None, help="Only this status."),
+    barrier_min: str = typer.Option(None, "--barrier-min", help="Lowest ΔG‡, any unit."),
+    barrier_max: str = typer.Option(None, "--barrier-max", help="Highest ΔG‡, any unit."),
+    include_retracted: bool = typer.Option(
+        False, "--include-retracted", help="Export retracted measurements too."
+    ),
+    as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
+) -> None:
+    from registry import api
+    from registry.io import export_measurements
+    from registry.units import parse_value
+
+    lo = parse_value(barrier_min, "energy", field="--barrier-min").value if barrier_min else None
+    hi = parse_value(barrier_max, "energy", field="--barrier-max").value if barrier_max else None
+    database = api.open_registry(state(ctx).db)
+    result = export_measurements(
+        database,
+        output,
+        fmt,
+        compound=compound,
+        method=method,
+        solvent=solvent,
+        process=process,
+        status=status,
+        dg_min_kj_mol=lo,
+        dg_max_kj_mol=hi,
+        include_retracted=include_retracted,
+    )
+    if as_json:
+        print_json(result)
+    else:
+        typer.echo(
+            f"exported {result['measurements']} measurement(s), {result['rate_points']} rate "
+            f"point(s), {result['findings']} finding(s) to {result['file']} ({result['format']})"
+        )

@@ -1,0 +1,237 @@
+"""Column headers as groups write them → entry fields and the unit the header gives.
+
+A header is split into a concept and a unit (``ΔG‡ (kcal/mol)``, ``dG# / kJ mol-1``,
+``Barrier [kJ/mol]``, ``T_c/K``, ``Tc, °C``, ``dnu_hz``); the concept is folded to a key
+(Greek letters spelled out, daggers and punctuation dropped) and looked up in
+:data:`CONCEPTS`. To teach the importer a new spelling, add its key there (see
+DEVELOPERS.md); a mapping file overrides any guess.
+
+Field names are those of :class:`registry.entry.EntryInput`, plus the rate-sheet fields
+``t``, ``k``, ``t_err``, ``k_err``, ``rates`` (an export's embedded rate list), ``<field>_err``
+for a separate uncertainty column, and the roles ``extra`` and ``ignore``.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+from registry.entry import VALUE_FIELDS
+
+#: fields whose cells are physical values, and the quantity kind each is read as
+VALUE_QUANTITY: dict[str, str] = {name: kind for name, (kind, _) in VALUE_FIELDS.items()}
+VALUE_QUANTITY.update({"dnu": "shift", "t": "temperature", "k": "rate"})
+
+#: fields whose cells are plain text
+TEXT_FIELDS = (
+    "method",
+    "label",
+    "compound",
+    "name",
+    "smiles",
+    "process",
+    "sites",
+    "nucleus",
+    "solvent",
+    "reference",
+    "status",
+    "population",
+    "log10_a",
+    "rates",
+)
+
+#: every field a column can be mapped to (besides '<value field>_err', 'extra', 'ignore')
+FIELDS = (*TEXT_FIELDS, *VALUE_QUANTITY)
+
+#: what a user calls each field, for messages and the dry-run table
+FIELD_TITLES: dict[str, str] = {name: title for name, (_, title) in VALUE_FIELDS.items()}
+FIELD_TITLES.update(
+    {"dnu": "Δν", "t": "T (rate point)", "k": "k (rate point)", "rates": "rate points"}
+)
+
+# Concept keys (see concept_key) → field. Keys are lowercase letters and digits only.
+CONCEPTS: dict[str, str] = {}
+
+
+def _add(field: str, *keys: str) -> None:
+    for key in keys:
+        CONCEPTS[key] = field
+
+
+_add(
+    "dg", "dg", "g", "dgc", "dgtc", "dga", "dgact", "dgdagger", "dgrot", "dgexp", "dgdouble",
+    "barrier", "barriers", "barrierheight", "rotationalbarrier", "rotationbarrier",
+    "inversionbarrier", "freeenergy", "freeenergybarrier", "freeenergyofactivation",
+    "activationfreeenergy", "gibbsenergyofactivation", "gibbs", "gact",
+)  # fmt: skip
+_add("dg_t", "tdg", "dgt", "tofdg", "temperatureofdg", "tref", "dgat", "att", "atemperature")
+_add("dh", "dh", "dhact", "dhdagger", "enthalpy", "activationenthalpy", "enthalpyofactivation")
+_add("ds", "ds", "dsact", "dsdagger", "entropy", "activationentropy", "entropyofactivation")
+_add("ea", "ea", "eact", "activationenergy", "arrheniusenergy", "arrheniusea")
+_add("log10_a", "loga", "log10a", "lga", "logafactor", "lgafactor", "log10afactor")
+_add(
+    "tc", "tc", "tcoal", "tcoalescence", "coalescencetemp", "coalescencetemperature",
+    "coalescencet", "tcoalesc",
+)  # fmt: skip
+_add(
+    "dnu", "dnu", "dv", "dnu0", "dv0", "dd", "dnuab", "dvab", "shiftdifference", "dshift",
+    "separation", "peakseparation", "signalseparation", "splitting", "frequencydifference",
+)  # fmt: skip
+_add("j", "j", "jab", "jhh", "coupling", "couplingconstant", "jcoupling", "2j")
+_add(
+    "field", "field", "spectrometer", "spectrometerfrequency", "frequency", "nmrfield", "b0",
+    "observefrequency", "sf", "instrument", "magnet", "nmrfrequency", "mhz",
+)  # fmt: skip
+_add("solvent", "solvent", "solv", "medium", "solvents", "nmrsolvent")
+_add("method", "method", "technique", "methodology", "approach", "nmrmethod")
+_add("smiles", "smiles", "structure", "smilesstring", "inputsmiles")
+_add("compound", "compound", "cmpd", "cpd", "compoundid", "compoundlabel", "compoundno", "code")
+_add("name", "name", "compoundname", "molecule", "iupacname", "chemicalname", "substance")
+_add("label", "label", "measurement", "measurementlabel", "measurementid", "run", "sample")
+_add("reference", "ref", "reference", "references", "doi", "citation", "source", "literature")
+_add("process", "process", "processkind", "kind", "dynamics", "dynamicprocess", "motion")
+_add("sites", "sites", "exchangingsites", "signals", "groups", "probe", "probesignal")
+_add("nucleus", "nucleus", "nuc", "observednucleus", "isotope", "nuclide")
+_add("population", "population", "populations", "popratio", "papb", "ratio", "majorminor")
+_add("status", "status")
+_add("t_min", "tmin", "tlow", "lowestt", "tstart")
+_add("t_max", "tmax", "thigh", "highestt", "tend")
+_add("t", "t", "temp", "temperature")
+_add("k", "k", "kex", "rate", "rateconstant", "kobs", "kexch")
+_add("rates", "rates", "ratepoints", "ratesktt")
+
+#: prefixes/suffixes that turn a concept into "the uncertainty of" it (σ_k, ΔG‡ err, u(Tc) …)
+_ERROR_WORDS = ("sigma", "err", "error", "sd", "stdev", "std", "u", "uncertainty", "esd")
+
+#: unit spellings written after an underscore in snake-case headers (dg_kcal_mol, tc_k)
+_SUFFIX_UNITS: dict[str, str] = {
+    "kjmol": "kJ/mol",
+    "kj": "kJ/mol",
+    "kcalmol": "kcal/mol",
+    "kcal": "kcal/mol",
+    "k": "K",
+    "c": "°C",
+    "degc": "°C",
+    "hz": "Hz",
+    "ppm": "ppm",
+    "mhz": "MHz",
+    "jmolk": "J/(mol*K)",
+    "calmolk": "cal/(mol*K)",
+    "eu": "e.u.",
+    "pers": "1/s",
+    "s1": "1/s",
+    "cm1": "1/cm",
+}
+
+#: headers an export writes for values it derives; the importer skips them (recomputed)
+DERIVED_MARKERS = ("(normalized)", "(derived)")
+EXTRA_PREFIX = "extra:"
+
+_GREEK = {
+    "Δ": "d",
+    "δ": "delta",
+    "ν": "nu",
+    "σ": "sigma",
+    "τ": "tau",
+    "Ω": "omega",
+}
+_DAGGERS = ("‡", "≠", "#", "†", "^", "*")
+_UNIT_BRACKETS = re.compile(r"^(?P<name>.*?)\s*[(\[{](?P<unit>[^()\[\]{}]*)[)\]}]\s*$")
+
+
+@dataclass(frozen=True)
+class HeaderGuess:
+    """What a header means: the field (or None), the unit it gives, and whether it is an error column."""
+
+    header: str
+    field: str | None
+    unit: str | None
+    role: str  # "value", "error", "extra", "ignore", "derived"
+
+
+def concept_key(name: str) -> str:
+    """Fold a header's concept to a lookup key: ``ΔG‡`` → ``dg``, ``Δν`` → ``dnu``, ``T_c`` → ``tc``."""
+    text = name.strip()
+    for dagger in _DAGGERS:
+        text = text.replace(dagger, "")
+    for greek, latin in _GREEK.items():
+        text = text.replace(greek, latin)
+    text = text.lower()
+    text = re.sub(r"\bdelta\s*", "d", text)
+    text = re.sub(r"\bdouble\s*dagger\b|\bdagger\b", "", text)
+    return re.sub(r"[^a-z0-9]", "", text)
+
+
+def split_header(header: str) -> tuple[str, str | None]:
+    """(concept part, unit part or None): ``Tc (°C)``, ``dG# / kJ mol-1``, ``Tc, K``, ``dG in kJ/mol``."""
+    text = " ".join(str(header).split())
+    m = _UNIT_BRACKETS.match(text)
+    if m and m["name"]:
+        return m["name"], m["unit"].strip() or None
+    if "/" in text:
+        name, unit = text.split("/", 1)
+        if name.strip() and unit.strip():
+            return name.strip(), unit.strip()
+    m = re.match(r"^(?P<name>.+?)\s*,\s*(?P<unit>[^,]+)$", text)
+    if m:
+        return m["name"], m["unit"].strip()
+    m = re.match(r"^(?P<name>.+?)\s+in\s+(?P<unit>\S+)$", text)
+    if m:
+        return m["name"], m["unit"].strip()
+    return text, None
+
+
+def _snake_unit(name: str) -> tuple[str, str | None]:
+    """``dg_kcal_mol`` → (``dg``, kcal/mol); ``tc_k`` → (``tc``, K); else (name, None)."""
+    parts = re.split(r"[_\s]+", name.strip())
+    for cut in range(1, len(parts)):
+        suffix = re.sub(r"[^a-z0-9]", "", "".join(parts[cut:]).lower())
+        if suffix in _SUFFIX_UNITS:
+            return "_".join(parts[:cut]), _SUFFIX_UNITS[suffix]
+    return name, None
+
+
+def _lookup(concept: str) -> tuple[str | None, bool]:
+    """(field, is_error_column) for a concept part."""
+    key = concept_key(concept)
+    if key in CONCEPTS:
+        return CONCEPTS[key], False
+    if key in ("", "pm", "plusminus") or concept.strip() in ("±", "+/-", "+-"):
+        return None, True  # a bare "±" column: the error of the column before it
+    for word in _ERROR_WORDS:
+        for stem in (key.removeprefix(word), key.removesuffix(word)):
+            if stem != key and stem in CONCEPTS:
+                return CONCEPTS[stem], True
+    return None, False
+
+
+def guess_header(header: str) -> HeaderGuess:
+    """Recognise one header; unknown headers become extra attributes, never dropped."""
+    raw = str(header).strip()
+    low = raw.lower()
+    if any(low.endswith(marker) for marker in DERIVED_MARKERS):
+        return HeaderGuess(raw, None, None, "derived")
+    if low.startswith(EXTRA_PREFIX):
+        return HeaderGuess(raw, None, None, "extra")
+    concept, unit = split_header(raw)
+    field, is_error = _lookup(concept)
+    if field is None and not is_error:
+        stem, suffix_unit = _snake_unit(concept)
+        if suffix_unit is not None:
+            field, is_error = _lookup(stem)
+            if field is not None or is_error:
+                unit = unit or suffix_unit
+    if field is None and not is_error and unit is None:
+        # "ΔG‡ kcal/mol": a unit written after the concept with only a space between
+        m = re.match(r"^(?P<name>\S+)\s+(?P<unit>\S+(?:\s+\S+)?)$", raw)
+        if m:
+            field2, err2 = _lookup(m["name"])
+            if field2 is not None and not err2 and field2 in VALUE_QUANTITY:
+                return HeaderGuess(raw, field2, m["unit"], "value")
+    if is_error:
+        return HeaderGuess(raw, field, unit, "error")
+    if field is None:
+        return HeaderGuess(raw, None, None, "extra")
+    if field == "field" and unit is None and concept_key(concept) == "mhz":
+        unit = "MHz"
+    return HeaderGuess(raw, field, unit, "value")

@@ -1,0 +1,292 @@
+"""From a sheet's header row to a column plan: which column feeds which field, in which unit.
+
+The guess (:mod:`registry.io.headers`) is overridden by a mapping file (TOML)::
+
+    [sheets]                 # which sheet holds what (default: recognised from the headers)
+    entries = "Barriers"
+    rates = "Kinetics"
+
+    [columns]                # header → field, "extra" (keep as attribute) or "ignore"
+    "Temp." = "tc"
+    "Barrier" = { field = "dg", unit = "kcal/mol" }
+    "Notes" = "extra"
+
+    [units]                  # field → unit for cells that carry none
+    tc = "°C"
+
+    [defaults]               # field → text used for every row where the cell is empty
+    method = "coalescence"
+    solvent = "CDCl3"
+
+Header units are checked once here (a temperature unit over an energy column is an error in the
+header, not a hundred errors in the rows).
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from registry.errors import FileFormatError, RowProblem, UnitError, UsageError
+from registry.io.headers import FIELDS, VALUE_QUANTITY, HeaderGuess, guess_header
+from registry.io.readers import column_letter
+from registry.units import unit_of
+
+ROLES = ("extra", "ignore")
+
+#: fields that make a sheet an entries sheet
+_ENTRY_FIELDS = {
+    "method",
+    "dg",
+    "tc",
+    "dnu",
+    "smiles",
+    "compound",
+    "name",
+    "dh",
+    "ea",
+    "rates",
+    "process",
+}
+
+
+@dataclass
+class MappingFile:
+    """A parsed mapping file; every part optional."""
+
+    columns: dict[str, tuple[str, str | None]] = field(default_factory=dict)
+    units: dict[str, str] = field(default_factory=dict)
+    defaults: dict[str, str] = field(default_factory=dict)
+    sheets: dict[str, str] = field(default_factory=dict)
+
+
+@dataclass
+class Column:
+    """One column of a sheet and what the importer does with it."""
+
+    index: int
+    header: str
+    field: str | None  # entry field, or None for extra/ignore/derived
+    unit: str | None
+    role: str  # value | error | extra | ignore | derived
+    source: str  # guess | mapping file
+
+    @property
+    def letter(self) -> str:
+        return column_letter(self.index)
+
+
+@dataclass
+class SheetPlan:
+    """The plan for one sheet: its kind and columns, header row, problems and notes."""
+
+    sheet: str | None
+    kind: str  # entries | rates | skip
+    header_row: int  # 1-based spreadsheet row of the header
+    columns: list[Column]
+    defaults: dict[str, str] = field(default_factory=dict)
+    notes: list[str] = field(default_factory=list)
+
+    def value_columns(self) -> dict[str, Column]:
+        return {c.field: c for c in self.columns if c.role == "value" and c.field}
+
+    def error_columns(self) -> dict[str, Column]:
+        return {c.field: c for c in self.columns if c.role == "error" and c.field}
+
+    def extra_columns(self) -> list[Column]:
+        return [c for c in self.columns if c.role == "extra"]
+
+    def describe(self) -> list[dict[str, Any]]:
+        """The mapping as rows for the dry-run table and --json."""
+        return [
+            {
+                "column": c.letter,
+                "header": c.header,
+                "field": c.field
+                if c.role == "value"
+                else (f"{c.field} (uncertainty)" if c.role == "error" else None),
+                "unit": c.unit,
+                "role": c.role,
+                "from": c.source,
+            }
+            for c in self.columns
+        ]
+
+
+def load_mapping(path: str | Path | None) -> MappingFile:
+    """Read a mapping file; unknown fields are a usage error naming the key."""
+    if path is None:
+        return MappingFile()
+    p = Path(path)
+    try:
+        data = tomllib.loads(p.read_text(encoding="utf-8"))
+    except FileNotFoundError as exc:
+        raise UsageError(f"mapping file {p}: no such file") from exc
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise UsageError(f"mapping file {p}: not valid TOML: {exc}") from exc
+    out = MappingFile()
+    allowed = set(FIELDS) | {f"{f}_err" for f in VALUE_QUANTITY} | set(ROLES)
+    for header, target in (data.get("columns") or {}).items():
+        unit = None
+        if isinstance(target, dict):
+            unit = target.get("unit")
+            target = target.get("field", "extra")
+        if not isinstance(target, str) or target not in allowed:
+            raise UsageError(
+                f"mapping file {p}: column {header!r} → {target!r} is not a field; "
+                f"use one of {', '.join(sorted(allowed))}"
+            )
+        out.columns[str(header).strip()] = (target, unit)
+    for key, section in (("units", out.units), ("defaults", out.defaults)):
+        for name, value in (data.get(key) or {}).items():
+            if name not in FIELDS:
+                raise UsageError(f"mapping file {p}: [{key}] {name!r} is not a field")
+            section[name] = str(value)
+    for kind, name in (data.get("sheets") or {}).items():
+        if kind not in ("entries", "rates"):
+            raise UsageError(f"mapping file {p}: [sheets] keys are 'entries' and 'rates'")
+        out.sheets[kind] = str(name)
+    unknown = set(data) - {"columns", "units", "defaults", "sheets"}
+    if unknown:
+        raise UsageError(f"mapping file {p}: unknown section(s) {', '.join(sorted(unknown))}")
+    return out
+
+
+def plan_sheet(
+    file: str,
+    sheet: str | None,
+    headers: list[Any],
+    header_row: int,
+    mapping: MappingFile,
+    problems: list[RowProblem],
+    data_columns: set[int] | None = None,
+) -> SheetPlan:
+    """Decide what each column means; header problems go to ``problems``."""
+    columns: list[Column] = []
+    notes: list[str] = []
+    for index, raw in enumerate(headers):
+        header = "" if raw is None else str(raw).strip()
+        if header.lower() in ("nan", "none"):
+            header = ""
+        if not header:
+            if data_columns is not None and index in data_columns:
+                problems.append(
+                    RowProblem(
+                        file,
+                        sheet,
+                        header_row,
+                        column_letter(index),
+                        None,
+                        "this column has values but no header; name it (or map it in a mapping file)",
+                    )
+                )
+            continue
+        if header in mapping.columns:
+            target, unit = mapping.columns[header]
+            if target in ROLES:
+                columns.append(Column(index, header, None, None, target, "mapping file"))
+            elif target.endswith("_err") and target[:-4] in VALUE_QUANTITY:
+                columns.append(Column(index, header, target[:-4], unit, "error", "mapping file"))
+            else:
+                guess = guess_header(header)
+                columns.append(
+                    Column(index, header, target, unit or guess.unit, "value", "mapping file")
+                )
+            continue
+        guess: HeaderGuess = guess_header(header)
+        field_name = guess.field
+        if guess.role == "error" and field_name is None:
+            # a bare "±" column: the uncertainty of the value column just before it
+            previous = columns[-1] if columns else None
+            if previous is not None and previous.role == "value" and previous.field:
+                field_name = previous.field
+            else:
+                columns.append(Column(index, header, None, None, "extra", "guess"))
+                continue
+        columns.append(Column(index, header, field_name, guess.unit, guess.role, "guess"))
+
+    seen: dict[tuple[str, str], Column] = {}
+    for col in columns:
+        if col.role not in ("value", "error") or not col.field:
+            continue
+        key = (col.role, col.field)
+        if key in seen and not (col.field == "reference" and col.role == "value"):
+            first = seen[key]
+            notes.append(
+                f"column {col.letter} {col.header!r} also looks like {col.field} (as does "
+                f"{first.letter} {first.header!r}); kept as an extra attribute — "
+                "use a mapping file to choose"
+            )
+            col.role, col.field = "extra", None
+            continue
+        seen.setdefault(key, col)
+
+    value_fields = {c.field for c in columns if c.role == "value"}
+    kind = "skip"
+    if value_fields & _ENTRY_FIELDS or "method" in mapping.defaults:
+        kind = "entries"
+    elif "k" in value_fields and ({"t", "dg_t"} & value_fields) and "label" in value_fields:
+        kind = "rates"
+    if sheet is not None and mapping.sheets.get("entries") == sheet:
+        kind = "entries"
+    if sheet is not None and mapping.sheets.get("rates") == sheet:
+        kind = "rates"
+    if kind == "entries":
+        for col in columns:  # in an entries sheet a bare "T" is the temperature of ΔG‡
+            if col.field == "t" and "dg_t" not in value_fields:
+                col.field = "dg_t"
+    elif kind == "rates":
+        for col in columns:
+            if col.field == "dg_t":
+                col.field = "t"
+
+    for field_name, unit in mapping.units.items():
+        for col in columns:
+            if col.field == field_name and col.role in ("value", "error") and not col.unit:
+                col.unit = unit
+    for col in columns:  # a bare spectrometer frequency is in MHz (common practice, no source)
+        if col.field == "field" and col.role == "value" and not col.unit:
+            col.unit = "MHz"
+    for col in columns:
+        if col.role in ("value", "error") and col.field in VALUE_QUANTITY and col.unit:
+            _check_header_unit(file, sheet, header_row, col, problems, notes)
+        elif col.role == "value" and col.field not in VALUE_QUANTITY and col.unit:
+            col.unit = None  # "Solvent (deuterated)": a remark, not a unit
+    return SheetPlan(sheet, kind, header_row, columns, dict(mapping.defaults), notes)
+
+
+def _check_header_unit(
+    file: str,
+    sheet: str | None,
+    header_row: int,
+    col: Column,
+    problems: list[RowProblem],
+    notes: list[str],
+) -> None:
+    quantity = VALUE_QUANTITY[col.field or ""]
+    try:
+        unit_of(col.unit or "", quantity, field=col.header)
+    except UnitError as exc:
+        if exc.reason.startswith("unknown unit"):
+            notes.append(
+                f"column {col.letter} {col.header!r}: {col.unit!r} is not a unit; read as a "
+                "remark (cells must then carry their own unit)"
+            )
+            col.unit = None
+            return
+        problems.append(
+            RowProblem(
+                file,
+                sheet,
+                header_row,
+                col.header,
+                col.unit,
+                f"the header's unit does not fit {col.field}: {exc.reason}",
+            )
+        )
+    except Exception as exc:  # pint's parser raises assorted errors on odd text
+        raise FileFormatError(
+            file, f"column {col.header!r}: unreadable unit: {exc}", sheet
+        ) from exc

@@ -1,0 +1,369 @@
+"""Insert-or-update next to :func:`registry.writer.write_entries`, for repeated imports.
+
+A measurement is "the same" when compound, process, solvent, method, reference and label
+match. Importing a file twice therefore adds nothing, and importing a corrected version
+updates the matching measurements in place, each change recorded in the revision history with
+its before and after. :func:`find_matches` only reads, so a dry run can show what would happen.
+
+What a file decides for a matched measurement: every value column and the coalescence data;
+the extra attributes when the sheet has extra columns; the rate points when the file gives
+rate points for it (a sheet without rates never deletes rates added later); the status only
+when the sheet has a status column (a re-import does not undo a review).
+"""
+
+from __future__ import annotations
+
+import json
+from collections import defaultdict
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+from typing import Any
+
+from sqlalchemy import Connection, delete, insert, select, update
+
+from registry import audit, vocab
+from registry.chem import Structure
+from registry.entry import NormalizedEntry
+from registry.models import CoalescenceObservation, Compound, Measurement, Process, RatePoint
+from registry.writer import solvent_index
+
+MatchKey = tuple[Any, ...]
+
+
+@dataclass
+class Change:
+    """What an import would change in one existing measurement."""
+
+    index: int  # position of the entry in the import
+    measurement_id: int
+    before: dict[str, Any]
+    after: dict[str, Any]
+    measurement_values: dict[str, Any] = field(default_factory=dict)
+    coalescence: dict[str, Any] | None = None
+    replace_coalescence: bool = False
+    rates: list[dict[str, Any]] | None = None
+    extra_json: str | None = None
+    replace_extra: bool = False
+
+
+@dataclass
+class UpsertPlan:
+    new: list[int]  # indexes of entries to insert
+    changes: list[Change]
+    unchanged: list[tuple[int, int]]  # (index, measurement id)
+    ambiguous: list[tuple[int, list[int]]]  # (index, candidate ids)
+
+
+def _chunks(items: Sequence[Any], size: int = 500) -> list[Sequence[Any]]:
+    return [items[i : i + size] for i in range(0, len(items), size)]
+
+
+def _solvent_part(solvent_id: int | None, text: str | None) -> Any:
+    if solvent_id is not None:
+        return ("id", solvent_id)
+    return ("text", vocab.solvent_key(text) if text else "")
+
+
+def extra_text(extra: dict[str, Any] | None) -> str | None:
+    """The stored form of extra attributes (same as the writer's)."""
+    return json.dumps(extra, ensure_ascii=False, default=str) if extra else None
+
+
+def find_matches(
+    conn: Connection,
+    entries: Sequence[NormalizedEntry],
+    structures: Sequence[Structure | None],
+) -> tuple[list[int | None], list[tuple[int, list[int]]]]:
+    """The existing measurement id each entry matches (None when new), and ambiguous entries."""
+    keys = sorted({s.inchikey for s in structures if s is not None and s.inchikey})
+    labels = sorted({e.compound["label"] for e in entries if e.compound.get("label")})
+    names = sorted(
+        {
+            e.compound["name"]
+            for e, s in zip(entries, structures, strict=True)
+            if e.compound.get("name") and not e.compound.get("label") and s is None
+        }
+    )
+    by_key: dict[str, int] = {}
+    by_label: dict[str, int] = {}
+    by_name: dict[str, int] = {}
+    for chunk in _chunks(keys):
+        for cid, key in conn.execute(
+            select(Compound.id, Compound.inchikey).where(Compound.inchikey.in_(chunk))
+        ):
+            by_key[key] = cid
+    for chunk in _chunks(labels):
+        for cid, label in conn.execute(
+            select(Compound.id, Compound.label).where(Compound.label.in_(chunk))
+        ):
+            by_label[label] = cid
+    for chunk in _chunks(names):
+        for cid, name in conn.execute(
+            select(Compound.id, Compound.name).where(
+                Compound.name.in_(chunk), Compound.label.is_(None), Compound.inchikey.is_(None)
+            )
+        ):
+            by_name.setdefault(name, cid)
+    compound_ids: list[int | None] = []
+    for e, s in zip(entries, structures, strict=True):
+        cid = None
+        if s is not None and s.inchikey:
+            cid = by_key.get(s.inchikey)
+        if cid is None and e.compound.get("label"):
+            cid = by_label.get(e.compound["label"])
+        if cid is None and e.compound.get("name") and not e.compound.get("label") and s is None:
+            cid = by_name.get(e.compound["name"])
+        compound_ids.append(cid)
+    known = sorted({c for c in compound_ids if c is not None})
+    processes: dict[tuple[int, str, str, str], int] = {}
+    existing: dict[MatchKey, list[int]] = defaultdict(list)
+    for chunk in _chunks(known):
+        for pid, cid, kind, sites, nucleus in conn.execute(
+            select(
+                Process.id, Process.compound_id, Process.kind, Process.sites, Process.nucleus
+            ).where(Process.compound_id.in_(chunk))
+        ):
+            processes[(cid, kind, sites, nucleus)] = pid
+        for row in conn.execute(
+            select(
+                Measurement.id,
+                Measurement.compound_id,
+                Measurement.process_id,
+                Measurement.method,
+                Measurement.solvent_id,
+                Measurement.solvent_text,
+                Measurement.reference,
+                Measurement.label,
+            ).where(Measurement.compound_id.in_(chunk))
+        ):
+            key = (
+                row.compound_id,
+                row.process_id,
+                row.method,
+                _solvent_part(row.solvent_id, row.solvent_text),
+                row.reference or "",
+                row.label or "",
+            )
+            existing[key].append(row.id)
+    solvents = solvent_index(conn)
+    matches: list[int | None] = []
+    ambiguous: list[tuple[int, list[int]]] = []
+    for i, (e, cid) in enumerate(zip(entries, compound_ids, strict=True)):
+        if cid is None:
+            matches.append(None)
+            continue
+        pid = None
+        if e.process is not None:
+            pid = processes.get((cid, e.process["kind"], e.process["sites"], e.process["nucleus"]))
+            if pid is None:
+                matches.append(None)
+                continue
+        m = e.measurement
+        sid = solvents.get(e.solvent_key) if e.solvent_key else None
+        key = (
+            cid,
+            pid,
+            m["method"],
+            _solvent_part(sid, m["solvent_text"]),
+            m["reference"] or "",
+            m["label"] or "",
+        )
+        ids = existing.get(key, [])
+        if len(ids) > 1:
+            ambiguous.append((i, sorted(ids)))
+            matches.append(None)
+        else:
+            matches.append(ids[0] if ids else None)
+    return matches, ambiguous
+
+
+def plan_upsert(
+    conn: Connection,
+    entries: Sequence[NormalizedEntry],
+    structures: Sequence[Structure | None],
+    extras: Sequence[dict[str, Any] | None],
+    *,
+    compare_status: bool,
+    compare_extra: bool,
+) -> UpsertPlan:
+    """Sort entries into new, changed and unchanged, reading only."""
+    matches, ambiguous = find_matches(conn, entries, structures)
+    ambiguous_idx = {i for i, _ in ambiguous}
+    matched = [(i, mid) for i, mid in enumerate(matches) if mid is not None]
+    new = [i for i, mid in enumerate(matches) if mid is None and i not in ambiguous_idx]
+    stored = _stored_state(conn, [mid for _, mid in matched])
+    changes: list[Change] = []
+    unchanged: list[tuple[int, int]] = []
+    for i, mid in matched:
+        change = _compare(
+            i,
+            mid,
+            entries[i],
+            extras[i],
+            stored[mid],
+            compare_status=compare_status,
+            compare_extra=compare_extra,
+        )
+        if change is None:
+            unchanged.append((i, mid))
+        else:
+            changes.append(change)
+    return UpsertPlan(new, changes, unchanged, ambiguous)
+
+
+def _stored_state(conn: Connection, ids: Sequence[int]) -> dict[int, dict[str, Any]]:
+    state: dict[int, dict[str, Any]] = {}
+    m_table = Measurement.__table__
+    c_table = CoalescenceObservation.__table__
+    r_table = RatePoint.__table__
+    for chunk in _chunks(sorted(set(ids))):
+        for row in conn.execute(select(m_table).where(m_table.c.id.in_(chunk))).mappings():
+            state[row["id"]] = {"measurement": dict(row), "coalescence": [], "rates": []}
+        for row in conn.execute(
+            select(c_table).where(c_table.c.measurement_id.in_(chunk)).order_by(c_table.c.id)
+        ).mappings():
+            state[row["measurement_id"]]["coalescence"].append(dict(row))
+        for row in conn.execute(
+            select(r_table).where(r_table.c.measurement_id.in_(chunk)).order_by(r_table.c.id)
+        ).mappings():
+            state[row["measurement_id"]]["rates"].append(dict(row))
+    return state
+
+
+_RATE_KEYS = ("t_k", "t_err_k", "t_text", "k_per_s", "k_err_per_s", "k_text")
+
+
+def _compare(
+    index: int,
+    mid: int,
+    entry: NormalizedEntry,
+    extra: dict[str, Any] | None,
+    stored: dict[str, Any],
+    *,
+    compare_status: bool,
+    compare_extra: bool,
+) -> Change | None:
+    before: dict[str, Any] = {}
+    after: dict[str, Any] = {}
+    values: dict[str, Any] = {}
+    old = stored["measurement"]
+    for key, value in entry.measurement.items():
+        if key == "status" and not compare_status:
+            continue
+        if old.get(key) != value:
+            before[key], after[key] = old.get(key), value
+            values[key] = value
+    change = Change(index, mid, before, after, values)
+    old_co = [
+        {k: v for k, v in row.items() if k not in ("id", "measurement_id")}
+        for row in stored["coalescence"]
+    ]
+    new_co = [entry.coalescence] if entry.coalescence else []
+    if old_co != new_co:
+        before["coalescence"] = old_co
+        after["coalescence"] = new_co
+        change.replace_coalescence = True
+        change.coalescence = entry.coalescence
+    if entry.rates:
+        old_rates = [{k: r[k] for k in _RATE_KEYS} for r in stored["rates"]]
+        new_rates = [{k: r.get(k) for k in _RATE_KEYS} for r in entry.rates]
+        if old_rates != new_rates:
+            before["rates"] = [[r["t_text"], r["k_text"]] for r in old_rates]
+            after["rates"] = [[r["t_text"], r["k_text"]] for r in new_rates]
+            change.rates = entry.rates
+    if compare_extra:
+        new_extra = extra_text(extra)
+        old_extra_obj = json.loads(old["extra_json"]) if old.get("extra_json") else None
+        if (old_extra_obj or None) != (extra or None):
+            before["extra"] = old_extra_obj
+            after["extra"] = extra or None
+            change.extra_json = new_extra
+            change.replace_extra = True
+    if not before:
+        return None
+    return change
+
+
+def apply_changes(
+    conn: Connection,
+    changes: Sequence[Change],
+    *,
+    actor: str,
+    batch_id: int | None,
+    solvent_ids: dict[str, int],
+    entries: Sequence[NormalizedEntry],
+) -> None:
+    """Write the planned changes and one revision (before/after) per measurement."""
+    now = datetime.now(UTC)
+    for ch in changes:
+        values = dict(ch.measurement_values)
+        if "solvent_text" in values:
+            key = entries[ch.index].solvent_key
+            values["solvent_id"] = solvent_ids.get(key) if key else None
+        if ch.replace_extra:
+            values["extra_json"] = ch.extra_json
+        values["updated_at"] = now
+        conn.execute(update(Measurement).where(Measurement.id == ch.measurement_id).values(values))
+        if ch.replace_coalescence:
+            conn.execute(
+                delete(CoalescenceObservation).where(
+                    CoalescenceObservation.measurement_id == ch.measurement_id
+                )
+            )
+            if ch.coalescence:
+                conn.execute(
+                    insert(CoalescenceObservation),
+                    [{**ch.coalescence, "measurement_id": ch.measurement_id}],
+                )
+        if ch.rates is not None:
+            replace_rate_points(conn, ch.measurement_id, ch.rates)
+    audit.record_many(
+        conn,
+        (
+            {
+                "entity": "measurement",
+                "entity_id": ch.measurement_id,
+                "action": "import-update",
+                "before": ch.before,
+                "after": ch.after,
+                "reason": "corrected values in a re-imported file",
+                "batch_id": batch_id,
+            }
+            for ch in changes
+        ),
+        actor,
+    )
+
+
+def replace_rate_points(
+    conn: Connection, measurement_id: int, rates: Sequence[dict[str, Any]]
+) -> None:
+    """Replace a measurement's rate points (inside the caller's transaction)."""
+    conn.execute(delete(RatePoint).where(RatePoint.measurement_id == measurement_id))
+    if rates:
+        conn.execute(
+            insert(RatePoint),
+            [
+                {**{k: r.get(k) for k in _RATE_KEYS}, "measurement_id": measurement_id}
+                for r in rates
+            ],
+        )
+
+
+def stored_rates(conn: Connection, ids: Sequence[int]) -> dict[int, list[dict[str, Any]]]:
+    """Rate points of measurements, as dicts of the rate columns, in insertion order."""
+    out: dict[int, list[dict[str, Any]]] = defaultdict(list)
+    r_table = RatePoint.__table__
+    for chunk in _chunks(sorted(set(ids))):
+        for row in conn.execute(
+            select(r_table).where(r_table.c.measurement_id.in_(chunk)).order_by(r_table.c.id)
+        ).mappings():
+            out[row["measurement_id"]].append({k: row[k] for k in _RATE_KEYS})
+    return out
+
+
+def same_rates(old: Sequence[dict[str, Any]], new: Sequence[dict[str, Any]]) -> bool:
+    return [{k: r.get(k) for k in _RATE_KEYS} for r in old] == [
+        {k: r.get(k) for k in _RATE_KEYS} for r in new
+    ]
