@@ -11,7 +11,6 @@ same measurement at once cannot lose each other's change.
 
 from __future__ import annotations
 
-import inspect
 import json
 import math
 from collections.abc import Mapping
@@ -410,7 +409,10 @@ def retract_measurement(
 
 
 def revalidate(database: Database, measurement_id: int) -> list[dict[str, Any]] | None:
-    """Re-run the validation rules for one measurement when that module offers it (else None)."""
+    """Re-run the validation rules for one edited measurement; its open findings (None: no rules).
+
+    Looked up at run time so that an edit still works in a build without the validation package.
+    """
     try:
         from registry import validation
     except ImportError:  # pragma: no cover - the package always exists
@@ -418,12 +420,14 @@ def revalidate(database: Database, measurement_id: int) -> list[dict[str, Any]] 
     check = getattr(validation, "check_measurements", None)
     if check is None:
         return None
-    params = inspect.signature(check).parameters
-    for name in ("ids", "measurement_ids"):
-        if name in params:
-            found = check(database, **{name: [measurement_id]})
-            return found if isinstance(found, list) else None
-    return None
+    report = check(database, [measurement_id])
+    findings = getattr(report, "findings", report) or []
+    out = []
+    for f in findings:
+        body = f.as_dict() if hasattr(f, "as_dict") else dict(f)
+        if not body.get("accepted_by"):
+            out.append(body)
+    return out
 
 
 def history(
@@ -499,7 +503,7 @@ def summarize(action: str, before: Any, after: Any) -> str:
     if not isinstance(before, dict) or not isinstance(after, dict):
         return action
     old, new = _flatten(before), _flatten(after)
-    keys = list(dict.fromkeys([*old, *new]))
+    keys = sorted({*old, *new})
     hidden = {
         f"{k.rpartition('.')[0]}.{c}".lstrip(".")
         for k in keys
