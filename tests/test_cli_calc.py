@@ -258,7 +258,7 @@ def test_plan_text_in_chloroform_cautions() -> None:
     out = result.stdout
     assert "above solvent bp: sealed tube" in out
     assert "caution: " in out and "pressure-rated sealed NMR tube" in out
-    assert "atropisomer  class 2" in out
+    assert "if an atropisomer  LaPlante class 2 (20–30 kcal/mol)" in out
 
 
 def test_plan_default_fields_for_ppm() -> None:

@@ -663,8 +663,8 @@ def plan(
             ("k", f"{_g(res.k_at_t_per_s)} s⁻¹"),
             ("t½", duration_text(res.half_life_at_t_s)),
             (
-                "atropisomer",
-                f"{atrop.description}; t½(37 °C) = {duration_text(atrop.half_life_37c_s)}",
+                "if an atropisomer",
+                f"LaPlante {atrop.description}; t½(37 °C) = {duration_text(atrop.half_life_37c_s)}",
             ),
         ],
         [],

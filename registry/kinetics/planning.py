@@ -193,7 +193,8 @@ def _laplante_limits_kj_mol() -> tuple[float, float]:
 
 _CLASS_TEXT = {
     1: "class 1 (ΔG‡ < 20 kcal/mol): interconverts rapidly at 37 °C (a minute or faster)",
-    2: "class 2 (20–30 kcal/mol): interconverts slowly at 37 °C (typically hours to months)",
+    2: "class 2 (20–30 kcal/mol): interconverts slowly at 37 °C (minutes to years, typically"
+    " hours to months)",
     3: "class 3 (> 30 kcal/mol): stable for years at 37 °C",
 }
 
