@@ -158,11 +158,26 @@ def _parse(path: Path) -> _Collect:
     return parser
 
 
-@pytest.fixture
-def report(database, tmp_path):  # type: ignore[no-untyped-def]
+def build_demo_report(tmp_path_factory: pytest.TempPathFactory):  # type: ignore[no-untyped-def]
+    """A populated registry and its report folder, built once per test module (plots are slow)."""
+    base = tmp_path_factory.mktemp("demo-report")
+    api.init_registry(str(base / "registry.sqlite"))
+    database = api.open_registry(str(base / "registry.sqlite"))
     ids = populate(database)
-    out = tmp_path / "report"
-    result = site.build_report(database, out, title="Demo group registry")
+    result = site.build_report(database, base / "report", title="Demo group registry")
+    return database, base / "report", result, ids
+
+
+@pytest.fixture(scope="module")
+def built(tmp_path_factory: pytest.TempPathFactory):  # type: ignore[no-untyped-def]
+    database, out, result, ids = build_demo_report(tmp_path_factory)
+    yield database, out, result, ids
+    database.dispose()
+
+
+@pytest.fixture
+def report(built):  # type: ignore[no-untyped-def]
+    _, out, result, ids = built
     return out, result, ids
 
 
@@ -205,8 +220,9 @@ def test_user_text_is_escaped(report) -> None:  # type: ignore[no-untyped-def]
     assert "demo &amp; &lt;invented&gt;" in text
 
 
-def test_compound_page_draws_structure_or_says_why_not(report, database) -> None:  # type: ignore[no-untyped-def]
+def test_compound_page_draws_structure_or_says_why_not(report, built) -> None:  # type: ignore[no-untyped-def]
     out, result, ids = report
+    database = built[0]
     pages = {p.name: p.read_text(encoding="utf-8") for p in (out / "compounds").glob("*.html")}
     dma = api.get_measurement(database, ids["dma"])["compound"]
     nitro = api.get_measurement(database, ids["unsanitized"])["compound"]
@@ -222,8 +238,9 @@ def test_compound_page_draws_structure_or_says_why_not(report, database) -> None
     assert result.structures_missing == 1
 
 
-def test_findings_shown_with_explanation(report, database) -> None:  # type: ignore[no-untyped-def]
+def test_findings_shown_with_explanation(report, built) -> None:  # type: ignore[no-untyped-def]
     out, _, ids = report
+    database = built[0]
     dma = api.get_measurement(database, ids["dma"])["compound"]
     page = (out / "compounds" / f"c{dma['id']}.html").read_text(encoding="utf-8")
     assert "demo-recompute" in page
@@ -232,8 +249,9 @@ def test_findings_shown_with_explanation(report, database) -> None:  # type: ign
     assert "reported 75.70 kJ/mol; recomputed 74.50 kJ/mol; difference 1.20 kJ/mol" in page
 
 
-def test_eyring_plot_on_compound_page_carries_the_fit(report, database) -> None:  # type: ignore[no-untyped-def]
+def test_eyring_plot_on_compound_page_carries_the_fit(report, built) -> None:  # type: ignore[no-untyped-def]
     out, _, ids = report
+    database = built[0]
     svg = (out / "plots" / f"eyring-m{ids['biaryl']}.svg").read_text(encoding="utf-8")
     # exact Eyring data: the fit must give back ΔH‡ = 58.0 kJ/mol (the rates are written to
     # 6 significant digits, so the recovered value agrees to 0.1 kJ/mol)
