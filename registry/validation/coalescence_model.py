@@ -59,6 +59,9 @@ class Recomputed:
     dg1_kj_mol: Array
     dg2_kj_mol: Array
 
+    def take(self, mask: NDArray[np.bool_]) -> Recomputed:
+        return Recomputed(*(v[mask] for v in self.__dict__.values()))
+
     def nearest(self, reported: Array) -> tuple[Array, NDArray[np.bool_]]:
         """Per row, whichever direction's barrier is closer to the reported one."""
         first = ~(np.abs(reported - self.dg2_kj_mol) < np.abs(reported - self.dg1_kj_mol))

@@ -199,12 +199,12 @@ def _canon(value: object) -> str:
 
 def _fetch(conn: Connection, query, ids: Sequence[int] | None, id_column) -> list[tuple]:  # type: ignore[no-untyped-def]
     if ids is None:
-        return list(conn.execute(query).tuples())
+        return list(conn.execute(query).all())
     rows: list[tuple] = []
     unique = sorted(set(int(i) for i in ids))
     for start in range(0, len(unique), _CHUNK):
         chunk = unique[start : start + _CHUNK]
-        rows.extend(conn.execute(query.where(id_column.in_(chunk))).tuples())
+        rows.extend(conn.execute(query.where(id_column.in_(chunk))).all())
     return rows
 
 

@@ -68,7 +68,7 @@ class CoalescenceBarrier(Rule):
             return []
         sub = inp.take(bad)
         positions = rows[bad]
-        diagnosis = slips.diagnose(sub, recomputed[bad], tol[bad], config.standard_fields_mhz)
+        diagnosis = slips.diagnose(sub, rec.take(bad), tol[bad], config.standard_fields_mhz)
         labels, factors = energy_units(
             data.m["dg_text"].iloc[positions].reset_index(drop=True),
             data.m["dg_kj_mol"].iloc[positions].reset_index(drop=True),

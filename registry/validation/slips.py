@@ -17,7 +17,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from registry import units
-from registry.validation.coalescence_model import CoalescenceInputs, recompute
+from registry.validation.coalescence_model import CoalescenceInputs, Recomputed, recompute
 
 Array = NDArray[np.float64]
 
@@ -39,12 +39,10 @@ class Slip:
     id: str
     #: True when the slip picks something from a list (a field, a temperature) to fit
     parametric: bool
-    compute: Callable[[CoalescenceInputs, Array, tuple[float, ...]], Candidate]
+    compute: Callable[[CoalescenceInputs, Recomputed, tuple[float, ...]], Candidate]
 
 
-def _best(
-    inp: CoalescenceInputs, correct: Array, options: list[tuple[Array, list[str]]]
-) -> Candidate:
+def _best(inp: CoalescenceInputs, options: list[tuple[Array, list[str]]]) -> Candidate:
     """Per row, the option closest to the reported value."""
     n = inp.tc_k.size
     values = np.full(n, np.nan)
@@ -64,16 +62,25 @@ def _nearest(inp: CoalescenceInputs, **kwargs: object) -> Array:
     return recompute(inp, **kwargs).nearest(inp.reported_kj_mol)[0]  # type: ignore[arg-type]
 
 
-def _kcal_as_kj(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
-    return Candidate(correct / _KJ_PER_KCAL, ["a kcal/mol value labelled kJ/mol"] * correct.size)
+def _scaled(inp: CoalescenceInputs, correct: Recomputed, factor: float) -> Array:
+    """Both directions' barriers times ``factor``, whichever is nearer the reported value."""
+    scaled = Recomputed(correct.k1_per_s, correct.k2_per_s, correct.dg1_kj_mol * factor,
+                        correct.dg2_kj_mol * factor)  # fmt: skip
+    return scaled.nearest(inp.reported_kj_mol)[0]
 
 
-def _kj_as_kcal(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
-    return Candidate(correct * _KJ_PER_KCAL, ["a kJ/mol value labelled kcal/mol"] * correct.size)
+def _kcal_as_kj(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
+    values = _scaled(inp, correct, 1.0 / _KJ_PER_KCAL)
+    return Candidate(values, ["a kcal/mol value labelled kJ/mol"] * values.size)
+
+
+def _kj_as_kcal(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
+    values = _scaled(inp, correct, _KJ_PER_KCAL)
+    return Candidate(values, ["a kJ/mol value labelled kcal/mol"] * values.size)
 
 
 def _tc_celsius_as_kelvin(
-    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+    inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     t = inp.tc_k - ZERO_CELSIUS_K
     t = np.where(t > 0, t, np.nan)
@@ -85,7 +92,7 @@ def _tc_celsius_as_kelvin(
 
 
 def _tc_celsius_labelled_kelvin(
-    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+    inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     t = inp.tc_k + ZERO_CELSIUS_K
     values = _nearest(inp.with_(tc_k=t), t_eyring_k=t)
@@ -95,7 +102,7 @@ def _tc_celsius_labelled_kelvin(
     return Candidate(values, detail)
 
 
-def _dnu_ppm_as_hz(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+def _dnu_ppm_as_hz(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
     with np.errstate(invalid="ignore", divide="ignore"):
         ppm = np.where(inp.field_mhz > 0, inp.dnu_hz / inp.field_mhz, np.nan)
     values = _nearest(inp.with_(dnu_hz=ppm))
@@ -104,7 +111,7 @@ def _dnu_ppm_as_hz(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
 
 
 def _dnu_other_field(
-    inp: CoalescenceInputs, correct: Array, fields: tuple[float, ...]
+    inp: CoalescenceInputs, correct: Recomputed, fields: tuple[float, ...]
 ) -> Candidate:
     options = []
     for f in fields:
@@ -118,11 +125,11 @@ def _dnu_other_field(
             for fm in inp.field_mhz.tolist()
         ]
         options.append((vals, texts))
-    return _best(inp, correct, options)
+    return _best(inp, options)
 
 
 def _coupled_as_uncoupled(
-    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+    inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     coupled = inp.coupled
     values = np.where(coupled, _nearest(inp.with_(j_hz=np.zeros_like(inp.j_hz))), np.nan)
@@ -134,7 +141,7 @@ def _coupled_as_uncoupled(
 
 
 def _populations_ignored(
-    inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]
+    inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     unequal = inp.unequal
     values = np.where(unequal, _nearest(inp.with_(ratio=np.ones_like(inp.ratio))), np.nan)
@@ -145,22 +152,24 @@ def _populations_ignored(
     return Candidate(values, detail)
 
 
-def _kc_pi(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+def _kc_pi(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
     values = _nearest(inp, kc_scale=float(np.sqrt(2.0)))
-    return Candidate(values, ["k_c taken as πΔν instead of πΔν/√2"] * correct.size)
+    return Candidate(values, ["k_c taken as πΔν instead of πΔν/√2"] * values.size)
 
 
-def _kc_2pi(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+def _kc_2pi(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
     values = _nearest(inp, kc_scale=float(2.0 * np.sqrt(2.0)))
-    return Candidate(values, ["k_c taken as 2πΔν instead of πΔν/√2"] * correct.size)
+    return Candidate(values, ["k_c taken as 2πΔν instead of πΔν/√2"] * values.size)
 
 
-def _log10(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+def _log10(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
     values = _nearest(inp, log10=True)
-    return Candidate(values, ["log10 used where ln belongs in the Eyring equation"] * correct.size)
+    return Candidate(values, ["log10 used where ln belongs in the Eyring equation"] * values.size)
 
 
-def _other_temperature(inp: CoalescenceInputs, correct: Array, _f: tuple[float, ...]) -> Candidate:
+def _other_temperature(
+    inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
+) -> Candidate:
     options = []
     standard = units.convert(25.0, "degC", "K")
     t_std = np.where(np.abs(inp.tc_k - standard) > 2.0, standard, np.nan)
@@ -172,7 +181,7 @@ def _other_temperature(inp: CoalescenceInputs, correct: Array, _f: tuple[float, 
             for x, tc in zip(t.tolist(), inp.tc_k.tolist(), strict=True)
         ]
         options.append((vals, texts))
-    return _best(inp, correct, options)
+    return _best(inp, options)
 
 
 SLIPS: tuple[Slip, ...] = (
@@ -204,7 +213,7 @@ class Diagnosis:
 
 def diagnose(
     inp: CoalescenceInputs,
-    correct: Array,
+    correct: Recomputed,
     tolerance_kj_mol: Array,
     fields_mhz: tuple[float, ...],
 ) -> Diagnosis:
