@@ -1,0 +1,356 @@
+"""``fluxledger find`` (structure search with filters) and ``fluxledger motifs`` (the motif library).
+
+Parsing and rendering only; the work is :func:`registry.search.find` and the motif functions in
+:mod:`registry.search.motifs`. RDKit is imported inside the command bodies, never at import.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import typer
+
+from registry.cli.context import state
+from registry.cli.output import print_json, render_rows
+from registry.errors import UsageError
+
+FIND_COLUMNS = [
+    "id",
+    "compound",
+    "process",
+    "nucleus",
+    "method",
+    "solvent",
+    "dg_kj_mol",
+    "dg_t_k",
+    "status",
+    "reference",
+]
+CSV_COLUMNS = [*FIND_COLUMNS[:1], "compound_id", *FIND_COLUMNS[1:], "smiles", "dg_err_kj_mol"]
+
+motifs_app = typer.Typer(
+    help="The motif library: built-in motifs and the registry's own (list, show, add, remove).",
+    no_args_is_help=True,
+)
+
+
+def register(app: typer.Typer) -> None:
+    app.command("find")(find)
+    app.add_typer(motifs_app, name="motifs")
+
+
+def find(
+    ctx: typer.Context,
+    smarts: str = typer.Option(None, "--smarts", help="Substructure as SMARTS, e.g. '[CX3](=O)N'."),
+    smiles: str = typer.Option(
+        None, "--smiles", help="Substructure as SMILES (atoms and bonds as written)."
+    ),
+    motif: str = typer.Option(
+        None, "--motif", help="A named motif (see 'fluxledger motifs list')."
+    ),
+    similar: str = typer.Option(
+        None, "--similar", help="Rank compounds by similarity to this SMILES."
+    ),
+    min_similarity: float = typer.Option(
+        0.6, "--min-similarity", help="Lowest Tanimoto similarity kept with --similar (Morgan r=2)."
+    ),
+    motif_file: list[str] = typer.Option(
+        None,
+        "--motif-file",
+        help="A TOML file of extra motifs ([[motif]] name/smarts); repeatable.",
+    ),
+    stereo: bool = typer.Option(
+        False, "--stereo", help="Stereo-aware matching: chirality in the pattern must match."
+    ),
+    barrier: str = typer.Option(
+        None,
+        "--barrier",
+        help="ΔG‡ range in any unit: '>= 22 kcal/mol', '80-100 kJ/mol', '95 ± 5 kJ/mol'.",
+    ),
+    temperature: str = typer.Option(
+        None, "--temperature", help="Range of the temperature ΔG‡ refers to, e.g. '250-300 K'."
+    ),
+    solvent: list[str] = typer.Option(
+        None,
+        "--solvent",
+        help="Solvent name or alias, or a class: nonpolar, chlorinated, polar-aprotic, protic. "
+        "Repeat or separate by commas for any of several.",
+    ),
+    method: str = typer.Option(
+        None, "--method", help="Only this method (coalescence, lineshape …)."
+    ),
+    process: str = typer.Option(None, "--process", help="Only this process kind."),
+    nucleus: str = typer.Option(
+        None, "--nucleus", help="Only this observed nucleus, e.g. 1H, 19F."
+    ),
+    status: str = typer.Option(None, "--status", help="Only this status (draft, reviewed …)."),
+    reference: str = typer.Option(None, "--reference", help="Reference contains this text."),
+    include_retracted: bool = typer.Option(
+        False, "--include-retracted", help="Also retracted measurements."
+    ),
+    sort: str = typer.Option(
+        None,
+        "--sort",
+        help="id, barrier, -barrier, temperature, -temperature, compound, solvent, method, "
+        "similarity ('-' = descending).",
+    ),
+    limit: int = typer.Option(
+        None, "--limit", help="Show at most this many rows (the total is always reported)."
+    ),
+    compounds: bool = typer.Option(
+        False, "--compounds", help="List the matching compounds instead of measurements."
+    ),
+    threads: int = typer.Option(
+        None, "--threads", help="Threads for the RDKit confirmation (default: all cores)."
+    ),
+    rebuild_index: bool = typer.Option(
+        False, "--rebuild-index", help="Rebuild the screening cache file first."
+    ),
+    as_json: bool = typer.Option(
+        False, "--json", help="Print JSON (with matched atom indices per compound)."
+    ),
+    as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
+) -> None:
+    """Every barrier measured on compounds with a substructure or motif, with filters."""
+    from registry import api, search
+
+    chosen = [x for x in (smarts, smiles, motif, similar) if x is not None]
+    if len(chosen) != 1:
+        raise UsageError("give exactly one of --smarts, --smiles, --motif, --similar")
+    if as_json and as_csv:
+        raise UsageError("choose one of --json and --csv")
+    if threads is not None and threads < 1:
+        raise UsageError(f"--threads {threads}: give a positive whole number")
+    filters = search.make_filters(
+        barrier=barrier, temperature=temperature, solvent=solvent, method=method,
+        process=process, nucleus=nucleus, status=status, reference=reference,
+        include_retracted=include_retracted,
+    )  # fmt: skip
+    database = api.open_registry(state(ctx).db)
+    query = None
+    if similar is None:
+        found_motif = search.get_motif(motif, database, motif_file) if motif else None
+        query = search.build_query(smarts=smarts, smiles=smiles, motif=found_motif, stereo=stereo)
+    elif stereo:
+        raise UsageError("--stereo applies to substructure searches, not --similar")
+    result = search.find(
+        database, query=query, similar=similar, min_similarity=min_similarity, filters=filters,
+        sort=sort, limit=None if compounds else limit, atoms=as_json, threads=threads,
+        rebuild_index=rebuild_index,
+    )  # fmt: skip
+    for warning in result.warnings:
+        typer.echo(f"warning: {warning}", err=True)
+    if compounds:
+        _render_compounds(result, limit, as_json, as_csv)
+        return
+    if as_json:
+        print_json(result.as_dict())
+        return
+    columns = CSV_COLUMNS if as_csv else FIND_COLUMNS
+    if similar is not None:
+        columns = [*columns[:2], "similarity", *columns[2:]]
+    render_rows(result.rows, as_csv=as_csv, columns=columns)
+    typer.echo(_summary(result), err=True)
+
+
+def _summary(result: Any) -> str:
+    s = result.stats
+    shown = (
+        f"showing {len(result.rows):,} of {result.total_rows:,} measurements (drop --limit to see all)"
+        if len(result.rows) < result.total_rows
+        else f"{result.total_rows:,} measurement(s)"
+    )
+    return (
+        f"{shown} on {s.matched:,} matching compound(s); {s.searched:,} compounds with "
+        f"qualifying measurements searched, {s.screened:,} passed the fingerprint screen"
+    )
+
+
+def _render_compounds(result: Any, limit: int | None, as_json: bool, as_csv: bool) -> None:
+    by_id: dict[int, dict[str, Any]] = {}
+    for row in result.rows:
+        entry = by_id.setdefault(
+            row["compound_id"],
+            {
+                "compound_id": row["compound_id"],
+                "compound": row["compound"],
+                "smiles": row["smiles"],
+                "measurements": 0,
+                "dg_min_kj_mol": None,
+                "dg_max_kj_mol": None,
+            },
+        )
+        entry["measurements"] += 1
+        dg = row.get("dg_kj_mol")
+        if dg is not None:
+            entry["dg_min_kj_mol"] = (
+                dg if entry["dg_min_kj_mol"] is None else min(entry["dg_min_kj_mol"], dg)
+            )
+            entry["dg_max_kj_mol"] = (
+                dg if entry["dg_max_kj_mol"] is None else max(entry["dg_max_kj_mol"], dg)
+            )
+        if "similarity" in row:
+            entry["similarity"] = row["similarity"]
+    extra = {c["compound_id"]: c for c in result.compounds}
+    rows = list(by_id.values())
+    for row in rows:
+        if "atoms" in extra.get(row["compound_id"], {}):
+            row["match_atoms"] = extra[row["compound_id"]]["atoms"]
+    total = len(rows)
+    if limit is not None:
+        rows = rows[:limit]
+    if as_json:
+        print_json({"query": result.query, "compounds_matched": total, "compounds": rows})
+        return
+    columns = [
+        "compound_id",
+        "compound",
+        "smiles",
+        "measurements",
+        "dg_min_kj_mol",
+        "dg_max_kj_mol",
+    ]
+    if rows and "similarity" in rows[0]:
+        columns.insert(3, "similarity")
+    render_rows(rows, as_csv=as_csv, columns=columns)
+    more = f" (showing {len(rows):,})" if len(rows) < total else ""
+    typer.echo(f"{total:,} matching compound(s) with measurements{more}", err=True)
+
+
+# ---------------------------------------------------------------- motifs
+
+
+@motifs_app.command("list")
+def motifs_list(
+    ctx: typer.Context,
+    motif_file: list[str] = typer.Option(None, "--file", help="Also list motifs from a TOML file."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+    as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
+) -> None:
+    """Built-in motifs, the registry's own motifs, and those of --file."""
+    from registry import api
+    from registry.search import list_motifs
+
+    database = _open_if_exists(state(ctx).db)
+    motifs = list_motifs(database, motif_file)
+    rows = [m.as_dict() for m in motifs]
+    if as_json:
+        print_json(rows)
+        return
+    table = [
+        {
+            "name": r["name"],
+            "source": r["source"],
+            "process": r["process"],
+            "smarts": " | ".join(r["smarts"]),
+            "description": r["description"],
+        }
+        for r in rows
+    ]
+    render_rows(table, as_csv=as_csv)
+    del api
+
+
+def _open_if_exists(db: str) -> Any:
+    """The registry when there is one; listing built-in motifs needs none."""
+    from pathlib import Path
+
+    from registry import api
+
+    if "://" not in db and not Path(db).expanduser().exists():
+        return None
+    return api.open_registry(db)
+
+
+@motifs_app.command("show")
+def motifs_show(
+    ctx: typer.Context,
+    name: str = typer.Argument(..., help="Motif name."),
+    motif_file: list[str] = typer.Option(None, "--file", help="Also look in a TOML file."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+) -> None:
+    """One motif: its SMARTS, what it is for, and (built-in ones) its test examples."""
+    from registry.search import get_motif
+
+    motif = get_motif(name, _open_if_exists(state(ctx).db), motif_file)
+    record = {
+        **motif.as_dict(),
+        "positives": list(motif.positives),
+        "negatives": list(motif.negatives),
+    }
+    if as_json:
+        print_json(record)
+        return
+    typer.echo(f"{motif.name}  ({motif.source})")
+    typer.echo(f"  {motif.description}")
+    for text in motif.smarts:
+        typer.echo(f"  SMARTS         {text}")
+    for text in motif.stereo_smarts:
+        typer.echo(f"  with --stereo  {text}")
+    if motif.process:
+        typer.echo(f"  usual process  {motif.process}")
+    if motif.positives:
+        typer.echo(f"  matches        {'  '.join(motif.positives)}")
+    if motif.negatives:
+        typer.echo(f"  does not match {'  '.join(motif.negatives)}")
+
+
+@motifs_app.command("add")
+def motifs_add(
+    ctx: typer.Context,
+    name: str = typer.Argument(None, help="New motif name (lowercase, digits, -,._+)."),
+    smarts: list[str] = typer.Argument(
+        None, help="SMARTS; several are alternatives (the motif matches if any does)."
+    ),
+    description: str = typer.Option("", "--description", help="What the motif is for."),
+    motif_file: str = typer.Option(
+        None, "--file", help="Add every motif of this TOML file instead."
+    ),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+) -> None:
+    """Store a motif of your own in the registry (recorded in the history)."""
+    from registry import api
+    from registry.search import add_motif, load_motif_file
+
+    st = state(ctx)
+    if motif_file:
+        if name or smarts:
+            raise UsageError("give either NAME SMARTS or --file, not both")
+        wanted = load_motif_file(motif_file)
+    elif name and smarts:
+        wanted = None
+    else:
+        raise UsageError("give NAME and SMARTS (or --file motifs.toml)")
+    database = api.open_registry(st.db)
+    added = []
+    if wanted is None:
+        added.append(add_motif(database, name, smarts, description=description, actor=st.actor))
+    else:
+        for m in wanted:
+            added.append(
+                add_motif(database, m.name, m.smarts, description=m.description, actor=st.actor)
+            )
+    if as_json:
+        print_json([m.as_dict() for m in added])
+        return
+    for m in added:
+        typer.echo(f"added motif {m.name}: {' | '.join(m.smarts)}")
+
+
+@motifs_app.command("remove")
+def motifs_remove(
+    ctx: typer.Context,
+    name: str = typer.Argument(..., help="Name of a motif of this registry."),
+    reason: str = typer.Option(None, "--reason", help="Why (kept in the history)."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+) -> None:
+    """Remove a motif of your own (built-in motifs stay)."""
+    from registry import api
+    from registry.search import remove_motif
+
+    st = state(ctx)
+    removed = remove_motif(api.open_registry(st.db), name, actor=st.actor, reason=reason)
+    if as_json:
+        print_json(removed.as_dict())
+        return
+    typer.echo(f"removed motif {removed.name}")

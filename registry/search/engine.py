@@ -1,0 +1,439 @@
+"""Run a structure search: filter measurements in SQL, screen, confirm with RDKit, return rows.
+
+Order of work, cheapest first: (1) the measurement filters run in SQL and give the compounds
+that have a qualifying barrier; (2) the pattern-fingerprint screen (:mod:`.index`) keeps those
+that can contain the query; (3) RDKit confirms on molecules rebuilt from their binary form —
+in a :class:`rdkit.Chem.rdSubstructLibrary.SubstructLibrary` over just the candidates, with an
+explicit thread count and ``maxResults`` equal to the candidate count, so no hit is ever
+dropped; (4) the measurements of the confirmed compounds are read and sorted.
+Similarity search ranks by Tanimoto similarity of Morgan fingerprints (radius 2, 2048 bits;
+Rogers & Hahn, J. Chem. Inf. Model. 2010) kept in a second cache file beside the first.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import time
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from registry.errors import UsageError
+from registry.search.filters import Filters
+from registry.search.index import ScreenIndex, load_index
+from registry.search.patterns import Query
+
+#: below this many candidates a plain loop beats setting up a threaded library
+_SMALL = 2000
+#: warn when a pattern matches more than this fraction of the compounds searched …
+BROAD_FRACTION = 0.9
+#: … and at least this many of them
+BROAD_MIN = 50
+
+SORT_KEYS = {
+    "id": ("id", False),
+    "barrier": ("dg_kj_mol", False),
+    "-barrier": ("dg_kj_mol", True),
+    "temperature": ("dg_t_k", False),
+    "-temperature": ("dg_t_k", True),
+    "compound": ("compound", False),
+    "solvent": ("solvent", False),
+    "method": ("method", False),
+    "similarity": ("similarity", True),
+}
+
+
+def default_threads() -> int:
+    """All cores this process may use (RDKit's -1 would leave one idle)."""
+    try:
+        return max(1, len(os.sched_getaffinity(0)))
+    except AttributeError:  # pragma: no cover - not on Linux
+        return max(1, os.cpu_count() or 1)
+
+
+@dataclass
+class SearchStats:
+    """How the search narrowed down: compounds searched, kept by the screen, confirmed."""
+
+    indexed: int = 0
+    searched: int = 0
+    screened: int = 0
+    matched: int = 0
+    seconds: dict[str, float] = field(default_factory=dict)
+
+
+@dataclass
+class FindResult:
+    """Measurements on matching compounds, the compounds themselves, and how the search went."""
+
+    query: dict[str, Any]
+    rows: list[dict[str, Any]]
+    compounds: list[dict[str, Any]]
+    stats: SearchStats
+    warnings: list[str]
+    total_rows: int  # before ``limit``
+
+    def as_dict(self) -> dict[str, Any]:
+        return {
+            "query": self.query,
+            "counts": {
+                "measurements": self.total_rows,
+                "returned": len(self.rows),
+                "compounds_matched": self.stats.matched,
+                "compounds_searched": self.stats.searched,
+                "compounds_after_screen": self.stats.screened,
+                "compounds_indexed": self.stats.indexed,
+            },
+            "warnings": self.warnings,
+            "measurements": self.rows,
+            "compounds": self.compounds,
+        }
+
+
+# ---------------------------------------------------------------- confirmation
+
+
+def _rdkit() -> Any:
+    from registry.search.patterns import _rdkit as load
+
+    return load()
+
+
+def confirm(
+    index: ScreenIndex,
+    positions: np.ndarray,
+    query_mol: Any,
+    *,
+    stereo: bool = False,
+    threads: int | None = None,
+) -> np.ndarray:
+    """The positions among ``positions`` whose molecule contains ``query_mol`` (all of them)."""
+    Chem = _rdkit()
+    if positions.size == 0:
+        return positions
+    threads = threads or default_threads()
+    if positions.size <= _SMALL or threads == 1:
+        keep = [
+            p
+            for p in positions.tolist()
+            if Chem.Mol(index.mol_binary(p)).HasSubstructMatch(query_mol, useChirality=stereo)
+        ]
+        return np.asarray(keep, dtype=np.int64)
+    from rdkit.Chem import rdSubstructLibrary
+
+    holder = rdSubstructLibrary.CachedMolHolder()
+    offsets, blob = index.offsets, index.blob
+    for p in positions.tolist():
+        holder.AddBinary(blob[offsets[p] : offsets[p + 1]].tobytes())
+    library = rdSubstructLibrary.SubstructLibrary(holder)
+    found = library.GetMatches(
+        query_mol,
+        recursionPossible=True,
+        useChirality=stereo,
+        useQueryQueryMatches=False,
+        numThreads=threads,
+        maxResults=int(positions.size),  # never fewer than could match
+    )
+    return np.sort(positions[np.asarray(list(found), dtype=np.int64)])
+
+
+def search_positions(
+    index: ScreenIndex,
+    query: Query,
+    rows: np.ndarray | None = None,
+    *,
+    threads: int | None = None,
+    stats: SearchStats | None = None,
+) -> np.ndarray:
+    """Index positions of the compounds matching any of the query's patterns."""
+    stats = stats if stats is not None else SearchStats()
+    t0 = time.perf_counter()
+    hits: list[np.ndarray] = []
+    screened: list[np.ndarray] = []
+    for mol, words in zip(query.mols, query.fingerprints, strict=True):
+        candidates = index.screen(words, rows)
+        screened.append(candidates)
+        t1 = time.perf_counter()
+        stats.seconds["screen"] = stats.seconds.get("screen", 0.0) + t1 - t0
+        hits.append(confirm(index, candidates, mol, stereo=query.stereo, threads=threads))
+        t0 = time.perf_counter()
+        stats.seconds["confirm"] = stats.seconds.get("confirm", 0.0) + t0 - t1
+    stats.screened = int(np.unique(np.concatenate(screened)).size) if screened else 0
+    out = np.unique(np.concatenate(hits)) if hits else np.empty(0, dtype=np.int64)
+    stats.matched = int(out.size)
+    return out
+
+
+def match_atoms(binary: bytes, query: Query, max_matches: int = 1000) -> list[list[int]]:
+    """Atom indices of every match (per pattern, unique atom sets) for highlighting."""
+    Chem = _rdkit()
+    mol = Chem.Mol(binary)
+    out: list[list[int]] = []
+    for pattern in query.mols:
+        out += [
+            list(m)
+            for m in mol.GetSubstructMatches(
+                pattern, useChirality=query.stereo, uniquify=True, maxMatches=max_matches
+            )
+        ]
+    return out
+
+
+# ---------------------------------------------------------------- similarity
+
+
+def _morgan_words(binary: bytes, generator: Any) -> np.ndarray:
+    Chem = _rdkit()
+    mol = Chem.Mol(binary)
+    mol.UpdatePropertyCache(strict=False)
+    bits = generator.GetFingerprintAsNumPy(mol).astype(bool)
+    return np.packbits(bits, bitorder="little").view("<u8")
+
+
+def _morgan_generator() -> Any:
+    from rdkit.Chem import rdFingerprintGenerator
+
+    return rdFingerprintGenerator.GetMorganGenerator(radius=2, fpSize=2048)
+
+
+def similarity_index(database: Any, screen: ScreenIndex) -> np.ndarray:
+    """Morgan fingerprints (N × 32 uint64) in screen-index order, cached in ``<db>.simindex``."""
+    from registry.search.index import ScreenIndex as Store
+    from registry.search.index import index_path_for, read_index, save_index
+
+    path = index_path_for(database, ".simindex")
+    signature = {**screen.signature, "fingerprint": "morgan-r2-2048"}
+    cached = read_index(path)
+    if cached is not None and cached.signature == signature and len(cached) == len(screen):
+        return cached.fps
+    generator = _morgan_generator()
+    fps = np.zeros((len(screen), 32), dtype=np.uint64)
+    for i in range(len(screen)):
+        try:
+            fps[i] = _morgan_words(screen.mol_binary(i), generator)
+        except Exception:  # a molecule RDKit cannot fingerprint is simply not similar
+            fps[i] = 0
+    store = Store(
+        screen.ids.copy(),
+        fps,
+        np.zeros(1, dtype=np.int64),
+        np.zeros(0, dtype=np.uint8),
+        signature,
+        screen.rdkit_version,
+    )
+    with contextlib.suppress(OSError):
+        save_index(store, path)
+    return fps
+
+
+def tanimoto(fps: np.ndarray, query: np.ndarray) -> np.ndarray:
+    """Tanimoto (Jaccard) similarity of each row with the query: |a∧b| / |a∨b|."""
+    both = np.bitwise_count(fps & query).sum(axis=1, dtype=np.int64)
+    either = np.bitwise_count(fps | query).sum(axis=1, dtype=np.int64)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(either > 0, both / np.maximum(either, 1), 0.0)
+
+
+# ---------------------------------------------------------------- the whole search
+
+
+def _filtered_compounds(conn: Any, conds: Sequence[Any]) -> np.ndarray:
+    from sqlalchemy import select
+
+    from registry.models import Compound, Measurement, Process
+
+    query = (
+        select(Measurement.compound_id)
+        .select_from(Measurement)
+        .join(Compound, Compound.id == Measurement.compound_id)
+        .outerjoin(Process, Process.id == Measurement.process_id)
+        .where(*conds)
+        .distinct()
+    )
+    return np.fromiter((r[0] for r in conn.execute(query)), dtype=np.int64)
+
+
+_ROW_EXTRA = ("compound_id", "t_min_k", "t_max_k")
+
+
+def _rows_for(conn: Any, conds: Sequence[Any], compound_ids: Sequence[int]) -> list[dict[str, Any]]:
+    from registry.api import _LIST_COLUMNS, measurement_query
+    from registry.models import Measurement
+
+    columns = dict(_LIST_COLUMNS)
+    columns["compound_id"] = Measurement.compound_id
+    columns["t_min_k"] = Measurement.t_min_k
+    columns["t_max_k"] = Measurement.t_max_k
+    rows: list[dict[str, Any]] = []
+    ids = list(compound_ids)
+    for start in range(0, len(ids), 5000):
+        chunk = ids[start : start + 5000]
+        query = measurement_query(columns).where(*conds, Measurement.compound_id.in_(chunk))
+        rows += [dict(r) for r in conn.execute(query).mappings()]
+    return rows
+
+
+def _sort(rows: list[dict[str, Any]], sort: str | None) -> None:
+    """Sort in place; rows without the value go last, ties keep measurement-id order."""
+    key_name = (sort or "id").strip().lower()
+    if key_name not in SORT_KEYS:
+        raise UsageError(f"--sort {sort!r}: choose one of {', '.join(SORT_KEYS)}")
+    column, descending = SORT_KEYS[key_name]
+    present = sorted((r for r in rows if r.get(column) is not None), key=lambda r: r["id"])
+    missing = sorted((r for r in rows if r.get(column) is None), key=lambda r: r["id"])
+
+    def value(row: dict[str, Any]) -> Any:
+        v = row[column]
+        return v.lower() if isinstance(v, str) else v
+
+    present.sort(key=value, reverse=descending)  # stable: equal values stay in id order
+    rows[:] = present + missing
+
+
+def find(
+    database: Any,
+    *,
+    query: Query | None = None,
+    similar: str | None = None,
+    min_similarity: float = 0.6,
+    filters: Filters | None = None,
+    sort: str | None = None,
+    limit: int | None = None,
+    atoms: bool = False,
+    threads: int | None = None,
+    rebuild_index: bool = False,
+) -> FindResult:
+    """Every measurement on a compound that matches ``query`` (or is similar to ``similar``).
+
+    Nothing is capped: ``limit`` only shortens the returned rows (``total_rows`` says how many
+    there were). ``atoms`` adds the matched atom indices of each compound for highlighting.
+    """
+    from registry.search import filters as filtering
+
+    if (query is None) == (similar is None):
+        raise UsageError("give exactly one of --smarts, --smiles, --motif or --similar")
+    if similar is not None and not 0.0 < min_similarity <= 1.0:
+        raise UsageError(f"--min-similarity {min_similarity}: give a number in (0, 1]")
+    if limit is not None and limit <= 0:
+        raise UsageError(f"--limit {limit}: give a positive whole number")
+    filters = filters or Filters()
+    stats = SearchStats()
+    warnings: list[str] = []
+    t0 = time.perf_counter()
+    index = load_index(database, rebuild=rebuild_index)
+    warnings += index.notes
+    stats.indexed = len(index)
+    stats.seconds["index"] = time.perf_counter() - t0
+    with database.read() as conn:
+        t1 = time.perf_counter()
+        conds = filtering.conditions(conn, filters)
+        allowed = _filtered_compounds(conn, conds)
+        positions = _present(index, allowed)
+        stats.searched = int(positions.size)
+        stats.seconds["filter"] = time.perf_counter() - t1
+        similarity: dict[int, float] = {}
+        if query is not None:
+            hit_positions = search_positions(index, query, positions, threads=threads, stats=stats)
+            description = {
+                "kind": query.kind,
+                "text": query.text,
+                "smarts": list(query.pattern_texts),
+                "stereo": query.stereo,
+            }
+        else:
+            from registry.search.patterns import compile_smiles
+
+            t2 = time.perf_counter()
+            mol = compile_smiles(similar or "", field="--similar")
+            qwords = _morgan_words(mol.ToBinary(), _morgan_generator())
+            fps = similarity_index(database, index)
+            scores = tanimoto(fps[positions], qwords) if positions.size else np.zeros(0)
+            keep = scores >= min_similarity - 1e-12
+            hit_positions = positions[keep]
+            similarity = {
+                int(index.ids[p]): float(s)
+                for p, s in zip(hit_positions, scores[keep], strict=True)
+            }
+            stats.screened = stats.matched = int(hit_positions.size)
+            stats.seconds["similarity"] = time.perf_counter() - t2
+            description = {"kind": "similar", "text": similar, "min_similarity": min_similarity}
+        t3 = time.perf_counter()
+        hit_ids = index.ids[hit_positions].tolist()
+        rows = _rows_for(conn, conds, hit_ids)
+        stats.seconds["rows"] = time.perf_counter() - t3
+    if similarity:
+        for row in rows:
+            row["similarity"] = round(similarity[row["compound_id"]], 4)
+    _sort(rows, sort or ("similarity" if similar is not None else "id"))
+    total = len(rows)
+    if limit is not None:
+        rows = rows[:limit]
+    if (
+        query is not None
+        and stats.searched >= BROAD_MIN
+        and stats.matched > BROAD_FRACTION * stats.searched
+    ):
+        warnings.append(
+            f"the pattern matches {stats.matched:,} of {stats.searched:,} compounds searched "
+            f"({100.0 * stats.matched / stats.searched:.0f}%); a more specific pattern or "
+            "filters would say more"
+        )
+    counts: dict[int, int] = {}
+    for row in rows:
+        counts[row["compound_id"]] = counts.get(row["compound_id"], 0) + 1
+    position_of = {int(index.ids[p]): int(p) for p in hit_positions}
+    compounds = []
+    for cid, n in counts.items():
+        entry: dict[str, Any] = {"compound_id": cid, "measurements": n}
+        if similarity:
+            entry["similarity"] = round(similarity[cid], 4)
+        if atoms and query is not None:
+            entry["atoms"] = match_atoms(index.mol_binary(position_of[cid]), query)
+        compounds.append(entry)
+    if atoms and query is not None:
+        by_id = {c["compound_id"]: c["atoms"] for c in compounds}
+        for row in rows:
+            row["match_atoms"] = by_id[row["compound_id"]]
+    description["filters"] = filters.describe()
+    return FindResult(description, rows, compounds, stats, warnings, total)
+
+
+def _present(index: ScreenIndex, compound_ids: np.ndarray) -> np.ndarray:
+    """Index positions of those compound ids that the index holds (compounds with a structure)."""
+    if compound_ids.size == 0 or len(index) == 0:
+        return np.empty(0, dtype=np.int64)
+    ids = np.sort(compound_ids)
+    positions = np.searchsorted(index.ids, ids)
+    inside = positions < len(index)
+    positions, ids = positions[inside], ids[inside]
+    return positions[index.ids[positions] == ids].astype(np.int64)
+
+
+def brute_force(database: Any, query: Query) -> list[int]:
+    """Compound ids matching ``query`` by parsing every stored SMILES and matching — no screen.
+
+    The reference the tests compare :func:`find` against.
+    """
+    from sqlalchemy import select
+
+    from registry.models import Compound
+
+    Chem = _rdkit()
+    out = []
+    with database.read() as conn:
+        for cid, smiles, binary in conn.execute(
+            select(Compound.id, Compound.smiles_canonical, Compound.mol_binary).order_by(
+                Compound.id
+            )
+        ):
+            if binary is None:
+                continue
+            mol = Chem.MolFromSmiles(smiles) if smiles else None
+            if mol is None:
+                mol = Chem.Mol(binary)
+            if any(mol.HasSubstructMatch(q, useChirality=query.stereo) for q in query.mols):
+                out.append(int(cid))
+    return out

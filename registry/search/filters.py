@@ -1,0 +1,259 @@
+"""Filters on the measurements a search returns: barrier and temperature ranges in any unit,
+solvent (by name, alias or class), method, process kind, nucleus, status and reference.
+
+Ranges are written as chemists write them: ``">= 22 kcal/mol"``, ``"< 90 kJ/mol"``,
+``"80-100 kJ/mol"``, ``"80 to 100 kJ/mol"``, ``"-40 to -10 °C"``, ``"95 ± 5 kJ/mol"``. Every bound is
+read by :func:`registry.units.parse_value`, so the units are the registry's (kcal is the
+thermochemical calorie). Filters become SQL conditions on the joined measurement query.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from typing import Any
+
+from registry.errors import UnitError, UsageError
+
+_NUM = r"[-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?"
+_COMPARE = re.compile(r"^\s*(>=|<=|=>|=<|≥|≤|>|<)\s*(.+?)\s*$")
+_BETWEEN = re.compile(
+    rf"^\s*(?P<lo>{_NUM})\s*(?P<lo_unit>(?!to\b)[^\d\s±+-][^±]*?)??\s*"
+    rf"(?:-|–|—|\.\.|to)\s*(?P<hi>{_NUM})\s*(?P<unit>.*?)\s*$"
+)
+_MINUS = str.maketrans({"−": "-", "–": "-", "—": "-"})
+_PLUSMINUS = re.compile(r"±|\+/-|\+-")
+
+#: Solvent classes by static dielectric constant near 20–25 °C (CRC Handbook of Chemistry and
+#: Physics, "Permittivity (dielectric constant) of liquids"; from memory): non-polar ε < 4.5,
+#: chlorinated as the name says, polar aprotic ε > 15 without O–H/N–H, protic with O–H.
+SOLVENT_CLASSES: dict[str, tuple[str, ...]] = {
+    "nonpolar": (
+        "toluene-d8",  # ε 2.4
+        "benzene-d6",  # ε 2.3
+        "carbon disulfide",  # ε 2.6
+        "1,4-dioxane-d8",  # ε 2.2
+        "diethyl ether-d10",  # ε 4.3
+    ),
+    "chlorinated": (
+        "chloroform-d",
+        "dichloromethane-d2",
+        "1,1,2,2-tetrachloroethane-d2",
+        "1,2-dichlorobenzene-d4",
+        "chlorobenzene-d5",
+    ),
+    "polar-aprotic": (
+        "dimethyl sulfoxide-d6",  # ε 47
+        "acetone-d6",  # ε 21
+        "acetonitrile-d3",  # ε 36
+        "N,N-dimethylformamide-d7",  # ε 38
+        "nitrobenzene-d5",  # ε 35
+    ),
+    "protic": ("methanol-d4", "deuterium oxide"),
+}
+_CLASS_ALIASES = {"nonpolar": "nonpolar", "apolar": "nonpolar", "chlorinated": "chlorinated"}
+_CLASS_ALIASES |= {"polaraprotic": "polar-aprotic", "aprotic": "polar-aprotic"}
+_CLASS_ALIASES |= {"protic": "protic", "polarprotic": "protic"}
+
+
+@dataclass(frozen=True)
+class Range:
+    """An interval in the canonical unit; ``None`` bounds are open."""
+
+    lo: float | None
+    hi: float | None
+    lo_inclusive: bool = True
+    hi_inclusive: bool = True
+    text: str = ""
+
+    def contains(self, value: float | None) -> bool:
+        if value is None:
+            return False
+        if self.lo is not None and (
+            value < self.lo or (value == self.lo and not self.lo_inclusive)
+        ):
+            return False
+        return not (
+            self.hi is not None
+            and (value > self.hi or (value == self.hi and not self.hi_inclusive))
+        )
+
+    def condition(self, column: Any) -> Any:
+        parts = []
+        if self.lo is not None:
+            parts.append(column >= self.lo if self.lo_inclusive else column > self.lo)
+        if self.hi is not None:
+            parts.append(column <= self.hi if self.hi_inclusive else column < self.hi)
+        from sqlalchemy import and_
+
+        return and_(*parts)
+
+
+def _value(
+    text: str, quantity: str, field_name: str, unit: str | None = None
+) -> tuple[float, float | None]:
+    from registry.units import parse_value
+
+    parsed = parse_value(text, quantity, field=field_name, default_unit=unit or None)
+    return parsed.value, parsed.error
+
+
+def parse_range(text: str, quantity: str, field_name: str) -> Range:
+    """``>= 22 kcal/mol``, ``80-100 kJ/mol``, ``95 ± 5 kJ/mol`` … as a :class:`Range` (canonical units)."""
+    raw = (text or "").strip().translate(_MINUS)
+    if not raw:
+        raise UnitError(field_name, text or "", "empty range")
+    compare = _COMPARE.match(raw)
+    if compare:
+        op, rest = compare.groups()
+        value, _ = _value(rest, quantity, field_name)
+        if op in (">=", "=>", "≥"):
+            return Range(value, None, True, True, raw)
+        if op == ">":
+            return Range(value, None, False, True, raw)
+        if op in ("<=", "=<", "≤"):
+            return Range(None, value, True, True, raw)
+        return Range(None, value, True, False, raw)
+    if _PLUSMINUS.search(raw):
+        value, error = _value(raw, quantity, field_name)
+        if error is None:  # pragma: no cover - the regex saw a ±
+            raise UnitError(field_name, raw, "cannot read the ± part")
+        return Range(value - error, value + error, True, True, raw)
+    between = _BETWEEN.match(raw)
+    if between:
+        unit = between["unit"] or between["lo_unit"]
+        lo, _ = _value(
+            f"{between['lo']} {between['lo_unit'] or ''}".strip(), quantity, field_name, unit
+        )
+        hi, _ = _value(
+            f"{between['hi']} {between['unit'] or ''}".strip(), quantity, field_name, unit
+        )
+        if lo > hi:
+            raise UnitError(field_name, raw, "the lower bound is above the upper bound")
+        return Range(lo, hi, True, True, raw)
+    raise UnitError(
+        field_name,
+        raw,
+        "write a comparison or a range, e.g. '>= 22 kcal/mol', '80-100 kJ/mol' or '95 ± 5 kJ/mol'",
+    )
+
+
+def solvent_class(text: str) -> str | None:
+    key = re.sub(r"[^a-z]", "", text.lower())
+    return _CLASS_ALIASES.get(key)
+
+
+@dataclass
+class Filters:
+    """What the user asked to keep; texts as given, parsed on construction by :func:`make_filters`."""
+
+    barrier: Range | None = None
+    temperature: Range | None = None
+    solvents: list[str] = field(default_factory=list)
+    method: str | None = None
+    process: str | None = None
+    nucleus: str | None = None
+    status: str | None = None
+    reference: str | None = None
+    include_retracted: bool = False
+
+    def describe(self) -> dict[str, Any]:
+        out: dict[str, Any] = {}
+        if self.barrier:
+            out["barrier"] = self.barrier.text
+        if self.temperature:
+            out["temperature"] = self.temperature.text
+        for key in ("method", "process", "nucleus", "status", "reference"):
+            if getattr(self, key):
+                out[key] = getattr(self, key)
+        if self.solvents:
+            out["solvent"] = list(self.solvents)
+        if self.include_retracted:
+            out["include_retracted"] = True
+        return out
+
+
+def make_filters(
+    *,
+    barrier: str | None = None,
+    temperature: str | None = None,
+    solvent: list[str] | str | None = None,
+    method: str | None = None,
+    process: str | None = None,
+    nucleus: str | None = None,
+    status: str | None = None,
+    reference: str | None = None,
+    include_retracted: bool = False,
+) -> Filters:
+    """Check and normalize filter texts (vocabulary names, units) before any query runs."""
+    from registry import vocab
+    from registry.entry import normalize_nucleus
+
+    solvents: list[str] = []
+    for item in [solvent] if isinstance(solvent, str) else solvent or []:
+        solvents += [s.strip() for s in item.split(",") if s.strip()]
+    return Filters(
+        barrier=parse_range(barrier, "energy", "--barrier") if barrier else None,
+        temperature=parse_range(temperature, "temperature", "--temperature")
+        if temperature
+        else None,
+        solvents=solvents,
+        method=vocab.method_name(method, field="--method") if method else None,
+        process=process.strip() if process else None,
+        nucleus=normalize_nucleus(nucleus) if nucleus else None,
+        status=vocab.status_name(status, field="--status") if status else None,
+        reference=reference.strip() if reference else None,
+        include_retracted=include_retracted,
+    )
+
+
+def conditions(conn: Any, filters: Filters) -> list[Any]:
+    """SQL conditions on (measurement, compound, process) for these filters."""
+    from sqlalchemy import or_
+
+    from registry import vocab
+    from registry.models import Measurement, Process, Solvent
+    from registry.writer import known_process_kinds, solvent_index
+
+    out: list[Any] = []
+    if filters.barrier:
+        out.append(filters.barrier.condition(Measurement.dg_kj_mol))
+    if filters.temperature:
+        out.append(filters.temperature.condition(Measurement.dg_t_k))
+    if filters.method:
+        out.append(Measurement.method == filters.method)
+    if filters.process:
+        kind = vocab.process_kind_name(filters.process, known_process_kinds(conn), "--process")
+        out.append(Process.kind == kind)
+    if filters.nucleus:
+        out.append(Process.nucleus == filters.nucleus)
+    if filters.status:
+        out.append(Measurement.status == filters.status)
+    elif not filters.include_retracted:
+        out.append(Measurement.status != "retracted")
+    if filters.reference:
+        out.append(Measurement.reference.ilike(f"%{filters.reference}%"))
+    if filters.solvents:
+        index = solvent_index(conn)
+        names = {
+            name: sid
+            for sid, name in conn.execute(
+                Solvent.__table__.select().with_only_columns(Solvent.id, Solvent.name)
+            )
+        }
+        ids: set[int] = set()
+        texts: list[str] = []
+        for text in filters.solvents:
+            cls = solvent_class(text)
+            if cls:
+                ids |= {names[n] for n in SOLVENT_CLASSES[cls] if n in names}
+            elif vocab.solvent_key(text) in index:
+                ids.add(index[vocab.solvent_key(text)])
+            else:
+                texts.append(text)
+        parts = [Measurement.solvent_id.in_(sorted(ids))] if ids else []
+        parts += [Measurement.solvent_text.ilike(f"%{t}%") for t in texts]
+        if not parts:  # pragma: no cover - solvents given but nothing to match
+            raise UsageError("--solvent: nothing to match")
+        out.append(or_(*parts))
+    return out
