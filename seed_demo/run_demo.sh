@@ -12,6 +12,9 @@ step_findings() { echo; echo "\$ fluxledger $*"; fluxledger "$@" || [ $? -eq 1 ]
 
 step init
 # --- import step ---
+step import seed_demo/halvorsen_barriers.xlsx
+step import seed_demo/literature_barriers.csv
+step import seed_demo/halvorsen_barriers.xlsx   # the same file again: nothing added
 step add --method coalescence --compound DEMO-ADD-1 --name "N,N-dimethylacetamide" \
   --smiles "CC(=O)N(C)C" --process bond-rotation --nucleus 1H --solvent CDCl3 --mhz 400 \
   --tc "70 °C" --dnu "0.12 ppm" --dg "18.1 kcal/mol" --reference "demo: invented value"
