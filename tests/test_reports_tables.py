@@ -1,0 +1,193 @@
+"""Tables for papers: units, uncertainty notation, condition notes, escaping, the CLI."""
+
+from __future__ import annotations
+
+import pytest
+
+from registry.errors import UnitError, UsageError
+from registry.reports.tables import render_latex, render_markdown, table_rows, table_units
+
+ROWS = [
+    {
+        "id": 1,
+        "compound": "DMA-1",
+        "process": "bond-rotation",
+        "method": "coalescence",
+        "solvent": "CDCl3",
+        "dg_kj_mol": 75.7,
+        "dg_err_kj_mol": 0.4,
+        "dg_t_k": 343.15,
+        "reference": "J. Demo 2020, 1 & 2",
+    },
+    {
+        "id": 2,
+        "compound": "Bi_2",
+        "process": "bond-rotation",
+        "method": "lineshape",
+        "solvent": "toluene-d8",
+        "dg_kj_mol": 62.34,
+        "dg_err_kj_mol": 0.14,
+        "dg_t_k": 298.15,
+        "dh_kj_mol": 55.1,
+        "dh_err_kj_mol": 1.2,
+        "ds_j_mol_k": -24.3,
+        "ds_err_j_mol_k": 3.3,
+    },
+    {
+        "id": 3,
+        "compound": "DMA-2",
+        "process": "bond-rotation",
+        "method": "coalescence",
+        "solvent": "CDCl3",
+        "dg_kj_mol": 70.0,
+        "dg_t_k": 320.0,
+        "reference": "J. Demo 2020, 1 & 2",
+    },
+]
+
+
+def _body(markdown: str) -> list[list[str]]:
+    lines = [ln for ln in markdown.splitlines() if ln.startswith("|")]
+    return [[c.strip() for c in ln.strip("|").split("|")] for ln in lines]
+
+
+def test_markdown_table_in_kj() -> None:
+    text = render_markdown(ROWS)
+    rows = _body(text)
+    assert rows[0] == [
+        "Compound",
+        "Process",
+        "ΔG‡ / kJ mol⁻¹",
+        "T / K",
+        "ΔH‡ / kJ mol⁻¹",
+        "ΔS‡ / J mol⁻¹ K⁻¹",
+        "Ref.",
+    ]
+    assert rows[2] == ["DMA-1", "bond-rotation", "75.7(4) ᵃ", "343.15", "", "", "1"]
+    assert rows[3] == [
+        "Bi\\_2",
+        "bond-rotation",
+        "62.34(14) ᵇ",
+        "298.15",
+        "55.1(12)",
+        "−24(3)",
+        "",
+    ]
+    # the same (method, solvent) gets the same letter; the same reference the same number
+    assert rows[4] == ["DMA-2", "bond-rotation", "70.0 ᵃ", "320", "", "", "1"]
+    assert "ᵃ Coalescence temperature of two (or more) signals; in CDCl₃." in text
+    assert "ᵇ Full line-shape fit of variable-temperature spectra; in toluene-d₈." in text
+    assert "[1] J. Demo 2020, 1 & 2" in text
+    assert text.count("[1]") == 1
+
+
+def test_kcal_uses_the_thermochemical_calorie() -> None:
+    # 1 cal = 4.184 J exactly (NIST SP 811 (2008) B.8): 75.7 kJ/mol = 18.0927… kcal/mol,
+    # 0.4 kJ/mol = 0.0956… kcal/mol → rounds up to 0.10, which keeps two digits
+    text = render_markdown(ROWS, energy_unit="kcal/mol", uncertainty="pm")
+    rows = _body(text)
+    assert rows[0][2] == "ΔG‡ / kcal mol⁻¹"
+    assert rows[0][5] == "ΔS‡ / cal mol⁻¹ K⁻¹"
+    assert rows[2][2] == "18.09 ± 0.10 ᵃ"
+    # −24.3 J/(mol·K) / 4.184 = −5.808 cal/(mol·K), ±3.3/4.184 = 0.79 → one digit
+    assert rows[3][5] == "−5.8 ± 0.8"
+    assert "Uncertainties in parentheses" not in text
+
+
+def test_columns_without_values_are_dropped() -> None:
+    text = render_markdown([ROWS[0]])
+    assert _body(text)[0] == ["Compound", "Process", "ΔG‡ / kJ mol⁻¹", "T / K", "Ref."]
+
+
+def test_latex_table_escapes_and_sets_numbers_in_math() -> None:
+    rows = [dict(ROWS[0], compound="A&B_1%", reference="50% {yield} #3 ~x^2 \\")]
+    text = render_latex(rows, caption="Barriers of A & B")
+    assert r"\begin{tabular}{llrrr}" in text
+    assert r"A\&B\_1\% & bond-rotation & $75.7(4)$\textsuperscript{a} & $343.15$ & $1$ \\" in text
+    assert r"\caption{Barriers of A \& B}" in text
+    assert r"[1]\,50\% \{yield\} \#3 \textasciitilde{}x\textasciicircum{}2 \textbackslash{}" in text
+    assert (
+        r"\textsuperscript{a}\,Coalescence temperature of two (or more) signals; in CDCl$_{3}$."
+        in text
+    )
+    assert text.count(r"\begin{table}") == 1 and text.rstrip().endswith(r"\end{table}")
+
+
+def test_latex_pm_and_negative_values() -> None:
+    text = render_latex([ROWS[1]], uncertainty="pm")
+    assert r"$62.34 \pm 0.14$\textsuperscript{a}" in text
+    assert r"$-24 \pm 3$" in text
+    assert r"toluene-$d_{8}$" in text
+
+
+def test_markdown_escapes_table_syntax() -> None:
+    text = render_markdown([dict(ROWS[0], compound="a|b *c*", process="<x>")])
+    assert r"a\|b \*c\*" in text and r"\<x\>" in text
+
+
+def test_errors() -> None:
+    with pytest.raises(UsageError, match="no measurements"):
+        render_markdown([])
+    with pytest.raises(UnitError, match="--energy-unit"):
+        table_units("K")
+    with pytest.raises(UnitError):
+        render_latex(ROWS, energy_unit="parsec")
+
+
+def test_table_rows_from_the_registry(database) -> None:  # type: ignore[no-untyped-def]
+    from registry import api
+    from registry.entry import EntryInput
+
+    mid = api.add_measurement(
+        database,
+        EntryInput(
+            method="lineshape",
+            compound="DEMO-T1",
+            smiles="CC(=O)N(C)C",
+            process="bond-rotation",
+            solvent="CDCl3",
+            dg="74.0 ± 0.3 kJ/mol",
+            dg_t="298.15 K",
+            dh="70.1 ± 1.1 kJ/mol",
+            ds="-13 ± 4 J/(mol*K)",
+        ),
+    )
+    rows = table_rows(database, ids=[mid])
+    assert rows[0]["dh_err_kj_mol"] == pytest.approx(1.1)
+    assert rows[0]["ds_err_j_mol_k"] == pytest.approx(4.0)
+    body = _body(render_markdown(rows))
+    assert body[2][2:6] == ["74.0(3) ᵃ", "298.15", "70.1(11)", "−13(4)"]
+
+
+def test_table_command(cli) -> None:  # type: ignore[no-untyped-def]
+    added = cli(
+        "add",
+        "--method",
+        "coalescence",
+        "--compound",
+        "DEMO-T2",
+        "--smiles",
+        "CN(C)C=O",
+        "--process",
+        "bond-rotation",
+        "--solvent",
+        "CDCl3",
+        "--mhz",
+        "400",
+        "--tc",
+        "120 °C",
+        "--dnu",
+        "25 Hz",
+        "--dg",
+        "20.9 ± 0.2 kcal/mol",
+    )
+    assert added.exit_code == 0, added.stderr
+    result = cli("table", "--format", "latex", "--energy-unit", "kcal/mol")
+    assert result.exit_code == 0, result.stderr
+    assert r"DEMO-T2 & bond-rotation & $20.9(2)$\textsuperscript{a} & $393.15$ \\" in result.stdout
+    bad = cli("table", "--format", "html")
+    assert bad.exit_code == 2
+    assert bad.stderr.strip() == "error: --format 'html': use latex or markdown"
+    as_json = cli("table", "--json")
+    assert as_json.exit_code == 0
+    assert '"format": "markdown"' in as_json.stdout
