@@ -311,7 +311,10 @@ def _decode_affn(line: str, source: str, lineno: int) -> list[float]:
             continue
         m = _AFFN_RE.match(line, pos)
         if not m:
-            raise FileFormatError(source, f"line {lineno}: cannot read {line[pos:]!r} as a number")
+            token = re.split(r"[\s,;]", line[pos:], maxsplit=1)[0]
+            if token.startswith("?"):
+                raise FileFormatError(source, f"line {lineno}: missing value '?' is not supported")
+            raise FileFormatError(source, f"line {lineno}: cannot read {token!r} as a number")
         out.append(float(m.group(0)))
         pos = m.end()
     return out

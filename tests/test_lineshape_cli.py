@@ -1,0 +1,202 @@
+"""``fluxledger lineshape``: exit codes, exact messages, --json, plots and stored rate points."""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from registry.lineshape.eyring import eyring_ln_rate
+from registry.lineshape.spectrum import read_spectrum
+
+SITES = "3.15,2.85"
+TEMPS = (270.0, 285.0, 300.0)
+DH, DS = 60.0, 5.0  # invented demo barrier
+
+
+def _simulate(cli, path: Path, t_k: float, seed: int) -> None:  # type: ignore[no-untyped-def]
+    k = math.exp(eyring_ln_rate(t_k, DH, DS))
+    result = cli(
+        "lineshape", "simulate", "--sites", SITES, "--field", "400.13", "--k", f"{k:.6g}",
+        "--width", "1.2", "--points", "4096", "--noise", "0.01", "--seed", str(seed),
+        "--temperature", f"{t_k} K", "--out", str(path),
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+
+
+@pytest.fixture
+def vt_files(cli, tmp_path: Path) -> list[Path]:  # type: ignore[no-untyped-def]
+    files = []
+    for i, t in enumerate(TEMPS):
+        path = tmp_path / f"vt_{t:.0f}.csv"
+        _simulate(cli, path, t, seed=i + 1)
+        files.append(path)
+    return files
+
+
+def test_simulate_writes_a_readable_spectrum(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    out = tmp_path / "s.csv"
+    result = cli(
+        "lineshape", "simulate", "--sites", "-60,60 Hz", "--k", "266", "--points", "2001",
+        "--width", "1 Hz", "--window", "-200,200 Hz", "--out", str(out), "--json",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert data["k_per_s"] == 266.0
+    assert data["sites_hz"] == [-60.0, 60.0]
+    assert data["populations"] == [0.5, 0.5]
+    spec = read_spectrum(out)
+    assert spec.x_unit == "Hz" and len(spec.x) == 2001
+    # unit area: the trapezoid over ±200 Hz misses only the Lorentzian tails (< 1 %)
+    area = float(((spec.intensity[1:] + spec.intensity[:-1]) / 2 * (spec.x[1] - spec.x[0])).sum())
+    assert area == pytest.approx(1.0, abs=0.01)
+    plain = cli("lineshape", "simulate", "--sites", "-60,60 Hz", "--k", "266", "--out", str(out))
+    assert plain.stdout == (f"wrote {out}: 16384 points, -120 … 120 Hz, k = 266 s⁻¹, width 1 Hz\n")
+
+
+def test_fit_json_recovers_the_rates(cli, vt_files: list[Path]) -> None:  # type: ignore[no-untyped-def]
+    result = cli(
+        "lineshape", "fit", *map(str, vt_files), "--sites", SITES, "--width", "1.2",
+        "--fix-width", "--json",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert data["observe_mhz"] == pytest.approx(400.13)
+    for fit, t in zip(data["fits"], TEMPS, strict=True):
+        k_true = math.exp(eyring_ln_rate(t, DH, DS))
+        assert fit["t_k"] == t
+        assert abs(fit["k_per_s"] - k_true) < 3 * fit["k_err_per_s"]
+    line = data["eyring_line"]
+    assert abs(line["dh_kj_mol"] - DH) < 3 * line["dh_err_kj_mol"]
+    assert [p["t_text"] for p in data["rate_points"]] == ["270.00 K", "285.00 K", "300.00 K"]
+    assert data["global"] is None and data["stored_rate_points"] is None
+    assert data["cautions"] == []
+
+
+def test_fit_table_and_global(cli, vt_files: list[Path]) -> None:  # type: ignore[no-untyped-def]
+    result = cli(
+        "lineshape", "fit", *map(str, vt_files), "--sites", SITES, "--width", "1.2",
+        "--fix-width", "--global",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    lines = result.stdout.splitlines()
+    assert lines[0].split() == ["file", "T/K", "k/s-1", "±k", "w/Hz", "offset/Hz", "rms", "note"]
+    assert [ln.split()[0] for ln in lines[2:5]] == ["vt_270.csv", "vt_285.csv", "vt_300.csv"]
+    assert lines[5].startswith("Eyring line (weighted, 3 rates): ΔH‡ = ")
+    assert lines[6].startswith("global fit (3 spectra, χ²/dof = ")
+    data = json.loads(
+        cli("lineshape", "fit", *map(str, vt_files), "--sites", SITES, "--width", "1.2",
+            "--fix-width", "--global", "--json").stdout
+    )  # fmt: skip
+    g = data["global"]
+    assert abs(g["dh_kj_mol"] - DH) < 3 * g["dh_err_kj_mol"]
+    assert len(g["fits"]) == 3 and g["fits"][0]["method"] == "global Eyring"
+
+
+def test_plots_are_png_files(cli, vt_files: list[Path], tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    out = tmp_path / "plots"
+    result = cli(
+        "lineshape", "fit", *map(str, vt_files[:2]), "--sites", SITES, "--plots", str(out),
+        "--json",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    written = [Path(p) for p in json.loads(result.stdout)["plots"]]
+    assert sorted(p.name for p in written) == ["eyring.png", "vt_270_fit.png", "vt_285_fit.png"]
+    for p in written:
+        assert p.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_rates_are_stored_in_a_measurement(cli, vt_files: list[Path]) -> None:  # type: ignore[no-untyped-def]
+    added = cli(
+        "add", "--method", "lineshape", "--smiles", "CN(C)C=O", "--compound", "DMF-demo",
+        "--process", "amide rotation", "--nucleus", "1H", "--solvent", "CDCl3",
+        "--mhz", "400.13", "--dg", "58.5 kJ/mol", "--dg-t", "298.15 K",
+    )  # fmt: skip
+    assert added.exit_code == 0, added.stderr
+    result = cli(
+        "lineshape", "fit", *map(str, vt_files), "--sites", SITES, "--width", "1.2",
+        "--fix-width", "--measurement", "1",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    assert result.stdout.splitlines()[-1] == "stored 3 rate points in measurement 1"
+    shown = json.loads(cli("show", "1", "--json").stdout)
+    assert [r["t_k"] for r in shown["rate_points"]] == list(TEMPS)
+    assert all(r["k_text"].endswith(" s-1") and "±" in r["k_text"] for r in shown["rate_points"])
+    missing = cli("lineshape", "fit", str(vt_files[0]), "--sites", SITES, "--measurement", "9")
+    assert missing.exit_code == 1
+    assert missing.stderr == "error: no measurement with id 9\n"
+
+
+@pytest.mark.parametrize(
+    ("args", "code", "message"),
+    [
+        (["--temps", "250"], 2, "error: --temps gives 1 temperatures for 3 files\n"),
+        (["--scheme", "star"], 2, "error: --scheme must be one of mutual, cycle, not 'star'\n"),
+        (["--populations", "1,2,3"], 2, "error: --populations gives 3 values for 2 sites\n"),
+        (["--width", "-1"], 1, "error: --width: cannot read '-1': must be > 0\n"),
+        (["--x-unit", "cm"], 2, "error: --x-unit must be 'ppm' or 'Hz', not 'cm'\n"),
+    ],
+)
+def test_user_errors(cli, vt_files: list[Path], args: list[str], code: int, message: str) -> None:  # type: ignore[no-untyped-def]
+    result = cli("lineshape", "fit", *map(str, vt_files), "--sites", SITES, *args)
+    assert result.exit_code == code
+    assert result.stderr == message
+    assert result.stdout == ""
+
+
+def test_file_problems_are_data_errors(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    bad = tmp_path / "bad.csv"
+    bad.write_text("shift_ppm,intensity\n1.0,2\n1.1,x\n")
+    result = cli("lineshape", "fit", str(bad), "--sites", "1.0,1.1", "--field", "400")
+    assert result.exit_code == 1
+    assert result.stderr == f"error: {bad}: line 3: cannot read 'x' as a number\n"
+    nofield = tmp_path / "nofield.csv"
+    nofield.write_text("shift_ppm,intensity\n1.0,2\n1.1,3\n")
+    result = cli("lineshape", "fit", str(nofield), "--sites", "1.0,1.1")
+    assert result.exit_code == 2
+    assert (
+        result.stderr == "error: --sites is in ppm: give the spectrometer frequency with --field\n"
+    )
+    result = cli(
+        "lineshape", "fit", str(nofield), "--sites", "1.0,1.1", "--field", "400", "--global"
+    )
+    assert result.exit_code == 2
+    assert result.stderr == (
+        f"error: {nofield}: no temperature in the file; give all of them with --temps\n"
+    )
+    result = cli("lineshape", "fit", str(nofield), "--sites", "1.0,1.1", "--field", "400")
+    assert result.exit_code == 1
+    assert result.stderr == f"error: {nofield}: 2 points are too few to fit 6 parameters\n"
+
+
+def test_global_fit_needs_two_temperatures(cli, vt_files: list[Path]) -> None:  # type: ignore[no-untyped-def]
+    result = cli("lineshape", "fit", str(vt_files[0]), "--sites", SITES, "--global")
+    assert result.exit_code == 1
+    assert result.stderr == "error: global fit: needs spectra at two or more temperatures\n"
+
+
+def test_sub_app_alone_prints_clean_errors(tmp_path: Path) -> None:
+    from registry.cli.lineshape import app
+
+    result = CliRunner().invoke(app, ["fit", str(tmp_path / "none.csv"), "--sites", "1,2"])
+    assert result.exit_code == 1
+    assert result.stderr == f"error: {tmp_path / 'none.csv'}: no such file\n"
+
+
+def test_installed_command(tmp_path: Path) -> None:
+    exe = Path(sys.executable).with_name("fluxledger")
+    assert exe.exists(), "the package must be installed (make install)"
+    env = {**os.environ, "FLUXLEDGER_DB": str(tmp_path / "r.sqlite")}
+    out = tmp_path / "x.csv"
+    run = subprocess.run(
+        [str(exe), "lineshape", "simulate", "--sites", "1,2", "--k", "5", "--out", str(out)],
+        capture_output=True, text=True, env=env, check=False,
+    )  # fmt: skip
+    assert run.returncode == 2
+    assert run.stderr == "error: --sites is in ppm: give the spectrometer frequency with --field\n"
