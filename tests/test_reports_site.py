@@ -6,6 +6,7 @@ check the files themselves. Demo data are invented values on real, public struct
 
 from __future__ import annotations
 
+import html
 import math
 import re
 from datetime import UTC, datetime
@@ -294,3 +295,33 @@ def test_report_of_empty_registry(database, tmp_path) -> None:  # type: ignore[n
     assert result.measurements == 0
     text = (tmp_path / "empty" / "index.html").read_text(encoding="utf-8")
     assert '<table id="measurements"' in text
+
+
+def test_finding_of_a_known_rule_says_what_the_rule_checks(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
+    validation = pytest.importorskip("registry.validation")
+    rule = validation.RULES[0]
+    mid = api.add_measurement(
+        database,
+        EntryInput(method="coalescence", compound="DEMO-R", smiles="CC(=O)N(C)C", dg="70 kJ/mol"),
+    )
+
+    def finding(conn) -> None:  # type: ignore[no-untyped-def]
+        conn.execute(
+            insert(ValidationFinding),
+            [
+                {
+                    "measurement_id": mid,
+                    "rule_id": rule.id,
+                    "rule_version": rule.version,
+                    "severity": rule.severity,
+                    "message": "demo finding",
+                    "found_at": datetime.now(UTC),
+                }
+            ],
+        )
+
+    database.write(finding)
+    site.build_report(database, tmp_path / "r", plots=False)
+    compound_id = api.get_measurement(database, mid)["compound"]["id"]
+    page = (tmp_path / "r" / "compounds" / f"c{compound_id}.html").read_text(encoding="utf-8")
+    assert f"What this rule checks: {html.escape(rule.title)}" in page

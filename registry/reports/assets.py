@@ -78,7 +78,8 @@ ul.findings li { border-left: 3px solid var(--rule); padding: 4px 10px; margin: 
 ul.findings li.error { border-color: var(--warn); }
 ul.findings li.warning { border-color: #d6a648; }
 figure.plot { margin: 10px 0 0; }
-figure.plot img { max-width: 640px; width: 100%; border: 1px solid var(--rule); border-radius: 6px; }
+figure.plot img { max-width: 640px; max-height: 460px; width: auto; height: auto;
+  border: 1px solid var(--rule); border-radius: 6px; }
 figure.plot figcaption { font-size: 12.5px; color: var(--muted); }
 #page-errors { background: #f6dcd7; color: var(--warn); padding: 8px 12px; white-space: pre-wrap;
   border: 1px solid #d59a90; margin: 10px 28px 0; }

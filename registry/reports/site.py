@@ -55,6 +55,14 @@ def _num(value: Any, digits: int = 1) -> str:
     return f"{float(value):.{digits}f}"
 
 
+def _kelvin(value: Any) -> str:
+    """A temperature as written in papers: 298.15, 343.15, 320 (no float noise, no '.0')."""
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return ""
+    text = format_uncertain(float(value), None, default_decimals=2)
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
 def _energy(value: Any, err: Any) -> str:
     if value is None:
         return ""
@@ -139,7 +147,7 @@ def _index_row(m: Mapping[str, Any]) -> str:
         f"<td>{_e(m.get('solvent'))}</td>",
         f'<td class="num" data-v="{_num(m.get("dg_kj_mol"), 4)}">'
         f"{_e(_energy(m.get('dg_kj_mol'), m.get('dg_err_kj_mol')))}</td>",
-        f'<td class="num" data-v="{_num(m.get("dg_t_k"), 3)}">{_num(m.get("dg_t_k"))}</td>',
+        f'<td class="num" data-v="{_num(m.get("dg_t_k"), 3)}">{_kelvin(m.get("dg_t_k"))}</td>',
         f"<td>{_status(m.get('status'))}</td>",
         f'<td class="num" data-v="{len(open_findings)}">'
         + (f"{len(open_findings)}" if open_findings else "")
@@ -201,27 +209,19 @@ status, reference).</p>
 
 
 def _rule_explanation(rule_id: str) -> str | None:
-    """What a validation rule checks, when :mod:`registry.validation` describes its rules."""
+    """What a validation rule checks: its title and docstring from :mod:`registry.validation`."""
     try:
-        from registry import validation
-    except ImportError:
+        from registry.validation import rule_by_id
+    except ImportError:  # the validation package is optional for the report
         return None
-    explain = getattr(validation, "explain", None)
-    if callable(explain):
-        try:
-            text = explain(rule_id)
-        except Exception:  # an unknown rule id must not break the report
-            text = None
-        if text:
-            return str(text)
-    rules = getattr(validation, "RULES", None)
-    if isinstance(rules, Mapping) and rule_id in rules:
-        rule = rules[rule_id]
-        for attr in ("explanation", "description", "__doc__"):
-            text = rule.get(attr) if isinstance(rule, Mapping) else getattr(rule, attr, None)
-            if text:
-                return " ".join(str(text).split())
-    return None
+    rule = rule_by_id(rule_id)
+    if rule is None:
+        return None
+    title = str(getattr(rule, "title", "") or "").strip()
+    doc = " ".join((type(rule).__doc__ or "").split())
+    if title and doc:
+        return f"{title}. {doc}"
+    return title or doc or None
 
 
 def _finding_item(f: Mapping[str, Any]) -> str:
@@ -265,7 +265,7 @@ def _values_table(m: Mapping[str, Any]) -> str:
             rows.append(f"<tr><th scope='row'>{label}</th><td>{_e(value)}{rep}</td></tr>")
 
     if m.get("dg_kj_mol") is not None:
-        at = f" at {_num(m.get('dg_t_k'))} K" if m.get("dg_t_k") is not None else ""
+        at = f" at {_kelvin(m.get('dg_t_k'))} K" if m.get("dg_t_k") is not None else ""
         add(
             "ΔG‡",
             _energy(m["dg_kj_mol"], m.get("dg_err_kj_mol")) + " kJ/mol" + at,
@@ -286,7 +286,7 @@ def _values_table(m: Mapping[str, Any]) -> str:
         pops = f", populations {co['population_text']}" if co.get("population_text") else ""
         add(
             "Coalescence",
-            f"Tc {_num(co['tc_k'])} K, Δν {_num(co['dnu_hz'], 2)} Hz{extra}{pops}",
+            f"Tc {_kelvin(co['tc_k'])} K, Δν {_num(co['dnu_hz'], 2)} Hz{extra}{pops}",
             f"{co.get('tc_text')}; {co.get('dnu_text')}",
         )
     if m.get("reference"):
