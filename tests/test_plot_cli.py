@@ -162,3 +162,25 @@ def test_report_command(cli, filled, tmp_path: Path) -> None:  # type: ignore[no
     as_json = json.loads(cli("report", "-o", str(out), "--json", "--no-plots").stdout)
     assert as_json["eyring_plots"] == 0 and as_json["compound_pages"] == 2
     assert not (out / "plots" / "overview.svg").exists()  # rebuilt without plots
+
+
+def test_overview_by_motif(cli, filled, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    pytest.importorskip("registry.search")
+    _add(
+        cli,
+        "--method", "coalescence", "--compound", "DEMO-P3", "--smiles", "C1CCCCC1",
+        "--process", "ring-inversion", "--solvent", "CD2Cl2", "--mhz", "400",
+        "--tc", "-60 °C", "--dnu", "0.5 ppm", "--dg", "43 kJ/mol",
+    )  # fmt: skip
+    result = cli("plot", "overview", "--by", "motif", "-o", str(tmp_path / "m.svg"), "--json")
+    assert result.exit_code == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert data["grouped_by"] == "structural motif"
+    groups = {g["group"]: g["n"] for g in data["groups"]}
+    # N,N-dimethylacetamide and N,N-dimethylformamide are both amides; every barrier is
+    # somewhere, a compound in no motif under "(no motif)"
+    assert groups.get("amide") == 2
+    assert sum(n for g, n in groups.items() if g in ("amide", "(no motif)")) >= 2
+    assert max(groups.values()) <= 3
+    svg = (tmp_path / "m.svg").read_text(encoding="utf-8")
+    assert "structural motif" in svg

@@ -27,6 +27,9 @@ from registry.models import (
 )
 from registry.store import Database
 
+#: the group of compounds that match no motif
+NO_MOTIF = "(no motif)"
+
 
 @dataclass(frozen=True)
 class RateSeries:
@@ -166,11 +169,11 @@ def barriers_by_motif(
     """ΔG‡ grouped by structural motif when :mod:`registry.search` offers motif matching.
 
     Returns None when it does not (the caller falls back to process kinds). A compound that
-    matches several motifs counts in each of them.
+    matches several motifs counts in each of them; one that matches none is in ``(no motif)``.
     """
     try:
         from registry import search  # written by another part of the project
-    except ImportError:
+    except ImportError:  # structure search is a separate part of the project
         return None
     matcher = getattr(search, "motif_matches", None)
     if matcher is None:
@@ -189,6 +192,8 @@ def barriers_by_motif(
         motif: [dg for cid in ids for dg in by_compound.get(cid, [])]
         for motif, ids in matches.items()
     }
+    matched = {cid for ids in matches.values() for cid in ids}
+    groups[NO_MOTIF] = [dg for cid, dgs in by_compound.items() if cid not in matched for dg in dgs]
     groups = {k: v for k, v in groups.items() if v}
     return dict(sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])))
 

@@ -16,6 +16,7 @@ import math
 import re
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
+from pathlib import Path
 from typing import Any
 
 from registry.errors import UsageError
@@ -372,3 +373,47 @@ def render_latex(
         lines += [f"  {note}\\\\" for note in notes[:-1]] + [f"  {notes[-1]}"]
     lines.append(r"\end{table}")
     return "\n".join(lines) + "\n"
+
+
+# --- files -----------------------------------------------------------------------------------
+
+#: table formats by name and by file suffix
+TABLE_FORMATS = {"latex": "latex", "tex": "latex", "markdown": "markdown", "md": "markdown"}
+
+
+def export_table(
+    database: Any,
+    output: str | Path,
+    fmt: str | None = None,
+    *,
+    energy_unit: str = "kJ/mol",
+    uncertainty: str = "paren",
+    caption: str | None = None,
+    **filters: Any,
+) -> dict[str, Any]:
+    """Write the measurements ``filters`` select as a LaTeX or Markdown table file.
+
+    ``fmt`` is latex/tex or markdown/md, or None to take it from the suffix (.tex, .md);
+    ``filters`` are those of :func:`registry.api.list_measurements`.
+    """
+    path = Path(output)
+    name = TABLE_FORMATS.get((fmt or path.suffix.lstrip(".")).lower())
+    if name is None:
+        raise UsageError(f"{path}: a table is written as latex (.tex) or markdown (.md)")
+    if uncertainty not in ("paren", "pm"):
+        raise UsageError(f"--uncertainty {uncertainty!r}: use paren (62.3(4)) or pm (62.3 ± 0.4)")
+    if not path.parent.exists():
+        raise UsageError(f"folder {path.parent} does not exist")
+    rows = table_rows(database, **filters)
+    if name == "latex":
+        text = render_latex(rows, energy_unit=energy_unit, uncertainty=uncertainty, caption=caption)
+    else:
+        text = render_markdown(rows, energy_unit=energy_unit, uncertainty=uncertainty)
+    path.write_text(text, encoding="utf-8")
+    return {
+        "file": str(path),
+        "format": name,
+        "measurements": len(rows),
+        "energy_unit": table_units(energy_unit).energy,
+        "uncertainty": uncertainty,
+    }
