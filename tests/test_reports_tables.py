@@ -191,3 +191,42 @@ def test_table_command(cli) -> None:  # type: ignore[no-untyped-def]
     as_json = cli("table", "--json")
     assert as_json.exit_code == 0
     assert '"format": "markdown"' in as_json.stdout
+
+
+def test_export_table_files(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from registry import api
+    from registry.entry import EntryInput
+    from registry.reports.tables import export_table
+
+    api.add_measurement(
+        database,
+        EntryInput(
+            method="coalescence",
+            compound="DEMO-T3",
+            smiles="CC(=O)N(C)C",
+            process="bond-rotation",
+            solvent="CDCl3",
+            dg="18.1 ± 0.2 kcal/mol",
+            dg_t="343.15 K",
+        ),
+    )
+    result = export_table(database, tmp_path / "t.tex", energy_unit="kcal/mol")
+    assert result == {
+        "file": str(tmp_path / "t.tex"),
+        "format": "latex",
+        "measurements": 1,
+        "energy_unit": "kcal/mol",
+        "uncertainty": "paren",
+    }
+    assert r"DEMO-T3 & bond-rotation & $18.1(2)$\textsuperscript{a} & $343.15$ \\" in (
+        tmp_path / "t.tex"
+    ).read_text(encoding="utf-8")
+    md = export_table(database, tmp_path / "t.txt", "md", uncertainty="pm", compound="T3")
+    assert md["format"] == "markdown"
+    assert "| DEMO-T3 | bond-rotation | 75.7 ± 0.8 ᵃ | 343.15 |" in (tmp_path / "t.txt").read_text(
+        encoding="utf-8"
+    )
+    with pytest.raises(UsageError, match=r"latex \(\.tex\) or markdown \(\.md\)"):
+        export_table(database, tmp_path / "t.csv")
+    with pytest.raises(UsageError, match="no measurements"):
+        export_table(database, tmp_path / "none.md", compound="nothing-like-this")
