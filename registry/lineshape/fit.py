@@ -24,7 +24,7 @@ residuals weighted by each spectrum's noise from its own fit.
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -40,7 +40,7 @@ from registry.lineshape.eyring import (
     ln_rate_from_dg_dh,
     parameters_from_dg_dh,
 )
-from registry.lineshape.simulate import ExchangeModel, Resolvent, evaluate, exchange_generator
+from registry.lineshape.simulate import ExchangeModel, Resolvent, evaluate
 
 FloatArray = NDArray[np.float64]
 
@@ -154,8 +154,7 @@ class _Shape:
         d = [1.0 / (iw - lam_m) for lam_m in lam]
         s_c = sum(a * dm for a, dm in zip(res.amplitudes, d, strict=True))
         d2a = sum(a * dm * dm for a, dm in zip(res.amplitudes, d, strict=True))
-        gen = exchange_generator(self.model.rate_matrix(k))
-        c = res.inverse @ gen @ res.vectors
+        c = res.inverse @ self.model.generator(k) @ res.vectors
         n = len(lam)
         dk_c = sum(
             (res.left[m] * c[m, q] * res.right[q]) * (d[m] * d[q])
@@ -196,11 +195,26 @@ class _Prepared:
     shape: _Shape
     t_k: float | None
     t_text: str | None
+    #: half the point spacing: a narrower line is not described by the sampled data
+    width_floor: float
 
-    @property
-    def width_floor(self) -> float:
-        """Half the point spacing: a narrower line is not described by the sampled data."""
-        return 0.5 * (self.freq[-1] - self.freq[0]) / (len(self.freq) - 1)
+    def thinned(self, stride: int) -> _Prepared:
+        """Every ``stride``-th point, same scaling and width floor (for the coarse stage)."""
+        if stride <= 1:
+            return self
+        freq = self.freq[::stride]
+        return _Prepared(
+            self.source,
+            freq,
+            self.y[::stride],
+            self.ynorm,
+            self.u[::stride],
+            self.half_span,
+            _Shape(self.shape.model, 2 * np.pi * freq),
+            self.t_k,
+            self.t_text,
+            self.width_floor,
+        )
 
     def width(self, theta_w: float) -> float:
         """w = floor + exp(θ): positive, and LM cannot chase it to zero where it has no grip."""
@@ -255,6 +269,7 @@ def _prepare(
         _Shape(model, 2 * np.pi * freq),
         t_k,
         t_text,
+        0.5 * (freq[-1] - freq[0]) / (len(freq) - 1),
     )
 
 
@@ -299,13 +314,18 @@ class _LinearPart:
         return coef, max(self.syy - float(coef @ rhs), 0.0)
 
 
+def _coarse_stride(prep: _Prepared, narrowest_width_hz: float) -> int:
+    """Thinning that keeps ≥ _GRID_POINTS points and ≥ 2 points per narrowest trial width."""
+    spacing = (prep.freq[-1] - prep.freq[0]) / (len(prep.freq) - 1)
+    return max(1, min(len(prep.freq) // _GRID_POINTS, int(narrowest_width_hz / (2 * spacing))))
+
+
 def _grid_start(
     prep: _Prepared, width_hz: float, fix_width: bool, k_guess: float | None
 ) -> list[tuple[float, float, FloatArray]]:
     """The best (k, w, [A, b₀, b₁]) of the grid, plus the best of another basin in k if any."""
     widths = [width_hz] if fix_width else [width_hz * f for f in _WIDTH_FACTORS]
-    spacing = (prep.freq[-1] - prep.freq[0]) / (len(prep.freq) - 1)
-    stride = max(1, min(len(prep.freq) // _GRID_POINTS, int(min(widths) / (2 * spacing))))
+    stride = _coarse_stride(prep, min(widths))
     freq = prep.freq[::stride]
     linear = _LinearPart(prep.y[::stride], prep.u[::stride])
     ks = _rate_grid(prep.shape.model, width_hz)
@@ -393,7 +413,8 @@ def fit_spectrum(
         raise LineShapeFitError(source, f"the intrinsic width must be > 0 Hz, got {width_hz}")
     n_par = 5 if fix_width else 6
     prep = _prepare(freq_hz, intensity, model, source, t_k, t_text, n_par)
-    ones = np.ones_like(prep.u)
+    widths = [width_hz] if fix_width else [width_hz * f for f in _WIDTH_FACTORS]
+    coarse = prep.thinned(_coarse_stride(prep, min(widths)))
 
     def unpack(theta: FloatArray) -> tuple[float, float, float, float, float, float]:
         """θ → k, w, δ, A, b₀, b₁."""
@@ -403,33 +424,44 @@ def fit_spectrum(
         ln_k, th_w, off, a, b0, b1 = theta
         return _exp(ln_k), prep.width(th_w), off, a, b0, b1
 
-    def residuals(theta: FloatArray) -> FloatArray:
-        k, w, off, a, b0, b1 = unpack(theta)
-        return a * prep.shape.value(k, w, off) + b0 + b1 * prep.u - prep.y
+    def problem(
+        p: _Prepared,
+    ) -> tuple[Callable[[FloatArray], FloatArray], Callable[[FloatArray], FloatArray]]:
+        ones = np.ones_like(p.u)
 
-    def jacobian(theta: FloatArray) -> FloatArray:
-        k, w, off, a, _b0, _b1 = unpack(theta)
-        s, d_lnk, d_w, d_off = prep.shape.derivatives(k, w, off)
-        cols = [a * d_lnk]
-        if not fix_width:
-            cols.append(a * (w - prep.width_floor) * d_w)
-        cols += [a * d_off, s, ones, prep.u]
-        return np.column_stack(cols)
+        def residuals(theta: FloatArray) -> FloatArray:
+            k, w, off, a, b0, b1 = unpack(theta)
+            return a * p.shape.value(k, w, off) + b0 + b1 * p.u - p.y
 
+        def jacobian(theta: FloatArray) -> FloatArray:
+            k, w, off, a, _b0, _b1 = unpack(theta)
+            s, d_lnk, d_w, d_off = p.shape.derivatives(k, w, off)
+            cols = [a * d_lnk]
+            if not fix_width:
+                cols.append(a * (w - p.width_floor) * d_w)
+            cols += [a * d_off, s, ones, p.u]
+            return np.column_stack(cols)
+
+        return residuals, jacobian
+
+    def minimise(p: _Prepared, theta0: FloatArray) -> OptimizeResult:
+        residuals, jacobian = problem(p)
+        return least_squares(
+            residuals, theta0, jac=jacobian, method="lm", x_scale="jac", max_nfev=_MAX_EVALUATIONS
+        )
+
+    # Each start is refined on the thinned copy (which already resolves every trial width);
+    # the best is then polished on all points, which takes a few steps from there.
     best = None
     for k0, w0, coef in _grid_start(prep, width_hz, fix_width, k_guess):
         theta0 = [math.log(k0)] + ([] if fix_width else [prep.theta_w(w0)]) + [0.0, *coef]
-        result = least_squares(
-            residuals,
-            np.asarray(theta0),
-            jac=jacobian,
-            method="lm",
-            x_scale="jac",
-            max_nfev=_MAX_EVALUATIONS,
-        )
+        result = minimise(coarse, np.asarray(theta0))
         if best is None or result.cost < best.cost:
             best = result
     assert best is not None
+    if coarse is not prep:
+        best = minimise(prep, best.x)
+    _, jacobian = problem(prep)
     theta = best.x
     k, w, off, a, b0, b1 = unpack(theta)
     ssr = float(best.fun @ best.fun)

@@ -28,6 +28,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -189,12 +190,20 @@ def resolvent(
     widths = np.broadcast_to(np.asarray(widths_hz, dtype=float), (n,))
     if (widths < 0).any():
         raise ValueError("intrinsic widths cannot be negative")
-    liou = np.diag(2j * np.pi * shifts - np.pi * widths) + gen
+    return _diagonalise(np.diag(2j * np.pi * shifts - np.pi * widths) + gen, pops)
+
+
+def _diagonalise(liou: NDArray[np.complex128], pops: FloatArray) -> Resolvent:
+    """Eigen-decomposition of L; falls back to direct solves where V is ill-conditioned."""
     lam, vec = np.linalg.eig(liou)
-    cond = np.linalg.cond(vec)
-    direct = not np.isfinite(cond) or cond > _MAX_CONDITION
-    inv = np.linalg.inv(vec) if not direct else np.full_like(vec, np.nan)
-    left = np.ones(n) @ vec
+    try:
+        inv = np.linalg.inv(vec)
+        # Frobenius-norm condition number: an upper bound of the 2-norm one, no SVD needed
+        cond = float(np.linalg.norm(vec) * np.linalg.norm(inv))
+    except np.linalg.LinAlgError:
+        inv, cond = np.full_like(vec, np.nan), math.inf
+    direct = not math.isfinite(cond) or cond > _MAX_CONDITION
+    left = vec.sum(axis=0)
     right = inv @ pops
     return Resolvent(lam, left * right, left, right, vec, inv, liou, pops, direct)
 
@@ -296,9 +305,26 @@ class ExchangeModel:
     def rate_matrix(self, k_per_s: float) -> FloatArray:
         return scheme_rate_matrix(k_per_s, self.populations, self.scheme)
 
+    @cached_property
+    def _unit_generator(self) -> FloatArray:
+        """Exchange generator at k = 1 s⁻¹; the generator at k is k times this (it is linear)."""
+        return exchange_generator(self.rate_matrix(1.0))
+
+    @cached_property
+    def _precession(self) -> NDArray[np.complex128]:
+        return np.diag(2j * np.pi * np.asarray(self.shifts_hz, dtype=float))
+
+    @cached_property
+    def _pops(self) -> FloatArray:
+        return _check_populations(self.populations)
+
+    def generator(self, k_per_s: float) -> FloatArray:
+        """The exchange generator X at rate k (see :func:`exchange_generator`)."""
+        return k_per_s * self._unit_generator
+
     def resolvent(self, k_per_s: float) -> Resolvent:
         """Diagonalised matrix for rate k with zero intrinsic width (width is added later)."""
-        return resolvent(self.shifts_hz, self.rate_matrix(k_per_s), self.populations, 0.0)
+        return _diagonalise(self._precession + self.generator(k_per_s), self._pops)
 
     def spectrum(
         self, freq_hz: ArrayLike, k_per_s: float, width_hz: float = 0.0, offset_hz: float = 0.0
