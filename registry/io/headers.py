@@ -168,14 +168,14 @@ def split_header(header: str) -> tuple[str, str | None]:
     m = _UNIT_BRACKETS.match(text)
     if m and m["name"]:
         return m["name"], m["unit"].strip() or None
+    m = re.match(r"^(?P<name>.+?)\s+in\s+(?P<unit>\S+)$", text)
+    if m:
+        return m["name"], m["unit"].strip()
     if "/" in text:
         name, unit = text.split("/", 1)
         if name.strip() and unit.strip():
             return name.strip(), unit.strip()
     m = re.match(r"^(?P<name>.+?)\s*,\s*(?P<unit>[^,]+)$", text)
-    if m:
-        return m["name"], m["unit"].strip()
-    m = re.match(r"^(?P<name>.+?)\s+in\s+(?P<unit>\S+)$", text)
     if m:
         return m["name"], m["unit"].strip()
     return text, None

@@ -1,0 +1,159 @@
+"""Header recognition, header units, mapping files, and the formula-injection guard."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+from registry.errors import RowProblem, UsageError
+from registry.io.cells import cell_text, neutralise, unneutralise
+from registry.io.headers import concept_key, guess_header, split_header
+from registry.io.mapping import MappingFile, load_mapping, plan_sheet
+
+
+@pytest.mark.parametrize(
+    ("header", "field", "unit"),
+    [
+        ("ΔG‡ (kcal/mol)", "dg", "kcal/mol"),
+        ("dG# / kJ mol-1", "dg", "kJ mol-1"),
+        ("Barrier [kJ/mol]", "dg", "kJ/mol"),
+        ("DeltaG", "dg", None),
+        ("Tc (°C)", "tc", "°C"),
+        ("T_c/K", "tc", "K"),
+        ("coalescence temp", "tc", None),
+        ("Δν (Hz)", "dnu", "Hz"),
+        ("dnu", "dnu", None),
+        ("delta nu (ppm)", "dnu", "ppm"),
+        ("J (Hz)", "j", "Hz"),
+        ("J_AB", "j", None),
+        ("field (MHz)", "field", "MHz"),
+        ("spectrometer", "field", None),
+        ("solvent", "solvent", None),
+        ("method", "method", None),
+        ("SMILES", "smiles", None),
+        ("compound", "compound", None),
+        ("label", "label", None),
+        ("ref", "reference", None),
+        ("DOI", "reference", None),
+        ("ΔH‡", "dh", None),
+        ("ΔS‡ (e.u.)", "ds", "e.u."),
+        ("Ea", "ea", None),
+        ("k", "k", None),
+        ("T", "t", None),
+        ("tc_k", "tc", "K"),
+        ("dg_kcal_mol", "dg", "kcal/mol"),
+        ("Tc, K", "tc", "K"),
+        ("ΔG‡ in kJ/mol", "dg", "kJ/mol"),
+    ],
+)
+def test_usual_spellings_are_recognised(header: str, field: str, unit: str | None) -> None:
+    guess = guess_header(header)
+    assert (guess.field, guess.unit, guess.role) == (field, unit, "value")
+
+
+@pytest.mark.parametrize(
+    ("header", "field"),
+    [("σ_k", "k"), ("sigma k", "k"), ("ΔG‡ err", "dg"), ("k_err", "k"), ("Tc error", "tc")],
+)
+def test_uncertainty_columns(header: str, field: str) -> None:
+    guess = guess_header(header)
+    assert (guess.field, guess.role) == (field, "error")
+
+
+def test_unknown_headers_are_kept_as_extra_and_derived_ones_skipped() -> None:
+    assert guess_header("notebook page").role == "extra"
+    assert guess_header("dg_kj_mol (normalized)").role == "derived"
+    assert guess_header("extra: operator").role == "extra"
+
+
+def test_concept_key_folds_greek_and_daggers() -> None:
+    assert concept_key("ΔG‡") == "dg"
+    assert concept_key("Δν") == "dnu"
+    assert concept_key("ΔG^‡") == "dg"
+    assert split_header("Tc (°C)") == ("Tc", "°C")
+
+
+def _plan(
+    headers: list[str], mapping: MappingFile | None = None
+) -> tuple[object, list[RowProblem]]:
+    problems: list[RowProblem] = []
+    plan = plan_sheet("f.csv", None, headers, 1, mapping or MappingFile(), problems)
+    return plan, problems
+
+
+def test_temperature_unit_over_an_energy_column_is_a_header_problem() -> None:
+    _, problems = _plan(["compound", "method", "ΔG‡ (K)"])
+    assert len(problems) == 1
+    p = problems[0]
+    assert (p.row, p.column, p.text) == (1, "ΔG‡ (K)", "K")
+    assert "does not fit dg" in p.reason
+
+
+def test_a_word_in_brackets_is_a_remark_not_a_unit() -> None:
+    plan, problems = _plan(["compound", "method", "Tc (coalescence)"])
+    assert problems == []
+    assert plan.value_columns()["tc"].unit is None  # type: ignore[attr-defined]
+    assert any("not a unit" in n for n in plan.notes)  # type: ignore[attr-defined]
+
+
+def test_second_column_for_the_same_field_is_kept_as_extra_with_a_note() -> None:
+    plan, _ = _plan(["compound", "method", "ΔG‡ (kcal/mol)", "Barrier [kJ/mol]"])
+    cols = {c.header: c.role for c in plan.columns}  # type: ignore[attr-defined]
+    assert cols["Barrier [kJ/mol]"] == "extra"
+    assert any("also looks like dg" in n for n in plan.notes)  # type: ignore[attr-defined]
+
+
+def test_in_an_entries_sheet_T_is_the_temperature_of_the_barrier() -> None:
+    plan, _ = _plan(["compound", "method", "ΔG‡ (kJ/mol)", "T (K)"])
+    assert "dg_t" in plan.value_columns()  # type: ignore[attr-defined]
+    rates, _ = _plan(["label", "T (K)", "k (s-1)"])
+    assert rates.kind == "rates"  # type: ignore[attr-defined]
+
+
+def test_mapping_file_overrides_the_guess(tmp_path: Path) -> None:
+    path = tmp_path / "map.toml"
+    path.write_text(
+        '[columns]\n"Temp." = "tc"\n"Barrier" = { field = "dg", unit = "kcal/mol" }\n'
+        '"ref" = "extra"\n[units]\ntc = "°C"\n[defaults]\nmethod = "coalescence"\n',
+        encoding="utf-8",
+    )
+    mapping = load_mapping(path)
+    plan, problems = _plan(["compound", "Temp.", "Barrier", "ref"], mapping)
+    assert problems == []
+    v = plan.value_columns()  # type: ignore[attr-defined]
+    assert (v["tc"].unit, v["dg"].unit, v["tc"].source) == ("°C", "kcal/mol", "mapping file")
+    assert [c.header for c in plan.extra_columns()] == ["ref"]  # type: ignore[attr-defined]
+    assert plan.defaults == {"method": "coalescence"}  # type: ignore[attr-defined]
+
+
+def test_mapping_file_errors_name_the_key(tmp_path: Path) -> None:
+    path = tmp_path / "map.toml"
+    path.write_text('[columns]\n"x" = "barrier_height"\n', encoding="utf-8")
+    with pytest.raises(UsageError, match="'x' → 'barrier_height' is not a field"):
+        load_mapping(path)
+    path.write_text("[columns\n", encoding="utf-8")
+    with pytest.raises(UsageError, match="not valid TOML"):
+        load_mapping(path)
+
+
+@pytest.mark.parametrize("text", ["=1+2", "+SUM(A1)", "-20 °C", "@cmd", "\tx"])
+def test_formula_triggers_are_neutralised_and_restored(text: str) -> None:
+    guarded = neutralise(text)
+    assert guarded.startswith("'")
+    assert unneutralise(guarded) == text
+
+
+@given(st.text(max_size=30).filter(lambda s: not s.startswith("'")))
+def test_neutralise_round_trip(text: str) -> None:
+    assert unneutralise(neutralise(text)) == text
+
+
+def test_cell_text_keeps_numbers_as_written() -> None:
+    assert cell_text(400.0) == "400"
+    assert cell_text(14.2) == "14.2"
+    assert cell_text(1.5e-5) == "1.5e-05"
+    assert cell_text(float("nan")) is None
+    assert cell_text("  '-20 °C ") == "-20 °C"

@@ -1,0 +1,284 @@
+"""Importing spreadsheets: values and units, extras, rates, upserts, batches, atomicity."""
+
+from __future__ import annotations
+
+import csv
+import json
+from pathlib import Path
+
+import pytest
+from openpyxl import Workbook
+from sqlalchemy import func, select
+
+from registry import api
+from registry.errors import ImportRowError
+from registry.io import import_table, parallel
+from registry.io import importer as importer_mod
+from registry.models import ImportBatch, Measurement, RatePoint, Revision, Solvent
+from registry.store import Database
+
+HEADERS = [
+    "compound",
+    "SMILES",
+    "method",
+    "solvent",
+    "field (MHz)",
+    "Tc (°C)",
+    "Δν (Hz)",
+    "ΔG‡ (kcal/mol)",
+    "label",
+    "ref",
+    "notebook",
+]
+
+
+def write_csv(path: Path, headers: list[str], rows: list[list[object]]) -> Path:
+    with path.open("w", newline="", encoding="utf-8") as fh:
+        writer = csv.writer(fh)
+        writer.writerow(headers)
+        writer.writerows(rows)
+    return path
+
+
+def write_xlsx(path: Path, sheets: dict[str, list[list[object]]]) -> Path:
+    book = Workbook()
+    book.remove(book.active)
+    for name, rows in sheets.items():
+        sheet = book.create_sheet(name)
+        for row in rows:
+            sheet.append(row)
+    book.save(path)
+    return path
+
+
+def count(database: Database, model: object) -> int:
+    with database.read() as conn:
+        return conn.execute(select(func.count()).select_from(model)).scalar_one()
+
+
+ROWS = [
+    ["A1", "CN(C)C(=O)c1ccccc1", "coalescence", "chloroform", 400, 12, 38.5, 14.6, "m1", "r", "p1"],
+    ["A2", "CC(=O)N1CCCCC1", "coalescence", "CDCl3", 400, "-20 °C", "0.12 ppm", "", "m2", "r", ""],
+]
+
+
+@pytest.fixture
+def sample_csv(tmp_path: Path) -> Path:
+    return write_csv(tmp_path / "sample.csv", HEADERS, ROWS)
+
+
+def test_values_units_and_extras_are_stored(database: Database, sample_csv: Path) -> None:
+    summary = import_table(database, sample_csv)
+    assert (summary["added"], summary["updated"], summary["rejected"]) == (2, 0, 0)
+    first, second = (api.get_measurement(database, i) for i in summary["measurement_ids"]["added"])
+    # 1 kcal = 4.184 kJ exactly (thermochemical calorie, NIST SP 811 (2008) B.8)
+    assert first["dg_kj_mol"] == pytest.approx(14.6 * 4.184, abs=1e-9)
+    assert first["dg_text"] == "14.6 kcal/mol"  # the header's unit is kept with the number
+    # 12 °C = 285.15 K (NIST SP 811 (2008) 4.2.1.1)
+    assert first["coalescence"][0]["tc_k"] == pytest.approx(285.15)
+    assert first["extra"] == {"notebook": "p1"}
+    # a unit written in the cell wins over the header's: -20 °C = 253.15 K; 0.12 ppm at
+    # 400 MHz = 48 Hz (ppm × MHz = Hz, definition of the ppm scale; common practice, no source)
+    assert second["coalescence"][0]["tc_k"] == pytest.approx(253.15)
+    assert second["coalescence"][0]["dnu_hz"] == pytest.approx(48.0)
+    assert second["coalescence"][0]["tc_text"] == "-20 °C"
+    # "chloroform" is a usual spelling of the solvent table's chloroform-d
+    with database.read() as conn:
+        sid = conn.execute(select(Solvent.id).where(Solvent.name == "chloroform-d")).scalar()
+    assert first["solvent_id"] == sid == second["solvent_id"]
+
+
+def test_import_batch_is_recorded(database: Database, sample_csv: Path) -> None:
+    import hashlib
+
+    summary = import_table(database, sample_csv, actor="ingrid")
+    with database.read() as conn:
+        batch = conn.execute(select(ImportBatch.__table__)).mappings().one()
+    assert batch["file_name"] == "sample.csv"
+    assert batch["sha256"] == hashlib.sha256(sample_csv.read_bytes()).hexdigest()
+    assert (batch["actor"], batch["rows_total"], batch["rows_added"]) == ("ingrid", 2, 2)
+    assert batch["status"] == "done" and batch["finished_at"] is not None
+    assert summary["batch_id"] == batch["id"]
+
+
+def test_same_file_twice_adds_nothing(database: Database, sample_csv: Path) -> None:
+    import_table(database, sample_csv)
+    revisions = count(database, Revision)
+    again = import_table(database, sample_csv)
+    assert (again["added"], again["updated"], again["unchanged"]) == (0, 0, 2)
+    assert count(database, Measurement) == 2
+    assert count(database, Revision) == revisions
+    assert count(database, ImportBatch) == 2
+
+
+def test_corrected_file_updates_and_records_before_after(
+    database: Database, tmp_path: Path
+) -> None:
+    path = write_csv(tmp_path / "v1.csv", HEADERS, ROWS)
+    first = import_table(database, path)
+    rows = [list(r) for r in ROWS]
+    rows[0][7] = 14.9
+    rows[0][10] = "p1 (corrected)"
+    import_table(database, write_csv(tmp_path / "v2.csv", HEADERS, rows))
+    mid = first["measurement_ids"]["added"][0]
+    record = api.get_measurement(database, mid)
+    assert record["dg_kj_mol"] == pytest.approx(14.9 * 4.184)
+    assert record["extra"] == {"notebook": "p1 (corrected)"}
+    with database.read() as conn:
+        rev = conn.execute(
+            select(Revision.before_json, Revision.after_json).where(
+                Revision.entity_id == mid, Revision.action == "import-update"
+            )
+        ).one()
+    before, after = json.loads(rev[0]), json.loads(rev[1])
+    assert before["dg_text"] == "14.6 kcal/mol" and after["dg_text"] == "14.9 kcal/mol"
+    assert after["extra"] == {"notebook": "p1 (corrected)"}
+    assert count(database, Measurement) == 2
+
+
+def test_workbook_with_rates_sheet(database: Database, tmp_path: Path) -> None:
+    path = write_xlsx(
+        tmp_path / "book.xlsx",
+        {
+            "entries": [
+                ["label", "compound", "SMILES", "method", "ΔH‡ (kJ/mol)", "ΔS‡ (e.u.)"],
+                ["L1", "B1", "Cc1ccccc1-c1ccccc1C", "DNMR", 70.0, -2.0],
+            ],
+            "rates": [
+                ["label", "T (°C)", "k (s-1)", "σ_k"],
+                ["L1", 80, 25.0, 1.0],
+                ["L1", 90, 60.0, 2.0],
+            ],
+        },
+    )
+    summary = import_table(database, path)
+    assert summary["sheet_kinds"] == {"entries": "entries", "rates": "rates"}
+    record = api.get_measurement(database, summary["measurement_ids"]["added"][0])
+    points = record["rate_points"]
+    assert [p["t_k"] for p in points] == pytest.approx([353.15, 363.15])
+    assert [p["k_err_per_s"] for p in points] == pytest.approx([1.0, 2.0])
+    # ΔS‡ in e.u. = cal/(mol·K): -2 e.u. = -8.368 J/(mol·K) (NIST SP 811 (2008) B.8)
+    assert record["ds_j_mol_k"] == pytest.approx(-8.368)
+    again = import_table(database, path)
+    assert again["added"] == 0 and again["updated"] == 0
+    assert count(database, RatePoint) == 2
+
+
+def test_rates_only_file_attaches_to_existing_measurements(
+    database: Database, tmp_path: Path
+) -> None:
+    entries = write_csv(
+        tmp_path / "e.csv",
+        ["label", "compound", "method", "dh"],
+        [["L9", "C9", "DNMR", "60 kJ/mol"]],
+    )
+    mid = import_table(database, entries)["measurement_ids"]["added"][0]
+    rates = write_csv(
+        tmp_path / "r.csv", ["label", "T/K", "k (s-1)"], [["L9", 300, 10], ["L9", 310, 30]]
+    )
+    summary = import_table(database, rates)
+    assert summary["updated"] == 1
+    assert len(api.get_measurement(database, mid)["rate_points"]) == 2
+    assert import_table(database, rates)["updated"] == 0
+    unknown = write_csv(tmp_path / "u.csv", ["label", "T/K", "k (s-1)"], [["NOPE", 300, 10]])
+    with pytest.raises(ImportRowError, match="no measurement labelled 'NOPE'"):
+        import_table(database, unknown)
+
+
+def test_one_bad_row_means_nothing_is_written(database: Database, tmp_path: Path) -> None:
+    rows = [list(r) for r in ROWS] + [["A3", "CCO", "coalescence", "CDCl3", 400, 20, 10, "abc"]]
+    path = write_csv(tmp_path / "bad.csv", HEADERS, rows)
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path)
+    (problem,) = info.value.problems
+    assert (problem.row, problem.column, problem.text) == (4, "ΔG‡ (kcal/mol)", "abc")
+    assert count(database, Measurement) == 0
+    assert count(database, ImportBatch) == 0
+
+
+def test_skip_bad_imports_good_rows_and_writes_rejects(database: Database, tmp_path: Path) -> None:
+    rows = [list(r) for r in ROWS] + [["A3", "C1CC1(", "coalescence", "CDCl3", 400, 20, 10, 15]]
+    path = write_csv(tmp_path / "mixed.csv", HEADERS, rows)
+    summary = import_table(database, path, skip_bad=True)
+    assert (summary["added"], summary["rejected"]) == (2, 1)
+    rejects = Path(summary["rejects_file"])
+    assert rejects == tmp_path / "mixed.rejected.csv"
+    with rejects.open(encoding="utf-8") as fh:
+        lines = list(csv.DictReader(fh))
+    assert len(lines) == 1
+    assert lines[0]["row"] == "4" and lines[0]["column"] == "SMILES"
+    assert "unreadable SMILES" in lines[0]["reason"]
+    assert lines[0]["compound"] == "A3"
+    with database.read() as conn:
+        status = conn.execute(select(ImportBatch.status, ImportBatch.rows_rejected)).one()
+    assert tuple(status) == ("partial", 1)
+
+
+def test_interrupt_during_the_write_leaves_nothing(
+    database: Database, sample_csv: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    def boom(*args: object, **kwargs: object) -> None:
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(importer_mod.upsert, "apply_changes", boom)
+    with pytest.raises(KeyboardInterrupt):
+        import_table(database, sample_csv)
+    assert count(database, Measurement) == 0
+    assert count(database, ImportBatch) == 0
+    assert count(database, Revision) == 0
+
+
+def test_dry_run_writes_nothing(database: Database, sample_csv: Path) -> None:
+    summary = import_table(database, sample_csv, dry_run=True)
+    assert summary["would_add"] == 2
+    assert summary["preview"][0]["dg_kj_mol"] == pytest.approx(14.6 * 4.184)
+    fields = {row["header"]: row["field"] for row in summary["mapping"]["sample.csv"]}
+    assert fields["Tc (°C)"] == "tc" and fields["notebook"] is None
+    assert count(database, Measurement) == 0 and count(database, ImportBatch) == 0
+
+
+def test_validation_findings_are_counted(database: Database, tmp_path: Path) -> None:
+    # Tc 343.15 K, Δν 48 Hz → ΔG‡ 17.0 kcal/mol (Gutowsky–Holm); 18.1 is off → one error
+    path = write_csv(
+        tmp_path / "v.csv",
+        ["compound", "method", "solvent", "Tc/K", "Δν (Hz)", "ΔG‡ (kcal/mol)"],
+        [
+            ["V1", "coalescence", "DMSO-d6", 343.15, 48, 18.1],
+            ["V2", "coalescence", "DMSO-d6", 343.15, 48, 17.0],
+        ],
+    )
+    summary = import_table(database, path)
+    assert summary["validation"]["available"] is True
+    assert summary["validation"]["findings"]["error"] == 1
+    assert {f["rule_id"] for f in summary["validation"]["list"]} == {"coalescence-barrier"}
+
+
+def test_the_process_pool_gives_the_same_result(
+    database: Database, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setattr(parallel, "PARALLEL_MIN_ROWS", 4)
+    monkeypatch.setattr(parallel, "CHUNK_ROWS", 3)
+    monkeypatch.setattr(parallel, "CHUNK_SMILES", 2)
+    smiles = ["CCO", "CCN", "CCC", "c1ccccc1", "CC(=O)N(C)C", "C1CCOC1"]
+    rows = [
+        [f"P{i}", smiles[i % 6], "coalescence", "CDCl3", 300, 20 + i, 10 + i] for i in range(12)
+    ]
+    headers = ["label", "SMILES", "method", "solvent", "field (MHz)", "Tc (K)", "Δν (Hz)"]
+    rows = [[r[0], r[1], r[2], r[3], r[4], 250 + i, r[6]] for i, r in enumerate(rows)]
+    path = write_csv(tmp_path / "pool.csv", headers, rows)
+    summary = import_table(database, path, workers=2)
+    assert summary["added"] == 12 and summary["compounds_added"] == 6
+    record = api.get_measurement(database, summary["measurement_ids"]["added"][7])
+    assert record["label"] == "P7" and record["coalescence"][0]["tc_k"] == pytest.approx(257.0)
+
+
+def test_cli_import_and_dry_run(cli, tmp_path: Path, sample_csv: Path) -> None:  # type: ignore[no-untyped-def]
+    result = cli("import", str(sample_csv), "--dry-run")
+    assert result.exit_code == 0, result.stderr
+    assert "dry run of" in result.stdout and "would add 2" in result.stdout
+    result = cli("import", str(sample_csv), "--json")
+    assert result.exit_code == 0, result.stderr
+    assert json.loads(result.stdout)["added"] == 2
+    result = cli("import", str(sample_csv))
+    assert result.exit_code == 0
+    assert "0 added, 0 updated, 2 unchanged" in result.stdout
