@@ -200,3 +200,63 @@ def test_installed_command(tmp_path: Path) -> None:
     )  # fmt: skip
     assert run.returncode == 2
     assert run.stderr == "error: --sites is in ppm: give the spectrometer frequency with --field\n"
+
+
+def _jcamp_from_csv(csv_path: Path, out: Path, t_celsius: float) -> None:
+    """Write a simulated CSV spectrum as JCAMP-DX (AFFN, integer ordinates with ##YFACTOR)."""
+    spec = read_spectrum(csv_path)
+    yfactor = float(abs(spec.intensity).max()) / 30000.0
+    ys = [round(v / yfactor) for v in spec.intensity]
+    lines = [
+        f"{spec.x[i]:.6f} " + " ".join(str(v) for v in ys[i : i + 10])
+        for i in range(0, len(ys), 10)
+    ]
+    out.write_text(
+        "##TITLE= demo\n##JCAMP-DX= 4.24\n##DATA TYPE= NMR SPECTRUM\n"
+        "##.OBSERVE FREQUENCY= 400.13\n##XUNITS= PPM\n##YUNITS= ARBITRARY UNITS\n"
+        f"##FIRSTX= {spec.x[0]:.9f}\n##LASTX= {spec.x[-1]:.9f}\n##XFACTOR= 1\n"
+        f"##YFACTOR= {yfactor:.9e}\n##NPOINTS= {len(ys)}\n##TEMPERATURE= {t_celsius}\n"
+        "##XYDATA=(X++(Y..Y))\n" + "\n".join(lines) + "\n##END=\n",
+        encoding="ascii",
+    )
+
+
+def test_fit_reads_jcamp_with_field_and_temperature(
+    cli,  # type: ignore[no-untyped-def]
+    vt_files: list[Path],
+    tmp_path: Path,
+) -> None:
+    jdx = []
+    for path, t in zip(vt_files, TEMPS, strict=True):
+        target = tmp_path / f"{path.stem}.jdx"
+        _jcamp_from_csv(path, target, round(t - 273.15, 2))
+        jdx.append(target)
+    result = cli(
+        "lineshape", "fit", *map(str, jdx), "--sites", SITES, "--width", "1.2", "--fix-width",
+        "--region", "3.25,2.75", "--json",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert data["observe_mhz"] == pytest.approx(400.13)
+    for fit, t in zip(data["fits"], TEMPS, strict=True):
+        assert fit["t_k"] == pytest.approx(t)
+        assert fit["t_text"].endswith("°C")
+        assert fit["n_points"] < 4096  # the region cut the window
+        k_true = math.exp(eyring_ln_rate(t, DH, DS))
+        assert abs(fit["k_per_s"] - k_true) < 3 * fit["k_err_per_s"]
+
+
+def test_headerless_csv_needs_its_unit(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    path = tmp_path / "bare.csv"
+    body = "\n".join(f"{x:.4f} {1.0 / (1.0 + (x - 1.0) ** 2 * 1e4):.6f}" for x in
+                     [0.9 + i * 0.0005 for i in range(400)])  # fmt: skip
+    path.write_text(body + "\n")
+    result = cli("lineshape", "fit", str(path), "--sites", "0.98,1.02", "--field", "400")
+    assert result.exit_code == 2
+    assert result.stderr.startswith(f"error: {path}: the abscissa unit is unknown")
+    result = cli(
+        "lineshape", "fit", str(path), "--sites", "0.98,1.02", "--field", "400",
+        "--x-unit", "ppm", "--json",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    assert json.loads(result.stdout)["fits"][0]["t_k"] is None
