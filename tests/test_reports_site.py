@@ -325,3 +325,19 @@ def test_finding_of_a_known_rule_says_what_the_rule_checks(database, tmp_path) -
     compound_id = api.get_measurement(database, mid)["compound"]["id"]
     page = (tmp_path / "r" / "compounds" / f"c{compound_id}.html").read_text(encoding="utf-8")
     assert f"What this rule checks: {html.escape(rule.title)}" in page
+
+
+def test_report_never_replaces_folders_it_did_not_write(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from registry.errors import UsageError
+
+    mine = tmp_path / "shared"
+    (mine / "plots").mkdir(parents=True)
+    (mine / "plots" / "thesis-figure.png").write_bytes(b"keep me")
+    with pytest.raises(UsageError, match="already holds plots not written by 'fluxledger report'"):
+        site.build_report(database, mine, plots=False)
+    assert (mine / "plots" / "thesis-figure.png").read_bytes() == b"keep me"
+    fresh = tmp_path / "fresh"
+    site.build_report(database, fresh, plots=False)
+    (fresh / "notes.txt").write_text("mine")
+    site.build_report(database, fresh, plots=False)  # a rebuild of our own folder is fine
+    assert (fresh / "notes.txt").read_text() == "mine"

@@ -23,8 +23,10 @@ from registry.reports import assets
 from registry.reports.numbers import format_uncertain
 from registry.store import Database, redacted_url
 
-#: files a report folder is made of; anything else in the folder is left alone
+#: what a report folder is made of; anything else in the folder is left alone
 _OWN = ("index.html", "compounds", "plots")
+#: marks a folder as written by us, so a rebuild may replace what it holds
+MARKER = ".fluxledger-report"
 
 
 @dataclass
@@ -411,9 +413,22 @@ def render_compound(
 
 
 def _prepare(directory: Path) -> None:
+    """Create the folder; replace our own pages and plots, never files someone else put there."""
     if directory.exists() and not directory.is_dir():
         raise UsageError(f"{directory} exists and is not a folder")
     directory.mkdir(parents=True, exist_ok=True)
+    ours = (directory / MARKER).exists()
+    clash = [name for name in _OWN if (directory / name).exists()]
+    if clash and not ours:
+        raise UsageError(
+            f"{directory} already holds {', '.join(clash)} not written by 'fluxledger report';"
+            " choose an empty or new folder"
+        )
+    (directory / MARKER).write_text(
+        "This folder is written by 'fluxledger report'; index.html, compounds/ and plots/ are"
+        " replaced on every run.\n",
+        encoding="utf-8",
+    )
     for name in ("compounds", "plots"):  # our own sub-folders are rebuilt from scratch
         sub = directory / name
         if sub.is_dir():
