@@ -159,38 +159,30 @@ def test_table_rows_from_the_registry(database) -> None:  # type: ignore[no-unty
     assert body[2][2:6] == ["74.0(3) ᵃ", "298.15", "70.1(11)", "−13(4)"]
 
 
-def test_table_command(cli) -> None:  # type: ignore[no-untyped-def]
+def test_export_command_writes_paper_tables(cli, tmp_path) -> None:  # type: ignore[no-untyped-def]
     added = cli(
-        "add",
-        "--method",
-        "coalescence",
-        "--compound",
-        "DEMO-T2",
-        "--smiles",
-        "CN(C)C=O",
-        "--process",
-        "bond-rotation",
-        "--solvent",
-        "CDCl3",
-        "--mhz",
-        "400",
-        "--tc",
-        "120 °C",
-        "--dnu",
-        "25 Hz",
-        "--dg",
-        "20.9 ± 0.2 kcal/mol",
-    )
+        "add", "--method", "coalescence", "--compound", "DEMO-T2", "--smiles", "CN(C)C=O",
+        "--process", "bond-rotation", "--solvent", "CDCl3", "--mhz", "400",
+        "--tc", "120 °C", "--dnu", "25 Hz", "--dg", "20.9 ± 0.2 kcal/mol",
+    )  # fmt: skip
     assert added.exit_code == 0, added.stderr
-    result = cli("table", "--format", "latex", "--energy-unit", "kcal/mol")
+    out = tmp_path / "t.tex"
+    result = cli("export", "-o", str(out), "--energy-unit", "kcal/mol")
     assert result.exit_code == 0, result.stderr
-    assert r"DEMO-T2 & bond-rotation & $20.9(2)$\textsuperscript{a} & $393.15$ \\" in result.stdout
-    bad = cli("table", "--format", "html")
+    assert result.stdout == f"exported 1 measurement(s) to {out} as a latex table (kcal/mol)\n"
+    text = out.read_text(encoding="utf-8")
+    assert r"DEMO-T2 & bond-rotation & $20.9(2)$\textsuperscript{a} & $393.15$ \\" in text
+    md = cli("export", "-o", str(tmp_path / "t.txt"), "--format", "markdown", "--json")
+    assert md.exit_code == 0, md.stderr
+    assert '"format": "markdown"' in md.stdout
+    assert "| DEMO-T2 | bond-rotation | 87.4(8) ᵃ | 393.15 |" in (tmp_path / "t.txt").read_text(
+        encoding="utf-8"
+    )
+    bad = cli("export", "-o", str(tmp_path / "t.md"), "--energy-unit", "eV")
     assert bad.exit_code == 2
-    assert bad.stderr.strip() == "error: --format 'html': use latex or markdown"
-    as_json = cli("table", "--json")
-    assert as_json.exit_code == 0
-    assert '"format": "markdown"' in as_json.stdout
+    assert bad.stderr == "error: --energy-unit 'eV': use kJ/mol or kcal/mol\n"
+    csv_still = cli("export", "-o", str(tmp_path / "t.csv"))
+    assert csv_still.exit_code == 0 and "(csv)" in csv_still.stdout
 
 
 def test_export_table_files(database, tmp_path) -> None:  # type: ignore[no-untyped-def]

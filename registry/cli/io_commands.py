@@ -30,7 +30,10 @@ def register(app: typer.Typer) -> None:
         help=(
             "Export measurements (filters as for 'list') as csv, xlsx or json: reported texts, "
             "normalized values, findings and references. Text cells that a spreadsheet would "
-            "evaluate get a leading apostrophe; the importer removes it again."
+            "evaluate get a leading apostrophe; the importer removes it again.\n\n"
+            "latex (.tex) or markdown (.md) writes a table for a paper instead: ΔG‡ (ΔH‡, ΔS‡) in "
+            "--energy-unit with uncertainties as 62.3(4) or 62.3 ± 0.4 (--uncertainty), lettered "
+            "notes for methods and solvents, numbered references."
         ),
     )(export_cmd)
 
@@ -160,7 +163,9 @@ def export_cmd(
     ctx: typer.Context,
     output: str = typer.Option(..., "-o", "--output", help="File to write."),
     fmt: str = typer.Option(
-        None, "--format", help="csv, xlsx or json (default: from the file name)."
+        None,
+        "--format",
+        help="csv, xlsx, json, latex or markdown (default: from the file name; .tex, .md).",
     ),
     compound: str = typer.Option(None, help="Compound label or name contains this text."),
     method: str = typer.Option(None, help="Only this method."),
@@ -172,19 +177,25 @@ def export_cmd(
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Export retracted measurements too."
     ),
+    energy_unit: str = typer.Option(
+        "kJ/mol", "--energy-unit", help="latex/markdown: kJ/mol or kcal/mol."
+    ),
+    uncertainty: str = typer.Option(
+        "paren", "--uncertainty", help="latex/markdown: 'paren' 62.3(4) or 'pm' 62.3 ± 0.4."
+    ),
     as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
 ) -> None:
+    from pathlib import Path
+
     from registry import api
     from registry.io import export_measurements
+    from registry.reports.tables import TABLE_FORMATS, export_table
     from registry.units import parse_value
 
     lo = parse_value(barrier_min, "energy", field="--barrier-min").value if barrier_min else None
     hi = parse_value(barrier_max, "energy", field="--barrier-max").value if barrier_max else None
     database = api.open_registry(state(ctx).db)
-    result = export_measurements(
-        database,
-        output,
-        fmt,
+    filters: dict[str, Any] = dict(
         compound=compound,
         method=method,
         solvent=solvent,
@@ -194,6 +205,19 @@ def export_cmd(
         dg_max_kj_mol=hi,
         include_retracted=include_retracted,
     )
+    if (fmt or Path(output).suffix.lstrip(".")).lower() in TABLE_FORMATS:  # a table for a paper
+        result = export_table(
+            database, output, fmt, energy_unit=energy_unit, uncertainty=uncertainty, **filters
+        )
+        if as_json:
+            print_json(result)
+        else:
+            typer.echo(
+                f"exported {result['measurements']} measurement(s) to {result['file']} as a "
+                f"{result['format']} table ({result['energy_unit']})"
+            )
+        return
+    result = export_measurements(database, output, fmt, **filters)
     if as_json:
         print_json(result)
     else:

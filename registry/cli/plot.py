@@ -32,12 +32,9 @@ _UNIT = typer.Option(
 
 def energy_unit_option(text: str) -> str:
     """kJ/mol or kcal/mol, however spelled; anything else is a usage error."""
-    key = text.replace(" ", "").lower()
-    if key in ("kj/mol", "kjmol-1", "kj"):
-        return "kJ/mol"
-    if key in ("kcal/mol", "kcalmol-1", "kcal"):
-        return "kcal/mol"
-    raise UsageError(f"--energy-unit {text!r}: use kJ/mol or kcal/mol")
+    from registry.reports.tables import energy_unit_name
+
+    return energy_unit_name(text)
 
 
 def _measurement_id(text: str) -> int | None:

@@ -48,6 +48,16 @@ class TableUnits:
     entropy_label: tuple[str, str]
 
 
+def energy_unit_name(text: str, field: str = "--energy-unit") -> str:
+    """kJ/mol or kcal/mol, however spelled (the units barrier tables are written in)."""
+    key = text.replace(" ", "").replace("⁻¹", "-1").lower()
+    if key in ("kj/mol", "kjmol-1", "kj", "kj/mole"):
+        return "kJ/mol"
+    if key in ("kcal/mol", "kcalmol-1", "kcal", "kcal/mole"):
+        return "kcal/mol"
+    raise UsageError(f"{field} {text!r}: use kJ/mol or kcal/mol")
+
+
 def table_units(energy_unit: str = "kJ/mol", entropy_unit: str | None = None) -> TableUnits:
     """Normalise the requested units; ΔS‡ follows the energy unit (cal with kcal) unless given."""
     energy = _canonical_energy(energy_unit)
@@ -397,6 +407,7 @@ def export_table(
     ``filters`` are those of :func:`registry.api.list_measurements`.
     """
     path = Path(output)
+    energy_unit = energy_unit_name(energy_unit)
     name = TABLE_FORMATS.get((fmt or path.suffix.lstrip(".")).lower())
     if name is None:
         raise UsageError(f"{path}: a table is written as latex (.tex) or markdown (.md)")
@@ -414,6 +425,6 @@ def export_table(
         "file": str(path),
         "format": name,
         "measurements": len(rows),
-        "energy_unit": table_units(energy_unit).energy,
+        "energy_unit": energy_unit,
         "uncertainty": uncertainty,
     }
