@@ -222,3 +222,10 @@ def test_export_table_files(database, tmp_path) -> None:  # type: ignore[no-unty
         export_table(database, tmp_path / "t.csv")
     with pytest.raises(UsageError, match="no measurements"):
         export_table(database, tmp_path / "none.md", compound="nothing-like-this")
+
+
+def test_no_uncertainty_note_without_uncertainties() -> None:
+    text = render_markdown([dict(ROWS[2], ds_j_mol_k=-4.2)])
+    assert "Uncertainties in parentheses" not in text
+    assert _body(text)[2][4] == "−4.2"  # an entropy without uncertainty keeps one decimal
+    assert "Uncertainties in parentheses" in render_markdown([ROWS[0]])

@@ -166,7 +166,7 @@ def _layout(
             return ""
         v = convert(float(value), "J/(mol*K)", units.entropy)
         e = convert(float(err), "J/(mol*K)", units.entropy) if _present(err) else None
-        return format_uncertain(v, e, style=style, minus=minus, plus_minus=pm, default_decimals=0)
+        return format_uncertain(v, e, style=style, minus=minus, plus_minus=pm)
 
     for r in rows:
         key = (r.get("method") or None, r.get("solvent") or None)
@@ -202,6 +202,11 @@ def _layout(
         [(m, method, solvent) for (method, solvent), m in conditions.items()],
         list(references),
     )
+
+
+def _has_paren(layout: _Layout) -> bool:
+    """True when some number carries an uncertainty in parentheses (then the note explains it)."""
+    return any(cell.number and "(" in cell.text for row in layout.rows for cell in row.values())
 
 
 def _condition_text(method: str | None, solvent: str | None) -> tuple[str, str | None]:
@@ -279,7 +284,7 @@ def render_markdown(
         notes.append(f"{_md_marker(marker)} {_md_escape(what)}{where}.")
     for number, ref in enumerate(layout.references, start=1):
         notes.append(f"[{number}] {_md_escape(ref)}")
-    if uncertainty == "paren":
+    if uncertainty == "paren" and _has_paren(layout):
         notes.append("Uncertainties in parentheses apply to the last digits given.")
     return "\n".join(lines) + "\n\n" + "  \n".join(notes) + "\n"
 
@@ -376,7 +381,7 @@ def render_latex(
         notes.append(f"\\textsuperscript{{{marker}}}\\,{_latex_escape(what)}{where}.")
     for number, ref in enumerate(layout.references, start=1):
         notes.append(f"[{number}]\\,{_latex_escape(ref)}")
-    if uncertainty == "paren":
+    if uncertainty == "paren" and _has_paren(layout):
         notes.append("Uncertainties in parentheses apply to the last digits given.")
     if notes:
         lines.append(r"  \par\smallskip\footnotesize")
