@@ -57,7 +57,7 @@ def test_simulate_writes_a_readable_spectrum(cli, tmp_path: Path) -> None:  # ty
     area = float(((spec.intensity[1:] + spec.intensity[:-1]) / 2 * (spec.x[1] - spec.x[0])).sum())
     assert area == pytest.approx(1.0, abs=0.01)
     plain = cli("lineshape", "simulate", "--sites", "-60,60 Hz", "--k", "266", "--out", str(out))
-    assert plain.stdout == (f"wrote {out}: 16384 points, -120 … 120 Hz, k = 266 s⁻¹, width 1 Hz\n")
+    assert plain.stdout == (f"wrote {out}: 16384 points, -180 … 180 Hz, k = 266 s⁻¹, width 1 Hz\n")
 
 
 def test_fit_json_recovers_the_rates(cli, vt_files: list[Path]) -> None:  # type: ignore[no-untyped-def]
@@ -136,7 +136,7 @@ def test_rates_are_stored_in_a_measurement(cli, vt_files: list[Path]) -> None:  
 @pytest.mark.parametrize(
     ("args", "code", "message"),
     [
-        (["--temps", "250"], 2, "error: --temps gives 1 temperatures for 3 files\n"),
+        (["--temps", "250"], 2, "error: --temps gives 1 temperature for 3 files\n"),
         (["--scheme", "star"], 2, "error: --scheme must be one of mutual, cycle, not 'star'\n"),
         (["--populations", "1,2,3"], 2, "error: --populations gives 3 values for 2 sites\n"),
         (["--width", "-1"], 1, "error: --width: cannot read '-1': must be > 0\n"),
@@ -233,7 +233,7 @@ def test_fit_reads_jcamp_with_field_and_temperature(
         jdx.append(target)
     result = cli(
         "lineshape", "fit", *map(str, jdx), "--sites", SITES, "--width", "1.2", "--fix-width",
-        "--region", "3.25,2.75", "--json",
+        "--region", "3.35,2.65", "--json",
     )  # fmt: skip
     assert result.exit_code == 0, result.stderr
     data = json.loads(result.stdout)

@@ -105,6 +105,10 @@ def _shift_list(text: str, field: str) -> tuple[list[float], str]:
     return [parse_value(f"{n} {unit}", "shift", field=field).value for n, _ in items], "Hz"
 
 
+def _count(n: int, word: str) -> str:
+    return f"{n} {word}" if n == 1 else f"{n} {word}s"
+
+
 def _to_hz(values: list[float], unit: str, mhz: float | None, field: str) -> list[float]:
     from registry.units import ppm_to_hz
 
@@ -145,7 +149,9 @@ def _populations(text: str | None, n_sites: int) -> tuple[float, ...]:
         raise UnitError("--populations", text, "populations are plain numbers")
     values = [parse_value(n, "dimensionless", field="--populations").value for n, _ in items]
     if len(values) != n_sites:
-        raise UsageError(f"--populations gives {len(values)} values for {n_sites} sites")
+        raise UsageError(
+            f"--populations gives {_count(len(values), 'value')} for {_count(n_sites, 'site')}"
+        )
     if any(not v > 0 for v in values):
         raise UnitError("--populations", text, "every population must be > 0")
     total = sum(values)
@@ -220,7 +226,7 @@ def simulate(
     k_per_s = _positive(k, "rate", "--k", "1/s")
     width_hz = _positive(width, "shift", "--width", "Hz")
     if window is None:
-        margin = max(0.5 * model.span_hz, 20.0 * width_hz, 10.0)
+        margin = max(model.span_hz, 25.0 * width_hz, 20.0)
         lo, hi = min(sites_hz) - margin, max(sites_hz) + margin
     else:
         lo, hi = _range(window, "--window", unit, mhz)
@@ -289,7 +295,10 @@ def _load(
     if temps is not None:
         items = _split_list(temps, "--temps")
         if len(items) != len(files):
-            raise UsageError(f"--temps gives {len(items)} temperatures for {len(files)} files")
+            raise UsageError(
+                f"--temps gives {_count(len(items), 'temperature')} "
+                f"for {_count(len(files), 'file')}"
+            )
         parsed = [
             parse_value(f"{n} {u or ''}".strip(), "temperature", field="--temps", default_unit="K")
             for n, u in items

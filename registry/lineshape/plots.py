@@ -15,6 +15,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from registry.errors import UsageError
+from registry.lineshape.store_link import value_with_error_text
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -54,10 +55,10 @@ def plot_fit(fit: LineShapeFit, path: str | Path, *, observe_mhz: float | None =
     top.set_ylabel("intensity")
     bottom.set_ylabel("residual")
     top.tick_params(labelbottom=False)
-    err = f" ± {fit.k_err_per_s:.2g}" if fit.k_err_per_s is not None else ""
     temp = f"{fit.t_k:.1f} K, " if fit.t_k is not None else ""
     top.set_title(
-        f"{Path(fit.source).name}: {temp}k = {fit.k_per_s:.4g}{err} s⁻¹, "
+        f"{Path(fit.source).name}: {temp}"
+        f"k = {value_with_error_text(fit.k_per_s, fit.k_err_per_s, 's⁻¹')}, "
         f"w = {fit.width_hz:.2f} Hz ({fit.method})",
         fontsize=9,
     )
@@ -86,11 +87,9 @@ def plot_eyring(
     if line is not None:
         tt = np.linspace(t.min() * 0.98, t.max() * 1.02, 100)
         ax.plot(1000.0 / tt, _ln_k(line, tt) - np.log(tt), color="tab:red", lw=1.0)
-        dh_err = f" ± {line.dh_err_kj_mol:.2g}" if line.dh_err_kj_mol is not None else ""
-        ds_err = f" ± {line.ds_err_j_mol_k:.2g}" if line.ds_err_j_mol_k is not None else ""
         ax.set_title(
-            f"ΔH‡ = {line.dh_kj_mol:.2f}{dh_err} kJ/mol, "
-            f"ΔS‡ = {line.ds_j_mol_k:.1f}{ds_err} J/(mol·K)",
+            f"ΔH‡ = {value_with_error_text(line.dh_kj_mol, line.dh_err_kj_mol, 'kJ/mol')}, "
+            f"ΔS‡ = {value_with_error_text(line.ds_j_mol_k, line.ds_err_j_mol_k, 'J/(mol·K)')}",
             fontsize=9,
         )
     ax.set_xlabel("1000 K / T")
