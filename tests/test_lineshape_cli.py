@@ -260,3 +260,14 @@ def test_headerless_csv_needs_its_unit(cli, tmp_path: Path) -> None:  # type: ig
     )  # fmt: skip
     assert result.exit_code == 0, result.stderr
     assert json.loads(result.stdout)["fits"][0]["t_k"] is None
+
+
+def test_cli_module_import_is_light() -> None:
+    # `fluxledger --help` stays fast: the lineshape group pulls in no numerical stack
+    code = (
+        "import sys, registry.cli.lineshape; "
+        "print(sorted(m for m in ('numpy', 'scipy', 'matplotlib', 'pandas', 'pint', "
+        "'registry.lineshape') if m in sys.modules))"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "[]"
