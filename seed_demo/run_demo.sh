@@ -19,6 +19,13 @@ step add --method coalescence --compound DEMO-ADD-1 --name "N,N-dimethylacetamid
   --smiles "CC(=O)N(C)C" --process bond-rotation --nucleus 1H --solvent CDCl3 --mhz 400 \
   --tc "70 °C" --dnu "0.12 ppm" --dg "18.1 kcal/mol" --reference "demo: invented value"
 # --- check step ---
+step_findings check --severity warning
+first_error=$(fluxledger check --json --severity error 2>/dev/null \
+  | python -c 'import json, sys; f = json.load(sys.stdin); print(f[0]["id"] if f else "")' || true)
+if [ -n "$first_error" ]; then
+  step accept "$first_error" --reason "demo: confirmed against the original spectra"
+fi
+step_findings check --new
 # --- find step ---
 step list --limit 10
 step show 1

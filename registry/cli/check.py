@@ -45,7 +45,9 @@ def _render(findings: list[Any]) -> str:
         return "no findings"
     lines = table_text([_row(f) for f in findings]).splitlines()
     out = lines[:2]
-    wrap = textwrap.TextWrapper(width=100, initial_indent="    ", subsequent_indent="    ")
+    wrap = textwrap.TextWrapper(
+        width=100, initial_indent="    ", subsequent_indent="    ", break_on_hyphens=False
+    )
     for line, f in zip(lines[2:], findings, strict=True):
         out.append(line)
         out.extend(wrap.wrap(f.message))

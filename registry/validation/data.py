@@ -208,6 +208,13 @@ def _fetch(conn: Connection, query, ids: Sequence[int] | None, id_column) -> lis
     return rows
 
 
+def _frame(rows: list, columns: list[str]) -> pd.DataFrame:  # type: ignore[type-arg]
+    """Rows → DataFrame column by column (pandas' row-wise path probes each Row object)."""
+    if not rows:
+        return pd.DataFrame({c: pd.Series(dtype=object) for c in columns})
+    return pd.DataFrame(dict(zip(columns, (list(v) for v in zip(*rows, strict=True)), strict=True)))
+
+
 def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> CheckData:
     """Read the measurements (all, or ``ids``) with their coalescence data and rate points."""
     mq = (
@@ -218,13 +225,10 @@ def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> Check
         .outerjoin(Solvent, Solvent.id == Measurement.solvent_id)
         .where(Measurement.status != "retracted")
     )
-    m = pd.DataFrame.from_records(
-        _fetch(conn, mq, ids, Measurement.id), columns=list(_MEASUREMENT_COLUMNS)
-    )
+    m = _frame(_fetch(conn, mq, ids, Measurement.id), list(_MEASUREMENT_COLUMNS))
     cq = select(*(c.label(n) for n, c in _COALESCENCE_COLUMNS.items()))
-    co = pd.DataFrame.from_records(
-        _fetch(conn, cq, ids, CoalescenceObservation.measurement_id),
-        columns=list(_COALESCENCE_COLUMNS),
+    co = _frame(
+        _fetch(conn, cq, ids, CoalescenceObservation.measurement_id), list(_COALESCENCE_COLUMNS)
     )
     rq = select(
         RatePoint.measurement_id.label("id"),
@@ -232,9 +236,8 @@ def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> Check
         RatePoint.k_per_s,
         RatePoint.k_err_per_s,
     )
-    rates = pd.DataFrame.from_records(
-        _fetch(conn, rq, ids, RatePoint.measurement_id),
-        columns=["id", "t_k", "k_per_s", "k_err_per_s"],
+    rates = _frame(
+        _fetch(conn, rq, ids, RatePoint.measurement_id), ["id", "t_k", "k_per_s", "k_err_per_s"]
     )
     m = m.sort_values("id", kind="stable").reset_index(drop=True)
     m = _attach_coalescence(m, co)
@@ -267,9 +270,7 @@ def _load_peers(conn: Connection, m: pd.DataFrame) -> pd.DataFrame:
     cols = [getattr(Measurement, c) for c in PEER_COLUMNS]
     query = select(*cols).where(Measurement.status != "retracted")
     compound_ids = m["compound_id"].dropna().astype(int).unique().tolist()
-    peers = pd.DataFrame.from_records(
-        _fetch(conn, query, compound_ids, Measurement.compound_id), columns=list(PEER_COLUMNS)
-    )
+    peers = _frame(_fetch(conn, query, compound_ids, Measurement.compound_id), list(PEER_COLUMNS))
     for name in ("dg_kj_mol", "dg_err_kj_mol", "dg_t_k"):
         peers[name] = pd.to_numeric(peers[name], errors="coerce").astype(np.float64)
     return peers

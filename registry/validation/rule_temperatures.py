@@ -19,15 +19,19 @@ _NAMED = (("tc_k", "Tc", "tc_text"), ("t_min_k", "T_min", "t_min_text"),
           ("t_max_k", "T_max", "t_max_text"), ("dg_t_k", "the temperature of ΔG‡", "dg_t_text"))  # fmt: skip
 
 
-def _display(value_k: float, text: object) -> tuple[float, str, float, float]:
-    """(value in the user's unit, label, offset, scale) for one temperature."""
-    labels, offset, scale = temperature_units(pd.Series([text], dtype=object))
-    return float(offset[0] + scale[0] * value_k), str(labels[0]), float(offset[0]), float(scale[0])
+class _Shown:
+    """Temperatures of flagged rows in the unit each was written in (one pass over the texts)."""
 
+    def __init__(self, texts: list[object]) -> None:
+        self.labels, self.offset, self.scale = temperature_units(pd.Series(texts, dtype=object))
 
-def _fmt(value_k: float, text: object) -> str:
-    shown, label, _, _ = _display(value_k, text)
-    return f"{shown:.1f} {label}" if label == "K" else f"{shown:.1f} {label} ({value_k:.1f} K)"
+    def value(self, i: int, value_k: float) -> float:
+        return float(self.offset[i] + self.scale[i] * value_k)
+
+    def text(self, i: int, value_k: float) -> str:
+        label = self.labels[i]
+        shown = self.value(i, value_k)
+        return f"{shown:.1f} {label}" if label == "K" else f"{shown:.1f} {label} ({value_k:.1f} K)"
 
 
 def _rate_extremes(data: CheckData) -> tuple[np.ndarray, np.ndarray]:
@@ -90,20 +94,20 @@ class TemperatureRangeOrder(Rule):
         lo, hi = data.col("t_min_k"), data.col("t_max_k")
         with np.errstate(invalid="ignore"):
             rows = np.flatnonzero(lo > hi)
-        lo_text, hi_text = data.text("t_min_text"), data.text("t_max_text")
+        lo_shown = _Shown([data.text("t_min_text")[p] for p in rows])
+        hi_shown = _Shown([data.text("t_max_text")[p] for p in rows])
         out = []
-        for p in rows:
-            shown, label, _, _ = _display(lo[p], lo_text[p])
-            shown_hi = _display(hi[p], lo_text[p])[0]
+        for i, p in enumerate(rows):
+            shown, shown_hi = lo_shown.value(i, lo[p]), lo_shown.value(i, hi[p])
             out.append(
                 self.finding(
                     int(data.ids[p]),
-                    f"T_min {_fmt(lo[p], lo_text[p])} is above T_max {_fmt(hi[p], hi_text[p])}: "
+                    f"T_min {lo_shown.text(i, lo[p])} is above T_max {hi_shown.text(i, hi[p])}: "
                     "the two are probably swapped or one has the wrong unit",
                     reported=opt(shown),
                     recomputed=opt(shown_hi),
                     difference=opt(shown - shown_hi),
-                    unit=label,
+                    unit=lo_shown.labels[i],
                 )
             )
         return out
@@ -124,23 +128,24 @@ class CoalescenceInMeasuredRange(Rule):
         with np.errstate(invalid="ignore"):
             below = np.isfinite(tc) & (tc < lo - slack)
             above = np.isfinite(tc) & (tc > hi + slack)
+        rows = np.flatnonzero(below | above)
         tc_text = data.text("tc_text")
+        shown_t = _Shown([tc_text[p] for p in rows])
         out = []
-        for p in np.flatnonzero(below | above):
+        for i, p in enumerate(rows):
             edge, edge_name = (lo[p], "T_min") if below[p] else (hi[p], "T_max")
-            shown, label, _, _ = _display(tc[p], tc_text[p])
-            edge_shown = _display(edge, tc_text[p])[0]
+            shown, edge_shown = shown_t.value(i, tc[p]), shown_t.value(i, edge)
             side = "below" if below[p] else "above"
             out.append(
                 self.finding(
                     int(data.ids[p]),
-                    f"Tc {_fmt(tc[p], tc_text[p])} is {side} the measured range ({edge_name} "
-                    f"{_fmt(edge, tc_text[p])}): coalescence cannot have been observed there; "
+                    f"Tc {shown_t.text(i, tc[p])} is {side} the measured range ({edge_name} "
+                    f"{shown_t.text(i, edge)}): coalescence cannot have been observed there; "
                     "check Tc, the range, or their units",
                     reported=opt(shown),
                     recomputed=opt(edge_shown),
                     difference=opt(shown - edge_shown),
-                    unit=label,
+                    unit=shown_t.labels[i],
                 )
             )
         return out
@@ -174,45 +179,45 @@ class SolventLiquidRange(Rule):
             hot = np.isfinite(t_hi) & (t_hi > bp + slack)
             cold = np.isfinite(t_lo) & (t_lo < mp - slack)
         solvent = data.text("solvent_name")
+        text_cols = {name: data.text(name) for name in texts if name}
         out: list[Finding] = []
-        for p in np.flatnonzero(hot):
-            which = int(i_hi[p])
-            text = data.m[texts[which]].iloc[p] if texts[which] else None
-            shown, label, off, scale = _display(t_hi[p], text)
-            limit = off + scale * bp[p]
-            out.append(
-                self.finding(
-                    int(data.ids[p]),
-                    f"{names[which]} {_fmt(t_hi[p], text)} is above the boiling point of "
-                    f"{solvent[p]} at 1 atm ({_fmt(bp[p], text)}): heating a sample above its "
-                    "boiling point needs a pressure-rated sealed NMR tube used within its "
-                    f"rating. {DEFER} If no sealed tube was used, check the temperature, its "
-                    "unit, or the solvent.",
-                    reported=opt(shown),
-                    recomputed=opt(limit),
-                    difference=opt(shown - limit),
-                    unit=label,
-                    context="bp",
+        for side, mask, which_of, temps, limits in (
+            ("bp", hot, i_hi, t_hi, bp),
+            ("mp", cold, i_lo, t_lo, mp),
+        ):
+            rows = np.flatnonzero(mask)
+            which = which_of[rows]
+            shown = _Shown([text_cols[texts[w]][p] if texts[w] else None
+                            for w, p in zip(which, rows, strict=True)])  # fmt: skip
+            for i, p in enumerate(rows):
+                t, limit = temps[p], limits[p]
+                name = names[int(which[i])]
+                value, limit_shown = shown.value(i, t), shown.value(i, limit)
+                if side == "bp":
+                    message = (
+                        f"{name} {shown.text(i, t)} is above the boiling point of {solvent[p]} at "
+                        f"1 atm ({shown.text(i, limit)}): heating a sample above its boiling "
+                        "point needs a pressure-rated sealed NMR tube used within its rating. "
+                        f"{DEFER} If no sealed tube was used, check the temperature, its unit, "
+                        "or the solvent."
+                    )
+                else:
+                    message = (
+                        f"{name} {shown.text(i, t)} is below the melting point of {solvent[p]} "
+                        f"({shown.text(i, limit)}): the sample would be frozen; check the "
+                        "temperature, its unit, or the solvent"
+                    )
+                out.append(
+                    self.finding(
+                        int(data.ids[p]),
+                        message,
+                        reported=opt(value),
+                        recomputed=opt(limit_shown),
+                        difference=opt(value - limit_shown),
+                        unit=shown.labels[i],
+                        context=side,
+                    )
                 )
-            )
-        for p in np.flatnonzero(cold):
-            which = int(i_lo[p])
-            text = data.m[texts[which]].iloc[p] if texts[which] else None
-            shown, label, off, scale = _display(t_lo[p], text)
-            limit = off + scale * mp[p]
-            out.append(
-                self.finding(
-                    int(data.ids[p]),
-                    f"{names[which]} {_fmt(t_lo[p], text)} is below the melting point of "
-                    f"{solvent[p]} ({_fmt(mp[p], text)}): the sample would be frozen; check the "
-                    "temperature, its unit, or the solvent",
-                    reported=opt(shown),
-                    recomputed=opt(limit),
-                    difference=opt(shown - limit),
-                    unit=label,
-                    context="mp",
-                )
-            )
         return out
 
 
