@@ -313,6 +313,19 @@ def test_index_loads_clean_filters_and_sorts(browser: Browser, built, tmp_path: 
     assert browser.js("window.fluxErrors.length") == 0
 
 
+def test_filter_from_the_address(browser: Browser, built) -> None:  # type: ignore[no-untyped-def]
+    """index.html#q=words opens with the filter filled in (a shareable filtered view)."""
+    _, out, _ = built
+    browser.open("about:blank")  # from index.html a '#q=' address would not reload the page
+    mark = len(browser.events)
+    browser.open((out / "index.html").as_uri() + "#q=ferrocene%20cdcl3")
+    assert browser.js("document.getElementById('filter').value") == "ferrocene cdcl3"
+    assert (
+        browser.js("document.querySelectorAll('#measurements tbody tr:not([hidden])').length") == 1
+    )
+    assert browser.problems(mark) == []
+
+
 def test_compound_page_shows_structure_and_plot(browser: Browser, built, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
     from registry import api
 
