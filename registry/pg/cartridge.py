@@ -208,33 +208,34 @@ def status(conn: Connection) -> CartridgeStatus:
     )
 
 
-def server_screen(conn: Connection, smarts: str) -> list[int] | None:
+def server_screen(conn: Connection, smarts: str, *, smiles: bool = False) -> list[int] | None:
     """Candidate compound ids for a SMARTS, screened by the server; None to fall back.
 
     The list holds every compound whose server-side molecule matches the query plus every
     compound the server could not read (``mol`` NULL: unsanitizable structures, missing SMILES),
     sorted by id. ``None`` means "no server-side screen here": SQLite, no cartridge, no ``mol``
-    column, or a SMARTS the server's (older) RDKit cannot read or match. Callers must confirm
-    the candidates with the client's RDKit (see the module docstring for why).
+    column, or a pattern the server's (older) RDKit cannot read or match. With ``smiles=True``
+    the text is a SMILES read as a substructure query (as the client reads ``find --smiles``).
+    Callers must confirm the candidates with the client's RDKit (see the module docstring).
     """
     if not has_server_search(conn):
         return None
+    reader = "mol_from_smiles" if smiles else "qmol_from_smarts"
+    pattern = f"{reader}(CAST(:pattern AS cstring))"
     try:
         with conn.begin_nested():
             readable = conn.execute(
-                text("SELECT qmol_from_smarts(CAST(:smarts AS cstring)) IS NOT NULL"),
-                {"smarts": smarts},
+                text(f"SELECT {pattern} IS NOT NULL"), {"pattern": smarts}
             ).scalar()
             if not readable:
                 return None
             rows = conn.execute(
                 text(
-                    f"SELECT id FROM compound WHERE {MOL_COLUMN} @> "
-                    "qmol_from_smarts(CAST(:smarts AS cstring)) "
+                    f"SELECT id FROM compound WHERE {MOL_COLUMN} @> {pattern} "
                     f"UNION SELECT id FROM compound WHERE {MOL_COLUMN} IS NULL "
                     "ORDER BY id"
                 ),
-                {"smarts": smarts},
+                {"pattern": smarts},
             )
             return [r[0] for r in rows]
     except DBAPIError:
