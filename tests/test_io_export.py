@@ -39,6 +39,15 @@ def filled(database: Database, tmp_path: Path) -> Database:
     ]  # fmt: skip
     rates = [["label", "T (°C)", "k (s-1)", "σ_k"], ["E3", 80, 20.5, 1.0], ["E3", 90, 48.0, 2.5]]
     import_table(database, write_xlsx(tmp_path / "src.xlsx", {"entries": entries, "rates": rates}))
+    from registry.entry import EntryInput
+
+    api.add_measurement(  # entered on the command line: the field text is a bare "400"
+        database,
+        EntryInput(
+            method="coalescence", compound="X5", smiles="CC(=O)N1CCCCC1", solvent="CDCl3",
+            field="400", tc="40 °C", dnu="0.1 ppm", label="E5", units={"field": "MHz"},
+        ),
+    )  # fmt: skip
     return database
 
 
@@ -73,13 +82,13 @@ def test_export_then_import_into_an_empty_registry_reproduces_it(
 ) -> None:
     out = tmp_path / f"export.{fmt}"
     summary = export_measurements(filled, out, fmt)
-    assert summary["measurements"] == 4 and summary["rate_points"] == 2
+    assert summary["measurements"] == 5 and summary["rate_points"] == 2
     empty_path = tmp_path / "empty.sqlite"
     api.init_registry(str(empty_path))
     empty = api.open_registry(str(empty_path))
     try:
         result = import_table(empty, out)
-        assert result["added"] == 4
+        assert result["added"] == 5
         assert _canonical(empty) == _canonical(filled)
         again = import_table(empty, out)
         assert (again["added"], again["updated"]) == (0, 0)

@@ -269,6 +269,9 @@ def _read_entries(result: ReadResult, rs: RawSheet, plan: SheetPlan, head: int) 
     errors = plan.error_columns()
     extras = plan.extra_columns()
     units = {f: c.unit for f, c in values.items() if c.unit}
+    # a bare spectrometer frequency is in MHz (common practice, no source); as for `add`, the
+    # text stays as written and the unit goes to the parser only
+    units.setdefault("field", "MHz")
     used = {c.index for c in plan.columns if c.role in ("value", "error", "extra")}
     texts: dict[int, list[str | None]] = {
         j: column_texts(body.iloc[:, j]) if j < body.shape[1] else [None] * n_rows for j in used
@@ -726,7 +729,10 @@ def prepare(
     bad_rows = {(p.sheet, p.row) for p in problems}
     for i, ((ne, probs), src) in enumerate(zip(normalized, read.sources, strict=True)):
         if probs:
-            problems.extend(_problem_to_row(read.file, src, p) for p in probs)
+            rows = [_problem_to_row(read.file, src, p) for p in probs]
+            if (src.sheet, src.row) in bad_rows:  # already rejected while reading: no echoes
+                rows = [p for p in rows if "needs both Tc and Δν" not in p.reason]
+            problems.extend(_without_echoes(rows))
             continue
         assert ne is not None
         structure = None
@@ -796,6 +802,15 @@ def prepare(
         kept = [kept[j] for j in keep]
     # an entry whose rate row was bad is imported without that point only with --skip-bad
     return Prepared(read, entries, structures, kept, _by_row(problems))
+
+
+def _without_echoes(problems: list[RowProblem]) -> list[RowProblem]:
+    """Drop "coalescence data needs both Tc and Δν" when Tc or Δν itself was the problem."""
+    flagged = {p.column for p in problems if p.text}
+    pair = [p for p in problems if "needs both Tc and Δν" in p.reason]
+    if pair and len(problems) > len(pair) and flagged:
+        return [p for p in problems if p not in pair]
+    return problems
 
 
 def _by_row(problems: Sequence[RowProblem]) -> dict[tuple[str | None, int], list[RowProblem]]:

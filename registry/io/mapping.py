@@ -246,9 +246,6 @@ def plan_sheet(
         for col in columns:
             if col.field == field_name and col.role in ("value", "error") and not col.unit:
                 col.unit = unit
-    for col in columns:  # a bare spectrometer frequency is in MHz (common practice, no source)
-        if col.field == "field" and col.role == "value" and not col.unit:
-            col.unit = "MHz"
     for col in columns:
         if col.role in ("value", "error") and col.field in VALUE_QUANTITY and col.unit:
             _check_header_unit(file, sheet, header_row, col, problems, notes)

@@ -63,6 +63,11 @@ def _structure_chunk(smiles: list[str]) -> list[tuple[Structure | None, str | No
     return out
 
 
+def _chunk_size(n: int, largest: int) -> int:
+    """At least ~8 chunks per worker, so that the last chunks do not leave a core idle."""
+    return max(1, min(largest, -(-n // 16)))
+
+
 def _chunks(items: Sequence[Any], size: int) -> list[list[Any]]:
     return [list(items[i : i + size]) for i in range(0, len(items), size)]
 
@@ -84,7 +89,8 @@ def normalize_all(
             progress(len(entries) % 500)
         return out
     results: list[tuple[NormalizedEntry | None, list[Problem]]] = []
-    for chunk in pool.map(_normalize_chunk, [(c, kinds) for c in _chunks(entries, CHUNK_ROWS)]):
+    size = _chunk_size(len(entries), CHUNK_ROWS)
+    for chunk in pool.map(_normalize_chunk, [(c, kinds) for c in _chunks(entries, size)]):
         results.extend(chunk)
         if progress:
             progress(len(chunk))
@@ -106,7 +112,7 @@ def read_structures(
             progress(len(distinct) % 200)
         return out
     results: dict[str, tuple[Structure | None, str | None]] = {}
-    chunks = _chunks(distinct, CHUNK_SMILES)
+    chunks = _chunks(distinct, _chunk_size(len(distinct), CHUNK_SMILES))
     for chunk, parsed in zip(chunks, pool.map(_structure_chunk, chunks), strict=True):
         results.update(zip(chunk, parsed, strict=True))
         if progress:

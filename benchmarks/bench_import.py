@@ -1,0 +1,202 @@
+"""Import of a spreadsheet with structures against the bare pipeline, measured in the same run.
+
+    .venv/bin/python benchmarks/bench_import.py [--rows 100000] [--repeats 3] [--format csv]
+
+Bare pipeline (the floor): pandas read → RDKit MolFromSmiles → MolToInchiKey → one sqlite3
+executemany in one transaction, single process. fluxledger: ``registry.io.import_table`` into a
+fresh registry (header mapping, every value through the unit layer, structures parsed in a pool
+of 2 processes with InChI, InChIKey, pattern fingerprint and mol binary, compounds, measurements,
+coalescence rows and revisions written, validation rules run on the new rows). Both print
+medians; the ratio is fluxledger / bare. Nothing is asserted (RULES 5).
+
+Molecules: the open SMILES set in the PyPI ``molsets`` wheel (``moses/dataset/data/
+train.csv.gz``). Installing molsets drags in torch and a pinned pomegranate that does not build
+on current Python, so this script downloads the wheel with ``pip download --no-deps molsets``
+into ``benchmarks/out/`` and reads the csv.gz straight out of the wheel zip.
+
+``--what-if-cache`` adds a third timing with ``registry.units.parse_value`` memoized (an
+experiment in this process only, to size a possible change to the unit layer; not a product
+path).
+"""
+
+from __future__ import annotations
+
+import argparse
+import gzip
+import io
+import os
+import sqlite3
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+import zipfile
+from collections.abc import Callable
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+OUT = Path(__file__).resolve().parent / "out"
+MEMBER = "moses/dataset/data/train.csv.gz"
+
+
+def molsets_smiles(n: int) -> list[str]:
+    """The first ``n`` SMILES of the molsets training set, read from the wheel."""
+    wheels = sorted(OUT.glob("molsets-*.whl"))
+    if not wheels:
+        OUT.mkdir(parents=True, exist_ok=True)
+        subprocess.run(
+            [sys.executable, "-m", "pip", "download", "--no-deps", "--quiet", "molsets", "-d", OUT],
+            check=True,
+        )
+        wheels = sorted(OUT.glob("molsets-*.whl"))
+    with zipfile.ZipFile(wheels[-1]) as zf:
+        raw = gzip.decompress(zf.read(MEMBER))
+    frame = pd.read_csv(io.BytesIO(raw), nrows=n)
+    return frame["SMILES"].astype(str).tolist()
+
+
+def make_sheet(smiles: list[str], path: Path, fmt: str) -> None:
+    """A group-style sheet: one coalescence measurement per molecule, values with units."""
+    from registry.kinetics import coalescence_barrier
+
+    n = len(smiles)
+    rng = np.random.default_rng(7)
+    tc = rng.integers(200, 370, n).astype(float)
+    dnu = np.round(rng.uniform(5.0, 200.0, n), 1)
+    dg = np.round(np.asarray(coalescence_barrier(tc, dnu).dg_kj_mol), 1)
+    frame = pd.DataFrame(
+        {
+            "label": [f"M{i}" for i in range(n)],
+            "compound": [f"C{i}" for i in range(n)],
+            "SMILES": smiles,
+            "method": "coalescence",
+            "solvent": "toluene-d8",
+            "field (MHz)": 400,
+            "Tc (K)": tc.astype(int),
+            "Δν (Hz)": dnu,
+            "ΔG‡ (kJ/mol)": dg,
+            "ref": "benchmark",
+        }
+    )
+    if fmt == "csv":
+        frame.to_csv(path, index=False)
+    else:
+        frame.to_excel(path, index=False, engine="openpyxl")
+
+
+def bare_pipeline(path: Path, fmt: str, db: Path) -> None:
+    """pandas read → MolFromSmiles → MolToInchiKey → one executemany (single process)."""
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    frame = pd.read_csv(path) if fmt == "csv" else pd.read_excel(path, engine="calamine")
+    rows = []
+    for label, smi, tc, dnu, dg in zip(
+        frame["label"], frame["SMILES"], frame["Tc (K)"], frame["Δν (Hz)"], frame["ΔG‡ (kJ/mol)"],
+        strict=True,
+    ):  # fmt: skip
+        mol = Chem.MolFromSmiles(smi)
+        key = Chem.MolToInchiKey(mol) if mol is not None else None
+        rows.append((label, smi, key, float(tc), float(dnu), float(dg)))
+    conn = sqlite3.connect(db)
+    conn.execute(
+        "CREATE TABLE m (label TEXT, smiles TEXT, inchikey TEXT, tc REAL, dnu REAL, dg REAL)"
+    )
+    with conn:
+        conn.executemany("INSERT INTO m VALUES (?, ?, ?, ?, ?, ?)", rows)
+    conn.close()
+
+
+def fluxledger_import(path: Path, db: Path, stages: dict[str, list[float]]) -> None:
+    from registry import api
+    from registry.io import importer
+
+    api.init_registry(str(db))
+    database = api.open_registry(str(db))
+    real_hook = importer.run_validation_hook
+
+    def timed_hook(*args, **kwargs):  # type: ignore[no-untyped-def]
+        t0 = time.perf_counter()
+        try:
+            return real_hook(*args, **kwargs)
+        finally:
+            stages.setdefault("validation", []).append(time.perf_counter() - t0)
+
+    importer.run_validation_hook = timed_hook
+    try:
+        summary = importer.import_table(database, path, workers=2)
+    finally:
+        importer.run_validation_hook = real_hook
+        database.dispose()
+    if summary["rejected"] or summary["problems"]:
+        print(f"  note: {summary['rejected']} rows rejected", file=sys.stderr)
+
+
+def timed(fn: Callable[[], None], repeats: int) -> list[float]:
+    out = []
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        fn()
+        out.append(time.perf_counter() - t0)
+    return out
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    ap.add_argument("--rows", type=int, default=100_000)
+    ap.add_argument("--repeats", type=int, default=3)
+    ap.add_argument("--format", choices=("csv", "xlsx"), default="csv")
+    ap.add_argument("--what-if-cache", action="store_true")
+    args = ap.parse_args()
+    os.environ.setdefault("FLUXLEDGER_USER", "bench")
+    smiles = molsets_smiles(args.rows)
+    with tempfile.TemporaryDirectory() as tmp:
+        tmpdir = Path(tmp)
+        sheet = tmpdir / f"sheet.{args.format}"
+        make_sheet(smiles, sheet, args.format)
+        print(f"{len(smiles)} rows ({args.format}), {len(set(smiles))} distinct SMILES, "
+              f"{os.cpu_count()} cores, load average {os.getloadavg()[0]:.1f}")  # fmt: skip
+        counter = iter(range(10_000))
+        stages: dict[str, list[float]] = {}
+        results: dict[str, list[float]] = {}
+        for _ in range(args.repeats):  # interleaved, so drifting machine load hits both alike
+            n = next(counter)
+            results.setdefault("bare", []).extend(
+                timed(lambda n=n: bare_pipeline(sheet, args.format, tmpdir / f"b{n}.sqlite"), 1)
+            )
+            results.setdefault("fluxledger", []).extend(
+                timed(lambda n=n: fluxledger_import(sheet, tmpdir / f"f{n}.sqlite", stages), 1)
+            )
+            if args.what_if_cache:
+                from functools import lru_cache
+
+                from registry import entry as entry_mod
+
+                original = entry_mod.parse_value
+                entry_mod.parse_value = lru_cache(maxsize=None)(original)  # experiment only
+                try:
+                    results.setdefault("fluxledger, parse_value memoized (what-if)", []).extend(
+                        timed(
+                            lambda n=n: fluxledger_import(sheet, tmpdir / f"c{n}.sqlite", {}),
+                            1,
+                        )
+                    )
+                finally:
+                    entry_mod.parse_value = original
+    bare = statistics.median(results["bare"])
+    for name, values in results.items():
+        med = statistics.median(values)
+        runs = ", ".join(f"{v:.1f}" for v in values)
+        print(f"{name:<45} median {med:8.2f} s   ratio {med / bare:5.2f}   (runs: {runs})")
+    if stages.get("validation"):
+        print(
+            f"{'  of which validation rules':<45} median {statistics.median(stages['validation']):8.2f} s"
+        )
+    print("target: fluxledger ≤ 1.5 × bare")
+
+
+if __name__ == "__main__":
+    main()
