@@ -282,3 +282,35 @@ def test_cli_import_and_dry_run(cli, tmp_path: Path, sample_csv: Path) -> None: 
     result = cli("import", str(sample_csv))
     assert result.exit_code == 0
     assert "0 added, 0 updated, 2 unchanged" in result.stdout
+
+
+def test_ods_and_tsv_files(database: Database, tmp_path: Path) -> None:
+    import pandas as pd
+
+    frame = pd.DataFrame(
+        {"compound": ["O1"], "method": ["coalescence"], "Tc/K": [300], "dnu (Hz)": [20.0],
+         "dG (kJ/mol)": ["60.1"]}
+    )  # fmt: skip
+    frame.to_excel(tmp_path / "s.ods", index=False, engine="odf", sheet_name="data")
+    summary = import_table(database, tmp_path / "s.ods", sheet="data")
+    assert summary["added"] == 1
+    frame["compound"] = ["O2"]
+    frame.to_csv(tmp_path / "s.tsv", sep="\t", index=False)
+    assert import_table(database, tmp_path / "s.tsv")["added"] == 1
+    record = api.get_measurement(database, summary["measurement_ids"]["added"][0])
+    assert record["dg_kj_mol"] == pytest.approx(60.1)
+    assert record["coalescence"][0]["tc_k"] == pytest.approx(300.0)
+
+
+def test_semicolon_csv_with_decimal_commas(database: Database, tmp_path: Path) -> None:
+    path = tmp_path / "eu.csv"
+    path.write_text(
+        "compound;method;Tc (°C);Δν (Hz);ΔG‡ (kJ/mol);Bemerkung\nK1;coalescence;-12,5;24,5;55,3;gut\n",
+        encoding="utf-8",
+    )
+    summary = import_table(database, path)
+    record = api.get_measurement(database, summary["measurement_ids"]["added"][0])
+    # -12.5 °C = 260.65 K (NIST SP 811 (2008) 4.2.1.1)
+    assert record["coalescence"][0]["tc_k"] == pytest.approx(260.65)
+    assert record["dg_kj_mol"] == pytest.approx(55.3)
+    assert record["extra"] == {"Bemerkung": "gut"}
