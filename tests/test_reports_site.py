@@ -324,7 +324,8 @@ def test_finding_of_a_known_rule_says_what_the_rule_checks(database, tmp_path) -
     site.build_report(database, tmp_path / "r", plots=False)
     compound_id = api.get_measurement(database, mid)["compound"]["id"]
     page = (tmp_path / "r" / "compounds" / f"c{compound_id}.html").read_text(encoding="utf-8")
-    assert f"What this rule checks: {html.escape(rule.title)}" in page
+    title = rule.title[:1].upper() + rule.title[1:]
+    assert f"What this rule checks: {html.escape(title)}" in page
 
 
 def test_report_never_replaces_folders_it_did_not_write(database, tmp_path) -> None:  # type: ignore[no-untyped-def]

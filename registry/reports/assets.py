@@ -63,6 +63,7 @@ table.grid tbody tr:hover { background: #f4efe3; }
 section.card { background: var(--panel); border: 1px solid var(--rule); border-radius: 8px;
   padding: 14px 18px; margin: 16px 0; }
 section.card h2, section.card h3 { margin: 0 0 8px; font-size: 16px; }
+section.card h3 { margin-top: 14px; }
 .compound-head { display: grid; grid-template-columns: 340px 1fr; gap: 22px; align-items: start; }
 figure.structure { margin: 0; background: var(--panel); border: 1px solid var(--rule);
   border-radius: 8px; min-height: 240px; display: flex; align-items: center;

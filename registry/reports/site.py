@@ -10,6 +10,7 @@ and from ``file://``. Every piece of user text goes through :func:`html.escape`.
 from __future__ import annotations
 
 import math
+import re
 import shutil
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
@@ -220,10 +221,18 @@ def _rule_explanation(rule_id: str) -> str | None:
     if rule is None:
         return None
     title = str(getattr(rule, "title", "") or "").strip()
-    doc = " ".join((type(rule).__doc__ or "").split())
+    title = title[:1].upper() + title[1:]
+    doc = _plain_text((type(rule).__doc__ or "").strip().split("\n\n")[0])
     if title and doc:
         return f"{title}. {doc}"
     return title or doc or None
+
+
+def _plain_text(doc: str) -> str:
+    """A docstring paragraph for readers: reST roles and literals become plain words."""
+    text = re.sub(r":[a-z]+:`~?([^`]+)`", r"\1", doc)
+    text = text.replace("``", "")
+    return " ".join(text.split())
 
 
 def _finding_item(f: Mapping[str, Any]) -> str:
