@@ -55,7 +55,12 @@ def _lock_chain(conn: Connection) -> None:
 
 
 def last_hash(conn: Connection) -> str:
-    row = conn.execute(select(Revision.hash).order_by(Revision.id.desc()).limit(1)).scalar()
+    """The newest revision's hash (GENESIS for an empty history).
+
+    Plain SQL on purpose: this runs on every write, and building the equivalent ``select()``
+    costs more than the primary-key lookup itself.
+    """
+    row = conn.exec_driver_sql("SELECT hash FROM revision ORDER BY id DESC LIMIT 1").scalar()
     return row or GENESIS
 
 
