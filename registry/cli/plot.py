@@ -94,7 +94,7 @@ def eyring(
         print_json(data)
         return
     typer.echo(f"wrote {written}: Eyring plot of {summary.n_points} rate points")
-    for line in plots._eyring_text(summary, unit)[:4]:
+    for line in plots.eyring_text(summary, unit)[:4]:
         typer.echo(f"  {line}")
     for warning in summary.warnings:
         typer.echo(f"note: {warning}")

@@ -38,6 +38,8 @@ if TYPE_CHECKING:
 FORMATS = {".png": "png", ".svg": "svg"}
 #: the reference temperature for ΔG‡ in papers: 25 °C (common practice, no source)
 T_STANDARD_K = 298.15
+#: a boiling point this close above the drawn temperatures is still drawn (common practice)
+NEAR_BOILING_K = 20.0
 #: spectrometer fields marked on coalescence plots, MHz (common instruments; common practice)
 COMMON_FIELDS_MHZ = (300.0, 400.0, 500.0, 600.0, 800.0)
 
@@ -233,7 +235,7 @@ def eyring_figure(
         top.tick_params(colors=theme.MUTED, labelcolor=theme.MUTED)
         if title:
             ax.set_title(title)
-        lines = _eyring_text(summary, energy_unit)
+        lines = eyring_text(summary, energy_unit)
         ax.text(
             0.98,
             0.97,
@@ -256,7 +258,8 @@ def _thousand_over(x: NDArray) -> NDArray:
         return np.where(np.abs(x) > 1e-9, 1e3 / np.where(np.abs(x) > 1e-9, x, 1.0), np.inf)
 
 
-def _eyring_text(s: EyringSummary, energy_unit: str) -> list[str]:
+def eyring_text(s: EyringSummary, energy_unit: str) -> list[str]:
+    """The lines written on an Eyring figure (and printed by the CLI), ± one standard error."""
     ref = f"ΔG‡({s.t_ref_k:.2f} K) = {_energy(s.dg_ref_kj_mol, s.dg_ref_err_kj_mol, energy_unit)}"
     if abs(s.t_ref_k - s.t_mean_k) > 10.0 and any("extrapolated" in w for w in s.warnings):
         ref += "  (extrapolated)"
@@ -386,6 +389,8 @@ def coalescence_figure(
         lo_y, hi_y = ax.get_ylim()
         if solvent:
             bp, mp = solvent.get("bp_k"), solvent.get("mp_k")
+            if bp is not None and hi_y < bp < hi_y + NEAR_BOILING_K:
+                hi_y = bp + 0.2 * NEAR_BOILING_K  # close enough that the reader should see it
             name = solvent.get("name") or "solvent"
             if bp is not None and bp < hi_y:
                 ax.axhspan(bp, hi_y, color=theme.WARN, alpha=0.08, linewidth=0)
