@@ -502,6 +502,9 @@ def summarize(action: str, before: Any, after: Any) -> str:
         return ", ".join(parts)
     if not isinstance(before, dict) or not isinstance(after, dict):
         return action
+    if action == "accept-finding" and "finding" in after:
+        rule = f" [{after['rule']}]" if after.get("rule") else ""
+        return f"accepted finding {after['finding']}{rule} {after.get('severity') or ''}".rstrip()
     old, new = _flatten(before), _flatten(after)
     keys = sorted({*old, *new})
     hidden = {

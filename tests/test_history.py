@@ -232,3 +232,25 @@ def test_summary_shows_texts_not_the_floats_behind_them() -> None:
         {"dg_text": "60 kJ/mol", "dg_kj_mol": 60.0, "dg_err_kj_mol": None},
     )
     assert line == "dg_text: '14.2 kcal/mol' → '60 kJ/mol'"
+
+
+def test_accepting_a_finding_appears_in_the_measurement_history(cli, db_path: Path) -> None:  # type: ignore[no-untyped-def]
+    from registry import validation
+
+    assert cli(*ADD_AMIDE).exit_code == 0  # 14.2 kcal/mol is far from what Tc and Δν give
+    database = api.open_registry(str(db_path))
+    try:
+        finding = api.get_measurement(database, 1)["findings"][0]
+        validation.accept_finding(database, finding["id"], "solvent effect", actor="erin")
+        entries = edits.history(database, 1, limit=None)
+    finally:
+        database.dispose()
+    last = entries[-1]
+    assert (last["actor"], last["action"], last["reason"]) == (
+        "erin",
+        "accept-finding",
+        "solvent effect",
+    )
+    assert last["summary"] == (
+        f"accepted finding {finding['id']} [{finding['rule_id']}] {finding['severity']}"
+    )
