@@ -76,16 +76,18 @@ class CoalescenceBarrier(Rule):
         tc_labels, _, _ = temperature_units(
             data.m["tc_text"].iloc[positions].reset_index(drop=True)
         )
-        k1 = rec.k1_per_s[bad]
-        k2 = rec.k2_per_s[bad]
+        k1 = rec.k1_per_s[bad].tolist()
+        k2 = rec.k2_per_s[bad].tolist()
+        rec_bad, tol_bad, first_bad = recomputed[bad].tolist(), tol[bad].tolist(), first[bad]
+        kinds = np.where(sub.unequal, 2, np.where(sub.coupled, 1, 0)).tolist()
         ids = data.ids[positions]
         out: list[Finding] = []
         for i in range(positions.size):
             unit, f = labels[i], float(factors[i])
             rep_u = float(sub.reported_kj_mol[i]) * f
-            rec_u = float(recomputed[bad][i]) * f
-            tol_u = float(tol[bad][i]) * f
-            formula = _formula_text(sub, i, bool(first[bad][i]), float(k1[i]), float(k2[i]))
+            rec_u = rec_bad[i] * f
+            tol_u = tol_bad[i] * f
+            formula = _formula_text(sub, i, kinds[i], bool(first_bad[i]), k1[i], k2[i])
             where = ""
             if np.isfinite(sub.dg_t_k[i]) and abs(sub.dg_t_k[i] - sub.tc_k[i]) > 0.5:
                 where = (
@@ -124,14 +126,17 @@ class CoalescenceBarrier(Rule):
         return out
 
 
-def _formula_text(inp: CoalescenceInputs, i: int, major: bool, k1: float, k2: float) -> str:
-    if inp.unequal[i]:
+def _formula_text(
+    inp: CoalescenceInputs, i: int, kind: int, major: bool, k1: float, k2: float
+) -> str:
+    """Which formula was used (kind 0 Gutowsky–Holm, 1 coupled AB, 2 unequal populations)."""
+    if kind == 2:
         which = "leaving the major site" if major else "leaving the minor site"
         k = k1 if major else k2
         return (
             f"unequal populations {inp.ratio[i]:.2f}:1, Shanan-Atidi–Bar-Eli, {which}, "
             f"k = {k:.4g} s⁻¹"
         )
-    if inp.coupled[i]:
+    if kind == 1:
         return f"coupled AB, J = {inp.j_hz[i]:.3g} Hz, k_c = π√(Δν²+6J²)/√2 = {k1:.4g} s⁻¹"
     return f"Gutowsky–Holm, k_c = πΔν/√2 = {k1:.4g} s⁻¹"

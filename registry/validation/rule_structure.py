@@ -38,9 +38,11 @@ class StructureParses(Rule):
 
 def _match_key(frame: pd.DataFrame) -> pd.DataFrame:
     """compound, process, method and solvent (table id, else the spelling key) of each row."""
-    solvent = frame["solvent_id"].astype("Int64").astype(str)
-    fallback = frame["solvent_text"].fillna("").astype(str).map(vocab.solvent_key)
-    key = np.where(frame["solvent_id"].notna(), "id:" + solvent, "text:" + fallback)
+    in_table = frame["solvent_id"].notna().to_numpy()
+    key = np.empty(len(frame), dtype=object)
+    key[in_table] = [f"id:{v:d}" for v in frame["solvent_id"].to_numpy()[in_table].tolist()]
+    others = frame["solvent_text"].to_numpy(dtype=object)[~in_table]
+    key[~in_table] = ["text:" + vocab.solvent_key(str(t or "")) for t in others]
     return pd.DataFrame(
         {
             "id": frame["id"].to_numpy(),
