@@ -70,14 +70,17 @@ class Browser:
             "--window-size=1280,900",
             "about:blank",
         ]
+        self._log = profile / "chromium.log"
+        log = self._log.open("wb")
         self.proc = subprocess.Popen(
             args,
             stdin=subprocess.DEVNULL,
             stdout=subprocess.DEVNULL,
-            stderr=subprocess.DEVNULL,
+            stderr=log,
             pass_fds=(3, 4),
             preexec_fn=wire_fds,
         )
+        log.close()
         os.close(read_theirs)
         os.close(write_theirs)
         self._out = os.fdopen(write_ours, "wb", buffering=0)
@@ -126,16 +129,31 @@ class Browser:
         message: dict[str, Any] = {"id": self._next, "method": method, "params": params or {}}
         if session:
             message["sessionId"] = self.session
-        self._out.write(json.dumps(message).encode() + b"\0")
+        try:
+            self._out.write(json.dumps(message).encode() + b"\0")
+        except BrokenPipeError as exc:
+            raise AssertionError(
+                f"the browser is gone (exit {self.proc.poll()}); its log ends:\n{self.log_tail()}"
+            ) from exc
         deadline = time.monotonic() + TIMEOUT_S
         while self._next not in self._replies:
             if time.monotonic() > deadline or self.proc.poll() is not None:
-                raise AssertionError(f"no answer from the browser to {method}")
+                raise AssertionError(
+                    f"no answer from the browser to {method}; its log ends:\n{self.log_tail()}"
+                )
             self._pump(deadline)
         reply = self._replies.pop(self._next)
         if "error" in reply:
             raise AssertionError(f"{method}: {reply['error']}")
         return reply.get("result", {})
+
+    def log_tail(self, lines: int = 15) -> str:
+        """The end of the browser's own log, for a failure message."""
+        try:
+            text = self._log.read_text(encoding="utf-8", errors="replace")
+        except OSError:
+            return "(no log)"
+        return "\n".join(text.splitlines()[-lines:])
 
     def wait_event(self, method: str, since: int) -> dict[str, Any]:
         deadline = time.monotonic() + TIMEOUT_S
