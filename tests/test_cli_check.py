@@ -46,7 +46,7 @@ def test_error_exits_1_and_names_the_slip(cli) -> None:  # type: ignore[no-untyp
                                            "recomputed", "difference", "unit", "status"]  # fmt: skip
     assert "coalescence-barrier" in out and "[kcal-as-kj]" in out
     assert out.rstrip().endswith(
-        "checked 2 measurements: 1 error, 1 warning, 0 notes (0 new since the last run, 0 accepted)"
+        "checked 2 measurements: 1 error, 1 warning, 0 notes (2 new since the last run, 0 accepted)"
     )  # the warning: 16 "kJ/mol" is below what dynamic NMR can measure
 
 
@@ -105,3 +105,15 @@ def test_unknown_id_is_reported(cli) -> None:  # type: ignore[no-untyped-def]
     result = cli("check", "--id", "7")
     assert result.exit_code == 0
     assert "warning: no measurement 7 to check (unknown or retracted)" in result.stderr
+
+
+def test_new_means_since_the_last_check(cli) -> None:  # type: ignore[no-untyped-def]
+    add(cli, "K-1", f"{DG + 2:.2f} kJ/mol")
+    first = json.loads(cli("check", "--json", "--new").stdout)
+    assert [f["measurement_id"] for f in first] == [1]  # stored by add, new to check
+    assert json.loads(cli("check", "--json", "--new").stdout) == []
+    add(cli, "K-2", f"{DG - 2:.2f} kJ/mol")
+    later = cli("check", "--new")
+    assert later.exit_code == 1
+    assert "(1 new since the last run, 0 accepted)" in later.stdout
+    assert [f["measurement_id"] for f in json.loads(cli("check", "--json").stdout)] == [1, 2]

@@ -92,7 +92,9 @@ def check(
         config = CheckConfig(dg_tolerance_kj_mol=value)
     st = state(ctx)
     database = api.open_registry(st.db)
-    report = check_measurements(database, ids or None, actor=st.actor, config=config)
+    report = check_measurements(
+        database, ids or None, actor=st.actor, config=config, record_run=True
+    )
     shown = report.select(severity=severity.lower() if severity else None, new_only=new)
     missing = sorted(set(ids or ()) - set(report.measurement_ids))
     if as_json:

@@ -16,15 +16,17 @@ Map (data flows top to bottom):
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from datetime import UTC, datetime
+
+from sqlalchemy import Connection
 
 from registry.store import Database, current_user
 from registry.validation.base import SEVERITIES, SEVERITY_RANK, CheckConfig, Finding, Rule
 from registry.validation.data import load_check_data
 from registry.validation.engine import RULES, rule_by_id, run_rules
 from registry.validation.slips import SLIP_IDS
-from registry.validation.store import accept, reconcile
+from registry.validation.store import accept, last_run, reconcile, record_check_run
 
 __all__ = [
     "RULES",
@@ -99,12 +101,15 @@ def check_measurements(
     *,
     actor: str | None = None,
     config: CheckConfig | None = None,
+    record_run: bool = False,
 ) -> CheckReport:
     """Run every rule on the measurements ``ids`` (None: all), store the findings, return them.
 
-    Findings whose inputs and rule version are unchanged keep their date and acceptance; new
-    ones are marked ``new``; ones no longer produced are removed. ``actor`` is who ran the check
-    (kept on the report; accepting a finding is what the history records).
+    Findings whose inputs and rule version are unchanged keep their date and acceptance; ones
+    no longer produced are removed. A finding is ``new`` when this run stored it or, with
+    ``record_run`` (what ``fluxledger check`` does), when it was stored after the previous
+    recorded check run (e.g. by ``add`` or an import in between); the run itself is then
+    recorded in the history under ``actor``.
     """
     cfg = config or CheckConfig()
     id_list = None if ids is None else sorted({int(i) for i in ids})
@@ -112,7 +117,22 @@ def check_measurements(
         data = load_check_data(conn, id_list)
     findings = run_rules(data, cfg)
     now = datetime.now(UTC)
-    stored, added, removed = database.write(lambda conn: reconcile(conn, id_list, findings, now))
+
+    def work(conn: Connection) -> tuple[list[Finding], int, int]:
+        stored, added, removed = reconcile(conn, id_list, findings, now)
+        if not record_run:
+            return stored, added, removed
+        previous = last_run(conn)
+        if previous is not None:
+            stored = [
+                f if f.new or not _after(f.found_at, previous) else _as_new(f) for f in stored
+            ]
+        else:
+            stored = [f if f.new else _as_new(f) for f in stored]
+        record_check_run(conn, actor or current_user(), id_list, _counts(stored))
+        return stored, added, removed
+
+    stored, added, removed = database.write(work)
     return CheckReport(
         findings=tuple(stored),
         checked=len(data.m),
@@ -123,6 +143,19 @@ def check_measurements(
         removed=removed,
         counts=_counts(stored),
     )
+
+
+def _after(at: datetime | None, previous: datetime) -> bool:
+    return at is not None and _utc(at) > _utc(previous)
+
+
+def _utc(at: datetime) -> datetime:
+    """SQLite returns naive datetimes (stored as UTC); PostgreSQL returns aware ones."""
+    return at.replace(tzinfo=UTC) if at.tzinfo is None else at.astimezone(UTC)
+
+
+def _as_new(f: Finding) -> Finding:
+    return replace(f, new=True)
 
 
 def accept_finding(

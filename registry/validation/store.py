@@ -17,7 +17,7 @@ from sqlalchemy import Connection, bindparam, delete, insert, select, update
 
 from registry import audit
 from registry.errors import NotFoundError, UsageError
-from registry.models import ValidationFinding
+from registry.models import Revision, ValidationFinding
 from registry.validation.base import SEVERITY_RANK, Finding
 
 _T = ValidationFinding.__table__
@@ -165,3 +165,32 @@ def accept(conn: Connection, finding_id: int, reason: str, actor: str) -> Findin
     )
     fresh = conn.execute(select(_T).where(_T.c.id == finding_id)).mappings().one()
     return finding_from_row(fresh)
+
+
+#: how a check run appears in the history (one revision per ``fluxledger check``)
+RUN_ENTITY, RUN_ACTION = "validation", "check"
+
+
+def last_run(conn: Connection) -> datetime | None:
+    """When the previous recorded check run happened (None if never)."""
+    return conn.execute(
+        select(Revision.at)
+        .where(Revision.entity == RUN_ENTITY, Revision.action == RUN_ACTION)
+        .order_by(Revision.id.desc())
+        .limit(1)
+    ).scalar()
+
+
+def record_check_run(
+    conn: Connection, actor: str, ids: Sequence[int] | None, counts: dict[str, int]
+) -> None:
+    """One history entry per check run: who ran it, on what, and what it found."""
+    scope = "all" if ids is None else (list(ids) if len(ids) <= 20 else f"{len(ids)} measurements")
+    audit.record(
+        conn,
+        entity=RUN_ENTITY,
+        entity_id=0,
+        action=RUN_ACTION,
+        actor=actor,
+        after={"scope": scope, "counts": counts},
+    )
