@@ -9,6 +9,7 @@ this process, where starting a pool would cost more than it saves.
 from __future__ import annotations
 
 import os
+import signal
 from collections.abc import Callable, Iterator, Sequence
 from concurrent.futures import Executor, ProcessPoolExecutor
 from contextlib import contextmanager
@@ -37,13 +38,18 @@ def worker_pool(workers: int, needed: bool) -> Iterator[Executor | None]:
     if not needed or workers <= 1:
         yield None
         return
-    pool = ProcessPoolExecutor(max_workers=workers)
+    pool = ProcessPoolExecutor(max_workers=workers, initializer=_ignore_interrupts)
     try:
         yield pool
     except BaseException:
         pool.shutdown(wait=False, cancel_futures=True)
         raise
     pool.shutdown(wait=True)
+
+
+def _ignore_interrupts() -> None:
+    """Workers leave Ctrl-C to the parent, which cancels the pool and rolls back (no tracebacks)."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
 
 
 def _normalize_chunk(

@@ -217,6 +217,9 @@ def _xlsx_formulas(data: bytes, sheets: list[str]) -> dict[str, dict[tuple[int, 
                     continue
                 xml = zf.read(member).decode("utf-8", "replace")
                 cells: dict[tuple[int, int], str] = {}
+                if "<f>" not in xml and "<f " not in xml and "<f/>" not in xml:
+                    out[name] = cells  # no formula anywhere: skip the cell-by-cell scan
+                    continue
                 for cm in re.finditer(r'<c\b[^>]*?\br="([A-Z]+\d+)"[^>]*>(.*?)</c>', xml, re.S):
                     fm = re.search(r"<f\b[^>]*?(?:/>|>(.*?)</f>)", cm[2], re.S)
                     if fm is not None:
