@@ -243,3 +243,21 @@ def test_nothing_half_written_after_a_failed_import(database: Database, tmp_path
     with database.read() as conn:
         assert conn.execute(select(func.count()).select_from(ImportBatch)).scalar_one() == 1
     assert measurements(database) == 1
+
+
+def test_merged_data_cells_reject_only_their_rows(database: Database, tmp_path: Path) -> None:
+    book = Workbook()
+    sheet = book.active
+    sheet.title = "entries"
+    sheet.append(["compound", "method", "ΔG‡ (kJ/mol)"])
+    sheet.append(["M1", "coalescence", 60])
+    sheet.append(["M2", "coalescence", 61])
+    sheet.append(["M3", "coalescence", 62])
+    sheet.merge_cells("B3:B4")
+    path = tmp_path / "merged_rows.xlsx"
+    book.save(path)
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path)
+    assert [(p.row, p.column) for p in info.value.problems] == [(3, "B"), (4, "B")]
+    summary = import_table(database, path, skip_bad=True)
+    assert (summary["added"], summary["rejected"]) == (1, 2)

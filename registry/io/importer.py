@@ -173,6 +173,7 @@ def read_input(
     notes = list(raw.notes)
     plans: list[SheetPlan] = []
     sheets: list[tuple[RawSheet, SheetPlan, int]] = []
+    later: list[RowProblem] = []  # problems of single data rows (merged cells below the header)
     for rs in raw.sheets:
         notes.extend(n for n in rs.notes if n not in notes)
         head = _header_row(rs.frame)
@@ -181,7 +182,7 @@ def read_input(
                 raise FileFormatError(str(path), "the sheet has no rows", rs.name)
             notes.append(f"sheet {rs.name!r} is empty; skipped")
             continue
-        _merged_problems(file, rs, head, problems)
+        _merged_problems(file, rs, head, problems, later)
         headers = rs.frame.iloc[head].tolist()
         data_cols = {
             j
@@ -215,11 +216,18 @@ def read_input(
             _read_entries(result, rs, plan, head)
         else:
             _read_rates(result, rs, plan, head)
+    result.problems.extend(later)
+    merged_rows = {(p.sheet, p.row or 0) for p in later}
+    for rr in [rr for rr in result.rate_rows if (rr.sheet, rr.row) in merged_rows]:
+        result.rate_rows.remove(rr)
+        result.bad_rate_rows.add((rr.sheet, rr.row))
     _attach_rates(result)
     return result
 
 
-def _merged_problems(file: str, rs: RawSheet, head: int, problems: list[RowProblem]) -> None:
+def _merged_problems(
+    file: str, rs: RawSheet, head: int, problems: list[RowProblem], later: list[RowProblem]
+) -> None:
     for (r0, c0), (r1, c1) in rs.merged:
         ref = f"{column_letter(c0)}{r0 + 1}:{column_letter(c1)}{r1 + 1}"
         text = None
@@ -227,12 +235,14 @@ def _merged_problems(file: str, rs: RawSheet, head: int, problems: list[RowProbl
             text = cell_text(rs.frame.iat[r0, c0])
         if r0 <= head:
             reason = f"merged header cells ({ref}); use one header row with one name per column"
+            problems.append(RowProblem(file, rs.name, r0 + 1, column_letter(c0), text, reason))
         else:
             reason = (
                 f"merged cells ({ref}): only the first cell holds the value; unmerge them and "
                 "fill every cell"
             )
-        problems.append(RowProblem(file, rs.name, r0 + 1, column_letter(c0), text, reason))
+            for row0 in range(r0, r1 + 1):
+                later.append(RowProblem(file, rs.name, row0 + 1, column_letter(c0), text, reason))
 
 
 def column_texts(series: Any) -> list[str | None]:
