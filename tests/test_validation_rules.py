@@ -11,7 +11,10 @@ from __future__ import annotations
 import math
 
 import numpy as np
+import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from scipy import constants as C
 from sqlalchemy import update
 
@@ -20,6 +23,7 @@ from registry.entry import EntryInput
 from registry.models import Compound
 from registry.store import Database
 from registry.validation import Finding, check_measurements
+from registry.validation.data import energy_units
 from registry.validation.rule_refit import grouped_eyring_fit
 
 R_KJ = C.R / 1000.0
@@ -256,3 +260,35 @@ def test_repeats_in_other_solvents_are_not_compared(database: Database) -> None:
     a = add(database, compound="DUP-3", dg="60 kJ/mol", dg_t="300 K", solvent="CDCl3")
     add(database, compound="DUP-3", dg="66 kJ/mol", dg_t="300 K", solvent="DMSO-d6")
     assert findings(database, a, "repeat-disagrees") == []
+
+
+# --- the units a value was reported in ------------------------------------------------------
+
+_ENERGY_SPELLINGS = {"kJ/mol": 1.0, "kcal/mol": 1 / C.calorie, "kcal mol-1": 1 / C.calorie,
+                     "kJ mol⁻¹": 1.0, "kcal/mol ": 1 / C.calorie}  # fmt: skip
+
+
+@given(
+    value=st.floats(min_value=0.5, max_value=500, allow_nan=False),
+    err=st.one_of(st.none(), st.floats(min_value=0.01, max_value=5)),
+    spelling=st.sampled_from(sorted(_ENERGY_SPELLINGS)),
+)
+@settings(max_examples=60, deadline=None)
+def test_energy_units_read_back_the_written_unit(
+    value: float, err: float | None, spelling: str
+) -> None:
+    from registry.units import parse_value
+
+    text = f"{value:.3f}" + (f" ± {err:.2f}" if err else "") + f" {spelling}"
+    stored = parse_value(text, "energy").value
+    labels, factors = energy_units(pd.Series([text, None]), pd.Series([stored, np.nan]))
+    assert labels[0] == ("kJ/mol" if _ENERGY_SPELLINGS[spelling] == 1.0 else "kcal/mol")
+    assert stored * factors[0] == pytest.approx(float(f"{value:.3f}"), rel=1e-9)
+    assert labels[1] == "kJ/mol" and factors[1] == 1.0
+
+
+def test_header_unit_is_recovered_from_the_ratio() -> None:
+    # a bare number whose unit came from a spreadsheet header ("ΔG‡ (kcal/mol)")
+    labels, factors = energy_units(pd.Series(["15.2", "63.6"]), pd.Series([15.2 * C.calorie, 63.6]))
+    assert list(labels) == ["kcal/mol", "kJ/mol"]
+    assert factors[0] == pytest.approx(1 / C.calorie)
