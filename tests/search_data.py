@@ -34,9 +34,19 @@ FRAGMENTS = (
     "c1cc(F)ccc1",
     "C=CC",
     "c1ccc2ccccc2c1",
-    "C(F)(F)F",
+    "C(C(F)(F)F)",
 )
-LINKERS = ("C(=O)N", "C(=O)N(C)", "C(=O)O", "NC(=O)N", "S(=O)(=O)N", "CN", "O")
+LINKERS = (
+    "C(=O)N",
+    "C(=O)N(C)",
+    "CC(=O)N",
+    "C(=O)NC",
+    "C(=O)O",
+    "NC(=O)N",
+    "S(=O)(=O)N",
+    "CN",
+    "O",
+)
 
 
 def generated_smiles(
@@ -82,8 +92,8 @@ KNOWN = (
         "equilibration",
     ),
     (
-        "CC(O)=NC",
-        "N-methylacetamide (iminol spelling)",
+        "OC=NC",
+        "N-methylformamide (iminol spelling)",
         "bond-rotation",
         "88 kJ/mol",
         "DMSO-d6",
@@ -104,7 +114,7 @@ KNOWN = (
 def entries_for(smiles: list[str], conn, *, dg_start: float = 40.0) -> tuple[list, list]:  # type: ignore[no-untyped-def]
     kinds = known_process_kinds(conn)
     normalized, structures = [], []
-    seen: set[str] = set()
+    seen: set[str] = {read_structure(k[0]).inchikey or k[0] for k in KNOWN}  # kept apart
     solvents = ("CDCl3", "toluene-d8", "DMSO-d6", "C6D6")
     for i, smi in enumerate(smiles):
         structure = read_structure(smi)

@@ -17,7 +17,7 @@ RDKit is imported lazily inside these modules, so importing the package stays ch
 
 from __future__ import annotations
 
-from registry.search.engine import FindResult, brute_force, find
+from registry.search.engine import FindResult, brute_force, find, motif_matches
 from registry.search.filters import Filters, make_filters, parse_range
 from registry.search.motifs import (
     Motif,
@@ -43,6 +43,7 @@ __all__ = [
     "list_motifs",
     "load_motif_file",
     "make_filters",
+    "motif_matches",
     "parse_range",
     "remove_motif",
 ]

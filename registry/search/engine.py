@@ -122,12 +122,48 @@ def confirm(
             if Chem.Mol(index.mol_binary(p)).HasSubstructMatch(query_mol, useChirality=stereo)
         ]
         return np.asarray(keep, dtype=np.int64)
+    texts = index.trusted_smiles_many(positions.tolist())
+    has_text = np.fromiter((bool(t) for t in texts), dtype=bool, count=len(texts))
+    chosen, others = positions[has_text], positions[~has_text]
+    found: list[np.ndarray] = []
+    if chosen.size:
+        smiles = [t for t in texts if t]
+        try:
+            found.append(_library_matches(index, chosen, query_mol, stereo, threads, smiles))
+        except RuntimeError:
+            # RDKit's trusted-SMILES path leaves ring info unset for recursive SMARTS with ring
+            # primitives ($([r6]) …) and raises; the binary form carries ring info
+            found.append(_library_matches(index, chosen, query_mol, stereo, threads, None))
+    if others.size:
+        found.append(_library_matches(index, others, query_mol, stereo, threads, None))
+    return np.sort(np.concatenate(found)) if found else positions[:0]
+
+
+def _library_matches(
+    index: ScreenIndex,
+    positions: np.ndarray,
+    query_mol: Any,
+    stereo: bool,
+    threads: int,
+    smiles: list[str] | None,
+) -> np.ndarray:
+    """Confirm in a threaded SubstructLibrary over just these molecules.
+
+    Molecules come from RDKit's own canonical SMILES parsed without sanitization (the trusted
+    holder: faster here than unpickling the binary) or, for structures kept unsanitized, from
+    the binary. ``maxResults`` is the number of molecules, so no hit is ever dropped.
+    """
     from rdkit.Chem import rdSubstructLibrary
 
-    holder = rdSubstructLibrary.CachedMolHolder()
-    offsets, blob = index.offsets, index.blob
-    for p in positions.tolist():
-        holder.AddBinary(blob[offsets[p] : offsets[p + 1]].tobytes())
+    if smiles is not None:
+        holder = rdSubstructLibrary.CachedTrustedSmilesMolHolder()
+        add = holder.AddSmiles
+        for text in smiles:
+            add(text)
+    else:
+        holder = rdSubstructLibrary.CachedMolHolder()
+        for p in positions.tolist():
+            holder.AddBinary(index.mol_binary(p))
     library = rdSubstructLibrary.SubstructLibrary(holder)
     found = library.GetMatches(
         query_mol,
@@ -137,7 +173,7 @@ def confirm(
         numThreads=threads,
         maxResults=int(positions.size),  # never fewer than could match
     )
-    return np.sort(positions[np.asarray(list(found), dtype=np.int64)])
+    return positions[np.asarray(list(found), dtype=np.int64)]
 
 
 def search_positions(
@@ -240,39 +276,86 @@ def tanimoto(fps: np.ndarray, query: np.ndarray) -> np.ndarray:
 # ---------------------------------------------------------------- the whole search
 
 
-def _filtered_compounds(conn: Any, conds: Sequence[Any]) -> np.ndarray:
+_ALLOWED: dict[tuple, np.ndarray] = {}
+
+
+def _allowed_compounds(
+    database: Any, conn: Any, conds: Sequence[Any], filters: Filters
+) -> np.ndarray:
+    """:func:`_filtered_compounds`, remembered in-process while the registry file is unchanged."""
+    from registry.search.index import file_state
+
+    state = file_state(database)
+    if state is None:
+        return _filtered_compounds(conn, conds, filters)
+    key = (database.url, state, repr(sorted(filters.describe().items())))
+    if key not in _ALLOWED:
+        if len(_ALLOWED) > 32:
+            _ALLOWED.clear()
+        _ALLOWED[key] = _filtered_compounds(conn, conds, filters)
+    return _ALLOWED[key]
+
+
+def _filtered_compounds(conn: Any, conds: Sequence[Any], filters: Filters) -> np.ndarray:
+    """Compounds with at least one measurement passing the filters (no joins unless needed)."""
+    from sqlalchemy import select
+
+    from registry.models import Measurement, Process
+
+    query = select(Measurement.compound_id).select_from(Measurement)
+    if filters.process or filters.nucleus:
+        query = query.outerjoin(Process, Process.id == Measurement.process_id)
+    query = query.where(*conds).distinct()
+    return np.fromiter((r[0] for r in conn.execute(query)), dtype=np.int64)
+
+
+def _row_columns() -> dict[str, Any]:
+    from registry.models import Compound, Measurement, Process
+
+    return {
+        "id": Measurement.id,
+        "compound_id": Measurement.compound_id,
+        "label": Measurement.label,
+        "compound": Compound.label,
+        "compound_name": Compound.name,
+        "smiles": Compound.smiles_canonical,
+        "process": Process.kind,
+        "nucleus": Process.nucleus,
+        "method": Measurement.method,
+        "solvent": Measurement.solvent_text,
+        "field_mhz": Measurement.field_mhz,
+        "dg_kj_mol": Measurement.dg_kj_mol,
+        "dg_err_kj_mol": Measurement.dg_err_kj_mol,
+        "dg_t_k": Measurement.dg_t_k,
+        "dh_kj_mol": Measurement.dh_kj_mol,
+        "ds_j_mol_k": Measurement.ds_j_mol_k,
+        "t_min_k": Measurement.t_min_k,
+        "t_max_k": Measurement.t_max_k,
+        "status": Measurement.status,
+        "reference": Measurement.reference,
+    }
+
+
+def _rows_for(conn: Any, conds: Sequence[Any], compound_ids: Sequence[int]) -> list[dict[str, Any]]:
+    """The measurements (joined with compound and process) of these compounds that pass."""
     from sqlalchemy import select
 
     from registry.models import Compound, Measurement, Process
 
-    query = (
-        select(Measurement.compound_id)
+    columns = _row_columns()
+    keys = list(columns)
+    base = (
+        select(*(c.label(k) for k, c in columns.items()))
         .select_from(Measurement)
         .join(Compound, Compound.id == Measurement.compound_id)
         .outerjoin(Process, Process.id == Measurement.process_id)
-        .where(*conds)
-        .distinct()
     )
-    return np.fromiter((r[0] for r in conn.execute(query)), dtype=np.int64)
-
-
-_ROW_EXTRA = ("compound_id", "t_min_k", "t_max_k")
-
-
-def _rows_for(conn: Any, conds: Sequence[Any], compound_ids: Sequence[int]) -> list[dict[str, Any]]:
-    from registry.api import _LIST_COLUMNS, measurement_query
-    from registry.models import Measurement
-
-    columns = dict(_LIST_COLUMNS)
-    columns["compound_id"] = Measurement.compound_id
-    columns["t_min_k"] = Measurement.t_min_k
-    columns["t_max_k"] = Measurement.t_max_k
     rows: list[dict[str, Any]] = []
     ids = list(compound_ids)
     for start in range(0, len(ids), 5000):
         chunk = ids[start : start + 5000]
-        query = measurement_query(columns).where(*conds, Measurement.compound_id.in_(chunk))
-        rows += [dict(r) for r in conn.execute(query).mappings()]
+        query = base.where(*conds, Measurement.compound_id.in_(chunk))
+        rows += [dict(zip(keys, r, strict=True)) for r in conn.execute(query)]
     return rows
 
 
@@ -330,7 +413,7 @@ def find(
     with database.read() as conn:
         t1 = time.perf_counter()
         conds = filtering.conditions(conn, filters)
-        allowed = _filtered_compounds(conn, conds)
+        allowed = _allowed_compounds(database, conn, conds, filters)
         positions = _present(index, allowed)
         stats.searched = int(positions.size)
         stats.seconds["filter"] = time.perf_counter() - t1
@@ -436,4 +519,24 @@ def brute_force(database: Any, query: Query) -> list[int]:
                 mol = Chem.Mol(binary)
             if any(mol.HasSubstructMatch(q, useChirality=query.stereo) for q in query.mols):
                 out.append(int(cid))
+    return out
+
+
+def motif_matches(
+    database: Any, names: Sequence[str] | None = None, *, threads: int | None = None
+) -> dict[str, list[int]]:
+    """Compound ids per motif (built-in and the registry's own), e.g. to group barriers by motif.
+
+    Uses the same screen and confirmation as :func:`find`; a compound may appear under several
+    motifs.
+    """
+    from registry.search.motifs import get_motif, list_motifs
+    from registry.search.patterns import build_query
+
+    index = load_index(database)
+    wanted = list(names) if names is not None else [m.name for m in list_motifs(database)]
+    out: dict[str, list[int]] = {}
+    for name in wanted:
+        query = build_query(motif=get_motif(name, database))
+        out[name] = index.ids[search_positions(index, query, threads=threads)].tolist()
     return out

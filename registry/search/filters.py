@@ -138,6 +138,12 @@ def parse_range(text: str, quantity: str, field_name: str) -> Range:
     )
 
 
+def _nucleus(text: str) -> str:
+    from registry.entry import normalize_nucleus  # imports the unit layer; only when needed
+
+    return normalize_nucleus(text)
+
+
 def solvent_class(text: str) -> str | None:
     key = re.sub(r"[^a-z]", "", text.lower())
     return _CLASS_ALIASES.get(key)
@@ -187,7 +193,6 @@ def make_filters(
 ) -> Filters:
     """Check and normalize filter texts (vocabulary names, units) before any query runs."""
     from registry import vocab
-    from registry.entry import normalize_nucleus
 
     solvents: list[str] = []
     for item in [solvent] if isinstance(solvent, str) else solvent or []:
@@ -200,7 +205,7 @@ def make_filters(
         solvents=solvents,
         method=vocab.method_name(method, field="--method") if method else None,
         process=process.strip() if process else None,
-        nucleus=normalize_nucleus(nucleus) if nucleus else None,
+        nucleus=_nucleus(nucleus) if nucleus else None,
         status=vocab.status_name(status, field="--status") if status else None,
         reference=reference.strip() if reference else None,
         include_retracted=include_retracted,
@@ -209,11 +214,10 @@ def make_filters(
 
 def conditions(conn: Any, filters: Filters) -> list[Any]:
     """SQL conditions on (measurement, compound, process) for these filters."""
-    from sqlalchemy import or_
+    from sqlalchemy import or_, select
 
     from registry import vocab
-    from registry.models import Measurement, Process, Solvent
-    from registry.writer import known_process_kinds, solvent_index
+    from registry.models import Measurement, Process, ProcessKind, Solvent
 
     out: list[Any] = []
     if filters.barrier:
@@ -223,7 +227,8 @@ def conditions(conn: Any, filters: Filters) -> list[Any]:
     if filters.method:
         out.append(Measurement.method == filters.method)
     if filters.process:
-        kind = vocab.process_kind_name(filters.process, known_process_kinds(conn), "--process")
+        known = tuple(r[0] for r in conn.execute(select(ProcessKind.name)))
+        kind = vocab.process_kind_name(filters.process, known, "--process")
         out.append(Process.kind == kind)
     if filters.nucleus:
         out.append(Process.nucleus == filters.nucleus)
@@ -234,13 +239,15 @@ def conditions(conn: Any, filters: Filters) -> list[Any]:
     if filters.reference:
         out.append(Measurement.reference.ilike(f"%{filters.reference}%"))
     if filters.solvents:
-        index = solvent_index(conn)
-        names = {
-            name: sid
-            for sid, name in conn.execute(
-                Solvent.__table__.select().with_only_columns(Solvent.id, Solvent.name)
-            )
-        }
+        index: dict[str, int] = {}  # every spelling key of every solvent → its id
+        names: dict[str, int] = {}
+        for sid, name, formula, aliases in conn.execute(
+            select(Solvent.id, Solvent.name, Solvent.formula, Solvent.aliases)
+        ):
+            names[name] = sid
+            for spelling in (name, formula, *(aliases or "").split("|")):
+                if spelling:
+                    index.setdefault(vocab.solvent_key(spelling), sid)
         ids: set[int] = set()
         texts: list[str] = []
         for text in filters.solvents:

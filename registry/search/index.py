@@ -36,14 +36,15 @@ import numpy as np
 from registry.search.patterns import FP_BITS, FP_WORDS
 
 MAGIC = b"FLXSCRN1"
-FORMAT_VERSION = 1
+FORMAT_VERSION = 2
 _ALIGN = 64
 _SAMPLE = 48  # stored fingerprints re-checked against the running RDKit at build time
 
 
 @dataclass
 class ScreenIndex:
-    """Compound ids (ascending), fingerprints (N × 32 uint64) and RDKit binaries (offsets+blob)."""
+    """Compound ids (ascending), fingerprints (N × 32 uint64), RDKit binaries (offsets + blob)
+    and canonical SMILES (offsets + blob; empty where the structure was kept unsanitized)."""
 
     ids: np.ndarray
     fps: np.ndarray
@@ -51,9 +52,13 @@ class ScreenIndex:
     blob: np.ndarray
     signature: dict[str, Any]
     rdkit_version: str
+    smiles_offsets: np.ndarray | None = None
+    smiles_blob: np.ndarray | None = None
     path: Path | None = None
     notes: list[str] = field(default_factory=list)
     _keep: Any = None  # the mmap the arrays view, kept open while the index lives
+    _smiles_text: str | None = None
+    _smiles_offsets_list: list[int] = field(default_factory=list)
 
     def __len__(self) -> int:
         return int(self.ids.shape[0])
@@ -61,25 +66,40 @@ class ScreenIndex:
     def mol_binary(self, position: int) -> bytes:
         return self.blob[self.offsets[position] : self.offsets[position + 1]].tobytes()
 
+    def trusted_smiles(self, position: int) -> str:
+        """RDKit's own canonical SMILES of a sanitized structure ('' when there is none)."""
+        return self.trusted_smiles_many([position])[0]
+
+    def trusted_smiles_many(self, positions: Any) -> list[str]:
+        """Canonical SMILES of many positions at once (the text is decoded once per process)."""
+        if self.smiles_offsets is None or self.smiles_blob is None:
+            return ["" for _ in positions]
+        if self._smiles_text is None:
+            raw = self.smiles_blob.tobytes()
+            text = raw.decode("utf-8")
+            # SMILES are ASCII, so byte offsets are character offsets; otherwise decode singly
+            self._smiles_text = text if len(text) == len(raw) else ""
+            self._smiles_offsets_list = self.smiles_offsets.tolist()
+        off, text = self._smiles_offsets_list, self._smiles_text
+        if text:
+            return [text[off[p] : off[p + 1]] for p in positions]
+        blob = self.smiles_blob
+        return [blob[off[p] : off[p + 1]].tobytes().decode("utf-8") for p in positions]
+
     def screen(self, query_words: np.ndarray, rows: np.ndarray | None = None) -> np.ndarray:
         """Positions whose fingerprint holds every bit of the query (``rows`` limits the search)."""
         needed = np.flatnonzero(query_words)
-        base = np.arange(len(self)) if rows is None else rows
         if needed.size == 0:
-            return base
+            return np.arange(len(self)) if rows is None else rows
         words = query_words[needed]
-        out = []
-        chunk = 32768
-        for start in range(0, base.shape[0], chunk):
-            part = base[start : start + chunk]
-            sub = (
-                self.fps[part][:, needed]
-                if rows is not None
-                else self.fps[part[0] : part[-1] + 1, needed]
-            )
-            keep = np.all((sub & words) == words, axis=1)
-            out.append(part[keep])
-        return np.concatenate(out) if out else base[:0]
+        if rows is not None and rows.size < len(self) // 4:  # few rows: gather just those
+            sub = self.fps[rows[:, None], needed]
+            return rows[np.all((sub & words) == words, axis=1)]
+        keep = np.empty(len(self), dtype=bool)
+        for start in range(0, len(self), 32768):
+            sub = self.fps[start : start + 32768, needed]
+            keep[start : start + 32768] = np.all((sub & words) == words, axis=1)
+        return np.flatnonzero(keep) if rows is None else rows[keep[rows]]
 
 
 def rdkit_version() -> str:
@@ -130,17 +150,28 @@ def database_signature(conn: Any, upto_id: int | None = None) -> dict[str, Any]:
 # ---------------------------------------------------------------- building from the database
 
 
-def _fetch(conn: Any, after_id: int) -> list[tuple[int, bytes, bytes | None]]:
+Row = tuple[int, bytes, bytes | None, str]
+
+
+def _fetch(conn: Any, after_id: int) -> list[Row]:
     from sqlalchemy import text
 
     result = conn.execute(
         text(
-            "SELECT id, mol_binary, pattern_fp FROM compound "
+            "SELECT id, mol_binary, pattern_fp, smiles_canonical, structure_ok FROM compound "
             "WHERE mol_binary IS NOT NULL AND id > :after ORDER BY id"
         ),
         {"after": after_id},
     )
-    return [(int(r[0]), bytes(r[1]), None if r[2] is None else bytes(r[2])) for r in result]
+    return [
+        (
+            int(r[0]),
+            bytes(r[1]),
+            None if r[2] is None else bytes(r[2]),
+            (r[3] or "") if r[4] else "",  # only sanitized structures are parsed as trusted
+        )
+        for r in result
+    ]
 
 
 def _fresh_fp(binary: bytes) -> np.ndarray:
@@ -156,31 +187,39 @@ def _fresh_fp(binary: bytes) -> np.ndarray:
         return np.full(FP_WORDS, np.uint64(0xFFFFFFFFFFFFFFFF), dtype=np.uint64)
 
 
-def _arrays(
-    rows: list[tuple[int, bytes, bytes | None]], recompute: bool
-) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+def _arrays(rows: list[Row], recompute: bool) -> dict[str, np.ndarray]:
     n = len(rows)
     ids = np.fromiter((r[0] for r in rows), dtype=np.int64, count=n)
     fps = np.empty((n, FP_WORDS), dtype=np.uint64)
-    raw = bytearray()
+    raw, smiles = bytearray(), bytearray()
     offsets = np.zeros(n + 1, dtype=np.int64)
-    for i, (_, binary, fp) in enumerate(rows):
+    smiles_offsets = np.zeros(n + 1, dtype=np.int64)
+    for i, (_, binary, fp, text) in enumerate(rows):
         if recompute or fp is None or len(fp) != FP_BITS // 8:
             fps[i] = _fresh_fp(binary)
         else:
             fps[i] = np.frombuffer(fp, dtype="<u8")
         raw += binary
         offsets[i + 1] = len(raw)
-    return ids, fps, offsets, np.frombuffer(bytes(raw), dtype=np.uint8)
+        smiles += text.encode("utf-8")
+        smiles_offsets[i + 1] = len(smiles)
+    return {
+        "ids": ids,
+        "fps": fps,
+        "offsets": offsets,
+        "blob": np.frombuffer(bytes(raw), dtype=np.uint8),
+        "smiles_offsets": smiles_offsets,
+        "smiles_blob": np.frombuffer(bytes(smiles), dtype=np.uint8),
+    }
 
 
-def _stored_fps_current(rows: list[tuple[int, bytes, bytes | None]]) -> bool:
+def _stored_fps_current(rows: list[Row]) -> bool:
     """Do the stored fingerprints agree with the running RDKit (checked on a spread sample)?"""
     with_fp = [r for r in rows if r[2] is not None]
     if not with_fp:
         return True
     step = max(1, len(with_fp) // _SAMPLE)
-    for _, binary, fp in with_fp[::step][:_SAMPLE]:
+    for _, binary, fp, _ in with_fp[::step][:_SAMPLE]:
         if not np.array_equal(_fresh_fp(binary), np.frombuffer(fp, dtype="<u8")):
             return False
     return True
@@ -197,24 +236,26 @@ def build_index(database: Any) -> ScreenIndex:
         notes.append(
             "stored pattern fingerprints differ from this RDKit's; the index uses recomputed ones"
         )
-    ids, fps, offsets, blob = _arrays(rows, recompute)
     signature["recomputed_fps"] = recompute
-    return ScreenIndex(ids, fps, offsets, blob, signature, rdkit_version(), notes=notes)
+    return ScreenIndex(**_arrays(rows, recompute), signature=signature,
+                       rdkit_version=rdkit_version(), notes=notes)  # fmt: skip
 
 
-def _extend(
-    index: ScreenIndex, rows: list[tuple[int, bytes, bytes | None]], sig: dict
-) -> ScreenIndex:
-    ids, fps, offsets, blob = _arrays(rows, bool(index.signature.get("recomputed_fps")))
+def _extend(index: ScreenIndex, rows: list[Row], sig: dict) -> ScreenIndex:
+    new = _arrays(rows, bool(index.signature.get("recomputed_fps")))
     sig["recomputed_fps"] = bool(index.signature.get("recomputed_fps"))
-    base = int(index.offsets[-1])
+    assert index.smiles_offsets is not None and index.smiles_blob is not None
     return ScreenIndex(
-        np.concatenate([index.ids, ids]),
-        np.concatenate([index.fps, fps]),
-        np.concatenate([index.offsets, offsets[1:] + base]),
-        np.concatenate([index.blob, blob]),
-        sig,
-        index.rdkit_version,
+        ids=np.concatenate([index.ids, new["ids"]]),
+        fps=np.concatenate([index.fps, new["fps"]]),
+        offsets=np.concatenate([index.offsets, new["offsets"][1:] + int(index.offsets[-1])]),
+        blob=np.concatenate([index.blob, new["blob"]]),
+        smiles_offsets=np.concatenate(
+            [index.smiles_offsets, new["smiles_offsets"][1:] + int(index.smiles_offsets[-1])]
+        ),
+        smiles_blob=np.concatenate([index.smiles_blob, new["smiles_blob"]]),
+        signature=sig,
+        rdkit_version=index.rdkit_version,
         notes=["index extended with new compounds"],
     )
 
@@ -224,7 +265,11 @@ def _extend(
 
 def save_index(index: ScreenIndex, path: Path) -> None:
     """Write atomically (temporary file + rename), so readers never see half a file."""
-    arrays = {"ids": index.ids, "fps": index.fps, "offsets": index.offsets, "blob": index.blob}
+    arrays = {
+        name: getattr(index, name)
+        for name in ("ids", "fps", "offsets", "blob", "smiles_offsets", "smiles_blob")
+        if getattr(index, name) is not None
+    }
     layout: dict[str, Any] = {}
     offset = 0
     for name, arr in arrays.items():
@@ -289,19 +334,63 @@ def read_index(path: Path) -> ScreenIndex | None:
             ).reshape(spec["shape"])
     except (ValueError, KeyError, json.JSONDecodeError, IndexError):
         return None
+    if not {"ids", "fps", "offsets", "blob"} <= set(arrays):
+        return None
     return ScreenIndex(
-        arrays["ids"],
-        arrays["fps"],
-        arrays["offsets"],
-        arrays["blob"],
-        header["signature"],
-        header["rdkit"],
-        path=path,
+        **arrays, signature=header["signature"], rdkit_version=header["rdkit"], path=path,
         _keep=mapped,
-    )
+    )  # fmt: skip
+
+
+#: indexes already checked in this process, with the registry file state they were checked at
+_CHECKED: dict[str, tuple[tuple[int, ...], ScreenIndex]] = {}
+
+
+def file_state(database: Any) -> tuple[int, ...] | None:
+    """Size and mtime of a SQLite registry and its WAL: any commit changes one of them.
+
+    Lets repeated searches in one process skip the signature query while nothing was written;
+    None for server databases (always checked).
+    """
+    if not database.is_sqlite or database.path is None or str(database.path) == ":memory:":
+        return None
+    state: list[int] = []
+    for suffix in ("", "-wal"):
+        try:
+            st = os.stat(f"{database.path}{suffix}")
+            state += [st.st_size, st.st_mtime_ns, st.st_ino]
+        except OSError:
+            state += [-1, -1, -1]
+    return tuple(state)
 
 
 def load_index(database: Any, *, rebuild: bool = False, persist: bool = True) -> ScreenIndex:
+    """The up-to-date index (see :func:`_load`), remembered in-process while the file is unchanged."""
+    path = index_path_for(database)
+    key = str(path)
+    state = _state_with_cache(database, path)
+    if not rebuild and state is not None and key in _CHECKED and _CHECKED[key][0] == state:
+        return _CHECKED[key][1]
+    before = file_state(database)
+    index = _load(database, rebuild=rebuild, persist=persist)
+    after = _state_with_cache(database, path)
+    if before is not None and after is not None and after[: len(before)] == before:
+        _CHECKED[key] = (after, index)  # nothing was written meanwhile
+    return index
+
+
+def _state_with_cache(database: Any, path: Path) -> tuple[int, ...] | None:
+    state = file_state(database)
+    if state is None:
+        return None
+    try:
+        st = path.stat()
+        return (*state, st.st_size, st.st_mtime_ns, st.st_ino)
+    except OSError:
+        return (*state, -1, -1, -1)
+
+
+def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> ScreenIndex:
     """The up-to-date index: the cache file when it agrees with the database, else rebuilt.
 
     New compounds (ids above the cached highest id, everything below unchanged) extend the file;

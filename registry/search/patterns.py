@@ -50,8 +50,8 @@ class PatternError(UsageError):
 def _rdkit() -> Any:
     from rdkit import Chem, RDLogger, rdBase
 
-    RDLogger.DisableLog("rdApp.*")
     rdBase.LogToPythonStderr()  # so that parse errors can be captured (see _parse_logged)
+    RDLogger.DisableLog("rdApp.*")
     return Chem
 
 

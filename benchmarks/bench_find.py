@@ -1,0 +1,169 @@
+"""Motif search at scale: ``registry.search.find`` and a cold ``fluxledger find`` against the floor.
+
+The floor, measured in the same run on the same molecules: RDKit's ``SubstructLibrary`` with a
+trusted-SMILES holder and a pattern-fingerprint holder (``CachedTrustedSmilesMolHolder`` +
+``PatternHolder``, filled from the registry's canonical SMILES and stored pattern fingerprints),
+``maxResults`` = all molecules and an explicit thread count. Targets (not asserted anywhere):
+
+* warm library call  ≤ 1.5 × floor
+* cold CLI process   ≤ floor + Python/RDKit start-up + 0.5 s
+
+Data: ``benchmarks/find_data.py`` (100,000 molsets compounds, built once and cached under
+``benchmarks/out/``). Usage: ``python benchmarks/bench_find.py [N] [--repeats R]``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE))
+
+from find_data import registry_path  # noqa: E402
+
+#: from very selective to very common (a few plain SMARTS at the common end)
+MOTIFS = [
+    "cp-metal",
+    "divinylcyclopropane",
+    "hexadiene-1,5",
+    "thioamide",
+    "biaryl-ortho",
+    "carbamate",
+    "urea",
+    "sulfonamide",
+    "enamine",
+    "n-aryl-amide",
+    "ring6-heterocycle",
+    "amide",
+]
+SMARTS = ["c1ccccc1", "[#6]~[#7]"]
+
+
+def median_time(fn, repeats: int) -> tuple[float, object]:  # type: ignore[no-untyped-def]
+    times, value = [], None
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        value = fn()
+        times.append(time.perf_counter() - t0)
+    return statistics.median(times), value
+
+
+def floor_library(db: Path):  # type: ignore[no-untyped-def]
+    """The reference library over the registry's own molecules (same order as compound ids)."""
+    import sqlite3
+
+    from rdkit import DataStructs
+    from rdkit.Chem import rdSubstructLibrary
+
+    mols = rdSubstructLibrary.CachedTrustedSmilesMolHolder()
+    fps = rdSubstructLibrary.PatternHolder()
+    ids = []
+    with sqlite3.connect(db) as conn:
+        for cid, smiles, fp in conn.execute(
+            "SELECT id, smiles_canonical, pattern_fp FROM compound "
+            "WHERE mol_binary IS NOT NULL ORDER BY id"
+        ):
+            mols.AddSmiles(smiles)
+            fps.AddFingerprint(DataStructs.CreateFromBinaryText(fp))
+            ids.append(cid)
+    return rdSubstructLibrary.SubstructLibrary(mols, fps), ids
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("n", nargs="?", type=int, default=100_000)
+    parser.add_argument("--repeats", type=int, default=5)
+    parser.add_argument("--cold-repeats", type=int, default=3)
+    args = parser.parse_args()
+
+    from registry import api
+    from registry.search import build_query, find, get_motif
+    from registry.search.engine import default_threads
+    from registry.search.index import load_index
+
+    db = registry_path(args.n)
+    threads = default_threads()
+    database = api.open_registry(str(db))
+    t0 = time.perf_counter()
+    index = load_index(database)
+    print(f"registry {db.name}: {len(index):,} compounds; index ready in "
+          f"{time.perf_counter() - t0:.2f} s; {threads} thread(s); RDKit confirmation")  # fmt: skip
+    t0 = time.perf_counter()
+    library, library_ids = floor_library(db)
+    print(
+        f"floor library (trusted SMILES + pattern holder) filled in {time.perf_counter() - t0:.1f} s"
+    )
+    exe = Path(sys.executable).with_name("fluxledger")
+    env = {**os.environ, "FLUXLEDGER_DB": str(db)}
+    startup, _ = median_time(
+        lambda: subprocess.run([sys.executable, "-c", "from rdkit import Chem"], check=True),
+        args.cold_repeats + 2,
+    )
+    print(f"Python + RDKit start-up (median): {startup:.2f} s\n")
+
+    cases = [("motif", m) for m in MOTIFS] + [("smarts", s) for s in SMARTS]
+    header = (
+        f"{'query':<22}{'hits':>8}{'screen':>8}{'floor s':>9}{'warm s':>9}{'warm/fl':>8}"
+        f"{'cold s':>8}{'budget':>8}{'cold/b':>8}  same"
+    )
+    print(header)
+    print("-" * len(header))
+    ratios_warm, ratios_cold = [], []
+    for kind, text in cases:
+        query = build_query(motif=get_motif(text)) if kind == "motif" else build_query(smarts=text)
+
+        def floor(q=query):  # type: ignore[no-untyped-def]
+            hits: set[int] = set()
+            for mol in q.mols:
+                hits.update(
+                    library.GetMatches(
+                        mol, recursionPossible=True, useChirality=False,
+                        useQueryQueryMatches=False, numThreads=threads,
+                        maxResults=len(library_ids),
+                    )
+                )  # fmt: skip
+            return hits
+
+        def warm(q=query):  # type: ignore[no-untyped-def]
+            return find(database, query=q, threads=threads)
+
+        warm()  # first call maps the cache file
+        floor_s, floor_hits = median_time(floor, args.repeats)
+        warm_s, result = median_time(warm, args.repeats)
+        option = ["--motif", text] if kind == "motif" else ["--smarts", text]
+        cold_s, _ = median_time(
+            lambda o=option: subprocess.run(
+                [str(exe), "find", *o, "--csv"],
+                check=True, env=env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+            ),
+            args.cold_repeats,
+        )  # fmt: skip
+        same = sorted(library_ids[i] for i in floor_hits) == sorted(
+            {r["compound_id"] for r in result.rows}
+        )
+        budget = floor_s + startup + 0.5
+        ratios_warm.append(warm_s / floor_s)
+        ratios_cold.append(cold_s / budget)
+        print(
+            f"{text:<22}{result.stats.matched:>8,}{result.stats.screened:>8,}{floor_s:>9.3f}"
+            f"{warm_s:>9.3f}{warm_s / floor_s:>8.2f}{cold_s:>8.2f}{budget:>8.2f}"
+            f"{cold_s / budget:>8.2f}  {'yes' if same else 'NO'}",
+            flush=True,
+        )
+    print(
+        f"\nmedian warm/floor {statistics.median(ratios_warm):.2f} (target ≤ 1.5; worst "
+        f"{max(ratios_warm):.2f}); median cold/budget {statistics.median(ratios_cold):.2f} "
+        f"(target ≤ 1.0; worst {max(ratios_cold):.2f})"
+    )
+    print("budget = floor + start-up + 0.5 s; 'same' = identical compound sets to the floor")
+    database.dispose()
+
+
+if __name__ == "__main__":
+    main()
