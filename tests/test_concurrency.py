@@ -88,12 +88,38 @@ def _now() -> Any:
     return datetime.now(UTC)
 
 
-def _writer(db: str, worker: int, singles: int, batches: int, size: int, go: float) -> None:
-    """Child process: single adds (some racing on shared structures) and batches, reading between."""
+IMPORT_ROWS = 20
+
+
+def _import_file(folder: Path, worker: int) -> Path:
+    """A small CSV as a group member would import it (bare numbers, units in the headers)."""
+    lines = [
+        "Compound name,Process,Solvent,Spectrometer,T_c/K,delta nu (Hz),dG# / kJ mol-1,Method,"
+        "Measurement"
+    ]
+    for i in range(IMPORT_ROWS):
+        lines.append(
+            f"imported compound {worker}-{i},amide rotation,CDCl3,400 MHz,{300 + i},{30 + i},"
+            f"{60 + i / 10:.1f},coalescence,imp{worker}-{i}"
+        )
+    path = folder / f"import-{worker}.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+def _writer(
+    db: str, worker: int, singles: int, batches: int, size: int, go: float, csv: Path | None = None
+) -> None:
+    """Child process: single adds (some racing on shared structures), batches and an import."""
     try:
+        from registry.io.importer import import_table
+
         database = api.open_registry(db)
         while time.time() < go:  # start together, after every child has set up
             time.sleep(0.005)
+        if csv is not None:
+            summary = import_table(database, csv, workers=1, actor=f"w{worker}")
+            assert summary["added"] == IMPORT_ROWS, summary
         done = 0
         for i in range(singles):
             smiles = SMILES[(worker + i) % len(SMILES)] if i % 3 == 0 else None
@@ -127,11 +153,13 @@ def _labels(db_path: Path) -> list[str]:
         conn.close()
 
 
-def test_eight_processes_writing_at_once_lose_nothing(db_path: Path) -> None:
-    workers, singles, batches, size = 8, 6, 3, 25
+def test_eight_processes_writing_at_once_lose_nothing(db_path: Path, tmp_path: Path) -> None:
+    workers, singles, batches, size, importers = 8, 6, 3, 25, 2
+    files = [_import_file(tmp_path, w) if w < importers else None for w in range(workers)]
     go = time.time() + 1.0
     procs = _fork_all(
-        _writer, [(str(db_path), w, singles, batches, size, go) for w in range(workers)]
+        _writer,
+        [(str(db_path), w, singles, batches, size, go, files[w]) for w in range(workers)],
     )
     for p in procs:
         p.join(timeout=120)
@@ -141,7 +169,9 @@ def test_eight_processes_writing_at_once_lose_nothing(db_path: Path) -> None:
     for w in range(workers):
         prefixes = [f"w{w}-b{k}" for k in range(batches)]
         expected |= {f"{p}-{i}" for p in prefixes for i in range(size)}
-    assert len(labels) == len(expected) == workers * (singles + batches * size)
+    expected |= {f"imp{w}-{i}" for w in range(importers) for i in range(IMPORT_ROWS)}
+    assert len(expected) == workers * (singles + batches * size) + importers * IMPORT_ROWS
+    assert len(labels) == len(expected)
     assert set(labels) == expected
     conn = sqlite3.connect(db_path)
     try:
