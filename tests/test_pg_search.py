@@ -180,3 +180,29 @@ def test_server_search_enable_refuses_sqlite(cli) -> None:  # type: ignore[no-un
     assert (
         result.stderr == "error: server-side search needs a PostgreSQL registry; this is SQLite\n"
     )
+
+
+@pytest.mark.postgres
+def test_server_setting_for_chiral_matching_cannot_drop_hits(pg_cartridge: str) -> None:
+    """A server told to match chirality would miss L-alanine for a D-drawn query; ours ignores
+    stereo in the screen (the client checks it when asked), so the hit stays a candidate."""
+    from sqlalchemy import make_url
+
+    url = make_url(pg_cartridge)
+    options = url.query["options"] + " -crdkit.do_chiral_sss=on"
+    chiral = url.update_query_dict({"options": options}).render_as_string(hide_password=False)
+    api.init_registry(chiral)
+    database = api.open_registry(chiral)
+    try:
+        api.add_measurement(
+            database,
+            EntryInput(
+                method="lineshape", compound="L-Ala", smiles="C[C@H](N)C(=O)O", dg="60 kJ/mol"
+            ),
+        )
+        with database.read() as conn:
+            assert conn.exec_driver_sql("SHOW rdkit.do_chiral_sss").scalar() == "on"
+            hits = cartridge.server_screen(conn, "C[C@@H](N)C(=O)O")
+    finally:
+        database.dispose()
+    assert hits == [1]

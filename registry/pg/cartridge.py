@@ -229,6 +229,9 @@ def server_screen(conn: Connection, smarts: str, *, smiles: bool = False) -> lis
             ).scalar()
             if not readable:
                 return None
+            # the client ignores stereo unless asked and then checks it itself: a server set to
+            # match chirality could drop true hits, so the screen never does
+            conn.exec_driver_sql("SET LOCAL rdkit.do_chiral_sss = off")
             rows = conn.execute(
                 text(
                     f"SELECT id FROM compound WHERE {MOL_COLUMN} @> {pattern} "
