@@ -15,8 +15,6 @@ from collections.abc import Sequence
 
 from alembic import op
 
-from registry.pg import cartridge
-
 revision: str = "0002"
 down_revision: str | None = "0001"
 branch_labels: str | Sequence[str] | None = None
@@ -26,10 +24,14 @@ depends_on: str | Sequence[str] | None = None
 def upgrade() -> None:
     conn = op.get_bind()
     if conn.dialect.name == "postgresql":
+        from registry.pg import cartridge
+
         cartridge.install_mol_column(conn)
 
 
 def downgrade() -> None:
     conn = op.get_bind()
     if conn.dialect.name == "postgresql":
+        from registry.pg import cartridge
+
         cartridge.remove_mol_column(conn)
