@@ -16,6 +16,7 @@ Map:
     store_link  fits → rate-point dicts → ``registry.api.add_rate_points``
     plots       PNG of data/fit/residuals per spectrum and the Eyring plot (matplotlib, lazily)
 
-Only numpy is imported at package level by :mod:`.simulate`, :mod:`.spectrum` and
-:mod:`.jcamp`; scipy comes with :mod:`.fit`, matplotlib only inside :mod:`.plots` functions.
+Importing the package itself costs nothing. :mod:`.simulate` needs numpy, :mod:`.spectrum` and
+:mod:`.jcamp` also the unit layer (pint); scipy comes with :mod:`.fit` and :mod:`.eyring`,
+matplotlib only inside :mod:`.plots` functions.
 """
