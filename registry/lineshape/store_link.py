@@ -64,4 +64,7 @@ def store_rate_points(
 
     points = rate_points(fits)
     database = api.open_registry(db)
-    return api.add_rate_points(database, measurement_id, points, actor=actor)
+    try:
+        return api.add_rate_points(database, measurement_id, points, actor=actor)
+    finally:
+        database.dispose()
