@@ -292,3 +292,22 @@ def test_header_unit_is_recovered_from_the_ratio() -> None:
     labels, factors = energy_units(pd.Series(["15.2", "63.6"]), pd.Series([15.2 * C.calorie, 63.6]))
     assert list(labels) == ["kcal/mol", "kJ/mol"]
     assert factors[0] == pytest.approx(1 / C.calorie)
+
+
+def test_13c_ppm_converted_at_the_1h_frequency(database: Database) -> None:
+    # 13C observe frequency = 400 MHz × Ξ(13C)/Ξ(1H) = 400 × 0.25145020 = 100.58 MHz
+    # (Ξ from R. K. Harris et al., Pure Appl. Chem. 73, 1795 (2001); from memory)
+    mid = add(
+        database, method="coalescence", nucleus="13C", field="400 MHz", tc="300 K", dnu="1.5 ppm"
+    )
+    (f,) = findings(database, mid, "dnu-ppm-nucleus")
+    assert f.reported == pytest.approx(600.0)
+    assert f.recomputed == pytest.approx(1.5 * 400 * 0.25145020)
+    mid = add(
+        database, method="coalescence", nucleus="1H", field="400 MHz", tc="300 K", dnu="0.5 ppm"
+    )
+    assert findings(database, mid, "dnu-ppm-nucleus") == []
+    mid = add(
+        database, method="coalescence", nucleus="13C", field="400 MHz", tc="300 K", dnu="150 Hz"
+    )
+    assert findings(database, mid, "dnu-ppm-nucleus") == []

@@ -20,7 +20,11 @@ from registry.validation.rule_activation import (
     FreeEnergyFromEnthalpyEntropy,
 )
 from registry.validation.rule_coalescence import CoalescenceBarrier
-from registry.validation.rule_plausibility import BarrierInMethodRange, ShiftMatchesField
+from registry.validation.rule_plausibility import (
+    BarrierInMethodRange,
+    PpmConvertedAtObserveFrequency,
+    ShiftMatchesField,
+)
 from registry.validation.rule_refit import ActivationRefit
 from registry.validation.rule_structure import RepeatsAgree, StructureParses
 from registry.validation.rule_temperatures import (
@@ -42,6 +46,7 @@ RULES: tuple[Rule, ...] = (
     SolventLiquidRange(),
     BarrierInMethodRange(),
     ShiftMatchesField(),
+    PpmConvertedAtObserveFrequency(),
     StructureParses(),
     RepeatsAgree(),
 )

@@ -5,9 +5,12 @@ stated field and nucleus.
 from __future__ import annotations
 
 import numpy as np
+import pandas as pd
 
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
-from registry.validation.data import CheckData, energy_units
+from registry.validation.data import CheckData, energy_units, unit_part
+
+_LEADING_NUMBER = r"^\s*([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)"
 
 #: methods that watch exchange on the NMR time scale (dynamic NMR)
 DYNAMIC_NMR_METHODS = ("coalescence", "lineshape", "2d-exchange", "saturation-transfer")
@@ -124,6 +127,53 @@ class ShiftMatchesField(Rule):
                     difference=opt(ppm[p] - limit[p]),
                     unit="ppm",
                     context="dnu",
+                )
+            )
+        return out
+
+
+class PpmConvertedAtObserveFrequency(Rule):
+    """A Δν written in ppm for a nucleus other than ¹H must be converted at that nucleus' own
+    observe frequency (field × Ξ), not at the spectrometer's ¹H frequency."""
+
+    id = "dnu-ppm-nucleus"
+    version = 1
+    severity = "warning"
+    title = "Δν in ppm converted at the observed nucleus' frequency"
+
+    def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
+        parts = unit_part(data.m["dnu_text"])
+        in_ppm = (parts.str.lower() == "ppm").fillna(False).to_numpy(dtype=bool)
+        nucleus = data.m["nucleus"].fillna("").astype(str).to_numpy()
+        ratio = np.array([FREQUENCY_RATIO_TO_1H.get(x, np.nan) for x in nucleus])
+        rows = np.flatnonzero(in_ppm & np.isfinite(ratio) & (ratio < 0.999))
+        if rows.size == 0:
+            return []
+        field = data.col("co_field_mhz")[rows]
+        field = np.where(np.isfinite(field), field, data.col("field_mhz")[rows])
+        ppm = pd.to_numeric(
+            data.m["dnu_text"].iloc[rows].astype(str).str.extract(_LEADING_NUMBER)[0]
+            .str.replace(",", "."), errors="coerce",
+        ).to_numpy(dtype=float)  # fmt: skip
+        dnu = data.col("dnu_hz")[rows]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            at_proton = np.abs(dnu - ppm * field) <= 1e-6 * np.maximum(np.abs(dnu), 1.0)
+        out = []
+        for i in np.flatnonzero(at_proton & np.isfinite(ppm)):
+            p = rows[i]
+            observe = field[i] * ratio[p]
+            right = ppm[i] * observe
+            out.append(
+                self.finding(
+                    int(data.ids[p]),
+                    f"Δν {ppm[i]:g} ppm of {nucleus[p]} was converted with the 1H frequency "
+                    f"({field[i]:g} MHz) to {dnu[i]:.4g} Hz; {nucleus[p]} is observed at "
+                    f"{observe:.1f} MHz on that magnet, so Δν is {right:.4g} Hz and the barrier "
+                    "recomputed from it changes; re-enter Δν in Hz",
+                    reported=opt(dnu[i]),
+                    recomputed=opt(right),
+                    difference=opt(dnu[i] - right),
+                    unit="Hz",
                 )
             )
         return out
