@@ -72,7 +72,7 @@ def server_search(
 ) -> None:
     """Show whether motif search is screened on the server (PostgreSQL + RDKit cartridge)."""
     from registry import api
-    from registry.errors import UsageError
+    from registry.errors import DatabaseError, UsageError
     from registry.pg import cartridge
 
     database = api.open_registry(state(ctx).db)
@@ -82,7 +82,7 @@ def server_search(
                 raise UsageError("server-side search needs a PostgreSQL registry; this is SQLite")
             installed = database.write(cartridge.install_mol_column)
             if not installed:
-                raise UsageError(
+                raise DatabaseError(
                     "the server has no usable RDKit cartridge: install the server package "
                     "(Debian: postgresql-15-rdkit) and have an administrator run "
                     "'CREATE EXTENSION rdkit' in this database, then try again"
