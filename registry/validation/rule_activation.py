@@ -50,32 +50,33 @@ class FreeEnergyFromEnthalpyEntropy(Rule):
             return []
         pos = rows[bad]
         labels, factors = energy_units(_sub(data.m["dg_text"], pos), _sub(data.m["dg_kj_mol"], pos))
+        dg, dh, ds, t, tol, recomputed = (a[bad] for a in (dg, dh, ds, t, tol, recomputed))
         cal = 1.0 / kcal_per_kj()  # J per cal (thermochemical), via the unit registry
+        at_standard = (
+            f"ΔG‡ evaluated at {STANDARD_TEMPERATURE_K:.2f} K, not at the stated temperature"
+        )
         slips = {
-            "ΔS‡ in cal/(mol·K) written as J/(mol·K)": dh[bad] - t[bad] * ds[bad] * cal / 1000.0,
-            "ΔS‡ in J/(mol·K) written as cal/(mol·K)": dh[bad] - t[bad] * ds[bad] / cal / 1000.0,
-            "the sign of ΔS‡ flipped": dh[bad] + t[bad] * ds[bad] / 1000.0,
-            f"ΔG‡ evaluated at {STANDARD_TEMPERATURE_K:.2f} K, not at the stated temperature": dh[
-                bad
-            ]
-            - STANDARD_TEMPERATURE_K * ds[bad] / 1000.0,
+            "ΔS‡ in cal/(mol·K) written as J/(mol·K)": dh - t * ds * cal / 1000.0,
+            "ΔS‡ in J/(mol·K) written as cal/(mol·K)": dh - t * ds / cal / 1000.0,
+            "the sign of ΔS‡ flipped": dh + t * ds / 1000.0,
+            at_standard: dh - STANDARD_TEMPERATURE_K * ds / 1000.0,
         }
         out = []
         for i, mid in enumerate(data.ids[pos]):
             u, f = labels[i], float(factors[i])
-            rep, rec = float(dg[bad][i]) * f, float(recomputed[bad][i]) * f
+            rep, rec = float(dg[i]) * f, float(recomputed[i]) * f
             causes = [
                 f"{text} (gives {fnum(vals[i] * f, 2)} {u})"
                 for text, vals in slips.items()
-                if abs(vals[i] - dg[bad][i]) <= tol[bad][i]
+                if abs(vals[i] - dg[i]) <= tol[i]
             ]
             out.append(
                 self.finding(
                     int(mid),
-                    f"ΔG‡ {fnum(rep, 2)} {u} at {t[bad][i]:.1f} K does not match ΔH‡ − TΔS‡ = "
-                    f"{fnum(rec, 2)} {u} (ΔH‡ {fnum(dh[bad][i] * f, 2)} {u}, ΔS‡ "
-                    f"{fnum(ds[bad][i], 1)} J/(mol·K)): off by {rep - rec:+.2f} {u}, "
-                    f"tolerance ±{tol[bad][i] * f:.2f} {u}",
+                    f"ΔG‡ {fnum(rep, 2)} {u} at {t[i]:.1f} K does not match ΔH‡ − TΔS‡ = "
+                    f"{fnum(rec, 2)} {u} (ΔH‡ {fnum(dh[i] * f, 2)} {u}, ΔS‡ "
+                    f"{fnum(ds[i], 1)} J/(mol·K)): off by {rep - rec:+.2f} {u}, "
+                    f"tolerance ±{tol[i] * f:.2f} {u}",
                     reported=opt(rep),
                     recomputed=opt(rec),
                     difference=opt(rep - rec),
@@ -147,18 +148,20 @@ class ArrheniusEnergyFromEnthalpy(Rule):
         labels, factors = energy_units(_sub(data.m["ea_text"], pos), _sub(data.m["ea_kj_mol"], pos))
         where = ("mean of the rate points", "middle of the stated range", "ΔG‡'s temperature",
                  "assumed; no temperature stored")  # fmt: skip
+        ea_b, dh_b = ea[pos], dh[pos]
+        rec_b, tol_b, t_b, src_b = recomputed[bad], tol[bad], t[bad], src[bad]
         out = []
         for i, mid in enumerate(data.ids[pos]):
             u, f = labels[i], float(factors[i])
-            rep, rec = float(ea[pos][i]) * f, float(recomputed[bad][i]) * f
-            equal = abs(ea[pos][i] - dh[pos][i]) <= tol[bad][i]
+            rep, rec = float(ea_b[i]) * f, float(rec_b[i]) * f
+            equal = abs(ea_b[i] - dh_b[i]) <= tol_b[i]
             cause = "Ea and ΔH‡ given the same value (the RT term left out)" if equal else None
             out.append(
                 self.finding(
                     int(mid),
                     f"Ea {fnum(rep, 2)} {u} does not match ΔH‡ + RT = {fnum(rec, 2)} {u} at "
-                    f"{t[bad][i]:.1f} K ({where[int(src[bad][i])]}): off by {rep - rec:+.2f} {u}, "
-                    f"tolerance ±{tol[bad][i] * f:.2f} {u}",
+                    f"{t_b[i]:.1f} K ({where[int(src_b[i])]}): off by {rep - rec:+.2f} {u}, "
+                    f"tolerance ±{tol_b[i] * f:.2f} {u}",
                     reported=opt(rep),
                     recomputed=opt(rec),
                     difference=opt(rep - rec),

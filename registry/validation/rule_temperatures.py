@@ -94,8 +94,9 @@ class TemperatureRangeOrder(Rule):
         lo, hi = data.col("t_min_k"), data.col("t_max_k")
         with np.errstate(invalid="ignore"):
             rows = np.flatnonzero(lo > hi)
-        lo_shown = _Shown([data.text("t_min_text")[p] for p in rows])
-        hi_shown = _Shown([data.text("t_max_text")[p] for p in rows])
+        lo_text, hi_text = data.text("t_min_text"), data.text("t_max_text")
+        lo_shown = _Shown([lo_text[p] for p in rows])
+        hi_shown = _Shown([hi_text[p] for p in rows])
         out = []
         for i, p in enumerate(rows):
             shown, shown_hi = lo_shown.value(i, lo[p]), lo_shown.value(i, hi[p])
