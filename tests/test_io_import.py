@@ -314,3 +314,20 @@ def test_semicolon_csv_with_decimal_commas(database: Database, tmp_path: Path) -
     assert record["coalescence"][0]["tc_k"] == pytest.approx(260.65)
     assert record["dg_kj_mol"] == pytest.approx(55.3)
     assert record["extra"] == {"Bemerkung": "gut"}
+
+
+def test_progress_bar_path(
+    database: Database,
+    sample_csv: Path,
+    monkeypatch: pytest.MonkeyPatch,
+    capsys: pytest.CaptureFixture[str],
+) -> None:
+    import sys
+
+    monkeypatch.setattr(importer_mod, "PROGRESS_MIN_ROWS", 1)
+    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
+    summary = import_table(database, sample_csv, progress=True)
+    assert summary["added"] == 2
+    assert "structures" in capsys.readouterr().err  # the bar's second stage was shown
+    # not asked for (e.g. --json): no bar
+    assert importer_mod._progress_bar(False, 10**6, "x") is None
