@@ -27,6 +27,9 @@ if [ -n "$first_error" ]; then
 fi
 step_findings check --new
 # --- find step ---
+step find --motif amide --barrier ">= 60 kJ/mol"
+step find --motif biaryl-ortho --solvent nonpolar --barrier ">= 90 kJ/mol" --sort -barrier
+step motifs show amide
 step list --limit 10
 step show 1
 # --- calc step ---

@@ -45,7 +45,7 @@ def test_find_motif_with_barrier_in_kcal(filled) -> None:  # type: ignore[no-unt
     # 20 kcal/mol = 83.68 kJ/mol (NIST SP 811 B.8): DMF (87.9) and the iminol NMA (88) stay
     assert labels == ["DMF", "NMA-iminol"]
     assert result.stderr.startswith(
-        "2 measurement(s) on 2 matching compound(s); 2 compounds with qualifying"
+        "2 measurement(s) on 2 compound(s); 2 of 2 compound(s) searched match"
     )
 
 

@@ -215,7 +215,7 @@ def test_similarity_search_ranks_and_thresholds(small) -> None:  # type: ignore[
 
 
 def test_tanimoto_on_packed_words() -> None:
-    a = np.array([[0b1011, 0]], dtype=np.uint64)
+    a = np.array([[0b1011], [0]], dtype=np.uint64)  # word-major: 2 words × 1 molecule
     q = np.array([0b0011, 0], dtype=np.uint64)
     # |a∧q| = 2, |a∨q| = 3 (Jaccard 1901 / Tanimoto index)
     assert engine_module.tanimoto(a, q)[0] == pytest.approx(2 / 3)

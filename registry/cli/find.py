@@ -149,7 +149,10 @@ def find(
     columns = CSV_COLUMNS if as_csv else FIND_COLUMNS
     if similar is not None:
         columns = [*columns[:2], "similarity", *columns[2:]]
-    render_rows(result.rows, as_csv=as_csv, columns=columns)
+    rows = result.rows
+    if not as_csv:  # a compound without a label is shown by its name
+        rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in rows]
+    render_rows(rows, as_csv=as_csv, columns=columns)
     typer.echo(_summary(result), err=True)
 
 
@@ -161,8 +164,8 @@ def _summary(result: Any) -> str:
         else f"{result.total_rows:,} measurement(s)"
     )
     return (
-        f"{shown} on {s.matched:,} matching compound(s); {s.searched:,} compounds with "
-        f"qualifying measurements searched, {s.screened:,} passed the fingerprint screen"
+        f"{shown} on {s.with_rows:,} compound(s); {s.matched:,} of {s.searched:,} compound(s) "
+        f"searched match ({s.screened:,} passed the fingerprint screen)"
     )
 
 

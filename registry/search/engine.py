@@ -27,7 +27,7 @@ from registry.search.index import ScreenIndex, load_index
 from registry.search.patterns import Query
 
 #: below this many candidates a plain loop beats setting up a threaded library
-_SMALL = 2000
+_SMALL = 64
 #: warn when a pattern matches more than this fraction of the compounds searched …
 BROAD_FRACTION = 0.9
 #: … and at least this many of them
@@ -62,6 +62,7 @@ class SearchStats:
     searched: int = 0
     screened: int = 0
     matched: int = 0
+    with_rows: int = 0  # matched compounds that have a measurement passing the filters
     seconds: dict[str, float] = field(default_factory=dict)
 
 
@@ -83,6 +84,7 @@ class FindResult:
                 "measurements": self.total_rows,
                 "returned": len(self.rows),
                 "compounds_matched": self.stats.matched,
+                "compounds_with_measurements": self.stats.with_rows,
                 "compounds_searched": self.stats.searched,
                 "compounds_after_screen": self.stats.screened,
                 "compounds_indexed": self.stats.indexed,
@@ -236,7 +238,8 @@ def _morgan_generator() -> Any:
 
 
 def similarity_index(database: Any, screen: ScreenIndex) -> np.ndarray:
-    """Morgan fingerprints (N × 32 uint64) in screen-index order, cached in ``<db>.simindex``."""
+    """Morgan fingerprints (32 × N uint64, word-major) in screen-index order, cached in
+    ``<db>.simindex``."""
     from registry.search.index import ScreenIndex as Store
     from registry.search.index import index_path_for, read_index, save_index
 
@@ -246,12 +249,13 @@ def similarity_index(database: Any, screen: ScreenIndex) -> np.ndarray:
     if cached is not None and cached.signature == signature and len(cached) == len(screen):
         return cached.fps
     generator = _morgan_generator()
-    fps = np.zeros((len(screen), 32), dtype=np.uint64)
+    rows = np.zeros((len(screen), 32), dtype=np.uint64)
     for i in range(len(screen)):
         try:
-            fps[i] = _morgan_words(screen.mol_binary(i), generator)
+            rows[i] = _morgan_words(screen.mol_binary(i), generator)
         except Exception:  # a molecule RDKit cannot fingerprint is simply not similar
-            fps[i] = 0
+            rows[i] = 0
+    fps = np.ascontiguousarray(rows.T)
     store = Store(
         screen.ids.copy(),
         fps,
@@ -266,9 +270,10 @@ def similarity_index(database: Any, screen: ScreenIndex) -> np.ndarray:
 
 
 def tanimoto(fps: np.ndarray, query: np.ndarray) -> np.ndarray:
-    """Tanimoto (Jaccard) similarity of each row with the query: |a∧b| / |a∨b|."""
-    both = np.bitwise_count(fps & query).sum(axis=1, dtype=np.int64)
-    either = np.bitwise_count(fps | query).sum(axis=1, dtype=np.int64)
+    """Tanimoto (Jaccard) similarity of each column (word-major fingerprints) with the query:
+    |a∧b| / |a∨b|."""
+    both = np.bitwise_count(fps & query[:, None]).sum(axis=0, dtype=np.int64)
+    either = np.bitwise_count(fps | query[:, None]).sum(axis=0, dtype=np.int64)
     with np.errstate(invalid="ignore", divide="ignore"):
         return np.where(either > 0, both / np.maximum(either, 1), 0.0)
 
@@ -306,7 +311,7 @@ def _filtered_compounds(conn: Any, conds: Sequence[Any], filters: Filters) -> np
     if filters.process or filters.nucleus:
         query = query.outerjoin(Process, Process.id == Measurement.process_id)
     query = query.where(*conds).distinct()
-    return np.fromiter((r[0] for r in conn.execute(query)), dtype=np.int64)
+    return np.asarray(conn.execute(query).scalars().all(), dtype=np.int64)
 
 
 def _row_columns() -> dict[str, Any]:
@@ -413,8 +418,10 @@ def find(
     with database.read() as conn:
         t1 = time.perf_counter()
         conds = filtering.conditions(conn, filters)
-        allowed = _allowed_compounds(database, conn, conds, filters)
-        positions = _present(index, allowed)
+        if filters.active():
+            positions = _present(index, _allowed_compounds(database, conn, conds, filters))
+        else:  # every indexed compound; those without measurements simply give no rows
+            positions = np.arange(len(index), dtype=np.int64)
         stats.searched = int(positions.size)
         stats.seconds["filter"] = time.perf_counter() - t1
         similarity: dict[int, float] = {}
@@ -433,7 +440,7 @@ def find(
             mol = compile_smiles(similar or "", field="--similar")
             qwords = _morgan_words(mol.ToBinary(), _morgan_generator())
             fps = similarity_index(database, index)
-            scores = tanimoto(fps[positions], qwords) if positions.size else np.zeros(0)
+            scores = tanimoto(fps[:, positions], qwords) if positions.size else np.zeros(0)
             keep = scores >= min_similarity - 1e-12
             hit_positions = positions[keep]
             similarity = {
@@ -450,6 +457,7 @@ def find(
     if similarity:
         for row in rows:
             row["similarity"] = round(similarity[row["compound_id"]], 4)
+    stats.with_rows = len({r["compound_id"] for r in rows})
     _sort(rows, sort or ("similarity" if similar is not None else "id"))
     total = len(rows)
     if limit is not None:

@@ -163,6 +163,10 @@ class Filters:
     reference: str | None = None
     include_retracted: bool = False
 
+    def active(self) -> bool:
+        """Does any filter narrow the measurements beyond 'not retracted'?"""
+        return bool(self.describe())
+
     def describe(self) -> dict[str, Any]:
         out: dict[str, Any] = {}
         if self.barrier:

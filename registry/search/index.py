@@ -36,14 +36,15 @@ import numpy as np
 from registry.search.patterns import FP_BITS, FP_WORDS
 
 MAGIC = b"FLXSCRN1"
-FORMAT_VERSION = 2
+FORMAT_VERSION = 3
 _ALIGN = 64
 _SAMPLE = 48  # stored fingerprints re-checked against the running RDKit at build time
 
 
 @dataclass
 class ScreenIndex:
-    """Compound ids (ascending), fingerprints (N × 32 uint64), RDKit binaries (offsets + blob)
+    """Compound ids (ascending), fingerprints (32 × N uint64, word-major so that the screen reads
+    only the words a query needs), RDKit binaries (offsets + blob)
     and canonical SMILES (offsets + blob; empty where the structure was kept unsanitized)."""
 
     ids: np.ndarray
@@ -91,14 +92,16 @@ class ScreenIndex:
         needed = np.flatnonzero(query_words)
         if needed.size == 0:
             return np.arange(len(self)) if rows is None else rows
-        words = query_words[needed]
         if rows is not None and rows.size < len(self) // 4:  # few rows: gather just those
-            sub = self.fps[rows[:, None], needed]
-            return rows[np.all((sub & words) == words, axis=1)]
-        keep = np.empty(len(self), dtype=bool)
-        for start in range(0, len(self), 32768):
-            sub = self.fps[start : start + 32768, needed]
-            keep[start : start + 32768] = np.all((sub & words) == words, axis=1)
+            keep = np.ones(rows.size, dtype=bool)
+            for w in needed:
+                word = query_words[w]
+                keep &= (self.fps[w][rows] & word) == word
+            return rows[keep]
+        keep = np.ones(len(self), dtype=bool)
+        for w in needed:
+            word = query_words[w]
+            keep &= (self.fps[w] & word) == word
         return np.flatnonzero(keep) if rows is None else rows[keep[rows]]
 
 
@@ -205,7 +208,7 @@ def _arrays(rows: list[Row], recompute: bool) -> dict[str, np.ndarray]:
         smiles_offsets[i + 1] = len(smiles)
     return {
         "ids": ids,
-        "fps": fps,
+        "fps": np.ascontiguousarray(fps.T),
         "offsets": offsets,
         "blob": np.frombuffer(bytes(raw), dtype=np.uint8),
         "smiles_offsets": smiles_offsets,
@@ -247,7 +250,7 @@ def _extend(index: ScreenIndex, rows: list[Row], sig: dict) -> ScreenIndex:
     assert index.smiles_offsets is not None and index.smiles_blob is not None
     return ScreenIndex(
         ids=np.concatenate([index.ids, new["ids"]]),
-        fps=np.concatenate([index.fps, new["fps"]]),
+        fps=np.concatenate([index.fps, new["fps"]], axis=1),
         offsets=np.concatenate([index.offsets, new["offsets"][1:] + int(index.offsets[-1])]),
         blob=np.concatenate([index.blob, new["blob"]]),
         smiles_offsets=np.concatenate(
