@@ -117,3 +117,10 @@ def test_new_means_since_the_last_check(cli) -> None:  # type: ignore[no-untyped
     assert later.exit_code == 1
     assert "(1 new since the last run, 0 accepted)" in later.stdout
     assert [f["measurement_id"] for f in json.loads(cli("check", "--json").stdout)] == [1, 2]
+
+
+def test_checking_one_id_does_not_reset_new(cli) -> None:  # type: ignore[no-untyped-def]
+    add(cli, "K-1", f"{DG + 2:.2f} kJ/mol")
+    assert json.loads(cli("check", "--json", "--new", "--id", "1").stdout) != []
+    assert [f["measurement_id"] for f in json.loads(cli("check", "--json", "--new").stdout)] == [1]
+    assert json.loads(cli("check", "--json", "--new").stdout) == []

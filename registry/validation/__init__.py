@@ -108,8 +108,8 @@ def check_measurements(
     Findings whose inputs and rule version are unchanged keep their date and acceptance; ones
     no longer produced are removed. A finding is ``new`` when this run stored it or, with
     ``record_run`` (what ``fluxledger check`` does), when it was stored after the previous
-    recorded check run (e.g. by ``add`` or an import in between); the run itself is then
-    recorded in the history under ``actor``.
+    recorded check of the whole registry (e.g. by ``add`` or an import in between); a check of
+    the whole registry with ``record_run`` is itself recorded in the history under ``actor``.
     """
     cfg = config or CheckConfig()
     id_list = None if ids is None else sorted({int(i) for i in ids})
@@ -129,7 +129,8 @@ def check_measurements(
             ]
         else:
             stored = [f if f.new else _as_new(f) for f in stored]
-        record_check_run(conn, actor or current_user(), id_list, _counts(stored))
+        if id_list is None:  # a partial run does not move "since the last run" for the rest
+            record_check_run(conn, actor or current_user(), id_list, _counts(stored))
         return stored, added, removed
 
     stored, added, removed = database.write(work)
