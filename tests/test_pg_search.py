@@ -206,3 +206,37 @@ def test_server_setting_for_chiral_matching_cannot_drop_hits(pg_cartridge: str) 
     finally:
         database.dispose()
     assert hits == [1]
+
+
+@pytest.mark.postgres
+def test_find_gives_the_same_rows_on_sqlite_and_postgresql(
+    pg_cartridge: str, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """``find`` end to end: server-screened on PostgreSQL, client-screened on SQLite."""
+    from registry.pg import screen
+    from registry.search import build_query, find
+
+    monkeypatch.setenv("FLUXLEDGER_CACHE_DIR", str(tmp_path / "cache"))
+    sqlite_db = str(tmp_path / "r.sqlite")
+    _fill(sqlite_db)
+    _fill(pg_cartridge)
+    calls: list[str] = []
+    real = screen.server_screen
+
+    def counting(conn, pattern, *, smiles=False):  # type: ignore[no-untyped-def]
+        found = real(conn, pattern, smiles=smiles)
+        calls.append(pattern if found is not None else f"fallback:{pattern}")
+        return found
+
+    monkeypatch.setattr(screen, "server_screen", counting)
+    lite, pg = api.open_registry(sqlite_db), api.open_registry(pg_cartridge)
+    try:
+        for query in [build_query(smarts=s) for s in MOTIFS] + [build_query(smiles="CN(C)C=O")]:
+            on_sqlite = find(lite, query=query)
+            on_pg = find(pg, query=query)
+            assert on_pg.rows == on_sqlite.rows, query.text
+            assert on_pg.stats.matched == on_sqlite.stats.matched, query.text
+    finally:
+        lite.dispose()
+        pg.dispose()
+    assert calls == [*MOTIFS, "CN(C)C=O"]  # every pattern went to the server, none fell back

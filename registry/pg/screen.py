@@ -8,11 +8,22 @@ this returns None at the cost of one dialect check, and the client screen runs a
 
 from __future__ import annotations
 
+import os
 from typing import Any
 
 import numpy as np
 
 from registry.pg.cartridge import server_screen
+
+
+def server_screen_wanted() -> bool:
+    """False when ``FLUXLEDGER_SERVER_SCREEN`` is off/0/no/false: screen in the client instead.
+
+    Which screen is faster depends on the pattern (see benchmarks/bench_pg.py), so a department
+    can choose; the answers are the same either way.
+    """
+    value = os.environ.get("FLUXLEDGER_SERVER_SCREEN", "on").strip().lower()
+    return value not in {"off", "0", "no", "false"}
 
 
 def server_positions(
@@ -26,7 +37,7 @@ def server_positions(
     """
     if conn is None or getattr(conn, "dialect", None) is None:
         return None
-    if conn.dialect.name != "postgresql":
+    if conn.dialect.name != "postgresql" or not server_screen_wanted():
         return None
     found = server_screen(conn, pattern, smiles=kind == "smiles")
     if found is None:
@@ -39,5 +50,7 @@ def server_positions(
     positions, candidates = positions[inside], candidates[inside]
     positions = positions[ids[positions] == candidates].astype(np.int64)
     if rows is not None:
-        positions = np.intersect1d(positions, rows, assume_unique=True)
+        allowed = np.zeros(ids.size, dtype=bool)
+        allowed[rows] = True
+        positions = positions[allowed[positions]]
     return positions

@@ -185,14 +185,23 @@ def search_positions(
     *,
     threads: int | None = None,
     stats: SearchStats | None = None,
+    conn: Any = None,
 ) -> np.ndarray:
-    """Index positions of the compounds matching any of the query's patterns."""
+    """Index positions of the compounds matching any of the query's patterns.
+
+    With ``conn`` on PostgreSQL with the RDKit cartridge the server screens each pattern
+    (:func:`registry.pg.screen.server_positions`); RDKit here still confirms every candidate.
+    """
+    from registry.pg.screen import server_positions
+
     stats = stats if stats is not None else SearchStats()
     t0 = time.perf_counter()
     hits: list[np.ndarray] = []
     screened: list[np.ndarray] = []
-    for mol, words in zip(query.mols, query.fingerprints, strict=True):
-        candidates = index.screen(words, rows)
+    for text, mol, words in zip(query.pattern_texts, query.mols, query.fingerprints, strict=True):
+        candidates = server_positions(conn, index.ids, rows, text, query.kind)
+        if candidates is None:  # SQLite, no cartridge, or a pattern the server cannot read
+            candidates = index.screen(words, rows)
         screened.append(candidates)
         t1 = time.perf_counter()
         stats.seconds["screen"] = stats.seconds.get("screen", 0.0) + t1 - t0
@@ -436,7 +445,9 @@ def find(
         stats.seconds["filter"] = time.perf_counter() - t1
         similarity: dict[int, float] = {}
         if query is not None:
-            hit_positions = search_positions(index, query, positions, threads=threads, stats=stats)
+            hit_positions = search_positions(
+                index, query, positions, threads=threads, stats=stats, conn=conn
+            )
             description = {
                 "kind": query.kind,
                 "text": query.text,
