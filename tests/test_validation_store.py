@@ -142,3 +142,32 @@ def test_accept_errors(database: Database) -> None:
         accept_finding(database, 999, "reason")
     with pytest.raises(UsageError, match="needs a reason"):
         accept_finding(database, finding.id, "  ")
+
+
+def test_raw_sqlite_path_reads_what_sqlalchemy_reads(
+    database: Database, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from registry.validation import data as vdata
+
+    a = add_slipped(database, "S-1")
+    add_slipped(database, "S-2")
+    api.add_rate_points(
+        database, a, [{"t_k": 300.0, "k_per_s": 12.0}, {"t_k": 310.0, "k_per_s": 30.0}]
+    )
+    frames = {}
+    for raw in (True, False):
+        monkeypatch.setattr(vdata, "RAW_SQLITE", raw)
+        for ids in (None, [a]):
+            with database.read() as conn:
+                frames[(raw, ids is None)] = vdata.load_check_data(conn, ids)
+    for full in (True, False):
+        one, other = frames[(True, full)], frames[(False, full)]
+        assert one.m.shape == other.m.shape and len(one.rates) == len(other.rates)
+        for column in one.m.columns:
+            left, right = one.m[column].tolist(), other.m[column].tolist()
+            if column == "structure_ok":  # 1/0 from the cursor, True/False from SQLAlchemy
+                left, right = [bool(x) for x in left], [bool(x) for x in right]
+            assert [str(x) for x in left] == [str(x) for x in right], column
+        assert list(one.digests(range(len(one.m))).values()) == list(
+            other.digests(range(len(other.m))).values()
+        )
