@@ -153,7 +153,6 @@ def _labels(db_path: Path) -> list[str]:
         conn.close()
 
 
-@pytest.mark.slow  # > 20 s on a busy 2-core machine; still part of 'make test'
 def test_eight_processes_writing_at_once_lose_nothing(db_path: Path, tmp_path: Path) -> None:
     workers, singles, batches, size, importers = 8, 6, 3, 25, 2
     files = [_import_file(tmp_path, w) if w < importers else None for w in range(workers)]
@@ -319,7 +318,6 @@ def test_two_people_editing_one_measurement_lose_neither_change(database, db_pat
     assert maintenance.verify_file(db_path)["ok"]
 
 
-@pytest.mark.slow  # > 20 s on a busy 2-core machine; still part of 'make test'
 def test_the_installed_command_run_five_times_at_once(db_path: Path) -> None:
     env = {**os.environ, "FLUXLEDGER_DB": str(db_path)}
     base = [str(FLUXLEDGER)]
