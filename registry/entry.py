@@ -15,6 +15,7 @@ from typing import Any
 
 from registry import vocab
 from registry.errors import FluxledgerError, UnitError
+from registry.nuclei import observe_frequency_mhz
 from registry.units import ParsedValue, parse_value
 
 #: the fields of an entry: name → (quantity kind, what a user calls it)
@@ -187,7 +188,11 @@ def normalize_entry(
     field_v = _parse(inp, "field", problems)
     mhz = field_v.value if field_v else None
     values = {n: _parse(inp, n, problems) for n in VALUE_FIELDS if n != "field"}
-    dnu = _parse(inp, "dnu", problems, mhz=mhz)
+    nucleus = normalize_nucleus(inp.nucleus)
+    before = len(problems)
+    observe_mhz = _observe_mhz(mhz, nucleus, inp, problems)
+    dnu_refused = len(problems) > before
+    dnu = None if dnu_refused else _parse(inp, "dnu", problems, mhz=observe_mhz)
     log10_a = None
     if not blank(inp.log10_a):
         try:
@@ -202,7 +207,7 @@ def normalize_entry(
             problems.append(Problem("population", str(inp.population), exc.reason))
 
     tc = values["tc"]
-    if (tc is None) != (dnu is None):
+    if (tc is None) != (dnu is None) and not dnu_refused:
         missing = "dnu" if dnu is None else "tc"
         problems.append(Problem(missing, "", "missing: coalescence data needs both Tc and Δν"))
     if dnu is not None and dnu.value <= 0:
@@ -313,6 +318,28 @@ def normalize_entry(
         vocab.solvent_key(measurement["solvent_text"]) if measurement["solvent_text"] else None
     )
     return NormalizedEntry(compound, process, measurement, coalescence, rates, solvent_key), []
+
+
+def _observe_mhz(
+    proton_mhz: float | None, nucleus: str, inp: EntryInput, problems: list[Problem]
+) -> float | None:
+    """The frequency at which a Δν in ppm becomes Hz: the observed nucleus' own, not ¹H's."""
+    if proton_mhz is None or not nucleus or nucleus == "1H":
+        return proton_mhz
+    observe = observe_frequency_mhz(proton_mhz, nucleus)
+    if (
+        observe is None
+        and not blank(inp.dnu)
+        and "ppm" in str(inp.dnu).lower() + inp.units.get("dnu", "").lower()
+    ):
+        problems.append(
+            Problem(
+                "dnu",
+                str(inp.dnu),
+                f"give Δν in Hz: the observe frequency of {nucleus} is not known to fluxledger",
+            )
+        )
+    return observe
 
 
 def normalize_nucleus(text: object) -> str:

@@ -297,8 +297,18 @@ def test_header_unit_is_recovered_from_the_ratio() -> None:
 def test_13c_ppm_converted_at_the_1h_frequency(database: Database) -> None:
     # 13C observe frequency = 400 MHz × Ξ(13C)/Ξ(1H) = 400 × 0.25145020 = 100.58 MHz
     # (Ξ from R. K. Harris et al., Pure Appl. Chem. 73, 1795 (2001); from memory)
+    from sqlalchemy import text
+
     mid = add(
         database, method="coalescence", nucleus="13C", field="400 MHz", tc="300 K", dnu="1.5 ppm"
+    )
+    # entries are now converted at the 13C frequency, so a new entry is clean …
+    assert findings(database, mid, "dnu-ppm-nucleus") == []
+    # … and a row stored the old way (at the 1H frequency) is flagged
+    database.write(
+        lambda conn: conn.execute(
+            text("UPDATE coalescence SET dnu_hz = 600.0 WHERE measurement_id = :m"), {"m": mid}
+        )
     )
     (f,) = findings(database, mid, "dnu-ppm-nucleus")
     assert f.reported == pytest.approx(600.0)

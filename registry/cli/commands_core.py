@@ -124,6 +124,8 @@ def add(
         )
         for finding in record["findings"]:
             typer.echo(f"  {finding['severity']}: {finding['message']}")
+            if finding.get("likely_cause"):
+                typer.echo(f"    likely cause: {finding['likely_cause']}")
 
 
 def _id(text: str) -> int:

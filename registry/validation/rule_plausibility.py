@@ -7,6 +7,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from registry.nuclei import FREQUENCY_RATIO_TO_1H
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.data import CheckData, energy_units, unit_part
 
@@ -15,19 +16,6 @@ _LEADING_NUMBER = r"^\s*([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)"
 #: methods that watch exchange on the NMR time scale (dynamic NMR)
 DYNAMIC_NMR_METHODS = ("coalescence", "lineshape", "2d-exchange", "saturation-transfer")
 
-#: observe frequency of each nucleus relative to 1H in the same magnet: the IUPAC Ξ scale
-#: divided by 100 % (R. K. Harris et al., Pure Appl. Chem. 73, 1795 (2001), Table 1; from memory)
-FREQUENCY_RATIO_TO_1H: dict[str, float] = {
-    "1H": 1.0,
-    "2H": 0.15350609,
-    "7Li": 0.38863797,
-    "11B": 0.32083974,
-    "13C": 0.25145020,
-    "15N": 0.10136767,
-    "19F": 0.94094011,
-    "29Si": 0.19867187,
-    "31P": 0.40480742,
-}
 
 #: spectrometer (1H) frequencies outside this range are not NMR magnets (common practice, no source)
 FIELD_MIN_MHZ, FIELD_MAX_MHZ = 40.0, 1300.0
