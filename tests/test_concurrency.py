@@ -16,6 +16,7 @@ import signal
 import sqlite3
 import subprocess
 import time
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -24,7 +25,7 @@ from sqlalchemy import Connection, insert, text
 from sqlalchemy.exc import OperationalError
 
 from registry import api, edits, maintenance, store
-from registry.entry import EntryInput, normalize_entry
+from registry.entry import EntryInput, NormalizedEntry, normalize_entry
 from registry.errors import DatabaseError
 from registry.models import ImportBatch
 from registry.writer import write_entries
@@ -51,13 +52,33 @@ def _entry(label: str, i: int, smiles: str | None = None) -> EntryInput:
     )
 
 
-def write_batch(database: store.Database, prefix: str, size: int) -> list[int]:
-    """One import-like batch: an import_batch row and ``size`` measurements, in one transaction."""
-    normalized = []
+def _normalized(prefix: str, size: int) -> list[NormalizedEntry]:
+    out = []
     for i in range(size):
         entry, problems = normalize_entry(_entry(f"{prefix}-{i}", i))
         assert entry is not None, problems
-        normalized.append(entry)
+        out.append(entry)
+    return out
+
+
+def write_batch(
+    database: store.Database,
+    prefix: str,
+    size: int,
+    template: list[NormalizedEntry] | None = None,
+) -> list[int]:
+    """One import-like batch: an import_batch row and ``size`` measurements, in one transaction.
+
+    With a ``template`` (entries normalized once) only the labels change, so the process spends
+    nearly all its time inside write transactions: where a kill is most likely to hurt.
+    """
+    if template is None:
+        normalized = _normalized(prefix, size)
+    else:
+        normalized = [
+            replace(e, measurement={**e.measurement, "label": f"{prefix}-{i}"})
+            for i, e in enumerate(template)
+        ]
 
     def work(conn: Connection) -> list[int]:
         batch_id = conn.execute(
@@ -191,10 +212,28 @@ def test_eight_processes_writing_at_once_lose_nothing(db_path: Path, tmp_path: P
 def _endless_batches(db: str, worker: int, size: int) -> None:
     """Child process: write batches until killed."""
     database = api.open_registry(db)
+    template = _normalized(f"k{worker}", 1) * size  # ready in milliseconds: kills land in writes
     b = 0
     while True:
-        write_batch(database, f"k{worker}-b{b}", size)
+        write_batch(database, f"k{worker}-b{b}", size, template)
         b += 1
+
+
+def _endless_batches_marked(db: str, worker: int, size: int, inside: Any) -> None:
+    """As :func:`_endless_batches`, with ``inside`` set to 1 while a write transaction is open."""
+    from contextlib import contextmanager
+
+    plain = store.Database._write_once
+
+    @contextmanager
+    def marked(self: store.Database) -> Any:
+        with plain(self) as conn:
+            inside.value = 1
+            yield conn
+        inside.value = 0  # after COMMIT returned
+
+    store.Database._write_once = marked  # type: ignore[method-assign]
+    _endless_batches(db, worker, size)
 
 
 def _batches_whole(db_path: Path, size: int) -> tuple[int, list[str]]:
@@ -215,13 +254,18 @@ def _batches_whole(db_path: Path, size: int) -> tuple[int, list[str]]:
 def test_writers_killed_at_random_moments_leave_whole_batches(db_path: Path) -> None:
     rng = random.Random()
     size, trials = 150, 24
+    mid_transaction = 0
     for trial in range(trials):
-        proc = FORK.Process(target=_endless_batches, args=(str(db_path), trial, size))
+        inside = FORK.Value("i", 0)
+        proc = FORK.Process(
+            target=_endless_batches_marked, args=(str(db_path), trial, size, inside)
+        )
         proc.start()
         time.sleep(rng.uniform(0.05, 0.6))
         os.kill(proc.pid, signal.SIGKILL)
         proc.join(timeout=10)
         assert proc.exitcode == -signal.SIGKILL
+        mid_transaction += inside.value
         conn = sqlite3.connect(db_path)  # recovery of the WAL happens on this open
         try:
             assert conn.execute("PRAGMA quick_check").fetchone() == ("ok",), f"trial {trial}"
@@ -230,6 +274,9 @@ def test_writers_killed_at_random_moments_leave_whole_batches(db_path: Path) -> 
         stored, broken = _batches_whole(db_path, size)
         assert broken == [], f"trial {trial}: half-written batches {broken}"
     assert stored > 0  # the kills did not all land before the first commit
+    # most kills must hit an open write transaction (BEGIN IMMEDIATE … COMMIT), or this test
+    # would prove little; about 19 in 20 do
+    assert mid_transaction >= trials // 3, mid_transaction
     report = maintenance.verify_file(db_path)
     assert report["ok"], report
 
