@@ -106,7 +106,9 @@ def test_limit_shortens_rows_but_reports_the_total(small) -> None:  # type: igno
     assert result.total_rows > 3
 
 
-def test_stereo_search_needs_matching_chirality(database) -> None:  # type: ignore[no-untyped-def]
+@pytest.mark.parametrize("small_limit", [64, 0], ids=["loop", "library"])
+def test_stereo_search_needs_matching_chirality(database, monkeypatch, small_limit) -> None:  # type: ignore[no-untyped-def]
+    monkeypatch.setattr(engine_module, "_SMALL", small_limit)
     from registry.entry import EntryInput
 
     for i, smi in enumerate(["C=C[C@H]1C[C@H]1C=C", "C=C[C@H]1C[C@@H]1C=C", "C=CC1CC1C=C"]):

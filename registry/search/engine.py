@@ -360,7 +360,9 @@ def _row_columns() -> dict[str, Any]:
     }
 
 
-def _rows_for(conn: Any, conds: Sequence[Any], compound_ids: Sequence[int]) -> list[dict[str, Any]]:
+def _rows_for(
+    conn: Any, conds: Sequence[Any], compound_ids: Sequence[int], scan_above: int = 5000
+) -> list[dict[str, Any]]:
     """The measurements (joined with compound and process) of these compounds that pass."""
     from sqlalchemy import select
 
@@ -376,10 +378,18 @@ def _rows_for(conn: Any, conds: Sequence[Any], compound_ids: Sequence[int]) -> l
     )
     rows: list[dict[str, Any]] = []
     ids = list(compound_ids)
-    for start in range(0, len(ids), 5000):
-        chunk = ids[start : start + 5000]
+    if len(ids) > scan_above:
+        # many hits: one pass over the filtered rows beats thousands of bound parameters
+        hit = set(ids)
+        at = keys.index("compound_id")
+        for r in conn.execute(base.where(*conds)).all():
+            if r[at] in hit:
+                rows.append(dict(zip(keys, r, strict=True)))
+        return rows
+    for start in range(0, len(ids), 2000):
+        chunk = ids[start : start + 2000]
         query = base.where(*conds, Measurement.compound_id.in_(chunk))
-        rows += [dict(zip(keys, r, strict=True)) for r in conn.execute(query)]
+        rows += [dict(zip(keys, r, strict=True)) for r in conn.execute(query).all()]
     return rows
 
 
@@ -473,7 +483,7 @@ def find(
             description = {"kind": "similar", "text": similar, "min_similarity": min_similarity}
         t3 = time.perf_counter()
         hit_ids = index.ids[hit_positions].tolist()
-        rows = _rows_for(conn, conds, hit_ids)
+        rows = _rows_for(conn, conds, hit_ids, scan_above=max(5000, stats.searched // 4))
         stats.seconds["rows"] = time.perf_counter() - t3
     if similarity:
         for row in rows:
