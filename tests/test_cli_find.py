@@ -63,6 +63,12 @@ def test_find_json_has_counts_filters_and_match_atoms(filled) -> None:  # type: 
                                   "atoms": [[1, 2, 3]]}]  # fmt: skip
 
 
+def test_no_atoms_leaves_them_out(filled) -> None:  # type: ignore[no-untyped-def]
+    data = json.loads(filled("find", "--motif", "amide", "--json", "--no-atoms").stdout)
+    assert data["counts"]["measurements"] == 3
+    assert all("match_atoms" not in r for r in data["measurements"])
+
+
 def test_find_csv_and_sorting(filled) -> None:  # type: ignore[no-untyped-def]
     result = filled("find", "--smarts", "[#6]", "--csv", "--sort", "-barrier")
     assert result.exit_code == 0, result.stderr

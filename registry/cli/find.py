@@ -109,6 +109,9 @@ def find(
     as_json: bool = typer.Option(
         False, "--json", help="Print JSON (with matched atom indices per compound)."
     ),
+    no_atoms: bool = typer.Option(
+        False, "--no-atoms", help="Leave the matched atom indices out of --json (faster)."
+    ),
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
 ) -> None:
     """Every barrier measured on compounds with a substructure or motif, with filters."""
@@ -135,7 +138,7 @@ def find(
         raise UsageError("--stereo applies to substructure searches, not --similar")
     result = search.find(
         database, query=query, similar=similar, min_similarity=min_similarity, filters=filters,
-        sort=sort, limit=None if compounds else limit, atoms=as_json, threads=threads,
+        sort=sort, limit=None if compounds else limit, atoms=as_json and not no_atoms, threads=threads,
         rebuild_index=rebuild_index,
     )  # fmt: skip
     for warning in result.warnings:
