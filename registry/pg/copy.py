@@ -19,6 +19,7 @@ from datetime import UTC, datetime
 from typing import Any
 
 from sqlalchemy import Connection, Table, func, insert, select
+from sqlalchemy.exc import OperationalError
 
 from registry import audit, migrate
 from registry.errors import DatabaseError, UsageError
@@ -243,7 +244,11 @@ def migrate_to(
     started = time.perf_counter()
     target = open_database(target_db, must_exist=False)
     try:
-        migrate.upgrade(target)
+        try:
+            migrate.upgrade(target)
+        except OperationalError as exc:
+            reason = str(exc.orig or exc).strip().splitlines()[0]
+            raise DatabaseError(f"cannot open {redacted_url(target)}: {reason}") from exc
         with snapshot(source) as src:
 
             def work(dst: Connection) -> None:
