@@ -246,6 +246,28 @@ def test_index_is_cached_and_reused_by_a_new_process(small, monkeypatch) -> None
     assert again.path == path
 
 
+def test_unchanged_registry_file_skips_the_signature_query(small, monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    index_module.load_index(small)
+    index_module._CHECKED.clear()  # as in a new process
+
+    def no_query(*_args, **_kwargs):  # type: ignore[no-untyped-def]
+        raise AssertionError("signature queried although the registry file is unchanged")
+
+    monkeypatch.setattr(index_module, "database_signature", no_query)
+    assert len(index_module.load_index(small)) > 0
+    monkeypatch.undo()
+    # any write changes the file state: the next load checks the signature again
+    small.write(lambda conn: conn.execute(text("UPDATE measurement SET label = 'x' WHERE id = 1")))
+    index_module._CHECKED.clear()
+    calls = []
+    real = index_module.database_signature
+    monkeypatch.setattr(
+        index_module, "database_signature", lambda *a, **k: calls.append(1) or real(*a, **k)
+    )
+    index_module.load_index(small)
+    assert calls
+
+
 def test_index_extends_with_new_compounds_and_finds_them(small, monkeypatch) -> None:  # type: ignore[no-untyped-def]
     from registry.entry import EntryInput
 

@@ -393,20 +393,63 @@ def _state_with_cache(database: Any, path: Path) -> tuple[int, ...] | None:
         return (*state, -1, -1, -1)
 
 
+def _core(signature: dict[str, Any]) -> dict[str, Any]:
+    return {k: v for k, v in signature.items() if k != "recomputed_fps"}
+
+
+def _state_path(path: Path) -> Path:
+    return Path(f"{path}.state")
+
+
+def _state_matches(path: Path, state: tuple[int, ...], index: ScreenIndex) -> bool:
+    """Was the index last found current while the registry file looked exactly like now?"""
+    try:
+        seen = json.loads(_state_path(path).read_text(encoding="utf-8"))
+    except (OSError, ValueError):
+        return False
+    return seen.get("file_state") == list(state) and seen.get("signature") == _core(index.signature)
+
+
+def _remember_state(path: Path, state: tuple[int, ...] | None, signature: dict) -> None:
+    """Note the registry file state at which the signature was last checked (best effort)."""
+    if state is None:
+        return
+    target = _state_path(path)
+    try:
+        tmp = target.with_name(target.name + f".{os.getpid()}.tmp")
+        tmp.write_text(json.dumps({"file_state": list(state), "signature": _core(signature)}))
+        os.replace(tmp, target)
+    except OSError:
+        pass
+
+
 def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> ScreenIndex:
     """The up-to-date index: the cache file when it agrees with the database, else rebuilt.
 
     New compounds (ids above the cached highest id, everything below unchanged) extend the file;
     any other difference rebuilds it. A cache that cannot be written (read-only folder) is not an
-    error: the index is then rebuilt in memory on each use, and a note says so.
+    error: the index is then rebuilt in memory on each use, and a note says so. When the SQLite
+    file (and its WAL) has not changed at all since the signature was last checked, the check
+    itself is skipped (the state is taken *before* each check, so a concurrent write only makes
+    the next check happen).
     """
     path = index_path_for(database)
     cached = None if rebuild else read_index(path)
+    state = file_state(database)
+    current_rdkit = rdkit_version()
+    if (
+        cached is not None
+        and state is not None
+        and cached.rdkit_version == current_rdkit
+        and _state_matches(path, state, cached)
+    ):
+        return cached
     with database.read() as conn:
         current = database_signature(conn)
-        if cached is not None and cached.rdkit_version == rdkit_version():
-            old = {k: v for k, v in cached.signature.items() if k != "recomputed_fps"}
+        if cached is not None and cached.rdkit_version == current_rdkit:
+            old = _core(cached.signature)
             if old == current:
+                _remember_state(path, state, current)
                 return cached
             same_prefix = (
                 current["compound_revision"] == old["compound_revision"]
@@ -417,10 +460,20 @@ def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> Scre
                 rows = _fetch(conn, old["max_id"])
                 index = _extend(cached, rows, dict(current))
                 index.path = path
-                return _persist(index, path) if persist else index
+                if not persist:
+                    return index
+                index = _persist(index, path)
+                _remember_state(path, state, index.signature)
+                return index
     index = build_index(database)
     index.path = path
-    return _persist(index, path) if persist else index
+    if not persist:
+        return index
+    index = _persist(index, path)
+    # safe even if the file could not be written: the state also names the signature, which
+    # an older file on disk would not have
+    _remember_state(path, state, index.signature)
+    return index
 
 
 def _persist(index: ScreenIndex, path: Path) -> ScreenIndex:
@@ -441,4 +494,5 @@ def drop_index(database: Any) -> bool:
     path = index_path_for(database)
     existed = path.exists()
     path.unlink(missing_ok=True)
+    _state_path(path).unlink(missing_ok=True)
     return existed
