@@ -153,10 +153,27 @@ def find(
     if similar is not None:
         columns = [*columns[:2], "similarity", *columns[2:]]
     rows = result.rows
-    if not as_csv:  # a compound without a label is shown by its name
+    if as_csv:
+        _write_csv(rows, columns)
+    else:  # a compound without a label is shown by its name
         rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in rows]
-    render_rows(rows, as_csv=as_csv, columns=columns)
+        render_rows(rows, columns=columns)
     typer.echo(_summary(result), err=True)
+
+
+def _write_csv(rows: list[dict[str, Any]], columns: list[str]) -> None:
+    """The same CSV as :func:`registry.cli.output.csv_text`, written row by row: a motif search
+    can return tens of thousands of rows, whose values are plain numbers and text."""
+    import csv
+    import math
+    import sys
+
+    def plain(value: Any) -> Any:
+        return None if isinstance(value, float) and not math.isfinite(value) else value
+
+    writer = csv.writer(sys.stdout, lineterminator="\n")
+    writer.writerow(columns)
+    writer.writerows([plain(r.get(c)) for c in columns] for r in rows)
 
 
 def _summary(result: Any) -> str:
