@@ -145,6 +145,15 @@ def reread(
     return None, None
 
 
+def shift_mhz(proton_mhz: float | None, nucleus: str | None) -> float | None:
+    """The frequency at which a Δν in ppm becomes Hz: the observed nucleus' own (as on entry)."""
+    if proton_mhz is None or not nucleus or nucleus == "1H":
+        return proton_mhz
+    from registry.nuclei import observe_frequency_mhz
+
+    return observe_frequency_mhz(proton_mhz, nucleus)
+
+
 def canonical_field(name: str) -> str:
     """The entry field a user means by ``name`` (``dg``, ``t-min``, ``MHz`` …), or a UsageError."""
     key = name.strip().lower().replace("-", "_").replace(" ", "_")
@@ -199,7 +208,8 @@ def _stored_input(
     if coalescence is not None:
         mhz = coalescence["field_mhz"] or mhz
         for name, (text_col, value_col, quantity) in COALESCENCE_VALUES.items():
-            _set_stored(inp, name, coalescence[text_col], coalescence[value_col], quantity, mhz)
+            at = shift_mhz(mhz, process["nucleus"] if process else None) if name == "dnu" else mhz
+            _set_stored(inp, name, coalescence[text_col], coalescence[value_col], quantity, at)
         inp.population = coalescence["population_text"]
     return inp
 

@@ -25,10 +25,10 @@ from typing import Any
 from sqlalchemy import select, text
 
 from registry import audit, migrate
-from registry.edits import COALESCENCE_VALUES, MEASUREMENT_VALUES, reread, same_value
+from registry.edits import COALESCENCE_VALUES, MEASUREMENT_VALUES, reread, same_value, shift_mhz
 from registry.entry import parse_population_ratio
 from registry.errors import DatabaseError, UnitError, UsageError
-from registry.models import CoalescenceObservation, Measurement, RatePoint
+from registry.models import CoalescenceObservation, Measurement, Process, RatePoint
 from registry.store import BUSY_TIMEOUT_MS, Database, open_database, redacted_url
 
 #: how many problems of one check are listed (the count is always complete)
@@ -418,11 +418,18 @@ def value_problems(database: Database) -> tuple[list[str], int]:
                 )
                 if problem:
                     problems.append(problem)
-        c_query = select(CoalescenceObservation.__table__, Measurement.field_mhz.label("m_mhz"))
-        c_query = c_query.join(Measurement, Measurement.id == CoalescenceObservation.measurement_id)
+        c_query = (
+            select(
+                CoalescenceObservation.__table__,
+                Measurement.field_mhz.label("m_mhz"),
+                Process.nucleus.label("nucleus"),
+            )
+            .join(Measurement, Measurement.id == CoalescenceObservation.measurement_id)
+            .outerjoin(Process, Process.id == Measurement.process_id)
+        )
         for row in conn.execute(c_query.order_by(CoalescenceObservation.id)).mappings():
             where = f"measurement {row['measurement_id']} coalescence {row['id']}"
-            mhz = row["field_mhz"] or row["m_mhz"]
+            mhz = shift_mhz(row["field_mhz"] or row["m_mhz"], row["nucleus"])  # for Δν in ppm
             for name, (text_col, value_col, quantity) in COALESCENCE_VALUES.items():
                 err_col = _ERROR_COLUMN.get(name)
                 if row[text_col] is not None:

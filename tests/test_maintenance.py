@@ -358,3 +358,20 @@ def test_db_upgrade_of_the_installed_command_from_the_first_schema(tmp_path: Pat
     assert [(r["compound"], r["dg_kj_mol"]) for r in listed] == [
         ("OLD-1", pytest.approx(18.1 * 4.184))  # NIST SP 811 B.8
     ]
+
+
+def test_a_carbon_separation_in_ppm_is_checked_at_the_carbon_frequency(cli, db_path: Path) -> None:  # type: ignore[no-untyped-def]
+    """0.5 ppm of 13C on a 400 MHz magnet is 0.5 × 400 × 0.25145020 Hz (IUPAC Ξ(13C) = 25.145020 %,
+    Harris et al., Pure Appl. Chem. 73, 1795 (2001), Table 1)."""
+    added = cli(
+        "add", "--method", "coalescence", "--compound", "C13-1", "--process", "ring inversion",
+        "--nucleus", "13C", "--mhz", "400", "--tc", "-60 °C", "--dnu", "0.5 ppm",
+        "--dg", "40 kJ/mol",
+    )  # fmt: skip
+    assert added.exit_code == 0, added.stderr
+    assert cli("edit", "1", "--set", "reference=lab book 3").exit_code == 0
+    assert _verify(db_path)["ok"]
+    _sql(db_path, "UPDATE coalescence SET dnu_hz = 200.0 WHERE measurement_id = 1")  # at 1H
+    assert _failed(_verify(db_path)) == {
+        "values": ["measurement 1 coalescence 1: dnu_text '0.5 ppm' reads as 50.29, stored 200.0"]
+    }
