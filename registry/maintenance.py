@@ -25,11 +25,18 @@ from typing import Any
 from sqlalchemy import select, text
 
 from registry import audit, migrate
-from registry.edits import COALESCENCE_VALUES, MEASUREMENT_VALUES, reread, same_value, shift_mhz
+from registry.edits import (
+    COALESCENCE_VALUES,
+    MEASUREMENT_VALUES,
+    UNIT_CANDIDATES,
+    same_value,
+    shift_mhz,
+)
 from registry.entry import parse_population_ratio
 from registry.errors import DatabaseError, UnitError, UsageError
 from registry.models import CoalescenceObservation, Measurement, Process, RatePoint
 from registry.store import BUSY_TIMEOUT_MS, Database, open_database, redacted_url
+from registry.units import parse_value
 
 #: how many problems of one check are listed (the count is always complete)
 MAX_LISTED = 50
@@ -349,12 +356,36 @@ def known_revisions() -> list[str]:
     return [r.revision for r in reversed(list(script.walk_revisions()))]
 
 
+_NO_UNIT = "no unit"
+
+
 @lru_cache(maxsize=200_000)
+def _parse_cached(
+    text_value: str, quantity: str, mhz: float | None, default_unit: str | None
+) -> tuple[float, float | None] | str | None:
+    """(value, error) of a text; ``_NO_UNIT`` for a bare number without a default; None if unreadable.
+
+    Keyed on the text, not on the stored value, so the many rows that share a text are read once.
+    """
+    try:
+        parsed = parse_value(text_value, quantity, default_unit=default_unit, spectrometer_mhz=mhz)
+    except UnitError as exc:
+        return _NO_UNIT if "no unit given" in exc.reason else None
+    return parsed.value, parsed.error
+
+
 def _reread_cached(
     text_value: str, quantity: str, stored: float | None, mhz: float | None
 ) -> tuple[float, float | None] | None:
-    parsed, _unit = reread(text_value, quantity, stored, field="value", mhz=mhz)
-    return None if parsed is None else (parsed.value, parsed.error)
+    """As :func:`registry.edits.reread`, with the parses cached."""
+    read = _parse_cached(text_value, quantity, mhz, None)
+    if read != _NO_UNIT:
+        return read if isinstance(read, tuple) else None
+    for unit in UNIT_CANDIDATES[quantity]:
+        candidate = _parse_cached(text_value, quantity, mhz, unit)
+        if isinstance(candidate, tuple) and (stored is None or same_value(candidate[0], stored)):
+            return candidate
+    return None
 
 
 def _value_problem(
