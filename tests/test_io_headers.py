@@ -56,7 +56,15 @@ def test_usual_spellings_are_recognised(header: str, field: str, unit: str | Non
 
 @pytest.mark.parametrize(
     ("header", "field"),
-    [("σ_k", "k"), ("sigma k", "k"), ("ΔG‡ err", "dg"), ("k_err", "k"), ("Tc error", "tc")],
+    [
+        ("σ_k", "k"),
+        ("sigma k", "k"),
+        ("ΔG‡ err", "dg"),
+        ("k_err", "k"),
+        ("Tc error", "tc"),
+        ("u(Tc)", "tc"),
+        ("σ(ΔG‡)", "dg"),
+    ],
 )
 def test_uncertainty_columns(header: str, field: str) -> None:
     guess = guess_header(header)

@@ -215,6 +215,10 @@ def guess_header(header: str) -> HeaderGuess:
         return HeaderGuess(raw, None, None, "extra")
     concept, unit = split_header(raw)
     field, is_error = _lookup(concept)
+    if field is None and unit and concept_key(concept) in _ERROR_WORDS:
+        inner, inner_is_error = _lookup(unit)  # "u(Tc)", "σ(ΔG‡)": the uncertainty of Tc, ΔG‡
+        if inner is not None and not inner_is_error:
+            return HeaderGuess(raw, inner, None, "error")
     if field is None and not is_error:
         stem, suffix_unit = _snake_unit(concept)
         if suffix_unit is not None:
