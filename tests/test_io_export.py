@@ -163,3 +163,15 @@ def test_cli_export(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def
     assert result.stdout.startswith("exported 1 measurement(s), 0 rate point(s)")
     result = cli("export", "-o", str(tmp_path / "o.json"), "--format", "json", "--json")
     assert json.loads(result.stdout)["measurements"] == 1
+
+
+def test_demo_findings_fall_on_the_planted_slips_only(database: Database) -> None:
+    """seed_demo/README.md lists five planted slips; the clean entries must give no finding."""
+    flagged: dict[str, set[str]] = {}
+    for name in ("halvorsen_barriers.xlsx", "literature_barriers.csv"):
+        summary = import_table(database, SEED / name)
+        for f in summary["validation"]["list"]:
+            label = api.get_measurement(database, f["measurement_id"])["label"]
+            flagged.setdefault(label, set()).add(f["rule_id"])
+    assert set(flagged) == {"HG-07", "HG-15", "HG-21", "LIT-05", "LIT-09"}
+    assert all("coalescence-barrier" in rules for rules in flagged.values())
