@@ -289,15 +289,16 @@ def test_backup_under_concurrent_writes_restores_to_a_clean_registry(
     try:
         backups = []
         database = store.open_database(str(db_path))
+        seen = 0
         for k in range(3):
-            time.sleep(0.4)
+            seen = _wait_for_batches(db_path, seen)  # a busy machine may start writers slowly
             made = maintenance.backup(database, tmp_path / f"b{k}.sqlite")
             backups.append(Path(made["backup"]))
         database.dispose()
         # restore the first backup into the live registry while the writers keep writing
         restored = maintenance.restore(str(db_path), backups[0], force=True)
         assert restored["safety_backup"]
-        time.sleep(0.4)
+        _wait_for_batches(db_path, _batches_whole(db_path, size)[0])
     finally:
         for p in procs:
             os.kill(p.pid, signal.SIGKILL)
@@ -317,6 +318,20 @@ def test_backup_under_concurrent_writes_restores_to_a_clean_registry(
     # the live registry: the restored content plus what the writers added after it, all whole
     assert maintenance.verify_file(db_path)["ok"]
     assert _batches_whole(db_path, size)[1] == []
+
+
+def _wait_for_batches(db_path: Path, more_than: int, timeout: float = 60.0) -> int:
+    """Wait until the registry holds more than ``more_than`` import batches; returns how many."""
+    deadline = time.monotonic() + timeout
+    while True:
+        conn = sqlite3.connect(db_path, timeout=30)
+        try:
+            count = conn.execute("SELECT count(*) FROM import_batch").fetchone()[0]
+        finally:
+            conn.close()
+        if count > more_than or time.monotonic() > deadline:
+            return count
+        time.sleep(0.05)
 
 
 def _editor(db: str, field: str, values: list[str], go: float) -> None:
