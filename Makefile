@@ -26,7 +26,6 @@ demo: install
 	PATH="$(CURDIR)/$(BIN):$$PATH" bash seed_demo/run_demo.sh
 
 bench: install
-	$(PIP) install --quiet -e ".[bench]"
 	@for b in benchmarks/bench_*.py; do echo "== $$b"; $(BIN)/python $$b || exit 1; done
 
 clean:

@@ -218,14 +218,21 @@ ureg.add_context(_ctx)
 
 
 def _check_dimension(quantity: str, unit: pint.Unit, field: str, text: str) -> None:
+    problem = _dimension_problem(quantity, unit)
+    if problem:
+        raise UnitError(field, text, problem)
+
+
+def _dimension_problem(quantity: str, unit: pint.Unit) -> str | None:
+    """Why ``unit`` is not a unit of ``quantity`` (None when it is)."""
     want = ureg.get_dimensionality(_DIMENSION[quantity])
     have = unit.dimensionality
     if have == want:
-        return
+        return None
     if quantity == "energy" and str(have) in (
         str(ureg.get_dimensionality(d)) for d in _PER_MOLECULE_ENERGY
     ):
-        return
+        return None
     names = {
         "energy": "a molar energy (kJ/mol, kcal/mol, cm-1, eV)",
         "entropy": "an entropy (J/(mol·K), cal/(mol·K), e.u.)",
@@ -237,7 +244,7 @@ def _check_dimension(quantity: str, unit: pint.Unit, field: str, text: str) -> N
         "temperature": "a temperature (K, °C, °F)",
         "temperature_difference": "a temperature difference (K)",
     }
-    raise UnitError(field, text, f"{unit:~} is not {names[quantity]}")
+    return f"{unit:~} is not {names[quantity]}"
 
 
 def parse_value(
@@ -288,6 +295,50 @@ def parse_value(
     return _convert(number, error, unit_text, quantity, field, raw, spectrometer_mhz)
 
 
+@dataclass(frozen=True)
+class _LinearMap:
+    """canonical = scale·number + offset; an uncertainty (a difference) maps by scale alone."""
+
+    scale: float
+    offset: float
+    problem: str | None = None
+
+
+@lru_cache(maxsize=2048)
+def _linear_map(unit_text: str, quantity: str) -> _LinearMap:
+    """How a number in ``unit_text`` becomes the canonical unit of ``quantity``, worked out once.
+
+    Every conversion we accept is affine (°C and °F carry an offset, the rest a factor), so pint is
+    asked once per distinct unit spelling; reading a large sheet then costs a regex and two float
+    operations per value.
+    """
+    normal = _normalise_unit_text(unit_text)
+    if quantity in ("energy", "entropy") and normal.lower() in ("kcal", "kj", "cal", "j"):
+        return _LinearMap(
+            math.nan, math.nan, f"{unit_text!r} lacks 'per mol'; write e.g. '{unit_text}/mol'"
+        )
+    try:
+        unit = _parse_unit(normal)
+    except Exception:  # pint raises a variety of tokenizer errors on garbage
+        return _LinearMap(math.nan, math.nan, f"unknown unit {unit_text!r}")
+    problem = _dimension_problem(quantity, unit)
+    if problem:
+        return _LinearMap(math.nan, math.nan, problem)
+    target = CANONICAL[quantity]
+    try:
+        if quantity == "temperature":
+            offset = float(Q_(0.0, unit).to(target).magnitude)
+            scale = float(Q_(1.0, unit).to(target).magnitude) - offset
+        elif quantity == "temperature_difference":
+            offset, scale = 0.0, _delta(1.0, unit)
+        else:
+            offset = 0.0
+            scale = float(Q_(1.0, unit).to(target, "chemistry_per_molecule").magnitude)
+    except pint.errors.DimensionalityError:
+        return _LinearMap(math.nan, math.nan, f"{unit_text!r} cannot be read as {quantity}")
+    return _LinearMap(scale, offset)
+
+
 def _convert(
     number: float,
     error: float | None,
@@ -297,8 +348,7 @@ def _convert(
     raw: str,
     spectrometer_mhz: float | None,
 ) -> ParsedValue:
-    normal = _normalise_unit_text(unit_text)
-    if quantity in ("shift", "frequency") and normal == "ppm":
+    if quantity in ("shift", "frequency") and _normalise_unit_text(unit_text) == "ppm":
         if quantity == "frequency":
             raise UnitError(field, raw, "ppm is a shift, not a frequency")
         if spectrometer_mhz is None or spectrometer_mhz <= 0:
@@ -306,35 +356,14 @@ def _convert(
         hz = ppm_to_hz(number, spectrometer_mhz)
         err = ppm_to_hz(error, spectrometer_mhz) if error is not None else None
         return ParsedValue(hz, err, raw, unit_text)
-    if quantity in ("energy", "entropy") and normal.lower() in ("kcal", "kj", "cal", "j"):
-        raise UnitError(field, raw, f"{unit_text!r} lacks 'per mol'; write e.g. '{unit_text}/mol'")
-    try:
-        unit = _parse_unit(normal)
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, ValueError) as exc:
-        raise UnitError(field, raw, f"unknown unit {unit_text!r}") from exc
-    except Exception as exc:  # pint raises a variety of tokenizer errors on garbage
-        raise UnitError(field, raw, f"unknown unit {unit_text!r}") from exc
-    _check_dimension(quantity, unit, field, raw)
-    target = CANONICAL[quantity]
-    try:
-        if quantity == "temperature":
-            value = Q_(number, unit).to(target).magnitude
-            err = _delta(error, unit) if error is not None else None
-            if value < 0:
-                raise UnitError(field, raw, "below absolute zero")
-        elif quantity == "temperature_difference":
-            value = _delta(number, unit)
-            err = _delta(error, unit) if error is not None else None
-        else:
-            value = Q_(number, unit).to(target, "chemistry_per_molecule").magnitude
-            err = (
-                Q_(error, unit).to(target, "chemistry_per_molecule").magnitude
-                if error is not None
-                else None
-            )
-    except pint.errors.DimensionalityError as exc:
-        raise UnitError(field, raw, f"{unit_text!r} cannot be read as {quantity}") from exc
-    return ParsedValue(float(value), None if err is None else float(err), raw, unit_text)
+    mapping = _linear_map(unit_text, quantity)
+    if mapping.problem:
+        raise UnitError(field, raw, mapping.problem)
+    value = mapping.scale * number + mapping.offset
+    if quantity == "temperature" and value < 0:
+        raise UnitError(field, raw, "below absolute zero")
+    err = None if error is None else abs(mapping.scale) * error
+    return ParsedValue(float(value), err, raw, unit_text)
 
 
 def _delta(amount: float, unit: pint.Unit) -> float:
