@@ -118,6 +118,22 @@ def resolve_compounds(
             select(Compound.id, Compound.inchikey, Compound.label).where(Compound.label.in_(chunk))
         ):
             by_label[label] = (cid, key)
+    # a compound known only by name (no structure, no label) is matched by that name
+    names = {
+        e.compound.get("name")
+        for e, st in zip(entries, structures, strict=True)
+        if e.compound.get("name")
+        and not e.compound.get("label")
+        and (st is None or not st.inchikey)
+    }
+    by_name: dict[str, int] = {}
+    for chunk in _chunks(sorted(names), 500):
+        for cid, name in conn.execute(
+            select(Compound.id, Compound.name)
+            .where(Compound.name.in_(chunk), Compound.label.is_(None), Compound.inchikey.is_(None))
+            .order_by(Compound.id)
+        ):
+            by_name.setdefault(name, cid)
     new_rows: list[dict[str, Any]] = []
     pending: dict[str, int] = {}  # key (inchikey or label or name) → index in new_rows
     slots: list[tuple[str, int]] = []  # ("id", id) or ("new", index)
@@ -141,6 +157,10 @@ def resolve_compounds(
                     "choose another label"
                 )
             slots.append(("id", cid))
+            continue
+        name = entry.compound.get("name")
+        if not key and not label and name in by_name:
+            slots.append(("id", by_name[name]))
             continue
         candidates = [c for c in (key, f"label:{label}" if label else None) if c]
         if not candidates:  # no structure and no label: one new compound per distinct name

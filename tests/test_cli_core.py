@@ -200,3 +200,15 @@ def test_installed_console_script_runs(tmp_path: Path) -> None:
     assert helped.returncode == 0
     for command in ("init", "info", "add", "show", "list"):
         assert command in helped.stdout
+
+
+def test_compound_known_only_by_name_is_reused(cli) -> None:  # type: ignore[no-untyped-def]
+    for dg in ("60 kJ/mol", "61 kJ/mol"):
+        assert (
+            cli(
+                "add", "--method", "computed", "--name", "tri-tert-butylamine", "--dg", dg
+            ).exit_code
+            == 0
+        )
+    info = json.loads(cli("info", "--json").stdout)
+    assert (info["counts"]["compounds"], info["counts"]["measurements"]) == (1, 2)
