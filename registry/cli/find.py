@@ -251,7 +251,6 @@ def motifs_list(
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
 ) -> None:
     """Built-in motifs, the registry's own motifs, and those of --file."""
-    from registry import api
     from registry.search import list_motifs
 
     database = _open_if_exists(state(ctx).db)
@@ -271,7 +270,6 @@ def motifs_list(
         for r in rows
     ]
     render_rows(table, as_csv=as_csv)
-    del api
 
 
 def _open_if_exists(db: str) -> Any:
