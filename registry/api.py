@@ -35,8 +35,16 @@ if TYPE_CHECKING:  # imported lazily at run time: units (pint) and RDKit are slo
 
 def init_registry(db: str) -> dict[str, Any]:
     """Create a registry (or bring an existing one to the current schema) and say what it holds."""
+    from sqlalchemy.exc import OperationalError
+
     database = open_database(db, must_exist=False)
-    migrate.upgrade(database)
+    try:
+        migrate.upgrade(database)
+    except OperationalError as exc:  # server unreachable, database missing, no permission
+        reason = str(exc.orig or exc).strip().splitlines()[0]
+        raise DatabaseError(
+            f"cannot create a registry at {redacted_url(database)}: {reason}"
+        ) from exc
     return registry_info(database)
 
 
@@ -46,7 +54,10 @@ def open_registry(db: str) -> Database:
     try:
         current = migrate.current_revision(database)
     except Exception as exc:
-        raise DatabaseError(f"{redacted_url(database)} is not a readable registry: {exc}") from exc
+        reason = str(getattr(exc, "orig", None) or exc).strip().splitlines()[0]
+        raise DatabaseError(
+            f"{redacted_url(database)} is not a readable registry: {reason}"
+        ) from exc
     head = migrate.head_revision()
     if current is None:
         raise DatabaseError(

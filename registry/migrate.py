@@ -6,15 +6,21 @@ package ``registry._migrations``; running from a source checkout finds the folde
 
 from __future__ import annotations
 
+import re
 import sys
+from functools import cache
 from pathlib import Path
+from typing import TYPE_CHECKING
 
-from alembic import command
-from alembic.config import Config
-from alembic.runtime.migration import MigrationContext
-from alembic.script import ScriptDirectory
+from sqlalchemy import inspect, text
 
 from registry.store import Database
+
+if TYPE_CHECKING:  # Alembic is loaded only when a migration actually runs (fast start-up)
+    from alembic.config import Config
+
+_REVISION_RE = re.compile(r"^revision(?::\s*str)?\s*=\s*[\"']([^\"']+)[\"']", re.M)
+_DOWN_RE = re.compile(r"^down_revision(?::[^=]+)?=\s*(?:None|[\"']([^\"']+)[\"'])", re.M)
 
 
 def script_location() -> str:
@@ -28,6 +34,8 @@ def script_location() -> str:
 
 
 def alembic_config(database: Database | None = None) -> Config:
+    from alembic.config import Config
+
     cfg = Config()
     cfg.set_main_option("script_location", script_location())
     cfg.set_main_option("path_separator", "os")
@@ -36,17 +44,48 @@ def alembic_config(database: Database | None = None) -> Config:
     return cfg
 
 
+@cache
 def head_revision() -> str:
+    """The newest revision, read from the scripts' own ``revision``/``down_revision`` lines.
+
+    Opening a registry checks its schema against this on every command; reading the small
+    scripts as text avoids loading Alembic. A test checks it agrees with Alembic's answer.
+    """
+    revisions: set[str] = set()
+    parents: set[str] = set()
+    for script in (Path(script_location()) / "versions").glob("*.py"):
+        body = script.read_text(encoding="utf-8")
+        rev = _REVISION_RE.search(body)
+        if not rev:
+            continue
+        revisions.add(rev.group(1))
+        down = _DOWN_RE.search(body)
+        if down and down.group(1):
+            parents.add(down.group(1))
+    heads = sorted(revisions - parents)
+    if len(heads) != 1:
+        return _alembic_head()
+    return heads[0]
+
+
+def _alembic_head() -> str:
+    from alembic.script import ScriptDirectory
+
     return ScriptDirectory.from_config(alembic_config()).get_current_head() or ""
 
 
 def current_revision(database: Database) -> str | None:
+    """The revision stamped in the database (None for an empty one), read with plain SQL."""
     with database.engine.connect() as conn:
-        return MigrationContext.configure(conn).get_current_revision()
+        if not inspect(conn).has_table("alembic_version"):
+            return None
+        return conn.execute(text("SELECT version_num FROM alembic_version")).scalar()
 
 
 def upgrade(database: Database, target: str = "head") -> None:
     """Bring the schema to ``target``; each migration runs in its own transaction."""
+    from alembic import command
+
     cfg = alembic_config(database)
     with database.engine.begin() as conn:
         cfg.attributes["connection"] = conn
@@ -54,6 +93,8 @@ def upgrade(database: Database, target: str = "head") -> None:
 
 
 def downgrade(database: Database, target: str) -> None:
+    from alembic import command
+
     cfg = alembic_config(database)
     with database.engine.begin() as conn:
         cfg.attributes["connection"] = conn
@@ -62,6 +103,8 @@ def downgrade(database: Database, target: str) -> None:
 
 def check(database: Database) -> None:
     """Raise if the models and the migration head have drifted apart (Alembic autogenerate)."""
+    from alembic import command
+
     cfg = alembic_config(database)
     with database.engine.begin() as conn:
         cfg.attributes["connection"] = conn
@@ -72,6 +115,8 @@ def _main(argv: list[str]) -> None:
     """Developer entry: ``python -m registry.migrate revision -m MSG`` autogenerates a revision."""
     import argparse
     import tempfile
+
+    from alembic import command
 
     from registry.store import open_database
 

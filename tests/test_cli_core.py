@@ -212,3 +212,21 @@ def test_compound_known_only_by_name_is_reused(cli) -> None:  # type: ignore[no-
         )
     info = json.loads(cli("info", "--json").stdout)
     assert (info["counts"]["compounds"], info["counts"]["measurements"]) == (1, 2)
+
+
+def test_same_compound_with_and_without_a_known_solvent(cli) -> None:  # type: ignore[no-untyped-def]
+    base = [
+        "add",
+        "--method",
+        "coalescence",
+        "--smiles",
+        "CC(=O)N(C)C",
+        "--compound",
+        "DMA",
+        "--mhz",
+        "400",
+    ]
+    coal = ["--tc", "70 °C", "--dnu", "24 Hz", "--dg", "73 kJ/mol"]
+    assert cli(*base, *coal, "--solvent", "CDCl3").exit_code == 0
+    result = cli(*base, *coal)
+    assert result.exit_code == 0, result.stderr

@@ -62,3 +62,7 @@ def test_seed_is_idempotent(tmp_path: Path) -> None:
         count = conn.exec_driver_sql("SELECT count(*) FROM solvent").scalar()
     assert count == len(SOLVENTS)
     database.dispose()
+
+
+def test_light_head_reader_agrees_with_alembic() -> None:
+    assert migrate.head_revision() == migrate._alembic_head()

@@ -40,7 +40,7 @@ def _match_key(frame: pd.DataFrame) -> pd.DataFrame:
     """compound, process, method and solvent (table id, else the spelling key) of each row."""
     in_table = frame["solvent_id"].notna().to_numpy()
     key = np.empty(len(frame), dtype=object)
-    key[in_table] = [f"id:{v:d}" for v in frame["solvent_id"].to_numpy()[in_table].tolist()]
+    key[in_table] = [f"id:{int(v)}" for v in frame["solvent_id"].to_numpy()[in_table].tolist()]
     others = frame["solvent_text"].to_numpy(dtype=object)[~in_table]
     key[~in_table] = ["text:" + vocab.solvent_key(str(t or "")) for t in others]
     return pd.DataFrame(
