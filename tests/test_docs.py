@@ -1,0 +1,59 @@
+"""Docs checked against the code: every command has help text and is shown in the README."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import typer
+
+from registry.cli.main import app
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def _commands() -> list[tuple[str, object]]:
+    root = typer.main.get_command(app)
+    found: list[tuple[str, object]] = []
+
+    def walk(prefix: str, command: object) -> None:
+        subs = getattr(command, "commands", None)
+        if subs:
+            for name, sub in subs.items():
+                walk(f"{prefix} {name}".strip(), sub)
+        else:
+            found.append((prefix, command))
+
+    walk("", root)
+    return found
+
+
+def test_every_command_has_help_text() -> None:
+    missing = [name for name, cmd in _commands() if not (getattr(cmd, "help", None) or "").strip()]
+    assert missing == []
+
+
+def test_every_command_is_mentioned_in_the_readme() -> None:
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    missing = [name for name, _ in _commands() if f"fluxledger {name}" not in readme]
+    assert missing == []
+
+
+def test_readme_opens_with_the_job_and_shows_the_two_commands() -> None:
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    first_paragraph = readme.split("\n\n")[1]
+    assert "barrier" in first_paragraph
+    assert "make demo" in readme
+    assert "make test" in readme
+
+
+def test_ci_runs_the_readme_test_command() -> None:
+    assert "make test" in (ROOT / ".ci" / "run").read_text(encoding="utf-8")
+
+
+def test_every_command_takes_json() -> None:
+    lacking = []
+    for name, cmd in _commands():
+        params = {opt for p in getattr(cmd, "params", []) for opt in getattr(p, "opts", [])}
+        if "--json" not in params:
+            lacking.append(name)
+    assert lacking == []
