@@ -16,8 +16,8 @@ step import seed_demo/halvorsen_barriers.xlsx
 step import seed_demo/literature_barriers.csv
 step import seed_demo/halvorsen_barriers.xlsx   # the same file again: nothing added
 step add --method coalescence --compound DEMO-ADD-1 --name "N,N-dimethylacetamide" \
-  --smiles "CC(=O)N(C)C" --process bond-rotation --nucleus 1H --solvent CDCl3 --mhz 400 \
-  --tc "70 °C" --dnu "0.12 ppm" --dg "18.1 kcal/mol" --reference "demo: invented value"
+  --smiles "CC(=O)N(C)C" --process bond-rotation --nucleus 1H --solvent toluene-d8 --mhz 400 \
+  --tc "70 ± 1 °C" --dnu "0.12 ppm" --dg "17.0 kcal/mol" --reference "demo: invented value"
 # --- check step ---
 step_findings check --severity warning
 first_error=$(fluxledger check --json --severity error 2>/dev/null \
@@ -33,4 +33,14 @@ step motifs show amide
 step list --limit 10
 step show 1
 # --- calc step ---
+step calc coalescence --tc "-12 ± 1 °C" --dnu "0.045 ppm" --mhz 600
+step calc plan --dg "21 kcal/mol" --dnu "0.15 ppm" --mhz 60 --mhz 400 --solvent-bp "111 °C"
+# --- history, pictures, safety ---
+step --as demo-reviewer edit 41 --set status=reviewed --reason "demo: checked against the spectra"
+step history 41
+step plot eyring 25 -o demo_out/eyring-25.png
+step report -o demo_out/registry-view
+step export -o demo_out/barriers.tex --energy-unit kcal/mol
+step backup demo_out/backup.sqlite
+step verify
 step info

@@ -48,11 +48,15 @@ def info(
     if as_json:
         render_record(result, as_json=True)
         return
-    typer.echo(f"database        {result['database']}")
-    typer.echo(f"backend         {result['backend']}")
-    typer.echo(f"schema          {result['schema_version']} (head {result['schema_head']})")
-    for name, count in result["counts"].items():
-        typer.echo(f"{name.replace('_', ' '):<16}{count}")
+    lines = [
+        ("database", result["database"]),
+        ("backend", result["backend"]),
+        ("schema", f"{result['schema_version']} (head {result['schema_head']})"),
+        *((name.replace("_", " "), count) for name, count in result["counts"].items()),
+    ]
+    width = max(len(name) for name, _ in lines) + 2
+    for name, value in lines:
+        typer.echo(f"{name:<{width}}{value}")
 
 
 def add(
