@@ -8,6 +8,7 @@ command run several times at once.
 
 from __future__ import annotations
 
+import gc
 import json
 import multiprocessing
 import os
@@ -159,7 +160,31 @@ def _writer(
     os._exit(0)
 
 
+def _nothing_open(db_path: Path) -> None:
+    """Before a fork: this process must hold no connection to the registry.
+
+    SQLite keeps per-process bookkeeping of its file locks (and of the WAL index mapping); a
+    child forked while the parent has the file open inherits that bookkeeping without the locks
+    themselves and can then corrupt the file (sqlite.org/howtocorrupt.html, section 2.6). Engines
+    that went out of scope may still hold pooled connections until the garbage collector runs.
+    """
+    gc.collect()
+    names = {str(db_path), f"{db_path}-wal", f"{db_path}-shm"}
+    fd_dir = Path("/proc/self/fd")
+    if not fd_dir.exists():  # pragma: no cover - not Linux
+        return
+    held = []
+    for fd in fd_dir.iterdir():
+        try:
+            if os.readlink(fd) in names:
+                held.append(os.readlink(fd))
+        except OSError:
+            continue
+    assert held == [], f"the test process still has the registry open: {held}"
+
+
 def _fork_all(target: Any, args_list: list[tuple[Any, ...]]) -> list[Any]:
+    _nothing_open(Path(args_list[0][0]))
     procs = [FORK.Process(target=target, args=args) for args in args_list]
     for p in procs:
         p.start()
@@ -257,6 +282,7 @@ def test_writers_killed_at_random_moments_leave_whole_batches(db_path: Path) -> 
     mid_transaction = 0
     for trial in range(trials):
         inside = FORK.Value("i", 0)
+        _nothing_open(db_path)
         proc = FORK.Process(
             target=_endless_batches_marked, args=(str(db_path), trial, size, inside)
         )
@@ -438,6 +464,7 @@ def _hold_write_lock(db: str, seconds: float, locked: Any) -> None:
 def test_a_writer_waits_for_the_lock_instead_of_failing(database, db_path: Path) -> None:  # type: ignore[no-untyped-def]
     database.dispose()
     locked = FORK.Event()
+    _nothing_open(db_path)
     holder = FORK.Process(target=_hold_write_lock, args=(str(db_path), 1.0, locked))
     holder.start()
     assert locked.wait(30)
