@@ -111,11 +111,15 @@ def structure_for(smiles: str | None) -> Structure | None:
     return read_structure(smiles) if smiles else None
 
 
-def add_measurement(database: Database, entry: EntryInput, *, actor: str | None = None) -> int:
+def add_measurement(
+    database: Database, entry: EntryInput, *, actor: str | None = None, check: bool = True
+) -> int:
     """Add one measurement (and its compound/process if new), check it; returns its id.
 
     The validation rules run on the new row right after the write, so its findings are stored
-    (``get_measurement(...)["findings"]``).
+    (``get_measurement(...)["findings"]``). A caller adding many rows one by one may pass
+    ``check=False`` and run :func:`registry.validation.check_measurements` once on all of them:
+    the check of a single row costs far more than its write.
     """
     from registry.entry import EntryError, normalize_entry
     from registry.writer import known_process_kinds, write_entries
@@ -135,9 +139,10 @@ def add_measurement(database: Database, entry: EntryInput, *, actor: str | None 
             conn, [normalized], [structure], actor=who, extras=[entry.extra or None]
         )
     )
-    from registry.validation import check_measurements  # pandas: import only when adding
+    if check:
+        from registry.validation import check_measurements  # pandas: import only when checking
 
-    check_measurements(database, result.measurement_ids, actor=who)
+        check_measurements(database, result.measurement_ids, actor=who)
     return result.measurement_ids[0]
 
 

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import contextlib
 from dataclasses import dataclass
-from functools import cache
+from functools import cache, lru_cache
 from typing import Any
 
 from registry.errors import StructureError
@@ -54,7 +54,15 @@ def pattern_fingerprint_bytes(mol: Any) -> bytes:
 
 
 def read_structure(smiles: str, *, with_fingerprint: bool = True) -> Structure:
-    """Parse, canonicalize and identify one SMILES; raise :class:`StructureError` if unreadable."""
+    """Parse, canonicalize and identify one SMILES; raise :class:`StructureError` if unreadable.
+
+    Results are cached per process (a group enters the same compounds again and again).
+    """
+    return _read_structure_cached(smiles, with_fingerprint)
+
+
+@lru_cache(maxsize=4096)
+def _read_structure_cached(smiles: str, with_fingerprint: bool) -> Structure:
     Chem = _rdkit()
     text = (smiles or "").strip()
     if not text:

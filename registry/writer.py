@@ -8,12 +8,13 @@ write transaction: a failure anywhere leaves nothing behind.
 from __future__ import annotations
 
 import json
+import weakref
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, insert, select
+from sqlalchemy import Connection, insert, select, text
 
 from registry import audit, vocab
 from registry.chem import Structure
@@ -47,20 +48,43 @@ class WriteResult:
     compounds_added: int
 
 
+_REFERENCE_CACHE: weakref.WeakKeyDictionary[Any, dict[str, Any]] = weakref.WeakKeyDictionary()
+
+
+def _reference_cache(conn: Connection) -> dict[str, Any]:
+    """Per-engine cache of the small reference tables, refreshed when their size changes.
+
+    Every single ``add`` needs the solvent spellings and the process kinds; building the spelling
+    index each time cost a quarter of a write.
+    """
+    stamp = conn.execute(
+        text(
+            "SELECT (SELECT count(*) FROM solvent), (SELECT max(id) FROM solvent), "
+            "(SELECT count(*) FROM process_kind)"
+        )
+    ).one()
+    cache = _REFERENCE_CACHE.setdefault(conn.engine, {})
+    if cache.get("stamp") != tuple(stamp):
+        index: dict[str, int] = {}
+        for sid, name, formula, aliases in conn.execute(
+            select(Solvent.id, Solvent.name, Solvent.formula, Solvent.aliases).order_by(Solvent.id)
+        ):
+            for spelling in (name, formula, *(aliases or "").split("|")):
+                if spelling:
+                    index.setdefault(vocab.solvent_key(spelling), sid)
+        kinds = tuple(r[0] for r in conn.execute(select(ProcessKind.name)))
+        cache.clear()
+        cache.update(stamp=tuple(stamp), solvents=index, kinds=kinds)
+    return cache
+
+
 def solvent_index(conn: Connection) -> dict[str, int]:
     """Every spelling key of every solvent → its id."""
-    index: dict[str, int] = {}
-    for sid, name, formula, aliases in conn.execute(
-        select(Solvent.id, Solvent.name, Solvent.formula, Solvent.aliases)
-    ):
-        for spelling in (name, formula, *(aliases or "").split("|")):
-            if spelling:
-                index.setdefault(vocab.solvent_key(spelling), sid)
-    return index
+    return _reference_cache(conn)["solvents"]
 
 
 def known_process_kinds(conn: Connection) -> tuple[str, ...]:
-    return tuple(r[0] for r in conn.execute(select(ProcessKind.name)))
+    return _reference_cache(conn)["kinds"]
 
 
 def _compound_row(
