@@ -11,35 +11,16 @@ import math
 from typing import Any
 
 import typer
-from typer.core import TyperGroup
 
-from registry.cli.context import AppState
+from registry.cli.context import ErrorBoundaryGroup
 from registry.cli.output import print_json, table_text
-from registry.errors import FluxledgerError, UsageError
+from registry.errors import UsageError
 
 NAME = "calc"
 
 
-class _CalcGroup(TyperGroup):
-    """Print ``error: …`` and exit with the error's code, also when this group runs on its own.
-
-    Mounted under the main app the outer boundary would do the same; keeping it here means
-    the sub-app never shows a traceback for a user error, however it is invoked.
-    """
-
-    def invoke(self, ctx: typer.Context) -> Any:
-        try:
-            return super().invoke(ctx)
-        except FluxledgerError as exc:
-            root = ctx.find_root().obj
-            if isinstance(root, AppState) and root.debug:
-                raise
-            typer.echo(f"error: {exc}", err=True)
-            ctx.exit(exc.exit_code)
-
-
 app = typer.Typer(
-    cls=_CalcGroup,
+    cls=ErrorBoundaryGroup,
     no_args_is_help=True,
     help="Kinetics at the bench: ΔG‡ from coalescence, Eyring fits, rates, half-lives, plans.",
 )

@@ -13,11 +13,10 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import typer
-from typer.core import TyperGroup
 
-from registry.cli.context import AppState, state
+from registry.cli.context import ErrorBoundaryGroup, state
 from registry.cli.output import print_json, table_text
-from registry.errors import FluxledgerError, UnitError, UsageError
+from registry.errors import UnitError, UsageError
 
 if TYPE_CHECKING:
     from registry.lineshape.simulate import ExchangeModel
@@ -26,22 +25,8 @@ if TYPE_CHECKING:
 NAME = "lineshape"
 
 
-class _LineShapeGroup(TyperGroup):
-    """Print ``error: …`` and exit with the error's code, also when this group runs on its own."""
-
-    def invoke(self, ctx: typer.Context) -> Any:
-        try:
-            return super().invoke(ctx)
-        except FluxledgerError as exc:
-            root = ctx.find_root().obj
-            if isinstance(root, AppState) and root.debug:
-                raise
-            typer.echo(f"error: {exc}", err=True)
-            ctx.exit(exc.exit_code)
-
-
 app = typer.Typer(
-    cls=_LineShapeGroup,
+    cls=ErrorBoundaryGroup,
     no_args_is_help=True,
     help="Line-shape analysis of VT-NMR spectra: simulate, fit exchange rates, store them.",
 )

@@ -11,28 +11,17 @@ import sys
 from typing import Any
 
 import typer
-from typer.core import TyperGroup
 
-from registry.cli.context import DEFAULT_DB, AppState
-from registry.errors import FluxledgerError
+from registry.cli.context import DEFAULT_DB, AppState, ErrorBoundaryGroup
 
 
-class BoundaryGroup(TyperGroup):
-    """Turn a :class:`FluxledgerError` anywhere below into ``error: …`` on stderr and its exit code."""
+class BoundaryGroup(ErrorBoundaryGroup):
+    """The main app's boundary: user errors as ``error: …``, plus database warnings once."""
 
     def invoke(self, ctx: typer.Context) -> Any:
         _print_database_warnings(discard=True)  # left over from an earlier in-process call
         try:
             return super().invoke(ctx)
-        except FluxledgerError as exc:
-            state = ctx.find_root().obj
-            if isinstance(state, AppState) and state.debug:
-                raise
-            typer.echo(f"error: {exc}", err=True)
-            ctx.exit(exc.exit_code)
-        except KeyboardInterrupt:
-            typer.echo("interrupted; nothing half-written was kept", err=True)
-            ctx.exit(130)
         finally:
             _print_database_warnings()
 
