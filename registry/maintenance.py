@@ -417,6 +417,37 @@ def _value_problem(
     return None
 
 
+def _check_values(
+    where: str,
+    row: Any,
+    columns: dict[str, tuple[str, str, str]],
+    problems: list[str],
+    *,
+    skip: tuple[str, ...] = (),
+    dnu_mhz: float | None = None,
+) -> int:
+    """Re-read each reported text of ``row`` against its stored float; returns how many were read."""
+    read = 0
+    for name, (text_col, value_col, quantity) in columns.items():
+        if name in skip:
+            continue
+        err_col = _ERROR_COLUMN.get(name)
+        read += row[text_col] is not None
+        problem = _value_problem(
+            where,
+            text_col,
+            row[text_col],
+            row[value_col],
+            quantity,
+            stored_err=row[err_col] if err_col else None,
+            err_column=err_col,
+            mhz=dnu_mhz if name == "dnu" else None,
+        )
+        if problem:
+            problems.append(problem)
+    return read
+
+
 def value_problems(database: Database) -> tuple[list[str], int]:
     """Every stored canonical float that its reported text does not give; and how many were read.
 
@@ -431,24 +462,11 @@ def value_problems(database: Database) -> tuple[list[str], int]:
     m_cols += [getattr(Measurement, c) for c in _ERROR_COLUMN.values() if hasattr(Measurement, c)]
     with database.read() as conn:
         for row in conn.execute(select(*m_cols).order_by(Measurement.id)).mappings():
-            where = f"measurement {row['id']}"
-            for name, (text_col, value_col, quantity) in MEASUREMENT_VALUES.items():
-                if name == "dg_t" and row[text_col] is None:
-                    continue  # ΔG‡ at Tc: derived from the coalescence row, not reported
-                err_col = _ERROR_COLUMN.get(name)
-                if row[text_col] is not None:
-                    count += 1
-                problem = _value_problem(
-                    where,
-                    text_col,
-                    row[text_col],
-                    row[value_col],
-                    quantity,
-                    stored_err=row[err_col] if err_col else None,
-                    err_column=err_col,
-                )
-                if problem:
-                    problems.append(problem)
+            # ΔG‡ at Tc without a reported temperature is derived from the coalescence row
+            skip = ("dg_t",) if row["dg_t_text"] is None else ()
+            count += _check_values(
+                f"measurement {row['id']}", row, MEASUREMENT_VALUES, problems, skip=skip
+            )
         c_query = (
             select(
                 CoalescenceObservation.__table__,
@@ -461,22 +479,7 @@ def value_problems(database: Database) -> tuple[list[str], int]:
         for row in conn.execute(c_query.order_by(CoalescenceObservation.id)).mappings():
             where = f"measurement {row['measurement_id']} coalescence {row['id']}"
             mhz = shift_mhz(row["field_mhz"] or row["m_mhz"], row["nucleus"])  # for Δν in ppm
-            for name, (text_col, value_col, quantity) in COALESCENCE_VALUES.items():
-                err_col = _ERROR_COLUMN.get(name)
-                if row[text_col] is not None:
-                    count += 1
-                problem = _value_problem(
-                    where,
-                    text_col,
-                    row[text_col],
-                    row[value_col],
-                    quantity,
-                    stored_err=row[err_col] if err_col else None,
-                    err_column=err_col,
-                    mhz=mhz if name == "dnu" else None,
-                )
-                if problem:
-                    problems.append(problem)
+            count += _check_values(where, row, COALESCENCE_VALUES, problems, dnu_mhz=mhz)
             count += row["field_text"] is not None
             problem = _value_problem(
                 where, "field_text", row["field_text"], row["field_mhz"], "field"

@@ -8,6 +8,7 @@ columns for every measurement checked) and returns findings for the rows it flag
 
 from __future__ import annotations
 
+from abc import ABC, abstractmethod
 from dataclasses import asdict, dataclass, field
 from datetime import datetime
 from typing import TYPE_CHECKING, Any, ClassVar
@@ -129,7 +130,7 @@ class Finding:
         }
 
 
-class Rule:
+class Rule(ABC):
     """Base class of a validation rule. Subclasses set the class attributes and ``run``."""
 
     id: ClassVar[str]
@@ -142,8 +143,9 @@ class Rule:
     def params(self, config: CheckConfig) -> dict[str, Any]:
         return {name: getattr(config, name) for name in self.uses}
 
+    @abstractmethod
     def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
-        raise NotImplementedError
+        """Every finding of this rule over the loaded measurements."""
 
     def finding(self, measurement_id: int, message: str, **values: Any) -> Finding:
         """A finding of this rule (severity defaults to the rule's own)."""
