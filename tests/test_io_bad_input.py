@@ -261,3 +261,27 @@ def test_merged_data_cells_reject_only_their_rows(database: Database, tmp_path: 
     assert [(p.row, p.column) for p in info.value.problems] == [(3, "B"), (4, "B")]
     summary = import_table(database, path, skip_bad=True)
     assert (summary["added"], summary["rejected"]) == (1, 2)
+
+
+def test_a_small_file_lists_every_bad_row_once(database: Database, tmp_path: Path) -> None:
+    path = tmp_path / "three_kinds.csv"
+    path.write_text(
+        "label,SMILES,method,solvent,Tc (°C),Δν (Hz),ΔG‡ (kcal/mol)\n"
+        "B-1,CC(=O)N(C)C,coalescence,CDCl3,12,38.5,14.1\n"
+        "B-2,C1CC(,coalescence,CDCl3,20,30,15\n"
+        "B-3,CCO,coalescence,CDCl3,20,30 K,15\n"
+        "B-4,CCN,coalescence,CDCl3,20,30,=SUM(A1)\n",
+        encoding="utf-8",
+    )
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path)
+    assert [(p.row, p.column, p.text) for p in info.value.problems] == [
+        (3, "SMILES", "C1CC("),
+        (4, "Δν (Hz)", "30 K"),
+        (5, "ΔG‡ (kcal/mol)", "=SUM(A1)"),
+    ]
+    assert str(info.value.problems[2]).endswith(
+        "the cell holds a formula; the registry stores values as reported — paste the value instead"
+    )
+    with database.read() as conn:
+        assert conn.exec_driver_sql("SELECT count(*) FROM measurement").scalar() == 0

@@ -106,6 +106,10 @@ class ReadResult:
     stop_early: bool = False
 
 
+#: sheets at least this long stop after the cheap screen when it finds problems (speed)
+EARLY_STOP_MIN_ROWS = 20_000
+
+
 def _file_label(path: Path) -> str:
     return path.name
 
@@ -222,7 +226,20 @@ def read_input(
         result.rate_rows.remove(rr)
         result.bad_rate_rows.add((rr.sheet, rr.row))
     _attach_rates(result)
+    result.problems[:] = _one_problem_per_formula_cell(result.problems)
     return result
+
+
+def _one_problem_per_formula_cell(problems: list[RowProblem]) -> list[RowProblem]:
+    """A cell that holds a formula is reported as such, not also as 'not a number'."""
+    formula_cells = {
+        (p.sheet, p.row, p.column) for p in problems if p.reason.startswith(_FORMULA_REASON)
+    }
+    return [
+        p
+        for p in problems
+        if p.reason.startswith(_FORMULA_REASON) or (p.sheet, p.row, p.column) not in formula_cells
+    ]
 
 
 def _merged_problems(
@@ -308,14 +325,17 @@ def _read_entries(result: ReadResult, rs: RawSheet, plan: SheetPlan, head: int) 
                 bad[i].append(
                     _formula_problem(result.file, rs.name, head + i + 2, by_index[j], raw)
                 )
-    if result.stop_early:
-        # cheap screen first: text in number columns; a file with such cells is reported
-        # without building entries (a 200,000-row sheet answers in about a second)
+    if result.stop_early and n_rows >= EARLY_STOP_MIN_ROWS:
+        # cheap screen first on big sheets: text in number columns; a file with such cells is
+        # reported without building entries (a 200,000-row sheet answers in about a second).
+        # Smaller sheets go through every check, so that all their problems are listed at once.
         for name in _ENTRY_VALUE_FIELDS:
             col = values.get(name)
             if col is None:
                 continue
             for i, t in enumerate(texts[col.index]):
+                if any(p.column == col.header for p in bad.get(i, ())):
+                    continue  # already reported for this cell (a formula)
                 if t is not None and not looks_numeric(t) and t.lower() not in EMPTY_MARKERS:
                     bad[i].append(
                         RowProblem(
@@ -331,6 +351,10 @@ def _read_entries(result: ReadResult, rs: RawSheet, plan: SheetPlan, head: int) 
         found = [p for i in sorted(bad) for p in bad[i]]
         if found:
             result.problems.extend(found)
+            result.notes.append(
+                f"sheet {rs.name!r} has {n_rows:,} rows: only formulas and text in number columns "
+                "were checked so far; fix these and import again for the remaining checks"
+            )
             return
     text_cols = [(name, values[name].index) for name in _ENTRY_TEXT_FIELDS if name in values]
     text_defaults = {n: plan.defaults[n] for n in _ENTRY_TEXT_FIELDS if n in plan.defaults}
@@ -427,6 +451,9 @@ def _read_entries(result: ReadResult, rs: RawSheet, plan: SheetPlan, head: int) 
         result.sources.append(RowSource(rs.name, row_no, plan, raw_cells, rates_sources))
 
 
+_FORMULA_REASON = "the cell holds a formula"
+
+
 def _formula_problem(
     file: str, sheet: str | None, row: int, col: Column, formula: str
 ) -> RowProblem:
@@ -436,8 +463,7 @@ def _formula_problem(
         row,
         col.header,
         formula,
-        "the cell holds a formula; the registry stores values as reported — paste the value "
-        "instead",
+        _FORMULA_REASON + "; the registry stores values as reported — paste the value instead",
     )
 
 
@@ -703,11 +729,12 @@ def prepare(
 ) -> Prepared:
     """Everything up to the write: read, normalize, parse structures, check; problems collected.
 
-    ``stop_early``: when reading already found problems (formulas, text in number columns,
-    headers), report those without the costly unit and structure pass.
+    ``stop_early``: when reading a big file already found problems (formulas, text in number
+    columns, headers), report those without the costly unit and structure pass.
     """
     read = read_input(path, sheet=sheet, mapping_path=mapping_path, stop_early=stop_early)
-    if read.problems and (stop_early or (not read.inputs and not read.rate_rows)):
+    big = len(read.inputs) >= EARLY_STOP_MIN_ROWS  # small files: list every problem at once
+    if read.problems and ((stop_early and big) or (not read.inputs and not read.rate_rows)):
         return Prepared(read, [], [], [], _by_row(read.problems))
     with database.read() as conn:
         kinds = known_process_kinds(conn)
@@ -738,11 +765,12 @@ def prepare(
     kept: list[int] = []
     bad_rows = {(p.sheet, p.row) for p in problems}
     for i, ((ne, probs), src) in enumerate(zip(normalized, read.sources, strict=True)):
+        if (src.sheet, src.row) in bad_rows:
+            # already rejected while reading (formula, merged or unreadable cell): what the
+            # later checks say of it would only echo the blank left by that cell
+            continue
         if probs:
-            rows = [_problem_to_row(read.file, src, p) for p in probs]
-            if (src.sheet, src.row) in bad_rows:  # already rejected while reading: no echoes
-                rows = [p for p in rows if "needs both Tc and Δν" not in p.reason]
-            problems.extend(_without_echoes(rows))
+            problems.extend(_without_echoes([_problem_to_row(read.file, src, p) for p in probs]))
             continue
         assert ne is not None
         structure = None
@@ -762,8 +790,6 @@ def prepare(
                     )
                 )
                 continue
-        if (src.sheet, src.row) in bad_rows:
-            continue
         entries.append(ne)
         structures.append(structure)
         kept.append(i)
