@@ -77,22 +77,19 @@ def _mount() -> None:
             app.add_typer(module.app, name=getattr(module, "NAME", name))
 
 
-#: optional command-group modules; each either has ``register(app)`` or ``app`` (+ ``NAME``)
-_GROUPS: list[str] = []
-for _candidate in (
-    "calc",
+#: command-group modules; each has ``register(app)`` (top-level commands) or ``app`` (+ ``NAME``)
+_GROUPS: tuple[str, ...] = (
     "io_commands",
     "check",
     "find",
     "history",
     "maintenance",
+    "calc",
+    "lineshape",
     "plot",
     "report",
-    "lineshape",
     "pg",
-):
-    if os.path.exists(os.path.join(os.path.dirname(__file__), f"{_candidate}.py")):
-        _GROUPS.append(_candidate)
+)
 
 _mount()
 
