@@ -146,7 +146,7 @@ def add_measurement(
     return result.measurement_ids[0]
 
 
-_LIST_COLUMNS = {
+LIST_COLUMNS = {
     "id": Measurement.id,
     "label": Measurement.label,
     "compound": Compound.label,
@@ -169,7 +169,7 @@ _LIST_COLUMNS = {
 
 def measurement_query(columns: dict[str, Any] | None = None) -> Any:
     """The joined select behind listings (measurement + compound + process)."""
-    cols = columns or _LIST_COLUMNS
+    cols = columns or LIST_COLUMNS
     return (
         select(*(c.label(name) for name, c in cols.items()))
         .select_from(Measurement)

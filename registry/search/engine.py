@@ -334,29 +334,15 @@ def _filtered_compounds(conn: Any, conds: Sequence[Any], filters: Filters) -> np
 
 
 def _row_columns() -> dict[str, Any]:
-    from registry.models import Compound, Measurement, Process
+    """The listing columns of ``api`` plus what search filters and highlights need."""
+    from registry.api import LIST_COLUMNS
+    from registry.models import Measurement
 
     return {
-        "id": Measurement.id,
+        **LIST_COLUMNS,
         "compound_id": Measurement.compound_id,
-        "label": Measurement.label,
-        "compound": Compound.label,
-        "compound_name": Compound.name,
-        "smiles": Compound.smiles_canonical,
-        "process": Process.kind,
-        "nucleus": Process.nucleus,
-        "method": Measurement.method,
-        "solvent": Measurement.solvent_text,
-        "field_mhz": Measurement.field_mhz,
-        "dg_kj_mol": Measurement.dg_kj_mol,
-        "dg_err_kj_mol": Measurement.dg_err_kj_mol,
-        "dg_t_k": Measurement.dg_t_k,
-        "dh_kj_mol": Measurement.dh_kj_mol,
-        "ds_j_mol_k": Measurement.ds_j_mol_k,
         "t_min_k": Measurement.t_min_k,
         "t_max_k": Measurement.t_max_k,
-        "status": Measurement.status,
-        "reference": Measurement.reference,
     }
 
 
@@ -364,18 +350,12 @@ def _rows_for(
     conn: Any, conds: Sequence[Any], compound_ids: Sequence[int], scan_above: int = 5000
 ) -> list[dict[str, Any]]:
     """The measurements (joined with compound and process) of these compounds that pass."""
-    from sqlalchemy import select
-
-    from registry.models import Compound, Measurement, Process
+    from registry.api import measurement_query
+    from registry.models import Measurement
 
     columns = _row_columns()
     keys = list(columns)
-    base = (
-        select(*(c.label(k) for k, c in columns.items()))
-        .select_from(Measurement)
-        .join(Compound, Compound.id == Measurement.compound_id)
-        .outerjoin(Process, Process.id == Measurement.process_id)
-    )
+    base = measurement_query(columns)
     rows: list[dict[str, Any]] = []
     ids = list(compound_ids)
     if len(ids) > scan_above:
