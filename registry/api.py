@@ -7,7 +7,8 @@ never printed text. Write actions run in one transaction each (all or nothing).
 from __future__ import annotations
 
 import json
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
+from contextlib import contextmanager
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -30,7 +31,9 @@ from registry.store import Database, current_user, open_database, redacted_url
 
 if TYPE_CHECKING:  # imported lazily at run time: units (pint) and RDKit are slow to load
     from registry.chem import Structure
-    from registry.entry import EntryInput
+    from registry.entry import EntryInput, NormalizedEntry
+    from registry.validation import CheckReport
+    from registry.writer import WriteResult
 
 
 def init_registry(db: str) -> dict[str, Any]:
@@ -116,34 +119,79 @@ def add_measurement(
 ) -> int:
     """Add one measurement (and its compound/process if new), check it; returns its id.
 
-    The validation rules run on the new row right after the write, so its findings are stored
-    (``get_measurement(...)["findings"]``). A caller adding many rows one by one may pass
-    ``check=False`` and run :func:`registry.validation.check_measurements` once on all of them:
-    the check of a single row costs far more than its write.
+    The write is one transaction of its own. The validation rules then run on the new row, so
+    its findings are stored (``get_measurement(...)["findings"]``) — at once, or, inside
+    :func:`deferred_checks`, once for all the rows added there when the block ends (the check
+    of a single row costs far more than its write). ``check=False`` skips the check.
     """
-    from registry.entry import EntryError, normalize_entry
-    from registry.writer import known_process_kinds, write_entries
+    from registry.writer import cached_process_kinds, known_process_kinds, write_entries
 
-    with database.read() as conn:
-        kinds = known_process_kinds(conn)
+    kinds = cached_process_kinds(database.engine)
+    if kinds is None:
+        with database.read() as conn:
+            kinds = known_process_kinds(conn)
+    normalized = _normalized(entry, kinds)
+    structure = structure_for(normalized.compound.get("smiles_input"))
+    who = actor_name(actor)
+
+    def work(conn: Connection) -> WriteResult:
+        # the kinds were read before the lock; if someone added one since, normalize again
+        current = known_process_kinds(conn)
+        ready = normalized if current == kinds else _normalized(entry, current)
+        return write_entries(conn, [ready], [structure], actor=who, extras=[entry.extra or None])
+
+    result = database.write(work)
+    if check and database.deferred_checks is not None:
+        database.deferred_checks.extend(result.measurement_ids)
+    elif check:
+        from registry.validation import check_measurements  # pandas: import only when checking
+
+        check_measurements(database, result.measurement_ids, actor=who)
+    return result.measurement_ids[0]
+
+
+class DeferredChecks:
+    """What a :func:`deferred_checks` block added, and the report of its one check."""
+
+    def __init__(self) -> None:
+        self.ids: list[int] = []
+        self.report: CheckReport | None = None
+
+
+@contextmanager
+def deferred_checks(database: Database, *, actor: str | None = None) -> Iterator[DeferredChecks]:
+    """Check the measurements added in this block once, when it ends, instead of after each add.
+
+    For a script that adds rows one by one: each add still commits on its own (a crash keeps
+    every row added so far), and the rules run over all of them in one vectorized pass on the
+    way out — also when the block ends with an error, so no committed row stays unchecked.
+    """
+    if database.deferred_checks is not None:  # nested: the outer block checks everything
+        yield DeferredChecks()
+        return
+    block = DeferredChecks()
+    database.deferred_checks = block.ids
+    try:
+        yield block
+    finally:
+        database.deferred_checks = None
+        if block.ids:
+            from registry.validation import check_measurements
+
+            block.report = check_measurements(database, block.ids, actor=actor_name(actor))
+
+
+def _normalized(entry: EntryInput, kinds: tuple[str, ...]) -> NormalizedEntry:
+    """The entry normalized, or the error a user sees (one problem: its field and text)."""
+    from registry.entry import EntryError, normalize_entry
+
     normalized, problems = normalize_entry(entry, kinds)
     if normalized is None:
         if len(problems) == 1:
             first = problems[0]
             raise UnitError(first.field, first.text, first.reason)
         raise EntryError(problems)
-    structure = structure_for(normalized.compound.get("smiles_input"))
-    who = actor_name(actor)
-    result = database.write(
-        lambda conn: write_entries(
-            conn, [normalized], [structure], actor=who, extras=[entry.extra or None]
-        )
-    )
-    if check:
-        from registry.validation import check_measurements  # pandas: import only when checking
-
-        check_measurements(database, result.measurement_ids, actor=who)
-    return result.measurement_ids[0]
+    return normalized
 
 
 LIST_COLUMNS = {

@@ -16,6 +16,7 @@ from typing import Any
 
 from sqlalchemy import Connection, insert, select
 
+from registry import rawsql
 from registry.models import Revision
 
 GENESIS = "0" * 64
@@ -60,8 +61,11 @@ def last_hash(conn: Connection) -> str:
     Plain SQL on purpose: this runs on every write, and building the equivalent ``select()``
     costs more than the primary-key lookup itself.
     """
-    row = conn.exec_driver_sql("SELECT hash FROM revision ORDER BY id DESC LIMIT 1").scalar()
-    return row or GENESIS
+    sql = "SELECT hash FROM revision ORDER BY id DESC LIMIT 1"
+    if rawsql.on_sqlite(conn):
+        found = rawsql.fetch_all(conn, sql)
+        return found[0][0] if found else GENESIS
+    return conn.exec_driver_sql(sql).scalar() or GENESIS
 
 
 def to_json(value: Mapping[str, Any] | None) -> str | None:
@@ -89,7 +93,9 @@ def record_many(conn: Connection, changes: Iterable[Mapping[str, Any]], actor: s
         row["prev_hash"] = prev
         row["hash"] = prev = revision_hash(prev, row)
         rows.append(row)
-    if rows:
+    if len(rows) == 1:
+        rawsql.insert_one(conn, Revision.__table__, rows[0])
+    elif rows:
         conn.execute(insert(Revision), rows)
     return len(rows)
 

@@ -50,6 +50,8 @@ class Database:
     is_sqlite: bool
     path: Path | None = None
     warnings: list[str] = field(default_factory=list)
+    #: ids added inside ``api.deferred_checks`` whose check waits for the end of that block
+    deferred_checks: list[int] | None = field(default=None, repr=False)
 
     @contextmanager
     def read(self) -> Iterator[Connection]:

@@ -16,7 +16,7 @@ from typing import Any
 
 from sqlalchemy import Connection, insert, select, text
 
-from registry import audit, vocab
+from registry import audit, rawsql, vocab
 from registry.chem import Structure
 from registry.entry import NormalizedEntry
 from registry.errors import FluxledgerError
@@ -57,12 +57,14 @@ def _reference_cache(conn: Connection) -> dict[str, Any]:
     Every single ``add`` needs the solvent spellings and the process kinds; building the spelling
     index each time cost a quarter of a write.
     """
-    stamp = conn.execute(
-        text(
-            "SELECT (SELECT count(*) FROM solvent), (SELECT max(id) FROM solvent), "
-            "(SELECT count(*) FROM process_kind)"
-        )
-    ).one()
+    sql = (
+        "SELECT (SELECT count(*) FROM solvent), (SELECT max(id) FROM solvent), "
+        "(SELECT count(*) FROM process_kind)"
+    )
+    if rawsql.on_sqlite(conn):
+        stamp = rawsql.fetch_all(conn, sql)[0]
+    else:
+        stamp = conn.execute(text(sql)).one()
     cache = _REFERENCE_CACHE.setdefault(conn.engine, {})
     if cache.get("stamp") != tuple(stamp):
         index: dict[str, int] = {}
@@ -81,6 +83,12 @@ def _reference_cache(conn: Connection) -> dict[str, Any]:
 def solvent_index(conn: Connection) -> dict[str, int]:
     """Every spelling key of every solvent → its id."""
     return _reference_cache(conn)["solvents"]
+
+
+def cached_process_kinds(engine: Any) -> tuple[str, ...] | None:
+    """The process kinds last read on ``engine`` (no query), or None before the first read."""
+    cache = _REFERENCE_CACHE.get(engine)
+    return cache.get("kinds") if cache else None
 
 
 def known_process_kinds(conn: Connection) -> tuple[str, ...]:
@@ -130,18 +138,11 @@ def resolve_compounds(
     labels = {e.compound.get("label") for e in entries if e.compound.get("label")}
     by_key: dict[str, tuple[int, str | None]] = {}
     by_label: dict[str, tuple[int, str | None]] = {}
-    for chunk in _chunks(sorted(keys), 500):
-        for cid, key, label in conn.execute(
-            select(Compound.id, Compound.inchikey, Compound.label).where(
-                Compound.inchikey.in_(chunk)
-            )
-        ):
-            by_key[key] = (cid, label)
-    for chunk in _chunks(sorted(labels), 500):
-        for cid, key, label in conn.execute(
-            select(Compound.id, Compound.inchikey, Compound.label).where(Compound.label.in_(chunk))
-        ):
-            by_label[label] = (cid, key)
+    columns = ("id", "inchikey", "label")
+    for cid, key, label in _select_in(conn, Compound, columns, "inchikey", sorted(keys)):
+        by_key[key] = (cid, label)
+    for cid, key, label in _select_in(conn, Compound, columns, "label", sorted(labels)):
+        by_label[label] = (cid, key)
     # a compound known only by name (no structure, no label) is matched by that name
     names = {
         e.compound.get("name")
@@ -213,8 +214,25 @@ def resolve_compounds(
     return ids, len(new_rows)
 
 
+def _select_in(
+    conn: Connection, model: Any, columns: Sequence[str], key: str, values: Sequence[Any]
+) -> list[tuple[Any, ...]]:
+    """Rows (``columns``) of ``model`` whose ``key`` is one of ``values``, in chunks."""
+    if not values:
+        return []
+    if rawsql.on_sqlite(conn):
+        return rawsql.fetch_in(conn, model.__table__, columns, key, values)
+    rows: list[tuple[Any, ...]] = []
+    cols = [getattr(model, c) for c in columns]
+    for chunk in _chunks(values, rawsql.IN_CHUNK):
+        rows.extend(conn.execute(select(*cols).where(getattr(model, key).in_(chunk))))
+    return rows
+
+
 def _insert_returning_ids(conn: Connection, model: Any, rows: list[dict[str, Any]]) -> list[int]:
     """Insert rows and return their ids in order (RETURNING on both SQLite ≥3.35 and PostgreSQL)."""
+    if len(rows) == 1:  # a single add: the cheap path
+        return [rawsql.insert_one(conn, model.__table__, rows[0], returning="id")]
     ids: list[int] = []
     for chunk in _chunks(rows, 2000):
         result = conn.execute(
@@ -239,13 +257,9 @@ def resolve_processes(
     }
     found: dict[tuple[int, str, str, str], int] = {}
     cids = sorted({w[0] for w in wanted})
-    for chunk in _chunks(cids, 500):
-        for pid, cid, kind, sites, nucleus in conn.execute(
-            select(
-                Process.id, Process.compound_id, Process.kind, Process.sites, Process.nucleus
-            ).where(Process.compound_id.in_(chunk))
-        ):
-            found[(cid, kind, sites, nucleus)] = pid
+    columns = ("id", "compound_id", "kind", "sites", "nucleus")
+    for pid, cid, kind, sites, nucleus in _select_in(conn, Process, columns, "compound_id", cids):
+        found[(cid, kind, sites, nucleus)] = pid
     missing = sorted(w for w in wanted if w not in found)
     if missing:
         rows = [
@@ -301,7 +315,9 @@ def write_entries(
         for e, mid in zip(entries, ids, strict=True)
         if e.coalescence
     ]
-    if coalescence_rows:
+    if len(coalescence_rows) == 1:
+        rawsql.insert_one(conn, CoalescenceObservation.__table__, coalescence_rows[0])
+    elif coalescence_rows:
         conn.execute(insert(CoalescenceObservation), coalescence_rows)
     rate_rows = [
         {**r, "measurement_id": mid} for e, mid in zip(entries, ids, strict=True) for r in e.rates
