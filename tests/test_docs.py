@@ -57,3 +57,31 @@ def test_every_command_takes_json() -> None:
         if "--json" not in params:
             lacking.append(name)
     assert lacking == []
+
+
+def test_the_readme_script_example_runs(tmp_path: Path) -> None:
+    """The Python example in the README adds rows, checks them once and prints the summary."""
+    import contextlib
+    import io
+    from types import SimpleNamespace
+
+    from registry import api
+
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    section = readme.split("### Adding from a Python script", 1)[1]
+    code = section.split("```python\n", 1)[1].split("```", 1)[0]
+    db = tmp_path / "group.sqlite"
+    api.init_registry(str(db))
+    code = code.replace('"group.sqlite"', repr(str(db)))
+    # invented rows: Tc 52 °C, Δν 40 Hz at 400 MHz gives ΔG‡ ≈ 16.2 kcal/mol (Gutowsky–Holm + Eyring, by hand)
+    rows = [
+        SimpleNamespace(smiles="CC(=O)N(C)C", tc=52, dnu=40, dg=16.0, doi="10.0000/invented.1"),
+        SimpleNamespace(smiles="CN(C)C=O", tc=52, dnu=40, dg=19.0, doi="10.0000/invented.2"),
+    ]
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        exec(compile(code, "README.md", "exec"), {"my_rows": rows})
+    assert "checked 2 measurements: 1 error" in out.getvalue()
+    database = api.open_registry(str(db))
+    assert [m["id"] for m in api.list_measurements(database)] == [1, 2]
+    database.dispose()
