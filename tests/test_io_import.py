@@ -11,10 +11,11 @@ from openpyxl import Workbook
 from sqlalchemy import func, select
 
 from registry import api
+from registry.chem import read_structure
 from registry.errors import ImportRowError
 from registry.io import import_table, parallel
 from registry.io import importer as importer_mod
-from registry.models import ImportBatch, Measurement, RatePoint, Revision, Solvent
+from registry.models import Compound, ImportBatch, Measurement, RatePoint, Revision, Solvent
 from registry.store import Database
 
 HEADERS = [
@@ -270,6 +271,56 @@ def test_the_process_pool_gives_the_same_result(
     assert summary["added"] == 12 and summary["compounds_added"] == 6
     record = api.get_measurement(database, summary["measurement_ids"]["added"][7])
     assert record["label"] == "P7" and record["coalescence"][0]["tc_k"] == pytest.approx(257.0)
+    # every stored structure value is what this process computes for the same SMILES
+    fields = ("smiles_canonical", "inchi", "inchikey", "formula", "mol_binary", "pattern_fp")
+    with database.read() as conn:
+        stored = conn.execute(
+            select(Compound.smiles_input, *(getattr(Compound, f) for f in fields))
+        ).all()
+    assert sorted(r[0] for r in stored) == sorted(smiles)
+    for smi, *values in stored:
+        here = read_structure(smi)
+        assert tuple(values) == tuple(getattr(here, f) for f in fields)
+
+
+def test_structures_queued_early_and_late_are_all_read(monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setattr(parallel, "PARALLEL_MIN_ROWS", 3)  # a pool from one distinct SMILES on
+    monkeypatch.setattr(parallel, "CHUNK_SMILES", 2)
+    with parallel.Workers(2) as workers:
+        assert workers.submit_structures(["CCO", None, "CCO", "c1ccccc1", "C1CC("]) == 3
+        assert workers.parsing
+        got = workers.structures(["CCO", "CCN", "C1CC("])  # CCN was never queued
+        assert not workers.parsing
+    assert set(got) == {"CCO", "CCN", "C1CC("}
+    assert got["CCO"][0] == read_structure("CCO")
+    assert got["CCN"][0] == read_structure("CCN")
+    assert got["C1CC("][0] is None and "syntax error" in (got["C1CC("][1] or "")
+    with parallel.Workers(1) as single:  # one worker: everything in this process
+        assert single.submit_structures(["CCO", "CCN"]) == 2
+        assert single.pool(10**6, 1) is None and not single.parsing
+        assert single.structures(["CCN"])["CCN"][0] == read_structure("CCN")
+
+
+def test_early_stop_after_structures_were_queued(
+    database: Database, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # the rates sheet's problem is found after the entries' SMILES went to the pool: the
+    # import reports it without waiting for the structures, and writes nothing
+    monkeypatch.setattr(parallel, "PARALLEL_MIN_ROWS", 3)
+    monkeypatch.setattr(parallel, "CHUNK_SMILES", 1)
+    monkeypatch.setattr(importer_mod, "EARLY_STOP_MIN_ROWS", 2)
+    entries = [["label", "compound", "SMILES", "method", "ΔH‡ (kJ/mol)"]] + [
+        [f"L{i}", f"B{i}", "C" * (i + 1), "DNMR", 70.0] for i in range(6)
+    ]
+    path = write_xlsx(
+        tmp_path / "book.xlsx",
+        {"entries": entries, "rates": [["label", "T (°C)", "k (s-1)"], ["L1", 80, "fast"]]},
+    )
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path, workers=2)
+    (problem,) = info.value.problems
+    assert (problem.sheet, problem.row, problem.column) == ("rates", 2, "k (s-1)")
+    assert count(database, Measurement) == 0
 
 
 def test_cli_import_and_dry_run(cli, tmp_path: Path, sample_csv: Path) -> None:  # type: ignore[no-untyped-def]

@@ -27,7 +27,7 @@ from typing import Any
 from sqlalchemy import Connection, insert, select, update
 
 from registry.chem import Structure
-from registry.entry import EntryInput, NormalizedEntry, Problem
+from registry.entry import EntryInput, NormalizedEntry, Problem, text_of
 from registry.errors import FileFormatError, ImportRowError, RowProblem, UnitError
 from registry.io import parallel, upsert
 from registry.io.cells import EMPTY_MARKERS, cell_text, is_formula_text, looks_numeric
@@ -168,8 +168,13 @@ def read_input(
     sheet: str | None = None,
     mapping_path: str | Path | None = None,
     stop_early: bool = False,
+    on_smiles: Callable[[list[str | None]], object] | None = None,
 ) -> ReadResult:
-    """Read and map a file and build the entries; problems are collected, not raised."""
+    """Read and map a file and build the entries; problems are collected, not raised.
+
+    ``on_smiles`` is given each entry sheet's SMILES column as soon as it is read (and passed
+    the cheap screen), so that structures can be parsed while the entries are being built.
+    """
     mapping = load_mapping(mapping_path)
     raw = read_file(path, sheet)
     file = _file_label(path)
@@ -217,7 +222,7 @@ def read_input(
         return result
     for rs, plan, head in sheets:
         if plan.kind == "entries":
-            _read_entries(result, rs, plan, head)
+            _read_entries(result, rs, plan, head, on_smiles)
         else:
             _read_rates(result, rs, plan, head)
     result.problems.extend(later)
@@ -289,7 +294,13 @@ def _raw_formulas(series: Any) -> list[int]:
     ]
 
 
-def _read_entries(result: ReadResult, rs: RawSheet, plan: SheetPlan, head: int) -> None:
+def _read_entries(
+    result: ReadResult,
+    rs: RawSheet,
+    plan: SheetPlan,
+    head: int,
+    on_smiles: Callable[[list[str | None]], object] | None = None,
+) -> None:
     body = rs.frame.iloc[head + 1 :]
     n_rows = len(body)
     values = plan.value_columns()
@@ -356,6 +367,9 @@ def _read_entries(result: ReadResult, rs: RawSheet, plan: SheetPlan, head: int) 
                 "were checked so far; fix these and import again for the remaining checks"
             )
             return
+    smiles_col = values.get("smiles")
+    if on_smiles is not None and smiles_col is not None:
+        on_smiles(texts[smiles_col.index])
     text_cols = [(name, values[name].index) for name in _ENTRY_TEXT_FIELDS if name in values]
     text_defaults = {n: plan.defaults[n] for n in _ENTRY_TEXT_FIELDS if n in plan.defaults}
     value_cols = []
@@ -732,33 +746,47 @@ def prepare(
     ``stop_early``: when reading a big file already found problems (formulas, text in number
     columns, headers), report those without the costly unit and structure pass.
     """
-    read = read_input(path, sheet=sheet, mapping_path=mapping_path, stop_early=stop_early)
-    big = len(read.inputs) >= EARLY_STOP_MIN_ROWS  # small files: list every problem at once
-    if read.problems and ((stop_early and big) or (not read.inputs and not read.rate_rows)):
-        return Prepared(read, [], [], [], _by_row(read.problems))
-    with database.read() as conn:
-        kinds = known_process_kinds(conn)
-        solvents = solvent_index(conn)
-    n = len(read.inputs)
-    bar = _progress_bar(progress, n, read.file)
-    tick: Callable[[int], None] | None = bar.update if bar is not None else None
-    pool_needed = n >= parallel.PARALLEL_MIN_ROWS
-    try:
-        with parallel.worker_pool(workers or parallel.default_workers(), pool_needed) as pool:
-            normalized = parallel.normalize_all(read.inputs, kinds, pool, tick)
-            smiles = [
-                ne.compound["smiles_input"]
-                for ne, _ in normalized
-                if ne is not None and ne.compound.get("smiles_input")
-            ]
+    with parallel.Workers(workers) as pool:
+        read = read_input(
+            path,
+            sheet=sheet,
+            mapping_path=mapping_path,
+            stop_early=stop_early,
+            on_smiles=pool.submit_structures,
+        )
+        big = len(read.inputs) >= EARLY_STOP_MIN_ROWS  # small files: list every problem at once
+        if read.problems and ((stop_early and big) or (not read.inputs and not read.rate_rows)):
+            return Prepared(read, [], [], [], _by_row(read.problems))
+        with database.read() as conn:
+            kinds = known_process_kinds(conn)
+            solvents = solvent_index(conn)
+        n = len(read.inputs)
+        smiles_texts = [text_of(inp.smiles) for inp in read.inputs]
+        bar = _progress_bar(progress, n + len(set(filter(None, smiles_texts))), read.file)
+        tick: Callable[[int], None] | None = bar.update if bar is not None else None
+        try:
+            # while the pool parses structures, this process normalizes; without structures
+            # to parse, the pool normalizes
+            normalized = parallel.normalize_all(
+                read.inputs,
+                kinds,
+                None if pool.parsing else pool.pool(n, parallel.PARALLEL_MIN_ROWS),
+                tick,
+            )
             if bar is not None:
-                bar.total = n + len(set(smiles))
                 bar.set_description("structures")
                 bar.refresh()
-            parsed = parallel.read_structures(smiles, pool, tick)
-    finally:
-        if bar is not None:
-            bar.close()
+            parsed = pool.structures(
+                [
+                    ne.compound["smiles_input"]
+                    for ne, _ in normalized
+                    if ne is not None and ne.compound.get("smiles_input")
+                ],
+                tick,
+            )
+        finally:
+            if bar is not None:
+                bar.close()
     problems = list(read.problems)
     entries: list[NormalizedEntry] = []
     structures: list[Structure | None] = []

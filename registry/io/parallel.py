@@ -1,50 +1,39 @@
-"""The CPU-heavy half of an import — reading values and structures — in a process pool.
+"""The CPU-heavy half of an import — reading structures and values — in a process pool.
 
 Import time is almost all RDKit (PERFORMANCE.md): parsing, InChI/InChIKey, the pattern
 fingerprint. Distinct SMILES are parsed once each (a sheet repeats its compounds), in chunks,
-on ``workers`` processes; entries are normalized in chunks the same way. Small inputs stay in
-this process, where starting a pool would cost more than it saves.
+on ``workers`` processes. The chunks are handed to the pool as soon as the SMILES column has been
+read (:meth:`Workers.submit_structures`), so the pool parses while this process builds and
+normalizes the entries; normalizing in this process meanwhile costs no pickling of entries and
+keeps both cores busy. A file without structures normalizes its entries in the pool instead.
+Small inputs stay in this process, where starting a pool would cost more than it saves.
 """
 
 from __future__ import annotations
 
 import os
 import signal
-from collections.abc import Callable, Iterator, Sequence
-from concurrent.futures import Executor, ProcessPoolExecutor
-from contextlib import contextmanager
+from collections.abc import Callable, Iterable, Sequence
+from concurrent.futures import Future, ProcessPoolExecutor
+from types import TracebackType
 from typing import Any
 
 from registry.chem import Structure, read_structure
 from registry.entry import EntryInput, NormalizedEntry, Problem, normalize_entry
 from registry.errors import StructureError
 
-#: below this many rows (or distinct SMILES) the work runs in this process
+#: below this many rows (or a third as many distinct SMILES) the work runs in this process
 PARALLEL_MIN_ROWS = 3000
 CHUNK_ROWS = 2000
 CHUNK_SMILES = 1000
 
 Progress = Callable[[int], None]
+StructureResult = tuple[Structure | None, str | None]
 
 
 def default_workers() -> int:
     """Two workers on a two-core machine; never more than the cores there are."""
     return max(1, min(2, os.cpu_count() or 1))
-
-
-@contextmanager
-def worker_pool(workers: int, needed: bool) -> Iterator[Executor | None]:
-    """A process pool when there is enough work for one; shut down (cancelling) on any exit."""
-    if not needed or workers <= 1:
-        yield None
-        return
-    pool = ProcessPoolExecutor(max_workers=workers, initializer=_ignore_interrupts)
-    try:
-        yield pool
-    except BaseException:
-        pool.shutdown(wait=False, cancel_futures=True)
-        raise
-    pool.shutdown(wait=True)
 
 
 def _ignore_interrupts() -> None:
@@ -59,8 +48,8 @@ def _normalize_chunk(
     return [normalize_entry(e, kinds) for e in entries]
 
 
-def _structure_chunk(smiles: list[str]) -> list[tuple[Structure | None, str | None]]:
-    out: list[tuple[Structure | None, str | None]] = []
+def _structure_chunk(smiles: list[str]) -> list[StructureResult]:
+    out: list[StructureResult] = []
     for text in smiles:
         try:
             out.append((read_structure(text), None))
@@ -78,13 +67,104 @@ def _chunks(items: Sequence[Any], size: int) -> list[list[Any]]:
     return [list(items[i : i + size]) for i in range(0, len(items), size)]
 
 
+class Workers:
+    """A process pool started only when there is enough work, and the structures handed to it.
+
+    Use as a context manager: on any exception (Ctrl-C included) queued work is cancelled and
+    the pool shut down without waiting, so the caller can roll back at once.
+    """
+
+    def __init__(self, workers: int | None = None) -> None:
+        self.workers = default_workers() if workers is None else workers
+        self._pool: ProcessPoolExecutor | None = None
+        self._pending: list[tuple[list[str], Future[list[StructureResult]] | _InProcess]] = []
+        self._submitted: set[str] = set()
+        self._done: dict[str, StructureResult] = {}
+
+    def __enter__(self) -> Workers:
+        return self
+
+    def __exit__(
+        self,
+        exc_type: type[BaseException] | None,
+        exc: BaseException | None,
+        tb: TracebackType | None,
+    ) -> None:
+        if self._pool is not None:
+            # work nobody collected (an early return: the file already has problems) is dropped
+            self._pool.shutdown(wait=exc_type is None, cancel_futures=True)
+            self._pool = None
+
+    def pool(self, n_items: int, threshold: int) -> ProcessPoolExecutor | None:
+        """The pool, started on first need, when ``n_items`` reach ``threshold``; else None."""
+        if self._pool is None and (self.workers <= 1 or n_items < threshold):
+            return None
+        if self._pool is None:
+            self._pool = ProcessPoolExecutor(
+                max_workers=self.workers, initializer=_ignore_interrupts
+            )
+        return self._pool
+
+    @property
+    def parsing(self) -> bool:
+        """True while structure chunks are queued in the pool."""
+        return any(isinstance(f, Future) for _, f in self._pending)
+
+    def submit_structures(self, smiles: Iterable[str | None]) -> int:
+        """Queue the distinct SMILES not seen before; returns how many were new.
+
+        With enough of them they go to the pool at once and are parsed while the caller goes
+        on; otherwise they wait for :meth:`structures`, which parses them in this process.
+        """
+        new = [s for s in dict.fromkeys(smiles) if s and s not in self._submitted]
+        self._submitted.update(new)
+        pool = self.pool(len(new), PARALLEL_MIN_ROWS // 3) if new else None
+        if pool is None:
+            for s in new:  # in this process, later (a few, or no pool)
+                self._pending.append(([s], _InProcess(s)))
+            return len(new)
+        for chunk in _chunks(new, _chunk_size(len(new), CHUNK_SMILES)):
+            self._pending.append((chunk, pool.submit(_structure_chunk, chunk)))
+        return len(new)
+
+    def structures(
+        self, smiles: Sequence[str], progress: Progress | None = None
+    ) -> dict[str, StructureResult]:
+        """Each distinct SMILES of ``smiles`` → (Structure, None) or (None, why it is unreadable).
+
+        Waits for the queued chunks (in order), parsing any SMILES not queued before.
+        """
+        self.submit_structures(smiles)
+        ticked = 0
+        for chunk, future in self._pending:
+            self._done.update(zip(chunk, future.result(), strict=True))
+            ticked += len(chunk)
+            if progress and ticked >= 200:
+                progress(ticked)
+                ticked = 0
+        if progress and ticked:
+            progress(ticked)
+        self._pending.clear()
+        return {s: self._done[s] for s in smiles if s}
+
+
+class _InProcess:
+    """A 'future' for one SMILES parsed in this process when its result is asked for."""
+
+    def __init__(self, smiles: str) -> None:
+        self.smiles = smiles
+
+    def result(self) -> list[StructureResult]:
+        return _structure_chunk([self.smiles])
+
+
 def normalize_all(
     entries: Sequence[EntryInput],
     kinds: tuple[str, ...],
-    pool: Executor | None,
+    pool: ProcessPoolExecutor | None,
     progress: Progress | None = None,
 ) -> list[tuple[NormalizedEntry | None, list[Problem]]]:
-    """normalize_entry for every entry, in order."""
+    """normalize_entry for every entry, in order (in ``pool`` when given and worth it)."""
     if pool is None or len(entries) < PARALLEL_MIN_ROWS:
         out = []
         for i, entry in enumerate(entries):
@@ -98,29 +178,6 @@ def normalize_all(
     size = _chunk_size(len(entries), CHUNK_ROWS)
     for chunk in pool.map(_normalize_chunk, [(c, kinds) for c in _chunks(entries, size)]):
         results.extend(chunk)
-        if progress:
-            progress(len(chunk))
-    return results
-
-
-def read_structures(
-    smiles: Sequence[str], pool: Executor | None, progress: Progress | None = None
-) -> dict[str, tuple[Structure | None, str | None]]:
-    """Each distinct SMILES → (Structure, None) or (None, why it cannot be read)."""
-    distinct = list(dict.fromkeys(s for s in smiles if s))
-    if pool is None or len(distinct) < PARALLEL_MIN_ROWS // 3:
-        out = {}
-        for i, s in enumerate(distinct):
-            out[s] = _structure_chunk([s])[0]
-            if progress and i % 200 == 199:
-                progress(200)
-        if progress:
-            progress(len(distinct) % 200)
-        return out
-    results: dict[str, tuple[Structure | None, str | None]] = {}
-    chunks = _chunks(distinct, _chunk_size(len(distinct), CHUNK_SMILES))
-    for chunk, parsed in zip(chunks, pool.map(_structure_chunk, chunks), strict=True):
-        results.update(zip(chunk, parsed, strict=True))
         if progress:
             progress(len(chunk))
     return results
