@@ -115,7 +115,8 @@ def find(
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
 ) -> None:
     """Every barrier measured on compounds with a substructure or motif, with filters."""
-    from registry import api, search
+    from registry import search
+    from registry.search.sqlite_read import SQLiteReader, open_for_search
 
     chosen = [x for x in (smarts, smiles, motif, similar) if x is not None]
     if len(chosen) != 1:
@@ -129,18 +130,27 @@ def find(
         process=process, nucleus=nucleus, status=status, reference=reference,
         include_retracted=include_retracted,
     )  # fmt: skip
-    database = api.open_registry(state(ctx).db)
-    query = None
-    if similar is None:
-        found_motif = search.get_motif(motif, database, motif_file) if motif else None
-        query = search.build_query(smarts=smarts, smiles=smiles, motif=found_motif, stereo=stereo)
-    elif stereo:
-        raise UsageError("--stereo applies to substructure searches, not --similar")
-    result = search.find(
-        database, query=query, similar=similar, min_similarity=min_similarity, filters=filters,
-        sort=sort, limit=None if compounds else limit, atoms=as_json and not no_atoms, threads=threads,
-        rebuild_index=rebuild_index,
-    )  # fmt: skip
+    # a SQLite file is searched through sqlite3 alone: no SQLAlchemy or ORM to import
+    database = open_for_search(state(ctx).db)
+    try:
+        query = None
+        if similar is None:
+            found_motif = search.get_motif(motif, database, motif_file) if motif else None
+            query = search.build_query(
+                smarts=smarts, smiles=smiles, motif=found_motif, stereo=stereo
+            )
+        elif stereo:
+            raise UsageError("--stereo applies to substructure searches, not --similar")
+        result = search.find(
+            database, query=query, similar=similar, min_similarity=min_similarity,
+            filters=filters, sort=sort, limit=None if compounds else limit,
+            atoms=as_json and not no_atoms, threads=threads, rebuild_index=rebuild_index,
+        )  # fmt: skip
+    finally:
+        if isinstance(database, SQLiteReader):  # (the full API's warnings print at the boundary)
+            for warning in database.warnings:
+                typer.echo(f"warning: {warning}", err=True)
+            database.dispose()
     for warning in result.warnings:
         typer.echo(f"warning: {warning}", err=True)
     if compounds:

@@ -15,14 +15,16 @@ from __future__ import annotations
 import contextlib
 import os
 import time
+from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from operator import itemgetter
 from typing import Any
 
 import numpy as np
 
 from registry.errors import UsageError
-from registry.search.filters import Filters
+from registry.search.filters import Filters, Where
 from registry.search.index import ScreenIndex, load_index
 from registry.search.patterns import Query
 
@@ -192,14 +194,18 @@ def search_positions(
     With ``conn`` on PostgreSQL with the RDKit cartridge the server screens each pattern
     (:func:`registry.pg.screen.server_positions`); RDKit here still confirms every candidate.
     """
-    from registry.pg.screen import server_positions
+    server_positions = None
+    if conn is not None and _dialect(conn) != "sqlite":
+        from registry.pg.screen import server_positions
 
     stats = stats if stats is not None else SearchStats()
     t0 = time.perf_counter()
     hits: list[np.ndarray] = []
     screened: list[np.ndarray] = []
     for text, mol, words in zip(query.pattern_texts, query.mols, query.fingerprints, strict=True):
-        candidates = server_positions(conn, index.ids, rows, text, query.kind)
+        candidates = None
+        if server_positions is not None:
+            candidates = server_positions(conn, index.ids, rows, text, query.kind)
         if candidates is None:  # SQLite, no cartridge, or a pattern the server cannot read
             candidates = index.screen(words, rows)
         screened.append(candidates)
@@ -212,6 +218,12 @@ def search_positions(
     out = _union(hits, len(index))
     stats.matched = int(out.size)
     return out
+
+
+def _dialect(conn: Any) -> str:
+    from registry.search.sqlite_read import dialect_name
+
+    return dialect_name(conn)
 
 
 def _union(parts: list[np.ndarray], size: int) -> np.ndarray:
@@ -303,74 +315,99 @@ def tanimoto(fps: np.ndarray, query: np.ndarray) -> np.ndarray:
 _ALLOWED: dict[tuple, np.ndarray] = {}
 
 
-def _allowed_compounds(
-    database: Any, conn: Any, conds: Sequence[Any], filters: Filters
-) -> np.ndarray:
+def _allowed_compounds(database: Any, conn: Any, where: Where, filters: Filters) -> np.ndarray:
     """:func:`_filtered_compounds`, remembered in-process while the registry file is unchanged."""
     from registry.search.index import file_state
 
     state = file_state(database)
     if state is None:
-        return _filtered_compounds(conn, conds, filters)
+        return _filtered_compounds(conn, where, filters)
     key = (database.url, state, repr(sorted(filters.describe().items())))
     if key not in _ALLOWED:
         if len(_ALLOWED) > 32:
             _ALLOWED.clear()
-        _ALLOWED[key] = _filtered_compounds(conn, conds, filters)
+        _ALLOWED[key] = _filtered_compounds(conn, where, filters)
     return _ALLOWED[key]
 
 
-def _filtered_compounds(conn: Any, conds: Sequence[Any], filters: Filters) -> np.ndarray:
+def _filtered_compounds(conn: Any, where: Where, filters: Filters) -> np.ndarray:
     """Compounds with at least one measurement passing the filters (no joins unless needed)."""
-    from sqlalchemy import select
+    from registry.search.sqlite_read import fetch
 
-    from registry.models import Measurement, Process
+    join = " LEFT OUTER JOIN process p ON p.id = m.process_id" if where.needs_process else ""
+    rows = fetch(
+        conn,
+        f"SELECT DISTINCT m.compound_id FROM measurement m{join} WHERE {where.sql()}",
+        where.params,
+    )
+    return np.fromiter((r[0] for r in rows), dtype=np.int64, count=len(rows))
 
-    query = select(Measurement.compound_id).select_from(Measurement)
-    if filters.process or filters.nucleus:
-        query = query.outerjoin(Process, Process.id == Measurement.process_id)
-    query = query.where(*conds).distinct()
-    return np.asarray(conn.execute(query).scalars().all(), dtype=np.int64)
 
-
-def _row_columns() -> dict[str, Any]:
-    """The listing columns of ``api`` plus what search filters and highlights need."""
-    from registry.api import LIST_COLUMNS
-    from registry.models import Measurement
-
-    return {
-        **LIST_COLUMNS,
-        "compound_id": Measurement.compound_id,
-        "t_min_k": Measurement.t_min_k,
-        "t_max_k": Measurement.t_max_k,
-    }
+#: the measurement listing columns (as ``registry.api.LIST_COLUMNS``, which a test compares)
+#: plus what search filters and highlights need; m = measurement, c = compound, p = process
+ROW_COLUMNS: dict[str, str] = {
+    "id": "m.id",
+    "label": "m.label",
+    "compound": "c.label",
+    "compound_name": "c.name",
+    "smiles": "c.smiles_canonical",
+    "process": "p.kind",
+    "nucleus": "p.nucleus",
+    "method": "m.method",
+    "solvent": "m.solvent_text",
+    "field_mhz": "m.field_mhz",
+    "dg_kj_mol": "m.dg_kj_mol",
+    "dg_err_kj_mol": "m.dg_err_kj_mol",
+    "dg_t_k": "m.dg_t_k",
+    "dh_kj_mol": "m.dh_kj_mol",
+    "ds_j_mol_k": "m.ds_j_mol_k",
+    "status": "m.status",
+    "reference": "m.reference",
+    "compound_id": "m.compound_id",
+    "t_min_k": "m.t_min_k",
+    "t_max_k": "m.t_max_k",
+}
+_ROWS_SQL = (
+    f"SELECT {', '.join(ROW_COLUMNS.values())} FROM measurement m "
+    "JOIN compound c ON c.id = m.compound_id LEFT OUTER JOIN process p ON p.id = m.process_id"
+)
+#: compound ids per bound-parameter IN list (servers; SQLite takes the ids as one JSON array)
+_CHUNK = 2000
 
 
 def _rows_for(
-    conn: Any, conds: Sequence[Any], compound_ids: Sequence[int], scan_above: int = 5000
+    conn: Any, where: Where, compound_ids: Sequence[int], scan_above: int = 5000
 ) -> list[dict[str, Any]]:
-    """The measurements (joined with compound and process) of these compounds that pass."""
-    from registry.api import measurement_query
-    from registry.models import Measurement
+    """The measurements (joined with compound and process) of these compounds that pass.
 
-    columns = _row_columns()
-    keys = list(columns)
-    base = measurement_query(columns)
-    rows: list[dict[str, Any]] = []
+    Plain SQL and plain tuples (on SQLite through the ``sqlite3`` connection itself): for a
+    common motif this reads tens of thousands of rows, where SQLAlchemy's rows cost more than
+    the search. Many ids: one pass over the filtered rows; few: the ids as a JSON array
+    (``json_each``) on SQLite, bound-parameter IN lists in chunks elsewhere.
+    """
+    from registry.search.sqlite_read import binds, dialect_name, fetch
+
+    keys = tuple(ROW_COLUMNS)
     ids = list(compound_ids)
+    if not ids:
+        return []
+    base = f"{_ROWS_SQL} WHERE {where.sql()}"
     if len(ids) > scan_above:
-        # many hits: one pass over the filtered rows beats thousands of bound parameters
         hit = set(ids)
         at = keys.index("compound_id")
-        for r in conn.execute(base.where(*conds)).all():
-            if r[at] in hit:
-                rows.append(dict(zip(keys, r, strict=True)))
-        return rows
-    for start in range(0, len(ids), 2000):
-        chunk = ids[start : start + 2000]
-        query = base.where(*conds, Measurement.compound_id.in_(chunk))
-        rows += [dict(zip(keys, r, strict=True)) for r in conn.execute(query).all()]
-    return rows
+        raw = [r for r in fetch(conn, base, where.params) if r[at] in hit]
+    elif dialect_name(conn) == "sqlite":
+        params = {**where.params, "hit_ids": "[" + ",".join(map(str, ids)) + "]"}
+        raw = fetch(
+            conn, f"{base} AND m.compound_id IN (SELECT value FROM json_each(:hit_ids))", params
+        )
+    else:
+        raw = []
+        for start in range(0, len(ids), _CHUNK):
+            params = dict(where.params)
+            chunk = binds("hit", ids[start : start + _CHUNK], params)
+            raw += fetch(conn, f"{base} AND m.compound_id IN ({chunk})", params)
+    return [dict(zip(keys, r, strict=True)) for r in raw]
 
 
 def _sort(rows: list[dict[str, Any]], sort: str | None) -> None:
@@ -379,8 +416,11 @@ def _sort(rows: list[dict[str, Any]], sort: str | None) -> None:
     if key_name not in SORT_KEYS:
         raise UsageError(f"--sort {sort!r}: choose one of {', '.join(SORT_KEYS)}")
     column, descending = SORT_KEYS[key_name]
-    present = sorted((r for r in rows if r.get(column) is not None), key=lambda r: r["id"])
-    missing = sorted((r for r in rows if r.get(column) is None), key=lambda r: r["id"])
+    rows.sort(key=itemgetter("id"))  # ids are never NULL; nearly sorted already, so cheap
+    if column == "id":
+        return
+    present = [r for r in rows if r.get(column) is not None]
+    missing = [r for r in rows if r.get(column) is None]
 
     def value(row: dict[str, Any]) -> Any:
         v = row[column]
@@ -426,9 +466,9 @@ def find(
     stats.seconds["index"] = time.perf_counter() - t0
     with database.read() as conn:
         t1 = time.perf_counter()
-        conds = filtering.conditions(conn, filters)
+        where = filtering.conditions(conn, filters)
         if filters.active():
-            positions = _present(index, _allowed_compounds(database, conn, conds, filters))
+            positions = _present(index, _allowed_compounds(database, conn, where, filters))
         else:  # every indexed compound; those without measurements simply give no rows
             positions = np.arange(len(index), dtype=np.int64)
         stats.searched = int(positions.size)
@@ -463,12 +503,12 @@ def find(
             description = {"kind": "similar", "text": similar, "min_similarity": min_similarity}
         t3 = time.perf_counter()
         hit_ids = index.ids[hit_positions].tolist()
-        rows = _rows_for(conn, conds, hit_ids, scan_above=max(5000, stats.searched // 4))
+        rows = _rows_for(conn, where, hit_ids, scan_above=max(5000, (stats.searched * 3) // 5))
         stats.seconds["rows"] = time.perf_counter() - t3
     if similarity:
         for row in rows:
             row["similarity"] = round(similarity[row["compound_id"]], 4)
-    stats.with_rows = len({r["compound_id"] for r in rows})
+    stats.with_rows = len(set(map(itemgetter("compound_id"), rows)))
     _sort(rows, sort or ("similarity" if similar is not None else "id"))
     total = len(rows)
     if limit is not None:
@@ -483,10 +523,11 @@ def find(
             f"({100.0 * stats.matched / stats.searched:.0f}%); a more specific pattern or "
             "filters would say more"
         )
-    counts: dict[int, int] = {}
-    for row in rows:
-        counts[row["compound_id"]] = counts.get(row["compound_id"], 0) + 1
-    position_of = {int(index.ids[p]): int(p) for p in hit_positions}
+    counts = Counter(map(itemgetter("compound_id"), rows))  # first-seen order, as the rows
+    position_of: dict[int, int] = {}
+    if atoms and query is not None:
+        ids = index.ids[hit_positions].tolist()
+        position_of = dict(zip(ids, hit_positions.tolist(), strict=True))
     compounds = []
     for cid, n in counts.items():
         entry: dict[str, Any] = {"compound_id": cid, "measurements": n}
@@ -519,23 +560,19 @@ def brute_force(database: Any, query: Query) -> list[int]:
 
     The reference the tests compare :func:`find` against.
     """
-    from sqlalchemy import select
-
-    from registry.models import Compound
+    from registry.search.sqlite_read import fetch
 
     Chem = _rdkit()
     out = []
     with database.read() as conn:
-        for cid, smiles, binary in conn.execute(
-            select(Compound.id, Compound.smiles_canonical, Compound.mol_binary).order_by(
-                Compound.id
-            )
+        for cid, smiles, binary in fetch(
+            conn, "SELECT id, smiles_canonical, mol_binary FROM compound ORDER BY id"
         ):
             if binary is None:
                 continue
             mol = Chem.MolFromSmiles(smiles) if smiles else None
             if mol is None:
-                mol = Chem.Mol(binary)
+                mol = Chem.Mol(bytes(binary))
             if any(mol.HasSubstructMatch(q, useChirality=query.stereo) for q in query.mols):
                 out.append(int(cid))
     return out

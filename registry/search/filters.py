@@ -4,7 +4,8 @@ solvent (by name, alias or class), method, process kind, nucleus, status and ref
 Ranges are written as chemists write them: ``">= 22 kcal/mol"``, ``"< 90 kJ/mol"``,
 ``"80-100 kJ/mol"``, ``"80 to 100 kJ/mol"``, ``"-40 to -10 °C"``, ``"95 ± 5 kJ/mol"``. Every bound is
 read by :func:`registry.units.parse_value`, so the units are the registry's (kcal is the
-thermochemical calorie). Filters become SQL conditions on the joined measurement query.
+thermochemical calorie). Filters become SQL conditions (plain text with named parameters) on
+the joined measurement query.
 """
 
 from __future__ import annotations
@@ -78,15 +79,16 @@ class Range:
             and (value > self.hi or (value == self.hi and not self.hi_inclusive))
         )
 
-    def condition(self, column: Any) -> Any:
+    def sql(self, column: str, name: str, params: dict[str, Any]) -> str:
+        """``column >= :name_lo AND column <= :name_hi`` (open bounds left out)."""
         parts = []
         if self.lo is not None:
-            parts.append(column >= self.lo if self.lo_inclusive else column > self.lo)
+            params[f"{name}_lo"] = self.lo
+            parts.append(f"{column} {'>=' if self.lo_inclusive else '>'} :{name}_lo")
         if self.hi is not None:
-            parts.append(column <= self.hi if self.hi_inclusive else column < self.hi)
-        from sqlalchemy import and_
-
-        return and_(*parts)
+            params[f"{name}_hi"] = self.hi
+            parts.append(f"{column} {'<=' if self.hi_inclusive else '<'} :{name}_hi")
+        return " AND ".join(parts) or "1 = 1"
 
 
 def _value(
@@ -216,37 +218,65 @@ def make_filters(
     )
 
 
-def conditions(conn: Any, filters: Filters) -> list[Any]:
-    """SQL conditions on (measurement, compound, process) for these filters."""
-    from sqlalchemy import or_, select
+@dataclass
+class Where:
+    """SQL conditions on ``measurement m`` (joined with ``process p`` when ``needs_process``)
+    and their named parameters: plain SQL text, so that it runs on a ``sqlite3`` connection
+    as well as through SQLAlchemy (see :mod:`registry.search.sqlite_read`)."""
 
+    clauses: list[str] = field(default_factory=list)
+    params: dict[str, Any] = field(default_factory=dict)
+    needs_process: bool = False
+
+    def sql(self) -> str:
+        return " AND ".join(f"({c})" for c in self.clauses) or "1 = 1"
+
+
+def _contains(column: str, name: str, dialect: str) -> str:
+    """Case-insensitive LIKE, written as SQLAlchemy's ``ilike`` writes it for each database."""
+    if dialect == "postgresql":
+        return f"{column} ILIKE :{name}"
+    return f"lower({column}) LIKE lower(:{name})"
+
+
+def conditions(conn: Any, filters: Filters) -> Where:
+    """SQL conditions on (measurement m, process p) for these filters."""
     from registry import vocab
-    from registry.models import Measurement, Process, ProcessKind, Solvent
+    from registry.search.sqlite_read import binds, dialect_name, fetch
 
-    out: list[Any] = []
+    dialect = dialect_name(conn)
+    out = Where()
+    params = out.params
     if filters.barrier:
-        out.append(filters.barrier.condition(Measurement.dg_kj_mol))
+        out.clauses.append(filters.barrier.sql("m.dg_kj_mol", "barrier", params))
     if filters.temperature:
-        out.append(filters.temperature.condition(Measurement.dg_t_k))
+        out.clauses.append(filters.temperature.sql("m.dg_t_k", "temperature", params))
     if filters.method:
-        out.append(Measurement.method == filters.method)
+        params["method"] = filters.method
+        out.clauses.append("m.method = :method")
     if filters.process:
-        known = tuple(r[0] for r in conn.execute(select(ProcessKind.name)))
-        kind = vocab.process_kind_name(filters.process, known, "--process")
-        out.append(Process.kind == kind)
+        known = tuple(r[0] for r in fetch(conn, "SELECT name FROM process_kind"))
+        params["process"] = vocab.process_kind_name(filters.process, known, "--process")
+        out.clauses.append("p.kind = :process")
+        out.needs_process = True
     if filters.nucleus:
-        out.append(Process.nucleus == filters.nucleus)
+        params["nucleus"] = filters.nucleus
+        out.clauses.append("p.nucleus = :nucleus")
+        out.needs_process = True
     if filters.status:
-        out.append(Measurement.status == filters.status)
+        params["status"] = filters.status
+        out.clauses.append("m.status = :status")
     elif not filters.include_retracted:
-        out.append(Measurement.status != "retracted")
+        params["retracted"] = "retracted"
+        out.clauses.append("m.status != :retracted")
     if filters.reference:
-        out.append(Measurement.reference.ilike(f"%{filters.reference}%"))
+        params["reference"] = f"%{filters.reference}%"
+        out.clauses.append(_contains("m.reference", "reference", dialect))
     if filters.solvents:
         index: dict[str, int] = {}  # every spelling key of every solvent → its id
         names: dict[str, int] = {}
-        for sid, name, formula, aliases in conn.execute(
-            select(Solvent.id, Solvent.name, Solvent.formula, Solvent.aliases)
+        for sid, name, formula, aliases in fetch(
+            conn, "SELECT id, name, formula, aliases FROM solvent"
         ):
             names[name] = sid
             for spelling in (name, formula, *(aliases or "").split("|")):
@@ -262,9 +292,11 @@ def conditions(conn: Any, filters: Filters) -> list[Any]:
                 ids.add(index[vocab.solvent_key(text)])
             else:
                 texts.append(text)
-        parts = [Measurement.solvent_id.in_(sorted(ids))] if ids else []
-        parts += [Measurement.solvent_text.ilike(f"%{t}%") for t in texts]
+        parts = [f"m.solvent_id IN ({binds('solvent_id', sorted(ids), params)})"] if ids else []
+        for i, text in enumerate(texts):
+            params[f"solvent_text{i}"] = f"%{text}%"
+            parts.append(_contains("m.solvent_text", f"solvent_text{i}", dialect))
         if not parts:  # pragma: no cover - solvents given but nothing to match
             raise UsageError("--solvent: nothing to match")
-        out.append(or_(*parts))
+        out.clauses.append(" OR ".join(parts))
     return out

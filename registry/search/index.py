@@ -125,22 +125,18 @@ def index_path_for(database: Any, suffix: str = ".fpindex") -> Path:
 
 def database_signature(conn: Any, upto_id: int | None = None) -> dict[str, Any]:
     """What the index must agree with: count, highest id, blob lengths, last compound revision."""
-    from sqlalchemy import text
+    from registry.search.sqlite_read import dialect_name, fetch
 
     where = "mol_binary IS NOT NULL" + ("" if upto_id is None else " AND id <= :upto")
-    row = conn.execute(
-        text(
-            "SELECT count(*), coalesce(max(id), 0), coalesce(total(length(mol_binary)), 0), "
-            f"coalesce(total(length(pattern_fp)), 0) FROM compound WHERE {where}"
-            if conn.dialect.name == "sqlite"
-            else "SELECT count(*), coalesce(max(id), 0), coalesce(sum(length(mol_binary)), 0), "
-            f"coalesce(sum(length(pattern_fp)), 0) FROM compound WHERE {where}"
-        ),
+    total = "total" if dialect_name(conn) == "sqlite" else "sum"
+    row = fetch(
+        conn,
+        f"SELECT count(*), coalesce(max(id), 0), coalesce({total}(length(mol_binary)), 0), "
+        f"coalesce({total}(length(pattern_fp)), 0) FROM compound WHERE {where}",
         {} if upto_id is None else {"upto": upto_id},
-    ).one()
-    revision = conn.execute(
-        text("SELECT coalesce(max(id), 0) FROM revision WHERE entity = 'compound'")
-    ).scalar_one()
+    )[0]
+    last = "SELECT coalesce(max(id), 0) FROM revision WHERE entity = 'compound'"
+    revision = fetch(conn, last)[0][0]
     return {
         "count": int(row[0]),
         "max_id": int(row[1]),
@@ -157,13 +153,12 @@ Row = tuple[int, bytes, bytes | None, str]
 
 
 def _fetch(conn: Any, after_id: int) -> list[Row]:
-    from sqlalchemy import text
+    from registry.search.sqlite_read import fetch
 
-    result = conn.execute(
-        text(
-            "SELECT id, mol_binary, pattern_fp, smiles_canonical, structure_ok FROM compound "
-            "WHERE mol_binary IS NOT NULL AND id > :after ORDER BY id"
-        ),
+    result = fetch(
+        conn,
+        "SELECT id, mol_binary, pattern_fp, smiles_canonical, structure_ok FROM compound "
+        "WHERE mol_binary IS NOT NULL AND id > :after ORDER BY id",
         {"after": after_id},
     )
     return [
@@ -361,9 +356,16 @@ def file_state(database: Any) -> tuple[int, ...] | None:
     for suffix in ("", "-wal"):
         try:
             st = os.stat(f"{database.path}{suffix}")
-            state += [st.st_size, st.st_mtime_ns, st.st_ino]
         except OSError:
+            st = None
+        if st is None or (suffix and st.st_size == 0):
+            # an empty WAL holds nothing: every opening connection creates one afresh (new
+            # inode and time) and the last one to close deletes it, so counting it would make
+            # each new process re-check the signature; emptying a WAL that held commits means
+            # a checkpoint wrote them into the main file, whose size or time then changed
             state += [-1, -1, -1]
+        else:
+            state += [st.st_size, st.st_mtime_ns, st.st_ino]
     return tuple(state)
 
 

@@ -322,16 +322,10 @@ def _split(stored: str) -> tuple[str, ...]:
 
 def registry_motifs(database: Any) -> list[Motif]:
     """User motifs kept in the registry's ``motif`` table."""
-    from sqlalchemy import select
-
-    from registry.models import Motif as MotifRow
+    from registry.search.sqlite_read import fetch
 
     with database.read() as conn:
-        rows = conn.execute(
-            select(
-                MotifRow.name, MotifRow.smarts, MotifRow.description, MotifRow.created_by
-            ).order_by(MotifRow.name)
-        ).all()
+        rows = fetch(conn, "SELECT name, smarts, description, created_by FROM motif ORDER BY name")
     return [
         Motif(name, _split(smarts), description or "", source="registry", created_by=who)
         for name, smarts, description, who in rows
