@@ -25,6 +25,7 @@ import argparse
 import gzip
 import io
 import os
+import resource
 import sqlite3
 import statistics
 import subprocess
@@ -32,8 +33,10 @@ import sys
 import tempfile
 import time
 import zipfile
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -110,31 +113,67 @@ def bare_pipeline(path: Path, fmt: str, db: Path) -> None:
     conn.close()
 
 
+@contextmanager
+def timing(module: Any, name: str, stages: dict[str, list[float]], key: str) -> Iterator[None]:
+    """Replace ``module.name`` by a copy that adds its wall time to ``stages[key]``."""
+    real = getattr(module, name)
+
+    def timed_call(*args: Any, **kwargs: Any) -> Any:
+        t0 = time.perf_counter()
+        try:
+            return real(*args, **kwargs)
+        finally:
+            stages.setdefault(key, []).append(time.perf_counter() - t0)
+
+    setattr(module, name, timed_call)
+    try:
+        yield
+    finally:
+        setattr(module, name, real)
+
+
+def cpu_seconds() -> tuple[float, float]:
+    """CPU time (user + system) of this process and of its finished children (pool workers)."""
+    me = resource.getrusage(resource.RUSAGE_SELF)
+    children = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return me.ru_utime + me.ru_stime, children.ru_utime + children.ru_stime
+
+
 def fluxledger_import(path: Path, db: Path, stages: dict[str, list[float]]) -> None:
     from registry import api
     from registry.io import importer
 
     api.init_registry(str(db))
     database = api.open_registry(str(db))
-    real_hook = importer.run_validation_hook
-
-    def timed_hook(*args, **kwargs):  # type: ignore[no-untyped-def]
-        t0 = time.perf_counter()
-        try:
-            return real_hook(*args, **kwargs)
-        finally:
-            stages.setdefault("validation", []).append(time.perf_counter() - t0)
-
-    importer.run_validation_hook = timed_hook
+    phase: dict[str, list[float]] = {}
+    cpu0 = cpu_seconds()
+    t0 = time.perf_counter()
     try:
-        # skip_bad: the set holds a few pairs of SMILES with one InChIKey (same structure), which
-        # the importer refuses under two different compound labels; those rows are set aside
-        summary = importer.import_table(
-            database, path, workers=2, skip_bad=True, rejects_path=db.with_suffix(".rejected.csv")
-        )
+        with (
+            timing(importer, "prepare", phase, "read, normalize, structures"),
+            timing(importer, "write_entries", phase, "write new rows (writer)"),
+            timing(importer, "run_validation_hook", phase, "validation of the new rows"),
+        ):
+            # skip_bad: the set holds a few pairs of SMILES with one InChIKey (same structure),
+            # which the importer refuses under two different compound labels; set aside
+            summary = importer.import_table(
+                database,
+                path,
+                workers=2,
+                skip_bad=True,
+                rejects_path=db.with_suffix(".rejected.csv"),
+            )
     finally:
-        importer.run_validation_hook = real_hook
         database.dispose()
+    total = time.perf_counter() - t0
+    cpu1 = cpu_seconds()
+    for key, values in phase.items():
+        stages.setdefault(key, []).append(sum(values))
+    stages.setdefault("rest (checks, write transaction, summary)", []).append(
+        total - sum(sum(v) for v in phase.values())
+    )
+    stages.setdefault("CPU: this process", []).append(cpu1[0] - cpu0[0])
+    stages.setdefault("CPU: pool workers", []).append(cpu1[1] - cpu0[1])
     if summary["rejected"]:
         print(f"  note: {summary['rejected']} row(s) set aside (same structure, other label)")
 
@@ -169,6 +208,7 @@ def main() -> None:
         results: dict[str, list[float]] = {}
         for _ in range(args.repeats):  # interleaved, so drifting machine load hits both alike
             n = next(counter)
+            cpu0 = cpu_seconds()[0]
             results.setdefault("bare", []).extend(
                 timed(
                     lambda n=n: bare_pipeline(sheet, args.format, tmpdir / f"b{n}.sqlite"),
@@ -176,6 +216,7 @@ def main() -> None:
                     "bare",
                 )
             )
+            stages.setdefault("CPU: bare pipeline", []).append(cpu_seconds()[0] - cpu0)
             results.setdefault("fluxledger", []).extend(
                 timed(
                     lambda n=n: fluxledger_import(sheet, tmpdir / f"f{n}.sqlite", stages),
@@ -204,10 +245,15 @@ def main() -> None:
         med = statistics.median(values)
         runs = ", ".join(f"{v:.1f}" for v in values)
         print(f"{name:<45} median {med:8.2f} s   ratio {med / bare:5.2f}   (runs: {runs})")
-    if stages.get("validation"):
-        print(
-            f"{'  of which validation rules':<45} median {statistics.median(stages['validation']):8.2f} s"
-        )
+    print("fluxledger import, wall time by phase (medians):")
+    for name, values in stages.items():
+        if not name.startswith("CPU"):
+            print(f"  {name:<43} median {statistics.median(values):8.2f} s")
+    print("CPU time (user + system; less sensitive to other jobs than wall time):")
+    for name, values in stages.items():
+        if name.startswith("CPU"):
+            print(f"  {name[5:]:<43} median {statistics.median(values):8.2f} s")
+    print(f"load average at the end {os.getloadavg()[0]:.1f}")
     print("target: fluxledger ≤ 1.5 × bare")
 
 

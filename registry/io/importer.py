@@ -32,6 +32,7 @@ from registry.errors import FileFormatError, ImportRowError, RowProblem, UnitErr
 from registry.io import parallel, upsert
 from registry.io.cells import EMPTY_MARKERS, cell_text, is_formula_text, looks_numeric
 from registry.io.headers import EXTRA_PREFIX, FIELD_TITLES
+from registry.io.lookup import rows_where_in
 from registry.io.mapping import Column, SheetPlan, load_mapping, plan_sheet
 from registry.io.readers import RawSheet, column_letter, read_file
 from registry.models import Compound, ImportBatch, Measurement
@@ -681,18 +682,11 @@ def _compound_conflicts(
     labels = sorted({e.compound["label"] for e in entries if e.compound.get("label")})
     db_key: dict[str, str | None] = {}
     db_label: dict[str, str | None] = {}
-    for i in range(0, len(keys), 500):
-        for key, label in conn.execute(
-            select(Compound.inchikey, Compound.label).where(
-                Compound.inchikey.in_(keys[i : i + 500])
-            )
-        ):
-            db_key[key] = label
-    for i in range(0, len(labels), 500):
-        for key, label in conn.execute(
-            select(Compound.inchikey, Compound.label).where(Compound.label.in_(labels[i : i + 500]))
-        ):
-            db_label[label] = key
+    columns = [Compound.inchikey, Compound.label]
+    for key, label in rows_where_in(conn, columns, Compound.inchikey, keys):
+        db_key[key] = label
+    for key, label in rows_where_in(conn, columns, Compound.label, labels):
+        db_label[label] = key
     file_key: dict[str, tuple[str, int]] = {}
     file_label: dict[str, tuple[str, int]] = {}
     for i, (e, s) in enumerate(zip(entries, structures, strict=True)):

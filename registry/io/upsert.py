@@ -25,6 +25,7 @@ from sqlalchemy import Connection, delete, insert, select, update
 from registry import audit, vocab
 from registry.chem import Structure
 from registry.entry import NormalizedEntry
+from registry.io.lookup import rows_where_in
 from registry.models import CoalescenceObservation, Compound, Measurement, Process, RatePoint
 from registry.writer import solvent_index
 
@@ -88,23 +89,21 @@ def find_matches(
     by_key: dict[str, int] = {}
     by_label: dict[str, int] = {}
     by_name: dict[str, int] = {}
-    for chunk in _chunks(keys):
-        for cid, key in conn.execute(
-            select(Compound.id, Compound.inchikey).where(Compound.inchikey.in_(chunk))
-        ):
-            by_key[key] = cid
-    for chunk in _chunks(labels):
-        for cid, label in conn.execute(
-            select(Compound.id, Compound.label).where(Compound.label.in_(chunk))
-        ):
-            by_label[label] = cid
-    for chunk in _chunks(names):
-        for cid, name in conn.execute(
-            select(Compound.id, Compound.name).where(
-                Compound.name.in_(chunk), Compound.label.is_(None), Compound.inchikey.is_(None)
-            )
-        ):
-            by_name.setdefault(name, cid)
+    for cid, key in rows_where_in(conn, [Compound.id, Compound.inchikey], Compound.inchikey, keys):
+        by_key[key] = cid
+    for cid, label in rows_where_in(conn, [Compound.id, Compound.label], Compound.label, labels):
+        by_label[label] = cid
+    for cid, name in sorted(
+        rows_where_in(
+            conn,
+            [Compound.id, Compound.name],
+            Compound.name,
+            names,
+            Compound.label.is_(None),
+            Compound.inchikey.is_(None),
+        )
+    ):
+        by_name.setdefault(name, cid)
     compound_ids: list[int | None] = []
     for e, s in zip(entries, structures, strict=True):
         cid = None
@@ -118,34 +117,37 @@ def find_matches(
     known = sorted({c for c in compound_ids if c is not None})
     processes: dict[tuple[int, str, str, str], int] = {}
     existing: dict[MatchKey, list[int]] = defaultdict(list)
-    for chunk in _chunks(known):
-        for pid, cid, kind, sites, nucleus in conn.execute(
-            select(
-                Process.id, Process.compound_id, Process.kind, Process.sites, Process.nucleus
-            ).where(Process.compound_id.in_(chunk))
-        ):
-            processes[(cid, kind, sites, nucleus)] = pid
-        for row in conn.execute(
-            select(
-                Measurement.id,
-                Measurement.compound_id,
-                Measurement.process_id,
-                Measurement.method,
-                Measurement.solvent_id,
-                Measurement.solvent_text,
-                Measurement.reference,
-                Measurement.label,
-            ).where(Measurement.compound_id.in_(chunk))
-        ):
-            key = (
-                row.compound_id,
-                row.process_id,
-                row.method,
-                _solvent_part(row.solvent_id, row.solvent_text),
-                row.reference or "",
-                row.label or "",
-            )
-            existing[key].append(row.id)
+    for pid, cid, kind, sites, nucleus in rows_where_in(
+        conn,
+        [Process.id, Process.compound_id, Process.kind, Process.sites, Process.nucleus],
+        Process.compound_id,
+        known,
+    ):
+        processes[(cid, kind, sites, nucleus)] = pid
+    for mid, cid, pid, method, solvent_id, solvent_text, reference, label in rows_where_in(
+        conn,
+        [
+            Measurement.id,
+            Measurement.compound_id,
+            Measurement.process_id,
+            Measurement.method,
+            Measurement.solvent_id,
+            Measurement.solvent_text,
+            Measurement.reference,
+            Measurement.label,
+        ],
+        Measurement.compound_id,
+        known,
+    ):
+        key = (
+            cid,
+            pid,
+            method,
+            _solvent_part(solvent_id, solvent_text),
+            reference or "",
+            label or "",
+        )
+        existing[key].append(mid)
     solvents = solvent_index(conn)
     matches: list[int | None] = []
     ambiguous: list[tuple[int, list[int]]] = []
