@@ -15,7 +15,7 @@ from functools import cached_property, lru_cache
 import numpy as np
 import pandas as pd
 from numpy.typing import NDArray
-from sqlalchemy import Connection, select
+from sqlalchemy import Connection, func, select
 
 from registry import units
 from registry.models import (
@@ -208,7 +208,8 @@ def _rows(conn: Connection, query) -> list[tuple]:  # type: ignore[no-untyped-de
     if not (RAW_SQLITE and conn.dialect.name == "sqlite"):
         return list(conn.execute(query).all())
     compiled = query.compile(dialect=conn.dialect, compile_kwargs={"render_postcompile": True})
-    params = [compiled.params[name] for name in compiled.positiontup or ()]
+    values = compiled.params  # a property that builds the whole dict: read it once
+    params = [values[name] for name in compiled.positiontup or ()]
     cursor = conn.connection.dbapi_connection.cursor()  # same connection, same transaction
     try:
         cursor.execute(str(compiled), params)
@@ -224,8 +225,28 @@ def _frame(rows: list, columns: list[str]) -> pd.DataFrame:  # type: ignore[type
     return pd.DataFrame(dict(zip(columns, (list(v) for v in zip(*rows, strict=True)), strict=True)))
 
 
+def covers_most(conn: Connection, ids: Sequence[int]) -> bool:
+    """True when ``ids`` are at least half of all measurements (e.g. a first import).
+
+    Reading the whole table in one pass and keeping ``ids`` is then cheaper than selecting
+    them in thousands of ``IN (...)`` chunks.
+    """
+    total = conn.execute(select(func.count()).select_from(Measurement)).scalar_one()
+    return 2 * len(ids) >= total
+
+
 def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> CheckData:
     """Read the measurements (all, or ``ids``) with their coalescence data and rate points."""
+    wanted = None if ids is None else sorted({int(i) for i in ids})
+    if wanted is not None and covers_most(conn, wanted):
+        data = load_check_data(conn, None)
+        keep = data.m["id"].isin(wanted)
+        if bool(keep.all()):
+            return data
+        m = data.m[keep].reset_index(drop=True)
+        rates = data.rates[data.rates["id"].isin(m["id"])].reset_index(drop=True)
+        return CheckData(m=m, rates=rates, peers=data.peers)  # every live measurement
+    ids = wanted
     mq = (
         select(*(c.label(n) for n, c in _MEASUREMENT_COLUMNS.items()))
         .select_from(Measurement)
