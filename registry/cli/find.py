@@ -172,18 +172,45 @@ def find(
 
 
 def _write_csv(rows: list[dict[str, Any]], columns: list[str]) -> None:
-    """The same CSV as :func:`registry.cli.output.csv_text`, written row by row: a motif search
-    can return tens of thousands of rows, whose values are plain numbers and text."""
+    """The same CSV as :func:`registry.cli.output.csv_text`, written in one go: a motif search
+    can return tens of thousands of rows of plain numbers and text. A value that is not a
+    finite number is written empty (checked per column first, which is cheap)."""
     import csv
-    import math
     import sys
+    from operator import itemgetter
 
-    def plain(value: Any) -> Any:
-        return None if isinstance(value, float) and not math.isfinite(value) else value
-
+    if rows and all(all(c in r for c in columns) for r in (rows[0], rows[-1])):
+        pick = itemgetter(*columns)  # find's rows all have the same keys
+        table = [pick(r) for r in rows] if len(columns) > 1 else [(pick(r),) for r in rows]
+    else:
+        table = [tuple(r.get(c) for c in columns) for r in rows]
+    if not _all_finite(table):
+        table = [tuple(_plain(v) for v in t) for t in table]
     writer = csv.writer(sys.stdout, lineterminator="\n")
     writer.writerow(columns)
-    writer.writerows([plain(r.get(c)) for c in columns] for r in rows)
+    writer.writerows(table)
+
+
+def _plain(value: Any) -> Any:
+    import math
+
+    return None if isinstance(value, float) and not math.isfinite(value) else value
+
+
+def _all_finite(table: list[tuple[Any, ...]]) -> bool:
+    """No NaN or infinity in any numeric column (an exact sum of a column is finite then)."""
+    import math
+
+    for column in zip(*table, strict=True):
+        try:
+            total = math.fsum([v for v in column if v is not None])
+        except TypeError:  # a column of text: nothing to check
+            continue
+        except OverflowError:
+            return False
+        if not math.isfinite(total):
+            return False
+    return True
 
 
 def _summary(result: Any) -> str:
