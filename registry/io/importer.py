@@ -75,8 +75,18 @@ class RowSource:
     sheet: str | None
     row: int
     plan: SheetPlan
-    cells: dict[str, Any]  # header → raw text, for the rejected-rows file
+    texts: dict[int, list[str | None]]  # the sheet's cell texts by column (shared by its rows)
+    offset: int  # this row's position in those lists
     rates: list[tuple[str | None, int]] = field(default_factory=list)  # (sheet, row) per rate
+
+    @property
+    def cells(self) -> dict[str, Any]:
+        """Header → raw text, for the rejected-rows file (built only for rows that need it)."""
+        return {
+            c.header: self.texts[c.index][self.offset]
+            for c in self.plan.columns
+            if c.index in self.texts
+        }
 
 
 @dataclass
@@ -461,9 +471,8 @@ def _read_entries(
                 inp.rates.append((inp.dg_t, _with_unit(_combine_error(k_text, err), k_col.unit)))
                 rates_sources.append((rs.name, row_no))
         result.problems.extend(problems)
-        raw_cells = {c.header: row_texts[c.index][i] for c in plan.columns if c.index in row_texts}
         result.inputs.append(inp)
-        result.sources.append(RowSource(rs.name, row_no, plan, raw_cells, rates_sources))
+        result.sources.append(RowSource(rs.name, row_no, plan, row_texts, i, rates_sources))
 
 
 _FORMULA_REASON = "the cell holds a formula"
