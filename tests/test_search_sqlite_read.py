@@ -296,3 +296,27 @@ def test_an_open_reader_does_not_change_the_file_state(registry_file: Path) -> N
     writer.write(lambda conn: conn.execute(text("UPDATE measurement SET label = 'x' WHERE id = 2")))
     assert index_module.file_state(reader) != closed
     writer.dispose()
+
+
+def test_rows_without_sqlite_json_functions(registry_file: Path, monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    """An SQLite built without ``json_each`` falls back to IN lists / a pass in Python."""
+    from registry.search import sqlite_read
+
+    query = build_query(motif=get_motif("urea"))
+    reader = open_for_search(str(registry_file))
+    try:
+        expected = find(reader, query=query, filters=make_filters(solvent="CDCl3"))
+        real = sqlite_read.fetch_dicts
+
+        def no_json(conn, sql, params, keys):  # type: ignore[no-untyped-def]
+            if "json_each" in sql:
+                raise sqlite3.OperationalError("no such table: json_each")
+            return real(conn, sql, params, keys)
+
+        monkeypatch.setattr(sqlite_read, "fetch_dicts", no_json)
+        for threshold in (0, 10**9):
+            monkeypatch.setattr(engine_module, "_rows_for", _forced(threshold))
+            again = find(reader, query=query, filters=make_filters(solvent="CDCl3"))
+            assert again.rows == expected.rows and expected.rows
+    finally:
+        reader.dispose()

@@ -371,7 +371,7 @@ _ROWS_SQL = (
     f"SELECT {', '.join(ROW_COLUMNS.values())} FROM measurement m "
     "JOIN compound c ON c.id = m.compound_id LEFT OUTER JOIN process p ON p.id = m.process_id"
 )
-#: compound ids per bound-parameter IN list (servers; SQLite takes the ids as one JSON array)
+#: compound ids per bound-parameter IN list on servers
 _CHUNK = 2000
 
 
@@ -382,25 +382,33 @@ def _rows_for(
 
     Plain SQL and plain tuples (on SQLite through the ``sqlite3`` connection itself): for a
     common motif this reads tens of thousands of rows, where SQLAlchemy's rows cost more than
-    the search. Many ids: one pass over the filtered rows; few: the ids as a JSON array
-    (``json_each``) on SQLite, bound-parameter IN lists in chunks elsewhere.
+    the search. On SQLite the ids go in as one JSON array (``json_each``): looked up through
+    the compound-id index when they are few, tested during one pass over the measurements
+    (``+m.compound_id`` keeps the index out) when they are more than ``scan_above``.
+    Elsewhere: one pass with the test in Python, or bound-parameter IN lists in chunks.
     """
-    from registry.search.sqlite_read import binds, dialect_name, fetch
+    from registry.search.sqlite_read import binds, dialect_name, fetch, fetch_dicts
 
     keys = tuple(ROW_COLUMNS)
     ids = list(compound_ids)
     if not ids:
         return []
     base = f"{_ROWS_SQL} WHERE {where.sql()}"
+    if dialect_name(conn) == "sqlite":
+        import sqlite3
+
+        params = {**where.params, "hit_ids": "[" + ",".join(map(str, ids)) + "]"}
+        column = "+m.compound_id" if len(ids) > scan_above else "m.compound_id"
+        sql = f"{base} AND {column} IN (SELECT value FROM json_each(:hit_ids))"
+        try:
+            return fetch_dicts(conn, sql, params, keys)
+        except sqlite3.OperationalError as exc:  # an SQLite built without its JSON functions
+            if "json_each" not in str(exc):
+                raise
     if len(ids) > scan_above:
         hit = set(ids)
         at = keys.index("compound_id")
         raw = [r for r in fetch(conn, base, where.params) if r[at] in hit]
-    elif dialect_name(conn) == "sqlite":
-        params = {**where.params, "hit_ids": "[" + ",".join(map(str, ids)) + "]"}
-        raw = fetch(
-            conn, f"{base} AND m.compound_id IN (SELECT value FROM json_each(:hit_ids))", params
-        )
     else:
         raw = []
         for start in range(0, len(ids), _CHUNK):
@@ -449,6 +457,7 @@ def find(
     there were). ``atoms`` adds the matched atom indices of each compound for highlighting.
     """
     from registry.search import filters as filtering
+    from registry.search.sqlite_read import use_memory_map
 
     if (query is None) == (similar is None):
         raise UsageError("give exactly one of --smarts, --smiles, --motif or --similar")
@@ -466,6 +475,7 @@ def find(
     stats.seconds["index"] = time.perf_counter() - t0
     with database.read() as conn:
         t1 = time.perf_counter()
+        use_memory_map(conn)
         where = filtering.conditions(conn, filters)
         if filters.active():
             positions = _present(index, _allowed_compounds(database, conn, where, filters))

@@ -30,6 +30,9 @@ from registry.errors import DatabaseError
 #: as in :mod:`registry.store` (busy timeout and read retries of a SQLite registry)
 BUSY_TIMEOUT_S = 30.0
 READ_RETRIES = 12
+#: read pages through a memory map (no copy per page read: a search's row fetch visits pages
+#: all over the file); an upper bound of address space, not memory taken
+MMAP_BYTES = 1 << 30
 
 _REVISION_RE = re.compile(r"^revision(?::\s*str)?\s*=\s*[\"']([^\"']+)[\"']", re.M)
 _DOWN_RE = re.compile(r"^down_revision(?::[^=]+)?=\s*(?:None|[\"']([^\"']+)[\"'])", re.M)
@@ -57,6 +60,17 @@ def _raw_sqlite(conn: Any) -> sqlite3.Connection | None:
     return None
 
 
+def use_memory_map(conn: Any) -> None:
+    """Let SQLite read this connection's pages through a memory map unless it already does
+    (a read setting of the connection: results are the same, random page reads cheaper)."""
+    raw = _raw_sqlite(conn)
+    if raw is None:
+        return
+    current = raw.execute("PRAGMA mmap_size").fetchone()
+    if current is not None and not current[0]:
+        raw.execute(f"PRAGMA mmap_size = {MMAP_BYTES}").fetchall()
+
+
 def fetch(conn: Any, sql: str, params: dict[str, Any] | None = None) -> list[Sequence[Any]]:
     """All rows of ``sql`` (named ``:parameters``) as tuples (SQLAlchemy rows on servers)."""
     raw = _raw_sqlite(conn)
@@ -69,6 +83,20 @@ def fetch(conn: Any, sql: str, params: dict[str, Any] | None = None) -> list[Seq
     from sqlalchemy import text
 
     return list(conn.execute(text(sql), params or {}).all())
+
+
+def fetch_dicts(
+    conn: Any, sql: str, params: dict[str, Any], keys: Sequence[str]
+) -> list[dict[str, Any]]:
+    """Rows of ``sql`` as dicts under ``keys``, built straight from the cursor."""
+    raw = _raw_sqlite(conn)
+    if raw is None:
+        return [dict(zip(keys, r, strict=True)) for r in fetch(conn, sql, params)]
+    cursor = raw.execute(sql, params)
+    try:
+        return [dict(zip(keys, r, strict=True)) for r in cursor]
+    finally:
+        cursor.close()
 
 
 def binds(prefix: str, values: Sequence[Any], params: dict[str, Any]) -> str:
@@ -108,6 +136,7 @@ class SQLiteReader:
                 check_same_thread=False,
             )
             conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
+            conn.execute(f"PRAGMA mmap_size = {MMAP_BYTES}").fetchall()
             self._conn = conn
         return self._conn
 
