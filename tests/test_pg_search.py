@@ -240,3 +240,60 @@ def test_find_gives_the_same_rows_on_sqlite_and_postgresql(
         lite.dispose()
         pg.dispose()
     assert calls == [*MOTIFS, "CN(C)C=O"]  # every pattern went to the server, none fell back
+
+
+@pytest.mark.postgres
+def test_filters_give_the_same_rows_on_sqlite_and_postgresql(
+    pg_cartridge: str, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """The plain-SQL filters (ILIKE on PostgreSQL, lower() LIKE on SQLite, IN lists, the
+    process join) select the same measurements on both databases."""
+    from registry.search import build_query, find, make_filters
+
+    monkeypatch.setenv("FLUXLEDGER_CACHE_DIR", str(tmp_path / "cache"))
+    extra = [  # invented demo values on real structures
+        ("DEF", "CCN(CC)C=O", "20.5 kcal/mol", "toluene-d8", "Textbook A", "bond-rotation"),
+        ("DEA", "CCN(CC)C(C)=O", "18.0 kcal/mol", "CDCl3", "paper B", "bond-rotation"),
+        ("DMCH", "CC1CCCCC1C", "10.5 kcal/mol", "CS2", "textbook C", "ring-inversion"),
+    ]
+    lite_db = str(tmp_path / "f.sqlite")
+    for db in (lite_db, pg_cartridge):
+        _fill(db)
+        database = api.open_registry(db)
+        try:
+            for label, smiles, dg, solvent, reference, process in extra:
+                api.add_measurement(
+                    database,
+                    EntryInput(
+                        method="lineshape",
+                        compound=label,
+                        smiles=smiles,
+                        dg=dg,
+                        dg_t="298 K",
+                        solvent=solvent,
+                        reference=reference,
+                        process=process,
+                        nucleus="1H",
+                    ),
+                    actor="tester",
+                )
+        finally:
+            database.dispose()
+    specs = [
+        {"reference": "TEXTBOOK"},
+        {"solvent": ["nonpolar", "chloroform"]},
+        {"solvent": "CS"},
+        {"process": "rotation", "nucleus": "1H"},
+        {"barrier": "70-90 kJ/mol"},
+    ]
+    lite, pg = api.open_registry(lite_db), api.open_registry(pg_cartridge)
+    try:
+        query = build_query(smarts="[#6]")
+        for spec in specs:
+            on_sqlite = find(lite, query=query, filters=make_filters(**spec))
+            on_pg = find(pg, query=query, filters=make_filters(**spec))
+            assert on_sqlite.rows, spec
+            assert on_pg.rows == on_sqlite.rows, spec
+    finally:
+        lite.dispose()
+        pg.dispose()
