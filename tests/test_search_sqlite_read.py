@@ -306,17 +306,20 @@ def test_rows_without_sqlite_json_functions(registry_file: Path, monkeypatch) ->
     reader = open_for_search(str(registry_file))
     try:
         expected = find(reader, query=query, filters=make_filters(solvent="CDCl3"))
-        real = sqlite_read.fetch_dicts
+        real = sqlite_read.fetch
+        refused = []
 
-        def no_json(conn, sql, params, keys):  # type: ignore[no-untyped-def]
+        def no_json(conn, sql, params=None):  # type: ignore[no-untyped-def]
             if "json_each" in sql:
+                refused.append(sql)
                 raise sqlite3.OperationalError("no such table: json_each")
-            return real(conn, sql, params, keys)
+            return real(conn, sql, params)
 
-        monkeypatch.setattr(sqlite_read, "fetch_dicts", no_json)
+        monkeypatch.setattr(sqlite_read, "fetch", no_json)
         for threshold in (0, 10**9):
             monkeypatch.setattr(engine_module, "_rows_for", _forced(threshold))
             again = find(reader, query=query, filters=make_filters(solvent="CDCl3"))
             assert again.rows == expected.rows and expected.rows
+        assert len(refused) == 2  # both times the JSON form was tried first
     finally:
         reader.dispose()

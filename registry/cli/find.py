@@ -162,28 +162,22 @@ def find(
     columns = CSV_COLUMNS if as_csv else FIND_COLUMNS
     if similar is not None:
         columns = [*columns[:2], "similarity", *columns[2:]]
-    rows = result.rows
     if as_csv:
-        _write_csv(rows, columns)
+        _write_csv(result.column_values(columns), columns)
     else:  # a compound without a label is shown by its name
-        rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in rows]
+        rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in result.rows]
         render_rows(rows, columns=columns)
     typer.echo(_summary(result), err=True)
 
 
-def _write_csv(rows: list[dict[str, Any]], columns: list[str]) -> None:
-    """The same CSV as :func:`registry.cli.output.csv_text`, written in one go: a motif search
-    can return tens of thousands of rows of plain numbers and text. A value that is not a
-    finite number is written empty (checked per column first, which is cheap)."""
+def _write_csv(table: list[tuple[Any, ...]], columns: list[str]) -> None:
+    """The same CSV as :func:`registry.cli.output.csv_text`, written in one go from the result
+    table (no dict per row): a motif search can return tens of thousands of rows of plain
+    numbers and text. A value that is not a finite number is written empty (checked per
+    column first, which is cheap)."""
     import csv
     import sys
-    from operator import itemgetter
 
-    if rows and all(all(c in r for c in columns) for r in (rows[0], rows[-1])):
-        pick = itemgetter(*columns)  # find's rows all have the same keys
-        table = [pick(r) for r in rows] if len(columns) > 1 else [(pick(r),) for r in rows]
-    else:
-        table = [tuple(r.get(c) for c in columns) for r in rows]
     if not _all_finite(table):
         table = [tuple(_plain(v) for v in t) for t in table]
     writer = csv.writer(sys.stdout, lineterminator="\n")
@@ -216,8 +210,8 @@ def _all_finite(table: list[tuple[Any, ...]]) -> bool:
 def _summary(result: Any) -> str:
     s = result.stats
     shown = (
-        f"showing {len(result.rows):,} of {result.total_rows:,} measurements (drop --limit to see all)"
-        if len(result.rows) < result.total_rows
+        f"showing {len(result.table):,} of {result.total_rows:,} measurements (drop --limit to see all)"
+        if len(result.table) < result.total_rows
         else f"{result.total_rows:,} measurement(s)"
     )
     return (

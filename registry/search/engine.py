@@ -18,6 +18,7 @@ import time
 from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from functools import cached_property
 from operator import itemgetter
 from typing import Any
 
@@ -70,21 +71,43 @@ class SearchStats:
 
 @dataclass
 class FindResult:
-    """Measurements on matching compounds, the compounds themselves, and how the search went."""
+    """Measurements on matching compounds, the compounds themselves, and how the search went.
+
+    The measurements are kept as a table (``columns`` + one tuple per row); :attr:`rows` gives
+    them as dicts, built on first use, while the CLI's CSV reads the table as it is (for a
+    common motif that saves a dict per measurement on every cold run).
+    """
 
     query: dict[str, Any]
-    rows: list[dict[str, Any]]
+    columns: tuple[str, ...]
+    table: list[tuple[Any, ...]]
     compounds: list[dict[str, Any]]
     stats: SearchStats
     warnings: list[str]
     total_rows: int  # before ``limit``
+
+    @cached_property
+    def rows(self) -> list[dict[str, Any]]:
+        """One dict per measurement (column name → value)."""
+        columns = self.columns
+        return [dict(zip(columns, t, strict=True)) for t in self.table]
+
+    def column_values(self, names: Sequence[str]) -> list[tuple[Any, ...]]:
+        """The table cut to these columns, in this order (None for a column it lacks)."""
+        where = {c: i for i, c in enumerate(self.columns)}
+        if names and all(n in where for n in names):
+            if len(names) == 1:
+                at = where[names[0]]
+                return [(t[at],) for t in self.table]
+            return list(map(itemgetter(*(where[n] for n in names)), self.table))
+        return [tuple(t[where[n]] if n in where else None for n in names) for t in self.table]
 
     def as_dict(self) -> dict[str, Any]:
         return {
             "query": self.query,
             "counts": {
                 "measurements": self.total_rows,
-                "returned": len(self.rows),
+                "returned": len(self.table),
                 "compounds_matched": self.stats.matched,
                 "compounds_with_measurements": self.stats.with_rows,
                 "compounds_searched": self.stats.searched,
@@ -377,8 +400,9 @@ _CHUNK = 2000
 
 def _rows_for(
     conn: Any, where: Where, compound_ids: Sequence[int], scan_above: int = 5000
-) -> list[dict[str, Any]]:
-    """The measurements (joined with compound and process) of these compounds that pass.
+) -> list[tuple[Any, ...]]:
+    """The measurements (joined with compound and process) of these compounds that pass, as
+    tuples in :data:`ROW_COLUMNS` order.
 
     Plain SQL and plain tuples (on SQLite through the ``sqlite3`` connection itself): for a
     common motif this reads tens of thousands of rows, where SQLAlchemy's rows cost more than
@@ -387,7 +411,7 @@ def _rows_for(
     (``+m.compound_id`` keeps the index out) when they are more than ``scan_above``.
     Elsewhere: one pass with the test in Python, or bound-parameter IN lists in chunks.
     """
-    from registry.search.sqlite_read import binds, dialect_name, fetch, fetch_dicts
+    from registry.search.sqlite_read import binds, dialect_name, fetch
 
     keys = tuple(ROW_COLUMNS)
     ids = list(compound_ids)
@@ -401,7 +425,7 @@ def _rows_for(
         column = "+m.compound_id" if len(ids) > scan_above else "m.compound_id"
         sql = f"{base} AND {column} IN (SELECT value FROM json_each(:hit_ids))"
         try:
-            return fetch_dicts(conn, sql, params, keys)
+            return list(fetch(conn, sql, params))
         except sqlite3.OperationalError as exc:  # an SQLite built without its JSON functions
             if "json_each" not in str(exc):
                 raise
@@ -415,27 +439,28 @@ def _rows_for(
             params = dict(where.params)
             chunk = binds("hit", ids[start : start + _CHUNK], params)
             raw += fetch(conn, f"{base} AND m.compound_id IN ({chunk})", params)
-    return [dict(zip(keys, r, strict=True)) for r in raw]
+    return [tuple(r) for r in raw]
 
 
-def _sort(rows: list[dict[str, Any]], sort: str | None) -> None:
+def _sort(table: list[tuple[Any, ...]], columns: Sequence[str], sort: str | None) -> None:
     """Sort in place; rows without the value go last, ties keep measurement-id order."""
     key_name = (sort or "id").strip().lower()
     if key_name not in SORT_KEYS:
         raise UsageError(f"--sort {sort!r}: choose one of {', '.join(SORT_KEYS)}")
     column, descending = SORT_KEYS[key_name]
-    rows.sort(key=itemgetter("id"))  # ids are never NULL; nearly sorted already, so cheap
-    if column == "id":
+    table.sort(key=itemgetter(columns.index("id")))  # never NULL; nearly sorted already
+    if column == "id" or column not in columns:  # a column the rows lack: all 'missing'
         return
-    present = [r for r in rows if r.get(column) is not None]
-    missing = [r for r in rows if r.get(column) is None]
+    at = columns.index(column)
+    present = [t for t in table if t[at] is not None]
+    missing = [t for t in table if t[at] is None]
 
-    def value(row: dict[str, Any]) -> Any:
-        v = row[column]
+    def value(row: tuple[Any, ...]) -> Any:
+        v = row[at]
         return v.lower() if isinstance(v, str) else v
 
     present.sort(key=value, reverse=descending)  # stable: equal values stay in id order
-    rows[:] = present + missing
+    table[:] = present + missing
 
 
 def find(
@@ -513,16 +538,18 @@ def find(
             description = {"kind": "similar", "text": similar, "min_similarity": min_similarity}
         t3 = time.perf_counter()
         hit_ids = index.ids[hit_positions].tolist()
-        rows = _rows_for(conn, where, hit_ids, scan_above=max(5000, (stats.searched * 3) // 5))
+        table = _rows_for(conn, where, hit_ids, scan_above=max(5000, (stats.searched * 3) // 5))
         stats.seconds["rows"] = time.perf_counter() - t3
+    columns: tuple[str, ...] = tuple(ROW_COLUMNS)
+    of_compound = itemgetter(columns.index("compound_id"))
     if similarity:
-        for row in rows:
-            row["similarity"] = round(similarity[row["compound_id"]], 4)
-    stats.with_rows = len(set(map(itemgetter("compound_id"), rows)))
-    _sort(rows, sort or ("similarity" if similar is not None else "id"))
-    total = len(rows)
+        table = [(*t, round(similarity[of_compound(t)], 4)) for t in table]
+        columns = (*columns, "similarity")
+    stats.with_rows = len(set(map(of_compound, table)))
+    _sort(table, columns, sort or ("similarity" if similar is not None else "id"))
+    total = len(table)
     if limit is not None:
-        rows = rows[:limit]
+        table = table[:limit]
     if (
         query is not None
         and stats.searched >= BROAD_MIN
@@ -533,7 +560,7 @@ def find(
             f"({100.0 * stats.matched / stats.searched:.0f}%); a more specific pattern or "
             "filters would say more"
         )
-    counts = Counter(map(itemgetter("compound_id"), rows))  # first-seen order, as the rows
+    counts = Counter(map(of_compound, table))  # first-seen order, as the rows
     position_of: dict[int, int] = {}
     if atoms and query is not None:
         ids = index.ids[hit_positions].tolist()
@@ -548,10 +575,10 @@ def find(
         compounds.append(entry)
     if atoms and query is not None:
         by_id = {c["compound_id"]: c["atoms"] for c in compounds}
-        for row in rows:
-            row["match_atoms"] = by_id[row["compound_id"]]
+        table = [(*t, by_id[of_compound(t)]) for t in table]
+        columns = (*columns, "match_atoms")
     description["filters"] = filters.describe()
-    return FindResult(description, rows, compounds, stats, warnings, total)
+    return FindResult(description, columns, table, compounds, stats, warnings, total)
 
 
 def _present(index: ScreenIndex, compound_ids: np.ndarray) -> np.ndarray:

@@ -85,20 +85,6 @@ def fetch(conn: Any, sql: str, params: dict[str, Any] | None = None) -> list[Seq
     return list(conn.execute(text(sql), params or {}).all())
 
 
-def fetch_dicts(
-    conn: Any, sql: str, params: dict[str, Any], keys: Sequence[str]
-) -> list[dict[str, Any]]:
-    """Rows of ``sql`` as dicts under ``keys``, built straight from the cursor."""
-    raw = _raw_sqlite(conn)
-    if raw is None:
-        return [dict(zip(keys, r, strict=True)) for r in fetch(conn, sql, params)]
-    cursor = raw.execute(sql, params)
-    try:
-        return [dict(zip(keys, r, strict=True)) for r in cursor]
-    finally:
-        cursor.close()
-
-
 def binds(prefix: str, values: Sequence[Any], params: dict[str, Any]) -> str:
     """``:prefix0, :prefix1, …`` for an IN list, with the values added to ``params``."""
     names = []
