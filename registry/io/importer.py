@@ -1206,9 +1206,8 @@ def write_rejects(target: Path, read: ReadResult, problems: Sequence[RowProblem]
     by_row: dict[tuple[str | None, int], list[RowProblem]] = defaultdict(list)
     for p in problems:
         by_row[(p.sheet, p.row or 0)].append(p)
-    cells: dict[tuple[str | None, int], dict[str, Any]] = {}
-    for src in read.sources:
-        cells[(src.sheet, src.row)] = src.cells
+    sources = {(src.sheet, src.row): src for src in read.sources}
+    cells = {key: sources[key].cells for key in by_row if key in sources}
     headers: list[str] = []
     for plan in read.plans:
         for c in plan.columns:
