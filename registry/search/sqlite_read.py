@@ -100,7 +100,11 @@ def binds(prefix: str, values: Sequence[Any], params: dict[str, Any]) -> str:
 @dataclass
 class SQLiteReader:
     """A SQLite registry opened for reading, with the parts of :class:`registry.store.Database`
-    that the search uses (``url``, ``path``, ``is_sqlite``, ``read()``, ``dispose()``)."""
+    that the search uses (``url``, ``path``, ``is_sqlite``, ``read()``, ``dispose()``).
+
+    It holds one connection, so one read at a time (no nesting, one thread at a time); it
+    never writes (``find`` and the motif lookup only read) — writers use the full API.
+    """
 
     path: Path
     url: str = ""
