@@ -304,14 +304,14 @@ def motifs_list(
 
 
 def _open_if_exists(db: str) -> Any:
-    """The registry when there is one; listing built-in motifs needs none."""
+    """The registry (read-only handle) when there is one; listing built-in motifs needs none."""
     from pathlib import Path
 
-    from registry import api
+    from registry.search.sqlite_read import open_for_search
 
     if "://" not in db and not Path(db).expanduser().exists():
         return None
-    return api.open_registry(db)
+    return open_for_search(db)
 
 
 @motifs_app.command("show")
