@@ -75,7 +75,7 @@ class Workers:
     """
 
     def __init__(self, workers: int | None = None) -> None:
-        self.workers = default_workers() if workers is None else workers
+        self.workers = workers or default_workers()  # None or 0: as many as default_workers
         self._pool: ProcessPoolExecutor | None = None
         self._pending: list[tuple[list[str], Future[list[StructureResult]] | _InProcess]] = []
         self._submitted: set[str] = set()
