@@ -19,6 +19,7 @@ from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from functools import cached_property
+from itertools import repeat
 from operator import itemgetter
 from typing import Any
 
@@ -89,8 +90,8 @@ class FindResult:
     @cached_property
     def rows(self) -> list[dict[str, Any]]:
         """One dict per measurement (column name → value)."""
-        columns = self.columns
-        return [dict(zip(columns, t, strict=True)) for t in self.table]
+        # every tuple has len(columns) values (built so above); map/zip keep the loop in C
+        return list(map(dict, map(zip, repeat(self.columns), self.table)))
 
     def column_values(self, names: Sequence[str]) -> list[tuple[Any, ...]]:
         """The table cut to these columns, in this order (None for a column it lacks)."""
