@@ -14,7 +14,7 @@ from collections.abc import Iterable, Mapping
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, insert, select
+from sqlalchemy import Connection, select
 
 from registry import rawsql
 from registry.models import Revision
@@ -95,8 +95,8 @@ def record_many(conn: Connection, changes: Iterable[Mapping[str, Any]], actor: s
         rows.append(row)
     if len(rows) == 1:
         rawsql.insert_one(conn, Revision.__table__, rows[0])
-    elif rows:
-        conn.execute(insert(Revision), rows)
+    else:
+        rawsql.insert_many(conn, Revision.__table__, rows)
     return len(rows)
 
 

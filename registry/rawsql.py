@@ -10,7 +10,7 @@ Other databases, and batches of more than one row, keep using Core.
 
 from __future__ import annotations
 
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from functools import lru_cache
 from typing import Any
 
@@ -80,6 +80,82 @@ def _insert_plan(
     return sql, processors, tuple(defaults)
 
 
+def _bound(processors: Sequence[Callable[[Any], Any] | None], values: Sequence[Any]) -> list[Any]:
+    return [v if p is None or v is None else p(v) for p, v in zip(processors, values, strict=True)]
+
+
+def _bound_rows(
+    processors: Sequence[Callable[[Any], Any] | None], rows: Iterable[list[Any]]
+) -> Iterator[list[Any]]:
+    """Each row with its values bound; a batch repeats values (one timestamp), so memoize."""
+    active = [(i, p, {}) for i, p in enumerate(processors) if p is not None]
+    for row in rows:
+        for i, process, seen in active:
+            value = row[i]
+            if value is None:
+                continue
+            try:
+                row[i] = seen[value]
+            except KeyError:
+                row[i] = seen[value] = process(value)
+            except TypeError:  # an unhashable value
+                row[i] = process(value)
+        yield row
+
+
+def insert_many(
+    conn: Connection, table: Table, rows: Sequence[Mapping[str, Any]], *, new_ids: bool = False
+) -> list[int] | None:
+    """Insert rows that all have the same keys; with ``new_ids``, return their ids in order.
+
+    On SQLite one ``executemany`` on the cursor. The ids are handed out here, counting on from
+    the table's largest id, which is what SQLite itself would do (no AUTOINCREMENT tables): the
+    caller holds the write lock (``BEGIN IMMEDIATE``), so no other writer can take one in
+    between. Core would insert one statement per row to return ids in order. Elsewhere (or
+    when a column has a callable default) a Core insert with RETURNING.
+    """
+    if not rows:
+        return [] if new_ids else None
+    columns = tuple(rows[0])
+    shape = rows[0].keys()
+    if any(r.keys() != shape for r in rows):
+        raise ValueError(f"rows for {table.name} do not all have the same columns")
+    if on_sqlite(conn) and not (new_ids and "id" in columns):
+        try:
+            sql, processors, defaults = _insert_plan(
+                table, (("id",) if new_ids else ()) + columns, None, conn.dialect
+            )
+        except LookupError:
+            pass
+        else:
+            tail = [v for _, v in defaults]
+            ids: list[int] = []
+            if new_ids:
+                first = fetch_all(conn, f"SELECT coalesce(max(id), 0) + 1 FROM {table.name}")[0][0]
+                ids = list(range(first, first + len(rows)))
+                raw = ([i, *(r[c] for c in columns), *tail] for i, r in zip(ids, rows, strict=True))
+            else:
+                raw = ([*(r[c] for c in columns), *tail] for r in rows)
+            params = _bound_rows(processors, raw)
+            cursor = _cursor(conn)
+            try:
+                cursor.executemany(sql, params)
+            finally:
+                cursor.close()
+            return ids if new_ids else None
+    if not new_ids:
+        conn.execute(insert(table), [dict(r) for r in rows])
+        return None
+    out: list[int] = []
+    for start in range(0, len(rows), 2000):
+        chunk = [dict(r) for r in rows[start : start + 2000]]
+        result = conn.execute(
+            insert(table).returning(table.c.id, sort_by_parameter_order=True), chunk
+        )
+        out.extend(r[0] for r in result)
+    return out
+
+
 def insert_one(
     conn: Connection, table: Table, row: Mapping[str, Any], *, returning: str | None = None
 ) -> Any:
@@ -94,11 +170,7 @@ def insert_one(
         except LookupError:
             pass
         else:
-            values = [*row.values(), *(v for _, v in defaults)]
-            params = [
-                v if p is None or v is None else p(v)
-                for p, v in zip(processors, values, strict=True)
-            ]
+            params = _bound(processors, [*row.values(), *(v for _, v in defaults)])
             cursor = _cursor(conn)
             try:
                 cursor.execute(sql, params)

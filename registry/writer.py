@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, insert, select, text
+from sqlalchemy import Connection, select, text
 
 from registry import audit, rawsql, vocab
 from registry.chem import Structure
@@ -230,16 +230,10 @@ def _select_in(
 
 
 def _insert_returning_ids(conn: Connection, model: Any, rows: list[dict[str, Any]]) -> list[int]:
-    """Insert rows and return their ids in order (RETURNING on both SQLite ≥3.35 and PostgreSQL)."""
-    if len(rows) == 1:  # a single add: the cheap path
+    """Insert rows and return their ids in order (one row: the single-add path)."""
+    if len(rows) == 1:
         return [rawsql.insert_one(conn, model.__table__, rows[0], returning="id")]
-    ids: list[int] = []
-    for chunk in _chunks(rows, 2000):
-        result = conn.execute(
-            insert(model).returning(model.id, sort_by_parameter_order=True), chunk
-        )
-        ids.extend(r[0] for r in result)
-    return ids
+    return rawsql.insert_many(conn, model.__table__, rows, new_ids=True) or []
 
 
 def _chunks(items: Sequence[Any], size: int) -> list[Sequence[Any]]:
@@ -317,13 +311,12 @@ def write_entries(
     ]
     if len(coalescence_rows) == 1:
         rawsql.insert_one(conn, CoalescenceObservation.__table__, coalescence_rows[0])
-    elif coalescence_rows:
-        conn.execute(insert(CoalescenceObservation), coalescence_rows)
+    else:
+        rawsql.insert_many(conn, CoalescenceObservation.__table__, coalescence_rows)
     rate_rows = [
         {**r, "measurement_id": mid} for e, mid in zip(entries, ids, strict=True) for r in e.rates
     ]
-    if rate_rows:
-        conn.execute(insert(RatePoint), rate_rows)
+    rawsql.insert_many(conn, RatePoint.__table__, rate_rows)
     if record_history:
         audit.record_many(
             conn,
