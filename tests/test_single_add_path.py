@@ -1,4 +1,4 @@
-"""The cheap path of a single add: cursor-level SQL stores what Core stores; checks can wait."""
+"""Cursor-level SQL on SQLite stores what Core stores (one row and many); an add's check can wait."""
 
 from __future__ import annotations
 
@@ -54,6 +54,39 @@ def test_one_row_insert_stores_the_same_bytes_as_core(database: Database) -> Non
     assert stored[0][1:] == stored[1][1:]  # every column byte for byte as Core wrote it
     assert read_back.structure_ok is False
     assert read_back.created_at.replace(tzinfo=UTC) == at
+
+
+def test_many_rows_get_consecutive_ids_and_the_same_bytes_as_core(database: Database) -> None:
+    at = datetime(2026, 5, 6, 7, 8, 9, 10, tzinfo=UTC)
+    rows = [_compound_row(f"BULK-{i}", at) for i in range(5)]
+    core_rows = [_compound_row(f"CORE-{i}", at) for i in range(5)]
+
+    def work(conn):  # type: ignore[no-untyped-def]
+        first = rawsql.insert_one(
+            conn, Compound.__table__, _compound_row("ONE", at), returning="id"
+        )
+        ids = rawsql.insert_many(conn, Compound.__table__, rows, new_ids=True)
+        conn.execute(insert(Compound), core_rows)
+        return first, ids
+
+    first, ids = database.write(work)
+    assert ids == list(range(first + 1, first + 6))
+    with database.read() as conn:
+        stored = rawsql.fetch_all(
+            conn,
+            "SELECT id, label, name, structure_ok, mol_binary, created_at FROM compound ORDER BY id",
+        )
+    by_label = {row[1]: row for row in stored}
+    for i, mid in enumerate(ids):
+        assert by_label[f"BULK-{i}"][0] == mid  # each row got the id it was given back
+        assert by_label[f"BULK-{i}"][2:] == by_label[f"CORE-{i}"][2:]
+
+
+def test_rows_of_different_shapes_are_refused(database: Database) -> None:
+    now = datetime.now(UTC)
+    rows = [{"label": "A", "created_at": now}, {"label": "B", "name": "b", "created_at": now}]
+    with pytest.raises(ValueError, match="same columns"):
+        database.write(lambda conn: rawsql.insert_many(conn, Compound.__table__, rows))
 
 
 def test_missing_columns_get_their_model_defaults(database: Database) -> None:
