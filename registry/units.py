@@ -260,6 +260,29 @@ def parse_value(
     ``default_unit`` is the unit a column header gave; a unit written in the text wins.
     A value with no unit and no default is an error, never a silent guess.
     """
+    if isinstance(text, (str, int, float)) and not isinstance(text, bool):
+        try:  # spreadsheets repeat their values: read each distinct one once
+            return _parse_cached(type(text), text, quantity, default_unit, spectrometer_mhz)
+        except UnitError:
+            pass  # not cached; read again below so the message names the right field
+    return _parse(text, quantity, field, default_unit, spectrometer_mhz)
+
+
+@lru_cache(maxsize=1 << 16)
+def _parse_cached(
+    kind: type, text: object, quantity: str, default_unit: str | None, mhz: float | None
+) -> ParsedValue:
+    """:func:`_parse` per distinct input; ``kind`` keeps 1, 1.0 and "1" apart."""
+    return _parse(text, quantity, "value", default_unit, mhz)
+
+
+def _parse(
+    text: object,
+    quantity: str,
+    field: str,
+    default_unit: str | None,
+    spectrometer_mhz: float | None,
+) -> ParsedValue:
     if quantity not in CANONICAL:
         raise ValueError(f"unknown quantity kind {quantity!r}")
     raw = "" if text is None else str(text)

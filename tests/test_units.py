@@ -165,3 +165,14 @@ def test_any_text_gives_a_value_or_a_unit_error(text: str, quantity: str) -> Non
         assert isinstance(exc, UnitError)
     else:
         assert math.isfinite(parsed.value)
+
+
+def test_repeated_values_read_once_and_errors_name_their_own_field() -> None:
+    first = parse_value("14.2 kcal/mol", "energy", field="dg")
+    assert parse_value("14.2 kcal/mol", "energy", field="dh") is first  # read once
+    # 1 kcal = 4.184 kJ exactly (thermochemical calorie, NIST SP 811 (2008), B.8)
+    assert first.value == pytest.approx(14.2 * 4.184)
+    for field in ("dnu", "j"):
+        with pytest.raises(UnitError) as caught:
+            parse_value("20", "frequency", field=field)
+        assert caught.value.field == field
