@@ -6,31 +6,17 @@ package ``registry._migrations``; running from a source checkout finds the folde
 
 from __future__ import annotations
 
-import re
 import sys
-from functools import cache
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 from sqlalchemy import inspect, text
 
+from registry.filecheck import script_location, scripts_head
 from registry.store import Database
 
 if TYPE_CHECKING:  # Alembic is loaded only when a migration actually runs (fast start-up)
     from alembic.config import Config
-
-_REVISION_RE = re.compile(r"^revision(?::\s*str)?\s*=\s*[\"']([^\"']+)[\"']", re.M)
-_DOWN_RE = re.compile(r"^down_revision(?::[^=]+)?=\s*(?:None|[\"']([^\"']+)[\"'])", re.M)
-
-
-def script_location() -> str:
-    """Where the migration scripts are, installed or in a checkout."""
-    try:
-        import registry._migrations as pkg
-
-        return str(Path(pkg.__file__).parent)
-    except ImportError:
-        return str(Path(__file__).resolve().parent.parent / "migrations")
 
 
 def alembic_config(database: Database | None = None) -> Config:
@@ -44,28 +30,9 @@ def alembic_config(database: Database | None = None) -> Config:
     return cfg
 
 
-@cache
 def head_revision() -> str:
-    """The newest revision, read from the scripts' own ``revision``/``down_revision`` lines.
-
-    Opening a registry checks its schema against this on every command; reading the small
-    scripts as text avoids loading Alembic. A test checks it agrees with Alembic's answer.
-    """
-    revisions: set[str] = set()
-    parents: set[str] = set()
-    for script in (Path(script_location()) / "versions").glob("*.py"):
-        body = script.read_text(encoding="utf-8")
-        rev = _REVISION_RE.search(body)
-        if not rev:
-            continue
-        revisions.add(rev.group(1))
-        down = _DOWN_RE.search(body)
-        if down and down.group(1):
-            parents.add(down.group(1))
-    heads = sorted(revisions - parents)
-    if len(heads) != 1:
-        return _alembic_head()
-    return heads[0]
+    """The newest revision: from the scripts as text (no Alembic) unless they branch."""
+    return scripts_head() or _alembic_head()
 
 
 def _alembic_head() -> str:

@@ -20,6 +20,7 @@ from sqlalchemy import Connection, Engine, create_engine, event, text
 from sqlalchemy.exc import OperationalError
 
 from registry.errors import DatabaseError
+from registry.filecheck import network_fs_warning
 
 T = TypeVar("T")
 
@@ -128,39 +129,6 @@ def _is_lock_error(exc: OperationalError) -> bool:
     return "locked" in message or "busy" in message or "could not serialize" in message
 
 
-_NETWORK_FS = ("nfs", "cifs", "smb", "fuse.sshfs", "9p", "afs", "ceph", "glusterfs", "lustre")
-
-
-def _mount_fstype(path: Path, mounts_text: str) -> str:
-    """The file-system type of the mount holding ``path`` (longest mount point that contains it)."""
-    target = path.resolve()
-    best_len, fstype = -1, ""
-    for line in mounts_text.splitlines():
-        parts = line.split()
-        if len(parts) < 3:
-            continue
-        mount_point = parts[1].replace("\\040", " ")  # /proc/mounts escapes spaces
-        mount = Path(mount_point)
-        if (target == mount or mount in target.parents) and len(mount_point) > best_len:
-            best_len, fstype = len(mount_point), parts[2]
-    return fstype
-
-
-def _network_fs_warning(path: Path, mounts_file: str = "/proc/mounts") -> str | None:
-    """SQLite's locking is unreliable on NFS/SMB; say so rather than risk a corrupt file."""
-    try:
-        with open(mounts_file, encoding="utf-8") as mounts:
-            fstype = _mount_fstype(path.parent, mounts.read())
-    except OSError:
-        return None
-    if fstype.startswith(_NETWORK_FS):
-        return (
-            f"the registry file is on a network file system ({fstype}) where SQLite's locking is "
-            "unreliable; keep it on a local disk or move the registry to a PostgreSQL server"
-        )
-    return None
-
-
 #: warnings about databases opened since the CLI last asked (see :func:`take_warnings`)
 _WARNINGS_SEEN: list[str] = []
 
@@ -209,7 +177,7 @@ def open_database(db: str, *, must_exist: bool = True) -> Database:
         _attach_sqlite_events(engine)
         database = Database(url=url, engine=engine, is_sqlite=True, path=path)
         if path is not None:
-            warning = _network_fs_warning(path)
+            warning = network_fs_warning(path)
             if warning:
                 database.warnings.append(warning)
                 _WARNINGS_SEEN.append(warning)

@@ -25,7 +25,7 @@ import pytest
 from sqlalchemy import Connection, insert, text
 from sqlalchemy.exc import OperationalError
 
-from registry import api, edits, maintenance, store
+from registry import api, edits, filecheck, maintenance, store
 from registry.entry import EntryInput, NormalizedEntry, normalize_entry
 from registry.errors import DatabaseError
 from registry.models import ImportBatch
@@ -557,23 +557,23 @@ server:/export/chem /mnt/chem nfs4 rw,relatime 0 0
     ],
 )
 def test_the_mount_holding_a_file_is_found(path: str, fstype: str) -> None:
-    assert store._mount_fstype(Path(path).parent, MOUNTS) == fstype
+    assert filecheck.mount_fstype(Path(path).parent, MOUNTS) == fstype
 
 
 def test_network_file_system_warning(tmp_path: Path) -> None:
     mounts = tmp_path / "mounts"
     mounts.write_text(f"/dev/sda1 / ext4 rw 0 0\nsrv:/x {tmp_path} nfs rw 0 0\n")
-    warning = store._network_fs_warning(tmp_path / "r.sqlite", str(mounts))
+    warning = filecheck.network_fs_warning(tmp_path / "r.sqlite", str(mounts))
     assert warning == (
         "the registry file is on a network file system (nfs) where SQLite's locking is "
         "unreliable; keep it on a local disk or move the registry to a PostgreSQL server"
     )
     mounts.write_text(f"/dev/sda1 / ext4 rw 0 0\n/dev/sdb {tmp_path} xfs rw 0 0\n")
-    assert store._network_fs_warning(tmp_path / "r.sqlite", str(mounts)) is None
+    assert filecheck.network_fs_warning(tmp_path / "r.sqlite", str(mounts)) is None
 
 
 def test_the_cli_prints_the_warning_once_per_command(cli, monkeypatch) -> None:  # type: ignore[no-untyped-def]
-    monkeypatch.setattr(store, "_network_fs_warning", lambda _path: "on NFS, careful")
+    monkeypatch.setattr(store, "network_fs_warning", lambda _path: "on NFS, careful")
     for args in (["info"], ["verify"], ["list", "--json"]):
         result = cli(*args)
         assert result.exit_code == 0, result.stderr

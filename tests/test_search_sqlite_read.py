@@ -106,7 +106,7 @@ def test_network_file_system_warning_is_the_store_warning(tmp_path: Path) -> Non
     path = tmp_path / "registry.sqlite"
     ours = network_fs_warning(path, str(mounts))
     assert ours is not None and "(nfs4)" in ours
-    assert ours == store._network_fs_warning(path, str(mounts))
+    assert network_fs_warning is store.network_fs_warning  # one function for both paths
     mounts.write_text("/dev/sda1 / ext4 rw 0 0\n", encoding="utf-8")
     assert network_fs_warning(path, str(mounts)) is None
 

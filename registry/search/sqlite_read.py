@@ -15,17 +15,16 @@ inside the same transaction) or a SQLAlchemy connection to another database (``t
 from __future__ import annotations
 
 import random
-import re
 import sqlite3
 import time
 from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, field
-from functools import cache
 from pathlib import Path
 from typing import Any
 
 from registry.errors import DatabaseError
+from registry.filecheck import network_fs_warning, scripts_head
 
 #: as in :mod:`registry.store` (busy timeout and read retries of a SQLite registry)
 BUSY_TIMEOUT_S = 30.0
@@ -33,10 +32,6 @@ READ_RETRIES = 12
 #: read pages through a memory map (no copy per page read: a search's row fetch visits pages
 #: all over the file); an upper bound of address space, not memory taken
 MMAP_BYTES = 1 << 30
-
-_REVISION_RE = re.compile(r"^revision(?::\s*str)?\s*=\s*[\"']([^\"']+)[\"']", re.M)
-_DOWN_RE = re.compile(r"^down_revision(?::[^=]+)?=\s*(?:None|[\"']([^\"']+)[\"'])", re.M)
-_NETWORK_FS = ("nfs", "cifs", "smb", "fuse.sshfs", "9p", "afs", "ceph", "glusterfs", "lustre")
 
 
 # ---------------------------------------------------------------- SQL on any connection
@@ -229,55 +224,12 @@ def stamped_revision(reader: SQLiteReader) -> str | None:
     return None if row is None else row[0]
 
 
-@cache
 def head_revision() -> str:
-    """The newest migration revision, read from the scripts as :func:`registry.migrate.head_revision`
-    reads them (that module imports SQLAlchemy; a test checks both agree)."""
-    try:
-        import registry._migrations as pkg  # type: ignore[import-not-found]
-
-        location = Path(pkg.__file__).parent
-    except ImportError:
-        location = Path(__file__).resolve().parent.parent.parent / "migrations"
-    revisions: set[str] = set()
-    parents: set[str] = set()
-    for script in (location / "versions").glob("*.py"):
-        body = script.read_text(encoding="utf-8")
-        rev = _REVISION_RE.search(body)
-        if not rev:
-            continue
-        revisions.add(rev.group(1))
-        down = _DOWN_RE.search(body)
-        if down and down.group(1):
-            parents.add(down.group(1))
-    heads = sorted(revisions - parents)
-    if len(heads) != 1:  # branches or no scripts: let Alembic decide
+    """The newest migration revision, as :func:`registry.migrate.head_revision` gives it; only
+    scripts that branch need Alembic (and with it SQLAlchemy)."""
+    head = scripts_head()
+    if head is None:
         from registry import migrate
 
         return migrate.head_revision()
-    return heads[0]
-
-
-def network_fs_warning(path: Path, mounts_file: str = "/proc/mounts") -> str | None:
-    """The warning :mod:`registry.store` gives for a registry on NFS/SMB (same text)."""
-    try:
-        with open(mounts_file, encoding="utf-8") as mounts:
-            text = mounts.read()
-    except OSError:
-        return None
-    target = path.parent.resolve()
-    best_len, fstype = -1, ""
-    for line in text.splitlines():
-        parts = line.split()
-        if len(parts) < 3:
-            continue
-        mount_point = parts[1].replace("\\040", " ")
-        mount = Path(mount_point)
-        if (target == mount or mount in target.parents) and len(mount_point) > best_len:
-            best_len, fstype = len(mount_point), parts[2]
-    if fstype.startswith(_NETWORK_FS):
-        return (
-            f"the registry file is on a network file system ({fstype}) where SQLite's locking is "
-            "unreliable; keep it on a local disk or move the registry to a PostgreSQL server"
-        )
-    return None
+    return head
