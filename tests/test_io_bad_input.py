@@ -285,3 +285,60 @@ def test_a_small_file_lists_every_bad_row_once(database: Database, tmp_path: Pat
     )
     with database.read() as conn:
         assert conn.exec_driver_sql("SELECT count(*) FROM measurement").scalar() == 0
+
+
+def _ods_with_formula(path: Path) -> Path:
+    """An .ods sheet (odfpy) whose barrier cell holds a formula, after a repeated empty column."""
+    from odf.opendocument import OpenDocumentSpreadsheet
+    from odf.table import Table, TableCell, TableRow
+    from odf.text import P
+
+    doc = OpenDocumentSpreadsheet()
+    table = Table(name="entries")
+
+    def row(*cells: TableCell) -> TableRow:
+        tr = TableRow()
+        for cell in cells:
+            tr.addElement(cell)
+        return tr
+
+    def text(value: str) -> TableCell:
+        cell = TableCell(valuetype="string")
+        cell.addElement(P(text=value))
+        return cell
+
+    def number(value: float, formula: str | None = None) -> TableCell:
+        extra = {"formula": formula} if formula else {}
+        cell = TableCell(valuetype="float", value=value, **extra)
+        cell.addElement(P(text=str(value)))
+        return cell
+
+    headers = ["compound", "method", "Tc (K)", "Δν (Hz)", "ΔG‡ (kJ/mol)"]
+    table.addElement(row(*(text(h) for h in headers)))
+    table.addElement(row(text("G1"), text("coalescence"), number(300), number(20), number(62.0)))
+    table.addElement(
+        row(
+            text("G2"),
+            text("coalescence"),
+            number(300),
+            number(20),
+            number(62.5, formula="of:=0.0191*[.C3]*(23.76+LN([.C3]/[.D3]))"),
+        )
+    )
+    doc.spreadsheet.addElement(table)
+    doc.save(str(path))
+    return path
+
+
+def test_formula_cells_in_an_ods_file_are_refused(database: Database, tmp_path: Path) -> None:
+    path = _ods_with_formula(tmp_path / "formula.ods")
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path)
+    assert only_problem(info) == (
+        "entries",
+        3,
+        "ΔG‡ (kJ/mol)",
+        "=0.0191*[.C3]*(23.76+LN([.C3]/[.D3]))",
+    )
+    assert "formula" in info.value.problems[0].reason
+    assert measurements(database) == 0

@@ -17,6 +17,7 @@ import zipfile
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
+from xml.etree import ElementTree
 
 from registry.errors import FileFormatError
 
@@ -156,8 +157,7 @@ def _read_workbook(path: Path, data: bytes, sheet: str | None, suffix: str) -> l
             str(path), f"no sheet named {sheet!r}; the sheets are {', '.join(names)}", sheet
         )
     wanted = [sheet] if sheet is not None else names
-    formulas = _xlsx_formulas(data, wanted) if suffix in (".xlsx", ".xlsm") else {}
-    has_ods_formulas = suffix == ".ods" and _ods_has_formulas(data)
+    formulas = _ods_formulas(data, wanted) if suffix == ".ods" else _xlsx_formulas(data, wanted)
     out = []
     for name in wanted:
         try:
@@ -171,10 +171,6 @@ def _read_workbook(path: Path, data: bytes, sheet: str | None, suffix: str) -> l
             raw.merged = list(book.get_sheet_by_name(name).merged_cell_ranges or [])
         except Exception:  # merged ranges are not known for every format
             raw.merged = []
-        if has_ods_formulas:
-            raw.notes.append(
-                f"sheet {name!r}: the .ods file holds formulas; their computed values were read"
-            )
         out.append(raw)
     return out
 
@@ -230,12 +226,49 @@ def _xlsx_formulas(data: bytes, sheets: list[str]) -> dict[str, dict[tuple[int, 
     return out
 
 
-def _ods_has_formulas(data: bytes) -> bool:
+_ODS_TABLE = "{urn:oasis:names:tc:opendocument:xmlns:table:1.0}"
+
+
+def _ods_formulas(data: bytes, sheets: list[str]) -> dict[str, dict[tuple[int, int], str]]:
+    """Cells holding formulas, per sheet, from an .ods file's ``content.xml`` (calamine hides them).
+
+    Rows and cells repeat with ``number-rows-repeated`` / ``number-columns-repeated``; covered
+    (merged) cells take their column too, so positions are those of the sheet's grid.
+    """
+    out: dict[str, dict[tuple[int, int], str]] = {}
+    t = _ODS_TABLE
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as zf:
-            return b"table:formula=" in zf.read("content.xml")
+            content = zf.read("content.xml")
     except (KeyError, zipfile.BadZipFile):
-        return False
+        return out
+    if b"table:formula=" not in content:
+        return {name: {} for name in sheets}
+    cells: dict[tuple[int, int], str] | None = None
+    row, col = -1, 0
+    try:
+        for event, el in ElementTree.iterparse(io.BytesIO(content), events=("start", "end")):
+            tag = el.tag
+            if event == "start":
+                if tag == f"{t}table":
+                    name = el.get(f"{t}name", "")
+                    cells = out.setdefault(name, {}) if name in sheets else None
+                    row = -1
+                elif tag == f"{t}table-row":
+                    row, col = row + 1, 0
+                continue
+            if tag == f"{t}table-row":
+                row += int(el.get(f"{t}number-rows-repeated", "1")) - 1
+                el.clear()
+            elif tag in (f"{t}table-cell", f"{t}covered-table-cell"):
+                formula = el.get(f"{t}formula")
+                if formula is not None and cells is not None:
+                    text = formula.split(":", 1)[1] if formula.startswith("of:") else formula
+                    cells[(row, col)] = text if text.startswith("=") else "=" + text
+                col += int(el.get(f"{t}number-columns-repeated", "1"))
+    except ElementTree.ParseError:
+        return out
+    return out
 
 
 def _xml_unescape(text: str) -> str:
