@@ -2,10 +2,10 @@
 # Build a fresh demo registry from seed_demo/ and walk through the main commands.
 set -euo pipefail
 cd "$(dirname "$0")/.."
+rm -rf demo_out  # every run starts from nothing (the backup step refuses to overwrite)
 mkdir -p demo_out
 export FLUXLEDGER_DB="$PWD/demo_out/demo.sqlite"
 export FLUXLEDGER_USER="demo"
-rm -f "$FLUXLEDGER_DB" "$FLUXLEDGER_DB-wal" "$FLUXLEDGER_DB-shm"
 step() { echo; echo "\$ fluxledger $*"; fluxledger "$@"; }
 # a step whose exit status 1 means "findings in the data" (expected for the planted slips)
 step_findings() { echo; echo "\$ fluxledger $*"; fluxledger "$@" || [ $? -eq 1 ]; }
