@@ -20,6 +20,7 @@ from registry import audit, rawsql, vocab
 from registry.chem import Structure
 from registry.entry import NormalizedEntry
 from registry.errors import FluxledgerError
+from registry.lookup import rows_where_in
 from registry.models import (
     CoalescenceObservation,
     Compound,
@@ -138,10 +139,10 @@ def resolve_compounds(
     labels = {e.compound.get("label") for e in entries if e.compound.get("label")}
     by_key: dict[str, tuple[int, str | None]] = {}
     by_label: dict[str, tuple[int, str | None]] = {}
-    columns = ("id", "inchikey", "label")
-    for cid, key, label in _select_in(conn, Compound, columns, "inchikey", sorted(keys)):
+    columns = (Compound.id, Compound.inchikey, Compound.label)
+    for cid, key, label in rows_where_in(conn, columns, Compound.inchikey, keys):
         by_key[key] = (cid, label)
-    for cid, key, label in _select_in(conn, Compound, columns, "label", sorted(labels)):
+    for cid, key, label in rows_where_in(conn, columns, Compound.label, labels):
         by_label[label] = (cid, key)
     # a compound known only by name (no structure, no label) is matched by that name
     names = {
@@ -214,21 +215,6 @@ def resolve_compounds(
     return ids, len(new_rows)
 
 
-def _select_in(
-    conn: Connection, model: Any, columns: Sequence[str], key: str, values: Sequence[Any]
-) -> list[tuple[Any, ...]]:
-    """Rows (``columns``) of ``model`` whose ``key`` is one of ``values``, in chunks."""
-    if not values:
-        return []
-    if rawsql.on_sqlite(conn):
-        return rawsql.fetch_in(conn, model.__table__, columns, key, values)
-    rows: list[tuple[Any, ...]] = []
-    cols = [getattr(model, c) for c in columns]
-    for chunk in _chunks(values, rawsql.IN_CHUNK):
-        rows.extend(conn.execute(select(*cols).where(getattr(model, key).in_(chunk))))
-    return rows
-
-
 def _insert_returning_ids(conn: Connection, model: Any, rows: list[dict[str, Any]]) -> list[int]:
     """Insert rows and return their ids in order (one row: the single-add path)."""
     if len(rows) == 1:
@@ -251,8 +237,8 @@ def resolve_processes(
     }
     found: dict[tuple[int, str, str, str], int] = {}
     cids = sorted({w[0] for w in wanted})
-    columns = ("id", "compound_id", "kind", "sites", "nucleus")
-    for pid, cid, kind, sites, nucleus in _select_in(conn, Process, columns, "compound_id", cids):
+    columns = (Process.id, Process.compound_id, Process.kind, Process.sites, Process.nucleus)
+    for pid, cid, kind, sites, nucleus in rows_where_in(conn, columns, Process.compound_id, cids):
         found[(cid, kind, sites, nucleus)] = pid
     missing = sorted(w for w in wanted if w not in found)
     if missing:

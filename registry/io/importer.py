@@ -32,9 +32,9 @@ from registry.errors import FileFormatError, ImportRowError, RowProblem, UnitErr
 from registry.io import parallel, upsert
 from registry.io.cells import EMPTY_MARKERS, cell_text, is_formula_text, looks_numeric
 from registry.io.headers import EXTRA_PREFIX, FIELD_TITLES
-from registry.io.lookup import rows_where_in
 from registry.io.mapping import Column, SheetPlan, load_mapping, plan_sheet
 from registry.io.readers import RawSheet, column_letter, read_file
+from registry.lookup import rows_where_in
 from registry.models import Compound, ImportBatch, Measurement
 from registry.store import Database, current_user
 from registry.units import parse_value

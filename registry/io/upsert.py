@@ -25,7 +25,7 @@ from sqlalchemy import Connection, delete, insert, select, update
 from registry import audit, vocab
 from registry.chem import Structure
 from registry.entry import NormalizedEntry
-from registry.io.lookup import rows_where_in
+from registry.lookup import rows_where_in
 from registry.models import CoalescenceObservation, Compound, Measurement, Process, RatePoint
 from registry.writer import solvent_index
 

@@ -6,9 +6,8 @@ import math
 
 import pytest
 
-from registry import api
+from registry import api, lookup
 from registry.entry import EntryInput
-from registry.io import lookup
 from registry.models import Compound
 from registry.store import Database
 

@@ -3,7 +3,8 @@
 An import asks "which of these 100,000 InChIKeys and labels are registered already?". Asking in
 chunks of 500 bound values compiles and runs 200 statements per column; when the keys are a good
 part of the table, one pass over the table's few narrow columns costs a fraction of that (and on
-an empty registry nothing at all).
+an empty registry nothing at all). A single add asks for one key: that goes straight to SQLite's
+cursor (:mod:`registry.rawsql`) without counting the table first.
 """
 
 from __future__ import annotations
@@ -14,8 +15,12 @@ from typing import Any
 from sqlalchemy import Connection, func, select
 from sqlalchemy.sql import ColumnElement
 
+from registry import rawsql
+
 #: look up by IN lists of this many values
-IN_CHUNK = 500
+IN_CHUNK = rawsql.IN_CHUNK
+#: up to this many keys (a single add) go straight to an IN list, without counting the table
+FEW_KEYS = 50
 #: scan the whole table when there are at least this many keys per row of it
 SCAN_KEYS_PER_ROW = 0.25
 
@@ -35,14 +40,18 @@ def rows_where_in(
     if not wanted:
         return []
     table = key.table  # type: ignore[attr-defined]
-    size = conn.execute(select(func.count()).select_from(table)).scalar_one()
-    if size == 0:
-        return []
-    if len(wanted) >= SCAN_KEYS_PER_ROW * size:
-        at = list(columns).index(key)
-        keep = set(wanted)
-        query = select(*columns).where(key.is_not(None), *extra)
-        return [tuple(r) for r in conn.execute(query) if r[at] in keep]
+    if len(wanted) > FEW_KEYS:
+        size = conn.execute(select(func.count()).select_from(table)).scalar_one()
+        if size == 0:
+            return []
+        if len(wanted) >= SCAN_KEYS_PER_ROW * size:
+            at = list(columns).index(key)
+            keep = set(wanted)
+            query = select(*columns).where(key.is_not(None), *extra)
+            return [tuple(r) for r in conn.execute(query) if r[at] in keep]
+    if not extra and rawsql.on_sqlite(conn) and all(c.table is table for c in columns):
+        names = [c.expression.key for c in columns]  # type: ignore[attr-defined]
+        return rawsql.fetch_in(conn, table, names, key.expression.key, wanted)  # type: ignore[attr-defined]
     out: list[tuple[Any, ...]] = []
     for i in range(0, len(wanted), IN_CHUNK):
         chunk = wanted[i : i + IN_CHUNK]
