@@ -73,7 +73,8 @@ def test_the_readme_script_example_runs(tmp_path: Path) -> None:
     db = tmp_path / "group.sqlite"
     api.init_registry(str(db))
     code = code.replace('"group.sqlite"', repr(str(db)))
-    # invented rows: Tc 52 °C, Δν 40 Hz at 400 MHz gives ΔG‡ ≈ 16.2 kcal/mol (Gutowsky–Holm + Eyring, by hand)
+    # invented rows: Tc 52 °C, Δν 40 Hz gives ΔG‡ ≈ 16.2 kcal/mol (Gutowsky–Holm k_c = πΔν/√2,
+    # J. Chem. Phys. 25, 1228 (1956), in the Eyring equation with CODATA constants), so 19.0 is an error
     rows = [
         SimpleNamespace(smiles="CC(=O)N(C)C", tc=52, dnu=40, dg=16.0, doi="10.0000/invented.1"),
         SimpleNamespace(smiles="CN(C)C=O", tc=52, dnu=40, dg=19.0, doi="10.0000/invented.2"),

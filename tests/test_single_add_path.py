@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+import math
 from datetime import UTC, datetime
 
 import pytest
+from scipy import constants as C
 from sqlalchemy import insert, select
 
 from registry import api, audit, rawsql
@@ -129,7 +131,8 @@ def test_lookup_in_chunks_finds_every_value(database: Database) -> None:
 
 
 def _entry(i: int, dg: str = "16.0 kcal/mol") -> EntryInput:
-    # Δν 0.10 ppm at 400 MHz, Tc 300 K: ΔG‡ ≈ 14.9 kcal/mol (Gutowsky–Holm + Eyring, computed by hand from the equations), so 16.0 is flagged
+    # Δν 0.10 ppm at 400 MHz (40 Hz), Tc 300 K: ΔG‡ = 14.9 kcal/mol (DG_EXPECTED_KCAL), so the
+    # reported 16.0 kcal/mol is flagged
     return EntryInput(
         method="coalescence",
         smiles="CC(=O)N(C)C",
@@ -148,9 +151,21 @@ def _findings(database: Database, mid: int) -> list[dict[str, object]]:
     return api.get_measurement(database, mid)["findings"]
 
 
+#: Gutowsky–Holm k_c = πΔν/√2 (H. S. Gutowsky, C. H. Holm, J. Chem. Phys. 25, 1228 (1956)) in
+#: the Eyring equation, ΔG‡ = RT·ln(k_B·T/(h·k_c)), with CODATA constants (scipy.constants) and
+#: the thermochemical calorie, 4.184 J (NIST SP 811 (2008), B.8)
+DG_EXPECTED_KCAL = (
+    C.R * 300 * math.log(C.Boltzmann * 300 / (C.Planck * math.pi * 40 / math.sqrt(2))) / 4184
+)
+
+
 def test_an_add_is_checked_at_once_by_default(database: Database) -> None:
     mid = api.add_measurement(database, _entry(0))
-    assert any(f["rule_id"] == "coalescence-barrier" for f in _findings(database, mid))
+    found = [f for f in _findings(database, mid) if f["rule_id"] == "coalescence-barrier"]
+    assert len(found) == 1
+    assert found[0]["unit"] == "kcal/mol"  # said in the unit the user wrote
+    assert found[0]["recomputed"] == pytest.approx(DG_EXPECTED_KCAL, abs=0.005)
+    assert found[0]["reported"] == 16.0
 
 
 def test_deferred_checks_run_once_when_the_block_ends(database: Database) -> None:
