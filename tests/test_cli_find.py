@@ -229,11 +229,9 @@ def test_real_process_uses_the_cache_file(filled, db_path: Path) -> None:  # typ
     assert cache.stat().st_mtime_ns == stamp  # reused, not rewritten
 
 
-def test_csv_writes_non_finite_numbers_empty(capsys) -> None:  # type: ignore[no-untyped-def]
-    from registry.cli.find import _write_csv
+def test_csv_writes_non_finite_numbers_empty() -> None:
+    from registry.search.listing import csv_lines
 
-    _write_csv([(1, "a", 2.5, None), (2, "b", float("inf"), 3), (3, "c", float("nan"), 4)],
-               ["id", "name", "x", "n"])  # fmt: skip
-    assert capsys.readouterr().out == "id,name,x,n\n1,a,2.5,\n2,b,,3\n3,c,,4\n"
-    _write_csv([(1, "a", 2.5)], ["id", "name", "x"])
-    assert capsys.readouterr().out == "id,name,x\n1,a,2.5\n"
+    lines = csv_lines([(1, "a", 2.5, None), (2, "b", float("inf"), 3), (3, "c", float("nan"), 4)])
+    assert "".join(lines) == "1,a,2.5,\n2,b,,3\n3,c,,4\n"
+    assert csv_lines([(1, "a, b", 2.5)]) == ['1,"a, b",2.5\n']  # one line per row, quoted

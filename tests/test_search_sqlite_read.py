@@ -226,16 +226,23 @@ def test_filters_select_what_the_orm_query_selects(registry_file: Path, spec) ->
 def test_both_row_paths_and_sorting_agree(
     registry_file: Path, monkeypatch, scan_above, sort
 ) -> None:  # type: ignore[no-untyped-def]
+    """The SQL row paths (scan, fetch by id) give what the measurement listing gives."""
     query = build_query(motif=get_motif("amide"))
     database = api.open_registry(str(registry_file))
     try:
         reference = find(database, query=query, sort=sort)
+        _without_listing(monkeypatch)
         monkeypatch.setattr(engine_module, "_rows_for", _forced(scan_above))
         forced = find(database, query=query, sort=sort, limit=7)
     finally:
         database.dispose()
     assert forced.rows == reference.rows[:7]
     assert forced.total_rows == reference.total_rows > 7
+
+
+def _without_listing(monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    """Search as on a server database: rows through SQL, no measurement listing."""
+    monkeypatch.setattr(engine_module, "_listing_for", lambda *_args: None)
 
 
 def _forced(threshold: int):  # type: ignore[no-untyped-def]
@@ -316,6 +323,7 @@ def test_rows_without_sqlite_json_functions(registry_file: Path, monkeypatch) ->
             return real(conn, sql, params)
 
         monkeypatch.setattr(sqlite_read, "fetch", no_json)
+        _without_listing(monkeypatch)
         for threshold in (0, 10**9):
             monkeypatch.setattr(engine_module, "_rows_for", _forced(threshold))
             again = find(reader, query=query, filters=make_filters(solvent="CDCl3"))

@@ -26,7 +26,6 @@ FIND_COLUMNS = [
     "status",
     "reference",
 ]
-CSV_COLUMNS = [*FIND_COLUMNS[:1], "compound_id", *FIND_COLUMNS[1:], "smiles", "dg_err_kj_mol"]
 
 motifs_app = typer.Typer(
     help="The motif library: built-in motifs and the registry's own (list, show, add, remove).",
@@ -145,6 +144,7 @@ def find(
             database, query=query, similar=similar, min_similarity=min_similarity,
             filters=filters, sort=sort, limit=None if compounds else limit,
             atoms=as_json and not no_atoms, threads=threads, rebuild_index=rebuild_index,
+            output="csv" if as_csv and not compounds else "rows",
         )  # fmt: skip
     finally:
         if isinstance(database, SQLiteReader):  # (the full API's warnings print at the boundary)
@@ -159,59 +159,39 @@ def find(
     if as_json:
         print_json(result.as_dict())
         return
-    columns = CSV_COLUMNS if as_csv else FIND_COLUMNS
-    if similar is not None:
-        columns = [*columns[:2], "similarity", *columns[2:]]
     if as_csv:
-        _write_csv(result.column_values(columns), columns)
+        _write_bytes(result.write_csv)
     else:  # a compound without a label is shown by its name
+        columns = FIND_COLUMNS
+        if similar is not None:
+            columns = [*columns[:2], "similarity", *columns[2:]]
         rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in result.rows]
         render_rows(rows, columns=columns)
     typer.echo(_summary(result), err=True)
 
 
-def _write_csv(table: list[tuple[Any, ...]], columns: list[str]) -> None:
-    """The same CSV as :func:`registry.cli.output.csv_text`, written in one go from the result
-    table (no dict per row): a motif search can return tens of thousands of rows of plain
-    numbers and text. A value that is not a finite number is written empty (checked per
-    column first, which is cheap)."""
-    import csv
+def _write_bytes(write: Any) -> None:
+    """Let ``write(binary_stream)`` write UTF-8 to standard output (through its buffer when it
+    has one: a motif search's CSV can be megabytes of ready lines)."""
+    import io
     import sys
 
-    if not _all_finite(table):
-        table = [tuple(_plain(v) for v in t) for t in table]
-    writer = csv.writer(sys.stdout, lineterminator="\n")
-    writer.writerow(columns)
-    writer.writerows(table)
-
-
-def _plain(value: Any) -> Any:
-    import math
-
-    return None if isinstance(value, float) and not math.isfinite(value) else value
-
-
-def _all_finite(table: list[tuple[Any, ...]]) -> bool:
-    """No NaN or infinity in any numeric column (an exact sum of a column is finite then)."""
-    import math
-
-    for column in zip(*table, strict=True):
-        try:
-            total = math.fsum([v for v in column if v is not None])
-        except TypeError:  # a column of text: nothing to check
-            continue
-        except OverflowError:
-            return False
-        if not math.isfinite(total):
-            return False
-    return True
+    sys.stdout.flush()
+    buffer = getattr(sys.stdout, "buffer", None)
+    if buffer is not None:
+        write(buffer)
+        buffer.flush()
+        return
+    sink = io.BytesIO()
+    write(sink)
+    sys.stdout.write(sink.getvalue().decode("utf-8"))
 
 
 def _summary(result: Any) -> str:
     s = result.stats
     shown = (
-        f"showing {len(result.table):,} of {result.total_rows:,} measurements (drop --limit to see all)"
-        if len(result.table) < result.total_rows
+        f"showing {result.returned:,} of {result.total_rows:,} measurements (drop --limit to see all)"
+        if result.returned < result.total_rows
         else f"{result.total_rows:,} measurement(s)"
     )
     return (

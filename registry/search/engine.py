@@ -21,13 +21,21 @@ from dataclasses import dataclass, field
 from functools import cached_property
 from itertools import repeat
 from operator import itemgetter
-from typing import Any
+from typing import Any, BinaryIO
 
 import numpy as np
 
 from registry.errors import UsageError
 from registry.search.filters import Filters, Where
 from registry.search.index import ScreenIndex, load_index
+from registry.search.listing import (
+    CSV_COLUMNS,
+    ROW_COLUMNS,
+    ROWS_SQL,
+    Listing,
+    csv_lines,
+    header_line,
+)
 from registry.search.patterns import Query
 
 #: below this many candidates a plain loop beats setting up a threaded library
@@ -75,8 +83,9 @@ class FindResult:
     """Measurements on matching compounds, the compounds themselves, and how the search went.
 
     The measurements are kept as a table (``columns`` + one tuple per row); :attr:`rows` gives
-    them as dicts, built on first use, while the CLI's CSV reads the table as it is (for a
-    common motif that saves a dict per measurement on every cold run).
+    them as dicts, built on first use. A search run for CSV output (``find(output="csv")``)
+    may carry its rows as ready CSV lines instead (:attr:`csv_body`, from the measurement
+    listing; ``table`` is then empty and ``returned`` counts the lines).
     """
 
     query: dict[str, Any]
@@ -86,6 +95,12 @@ class FindResult:
     stats: SearchStats
     warnings: list[str]
     total_rows: int  # before ``limit``
+    returned: int = -1  # rows after ``limit`` (len(table) unless the rows are CSV lines)
+    csv_body: bytes | None = None
+
+    def __post_init__(self) -> None:
+        if self.returned < 0:
+            self.returned = len(self.table)
 
     @cached_property
     def rows(self) -> list[dict[str, Any]]:
@@ -103,12 +118,29 @@ class FindResult:
             return list(map(itemgetter(*(where[n] for n in names)), self.table))
         return [tuple(t[where[n]] if n in where else None for n in names) for t in self.table]
 
+    def csv_columns(self) -> list[str]:
+        """The columns of :meth:`write_csv` (a similarity search adds ``similarity`` third)."""
+        columns = list(CSV_COLUMNS)
+        if "similarity" in self.columns:
+            columns.insert(2, "similarity")
+        return columns
+
+    def write_csv(self, out: BinaryIO) -> None:
+        """The measurements as CSV (UTF-8, ``\\n`` line ends, a header line; a value that is
+        not a finite number is written empty)."""
+        columns = self.csv_columns()
+        out.write(header_line(columns).encode("utf-8"))
+        if self.csv_body is not None:
+            out.write(self.csv_body)
+        else:
+            out.write("".join(csv_lines(self.column_values(columns))).encode("utf-8"))
+
     def as_dict(self) -> dict[str, Any]:
         return {
             "query": self.query,
             "counts": {
                 "measurements": self.total_rows,
-                "returned": len(self.table),
+                "returned": self.returned,
                 "compounds_matched": self.stats.matched,
                 "compounds_with_measurements": self.stats.with_rows,
                 "compounds_searched": self.stats.searched,
@@ -336,25 +368,25 @@ def tanimoto(fps: np.ndarray, query: np.ndarray) -> np.ndarray:
 # ---------------------------------------------------------------- the whole search
 
 
-_ALLOWED: dict[tuple, np.ndarray] = {}
+_ALLOWED: dict[tuple, Any] = {}
 
 
-def _allowed_compounds(database: Any, conn: Any, where: Where, filters: Filters) -> np.ndarray:
-    """:func:`_filtered_compounds`, remembered in-process while the registry file is unchanged."""
-    from registry.search.index import file_state
-
-    state = file_state(database)
+def _remembered(
+    database: Any, state: tuple[int, ...] | None, filters: Filters, kind: str, compute: Any
+) -> Any:
+    """``compute()``, remembered in-process while the registry file is unchanged (``state`` is
+    the file state taken before the search's read transaction began)."""
     if state is None:
-        return _filtered_compounds(conn, where, filters)
-    key = (database.url, state, repr(sorted(filters.describe().items())))
+        return compute()
+    key = (database.url, state, kind, repr(sorted(filters.describe().items())))
     if key not in _ALLOWED:
         if len(_ALLOWED) > 32:
             _ALLOWED.clear()
-        _ALLOWED[key] = _filtered_compounds(conn, where, filters)
+        _ALLOWED[key] = compute()
     return _ALLOWED[key]
 
 
-def _filtered_compounds(conn: Any, where: Where, filters: Filters) -> np.ndarray:
+def _filtered_compounds(conn: Any, where: Where) -> np.ndarray:
     """Compounds with at least one measurement passing the filters (no joins unless needed)."""
     from registry.search.sqlite_read import fetch
 
@@ -367,34 +399,29 @@ def _filtered_compounds(conn: Any, where: Where, filters: Filters) -> np.ndarray
     return np.fromiter((r[0] for r in rows), dtype=np.int64, count=len(rows))
 
 
-#: the measurement listing columns (as ``registry.api.LIST_COLUMNS``, which a test compares)
-#: plus what search filters and highlights need; m = measurement, c = compound, p = process
-ROW_COLUMNS: dict[str, str] = {
-    "id": "m.id",
-    "label": "m.label",
-    "compound": "c.label",
-    "compound_name": "c.name",
-    "smiles": "c.smiles_canonical",
-    "process": "p.kind",
-    "nucleus": "p.nucleus",
-    "method": "m.method",
-    "solvent": "m.solvent_text",
-    "field_mhz": "m.field_mhz",
-    "dg_kj_mol": "m.dg_kj_mol",
-    "dg_err_kj_mol": "m.dg_err_kj_mol",
-    "dg_t_k": "m.dg_t_k",
-    "dh_kj_mol": "m.dh_kj_mol",
-    "ds_j_mol_k": "m.ds_j_mol_k",
-    "status": "m.status",
-    "reference": "m.reference",
-    "compound_id": "m.compound_id",
-    "t_min_k": "m.t_min_k",
-    "t_max_k": "m.t_max_k",
-}
-_ROWS_SQL = (
-    f"SELECT {', '.join(ROW_COLUMNS.values())} FROM measurement m "
-    "JOIN compound c ON c.id = m.compound_id LEFT OUTER JOIN process p ON p.id = m.process_id"
-)
+def _filtered_measurements(conn: Any, where: Where) -> tuple[np.ndarray, np.ndarray]:
+    """The measurements passing the filters and their compounds: two sorted, unique id arrays."""
+    from registry.search.sqlite_read import fetch
+
+    join = " LEFT OUTER JOIN process p ON p.id = m.process_id" if where.needs_process else ""
+    rows = fetch(
+        conn,
+        f"SELECT m.id, m.compound_id FROM measurement m{join} WHERE {where.sql()} ORDER BY m.id",
+        where.params,
+    )
+    ids = np.fromiter((r[0] for r in rows), dtype=np.int64, count=len(rows))
+    compounds = np.fromiter((r[1] for r in rows), dtype=np.int64, count=len(rows))
+    return ids, _unique(compounds)
+
+
+def _unique(values: np.ndarray) -> np.ndarray:
+    """Sorted distinct values (np.unique would pull in numpy.ma, ~0.1 s of a cold run)."""
+    if values.size == 0:
+        return values
+    ordered = np.sort(values)
+    return ordered[np.concatenate(([True], ordered[1:] != ordered[:-1]))]
+
+
 #: compound ids per bound-parameter IN list on servers
 _CHUNK = 2000
 
@@ -418,7 +445,7 @@ def _rows_for(
     ids = list(compound_ids)
     if not ids:
         return []
-    base = f"{_ROWS_SQL} WHERE {where.sql()}"
+    base = f"{ROWS_SQL} WHERE {where.sql()}"
     if dialect_name(conn) == "sqlite":
         import sqlite3
 
@@ -443,12 +470,18 @@ def _rows_for(
     return [tuple(r) for r in raw]
 
 
-def _sort(table: list[tuple[Any, ...]], columns: Sequence[str], sort: str | None) -> None:
-    """Sort in place; rows without the value go last, ties keep measurement-id order."""
-    key_name = (sort or "id").strip().lower()
+def _sort_key(sort: str | None, similar: bool) -> tuple[str, bool]:
+    """(column, descending) of a ``--sort`` text; the default is id (similarity for --similar)."""
+    key_name = (sort or ("similarity" if similar else "id")).strip().lower()
     if key_name not in SORT_KEYS:
         raise UsageError(f"--sort {sort!r}: choose one of {', '.join(SORT_KEYS)}")
-    column, descending = SORT_KEYS[key_name]
+    return SORT_KEYS[key_name]
+
+
+def _sort(
+    table: list[tuple[Any, ...]], columns: Sequence[str], column: str, descending: bool
+) -> None:
+    """Sort in place; rows without the value go last, ties keep measurement-id order."""
     table.sort(key=itemgetter(columns.index("id")))  # never NULL; nearly sorted already
     if column == "id" or column not in columns:  # a column the rows lack: all 'missing'
         return
@@ -464,6 +497,16 @@ def _sort(table: list[tuple[Any, ...]], columns: Sequence[str], sort: str | None
     table[:] = present + missing
 
 
+def _listing_for(
+    database: Any, conn: Any, state: tuple[int, ...] | None, need_rows: bool, rebuild: bool
+) -> Listing | None:
+    """The measurement listing of a SQLite registry (None elsewhere; tests replace this to
+    compare the listing with the plain SQL path)."""
+    from registry.search.listing import load_listing
+
+    return load_listing(database, conn, state, need_rows=need_rows, rebuild=rebuild)
+
+
 def find(
     database: Any,
     *,
@@ -476,13 +519,17 @@ def find(
     atoms: bool = False,
     threads: int | None = None,
     rebuild_index: bool = False,
+    output: str = "rows",
 ) -> FindResult:
     """Every measurement on a compound that matches ``query`` (or is similar to ``similar``).
 
     Nothing is capped: ``limit`` only shortens the returned rows (``total_rows`` says how many
     there were). ``atoms`` adds the matched atom indices of each compound for highlighting.
+    ``output="csv"`` is for a caller that will only call :meth:`FindResult.write_csv`: on a
+    SQLite registry the rows then stay ready CSV lines of the measurement listing.
     """
     from registry.search import filters as filtering
+    from registry.search.cachefile import file_state
     from registry.search.sqlite_read import use_memory_map
 
     if (query is None) == (similar is None):
@@ -491,6 +538,9 @@ def find(
         raise UsageError(f"--min-similarity {min_similarity}: give a number in (0, 1]")
     if limit is not None and limit <= 0:
         raise UsageError(f"--limit {limit}: give a positive whole number")
+    if output not in ("rows", "csv"):
+        raise ValueError(f"output={output!r}: 'rows' or 'csv'")
+    column, descending = _sort_key(sort, similar is not None)
     filters = filters or Filters()
     stats = SearchStats()
     warnings: list[str] = []
@@ -499,16 +549,34 @@ def find(
     warnings += index.notes
     stats.indexed = len(index)
     stats.seconds["index"] = time.perf_counter() - t0
+    state = file_state(database)  # before the read transaction (see load_listing)
     with database.read() as conn:
         t1 = time.perf_counter()
         use_memory_map(conn)
         where = filtering.conditions(conn, filters)
+        listing = None
+        if similar is None:
+            need_rows = output == "rows" or atoms
+            listing = _listing_for(database, conn, state, need_rows, rebuild_index)
+        if listing is not None:
+            warnings += listing.notes
+        stats.seconds["listing"] = time.perf_counter() - t1
+        allowed_ids = None
         if filters.active():
-            positions = _present(index, _allowed_compounds(database, conn, where, filters))
+            if listing is not None:
+                allowed_ids, allowed = _remembered(
+                    database, state, filters, "measurements",
+                    lambda: _filtered_measurements(conn, where),
+                )  # fmt: skip
+            else:
+                allowed = _remembered(
+                    database, state, filters, "compounds", lambda: _filtered_compounds(conn, where)
+                )
+            positions = _present(index, allowed)
         else:  # every indexed compound; those without measurements simply give no rows
             positions = np.arange(len(index), dtype=np.int64)
         stats.searched = int(positions.size)
-        stats.seconds["filter"] = time.perf_counter() - t1
+        stats.seconds["filter"] = time.perf_counter() - t1 - stats.seconds["listing"]
         similarity: dict[int, float] = {}
         if query is not None:
             hit_positions = search_positions(
@@ -538,19 +606,39 @@ def find(
             stats.seconds["similarity"] = time.perf_counter() - t2
             description = {"kind": "similar", "text": similar, "min_similarity": min_similarity}
         t3 = time.perf_counter()
-        hit_ids = index.ids[hit_positions].tolist()
-        table = _rows_for(conn, where, hit_ids, scan_above=max(5000, (stats.searched * 3) // 5))
+        if listing is None:
+            hit_ids = index.ids[hit_positions].tolist()
+            scan_above = max(5000, (stats.searched * 3) // 5)
+            table = _rows_for(conn, where, hit_ids, scan_above=scan_above)
         stats.seconds["rows"] = time.perf_counter() - t3
     columns: tuple[str, ...] = tuple(ROW_COLUMNS)
     of_compound = itemgetter(columns.index("compound_id"))
-    if similarity:
-        table = [(*t, round(similarity[of_compound(t)], 4)) for t in table]
-        columns = (*columns, "similarity")
-    stats.with_rows = len(set(map(of_compound, table)))
-    _sort(table, columns, sort or ("similarity" if similar is not None else "id"))
-    total = len(table)
-    if limit is not None:
-        table = table[:limit]
+    csv_body = None
+    if listing is not None:
+        picked = listing.pick(index.ids[hit_positions], allowed_ids, filters.include_retracted)
+        stats.with_rows = int(_unique(listing.compound_ids[picked]).size)
+        picked = listing.order(picked, column, descending)
+        total = int(picked.size)
+        if limit is not None:
+            picked = picked[:limit]
+        returned = int(picked.size)
+        if output == "csv" and not atoms:
+            table, csv_body = [], listing.lines(picked)
+        else:
+            table = listing.table(picked)
+        counts = _first_seen_counts(listing.compound_ids[picked])
+    else:
+        if similarity:
+            table = [(*t, round(similarity[of_compound(t)], 4)) for t in table]
+            columns = (*columns, "similarity")
+        stats.with_rows = len(set(map(of_compound, table)))
+        _sort(table, columns, column, descending)
+        total = len(table)
+        if limit is not None:
+            table = table[:limit]
+        returned = len(table)
+        counts = list(Counter(map(of_compound, table)).items())  # first-seen order, as the rows
+    stats.seconds["rows"] = time.perf_counter() - t3
     if (
         query is not None
         and stats.searched >= BROAD_MIN
@@ -561,13 +649,12 @@ def find(
             f"({100.0 * stats.matched / stats.searched:.0f}%); a more specific pattern or "
             "filters would say more"
         )
-    counts = Counter(map(of_compound, table))  # first-seen order, as the rows
     position_of: dict[int, int] = {}
     if atoms and query is not None:
         ids = index.ids[hit_positions].tolist()
         position_of = dict(zip(ids, hit_positions.tolist(), strict=True))
     compounds = []
-    for cid, n in counts.items():
+    for cid, n in counts:
         entry: dict[str, Any] = {"compound_id": cid, "measurements": n}
         if similarity:
             entry["similarity"] = round(similarity[cid], 4)
@@ -579,7 +666,22 @@ def find(
         table = [(*t, by_id[of_compound(t)]) for t in table]
         columns = (*columns, "match_atoms")
     description["filters"] = filters.describe()
-    return FindResult(description, columns, table, compounds, stats, warnings, total)
+    return FindResult(
+        description, columns, table, compounds, stats, warnings, total, returned, csv_body
+    )
+
+
+def _first_seen_counts(compound_ids: np.ndarray) -> list[tuple[int, int]]:
+    """(compound id, rows) per distinct id, in order of first appearance (as a Counter would
+    count the rows, without a Python step per row)."""
+    if compound_ids.size == 0:
+        return []
+    order = np.argsort(compound_ids, kind="stable")
+    ordered = compound_ids[order]
+    starts = np.flatnonzero(np.concatenate(([True], ordered[1:] != ordered[:-1])))
+    sizes = np.diff(np.concatenate((starts, [ordered.size])))
+    sequence = np.argsort(order[starts], kind="stable")
+    return list(zip(ordered[starts][sequence].tolist(), sizes[sequence].tolist(), strict=True))
 
 
 def _present(index: ScreenIndex, compound_ids: np.ndarray) -> np.ndarray:

@@ -23,21 +23,19 @@ index recomputes all of them.
 from __future__ import annotations
 
 import hashlib
-import json
-import mmap
 import os
-import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
+from registry.search import cachefile
+from registry.search.cachefile import file_state
 from registry.search.patterns import FP_BITS, FP_WORDS
 
 MAGIC = b"FLXSCRN1"
 FORMAT_VERSION = 3
-_ALIGN = 64
 _SAMPLE = 48  # stored fingerprints re-checked against the running RDKit at build time
 
 
@@ -268,161 +266,48 @@ def save_index(index: ScreenIndex, path: Path) -> None:
         for name in ("ids", "fps", "offsets", "blob", "smiles_offsets", "smiles_blob")
         if getattr(index, name) is not None
     }
-    layout: dict[str, Any] = {}
-    offset = 0
-    for name, arr in arrays.items():
-        layout[name] = {"offset": offset, "dtype": arr.dtype.str, "shape": list(arr.shape)}
-        offset += (arr.nbytes + _ALIGN - 1) // _ALIGN * _ALIGN
-    header = json.dumps(
-        {
-            "format": FORMAT_VERSION,
-            "signature": index.signature,
-            "rdkit": index.rdkit_version,
-            "arrays": layout,
-        }
-    ).encode("utf-8")
-    head_len = (len(MAGIC) + 8 + len(header) + _ALIGN - 1) // _ALIGN * _ALIGN
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=path.name + ".", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "wb") as out:
-            out.write(MAGIC + np.uint64(head_len).tobytes() + header)
-            out.write(b"\0" * (head_len - len(MAGIC) - 8 - len(header)))
-            for name, arr in arrays.items():
-                data = np.ascontiguousarray(arr).tobytes()
-                out.write(data)
-                out.write(b"\0" * ((-len(data)) % _ALIGN))
-                del name
-        os.chmod(tmp, _file_mode(path))
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-
-
-def _file_mode(path: Path) -> int:
-    """Readable by whoever can read the registry beside it (mkstemp would make it 0600)."""
-    registry_file = Path(str(path)[: -len(path.suffix)]) if path.suffix else path
-    try:
-        return registry_file.stat().st_mode & 0o666
-    except OSError:
-        return 0o644
+    header = {"format": FORMAT_VERSION, "signature": index.signature, "rdkit": index.rdkit_version}
+    cachefile.save_arrays(path, MAGIC, header, arrays)
 
 
 def read_index(path: Path) -> ScreenIndex | None:
     """Map a cache file; None when it is missing, damaged or of another format."""
-    try:
-        with open(path, "rb") as handle:
-            mapped = mmap.mmap(handle.fileno(), 0, access=mmap.ACCESS_READ)
-    except (OSError, ValueError):
+    found = cachefile.read_arrays(path, MAGIC, FORMAT_VERSION)
+    if found is None:
         return None
-    try:
-        if mapped[: len(MAGIC)] != MAGIC:
-            return None
-        head_len = int(np.frombuffer(mapped[8:16], dtype=np.uint64)[0])
-        header = json.loads(bytes(mapped[16:head_len]).rstrip(b"\0"))
-        if header.get("format") != FORMAT_VERSION:
-            return None
-        arrays = {}
-        for name, spec in header["arrays"].items():
-            dtype = np.dtype(spec["dtype"])
-            count = int(np.prod(spec["shape"])) if spec["shape"] else 0
-            arrays[name] = np.frombuffer(
-                mapped, dtype=dtype, count=count, offset=head_len + spec["offset"]
-            ).reshape(spec["shape"])
-    except (ValueError, KeyError, json.JSONDecodeError, IndexError):
-        return None
+    header, arrays, mapped = found
     if not {"ids", "fps", "offsets", "blob"} <= set(arrays):
         return None
+    try:
+        signature, version = header["signature"], header["rdkit"]
+    except KeyError:
+        return None
     return ScreenIndex(
-        **arrays, signature=header["signature"], rdkit_version=header["rdkit"], path=path,
-        _keep=mapped,
-    )  # fmt: skip
+        **arrays, signature=signature, rdkit_version=version, path=path, _keep=mapped
+    )
 
 
 #: indexes already checked in this process, with the registry file state they were checked at
 _CHECKED: dict[str, tuple[tuple[int, ...], ScreenIndex]] = {}
 
 
-def file_state(database: Any) -> tuple[int, ...] | None:
-    """Size and mtime of a SQLite registry and its WAL: any commit changes one of them.
-
-    Lets repeated searches in one process skip the signature query while nothing was written;
-    None for server databases (always checked).
-    """
-    if not database.is_sqlite or database.path is None or str(database.path) == ":memory:":
-        return None
-    state: list[int] = []
-    for suffix in ("", "-wal"):
-        try:
-            st = os.stat(f"{database.path}{suffix}")
-        except OSError:
-            st = None
-        if st is None or (suffix and st.st_size == 0):
-            # an empty WAL holds nothing: every opening connection creates one afresh (new
-            # inode and time) and the last one to close deletes it, so counting it would make
-            # each new process re-check the signature; emptying a WAL that held commits means
-            # a checkpoint wrote them into the main file, whose size or time then changed
-            state += [-1, -1, -1]
-        else:
-            state += [st.st_size, st.st_mtime_ns, st.st_ino]
-    return tuple(state)
-
-
 def load_index(database: Any, *, rebuild: bool = False, persist: bool = True) -> ScreenIndex:
     """The up-to-date index (see :func:`_load`), remembered in-process while the file is unchanged."""
     path = index_path_for(database)
     key = str(path)
-    state = _state_with_cache(database, path)
+    state = cachefile.state_with_cache(database, path)
     if not rebuild and state is not None and key in _CHECKED and _CHECKED[key][0] == state:
         return _CHECKED[key][1]
     before = file_state(database)
     index = _load(database, rebuild=rebuild, persist=persist)
-    after = _state_with_cache(database, path)
+    after = cachefile.state_with_cache(database, path)
     if before is not None and after is not None and after[: len(before)] == before:
         _CHECKED[key] = (after, index)  # nothing was written meanwhile
     return index
 
 
-def _state_with_cache(database: Any, path: Path) -> tuple[int, ...] | None:
-    state = file_state(database)
-    if state is None:
-        return None
-    try:
-        st = path.stat()
-        return (*state, st.st_size, st.st_mtime_ns, st.st_ino)
-    except OSError:
-        return (*state, -1, -1, -1)
-
-
 def _core(signature: dict[str, Any]) -> dict[str, Any]:
     return {k: v for k, v in signature.items() if k != "recomputed_fps"}
-
-
-def _state_path(path: Path) -> Path:
-    return Path(f"{path}.state")
-
-
-def _state_matches(path: Path, state: tuple[int, ...], index: ScreenIndex) -> bool:
-    """Was the index last found current while the registry file looked exactly like now?"""
-    try:
-        seen = json.loads(_state_path(path).read_text(encoding="utf-8"))
-    except (OSError, ValueError):
-        return False
-    return seen.get("file_state") == list(state) and seen.get("signature") == _core(index.signature)
-
-
-def _remember_state(path: Path, state: tuple[int, ...] | None, signature: dict) -> None:
-    """Note the registry file state at which the signature was last checked (best effort)."""
-    if state is None:
-        return
-    target = _state_path(path)
-    try:
-        tmp = target.with_name(target.name + f".{os.getpid()}.tmp")
-        tmp.write_text(json.dumps({"file_state": list(state), "signature": _core(signature)}))
-        os.replace(tmp, target)
-    except OSError:
-        pass
 
 
 def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> ScreenIndex:
@@ -443,7 +328,7 @@ def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> Scre
         cached is not None
         and state is not None
         and cached.rdkit_version == current_rdkit
-        and _state_matches(path, state, cached)
+        and cachefile.state_matches(path, state, _core(cached.signature))
     ):
         return cached
     with database.read() as conn:
@@ -451,7 +336,7 @@ def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> Scre
         if cached is not None and cached.rdkit_version == current_rdkit:
             old = _core(cached.signature)
             if old == current:
-                _remember_state(path, state, current)
+                cachefile.remember_state(path, state, _core(current))
                 return cached
             same_prefix = (
                 current["compound_revision"] == old["compound_revision"]
@@ -465,7 +350,7 @@ def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> Scre
                 if not persist:
                     return index
                 index = _persist(index, path)
-                _remember_state(path, state, index.signature)
+                cachefile.remember_state(path, state, _core(index.signature))
                 return index
     index = build_index(database)
     index.path = path
@@ -474,7 +359,7 @@ def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> Scre
     index = _persist(index, path)
     # safe even if the file could not be written: the state also names the signature, which
     # an older file on disk would not have
-    _remember_state(path, state, index.signature)
+    cachefile.remember_state(path, state, _core(index.signature))
     return index
 
 
@@ -493,8 +378,4 @@ def _persist(index: ScreenIndex, path: Path) -> ScreenIndex:
 
 def drop_index(database: Any) -> bool:
     """Delete the cache file (the next search rebuilds it); True if there was one."""
-    path = index_path_for(database)
-    existed = path.exists()
-    path.unlink(missing_ok=True)
-    _state_path(path).unlink(missing_ok=True)
-    return existed
+    return cachefile.drop(index_path_for(database))
