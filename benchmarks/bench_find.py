@@ -92,6 +92,7 @@ def main() -> None:
 
     from registry import api
     from registry.search import build_query, find, get_motif
+    from registry.search.cachefile import file_state
     from registry.search.engine import default_threads, search_positions
     from registry.search.index import load_index
     from registry.search.listing import load_listing, signature
@@ -110,8 +111,9 @@ def main() -> None:
     )
     rss0 = _rss_mb()
     t0 = time.perf_counter()
+    state = file_state(database)
     with database.read() as conn:
-        listing = load_listing(database, conn, None, need_rows=True, rebuild=True)
+        listing = load_listing(database, conn, state, keep_rows=True, rebuild=True)
     built_s = time.perf_counter() - t0
     with database.read() as conn:
         t0 = time.perf_counter()

@@ -92,6 +92,10 @@ def test_listing_gives_what_sql_gives(database, monkeypatch, filters, sort) -> N
     plain = _through_sql(database, monkeypatch, query=query, filters=chosen, sort=sort)
     assert listed.rows and listed.as_dict() == plain.as_dict()
     assert listed.stats.with_rows == plain.stats.with_rows
+    listing_module._LOADED.clear()  # a new process that searches once: rows read by id
+    once = find(database, query=query, filters=chosen, sort=sort, keep_rows=False)
+    assert listing_module._LOADED[str(listing_module.listing_path(database))][1].rows is None
+    assert once.as_dict() == plain.as_dict()
     as_csv = find(database, query=query, filters=chosen, sort=sort, output="csv", limit=9)
     assert as_csv.table == [] and as_csv.csv_body is not None
     assert as_csv.returned == min(9, plain.total_rows) and as_csv.total_rows == plain.total_rows

@@ -144,7 +144,7 @@ def find(
             database, query=query, similar=similar, min_similarity=min_similarity,
             filters=filters, sort=sort, limit=None if compounds else limit,
             atoms=as_json and not no_atoms, threads=threads, rebuild_index=rebuild_index,
-            output="csv" if as_csv and not compounds else "rows",
+            output="csv" if as_csv and not compounds else "rows", keep_rows=False,
         )  # fmt: skip
     finally:
         if isinstance(database, SQLiteReader):  # (the full API's warnings print at the boundary)

@@ -498,13 +498,13 @@ def _sort(
 
 
 def _listing_for(
-    database: Any, conn: Any, state: tuple[int, ...] | None, need_rows: bool, rebuild: bool
+    database: Any, conn: Any, state: tuple[int, ...] | None, keep_rows: bool, rebuild: bool
 ) -> Listing | None:
     """The measurement listing of a SQLite registry (None elsewhere; tests replace this to
     compare the listing with the plain SQL path)."""
     from registry.search.listing import load_listing
 
-    return load_listing(database, conn, state, need_rows=need_rows, rebuild=rebuild)
+    return load_listing(database, conn, state, keep_rows=keep_rows, rebuild=rebuild)
 
 
 def find(
@@ -520,6 +520,7 @@ def find(
     threads: int | None = None,
     rebuild_index: bool = False,
     output: str = "rows",
+    keep_rows: bool = True,
 ) -> FindResult:
     """Every measurement on a compound that matches ``query`` (or is similar to ``similar``).
 
@@ -527,6 +528,9 @@ def find(
     there were). ``atoms`` adds the matched atom indices of each compound for highlighting.
     ``output="csv"`` is for a caller that will only call :meth:`FindResult.write_csv`: on a
     SQLite registry the rows then stay ready CSV lines of the measurement listing.
+    ``keep_rows`` (SQLite) keeps every measurement's row in this process while the registry file
+    is unchanged, so that later searches pick rows instead of reading them (about 1 KB per
+    measurement); a caller that searches once (the CLI) turns it off and reads only its rows.
     """
     from registry.search import filters as filtering
     from registry.search.cachefile import file_state
@@ -556,8 +560,8 @@ def find(
         where = filtering.conditions(conn, filters)
         listing = None
         if similar is None:
-            need_rows = output == "rows" or atoms
-            listing = _listing_for(database, conn, state, need_rows, rebuild_index)
+            wants_rows = keep_rows and (output == "rows" or atoms)
+            listing = _listing_for(database, conn, state, wants_rows, rebuild_index)
         if listing is not None:
             warnings += listing.notes
         stats.seconds["listing"] = time.perf_counter() - t1
@@ -606,28 +610,28 @@ def find(
             stats.seconds["similarity"] = time.perf_counter() - t2
             description = {"kind": "similar", "text": similar, "min_similarity": min_similarity}
         t3 = time.perf_counter()
-        if listing is None:
+        columns: tuple[str, ...] = tuple(ROW_COLUMNS)
+        of_compound = itemgetter(columns.index("compound_id"))
+        csv_body = None
+        if listing is not None:
+            picked = listing.pick(index.ids[hit_positions], allowed_ids, filters.include_retracted)
+            stats.with_rows = int(_unique(listing.compound_ids[picked]).size)
+            picked = listing.order(picked, column, descending)
+            total = int(picked.size)
+            if limit is not None:
+                picked = picked[:limit]
+            returned = int(picked.size)
+            if output == "csv" and not atoms:
+                table, csv_body = [], listing.lines(picked)
+            else:
+                table = listing.table(picked, conn)
+            counts = _first_seen_counts(listing.compound_ids[picked])
+        else:
             hit_ids = index.ids[hit_positions].tolist()
             scan_above = max(5000, (stats.searched * 3) // 5)
             table = _rows_for(conn, where, hit_ids, scan_above=scan_above)
         stats.seconds["rows"] = time.perf_counter() - t3
-    columns: tuple[str, ...] = tuple(ROW_COLUMNS)
-    of_compound = itemgetter(columns.index("compound_id"))
-    csv_body = None
-    if listing is not None:
-        picked = listing.pick(index.ids[hit_positions], allowed_ids, filters.include_retracted)
-        stats.with_rows = int(_unique(listing.compound_ids[picked]).size)
-        picked = listing.order(picked, column, descending)
-        total = int(picked.size)
-        if limit is not None:
-            picked = picked[:limit]
-        returned = int(picked.size)
-        if output == "csv" and not atoms:
-            table, csv_body = [], listing.lines(picked)
-        else:
-            table = listing.table(picked)
-        counts = _first_seen_counts(listing.compound_ids[picked])
-    else:
+    if listing is None:
         if similarity:
             table = [(*t, round(similarity[of_compound(t)], 4)) for t in table]
             columns = (*columns, "similarity")

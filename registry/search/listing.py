@@ -199,11 +199,15 @@ class Listing:
         view = memoryview(self.line_blob)
         return b"".join([view[a:b] for a, b in zip(starts, ends, strict=True)])
 
-    def table(self, positions: np.ndarray) -> list[tuple[Any, ...]]:
-        """The ROW_COLUMNS tuples of these positions (needs :attr:`rows`)."""
-        assert self.rows is not None
-        rows = self.rows
-        return [rows[p] for p in positions.tolist()]
+    def table(self, positions: np.ndarray, conn: Any = None) -> list[tuple[Any, ...]]:
+        """The ROW_COLUMNS tuples of these positions, in this order: picked from :attr:`rows`
+        when they are kept, else read by measurement id through ``conn``."""
+        if self.rows is not None:
+            rows = self.rows
+            return [rows[p] for p in positions.tolist()]
+        if positions.size == 0:
+            return []
+        return rows_by_id(conn, self.ids[positions].tolist())
 
 
 def _member(values: np.ndarray, sorted_set: np.ndarray) -> np.ndarray:
@@ -248,6 +252,31 @@ def read_rows(conn: Any) -> list[tuple[Any, ...]]:
     from registry.search.sqlite_read import fetch
 
     return [tuple(r) for r in fetch(conn, f"{ROWS_SQL} ORDER BY m.id")]
+
+
+def rows_by_id(conn: Any, ids: list[int]) -> list[tuple[Any, ...]]:
+    """The ROW_COLUMNS tuples of these measurement ids, in this order (one query: the ids go
+    in as one JSON array; IN lists in chunks where SQLite lacks its JSON functions)."""
+    import sqlite3
+
+    from registry.search.sqlite_read import binds, fetch
+
+    at = list(ROW_COLUMNS).index("id")
+    found: list[Any] = []
+    try:
+        found = fetch(
+            conn, f"{ROWS_SQL} WHERE m.id IN (SELECT value FROM json_each(:ids))",
+            {"ids": "[" + ",".join(map(str, ids)) + "]"},
+        )  # fmt: skip
+    except sqlite3.OperationalError as exc:
+        if "json_each" not in str(exc):
+            raise
+        for start in range(0, len(ids), 500):
+            params: dict[str, Any] = {}
+            names = binds("id", ids[start : start + 500], params)
+            found += fetch(conn, f"{ROWS_SQL} WHERE m.id IN ({names})", params)
+    by_id = {r[at]: tuple(r) for r in found}
+    return [by_id[i] for i in ids]
 
 
 def from_rows(rows: list[tuple[Any, ...]], sig: dict[str, Any]) -> Listing:
@@ -354,7 +383,7 @@ def load_listing(
     conn: Any,
     state: tuple[int, ...] | None,
     *,
-    need_rows: bool,
+    keep_rows: bool,
     rebuild: bool = False,
 ) -> Listing | None:
     """The current listing of a SQLite registry (None for server databases).
@@ -362,8 +391,9 @@ def load_listing(
     ``conn`` is the search's read transaction: a listing that must be checked or rebuilt is
     checked against, or read from, that snapshot. ``state`` is :func:`.cachefile.file_state`
     taken *before* that transaction began, so that a write racing the search only makes the
-    next search check again (never marks an old listing current for a newer file). With ``need_rows`` the tuples are read too
-    (once per process while the file is unchanged). A listing that cannot be written (a
+    next search check again (never marks an old listing current for a newer file). With
+    ``keep_rows`` every measurement's tuple is read too and kept with the listing while the file
+    is unchanged (for a process that searches again; a one-off search reads only its rows). A listing that cannot be written (a
     read-only folder) still serves this search; a note says so.
     """
     path = listing_path(database)
@@ -375,7 +405,7 @@ def load_listing(
     known = _LOADED.get(key)
     if not rebuild and known is not None and known[0] == state:
         listing = known[1]
-        if not need_rows or listing.rows is not None:
+        if not keep_rows or listing.rows is not None:
             return listing
     else:
         listing = None if rebuild else read_listing(path)
@@ -385,7 +415,7 @@ def load_listing(
                 cachefile.remember_state(path, state, current)
             else:
                 listing = None
-    if listing is not None and need_rows and listing.rows is None:
+    if listing is not None and keep_rows and listing.rows is None:
         rows = read_rows(conn)
         at = list(ROW_COLUMNS).index("id")
         ids = np.fromiter((r[at] for r in rows), dtype=np.int64, count=len(rows))
