@@ -86,3 +86,38 @@ def test_the_readme_script_example_runs(tmp_path: Path) -> None:
     database = api.open_registry(str(db))
     assert [m["id"] for m in api.list_measurements(database)] == [1, 2]
     database.dispose()
+
+
+def test_the_readme_search_example_runs(tmp_path: Path) -> None:
+    """The README's library search finds the hindered biaryl above 90 kJ/mol in a non-polar
+    solvent and leaves out the rest (invented measurements on real structures)."""
+    import contextlib
+    import io
+
+    from registry import api
+    from registry.entry import EntryInput
+
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    section = readme.split("### Searching from Python", 1)[1]
+    code = section.split("```python\n", 1)[1].split("```", 1)[0]
+    db = tmp_path / "group.sqlite"
+    api.init_registry(str(db))
+    database = api.open_registry(str(db))
+    for smiles, label, dg, solvent in (
+        ("Oc1ccc2ccccc2c1-c1c(O)ccc2ccccc12", "BINOL", "155 kJ/mol", "toluene-d8"),
+        ("Cc1ccccc1-c1ccccc1C", "DMBP", "75 kJ/mol", "toluene-d8"),  # below the range
+        ("COc1cccc(OC)c1-c1c(C)cccc1C", "TMB", "120 kJ/mol", "DMSO-d6"),  # polar solvent
+        ("CC(=O)N(C)C", "DMA", "76 kJ/mol", "C6D6"),  # not a biaryl
+    ):
+        api.add_measurement(
+            database,
+            EntryInput(method="lineshape", smiles=smiles, compound=label, dg=dg, solvent=solvent,
+                       process="bond-rotation"),
+        )  # fmt: skip
+    database.dispose()
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        exec(compile(code.replace('"group.sqlite"', repr(str(db))), "README.md", "exec"), {})
+    lines = out.getvalue().splitlines()
+    assert lines[0].startswith("BINOL 155")
+    assert lines[-1] == "1 measurement(s) on 1 compound(s)"
