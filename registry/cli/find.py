@@ -196,7 +196,7 @@ def _summary(result: Any) -> str:
     )
     return (
         f"{shown} on {s.with_rows:,} compound(s); {s.matched:,} of {s.searched:,} compound(s) "
-        f"searched match ({s.screened:,} passed the fingerprint screen)"
+        f"searched match ({s.screened:,} passed the fingerprint and element screens)"
     )
 
 

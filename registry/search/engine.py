@@ -1,11 +1,12 @@
 """Run a structure search: filter measurements in SQL, screen, confirm with RDKit, return rows.
 
 Order of work, cheapest first: (1) the measurement filters run in SQL and give the compounds
-that have a qualifying barrier; (2) the pattern-fingerprint screen (:mod:`.index`) keeps those
-that can contain the query; (3) RDKit confirms on molecules rebuilt from their binary form —
+that have a qualifying barrier; (2) the pattern-fingerprint screen (:mod:`.index`) and the
+element screen (:mod:`.elements`) keep those that can contain the query; (3) RDKit confirms
 in a :class:`rdkit.Chem.rdSubstructLibrary.SubstructLibrary` over just the candidates, with an
 explicit thread count and ``maxResults`` equal to the candidate count, so no hit is ever
-dropped; (4) the measurements of the confirmed compounds are read and sorted.
+dropped; (4) the measurements of the confirmed compounds are picked from the measurement
+listing (:mod:`.listing`; read through SQL on server databases) and sorted.
 Similarity search ranks by Tanimoto similarity of Morgan fingerprints (radius 2, 2048 bits;
 Rogers & Hahn, J. Chem. Inf. Model. 2010) kept in a second cache file beside the first.
 """
@@ -26,6 +27,7 @@ from typing import Any, BinaryIO
 import numpy as np
 
 from registry.errors import UsageError
+from registry.search.elements import query_masks
 from registry.search.filters import Filters, Where
 from registry.search.index import ScreenIndex, load_index
 from registry.search.listing import (
@@ -268,6 +270,7 @@ def search_positions(
             candidates = server_positions(conn, index.ids, rows, text, query.kind)
         if candidates is None:  # SQLite, no cartridge, or a pattern the server cannot read
             candidates = index.screen(words, rows)
+        candidates = index.screen_elements(query_masks(mol), candidates)
         screened.append(candidates)
         t1 = time.perf_counter()
         stats.seconds["screen"] = stats.seconds.get("screen", 0.0) + t1 - t0

@@ -35,15 +35,15 @@ from registry.search.cachefile import file_state
 from registry.search.patterns import FP_BITS, FP_WORDS
 
 MAGIC = b"FLXSCRN1"
-FORMAT_VERSION = 3
+FORMAT_VERSION = 4  # 4: element bits per compound (see .elements)
 _SAMPLE = 48  # stored fingerprints re-checked against the running RDKit at build time
 
 
 @dataclass
 class ScreenIndex:
     """Compound ids (ascending), fingerprints (32 × N uint64, word-major so that the screen reads
-    only the words a query needs), RDKit binaries (offsets + blob)
-    and canonical SMILES (offsets + blob; empty where the structure was kept unsanitized)."""
+    only the words a query needs), RDKit binaries (offsets + blob), canonical SMILES (offsets
+    + blob; empty where the structure was kept unsanitized) and element bits (:mod:`.elements`)."""
 
     ids: np.ndarray
     fps: np.ndarray
@@ -53,6 +53,7 @@ class ScreenIndex:
     rdkit_version: str
     smiles_offsets: np.ndarray | None = None
     smiles_blob: np.ndarray | None = None
+    elements: np.ndarray | None = None  # 2 × N uint64: the elements each compound contains
     path: Path | None = None
     notes: list[str] = field(default_factory=list)
     _keep: Any = None  # the mmap the arrays view, kept open while the index lives
@@ -101,6 +102,16 @@ class ScreenIndex:
             word = query_words[w]
             keep &= (self.fps[w] & word) == word
         return np.flatnonzero(keep) if rows is None else rows[keep[rows]]
+
+    def screen_elements(self, masks: list[np.ndarray], rows: np.ndarray) -> np.ndarray:
+        """Those of ``rows`` whose compound has at least one element of every mask."""
+        if not masks or self.elements is None or rows.size == 0:
+            return rows
+        low, high = self.elements[0][rows], self.elements[1][rows]
+        keep = np.ones(rows.size, dtype=bool)
+        for words in masks:
+            keep &= ((low & words[0]) | (high & words[1])) != 0
+        return rows[keep]
 
 
 def rdkit_version() -> str:
@@ -187,6 +198,9 @@ def _arrays(rows: list[Row], recompute: bool) -> dict[str, np.ndarray]:
     n = len(rows)
     ids = np.fromiter((r[0] for r in rows), dtype=np.int64, count=n)
     fps = np.empty((n, FP_WORDS), dtype=np.uint64)
+    from registry.search.elements import compound_mask
+
+    elements = np.empty((n, 2), dtype=np.uint64)
     raw, smiles = bytearray(), bytearray()
     offsets = np.zeros(n + 1, dtype=np.int64)
     smiles_offsets = np.zeros(n + 1, dtype=np.int64)
@@ -199,6 +213,7 @@ def _arrays(rows: list[Row], recompute: bool) -> dict[str, np.ndarray]:
         offsets[i + 1] = len(raw)
         smiles += text.encode("utf-8")
         smiles_offsets[i + 1] = len(smiles)
+        elements[i] = compound_mask(text, binary)
     return {
         "ids": ids,
         "fps": np.ascontiguousarray(fps.T),
@@ -206,6 +221,7 @@ def _arrays(rows: list[Row], recompute: bool) -> dict[str, np.ndarray]:
         "blob": np.frombuffer(bytes(raw), dtype=np.uint8),
         "smiles_offsets": smiles_offsets,
         "smiles_blob": np.frombuffer(bytes(smiles), dtype=np.uint8),
+        "elements": np.ascontiguousarray(elements.T),
     }
 
 
@@ -250,6 +266,9 @@ def _extend(index: ScreenIndex, rows: list[Row], sig: dict) -> ScreenIndex:
             [index.smiles_offsets, new["smiles_offsets"][1:] + int(index.smiles_offsets[-1])]
         ),
         smiles_blob=np.concatenate([index.smiles_blob, new["smiles_blob"]]),
+        elements=None
+        if index.elements is None
+        else np.concatenate([index.elements, new["elements"]], axis=1),
         signature=sig,
         rdkit_version=index.rdkit_version,
         notes=["index extended with new compounds"],
@@ -263,7 +282,7 @@ def save_index(index: ScreenIndex, path: Path) -> None:
     """Write atomically (temporary file + rename), so readers never see half a file."""
     arrays = {
         name: getattr(index, name)
-        for name in ("ids", "fps", "offsets", "blob", "smiles_offsets", "smiles_blob")
+        for name in ("ids", "fps", "offsets", "blob", "smiles_offsets", "smiles_blob", "elements")
         if getattr(index, name) is not None
     }
     header = {"format": FORMAT_VERSION, "signature": index.signature, "rdkit": index.rdkit_version}
