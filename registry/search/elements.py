@@ -61,19 +61,24 @@ def smiles_elements(smiles: str) -> set[int] | None:
     return out
 
 
-def mask(numbers: set[int] | frozenset[int]) -> np.ndarray:
-    words = np.zeros(WORDS, dtype=np.uint64)
+def _words(numbers: set[int] | frozenset[int]) -> tuple[int, int]:
+    bits = 0
     for z in numbers:
-        words[z // 64] |= np.uint64(1) << np.uint64(z % 64)
-    return words
+        bits |= 1 << z
+    return bits & 0xFFFFFFFFFFFFFFFF, bits >> 64
 
 
-ALL = np.full(WORDS, np.uint64(0xFFFFFFFFFFFFFFFF), dtype=np.uint64)
+def mask(numbers: set[int] | frozenset[int]) -> np.ndarray:
+    """The element bits as two uint64 words (atomic number z is bit z % 64 of word z // 64)."""
+    return np.array(_words(numbers), dtype=np.uint64)
 
 
-def compound_mask(smiles: str, binary: bytes | None = None) -> np.ndarray:
-    """A compound's element bits, from its SMILES or else its RDKit binary; all bits when
-    neither can be read (never screened out)."""
+ALL = (0xFFFFFFFFFFFFFFFF, 0xFFFFFFFFFFFFFFFF)
+
+
+def compound_mask(smiles: str, binary: bytes | None = None) -> tuple[int, int]:
+    """A compound's element bits (two words), from its SMILES or else its RDKit binary; all
+    bits when neither can be read (never screened out)."""
     numbers = smiles_elements(smiles) if smiles else None
     if numbers is None and binary is not None:
         try:
@@ -82,7 +87,7 @@ def compound_mask(smiles: str, binary: bytes | None = None) -> np.ndarray:
             numbers = {a.GetAtomicNum() for a in Chem.Mol(binary).GetAtoms()}
         except Exception:
             numbers = None
-    return ALL.copy() if numbers is None else mask(numbers)
+    return ALL if numbers is None else _words(numbers)
 
 
 # ---------------------------------------------------------------- what a query needs
