@@ -10,6 +10,7 @@ Map of the package (data flows top to bottom):
   → SQL conditions.
 - :mod:`.index` — the screening index (fingerprints + RDKit binaries of every compound) cached
   beside the registry and kept in step with it.
+- :mod:`.elements` — the element screen: elements per compound (in the index) and per query atom.
 - :mod:`.listing` — every measurement's search row (ids, sort keys, a ready CSV line) kept
   beside a SQLite registry, so that a search picks its rows with numpy.
 - :mod:`.cachefile` — the two cache files' I/O (mapped numpy arrays) and file-state notes.
