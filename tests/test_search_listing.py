@@ -111,6 +111,16 @@ def test_matched_atoms_and_limits_through_the_listing(database, monkeypatch) -> 
     assert listed.as_dict() == _through_sql(database, monkeypatch, **kwargs).as_dict()
 
 
+def test_large_registries_keep_no_rows_in_memory(database, monkeypatch) -> None:  # type: ignore[no-untyped-def]
+    query = build_query(motif=get_motif("amide"))
+    expected = _through_sql(database, monkeypatch, query=query, sort="-barrier").as_dict()
+    monkeypatch.setattr(listing_module, "KEEP_ROWS_MAX", 5)
+    for rebuild in (True, False):
+        result = find(database, query=query, sort="-barrier", rebuild_index=rebuild)
+        assert result.as_dict() == expected
+        assert listing_module._LOADED[str(listing_module.listing_path(database))][1].rows is None
+
+
 def test_listing_file_is_written_and_reused(database, registry_file: Path, monkeypatch) -> None:  # type: ignore[no-untyped-def]
     query = build_query(motif=get_motif("urea"))
     first = find(database, query=query, output="csv")

@@ -374,6 +374,9 @@ def read_listing(path: Path) -> Listing | None:
     return listing
 
 
+#: above this many measurements the rows are not kept in memory (~1.2 KB each), only read by id
+KEEP_ROWS_MAX = 500_000
+
 #: listings already checked in this process, with the registry file state they were checked at
 _LOADED: dict[str, tuple[tuple[int, ...], Listing]] = {}
 
@@ -393,7 +396,8 @@ def load_listing(
     taken *before* that transaction began, so that a write racing the search only makes the
     next search check again (never marks an old listing current for a newer file). With
     ``keep_rows`` every measurement's tuple is read too and kept with the listing while the file
-    is unchanged (for a process that searches again; a one-off search reads only its rows). A listing that cannot be written (a
+    is unchanged (for a process that searches again; a one-off search reads only its rows), up
+    to :data:`KEEP_ROWS_MAX` measurements. A listing that cannot be written (a
     read-only folder) still serves this search; a note says so.
     """
     path = listing_path(database)
@@ -415,6 +419,7 @@ def load_listing(
                 cachefile.remember_state(path, state, current)
             else:
                 listing = None
+    keep_rows = keep_rows and (listing is None or len(listing) <= KEEP_ROWS_MAX)
     if listing is not None and keep_rows and listing.rows is None:
         rows = read_rows(conn)
         at = list(ROW_COLUMNS).index("id")
@@ -425,6 +430,8 @@ def load_listing(
             listing = _build(path, from_rows(rows, signature(conn)), state)
     if listing is None:
         listing = _build(path, from_rows(read_rows(conn), signature(conn)), state)
+        if not keep_rows or len(listing) > KEEP_ROWS_MAX:
+            listing.rows = None  # read for the build; kept only where asked and small enough
     _LOADED[key] = (state, listing)
     return listing
 
@@ -437,10 +444,3 @@ def _build(path: Path, listing: Listing, state: tuple[int, ...]) -> Listing:
         return listing
     cachefile.remember_state(path, state, listing.signature)
     return listing
-
-
-def drop_listing(database: Any) -> bool:
-    """Delete the listing file (the next search rebuilds it); True if there was one."""
-    path = listing_path(database)
-    _LOADED.pop(str(path), None)
-    return path is not None and cachefile.drop(path)
