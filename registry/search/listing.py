@@ -170,7 +170,7 @@ class Listing:
 
     def order(self, positions: np.ndarray, column: str, descending: bool) -> np.ndarray:
         """``positions`` sorted by a sort key; ties keep measurement-id order and rows without
-        the value go last (as :func:`registry.search.engine.sort_table` sorts tuples)."""
+        the value go last (as :func:`registry.search.engine._sort` sorts tuples)."""
         if column in self.numbers:
             values = self.numbers[column][positions]
             present = ~np.isnan(values)
