@@ -56,6 +56,8 @@ def test_elements_of_every_canonical_smiles_of_the_test_set() -> None:
         assert el.smiles_elements(canonical) == _rdkit_elements(canonical), canonical
 
 
+# atomic numbers as in the IUPAC periodic table (C 6, N 7, Se 34, Fe 26, Ru 44, Os 76); the
+# query readings follow the Daylight SMARTS theory manual (',' = or, '&' and ';' = and, '!' = not)
 @pytest.mark.parametrize(
     ("smarts", "allowed"),
     [
