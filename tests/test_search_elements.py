@@ -57,7 +57,7 @@ def test_elements_of_every_canonical_smiles_of_the_test_set() -> None:
 
 
 # atomic numbers as in the IUPAC periodic table (C 6, N 7, Se 34, Fe 26, Ru 44, Os 76); the
-# query readings follow the Daylight SMARTS theory manual (',' = or, '&' and ';' = and, '!' = not)
+# query readings follow the SMARTS language itself (',' = or, '&' and ';' = and, '!' = not)
 @pytest.mark.parametrize(
     ("smarts", "allowed"),
     [
