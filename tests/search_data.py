@@ -164,3 +164,26 @@ def write_registry(path: Path, smiles: list[str], known: bool = True) -> None:
         database.write(work)
     finally:
         database.dispose()
+
+
+_BUILT: dict[str, Path] = {}
+
+
+def registry_copy(
+    name: str, tmp_path: Path, factory, *, step: int = 15, sql: tuple[str, ...] = ()
+) -> Path:  # type: ignore[no-untyped-def]
+    """A copy (per test) of a registry of every ``step``-th generated molecule, built once per
+    session under ``name`` and then changed by the plain ``sql`` statements (no history)."""
+    import sqlite3
+
+    if name not in _BUILT:
+        base = factory.mktemp(name) / "registry.sqlite"
+        write_registry(base, generated_smiles()[::step])
+        with sqlite3.connect(base) as conn:
+            for statement in sql:
+                conn.execute(statement)
+        _BUILT[name] = base
+    target = tmp_path / "registry.sqlite"
+    with sqlite3.connect(_BUILT[name]) as source, sqlite3.connect(target) as copy:
+        source.backup(copy)  # a consistent copy whatever the WAL holds
+    return target

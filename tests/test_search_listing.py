@@ -20,7 +20,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
-from search_data import generated_smiles, write_registry
+from search_data import registry_copy
 
 from registry import api, edits
 from registry.entry import EntryInput
@@ -29,26 +29,21 @@ from registry.search import engine as engine_module
 from registry.search import listing as listing_module
 from registry.search.listing import CSV_COLUMNS, ROW_COLUMNS, csv_lines, from_rows
 
-_BUILT: dict[str, Path] = {}
-
 
 @pytest.fixture
 def registry_file(tmp_path: Path, tmp_path_factory: pytest.TempPathFactory) -> Path:
-    """A copy (per test) of a small registry built once, with retracted and reviewed rows."""
-    if "base" not in _BUILT:
-        base = tmp_path_factory.mktemp("listing") / "registry.sqlite"
-        write_registry(base, generated_smiles()[::15])
-        with sqlite3.connect(base) as conn:
-            conn.execute("UPDATE measurement SET status = 'retracted' WHERE id % 7 = 0")
-            conn.execute("UPDATE measurement SET status = 'reviewed' WHERE id % 5 = 0")
-            conn.execute("UPDATE compound SET label = lower(label) WHERE id % 3 = 0")
-            conn.execute("UPDATE measurement SET solvent_text = NULL WHERE id % 11 = 0")
-            conn.execute("UPDATE measurement SET dg_kj_mol = NULL WHERE id % 13 = 0")
-        _BUILT["base"] = base
-    target = tmp_path / "registry.sqlite"
-    with sqlite3.connect(_BUILT["base"]) as source, sqlite3.connect(target) as copy:
-        source.backup(copy)
-    return target
+    """A copy (per test) of a small registry built once, with retracted and reviewed rows,
+    lower-case labels, and missing solvents and barriers."""
+    return registry_copy(
+        "listing", tmp_path, tmp_path_factory,
+        sql=(
+            "UPDATE measurement SET status = 'retracted' WHERE id % 7 = 0",
+            "UPDATE measurement SET status = 'reviewed' WHERE id % 5 = 0",
+            "UPDATE compound SET label = lower(label) WHERE id % 3 = 0",
+            "UPDATE measurement SET solvent_text = NULL WHERE id % 11 = 0",
+            "UPDATE measurement SET dg_kj_mol = NULL WHERE id % 13 = 0",
+        ),
+    )  # fmt: skip
 
 
 @pytest.fixture

@@ -156,6 +156,9 @@ def test_motif_file_with_a_bad_smarts_names_file_and_motif(tmp_path: Path) -> No
     assert "unclosed ring" in str(err.value)
 
 
+# ring primitives as the SMARTS language defines them: '@' ring bond, R ring membership,
+# r smallest ring size, x ring connectivity; chirality '@' inside brackets and ring-closure
+# digits are not ring tests
 @pytest.mark.parametrize(
     ("smarts", "ring"),
     [

@@ -15,7 +15,7 @@ import sys
 from pathlib import Path
 
 import pytest
-from search_data import generated_smiles, write_registry
+from search_data import registry_copy
 from sqlalchemy import and_, or_, select, text
 
 from registry import api, migrate, store, vocab
@@ -33,23 +33,17 @@ from registry.search.sqlite_read import (
     sqlite_path,
 )
 
-_BUILT: dict[str, Path] = {}
-
 
 @pytest.fixture
 def registry_file(tmp_path: Path, tmp_path_factory: pytest.TempPathFactory) -> Path:
     """A copy (per test) of a small registry built once per session, with a retracted row."""
-    if "base" not in _BUILT:
-        base = tmp_path_factory.mktemp("sqlite-read") / "registry.sqlite"
-        write_registry(base, generated_smiles()[::15])
-        with sqlite3.connect(base) as conn:
-            conn.execute("UPDATE measurement SET status = 'retracted' WHERE id % 7 = 0")
-            conn.execute("UPDATE measurement SET status = 'reviewed' WHERE id % 5 = 0")
-        _BUILT["base"] = base
-    target = tmp_path / "registry.sqlite"
-    with sqlite3.connect(_BUILT["base"]) as source, sqlite3.connect(target) as copy:
-        source.backup(copy)
-    return target
+    return registry_copy(
+        "sqlite-read", tmp_path, tmp_path_factory,
+        sql=(
+            "UPDATE measurement SET status = 'retracted' WHERE id % 7 = 0",
+            "UPDATE measurement SET status = 'reviewed' WHERE id % 5 = 0",
+        ),
+    )  # fmt: skip
 
 
 # ---------------------------------------------------------------- opening
