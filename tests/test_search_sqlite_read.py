@@ -25,6 +25,7 @@ from registry.search import brute_force, build_query, find, get_motif, make_filt
 from registry.search import engine as engine_module
 from registry.search import filters as filters_module
 from registry.search import index as index_module
+from registry.search import listing as listing_module
 from registry.search.sqlite_read import (
     SQLiteReader,
     head_revision,
@@ -300,7 +301,8 @@ def test_an_open_reader_does_not_change_the_file_state(registry_file: Path) -> N
 
 
 def test_rows_without_sqlite_json_functions(registry_file: Path, monkeypatch) -> None:  # type: ignore[no-untyped-def]
-    """An SQLite built without ``json_each`` falls back to IN lists / a pass in Python."""
+    """An SQLite built without ``json_each`` falls back to bound IN lists, on the SQL row path
+    (few or many compound ids) and when the listing reads a one-off search's rows by id."""
     from registry.search import sqlite_read
 
     query = build_query(motif=get_motif("urea"))
@@ -317,11 +319,15 @@ def test_rows_without_sqlite_json_functions(registry_file: Path, monkeypatch) ->
             return real(conn, sql, params)
 
         monkeypatch.setattr(sqlite_read, "fetch", no_json)
+        listing_module._LOADED.clear()  # a new process: the listing keeps no rows
+        once = find(reader, query=query, filters=make_filters(solvent="CDCl3"), keep_rows=False)
+        assert once.rows == expected.rows and expected.rows
+        assert len(refused) == 1
         _without_listing(monkeypatch)
         for threshold in (0, 10**9):
             monkeypatch.setattr(engine_module, "_rows_for", _forced(threshold))
             again = find(reader, query=query, filters=make_filters(solvent="CDCl3"))
-            assert again.rows == expected.rows and expected.rows
-        assert len(refused) == 2  # both times the JSON form was tried first
+            assert again.rows == expected.rows
+        assert len(refused) == 3  # each time the JSON form was tried first
     finally:
         reader.dispose()

@@ -441,40 +441,25 @@ def _rows_for(
 
     Plain SQL and plain tuples (on SQLite through the ``sqlite3`` connection itself): for a
     common motif this reads tens of thousands of rows, where SQLAlchemy's rows cost more than
-    the search. On SQLite the ids go in as one JSON array (``json_each``): looked up through
-    the compound-id index when they are few, tested during one pass over the measurements
-    (``+m.compound_id`` keeps the index out) when they are more than ``scan_above``.
-    Elsewhere: one pass with the test in Python, or bound-parameter IN lists in chunks.
+    the search. On SQLite the ids go in as one JSON array (:func:`.sqlite_read.fetch_with_ids`):
+    looked up through the compound-id index when they are few, tested during one pass over the
+    measurements (``+m.compound_id`` keeps the index out) when they are more than
+    ``scan_above``. Elsewhere: one pass with the test in Python when there are many,
+    bound-parameter IN lists in chunks when few.
     """
-    from registry.search.sqlite_read import binds, dialect_name, fetch
+    from registry.search.sqlite_read import dialect_name, fetch, fetch_with_ids
 
-    keys = tuple(ROW_COLUMNS)
     ids = list(compound_ids)
     if not ids:
         return []
     base = f"{ROWS_SQL} WHERE {where.sql()}"
-    if dialect_name(conn) == "sqlite":
-        import sqlite3
-
-        params = {**where.params, "hit_ids": "[" + ",".join(map(str, ids)) + "]"}
-        column = "+m.compound_id" if len(ids) > scan_above else "m.compound_id"
-        sql = f"{base} AND {column} IN (SELECT value FROM json_each(:hit_ids))"
-        try:
-            return list(fetch(conn, sql, params))
-        except sqlite3.OperationalError as exc:  # an SQLite built without its JSON functions
-            if "json_each" not in str(exc):
-                raise
-    if len(ids) > scan_above:
+    many = len(ids) > scan_above
+    if many and dialect_name(conn) != "sqlite":
         hit = set(ids)
-        at = keys.index("compound_id")
-        raw = [r for r in fetch(conn, base, where.params) if r[at] in hit]
-    else:
-        raw = []
-        for start in range(0, len(ids), _CHUNK):
-            params = dict(where.params)
-            chunk = binds("hit", ids[start : start + _CHUNK], params)
-            raw += fetch(conn, f"{base} AND m.compound_id IN ({chunk})", params)
-    return [tuple(r) for r in raw]
+        at = tuple(ROW_COLUMNS).index("compound_id")
+        return [tuple(r) for r in fetch(conn, base, where.params) if r[at] in hit]
+    column = "+m.compound_id" if many else "m.compound_id"  # '+': SQLite scans, no index
+    return [tuple(r) for r in fetch_with_ids(conn, base, column, ids, where.params, chunk=_CHUNK)]
 
 
 def _sort_key(sort: str | None, similar: bool) -> tuple[str, bool]:

@@ -255,27 +255,11 @@ def read_rows(conn: Any) -> list[tuple[Any, ...]]:
 
 
 def rows_by_id(conn: Any, ids: list[int]) -> list[tuple[Any, ...]]:
-    """The ROW_COLUMNS tuples of these measurement ids, in this order (one query: the ids go
-    in as one JSON array; IN lists in chunks where SQLite lacks its JSON functions)."""
-    import sqlite3
-
-    from registry.search.sqlite_read import binds, fetch
+    """The ROW_COLUMNS tuples of these measurement ids, in this order."""
+    from registry.search.sqlite_read import fetch_with_ids
 
     at = list(ROW_COLUMNS).index("id")
-    found: list[Any] = []
-    try:
-        found = fetch(
-            conn, f"{ROWS_SQL} WHERE m.id IN (SELECT value FROM json_each(:ids))",
-            {"ids": "[" + ",".join(map(str, ids)) + "]"},
-        )  # fmt: skip
-    except sqlite3.OperationalError as exc:
-        if "json_each" not in str(exc):
-            raise
-        for start in range(0, len(ids), 500):
-            params: dict[str, Any] = {}
-            names = binds("id", ids[start : start + 500], params)
-            found += fetch(conn, f"{ROWS_SQL} WHERE m.id IN ({names})", params)
-    by_id = {r[at]: tuple(r) for r in found}
+    by_id = {r[at]: tuple(r) for r in fetch_with_ids(conn, f"{ROWS_SQL} WHERE 1 = 1", "m.id", ids)}
     return [by_id[i] for i in ids]
 
 

@@ -80,6 +80,39 @@ def fetch(conn: Any, sql: str, params: dict[str, Any] | None = None) -> list[Seq
     return list(conn.execute(text(sql), params or {}).all())
 
 
+def fetch_with_ids(
+    conn: Any,
+    sql: str,
+    column: str,
+    ids: Sequence[int],
+    params: dict[str, Any] | None = None,
+    *,
+    chunk: int = 500,
+) -> list[Sequence[Any]]:
+    """Rows of ``sql`` (which ends in a WHERE clause) that also have ``column IN ids``.
+
+    On SQLite the ids go in as one JSON array (``json_each``), however many there are; on other
+    databases, or an SQLite built without its JSON functions, as bound IN lists of ``chunk``.
+    """
+    ids = list(ids)
+    if not ids:
+        return []
+    if dialect_name(conn) == "sqlite":
+        json_params = {**(params or {}), "in_ids": "[" + ",".join(map(str, ids)) + "]"}
+        try:
+            return fetch(conn, f"{sql} AND {column} IN (SELECT value FROM json_each(:in_ids))",
+                         json_params)  # fmt: skip
+        except sqlite3.OperationalError as exc:
+            if "json_each" not in str(exc):
+                raise
+    found: list[Sequence[Any]] = []
+    for start in range(0, len(ids), chunk):
+        chunk_params = dict(params or {})
+        names = binds("in_id", ids[start : start + chunk], chunk_params)
+        found += fetch(conn, f"{sql} AND {column} IN ({names})", chunk_params)
+    return found
+
+
 def binds(prefix: str, values: Sequence[Any], params: dict[str, Any]) -> str:
     """``:prefix0, :prefix1, …`` for an IN list, with the values added to ``params``."""
     names = []
