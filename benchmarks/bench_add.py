@@ -26,8 +26,8 @@ from pathlib import Path
 os.environ.setdefault("FLUXLEDGER_USER", "bench")
 
 from registry import api
-from registry.entry import EntryInput, normalize_entry
-from registry.writer import known_process_kinds, write_entries
+from registry.record.entry import EntryInput, normalize_entry
+from registry.storage.writer import known_process_kinds, write_entries
 
 #: real, public structures (amides, biaryls, rings) cycled through the adds
 SMILES = [

@@ -24,7 +24,7 @@ from scipy import constants as C
 from sqlalchemy import delete, insert, select
 
 from registry import api
-from registry.models import (
+from registry.storage.models import (
     CoalescenceObservation,
     Compound,
     Measurement,

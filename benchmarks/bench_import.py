@@ -16,7 +16,7 @@ train.csv.gz``). Installing molsets drags in torch and a pinned pomegranate that
 on current Python, so this script downloads the wheel with ``pip download --no-deps molsets``
 into ``benchmarks/out/`` and reads the csv.gz straight out of the wheel zip.
 
-``--what-if-cache`` adds a third timing with ``registry.units.parse_value`` memoized (an
+``--what-if-cache`` adds a third timing with ``registry.record.units.parse_value`` memoized (an
 experiment in this process only, to size a possible change to the unit layer; not a product
 path).
 """
@@ -229,7 +229,7 @@ def main() -> None:
             if args.what_if_cache:
                 from functools import lru_cache
 
-                from registry import entry as entry_mod
+                from registry.record import entry as entry_mod
 
                 original = entry_mod.parse_value
                 entry_mod.parse_value = lru_cache(maxsize=None)(original)  # experiment only

@@ -51,7 +51,7 @@ def fresh_database(base: str) -> str:
     """Drop and create the benchmark database (with the cartridge); returns its URL."""
     from sqlalchemy import create_engine, make_url
 
-    from registry.store import to_url
+    from registry.storage.database import to_url
 
     admin = create_engine(to_url(base), isolation_level="AUTOCOMMIT")
     with admin.connect() as conn:
@@ -68,8 +68,8 @@ def fresh_database(base: str) -> str:
 
 def source_copy(n: int) -> Path:
     """A private copy of the cached benchmark registry, at the current schema."""
-    from registry import migrate
-    from registry.store import open_database
+    from registry.storage import migrate
+    from registry.storage.database import open_database
 
     original = registry_path(n)
     copy = OUT / f"bench_pg_source_{n}.sqlite"

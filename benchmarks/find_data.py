@@ -7,7 +7,7 @@ file is read straight from the wheel (a zip). Each compound gets one invented me
 random barrier, method and solvent) so that ``find`` has rows to return; these values are demo
 data, not chemistry.
 
-The registry is written with :func:`registry.chem.read_structure` (in a process pool) and
+The registry is written with :func:`registry.record.chem.read_structure` (in a process pool) and
 SQLAlchemy Core ``executemany``, and kept under ``benchmarks/out/`` (git-ignored).
 """
 
@@ -55,7 +55,7 @@ def molsets_smiles(n: int) -> list[str]:
 
 
 def _structures(chunk: list[str]) -> list[tuple]:
-    from registry.chem import read_structure
+    from registry.record.chem import read_structure
 
     rows = []
     for smi in chunk:
@@ -82,7 +82,7 @@ def build_registry(path: Path, n: int, workers: int = 2) -> None:
     from sqlalchemy import insert
 
     from registry import api
-    from registry.models import Compound, Measurement
+    from registry.storage.models import Compound, Measurement
 
     t0 = time.perf_counter()
     smiles = molsets_smiles(n)
@@ -130,8 +130,8 @@ def build_registry(path: Path, n: int, workers: int = 2) -> None:
     solvents = ["CDCl3", "toluene-d8", "DMSO-d6", "CD2Cl2", "C6D6"]
 
     def work(conn):  # type: ignore[no-untyped-def]
-        from registry.vocab import solvent_key
-        from registry.writer import solvent_index
+        from registry.record.vocab import solvent_key
+        from registry.storage.writer import solvent_index
 
         solvent_ids = solvent_index(conn)
         conn.execute(insert(Compound), compounds)
@@ -169,8 +169,8 @@ def registry_path(n: int) -> Path:
     if not path.exists():
         print(f"building the benchmark registry ({n} molsets compounds; a few minutes) …")
         build_registry(path, n)
-    from registry import migrate
-    from registry.store import open_database
+    from registry.storage import migrate
+    from registry.storage.database import open_database
 
     database = open_database(str(path))
     try:

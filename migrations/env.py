@@ -5,7 +5,7 @@ import warnings
 from alembic import context
 from sqlalchemy.exc import SAWarning
 
-from registry.models import Base
+from registry.storage.models import Base
 
 config = context.config
 target_metadata = Base.metadata
@@ -29,7 +29,7 @@ def include_object(obj, name, type_, reflected, compare_to) -> bool:  # type: ig
 def run_migrations_online() -> None:
     connection = config.attributes.get("connection")
     if connection is None:  # pragma: no cover - we always pass a connection
-        raise RuntimeError("fluxledger migrations run through registry.migrate only")
+        raise RuntimeError("fluxledger migrations run through registry.storage.migrate only")
     context.configure(
         connection=connection,
         target_metadata=target_metadata,

@@ -14,9 +14,10 @@ from typing import TYPE_CHECKING, Any
 
 from sqlalchemy import Connection, func, insert, select
 
-from registry import audit, migrate
 from registry.errors import DatabaseError, NotFoundError, UnitError
-from registry.models import (
+from registry.storage import audit, migrate
+from registry.storage.database import Database, current_user, open_database, redacted_url
+from registry.storage.models import (
     CoalescenceObservation,
     Compound,
     ImportBatch,
@@ -27,13 +28,12 @@ from registry.models import (
     Solvent,
     ValidationFinding,
 )
-from registry.store import Database, current_user, open_database, redacted_url
 
 if TYPE_CHECKING:  # imported lazily at run time: units (pint) and RDKit are slow to load
-    from registry.chem import Structure
-    from registry.entry import EntryInput, NormalizedEntry
+    from registry.record.chem import Structure
+    from registry.record.entry import EntryInput, NormalizedEntry
+    from registry.storage.writer import WriteResult
     from registry.validation import CheckReport
-    from registry.writer import WriteResult
 
 
 def init_registry(db: str) -> dict[str, Any]:
@@ -109,7 +109,7 @@ def actor_name(actor: str | None) -> str:
 
 
 def structure_for(smiles: str | None) -> Structure | None:
-    from registry.chem import read_structure
+    from registry.record.chem import read_structure
 
     return read_structure(smiles) if smiles else None
 
@@ -124,7 +124,7 @@ def add_measurement(
     :func:`deferred_checks`, once for all the rows added there when the block ends (the check
     of a single row costs far more than its write). ``check=False`` skips the check.
     """
-    from registry.writer import cached_process_kinds, known_process_kinds, write_entries
+    from registry.storage.writer import cached_process_kinds, known_process_kinds, write_entries
 
     kinds = cached_process_kinds(database.engine)
     if kinds is None:
@@ -183,7 +183,7 @@ def deferred_checks(database: Database, *, actor: str | None = None) -> Iterator
 
 def _normalized(entry: EntryInput, kinds: tuple[str, ...]) -> NormalizedEntry:
     """The entry normalized, or the error a user sees (one problem: its field and text)."""
-    from registry.entry import EntryError, normalize_entry
+    from registry.record.entry import EntryError, normalize_entry
 
     normalized, problems = normalize_entry(entry, kinds)
     if normalized is None:
@@ -241,7 +241,7 @@ def list_measurements(
     limit: int | None = None,
 ) -> list[dict[str, Any]]:
     """Measurements with their compound, filtered; retracted ones only when asked for."""
-    from registry import vocab
+    from registry.record import vocab
 
     query = measurement_query()
     if compound:

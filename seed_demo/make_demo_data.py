@@ -4,7 +4,7 @@
 
 Everything here is invented except the structures, which are real, publicly known compounds.
 Clean entries get ΔG‡ computed correctly from their Tc and Δν (and J) with registry.kinetics,
-after reading the written texts through registry.units exactly as the importer will, so that the
+after reading the written texts through registry.record.units exactly as the importer will, so that the
 validation rules find nothing on them. The planted slips (README.md) are computed with the
 mistake in question. Rate points follow the Eyring equation for the ΔH‡/ΔS‡ chosen here, with a
 small fixed scatter.
@@ -20,7 +20,7 @@ from openpyxl import Workbook
 
 from registry.kinetics import coalescence_barrier, eyring_barrier, eyring_rate
 from registry.kinetics.constants import R_KJ_MOL_K
-from registry.units import convert, parse_value
+from registry.record.units import convert, parse_value
 
 HERE = Path(__file__).resolve().parent
 KCAL = convert(1.0, "kcal/mol", "kJ/mol")  # 4.184 kJ per kcal (thermochemical calorie)

@@ -10,7 +10,7 @@ import pytest
 from typer.testing import CliRunner
 
 from registry import api
-from registry.store import Database
+from registry.storage.database import Database
 
 os.environ.setdefault("FLUXLEDGER_USER", "tester")
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")

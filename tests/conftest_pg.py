@@ -42,7 +42,7 @@ def pg_session_url() -> Iterator[str]:
     base = os.environ.get(PG_URL_ENV, "").strip()
     if not base:
         _unavailable(f"set {PG_URL_ENV}=postgresql+psycopg://user@host:port/database")
-    from registry.store import to_url
+    from registry.storage.database import to_url
 
     base = to_url(base)
     admin = _admin_engine(base)

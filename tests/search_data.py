@@ -12,9 +12,9 @@ import itertools
 from pathlib import Path
 
 from registry import api
-from registry.chem import read_structure
-from registry.entry import EntryInput, normalize_entry
-from registry.writer import known_process_kinds, write_entries
+from registry.record.chem import read_structure
+from registry.record.entry import EntryInput, normalize_entry
+from registry.storage.writer import known_process_kinds, write_entries
 
 FRAGMENTS = (
     "C",

@@ -5,10 +5,11 @@ from __future__ import annotations
 import pytest
 from sqlalchemy import text
 
-from registry import api, audit
-from registry.chem import read_structure
-from registry.entry import EntryInput
+from registry import api
 from registry.errors import StructureError
+from registry.record.chem import read_structure
+from registry.record.entry import EntryInput
+from registry.storage import audit
 
 
 def test_standard_inchikey_of_a_known_compound() -> None:

@@ -129,7 +129,7 @@ def test_broad_pattern_warns_on_stderr(cli, db_path: Path) -> None:  # type: ign
     from search_data import entries_for
 
     from registry import api
-    from registry.writer import write_entries
+    from registry.storage.writer import write_entries
 
     database = api.open_registry(str(db_path))
 

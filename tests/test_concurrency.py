@@ -25,11 +25,14 @@ import pytest
 from sqlalchemy import Connection, insert, text
 from sqlalchemy.exc import OperationalError
 
-from registry import api, edits, filecheck, maintenance, store
-from registry.entry import EntryInput, NormalizedEntry, normalize_entry
+from registry import api
+from registry.admin import edits, maintenance
 from registry.errors import DatabaseError
-from registry.models import ImportBatch
-from registry.writer import write_entries
+from registry.record.entry import EntryInput, NormalizedEntry, normalize_entry
+from registry.storage import database as store
+from registry.storage import schema as filecheck
+from registry.storage.models import ImportBatch
+from registry.storage.writer import write_entries
 
 FORK = multiprocessing.get_context("fork")
 FLUXLEDGER = Path(__file__).resolve().parent.parent / ".venv" / "bin" / "fluxledger"

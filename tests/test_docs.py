@@ -95,7 +95,7 @@ def test_the_readme_search_example_runs(tmp_path: Path) -> None:
     import io
 
     from registry import api
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
 
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
     section = readme.split("### Searching from Python", 1)[1]

@@ -6,8 +6,13 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from registry.entry import EntryInput, normalize_entry, normalize_nucleus, parse_population_ratio
 from registry.errors import UnitError
+from registry.record.entry import (
+    EntryInput,
+    normalize_entry,
+    normalize_nucleus,
+    parse_population_ratio,
+)
 
 
 def _entry(**kw: str) -> EntryInput:

@@ -12,9 +12,11 @@ from pathlib import Path
 
 import pytest
 
-from registry import api, audit, edits
-from registry.entry import EntryInput, normalize_entry
-from registry.writer import write_entries
+from registry import api
+from registry.admin import edits
+from registry.record.entry import EntryInput, normalize_entry
+from registry.storage import audit
+from registry.storage.writer import write_entries
 
 ADD_AMIDE = [
     "--as", "alice", "add", "--method", "coalescence", "--smiles", "CN(C)C(=O)c1ccc(Cl)cc1",

@@ -15,8 +15,8 @@ from test_io_import import HEADERS, ROWS, write_csv, write_xlsx
 
 from registry.errors import FileFormatError, FluxledgerError, ImportRowError
 from registry.io import import_table
-from registry.models import ImportBatch, Measurement
-from registry.store import Database
+from registry.storage.database import Database
+from registry.storage.models import ImportBatch, Measurement
 
 
 def measurements(database: Database) -> int:

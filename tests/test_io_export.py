@@ -14,7 +14,7 @@ from test_io_import import write_csv, write_xlsx
 from registry import api
 from registry.errors import UsageError
 from registry.io import export_measurements, import_table
-from registry.store import Database
+from registry.storage.database import Database
 
 SEED = Path(__file__).resolve().parent.parent / "seed_demo"
 
@@ -39,7 +39,7 @@ def filled(database: Database, tmp_path: Path) -> Database:
     ]  # fmt: skip
     rates = [["label", "T (°C)", "k (s-1)", "σ_k"], ["E3", 80, 20.5, 1.0], ["E3", 90, 48.0, 2.5]]
     import_table(database, write_xlsx(tmp_path / "src.xlsx", {"entries": entries, "rates": rates}))
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
 
     api.add_measurement(  # entered on the command line: the field text is a bare "400"
         database,

@@ -11,12 +11,12 @@ from openpyxl import Workbook
 from sqlalchemy import func, select
 
 from registry import api
-from registry.chem import read_structure
 from registry.errors import ImportRowError
 from registry.io import import_table, parallel
 from registry.io import importer as importer_mod
-from registry.models import Compound, ImportBatch, Measurement, RatePoint, Revision, Solvent
-from registry.store import Database
+from registry.record.chem import read_structure
+from registry.storage.database import Database
+from registry.storage.models import Compound, ImportBatch, Measurement, RatePoint, Revision, Solvent
 
 HEADERS = [
     "compound",

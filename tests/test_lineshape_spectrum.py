@@ -13,7 +13,7 @@ from registry.errors import FileFormatError, UsageError
 from registry.lineshape.fit import LineShapeFit
 from registry.lineshape.spectrum import csv_text, parse_csv_spectrum, read_spectrum
 from registry.lineshape.store_link import rate_points, value_with_error_text
-from registry.units import parse_value
+from registry.record.units import parse_value
 
 
 def test_header_metadata_and_units() -> None:

@@ -6,10 +6,11 @@ import math
 
 import pytest
 
-from registry import api, lookup
-from registry.entry import EntryInput
-from registry.models import Compound
-from registry.store import Database
+from registry import api
+from registry.record.entry import EntryInput
+from registry.storage import lookup
+from registry.storage.database import Database
+from registry.storage.models import Compound
 
 
 def _fill(database: Database) -> None:

@@ -16,8 +16,10 @@ from pathlib import Path
 import pytest
 from sqlalchemy import MetaData, Table, insert, select
 
-from registry import api, audit, maintenance, migrate
-from registry.store import open_database
+from registry import api
+from registry.admin import maintenance
+from registry.storage import audit, migrate
+from registry.storage.database import open_database
 
 FLUXLEDGER = Path(__file__).resolve().parent.parent / ".venv" / "bin" / "fluxledger"
 

@@ -6,9 +6,9 @@ from pathlib import Path
 
 from sqlalchemy import create_engine, inspect
 
-from registry import migrate
-from registry.models import Base
-from registry.store import open_database
+from registry.storage import migrate
+from registry.storage.database import open_database
+from registry.storage.models import Base
 
 
 def _schema(engine) -> dict[str, set[str]]:  # type: ignore[no-untyped-def]
@@ -53,7 +53,7 @@ def test_upgrade_downgrade_upgrade_round_trip(tmp_path: Path) -> None:
 
 
 def test_seed_is_idempotent(tmp_path: Path) -> None:
-    from registry.vocab import SOLVENTS, seed_reference_data
+    from registry.record.vocab import SOLVENTS, seed_reference_data
 
     database = open_database(str(tmp_path / "a.sqlite"), must_exist=False)
     migrate.upgrade(database)

@@ -8,10 +8,11 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
-from registry import api, audit
-from registry.entry import EntryInput
+from registry import api
 from registry.pg.copy import migrate_to
-from registry.store import open_database
+from registry.record.entry import EntryInput
+from registry.storage import audit
+from registry.storage.database import open_database
 
 pytest_plugins = ("conftest_pg",)
 

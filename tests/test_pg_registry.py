@@ -10,9 +10,10 @@ import pytest
 from sqlalchemy import inspect
 from typer.testing import CliRunner
 
-from registry import api, audit, migrate
-from registry.entry import EntryInput
-from registry.store import open_database, to_url
+from registry import api
+from registry.record.entry import EntryInput
+from registry.storage import audit, migrate
+from registry.storage.database import open_database, to_url
 
 pytest_plugins = ("conftest_pg",)
 

@@ -13,9 +13,9 @@ import pytest
 from typer.testing import CliRunner
 
 from registry import api
-from registry.entry import EntryInput
 from registry.pg import cartridge
-from registry.store import open_database
+from registry.record.entry import EntryInput
+from registry.storage.database import open_database
 
 pytest_plugins = ("conftest_pg",)
 

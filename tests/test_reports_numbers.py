@@ -8,8 +8,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from registry.record.units import parse_value
 from registry.reports.numbers import error_decimals, format_uncertain, round_with_error
-from registry.units import parse_value
 
 
 def test_gum_concise_notation_example() -> None:
@@ -73,7 +73,7 @@ def test_no_value_and_bad_style() -> None:
 def test_written_text_reads_back_through_the_unit_parser(
     value: float, error: float, style: str
 ) -> None:
-    """What we write, registry.units reads back: same rounded value and uncertainty."""
+    """What we write, registry.record.units reads back: same rounded value and uncertainty."""
     text = format_uncertain(value, error, style=style)
     parsed = parse_value(f"{text} kJ/mol", "energy")
     decimals = error_decimals(error)

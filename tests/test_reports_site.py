@@ -19,9 +19,9 @@ from scipy import constants as codata
 from sqlalchemy import insert
 
 from registry import api
-from registry.entry import EntryInput
-from registry.models import ValidationFinding
+from registry.record.entry import EntryInput
 from registry.reports import site
+from registry.storage.models import ValidationFinding
 
 #: invented activation parameters for the demo rate series (not from any paper)
 DEMO_DH_KJ_MOL = 58.0

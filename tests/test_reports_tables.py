@@ -136,7 +136,7 @@ def test_errors() -> None:
 
 def test_table_rows_from_the_registry(database) -> None:  # type: ignore[no-untyped-def]
     from registry import api
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
 
     mid = api.add_measurement(
         database,
@@ -187,7 +187,7 @@ def test_export_command_writes_paper_tables(cli, tmp_path) -> None:  # type: ign
 
 def test_export_table_files(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
     from registry import api
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
     from registry.reports.tables import export_table
 
     api.add_measurement(

@@ -120,7 +120,7 @@ def with_metals(tmp_path: Path):  # type: ignore[no-untyped-def]
     path = tmp_path / "registry.sqlite"
     write_registry(path, generated_smiles()[::40])
     database = api.open_registry(str(path))
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
 
     for smiles in (
         "[Fe+2].c1cc[cH-]c1.c1cc[cH-]c1",

@@ -109,7 +109,7 @@ def test_limit_shortens_rows_but_reports_the_total(small) -> None:  # type: igno
 @pytest.mark.parametrize("small_limit", [64, 0], ids=["loop", "library"])
 def test_stereo_search_needs_matching_chirality(database, monkeypatch, small_limit) -> None:  # type: ignore[no-untyped-def]
     monkeypatch.setattr(engine_module, "_SMALL", small_limit)
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
 
     for i, smi in enumerate(["C=C[C@H]1C[C@H]1C=C", "C=C[C@H]1C[C@@H]1C=C", "C=CC1CC1C=C"]):
         api.add_measurement(
@@ -269,7 +269,7 @@ def test_unchanged_registry_file_skips_the_signature_query(small, monkeypatch) -
 
 
 def test_index_extends_with_new_compounds_and_finds_them(small, monkeypatch) -> None:  # type: ignore[no-untyped-def]
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
 
     query = build_query(motif=get_motif("sulfonamide"))
     before = find(small, query=query)
@@ -287,7 +287,7 @@ def test_index_extends_with_new_compounds_and_finds_them(small, monkeypatch) -> 
 
 
 def _replace_structure(database, old: str, new: str) -> None:  # type: ignore[no-untyped-def]
-    from registry.chem import read_structure
+    from registry.record.chem import read_structure
 
     s = read_structure(new)
     database.write(
@@ -312,7 +312,7 @@ def test_index_rebuilds_when_a_structure_changes(small) -> None:  # type: ignore
 
 
 def test_same_size_edit_is_seen_through_the_history(small) -> None:  # type: ignore[no-untyped-def]
-    from registry import audit
+    from registry.storage import audit
 
     query = build_query(motif=get_motif("thioamide"))
     find(small, query=query)
@@ -359,7 +359,7 @@ def test_unwritable_cache_still_answers(small, monkeypatch) -> None:  # type: ig
 
 
 def test_server_databases_cache_in_the_user_cache_dir(monkeypatch, tmp_path: Path) -> None:
-    from registry.store import Database
+    from registry.storage.database import Database
 
     monkeypatch.setenv("FLUXLEDGER_CACHE_DIR", str(tmp_path))
     fake = Database(url="postgresql://ann@db.example/registry", engine=None, is_sqlite=False)  # type: ignore[arg-type]

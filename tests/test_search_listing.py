@@ -22,8 +22,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from search_data import registry_copy
 
-from registry import api, edits
-from registry.entry import EntryInput
+from registry import api
+from registry.admin import edits
+from registry.record.entry import EntryInput
 from registry.search import build_query, find, get_motif, make_filters
 from registry.search import engine as engine_module
 from registry.search import listing as listing_module
@@ -195,7 +196,7 @@ def test_unwritable_listing_still_answers(database, monkeypatch) -> None:  # typ
 
 
 def test_server_databases_have_no_listing() -> None:
-    from registry.store import Database
+    from registry.storage.database import Database
 
     fake = Database(url="postgresql://ann@db.example/registry", engine=None, is_sqlite=False)  # type: ignore[arg-type]
     assert listing_module.listing_path(fake) is None

@@ -79,7 +79,7 @@ def test_get_motif_names_the_known_ones_when_unknown() -> None:
 def test_user_motif_add_list_remove_with_history(database) -> None:  # type: ignore[no-untyped-def]
     from sqlalchemy import select
 
-    from registry.models import Revision
+    from registry.storage.models import Revision
 
     added = lib.add_motif(
         database, "lactam-5", "O=C1CCCN1", description="pyrrolidinone", actor="ann"

@@ -18,9 +18,9 @@ import pytest
 from search_data import registry_copy
 from sqlalchemy import and_, or_, select, text
 
-from registry import api, migrate, store, vocab
+from registry import api
 from registry.errors import DatabaseError
-from registry.models import Measurement, Process, Solvent
+from registry.record import vocab
 from registry.search import brute_force, build_query, find, get_motif, make_filters
 from registry.search import engine as engine_module
 from registry.search import filters as filters_module
@@ -33,6 +33,9 @@ from registry.search.sqlite_read import (
     open_for_search,
     sqlite_path,
 )
+from registry.storage import database as store
+from registry.storage import migrate
+from registry.storage.models import Measurement, Process, Solvent
 
 
 @pytest.fixture
@@ -274,7 +277,7 @@ def test_cli_find_on_sqlite_does_not_load_sqlalchemy(registry_file: Path) -> Non
         f"sys.argv = ['fluxledger', '--db', {str(registry_file)!r}, 'find', '--motif', 'amide',"
         " '--csv', '--barrier', '>= 60 kJ/mol', '--solvent', 'nonpolar']\n"
         "try:\n    run()\nexcept SystemExit as exc:\n    assert not exc.code, exc.code\n"
-        "loaded = sorted(m for m in ('sqlalchemy', 'registry.models', 'registry.api')"
+        "loaded = sorted(m for m in ('sqlalchemy', 'registry.storage.models', 'registry.api')"
         " if m in sys.modules)\n"
         "print('LOADED', loaded, file=sys.stderr)\n"
     )

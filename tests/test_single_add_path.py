@@ -9,10 +9,11 @@ import pytest
 from scipy import constants as C
 from sqlalchemy import insert, select
 
-from registry import api, audit, rawsql
-from registry.entry import EntryInput
-from registry.models import Compound, Measurement
-from registry.store import Database
+from registry import api
+from registry.record.entry import EntryInput
+from registry.storage import audit, rawsql
+from registry.storage.database import Database
+from registry.storage.models import Compound, Measurement
 
 
 def _compound_row(label: str, at: datetime) -> dict[str, object]:

@@ -10,7 +10,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from registry.errors import FluxledgerError, UnitError
-from registry.units import convert, parse_value
+from registry.record.units import convert, parse_value
 
 # NIST SP 811 (2008), Appendix B.8: calorie (thermochemical) = 4.184 J exactly
 CAL_TH_J = 4.184

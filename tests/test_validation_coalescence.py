@@ -16,8 +16,8 @@ from scipy import constants as C
 from scipy.optimize import brentq
 
 from registry import api
-from registry.entry import EntryInput
-from registry.store import Database
+from registry.record.entry import EntryInput
+from registry.storage.database import Database
 from registry.validation import CheckConfig, Finding, check_measurements
 
 R_KJ = C.R / 1000.0

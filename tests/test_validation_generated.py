@@ -27,11 +27,11 @@ import pytest
 from scipy import constants as C
 from scipy.optimize import brentq
 
-from registry import vocab
-from registry.entry import EntryInput, normalize_entry
-from registry.store import Database
+from registry.record import vocab
+from registry.record.entry import EntryInput, normalize_entry
+from registry.storage.database import Database
+from registry.storage.writer import known_process_kinds, write_entries
 from registry.validation import CheckConfig, check_measurements
-from registry.writer import known_process_kinds, write_entries
 
 R_KJ = C.R / 1000.0
 KB_H = C.Boltzmann / C.Planck

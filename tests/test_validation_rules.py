@@ -19,9 +19,9 @@ from scipy import constants as C
 from sqlalchemy import update
 
 from registry import api, kinetics
-from registry.entry import EntryInput
-from registry.models import Compound
-from registry.store import Database
+from registry.record.entry import EntryInput
+from registry.storage.database import Database
+from registry.storage.models import Compound
 from registry.validation import Finding, check_measurements
 from registry.validation.data import energy_units
 from registry.validation.rule_refit import grouped_eyring_fit
@@ -277,7 +277,7 @@ _ENERGY_SPELLINGS = {"kJ/mol": 1.0, "kcal/mol": 1 / C.calorie, "kcal mol-1": 1 /
 def test_energy_units_read_back_the_written_unit(
     value: float, err: float | None, spelling: str
 ) -> None:
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     text = f"{value:.3f}" + (f" ± {err:.2f}" if err else "") + f" {spelling}"
     stored = parse_value(text, "energy").value

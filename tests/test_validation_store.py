@@ -9,10 +9,10 @@ from scipy import constants as C
 from sqlalchemy import select, update
 
 from registry import api
-from registry.entry import EntryInput
 from registry.errors import NotFoundError, UsageError
-from registry.models import Measurement, Revision, ValidationFinding
-from registry.store import Database
+from registry.record.entry import EntryInput
+from registry.storage.database import Database
+from registry.storage.models import Measurement, Revision, ValidationFinding
 from registry.validation import accept_finding, check_measurements
 from registry.validation.rule_coalescence import CoalescenceBarrier
 

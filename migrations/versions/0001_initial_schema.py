@@ -10,7 +10,7 @@ from collections.abc import Sequence
 import sqlalchemy as sa
 from alembic import op
 
-from registry.vocab import seed_reference_data
+from registry.record.vocab import seed_reference_data
 
 revision: str = "0001"
 down_revision: str | None = None

@@ -8,7 +8,7 @@ On SQLite this revision does nothing. On PostgreSQL it adds ``compound.mol`` (th
 molecule type), a trigger that fills it from ``smiles_canonical`` on every write, and a GiST
 index, when the ``rdkit`` extension is installed or can be created. Without the cartridge it
 also does nothing; ``fluxledger server-search --enable`` adds the column later. The column is
-deliberately not in ``registry.models`` (migrations/env.py leaves it out of drift checks).
+deliberately not in ``registry.storage.models`` (migrations/env.py leaves it out of drift checks).
 """
 
 from collections.abc import Sequence

@@ -1,6 +1,6 @@
 """``fluxledger calc``: barriers, rates, half-lives and VT-NMR plans at the bench, no database.
 
-Each command parses its options with :func:`registry.units.parse_value`, calls
+Each command parses its options with :func:`registry.record.units.parse_value`, calls
 :mod:`registry.kinetics` and renders text or ``--json``. numpy, scipy, pandas and pint are
 imported inside the commands so that ``fluxledger --help`` stays fast.
 """
@@ -43,7 +43,7 @@ _PAIR = typer.Option(
 
 
 def _value(text: str, quantity: str, field: str, **kw: Any) -> Any:
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     return parse_value(text, quantity, field=field, **kw)
 
@@ -108,19 +108,19 @@ def _ratio(text: str, field: str = "--ratio") -> float:
 
 
 def _kcal(kj: float) -> float:
-    from registry.units import energy_from_kj
+    from registry.record.units import energy_from_kj
 
     return energy_from_kj(kj, "kcal/mol")
 
 
 def _celsius(t_k: float) -> float:
-    from registry.units import convert
+    from registry.record.units import convert
 
     return convert(t_k, "K", "degC")
 
 
 def _eu(ds_j: float) -> float:
-    from registry.units import convert
+    from registry.record.units import convert
 
     return convert(ds_j, "J/(mol*K)", "cal/(mol*K)")
 
@@ -575,7 +575,7 @@ def plan(
 ) -> None:
     """Predict the coalescence temperature per field, the exchange regime and stability."""
     from registry.kinetics import plan_coalescence
-    from registry.units import clean_text
+    from registry.record.units import clean_text
 
     barrier = _barrier(dg, dh, ds)
     fields = [_mhz(m) for m in (mhz or [])]

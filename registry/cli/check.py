@@ -79,7 +79,7 @@ def check(
     Exits with status 1 when an error-level finding has not been accepted.
     """
     from registry import api
-    from registry.units import parse_value
+    from registry.record.units import parse_value
     from registry.validation import CheckConfig, check_measurements
 
     if severity is not None and severity.lower() not in _LEVELS:

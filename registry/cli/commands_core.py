@@ -101,7 +101,7 @@ def add(
 ) -> None:
     """Add one measurement; values take units in any usual notation."""
     from registry import api
-    from registry.entry import EntryInput
+    from registry.record.entry import EntryInput
 
     rates = []
     for text in rate or []:
@@ -249,7 +249,7 @@ def list_cmd(
 ) -> None:
     """List measurements with basic filters."""
     from registry import api
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     lo = parse_value(barrier_min, "energy", field="--barrier-min").value if barrier_min else None
     hi = parse_value(barrier_max, "energy", field="--barrier-max").value if barrier_max else None

@@ -40,7 +40,8 @@ def history(
     ),
 ) -> None:
     """Who changed what and when: one measurement's revisions, or the latest N of all."""
-    from registry import api, edits
+    from registry import api
+    from registry.admin import edits
 
     if limit < 0:
         raise UsageError("--limit must be 0 (all) or more")
@@ -94,7 +95,8 @@ def edit(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Change values of a measurement; units in any usual notation; the old values stay in the history."""
-    from registry import api, edits
+    from registry import api
+    from registry.admin import edits
 
     changes = edits.parse_assignments(assignments or [])
     st = state(ctx)
@@ -124,7 +126,8 @@ def retract(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Retract a measurement: hidden from listings (see --include-retracted), never deleted."""
-    from registry import api, edits
+    from registry import api
+    from registry.admin import edits
 
     st = state(ctx)
     database = api.open_registry(st.db)

@@ -189,8 +189,8 @@ def export_cmd(
 
     from registry import api
     from registry.io import export_measurements
+    from registry.record.units import parse_value
     from registry.reports.tables import TABLE_FORMATS, export_table
-    from registry.units import parse_value
 
     lo = parse_value(barrier_min, "energy", field="--barrier-min").value if barrier_min else None
     hi = parse_value(barrier_max, "energy", field="--barrier-max").value if barrier_max else None

@@ -1,6 +1,6 @@
 """``fluxledger lineshape``: simulate exchange-broadened spectra, fit rates, store them.
 
-The commands parse options (quantities through :func:`registry.units.parse_value`), call
+The commands parse options (quantities through :func:`registry.record.units.parse_value`), call
 :mod:`registry.lineshape` and render text or ``--json``. numpy, scipy and matplotlib are
 imported inside the commands so that ``fluxledger --help`` stays fast.
 """
@@ -63,7 +63,7 @@ def _split_list(text: str, field: str) -> list[tuple[str, str | None]]:
     A unit after the last value applies to every value written without one. Use a decimal
     point in lists: the comma separates values.
     """
-    from registry.units import clean_text
+    from registry.record.units import clean_text
 
     items = [clean_text(t) for t in text.split(",")]
     parsed = []
@@ -78,7 +78,7 @@ def _split_list(text: str, field: str) -> list[tuple[str, str | None]]:
 
 def _shift_list(text: str, field: str) -> tuple[list[float], str]:
     """Numbers and their unit ('ppm' or 'Hz'), as written; ppm unless a unit says otherwise."""
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     items = _split_list(text, field)
     units = {("ppm" if u is None or u.lower() == "ppm" else u) for _, u in items}
@@ -95,7 +95,7 @@ def _count(n: int, word: str) -> str:
 
 
 def _to_hz(values: list[float], unit: str, mhz: float | None, field: str) -> list[float]:
-    from registry.units import ppm_to_hz
+    from registry.record.units import ppm_to_hz
 
     if unit == "Hz":
         return values
@@ -105,7 +105,7 @@ def _to_hz(values: list[float], unit: str, mhz: float | None, field: str) -> lis
 
 
 def _mhz(text: str | None) -> float | None:
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     if text is None:
         return None
@@ -116,7 +116,7 @@ def _mhz(text: str | None) -> float | None:
 
 
 def _positive(text: str, quantity: str, field: str, default_unit: str) -> float:
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     value = parse_value(text, quantity, field=field, default_unit=default_unit).value
     if not value > 0:
@@ -125,7 +125,7 @@ def _positive(text: str, quantity: str, field: str, default_unit: str) -> float:
 
 
 def _populations(text: str | None, n_sites: int) -> tuple[float, ...]:
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     if text is None:
         return tuple([1.0 / n_sites] * n_sites)
@@ -201,7 +201,7 @@ def simulate(
     import numpy as np
 
     from registry.lineshape.spectrum import csv_text
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     mhz = _mhz(field)
     shift_values, unit = _shift_list(sites, "--sites")
@@ -269,7 +269,7 @@ def _load(
     files: list[Path], temps: str | None, x_unit: str | None, mhz: float | None
 ) -> list[Spectrum]:
     from registry.lineshape.spectrum import read_spectrum
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     spectra = [read_spectrum(f) for f in files]
     if x_unit is not None:

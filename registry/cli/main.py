@@ -28,7 +28,7 @@ class BoundaryGroup(ErrorBoundaryGroup):
 
 def _print_database_warnings(discard: bool = False) -> None:
     """Each warning about an opened database (e.g. on a network file system) once, on stderr."""
-    store = sys.modules.get("registry.store")  # not imported: no database was opened
+    store = sys.modules.get("registry.storage.database")  # not imported: no database was opened
     if store is not None:
         for warning in store.take_warnings():
             if not discard:

@@ -31,8 +31,8 @@ def backup(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Copy the registry to a file while others keep working (one consistent snapshot)."""
-    from registry import maintenance
-    from registry.store import open_database
+    from registry.admin import maintenance
+    from registry.storage.database import open_database
 
     database = open_database(state(ctx).db, must_exist=True)
     try:
@@ -58,7 +58,7 @@ def restore(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Replace the registry's content with a backup, after verifying the backup."""
-    from registry import maintenance
+    from registry.admin import maintenance
 
     result = maintenance.restore(state(ctx).db, source, force=force)
     if as_json:
@@ -87,8 +87,8 @@ def verify(
 
     Exit status 1 when any check finds a problem.
     """
-    from registry import maintenance
-    from registry.store import open_database
+    from registry.admin import maintenance
+    from registry.storage.database import open_database
 
     database = open_database(state(ctx).db, must_exist=True)
     try:
@@ -124,7 +124,7 @@ def db_current(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """The registry's schema version and the one this fluxledger needs."""
-    from registry import maintenance
+    from registry.admin import maintenance
 
     result = maintenance.schema_state(state(ctx).db)
     if as_json:
@@ -153,7 +153,7 @@ def db_upgrade(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Bring the schema to the current version; a SQLite registry is backed up first."""
-    from registry import maintenance
+    from registry.admin import maintenance
 
     result = maintenance.upgrade(state(ctx).db, backup_dir=backup_dir, no_backup=no_backup)
     if as_json:

@@ -60,8 +60,8 @@ def eyring(
 ) -> None:
     """ln(k/T) against 1/T with the weighted fit, its 95 % confidence band, ΔH‡, ΔS‡ and ΔG‡."""
     from registry.kinetics import fit_eyring
+    from registry.record.units import parse_value
     from registry.reports import plots
-    from registry.units import parse_value
 
     unit = energy_unit_option(energy_unit)
     plots.figure_format(out)
@@ -135,8 +135,8 @@ def coalescence(
     import numpy as np
 
     from registry.kinetics import safety_notes
+    from registry.record.units import parse_value
     from registry.reports import gather, plots
-    from registry.units import parse_value
 
     unit = energy_unit_option(energy_unit)
     plots.figure_format(out)
@@ -228,7 +228,7 @@ def coalescence(
 
 def _dnu_ppm(text: str, field_text: str | None) -> float:
     """Δν in ppm; a frequency needs the field it was measured at (Δν in Hz scales with field)."""
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     # read at a nominal 1 MHz: a value in ppm comes back as Hz per MHz, i.e. in ppm
     parsed = parse_value(text, "shift", field="--dnu", spectrometer_mhz=1.0)

@@ -25,7 +25,8 @@ from sqlalchemy import select
 from registry.errors import UsageError
 from registry.io.cells import neutralise
 from registry.io.importer import format_rate_list
-from registry.models import (
+from registry.storage.database import Database
+from registry.storage.models import (
     CoalescenceObservation,
     Compound,
     Measurement,
@@ -33,7 +34,6 @@ from registry.models import (
     RatePoint,
     ValidationFinding,
 )
-from registry.store import Database
 
 FORMATS = ("csv", "xlsx", "json")
 

@@ -6,7 +6,7 @@ A header is split into a concept and a unit (``ΔG‡ (kcal/mol)``, ``dG# / kJ m
 :data:`CONCEPTS`. To teach the importer a new spelling, add its key there (see
 DEVELOPERS.md); a mapping file overrides any guess.
 
-Field names are those of :class:`registry.entry.EntryInput`, plus the rate-sheet fields
+Field names are those of :class:`registry.record.entry.EntryInput`, plus the rate-sheet fields
 ``t``, ``k``, ``t_err``, ``k_err``, ``rates`` (an export's embedded rate list), ``<field>_err``
 for a separate uncertainty column, and the roles ``extra`` and ``ignore``.
 """
@@ -16,7 +16,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
-from registry.entry import VALUE_FIELDS
+from registry.record.entry import VALUE_FIELDS
 
 #: fields whose cells are physical values, and the quantity kind each is read as
 VALUE_QUANTITY: dict[str, str] = {name: kind for name, (kind, _) in VALUE_FIELDS.items()}

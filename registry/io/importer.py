@@ -1,11 +1,11 @@
 """Import a spreadsheet: map headers, read and check every row, then write it all in one go.
 
 The flow (STYLE.md §9): read the file (:mod:`.readers`) → plan the columns (:mod:`.mapping`) →
-build one :class:`~registry.entry.EntryInput` per row and normalize it (values through
-:mod:`registry.units`, structures through :mod:`registry.chem`, both in a process pool for big
+build one :class:`~registry.record.entry.EntryInput` per row and normalize it (values through
+:mod:`registry.record.units`, structures through :mod:`registry.record.chem`, both in a process pool for big
 files, :mod:`.parallel`) → collect *every* problem with its file, sheet, row, column and text →
 only then open one write transaction: the import batch row, new measurements
-(:func:`registry.writer.write_entries`), updates of matching ones (:mod:`.upsert`) and rate
+(:func:`registry.storage.writer.write_entries`), updates of matching ones (:mod:`.upsert`) and rate
 points. Any failure or Ctrl-C before the commit leaves the registry as it was.
 
 With ``skip_bad`` the rows with problems are left out (and written to a side CSV with the
@@ -26,19 +26,19 @@ from typing import Any
 
 from sqlalchemy import Connection, insert, select, update
 
-from registry.chem import Structure
-from registry.entry import EntryInput, NormalizedEntry, Problem, text_of
 from registry.errors import FileFormatError, ImportRowError, RowProblem, UnitError
 from registry.io import parallel, upsert
 from registry.io.cells import EMPTY_MARKERS, cell_text, is_formula_text, looks_numeric
 from registry.io.headers import EXTRA_PREFIX, FIELD_TITLES
 from registry.io.mapping import Column, SheetPlan, load_mapping, plan_sheet
 from registry.io.readers import RawSheet, column_letter, read_file
-from registry.lookup import rows_where_in
-from registry.models import Compound, ImportBatch, Measurement
-from registry.store import Database, current_user
-from registry.units import parse_value
-from registry.writer import known_process_kinds, solvent_index, write_entries
+from registry.record.chem import Structure
+from registry.record.entry import EntryInput, NormalizedEntry, Problem, text_of
+from registry.record.units import parse_value
+from registry.storage.database import Database, current_user
+from registry.storage.lookup import rows_where_in
+from registry.storage.models import Compound, ImportBatch, Measurement
+from registry.storage.writer import known_process_kinds, solvent_index, write_entries
 
 #: more rows than this show a progress bar (when asked for one)
 PROGRESS_MIN_ROWS = 5000
@@ -1177,7 +1177,7 @@ def _apply_rate_plan(
     conn: Connection, plan: dict[int, list[dict[str, Any]]], actor: str, batch_id: int
 ) -> int:
     """Replace rate points of existing measurements where the file's set differs; count them."""
-    from registry import audit
+    from registry.storage import audit
 
     if not plan:
         return 0

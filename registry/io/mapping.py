@@ -32,7 +32,7 @@ from typing import Any
 from registry.errors import FileFormatError, RowProblem, UnitError, UsageError
 from registry.io.headers import FIELDS, VALUE_QUANTITY, HeaderGuess, guess_header
 from registry.io.readers import column_letter
-from registry.units import unit_of
+from registry.record.units import unit_of
 
 ROLES = ("extra", "ignore")
 

@@ -18,9 +18,9 @@ from concurrent.futures import Future, ProcessPoolExecutor
 from types import TracebackType
 from typing import Any
 
-from registry.chem import Structure, read_structure
-from registry.entry import EntryInput, NormalizedEntry, Problem, normalize_entry
 from registry.errors import StructureError
+from registry.record.chem import Structure, read_structure
+from registry.record.entry import EntryInput, NormalizedEntry, Problem, normalize_entry
 
 #: below this many rows (or a third as many distinct SMILES) the work runs in this process
 PARALLEL_MIN_ROWS = 3000

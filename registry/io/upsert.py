@@ -1,4 +1,4 @@
-"""Insert-or-update next to :func:`registry.writer.write_entries`, for repeated imports.
+"""Insert-or-update next to :func:`registry.storage.writer.write_entries`, for repeated imports.
 
 A measurement is "the same" when compound, process, solvent, method, reference and label
 match. Importing a file twice therefore adds nothing, and importing a corrected version
@@ -22,12 +22,19 @@ from typing import Any
 
 from sqlalchemy import Connection, delete, insert, select, update
 
-from registry import audit, vocab
-from registry.chem import Structure
-from registry.entry import NormalizedEntry
-from registry.lookup import rows_where_in
-from registry.models import CoalescenceObservation, Compound, Measurement, Process, RatePoint
-from registry.writer import solvent_index
+from registry.record import vocab
+from registry.record.chem import Structure
+from registry.record.entry import NormalizedEntry
+from registry.storage import audit
+from registry.storage.lookup import rows_where_in
+from registry.storage.models import (
+    CoalescenceObservation,
+    Compound,
+    Measurement,
+    Process,
+    RatePoint,
+)
+from registry.storage.writer import solvent_index
 
 MatchKey = tuple[Any, ...]
 

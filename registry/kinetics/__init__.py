@@ -2,7 +2,7 @@
 
 Pure functions over floats and numpy arrays (10⁶ entries in one call are fine); no database.
 Canonical units throughout: kJ/mol, K, J/(mol·K), Hz, s⁻¹. Text with units is read by
-:mod:`registry.units` (see :mod:`.rate_table`), never here.
+:mod:`registry.record.units` (see :mod:`.rate_table`), never here.
 
 Map:
     constants    CODATA constants from scipy.constants (k_B, h, R, N_A)

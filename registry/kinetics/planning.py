@@ -186,7 +186,7 @@ def exchange_regime(k_per_s: ArrayLike, dnu_hz: ArrayLike, j_hz: ArrayLike = 0.0
 
 @lru_cache(maxsize=1)
 def _laplante_limits_kj_mol() -> tuple[float, float]:
-    from registry.units import convert
+    from registry.record.units import convert
 
     return convert(20.0, "kcal/mol", "kJ/mol"), convert(30.0, "kcal/mol", "kJ/mol")
 

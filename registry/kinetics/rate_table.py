@@ -28,7 +28,7 @@ from registry.errors import (
     UnitError,
     UsageError,
 )
-from registry.units import parse_value
+from registry.record.units import parse_value
 
 
 @dataclass(frozen=True)

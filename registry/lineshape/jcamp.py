@@ -157,7 +157,7 @@ def _x_unit(recs: dict[str, _Record], source: str) -> str | None:
 
 
 def _temperature(recs: dict[str, _Record], source: str) -> tuple[float | None, str | None]:
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     for label, default_unit in (("TEMPERATURE", "degC"), ("$TE", "K")):
         rec = recs.get(label)

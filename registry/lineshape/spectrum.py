@@ -2,7 +2,7 @@
 
 A spectrum keeps its abscissa as the file gave it (ppm or Hz) together with the observe
 frequency when the file states one; :meth:`Spectrum.frequency_hz` converts through
-:func:`registry.units.ppm_to_hz` only when asked, so a spectrum in ppm without a known
+:func:`registry.record.units.ppm_to_hz` only when asked, so a spectrum in ppm without a known
 spectrometer frequency is an error at the point of use, never a guess.
 
 CSV form: two columns (shift, intensity; further columns ignored), separated by commas,
@@ -24,7 +24,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from registry.errors import FileFormatError, UnitError, UsageError
-from registry.units import ppm_to_hz
+from registry.record.units import ppm_to_hz
 
 X_UNITS = ("ppm", "Hz")
 JCAMP_SUFFIXES = (".dx", ".jdx", ".jcamp", ".jcm")
@@ -131,7 +131,7 @@ def _delimiter(line: str) -> str | None:
 
 def parse_csv_spectrum(text: str, source: str) -> Spectrum:
     """Parse the CSV form (see module docstring); any bad line raises FileFormatError with its number."""
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     meta: dict[str, tuple[int, str]] = {}
     # comprehensions, not a statement loop: 16k-line spectra are the normal case

@@ -21,7 +21,7 @@ if TYPE_CHECKING:  # the fit module pulls in scipy; keep this one light
 def value_with_error_text(value: float, error: float | None, unit: str) -> str:
     """``'123.5 ± 4.6 s-1'``: the error to two significant figures and the value to match.
 
-    The text reads back through :func:`registry.units.parse_value` to the same numbers.
+    The text reads back through :func:`registry.record.units.parse_value` to the same numbers.
     """
     if error is None or not math.isfinite(error) or error <= 0:
         return f"{value:.4g} {unit}"

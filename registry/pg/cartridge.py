@@ -11,7 +11,7 @@ versions. The server's answer is therefore used only as a *screen*: compounds th
 not read (``mol`` is NULL) are always returned as candidates, and callers confirm each candidate
 with the client's RDKit, so results on PostgreSQL equal those on SQLite.
 
-The column is not part of :mod:`registry.models` (SQLite has no such type); migration 0002 adds
+The column is not part of :mod:`registry.storage.models` (SQLite has no such type); migration 0002 adds
 it on PostgreSQL when the extension is available, and ``fluxledger server-search --enable`` adds
 it later if the cartridge is installed after the registry was created.
 """

@@ -21,11 +21,11 @@ from typing import Any
 from sqlalchemy import Connection, Table, func, insert, select
 from sqlalchemy.exc import OperationalError
 
-from registry import audit, migrate
 from registry.errors import DatabaseError, UsageError
-from registry.models import Base
 from registry.pg import cartridge
-from registry.store import Database, open_database, redacted_url, to_url
+from registry.storage import audit, migrate
+from registry.storage.database import Database, open_database, redacted_url, to_url
+from registry.storage.models import Base
 
 CHUNK_ROWS = 5000
 

@@ -1,7 +1,7 @@
 """2D structure drawings as SVG text, for the HTML report.
 
 RDKit's ``MolDraw2DSVG`` draws from the stored molecule (``mol_binary``) or the canonical
-SMILES. RDKit is imported lazily through :func:`registry.chem._rdkit` (which also silences its
+SMILES. RDKit is imported lazily through :func:`registry.record.chem._rdkit` (which also silences its
 logger). A compound stored unsanitized (``structure_ok`` false) gets no drawing: coordinates
 and aromaticity of such structures are unreliable, and a wrong picture is worse than none,
 so the page shows a text placeholder with the reason.
@@ -48,7 +48,7 @@ def structure_svg(
 
 
 def _molecule(compound: Mapping[str, Any]) -> Any:
-    from registry.chem import _rdkit
+    from registry.record.chem import _rdkit
 
     Chem = _rdkit()
     binary = compound.get("mol_binary")

@@ -1,6 +1,6 @@
 """What the figures and pages need from the registry, read in a few queries.
 
-Reads only; every function takes an open :class:`registry.store.Database`. Retracted
+Reads only; every function takes an open :class:`registry.storage.database.Database`. Retracted
 measurements are left out of overviews and pages unless asked for, as in listings.
 """
 
@@ -16,7 +16,8 @@ from numpy.typing import NDArray
 from sqlalchemy import select
 
 from registry.errors import NotFoundError, UsageError
-from registry.models import (
+from registry.storage.database import Database
+from registry.storage.models import (
     CoalescenceObservation,
     Compound,
     Measurement,
@@ -25,7 +26,6 @@ from registry.models import (
     Solvent,
     ValidationFinding,
 )
-from registry.store import Database
 
 #: the group of compounds that match no motif
 NO_MOTIF = "(no motif)"
@@ -130,7 +130,7 @@ def observed_coalescence(
 
 def solvent_range(database: Database, text: str) -> dict[str, Any] | None:
     """The solvent table's liquid range (K) for a solvent as written, or None when unknown."""
-    from registry import vocab
+    from registry.record import vocab
 
     key = vocab.solvent_key(text)
     with database.read() as conn:

@@ -25,9 +25,9 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from registry.errors import UsageError
+from registry.record.units import convert
 from registry.reports import theme
 from registry.reports.numbers import format_uncertain
-from registry.units import convert
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -317,7 +317,7 @@ def predict_coalescence(
     uncertainty of ΔG‡ the band is Tc at ΔG‡ ± σ.
     """
     from registry.kinetics import coalescence_temperature
-    from registry.units import ppm_to_hz
+    from registry.record.units import ppm_to_hz
 
     fields = np.asarray(fields_mhz, dtype=float)
     if dnu_ppm <= 0:

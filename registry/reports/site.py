@@ -22,7 +22,7 @@ from typing import Any
 from registry.errors import UsageError
 from registry.reports import assets
 from registry.reports.numbers import format_uncertain
-from registry.store import Database, redacted_url
+from registry.storage.database import Database, redacted_url
 
 #: what a report folder is made of; anything else in the folder is left alone
 _OWN = ("index.html", "compounds", "plots")

@@ -20,8 +20,8 @@ from pathlib import Path
 from typing import Any
 
 from registry.errors import UsageError
+from registry.record.units import convert, unit_of
 from registry.reports.numbers import format_uncertain
-from registry.units import convert, unit_of
 
 #: energy units a table header knows how to write; others are written as given
 _ENERGY_LABEL = {
@@ -86,7 +86,7 @@ def table_rows(database: Any, **filters: Any) -> list[dict[str, Any]]:
     from sqlalchemy import select
 
     from registry import api
-    from registry.models import Measurement
+    from registry.storage.models import Measurement
 
     rows = api.list_measurements(database, **filters)
     if not rows:
@@ -210,7 +210,7 @@ def _has_paren(layout: _Layout) -> bool:
 
 
 def _condition_text(method: str | None, solvent: str | None) -> tuple[str, str | None]:
-    from registry.vocab import METHODS
+    from registry.record.vocab import METHODS
 
     what = METHODS.get(method or "", method or "")
     what = (what[:1].upper() + what[1:]) if what else "Method not stated"

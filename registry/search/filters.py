@@ -3,7 +3,7 @@ solvent (by name, alias or class), method, process kind, nucleus, status and ref
 
 Ranges are written as chemists write them: ``">= 22 kcal/mol"``, ``"< 90 kJ/mol"``,
 ``"80-100 kJ/mol"``, ``"80 to 100 kJ/mol"``, ``"-40 to -10 °C"``, ``"95 ± 5 kJ/mol"``. Every bound is
-read by :func:`registry.units.parse_value`, so the units are the registry's (kcal is the
+read by :func:`registry.record.units.parse_value`, so the units are the registry's (kcal is the
 thermochemical calorie). Filters become SQL conditions (plain text with named parameters) on
 the joined measurement query.
 """
@@ -94,7 +94,7 @@ class Range:
 def _value(
     text: str, quantity: str, field_name: str, unit: str | None = None
 ) -> tuple[float, float | None]:
-    from registry.units import parse_value
+    from registry.record.units import parse_value
 
     parsed = parse_value(text, quantity, field=field_name, default_unit=unit or None)
     return parsed.value, parsed.error
@@ -141,7 +141,7 @@ def parse_range(text: str, quantity: str, field_name: str) -> Range:
 
 
 def _nucleus(text: str) -> str:
-    from registry.entry import normalize_nucleus  # imports the unit layer; only when needed
+    from registry.record.entry import normalize_nucleus  # imports the unit layer; only when needed
 
     return normalize_nucleus(text)
 
@@ -198,7 +198,7 @@ def make_filters(
     include_retracted: bool = False,
 ) -> Filters:
     """Check and normalize filter texts (vocabulary names, units) before any query runs."""
-    from registry import vocab
+    from registry.record import vocab
 
     solvents: list[str] = []
     for item in [solvent] if isinstance(solvent, str) else solvent or []:
@@ -241,7 +241,7 @@ def _contains(column: str, name: str, dialect: str) -> str:
 
 def conditions(conn: Any, filters: Filters) -> Where:
     """SQL conditions on (measurement m, process p) for these filters."""
-    from registry import vocab
+    from registry.record import vocab
     from registry.search.sqlite_read import binds, dialect_name, fetch
 
     dialect = dialect_name(conn)

@@ -7,7 +7,7 @@ example structures that must match (``positives``) and near misses that must not
 (``negatives``); ``tests/test_search_motifs.py`` checks them all.
 
 Amide tautomers: some data sets write amides in the iminol form ``N=C(O)``. The registry keeps
-structures as reported (see :mod:`registry.chem`), so the amide-type motifs (``amide``,
+structures as reported (see :mod:`registry.record.chem`), so the amide-type motifs (``amide``,
 ``n-aryl-amide``) match **both** forms: ``C(=O)-N`` and ``C(-OH)=N``. Other motifs match what
 they say only.
 
@@ -364,10 +364,10 @@ def add_motif(
     """Store a user motif (SMARTS checked first) and record it in the history."""
     from sqlalchemy import insert, select
 
-    from registry import audit
-    from registry.models import Motif as MotifRow
     from registry.search.patterns import compile_smarts
-    from registry.store import current_user
+    from registry.storage import audit
+    from registry.storage.database import current_user
+    from registry.storage.models import Motif as MotifRow
 
     clean = check_name(name)
     alternatives = (smarts,) if isinstance(smarts, str) else tuple(smarts)
@@ -410,9 +410,9 @@ def remove_motif(
     """Delete a user motif (built-in ones cannot be removed); the history keeps what it was."""
     from sqlalchemy import delete, select
 
-    from registry import audit
-    from registry.models import Motif as MotifRow
-    from registry.store import current_user
+    from registry.storage import audit
+    from registry.storage.database import current_user
+    from registry.storage.models import Motif as MotifRow
 
     wanted = (name or "").strip().lower()
     if wanted in builtin_motifs():

@@ -4,7 +4,7 @@ RDKit reports *where* a SMARTS fails to parse only in its log ("check for mistak
 position N"), so parsing runs with RDKit's error log switched on and routed to a captured
 Python stream; the position and reason go into :class:`PatternError`. The pattern fingerprint of
 each query (RDKit's substructure-screening fingerprint, the same 2048 bits that
-:func:`registry.chem.pattern_fingerprint_bytes` stores per compound) is kept as 32 little-endian
+:func:`registry.record.chem.pattern_fingerprint_bytes` stores per compound) is kept as 32 little-endian
 64-bit words for the numpy screen.
 """
 

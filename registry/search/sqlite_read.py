@@ -24,9 +24,9 @@ from pathlib import Path
 from typing import Any
 
 from registry.errors import DatabaseError
-from registry.filecheck import network_fs_warning, scripts_head
+from registry.storage.schema import network_fs_warning, scripts_head
 
-#: as in :mod:`registry.store` (busy timeout and read retries of a SQLite registry)
+#: as in :mod:`registry.storage.database` (busy timeout and read retries of a SQLite registry)
 BUSY_TIMEOUT_S = 30.0
 READ_RETRIES = 12
 #: read pages through a memory map (no copy per page read: a search's row fetch visits pages
@@ -127,7 +127,7 @@ def binds(prefix: str, values: Sequence[Any], params: dict[str, Any]) -> str:
 
 @dataclass
 class SQLiteReader:
-    """A SQLite registry opened for reading, with the parts of :class:`registry.store.Database`
+    """A SQLite registry opened for reading, with the parts of :class:`registry.storage.database.Database`
     that the search uses (``url``, ``path``, ``is_sqlite``, ``read()``, ``dispose()``).
 
     It holds one connection, so one read at a time (no nesting, one thread at a time); it
@@ -161,7 +161,7 @@ class SQLiteReader:
     @contextmanager
     def read(self) -> Iterator[sqlite3.Connection]:
         """One read transaction (a consistent WAL snapshot), opened with retries like
-        :meth:`registry.store.Database.read`."""
+        :meth:`registry.storage.database.Database.read`."""
         delay = 0.01
         for attempt in range(READ_RETRIES):
             conn = self._connect()
@@ -200,7 +200,7 @@ def _uri_path(path: Path) -> str:
 
 def sqlite_path(db: str) -> Path | None:
     """The file of a SQLite registry given as a path or ``sqlite:///`` URL; None otherwise
-    (server URLs and in-memory databases), mirroring :func:`registry.store.to_url`."""
+    (server URLs and in-memory databases), mirroring :func:`registry.storage.database.to_url`."""
     if db.startswith("sqlite:///"):
         rest = db[len("sqlite:///") :]
         return None if not rest or rest == ":memory:" or "?" in rest else Path(rest)
@@ -258,11 +258,11 @@ def stamped_revision(reader: SQLiteReader) -> str | None:
 
 
 def head_revision() -> str:
-    """The newest migration revision, as :func:`registry.migrate.head_revision` gives it; only
+    """The newest migration revision, as :func:`registry.storage.migrate.head_revision` gives it; only
     scripts that branch need Alembic (and with it SQLAlchemy)."""
     head = scripts_head()
     if head is None:
-        from registry import migrate
+        from registry.storage import migrate
 
         return migrate.head_revision()
     return head

@@ -21,7 +21,7 @@ from datetime import UTC, datetime
 
 from sqlalchemy import Connection
 
-from registry.store import Database, current_user
+from registry.storage.database import Database, current_user
 from registry.validation.base import SEVERITIES, SEVERITY_RANK, CheckConfig, Finding, Rule
 from registry.validation.data import load_check_data
 from registry.validation.engine import RULES, rule_by_id, run_rules

@@ -17,8 +17,8 @@ import pandas as pd
 from numpy.typing import NDArray
 from sqlalchemy import Connection, func, select
 
-from registry import units
-from registry.models import (
+from registry.record import units
+from registry.storage.models import (
     CoalescenceObservation,
     Compound,
     Measurement,

@@ -7,7 +7,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from registry.nuclei import FREQUENCY_RATIO_TO_1H
+from registry.record.nuclei import FREQUENCY_RATIO_TO_1H
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.data import CheckData, energy_units, unit_part
 

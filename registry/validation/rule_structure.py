@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-from registry import vocab
+from registry.record import vocab
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.data import CheckData, energy_units
 

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from registry import units
+from registry.record import units
 from registry.validation.coalescence_model import CoalescenceInputs, Recomputed, recompute
 
 Array = NDArray[np.float64]

@@ -15,9 +15,9 @@ from typing import Any
 
 from sqlalchemy import Connection, bindparam, delete, insert, select, update
 
-from registry import audit
 from registry.errors import NotFoundError, UsageError
-from registry.models import Revision, ValidationFinding
+from registry.storage import audit
+from registry.storage.models import Revision, ValidationFinding
 from registry.validation.base import SEVERITY_RANK, Finding
 from registry.validation.data import covers_most
 

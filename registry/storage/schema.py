@@ -1,6 +1,6 @@
 """Checks on a registry's files that need neither SQLAlchemy nor Alembic (fast to import).
 
-Both the full store (:mod:`registry.store`, :mod:`registry.migrate`) and the plain-``sqlite3``
+Both the full store (:mod:`registry.storage.database`, :mod:`registry.storage.migrate`) and the plain-``sqlite3``
 search path (:mod:`registry.search.sqlite_read`) use these, so one copy gives both the same
 answer and the same wording.
 """
@@ -24,7 +24,7 @@ def script_location() -> str:
 
         return str(Path(pkg.__file__).parent)
     except ImportError:
-        return str(Path(__file__).resolve().parent.parent / "migrations")
+        return str(Path(__file__).resolve().parents[2] / "migrations")
 
 
 @cache

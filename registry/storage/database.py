@@ -20,7 +20,7 @@ from sqlalchemy import Connection, Engine, create_engine, event, text
 from sqlalchemy.exc import OperationalError
 
 from registry.errors import DatabaseError
-from registry.filecheck import network_fs_warning
+from registry.storage.schema import network_fs_warning
 
 T = TypeVar("T")
 

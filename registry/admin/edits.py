@@ -1,10 +1,10 @@
 """Edits without loss: change a measurement's values, retract it, and read its history.
 
-A measurement is never deleted. An edit re-reads the changed texts with :mod:`registry.units`
+A measurement is never deleted. An edit re-reads the changed texts with :mod:`registry.record.units`
 (any notation the ``add`` command accepts) and re-normalizes the whole entry through
-:func:`registry.entry.normalize_entry`, so derived values follow (a new spectrometer frequency
+:func:`registry.record.entry.normalize_entry`, so derived values follow (a new spectrometer frequency
 changes a Δν reported in ppm; a new Tc moves the temperature ΔG‡ refers to when none was given).
-Every change appends a revision with the columns before and after (see :mod:`registry.audit`);
+Every change appends a revision with the columns before and after (see :mod:`registry.storage.audit`);
 the read, the check and the write happen in one write transaction, so two people editing the
 same measurement at once cannot lose each other's change.
 """
@@ -19,10 +19,13 @@ from typing import Any
 
 from sqlalchemy import Connection, delete, insert, or_, select, update
 
-from registry import audit, vocab
-from registry.entry import EntryError, EntryInput, normalize_entry
 from registry.errors import NotFoundError, UnitError, UsageError
-from registry.models import (
+from registry.record import vocab
+from registry.record.entry import EntryError, EntryInput, normalize_entry
+from registry.record.units import ParsedValue, parse_value
+from registry.storage import audit
+from registry.storage.database import Database, current_user
+from registry.storage.models import (
     CoalescenceObservation,
     Compound,
     Measurement,
@@ -30,9 +33,7 @@ from registry.models import (
     Revision,
     ValidationFinding,
 )
-from registry.store import Database, current_user
-from registry.units import ParsedValue, parse_value
-from registry.writer import known_process_kinds, resolve_processes, solvent_index
+from registry.storage.writer import known_process_kinds, resolve_processes, solvent_index
 
 #: fields a user may ``--set``: entry field → what it is (for messages)
 EDITABLE: dict[str, str] = {
@@ -149,7 +150,7 @@ def shift_mhz(proton_mhz: float | None, nucleus: str | None) -> float | None:
     """The frequency at which a Δν in ppm becomes Hz: the observed nucleus' own (as on entry)."""
     if proton_mhz is None or not nucleus or nucleus == "1H":
         return proton_mhz
-    from registry.nuclei import observe_frequency_mhz
+    from registry.record.nuclei import observe_frequency_mhz
 
     return observe_frequency_mhz(proton_mhz, nucleus)
 

@@ -16,12 +16,13 @@ from typing import Any
 
 from sqlalchemy import Connection, select, text
 
-from registry import audit, rawsql, vocab
-from registry.chem import Structure
-from registry.entry import NormalizedEntry
 from registry.errors import FluxledgerError
-from registry.lookup import rows_where_in
-from registry.models import (
+from registry.record import vocab
+from registry.record.chem import Structure
+from registry.record.entry import NormalizedEntry
+from registry.storage import audit, rawsql
+from registry.storage.lookup import rows_where_in
+from registry.storage.models import (
     CoalescenceObservation,
     Compound,
     Measurement,

@@ -13,10 +13,10 @@ from dataclasses import dataclass
 from dataclasses import field as dc_field
 from typing import Any
 
-from registry import vocab
 from registry.errors import FluxledgerError, UnitError
-from registry.nuclei import observe_frequency_mhz
-from registry.units import ParsedValue, parse_value
+from registry.record import vocab
+from registry.record.nuclei import observe_frequency_mhz
+from registry.record.units import ParsedValue, parse_value
 
 #: the fields of an entry: name → (quantity kind, what a user calls it)
 VALUE_FIELDS: dict[str, tuple[str, str]] = {

@@ -16,8 +16,8 @@ from typing import Any
 
 from sqlalchemy import Connection, select
 
-from registry import rawsql
-from registry.models import Revision
+from registry.storage import rawsql
+from registry.storage.models import Revision
 
 GENESIS = "0" * 64
 _CHAIN_LOCK_KEY = 0x666C7578  # advisory lock id for PostgreSQL

@@ -24,19 +24,19 @@ from typing import Any
 
 from sqlalchemy import select, text
 
-from registry import audit, migrate
-from registry.edits import (
+from registry.admin.edits import (
     COALESCENCE_VALUES,
     MEASUREMENT_VALUES,
     UNIT_CANDIDATES,
     same_value,
     shift_mhz,
 )
-from registry.entry import parse_population_ratio
 from registry.errors import DatabaseError, UnitError, UsageError
-from registry.models import CoalescenceObservation, Measurement, Process, RatePoint
-from registry.store import BUSY_TIMEOUT_MS, Database, open_database, redacted_url
-from registry.units import parse_value
+from registry.record.entry import parse_population_ratio
+from registry.record.units import parse_value
+from registry.storage import audit, migrate
+from registry.storage.database import BUSY_TIMEOUT_MS, Database, open_database, redacted_url
+from registry.storage.models import CoalescenceObservation, Measurement, Process, RatePoint
 
 #: how many problems of one check are listed (the count is always complete)
 MAX_LISTED = 50
@@ -338,7 +338,7 @@ def _schema_check(database: Database, allow_older: bool) -> dict[str, Any]:
 
 
 def _quiet_check(database: Database) -> None:
-    """:func:`registry.migrate.check` without Alembic's "No new upgrade operations" on stdout."""
+    """:func:`registry.storage.migrate.check` without Alembic's "No new upgrade operations" on stdout."""
     from alembic import command
 
     cfg = migrate.alembic_config(database)
@@ -377,7 +377,7 @@ def _parse_cached(
 def _reread_cached(
     text_value: str, quantity: str, stored: float | None, mhz: float | None
 ) -> tuple[float, float | None] | None:
-    """As :func:`registry.edits.reread`, with the parses cached."""
+    """As :func:`registry.admin.edits.reread`, with the parses cached."""
     read = _parse_cached(text_value, quantity, mhz, None)
     if read != _NO_UNIT:
         return read if isinstance(read, tuple) else None

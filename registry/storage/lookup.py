@@ -4,7 +4,7 @@ An import asks "which of these 100,000 InChIKeys and labels are registered alrea
 chunks of 500 bound values compiles and runs 200 statements per column; when the keys are a good
 part of the table, one pass over the table's few narrow columns costs a fraction of that (and on
 an empty registry nothing at all). A single add asks for one key: that goes straight to SQLite's
-cursor (:mod:`registry.rawsql`) without counting the table first.
+cursor (:mod:`registry.storage.rawsql`) without counting the table first.
 """
 
 from __future__ import annotations
@@ -15,7 +15,7 @@ from typing import Any
 from sqlalchemy import Connection, func, select
 from sqlalchemy.sql import ColumnElement
 
-from registry import rawsql
+from registry.storage import rawsql
 
 #: look up by IN lists of this many values
 IN_CHUNK = rawsql.IN_CHUNK

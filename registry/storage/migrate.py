@@ -12,8 +12,8 @@ from typing import TYPE_CHECKING
 
 from sqlalchemy import inspect, text
 
-from registry.filecheck import script_location, scripts_head
-from registry.store import Database
+from registry.storage.database import Database
+from registry.storage.schema import script_location, scripts_head
 
 if TYPE_CHECKING:  # Alembic is loaded only when a migration actually runs (fast start-up)
     from alembic.config import Config
@@ -79,15 +79,15 @@ def check(database: Database) -> None:
 
 
 def _main(argv: list[str]) -> None:
-    """Developer entry: ``python -m registry.migrate revision -m MSG`` autogenerates a revision."""
+    """Developer entry: ``python -m registry.storage.migrate revision -m MSG`` autogenerates a revision."""
     import argparse
     import tempfile
 
     from alembic import command
 
-    from registry.store import open_database
+    from registry.storage.database import open_database
 
-    parser = argparse.ArgumentParser(prog="python -m registry.migrate")
+    parser = argparse.ArgumentParser(prog="python -m registry.storage.migrate")
     parser.add_argument("action", choices=["revision"])
     parser.add_argument("-m", "--message", required=True)
     args = parser.parse_args(argv)
@@ -96,7 +96,7 @@ def _main(argv: list[str]) -> None:
         upgrade(database)
         cfg = alembic_config(database)
         cfg.set_main_option(
-            "script_location", str(Path(__file__).resolve().parent.parent / "migrations")
+            "script_location", str(Path(__file__).resolve().parents[2] / "migrations")
         )
         with database.engine.begin() as conn:
             cfg.attributes["connection"] = conn

@@ -1,0 +1,1 @@
+"""Administration of a registry: edits and retractions, history, verify, backup and restore."""

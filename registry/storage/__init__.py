@@ -1,0 +1,1 @@
+"""The one data layer: open a registry, read with retries, write in one transaction."""
