@@ -1,166 +1,41 @@
-"""Edits without loss: change a measurement's values, retract it, and read its history.
+"""Edits without loss: change a measurement's values, or retract it.
 
-A measurement is never deleted. An edit re-reads the changed texts with :mod:`registry.record.units`
-(any notation the ``add`` command accepts) and re-normalizes the whole entry through
-:func:`registry.record.entry.normalize_entry`, so derived values follow (a new spectrometer frequency
-changes a Δν reported in ppm; a new Tc moves the temperature ΔG‡ refers to when none was given).
-Every change appends a revision with the columns before and after (see :mod:`registry.storage.audit`);
-the read, the check and the write happen in one write transaction, so two people editing the
-same measurement at once cannot lose each other's change.
+A measurement is never deleted. An edit re-reads the changed texts with
+:mod:`registry.record.units` (any notation the ``add`` command accepts) and re-normalizes the
+whole entry through :func:`registry.record.entry.normalize_entry`, so derived values follow (a
+new spectrometer frequency changes a Δν reported in ppm; a new Tc moves the temperature ΔG‡
+refers to when none was given). Every change appends a revision with the columns before and
+after (:mod:`registry.storage.audit`); the read, the check and the write happen in one write
+transaction, so two people editing the same measurement at once cannot lose each other's change.
+Which fields can be edited, and where each is stored, is :mod:`registry.record.fields`.
 """
 
 from __future__ import annotations
 
-import json
-import math
 from collections.abc import Mapping
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, delete, insert, or_, select, update
-
+from registry.admin.reread import reread, same_value, shift_mhz
 from registry.errors import NotFoundError, UnitError, UsageError
-from registry.record import vocab
+from registry.record import fields, vocab
 from registry.record.entry import EntryError, EntryInput, normalize_entry
-from registry.record.units import ParsedValue, parse_value
 from registry.storage import audit
+from registry.storage.connection import Connection
 from registry.storage.database import Database, current_user
-from registry.storage.models import (
-    CoalescenceObservation,
-    Compound,
-    Measurement,
-    Process,
-    Revision,
-    ValidationFinding,
-)
 from registry.storage.writer import known_process_kinds, resolve_processes, solvent_index
 
-#: fields a user may ``--set``: entry field → what it is (for messages)
-EDITABLE: dict[str, str] = {
-    "method": "method",
-    "label": "measurement label",
-    "process": "process kind",
-    "sites": "exchanging sites",
-    "nucleus": "observed nucleus",
-    "solvent": "solvent",
-    "field": "spectrometer frequency",
-    "t_min": "lowest temperature",
-    "t_max": "highest temperature",
-    "dg": "ΔG‡",
-    "dg_t": "temperature of ΔG‡",
-    "dh": "ΔH‡",
-    "ds": "ΔS‡",
-    "ea": "Ea",
-    "log10_a": "log10 A",
-    "tc": "Tc",
-    "dnu": "Δν",
-    "j": "J",
-    "population": "population ratio",
-    "reference": "reference",
-    "status": "status",
-}
-_ALIASES = {"mhz": "field", "solvent_text": "solvent", "log_a": "log10_a", "delta_nu": "dnu"}
-
-#: value fields stored in the measurement row: entry field → (text column, value column, quantity)
-MEASUREMENT_VALUES: dict[str, tuple[str, str, str]] = {
-    "field": ("field_text", "field_mhz", "field"),
-    "t_min": ("t_min_text", "t_min_k", "temperature"),
-    "t_max": ("t_max_text", "t_max_k", "temperature"),
-    "dg": ("dg_text", "dg_kj_mol", "energy"),
-    "dg_t": ("dg_t_text", "dg_t_k", "temperature"),
-    "dh": ("dh_text", "dh_kj_mol", "energy"),
-    "ds": ("ds_text", "ds_j_mol_k", "entropy"),
-    "ea": ("ea_text", "ea_kj_mol", "energy"),
-    "log10_a": ("log10_a_text", "log10_a", "dimensionless"),
-}
-#: value fields stored in the coalescence row
-COALESCENCE_VALUES: dict[str, tuple[str, str, str]] = {
-    "tc": ("tc_text", "tc_k", "temperature"),
-    "dnu": ("dnu_text", "dnu_hz", "shift"),
-    "j": ("j_text", "j_hz", "frequency"),
-}
-#: text column → the float columns read from it (hidden in summaries when the text is shown)
-_VALUE_COLUMNS_OF_TEXT: dict[str, tuple[str, ...]] = {
-    "field_text": ("field_mhz",),
-    "t_min_text": ("t_min_k",),
-    "t_max_text": ("t_max_k",),
-    "dg_text": ("dg_kj_mol", "dg_err_kj_mol"),
-    "dg_t_text": ("dg_t_k",),
-    "dh_text": ("dh_kj_mol", "dh_err_kj_mol"),
-    "ds_text": ("ds_j_mol_k", "ds_err_j_mol_k"),
-    "ea_text": ("ea_kj_mol", "ea_err_kj_mol"),
-    "log10_a_text": ("log10_a", "log10_a_err"),
-    "solvent_text": ("solvent_id",),
-    "tc_text": ("tc_k", "tc_err_k"),
-    "dnu_text": ("dnu_hz", "dnu_err_hz"),
-    "j_text": ("j_hz",),
-    "population_text": ("population_ratio",),
-}
-_COALESCENCE_FIELDS = ("tc", "dnu", "j", "population")
-_PROCESS_FIELDS = ("process", "sites", "nucleus")
-
-#: units a column header may have given to a bare number, per quantity, tried in this order
-UNIT_CANDIDATES: dict[str, tuple[str, ...]] = {
-    "energy": ("kJ/mol", "kcal/mol", "J/mol", "cal/mol", "cm-1", "eV"),
-    "temperature": ("K", "°C", "°F"),
-    "entropy": ("J/(mol*K)", "cal/(mol*K)"),
-    "frequency": ("Hz", "kHz"),
-    "shift": ("Hz", "ppm"),
-    "field": ("MHz",),
-    "rate": ("1/s", "1/min", "1/h"),
-    "dimensionless": ("",),
-}
-
-
-def same_value(a: float | None, b: float | None) -> bool:
-    """Equal floats (to 1e-9 relative, as re-parsing the same text gives) or both missing."""
-    if a is None or b is None:
-        return a is None and b is None
-    return math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-12)
-
-
-def reread(
-    text: str, quantity: str, stored: float | None, *, field: str, mhz: float | None = None
-) -> tuple[ParsedValue | None, str | None]:
-    """Read a stored text again: (the value, the header unit it must have had, if it had none).
-
-    Imported cells may hold a bare number whose unit came from the column header, which is not
-    kept; the header unit is then the one among the usual units of the quantity that gives the
-    stored value. ``(None, None)`` when no reading reproduces it.
-    """
-    try:
-        parsed = parse_value(text, quantity, field=field, spectrometer_mhz=mhz)
-        return parsed, None
-    except UnitError as exc:
-        if "no unit given" not in exc.reason:
-            return None, None
-    for unit in UNIT_CANDIDATES[quantity]:
-        try:
-            parsed = parse_value(
-                text, quantity, field=field, default_unit=unit, spectrometer_mhz=mhz
-            )
-        except UnitError:
-            continue
-        if stored is None or same_value(parsed.value, stored):
-            return parsed, unit
-    return None, None
-
-
-def shift_mhz(proton_mhz: float | None, nucleus: str | None) -> float | None:
-    """The frequency at which a Δν in ppm becomes Hz: the observed nucleus' own (as on entry)."""
-    if proton_mhz is None or not nucleus or nucleus == "1H":
-        return proton_mhz
-    from registry.record.nuclei import observe_frequency_mhz
-
-    return observe_frequency_mhz(proton_mhz, nucleus)
+_COALESCENCE_FIELDS = tuple(f.name for f in fields.FIELDS if f.table == "coalescence")
+_PROCESS_FIELDS = tuple(f.name for f in fields.FIELDS if f.table == "process")
+_EDITABLE = tuple(f.name for f in fields.EDITABLE)
 
 
 def canonical_field(name: str) -> str:
     """The entry field a user means by ``name`` (``dg``, ``t-min``, ``MHz`` …), or a UsageError."""
     key = name.strip().lower().replace("-", "_").replace(" ", "_")
-    key = _ALIASES.get(key, key)
-    if key not in EDITABLE:
-        raise UsageError(f"cannot edit {name!r}; editable fields: {', '.join(EDITABLE)}")
+    key = fields.EDIT_ALIASES.get(key, key)
+    if key not in _EDITABLE:
+        raise UsageError(f"cannot edit {name!r}; editable fields: {', '.join(_EDITABLE)}")
     return key
 
 
@@ -169,20 +44,15 @@ def parse_assignments(assignments: list[str]) -> dict[str, str | None]:
     changes: dict[str, str | None] = {}
     for item in assignments:
         if "=" not in item:
-            raise UsageError(f'--set {item!r}: write FIELD=VALUE, e.g. dg="14.5 kcal/mol"')
+            raise UsageError(f'{item!r}: write FIELD=VALUE, e.g. dg="14.5 kcal/mol"')
         name, value = item.split("=", 1)
         key = canonical_field(name)
         if key in changes:
-            raise UsageError(f"--set {name}: given twice")
+            raise UsageError(f"{name}: given twice")
         changes[key] = value.strip() or None
     if not changes:
-        raise UsageError("nothing to change; give at least one --set FIELD=VALUE")
+        raise UsageError("nothing to change; give at least one FIELD=VALUE")
     return changes
-
-
-def _row(conn: Connection, model: Any, where: Any) -> dict[str, Any] | None:
-    found = conn.execute(select(model.__table__).where(where)).mappings().first()
-    return dict(found) if found else None
 
 
 def _stored_input(
@@ -204,26 +74,27 @@ def _stored_input(
     if process is not None:
         inp.process, inp.sites, inp.nucleus = process["kind"], process["sites"], process["nucleus"]
     mhz = m["field_mhz"]
-    for name, (text_col, value_col, quantity) in MEASUREMENT_VALUES.items():
-        _set_stored(inp, name, m[text_col], m[value_col], quantity, mhz)
+    for f in fields.stored_values("measurement"):
+        _set_stored(inp, f, m[f.text_column], m[f.value_column], mhz)
     if coalescence is not None:
         mhz = coalescence["field_mhz"] or mhz
-        for name, (text_col, value_col, quantity) in COALESCENCE_VALUES.items():
-            at = shift_mhz(mhz, process["nucleus"] if process else None) if name == "dnu" else mhz
-            _set_stored(inp, name, coalescence[text_col], coalescence[value_col], quantity, at)
+        for f in fields.stored_values("coalescence"):
+            nucleus = process["nucleus"] if process else None
+            at = shift_mhz(mhz, nucleus) if f.name == "dnu" else mhz
+            _set_stored(inp, f, coalescence[f.text_column], coalescence[f.value_column], at)
         inp.population = coalescence["population_text"]
     return inp
 
 
 def _set_stored(
-    inp: EntryInput, name: str, text: str | None, value: float | None, quantity: str, mhz: Any
+    inp: EntryInput, f: fields.Field, text: str | None, value: float | None, mhz: Any
 ) -> None:
     if text is None:
         return
-    setattr(inp, name, text)
-    _parsed, unit = reread(text, quantity, value, field=name, mhz=mhz)
+    setattr(inp, f.name, text)
+    _parsed, unit = reread(text, fields.quantity_of(f.name), value, field=f.name, mhz=mhz)
     if unit:
-        inp.units[name] = unit
+        inp.units[f.name] = unit
 
 
 def _coalescence_body(row: dict[str, Any] | None) -> dict[str, Any] | None:
@@ -262,31 +133,34 @@ def edit_measurement(
     status = wanted.get("status")
     if "status" in wanted and (status is None or vocab.status_name(status) == "retracted"):
         raise UsageError(
-            "to retract a measurement use 'fluxledger retract ID --reason TEXT' (it keeps why)"
+            "to retract a measurement, retract it (with a reason, which the history keeps)"
         )
     who = actor or current_user()
 
     def work(conn: Connection) -> dict[str, Any]:
-        m = _row(conn, Measurement, Measurement.id == measurement_id)
+        of = {"id": measurement_id}
+        m = conn.record("SELECT * FROM measurement WHERE id = :id", of)
         if m is None:
             raise NotFoundError(f"no measurement with id {measurement_id}")
-        compound = _row(conn, Compound, Compound.id == m["compound_id"]) or {}
-        process = _row(conn, Process, Process.id == m["process_id"]) if m["process_id"] else None
-        coal_rows = [
-            dict(r)
-            for r in conn.execute(
-                select(CoalescenceObservation.__table__)
-                .where(CoalescenceObservation.measurement_id == measurement_id)
-                .order_by(CoalescenceObservation.id)
-            ).mappings()
-        ]
+        compound = conn.record(
+            "SELECT label, name FROM compound WHERE id = :id", {"id": m["compound_id"]}
+        )
+        process = None
+        if m["process_id"]:
+            process = conn.record(
+                "SELECT id, kind, sites, nucleus FROM process WHERE id = :id",
+                {"id": m["process_id"]},
+            )
+        coal_rows = conn.records(
+            "SELECT * FROM coalescence WHERE measurement_id = :id ORDER BY id", of
+        )
         if len(coal_rows) > 1 and any(f in wanted for f in _COALESCENCE_FIELDS):
             raise UsageError(
                 f"measurement {measurement_id} has {len(coal_rows)} coalescence observations; "
                 "Tc, Δν, J and populations can only be edited where there is one"
             )
         coal = coal_rows[0] if len(coal_rows) == 1 else None
-        inp = _stored_input(m, compound, process, coal)
+        inp = _stored_input(m, compound or {}, process, coal)
         for name, text in wanted.items():
             setattr(inp, name, text)
             inp.units.pop(name, None)
@@ -324,21 +198,11 @@ def edit_measurement(
                 and any(_differs(old_c.get(k), v) for k, v in new_c.items())
             ):
                 if coal is not None and new_c is not None:
-                    conn.execute(
-                        update(CoalescenceObservation)
-                        .where(CoalescenceObservation.id == coal["id"])
-                        .values(**new_c)
-                    )
+                    conn.update("coalescence", new_c, id=coal["id"])
                 elif new_c is not None:
-                    conn.execute(
-                        insert(CoalescenceObservation), [{**new_c, "measurement_id": m["id"]}]
-                    )
+                    conn.insert("coalescence", {**new_c, "measurement_id": m["id"]})
                 elif coal is not None:
-                    conn.execute(
-                        delete(CoalescenceObservation).where(
-                            CoalescenceObservation.id == coal["id"]
-                        )
-                    )
+                    conn.execute("DELETE FROM coalescence WHERE id = :id", {"id": coal["id"]})
                 if old_c is not None and new_c is not None:
                     moved = [k for k, v in new_c.items() if _differs(old_c.get(k), v)]
                     old_c = {k: old_c.get(k) for k in moved}
@@ -348,7 +212,7 @@ def edit_measurement(
             return {"id": measurement_id, "changed": False, "before": {}, "after": {}}
         now = datetime.now(UTC)
         updates["updated_at"] = now
-        conn.execute(update(Measurement).where(Measurement.id == measurement_id).values(**updates))
+        conn.update("measurement", updates, id=measurement_id)
         action = "status" if set(after) == {"status"} else "edit"
         audit.record(
             conn,
@@ -360,7 +224,7 @@ def edit_measurement(
             after=after,
             reason=reason,
         )
-        revision = conn.execute(select(Revision.id).order_by(Revision.id.desc()).limit(1)).scalar()
+        revision = conn.scalar("SELECT max(id) FROM revision")
         return {
             "id": measurement_id,
             "changed": True,
@@ -381,22 +245,21 @@ def retract_measurement(
 ) -> dict[str, Any]:
     """Hide a measurement from default queries; it stays stored, with who, when and why."""
     if not reason or not reason.strip():
-        raise UsageError("give a reason for the retraction (--reason TEXT)")
+        raise UsageError("give a reason for the retraction")
     who = actor or current_user()
 
     def work(conn: Connection) -> dict[str, Any]:
-        status = conn.execute(
-            select(Measurement.status).where(Measurement.id == measurement_id)
-        ).scalar()
+        status = conn.scalar(
+            "SELECT status FROM measurement WHERE id = :id", {"id": measurement_id}
+        )
         if status is None:
             raise NotFoundError(f"no measurement with id {measurement_id}")
         if status == "retracted":
             raise UsageError(f"measurement {measurement_id} is already retracted")
-        conn.execute(
-            update(Measurement)
-            .where(Measurement.id == measurement_id)
-            .values(status="retracted", updated_at=datetime.now(UTC))
-        )
+        conn.update(
+            "measurement", {"status": "retracted", "updated_at": datetime.now(UTC)},
+            id=measurement_id,
+        )  # fmt: skip
         audit.record(
             conn,
             entity="measurement",
@@ -407,7 +270,7 @@ def retract_measurement(
             after={"status": "retracted"},
             reason=reason.strip(),
         )
-        revision = conn.execute(select(Revision.id).order_by(Revision.id.desc()).limit(1)).scalar()
+        revision = conn.scalar("SELECT max(id) FROM revision")
         return {
             "id": measurement_id,
             "status": "retracted",
@@ -439,104 +302,3 @@ def revalidate(database: Database, measurement_id: int) -> list[dict[str, Any]] 
         if not body.get("accepted_by"):
             out.append(body)
     return out
-
-
-def history(
-    database: Database, measurement_id: int | None = None, *, limit: int | None = 50
-) -> list[dict[str, Any]]:
-    """Revisions, oldest first: all of one measurement's (its findings' too), or the latest ``limit``."""
-    query = select(Revision.__table__)
-    with database.read() as conn:
-        if measurement_id is not None:
-            exists = conn.execute(
-                select(Measurement.id).where(Measurement.id == measurement_id)
-            ).scalar()
-            if exists is None:
-                raise NotFoundError(f"no measurement with id {measurement_id}")
-            finding_ids = select(ValidationFinding.id).where(
-                ValidationFinding.measurement_id == measurement_id
-            )
-            query = query.where(
-                or_(
-                    (Revision.entity == "measurement") & (Revision.entity_id == measurement_id),
-                    (Revision.entity == "finding") & Revision.entity_id.in_(finding_ids),
-                )
-            )
-        query = query.order_by(Revision.id.desc())
-        if limit:
-            query = query.limit(limit)
-        rows = [dict(r) for r in conn.execute(query).mappings()]
-    rows.reverse()
-    return [_history_entry(r) for r in rows]
-
-
-def _history_entry(row: dict[str, Any]) -> dict[str, Any]:
-    before = json.loads(row["before_json"]) if row["before_json"] else None
-    after = json.loads(row["after_json"]) if row["after_json"] else None
-    at = row["at"]
-    if isinstance(at, datetime) and at.tzinfo is None:
-        at = at.replace(tzinfo=UTC)
-    return {
-        "revision": row["id"],
-        "at": at,
-        "actor": row["actor"],
-        "action": row["action"],
-        "entity": row["entity"],
-        "entity_id": row["entity_id"],
-        "reason": row["reason"],
-        "batch_id": row["batch_id"],
-        "before": before,
-        "after": after,
-        "summary": summarize(row["action"], before, after),
-    }
-
-
-def _short(value: Any) -> str:
-    if value is None:
-        return "—"
-    if isinstance(value, float):
-        return f"{value:.6g}"
-    if isinstance(value, dict):
-        return ", ".join(f"{k}={_short(v)}" for k, v in value.items() if v not in (None, ""))
-    return repr(value) if isinstance(value, str) else str(value)
-
-
-def summarize(action: str, before: Any, after: Any) -> str:
-    """One line saying what a revision changed: texts as reported, values only when no text moved."""
-    if before is None and isinstance(after, dict):
-        compound = after.get("compound") or {}
-        who = compound.get("label") or compound.get("name") or compound.get("smiles_input") or ""
-        parts = [f"{action}: {who}".rstrip(": ")]
-        for key in ("method", "dg_text", "solvent_text"):
-            if after.get(key):
-                parts.append(str(after[key]))
-        return ", ".join(parts)
-    if not isinstance(before, dict) or not isinstance(after, dict):
-        return action
-    if action == "accept-finding" and "finding" in after:
-        rule = f" [{after['rule']}]" if after.get("rule") else ""
-        return f"accepted finding {after['finding']}{rule} {after.get('severity') or ''}".rstrip()
-    old, new = _flatten(before), _flatten(after)
-    keys = sorted({*old, *new})
-    hidden = {
-        f"{k.rpartition('.')[0]}.{c}".lstrip(".")
-        for k in keys
-        for c in _VALUE_COLUMNS_OF_TEXT.get(k.rpartition(".")[2], ())
-    }
-    shown = [
-        f"{key}: {_short(old.get(key))} → {_short(new.get(key))}"
-        for key in keys
-        if key not in hidden  # the float behind a text shown already
-    ]
-    return "; ".join(shown) or action
-
-
-def _flatten(body: dict[str, Any]) -> dict[str, Any]:
-    """``{"coalescence": {"tc_text": …}}`` → ``{"coalescence.tc_text": …}`` (one level)."""
-    flat: dict[str, Any] = {}
-    for key, value in body.items():
-        if isinstance(value, dict) and key == "coalescence":
-            flat.update({f"{key}.{k}": v for k, v in value.items()})
-        else:
-            flat[key] = value
-    return flat

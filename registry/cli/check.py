@@ -79,22 +79,12 @@ def check(
     Exits with status 1 when an error-level finding has not been accepted.
     """
     from registry import api
-    from registry.record.units import parse_value
-    from registry.validation import CheckConfig, check_measurements
 
     if severity is not None and severity.lower() not in _LEVELS:
         raise UsageError(f"--severity {severity!r}: use one of {', '.join(_LEVELS)}")
-    config = CheckConfig()
-    if tolerance:
-        value = parse_value(tolerance, "energy", field="--tolerance").value
-        if value <= 0:
-            raise UsageError(f"--tolerance {tolerance!r}: must be positive")
-        config = CheckConfig(dg_tolerance_kj_mol=value)
     st = state(ctx)
     database = api.open_registry(st.db)
-    report = check_measurements(
-        database, ids or None, actor=st.actor, config=config, record_run=True
-    )
+    report = api.check(database, ids or None, tolerance=tolerance or None, actor=st.actor)
     shown = report.select(severity=severity.lower() if severity else None, new_only=new)
     missing = sorted(set(ids or ()) - set(report.measurement_ids))
     if as_json:
@@ -116,11 +106,10 @@ def accept(
 ) -> None:
     """Accept a finding with a reason; it stays accepted while its inputs are unchanged."""
     from registry import api
-    from registry.validation import accept_finding
 
     st = state(ctx)
     database = api.open_registry(st.db)
-    finding = accept_finding(database, finding_id, reason, actor=st.actor)
+    finding = api.accept_finding(database, finding_id, reason, actor=st.actor)
     if as_json:
         print_json(finding.as_dict())
         return

@@ -11,8 +11,6 @@ from registry.cli.context import state
 from registry.cli.output import render_record, render_rows
 from registry.errors import UsageError
 
-LIST_COLUMNS = ["id", "compound", "process", "method", "solvent", "dg_kj_mol", "dg_t_k", "status"]
-
 
 def register(app: typer.Typer) -> None:
     app.command("init")(init)
@@ -101,7 +99,6 @@ def add(
 ) -> None:
     """Add one measurement; values take units in any usual notation."""
     from registry import api
-    from registry.record.entry import EntryInput
 
     rates = []
     for text in rate or []:
@@ -109,7 +106,7 @@ def add(
             raise UsageError(f"--rate {text!r}: write 'T, k', e.g. '298 K, 12.5 s-1'")
         t_text, k_text = (part.strip() for part in text.split(",", 1))
         rates.append((t_text, k_text))
-    entry = EntryInput(
+    entry = dict(
         method=method, smiles=smiles, compound=compound, name=name, process=process, sites=sites,
         nucleus=nucleus, solvent=solvent, field=field, dg=dg, dg_t=dg_t, dh=dh, ds=ds, ea=ea,
         log10_a=log10_a, tc=tc, dnu=dnu, j=j, population=population, t_min=t_min, t_max=t_max,
@@ -233,7 +230,10 @@ def list_cmd(
     ctx: typer.Context,
     compound: str = typer.Option(None, help="Compound label or name contains this text."),
     method: str = typer.Option(None, help="Only this method."),
-    solvent: str = typer.Option(None, help="Solvent contains this text."),
+    solvent: str = typer.Option(
+        None,
+        help="Solvent: a name or alias, a class (chlorinated, nonpolar …) or part of the text.",
+    ),
     process: str = typer.Option(None, help="Only this process kind."),
     status: str = typer.Option(None, help="Only this status."),
     barrier_min: str = typer.Option(
@@ -249,16 +249,12 @@ def list_cmd(
 ) -> None:
     """List measurements with basic filters."""
     from registry import api
-    from registry.record.units import parse_value
 
-    lo = parse_value(barrier_min, "energy", field="--barrier-min").value if barrier_min else None
-    hi = parse_value(barrier_max, "energy", field="--barrier-max").value if barrier_max else None
     database = api.open_registry(state(ctx).db)
     rows = api.list_measurements(
         database, compound=compound, method=method, solvent=solvent, process=process,
-        status=status, dg_min_kj_mol=lo, dg_max_kj_mol=hi, include_retracted=include_retracted,
-        limit=limit,
+        status=status, barrier_min=barrier_min, barrier_max=barrier_max,
+        include_retracted=include_retracted, limit=limit,
     )  # fmt: skip
-    render_rows(
-        rows, as_json=as_json, as_csv=as_csv, columns=None if (as_json or as_csv) else LIST_COLUMNS
-    )
+    columns = None if (as_json or as_csv) else list(api.TABLE_COLUMNS["list"])
+    render_rows(rows, as_json=as_json, as_csv=as_csv, columns=columns)

@@ -41,13 +41,12 @@ def history(
 ) -> None:
     """Who changed what and when: one measurement's revisions, or the latest N of all."""
     from registry import api
-    from registry.admin import edits
 
     if limit < 0:
         raise UsageError("--limit must be 0 (all) or more")
     database = api.open_registry(state(ctx).db)
     mid = _id(measurement_id) if measurement_id is not None else None
-    entries = edits.history(database, mid, limit=limit or None)
+    entries = api.history(database, mid, limit=limit or None)
     if as_json:
         print_json(entries)
         return
@@ -96,14 +95,13 @@ def edit(
 ) -> None:
     """Change values of a measurement; units in any usual notation; the old values stay in the history."""
     from registry import api
-    from registry.admin import edits
 
-    changes = edits.parse_assignments(assignments or [])
+    if not assignments:
+        raise UsageError("nothing to change; give at least one --set FIELD=VALUE")
     st = state(ctx)
+    mid = _id(measurement_id)
     database = api.open_registry(st.db)
-    result = edits.edit_measurement(
-        database, _id(measurement_id), changes, actor=st.actor, reason=reason
-    )
+    result = api.edit_measurement(database, mid, assignments, actor=st.actor, reason=reason)
     if as_json:
         print_json(result)
         return
@@ -111,10 +109,8 @@ def edit(
         typer.echo(f"measurement {result['id']}: nothing changed (the values are the same)")
         return
     typer.echo(f"measurement {result['id']} changed (revision {result['revision']}):")
-    typer.echo(
-        "  "
-        + edits.summarize(result["action"], result["before"], result["after"]).replace("; ", "\n  ")
-    )
+    summary = api.summarize_change(result["action"], result["before"], result["after"])
+    typer.echo("  " + summary.replace("; ", "\n  "))
     for finding in result.get("findings") or []:
         typer.echo(f"  {finding.get('severity', 'note')}: {finding.get('message', '')}")
 
@@ -127,11 +123,11 @@ def retract(
 ) -> None:
     """Retract a measurement: hidden from listings (see --include-retracted), never deleted."""
     from registry import api
-    from registry.admin import edits
 
     st = state(ctx)
+    mid = _id(measurement_id)
     database = api.open_registry(st.db)
-    result = edits.retract_measurement(database, _id(measurement_id), reason, actor=st.actor)
+    result = api.retract_measurement(database, mid, reason, actor=st.actor)
     if as_json:
         print_json(result)
         return

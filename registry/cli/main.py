@@ -28,9 +28,9 @@ class BoundaryGroup(ErrorBoundaryGroup):
 
 def _print_database_warnings(discard: bool = False) -> None:
     """Each warning about an opened database (e.g. on a network file system) once, on stderr."""
-    store = sys.modules.get("registry.storage.database")  # not imported: no database was opened
-    if store is not None:
-        for warning in store.take_warnings():
+    api = sys.modules.get("registry.api")  # not imported: no database was opened
+    if api is not None:
+        for warning in api.take_warnings():
             if not discard:
                 typer.echo(f"warning: {warning}", err=True)
 

@@ -31,14 +31,9 @@ def backup(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Copy the registry to a file while others keep working (one consistent snapshot)."""
-    from registry.admin import maintenance
-    from registry.storage.database import open_database
+    from registry import api
 
-    database = open_database(state(ctx).db, must_exist=True)
-    try:
-        result = maintenance.backup(database, dest, overwrite=force)
-    finally:
-        database.dispose()
+    result = api.backup(state(ctx).db, dest, overwrite=force)
     if as_json:
         print_json(result)
         return
@@ -58,9 +53,9 @@ def restore(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Replace the registry's content with a backup, after verifying the backup."""
-    from registry.admin import maintenance
+    from registry import api
 
-    result = maintenance.restore(state(ctx).db, source, force=force)
+    result = api.restore(state(ctx).db, source, force=force)
     if as_json:
         print_json(result)
         return
@@ -87,14 +82,9 @@ def verify(
 
     Exit status 1 when any check finds a problem.
     """
-    from registry.admin import maintenance
-    from registry.storage.database import open_database
+    from registry import api
 
-    database = open_database(state(ctx).db, must_exist=True)
-    try:
-        report = maintenance.verify(database)
-    finally:
-        database.dispose()
+    report = api.verify(state(ctx).db)
     if as_json:
         print_json(report)
     else:
@@ -124,9 +114,9 @@ def db_current(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """The registry's schema version and the one this fluxledger needs."""
-    from registry.admin import maintenance
+    from registry import api
 
-    result = maintenance.schema_state(state(ctx).db)
+    result = api.schema_state(state(ctx).db)
     if as_json:
         print_json(result)
         return
@@ -153,9 +143,9 @@ def db_upgrade(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Bring the schema to the current version; a SQLite registry is backed up first."""
-    from registry.admin import maintenance
+    from registry import api
 
-    result = maintenance.upgrade(state(ctx).db, backup_dir=backup_dir, no_backup=no_backup)
+    result = api.upgrade_schema(state(ctx).db, backup_dir=backup_dir, no_backup=no_backup)
     if as_json:
         print_json(result)
         return

@@ -16,89 +16,29 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
-from registry.record.entry import VALUE_FIELDS
+from registry.record import fields
 
 #: fields whose cells are physical values, and the quantity kind each is read as
-VALUE_QUANTITY: dict[str, str] = {name: kind for name, (kind, _) in VALUE_FIELDS.items()}
-VALUE_QUANTITY.update({"dnu": "shift", "t": "temperature", "k": "rate"})
+VALUE_QUANTITY: dict[str, str] = {
+    f.name: f.quantity for f in fields.FIELDS if f.quantity and f.name != "log10_a"
+}
 
-#: fields whose cells are plain text
+#: fields whose cells are plain text (log10 A is a bare number: read as text, then parsed)
 TEXT_FIELDS = (
-    "method",
-    "label",
-    "compound",
-    "name",
-    "smiles",
-    "process",
-    "sites",
-    "nucleus",
-    "solvent",
-    "reference",
-    "status",
-    "population",
+    *(f.name for f in fields.FIELDS if not f.is_value),
     "log10_a",
-    "rates",
 )
 
 #: every field a column can be mapped to (besides '<value field>_err', 'extra', 'ignore')
 FIELDS = (*TEXT_FIELDS, *VALUE_QUANTITY)
 
 #: what a user calls each field, for messages and the dry-run table
-FIELD_TITLES: dict[str, str] = {name: title for name, (_, title) in VALUE_FIELDS.items()}
-FIELD_TITLES.update(
-    {"dnu": "Δν", "t": "T (rate point)", "k": "k (rate point)", "rates": "rate points"}
-)
+FIELD_TITLES: dict[str, str] = {
+    f.name: f.title for f in fields.FIELDS if f.name in VALUE_QUANTITY or f.name == "rates"
+}
 
-# Concept keys (see concept_key) → field. Keys are lowercase letters and digits only.
-CONCEPTS: dict[str, str] = {}
-
-
-def _add(field: str, *keys: str) -> None:
-    for key in keys:
-        CONCEPTS[key] = field
-
-
-_add(
-    "dg", "dg", "g", "dgc", "dgtc", "dga", "dgact", "dgdagger", "dgrot", "dgexp", "dgdouble",
-    "barrier", "barriers", "barrierheight", "rotationalbarrier", "rotationbarrier",
-    "inversionbarrier", "freeenergy", "freeenergybarrier", "freeenergyofactivation",
-    "activationfreeenergy", "gibbsenergyofactivation", "gibbs", "gact",
-)  # fmt: skip
-_add("dg_t", "tdg", "dgt", "tofdg", "temperatureofdg", "tref", "dgat", "att", "atemperature")
-_add("dh", "dh", "dhact", "dhdagger", "enthalpy", "activationenthalpy", "enthalpyofactivation")
-_add("ds", "ds", "dsact", "dsdagger", "entropy", "activationentropy", "entropyofactivation")
-_add("ea", "ea", "eact", "activationenergy", "arrheniusenergy", "arrheniusea")
-_add("log10_a", "loga", "log10a", "lga", "logafactor", "lgafactor", "log10afactor")
-_add(
-    "tc", "tc", "tcoal", "tcoalescence", "coalescencetemp", "coalescencetemperature",
-    "coalescencet", "tcoalesc",
-)  # fmt: skip
-_add(
-    "dnu", "dnu", "dv", "dnu0", "dv0", "dd", "dnuab", "dvab", "shiftdifference", "dshift",
-    "separation", "peakseparation", "signalseparation", "splitting", "frequencydifference",
-)  # fmt: skip
-_add("j", "j", "jab", "jhh", "coupling", "couplingconstant", "jcoupling", "2j")
-_add(
-    "field", "field", "spectrometer", "spectrometerfrequency", "frequency", "nmrfield", "b0",
-    "observefrequency", "sf", "instrument", "magnet", "nmrfrequency", "mhz",
-)  # fmt: skip
-_add("solvent", "solvent", "solv", "medium", "solvents", "nmrsolvent")
-_add("method", "method", "technique", "methodology", "approach", "nmrmethod")
-_add("smiles", "smiles", "structure", "smilesstring", "inputsmiles")
-_add("compound", "compound", "cmpd", "cpd", "compoundid", "compoundlabel", "compoundno", "code")
-_add("name", "name", "compoundname", "molecule", "iupacname", "chemicalname", "substance")
-_add("label", "label", "measurement", "measurementlabel", "measurementid", "run", "sample")
-_add("reference", "ref", "reference", "references", "doi", "citation", "source", "literature")
-_add("process", "process", "processkind", "kind", "dynamics", "dynamicprocess", "motion")
-_add("sites", "sites", "exchangingsites", "signals", "groups", "probe", "probesignal")
-_add("nucleus", "nucleus", "nuc", "observednucleus", "isotope", "nuclide")
-_add("population", "population", "populations", "popratio", "papb", "ratio", "majorminor")
-_add("status", "status")
-_add("t_min", "tmin", "tlow", "lowestt", "tstart")
-_add("t_max", "tmax", "thigh", "highestt", "tend")
-_add("t", "t", "temp", "temperature")
-_add("k", "k", "kex", "rate", "rateconstant", "kobs", "kexch")
-_add("rates", "rates", "ratepoints", "ratesktt")
+#: concept keys (see concept_key) → field; keys are lowercase letters and digits only
+CONCEPTS: dict[str, str] = {key: f.name for f in fields.FIELDS for key in f.headers}
 
 #: prefixes/suffixes that turn a concept into "the uncertainty of" it (σ_k, ΔG‡ err, u(Tc) …)
 _ERROR_WORDS = ("sigma", "err", "error", "sd", "stdev", "std", "u", "uncertainty", "esd")

@@ -139,3 +139,8 @@ def _describe(
         mol_binary=mol.ToBinary(),
         pattern_fp=fp,
     )
+
+
+def structure_for(smiles: str | None) -> Structure | None:
+    """The structure of a SMILES as stored (None when there is none)."""
+    return read_structure(smiles) if smiles else None

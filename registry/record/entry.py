@@ -14,23 +14,14 @@ from dataclasses import field as dc_field
 from typing import Any
 
 from registry.errors import FluxledgerError, UnitError
-from registry.record import vocab
+from registry.record import fields, vocab
 from registry.record.nuclei import observe_frequency_mhz
 from registry.record.units import ParsedValue, parse_value
 
-#: the fields of an entry: name → (quantity kind, what a user calls it)
-VALUE_FIELDS: dict[str, tuple[str, str]] = {
-    "field": ("field", "spectrometer frequency"),
-    "t_min": ("temperature", "lowest temperature"),
-    "t_max": ("temperature", "highest temperature"),
-    "dg": ("energy", "ΔG‡"),
-    "dg_t": ("temperature", "temperature of ΔG‡"),
-    "dh": ("energy", "ΔH‡"),
-    "ds": ("entropy", "ΔS‡"),
-    "ea": ("energy", "Ea"),
-    "tc": ("temperature", "Tc"),
-    "j": ("frequency", "J"),
-}
+#: value fields read on their own (the frequency first, Δν at it, log10 A without a unit)
+_PLAIN_VALUES = tuple(
+    f.name for f in fields.VALUE_FIELDS if f.name not in ("field", "dnu", "log10_a")
+)
 
 
 @dataclass
@@ -147,7 +138,7 @@ def _parse(
     raw = getattr(inp, name)
     if blank(raw):
         return None
-    quantity = "shift" if name == "dnu" else VALUE_FIELDS[name][0]
+    quantity = fields.quantity_of(name)
     try:
         return parse_value(
             raw, quantity, field=name, default_unit=inp.units.get(name), spectrometer_mhz=mhz
@@ -187,7 +178,7 @@ def normalize_entry(
 
     field_v = _parse(inp, "field", problems)
     mhz = field_v.value if field_v else None
-    values = {n: _parse(inp, n, problems) for n in VALUE_FIELDS if n != "field"}
+    values = {n: _parse(inp, n, problems) for n in _PLAIN_VALUES}
     nucleus = normalize_nucleus(inp.nucleus)
     before = len(problems)
     observe_mhz = _observe_mhz(mhz, nucleus, inp, problems)

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from registry.errors import UnitError, UsageError
+from registry.storage.connection import Connection
 
 _NUM = r"[-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?"
 _COMPARE = re.compile(r"^\s*(>=|<=|=>|=<|≥|≤|>|<)\s*(.+?)\s*$")
@@ -163,6 +164,7 @@ class Filters:
     nucleus: str | None = None
     status: str | None = None
     reference: str | None = None
+    compound: str | None = None  # compound label or name contains this text
     include_retracted: bool = False
 
     def active(self) -> bool:
@@ -175,7 +177,7 @@ class Filters:
             out["barrier"] = self.barrier.text
         if self.temperature:
             out["temperature"] = self.temperature.text
-        for key in ("method", "process", "nucleus", "status", "reference"):
+        for key in ("method", "process", "nucleus", "status", "reference", "compound"):
             if getattr(self, key):
                 out[key] = getattr(self, key)
         if self.solvents:
@@ -195,6 +197,7 @@ def make_filters(
     nucleus: str | None = None,
     status: str | None = None,
     reference: str | None = None,
+    compound: str | None = None,
     include_retracted: bool = False,
 ) -> Filters:
     """Check and normalize filter texts (vocabulary names, units) before any query runs."""
@@ -204,47 +207,75 @@ def make_filters(
     for item in [solvent] if isinstance(solvent, str) else solvent or []:
         solvents += [s.strip() for s in item.split(",") if s.strip()]
     return Filters(
-        barrier=parse_range(barrier, "energy", "--barrier") if barrier else None,
-        temperature=parse_range(temperature, "temperature", "--temperature")
-        if temperature
-        else None,
+        barrier=parse_range(barrier, "energy", "barrier") if barrier else None,
+        temperature=parse_range(temperature, "temperature", "temperature") if temperature else None,
         solvents=solvents,
-        method=vocab.method_name(method, field="--method") if method else None,
+        method=vocab.method_name(method, field="method") if method else None,
         process=process.strip() if process else None,
         nucleus=_nucleus(nucleus) if nucleus else None,
-        status=vocab.status_name(status, field="--status") if status else None,
+        status=vocab.status_name(status, field="status") if status else None,
         reference=reference.strip() if reference else None,
+        compound=compound.strip() if compound and compound.strip() else None,
         include_retracted=include_retracted,
     )
 
 
+def with_bounds(filters: Filters, lo: str | float | None, hi: str | float | None) -> Filters:
+    """``filters`` with the barrier narrowed to ``lo``/``hi`` (texts with a unit, or kJ/mol)."""
+    if lo is None and hi is None:
+        return filters
+
+    def bound(value: str | float, name: str) -> float:
+        if isinstance(value, (int, float)):
+            return float(value)
+        return _value(value, "energy", name)[0]
+
+    current = filters.barrier or Range(None, None)
+    low = current.lo if lo is None else bound(lo, "barrier_min")
+    high = current.hi if hi is None else bound(hi, "barrier_max")
+    if current.lo is not None and low is not None:
+        low = max(low, current.lo)
+    if current.hi is not None and high is not None:
+        high = min(high, current.hi)
+    text = " and ".join(t for t in (current.text, f">= {lo}" if lo is not None else "",
+                                    f"<= {hi}" if hi is not None else "") if t)  # fmt: skip
+    filters.barrier = Range(low, high, True, True, text)
+    return filters
+
+
 @dataclass
 class Where:
-    """SQL conditions on ``measurement m`` (joined with ``process p`` when ``needs_process``)
-    and their named parameters: plain SQL text, so that it runs on a ``sqlite3`` connection
-    as well as through SQLAlchemy (see :mod:`registry.search.sqlite_read`)."""
+    """SQL conditions on ``measurement m`` (joined with ``process p`` when ``needs_process``,
+    with ``compound c`` when ``needs_compound``) and their named parameters."""
 
     clauses: list[str] = field(default_factory=list)
     params: dict[str, Any] = field(default_factory=dict)
     needs_process: bool = False
+    needs_compound: bool = False
 
     def sql(self) -> str:
         return " AND ".join(f"({c})" for c in self.clauses) or "1 = 1"
 
+    def joins(self) -> str:
+        """The joins these conditions need on top of ``measurement m``."""
+        out = " JOIN compound c ON c.id = m.compound_id" if self.needs_compound else ""
+        if self.needs_process:
+            out += " LEFT OUTER JOIN process p ON p.id = m.process_id"
+        return out
+
 
 def _contains(column: str, name: str, dialect: str) -> str:
-    """Case-insensitive LIKE, written as SQLAlchemy's ``ilike`` writes it for each database."""
+    """Case-insensitive 'contains' (the parameter carries the %…%), one text per database."""
     if dialect == "postgresql":
         return f"{column} ILIKE :{name}"
     return f"lower({column}) LIKE lower(:{name})"
 
 
-def conditions(conn: Any, filters: Filters) -> Where:
-    """SQL conditions on (measurement m, process p) for these filters."""
+def conditions(conn: Connection, filters: Filters) -> Where:
+    """SQL conditions on (measurement m, process p, compound c) for these filters."""
     from registry.record import vocab
-    from registry.search.sqlite_read import binds, dialect_name, fetch
 
-    dialect = dialect_name(conn)
+    dialect = conn.dialect
     out = Where()
     params = out.params
     if filters.barrier:
@@ -255,8 +286,8 @@ def conditions(conn: Any, filters: Filters) -> Where:
         params["method"] = filters.method
         out.clauses.append("m.method = :method")
     if filters.process:
-        known = tuple(r[0] for r in fetch(conn, "SELECT name FROM process_kind"))
-        params["process"] = vocab.process_kind_name(filters.process, known, "--process")
+        known = tuple(conn.column("SELECT name FROM process_kind"))
+        params["process"] = vocab.process_kind_name(filters.process, known, "process")
         out.clauses.append("p.kind = :process")
         out.needs_process = True
     if filters.nucleus:
@@ -275,8 +306,8 @@ def conditions(conn: Any, filters: Filters) -> Where:
     if filters.solvents:
         index: dict[str, int] = {}  # every spelling key of every solvent → its id
         names: dict[str, int] = {}
-        for sid, name, formula, aliases in fetch(
-            conn, "SELECT id, name, formula, aliases FROM solvent"
+        for sid, name, formula, aliases in conn.rows(
+            "SELECT id, name, formula, aliases FROM solvent"
         ):
             names[name] = sid
             for spelling in (name, formula, *(aliases or "").split("|")):
@@ -292,11 +323,18 @@ def conditions(conn: Any, filters: Filters) -> Where:
                 ids.add(index[vocab.solvent_key(text)])
             else:
                 texts.append(text)
-        parts = [f"m.solvent_id IN ({binds('solvent_id', sorted(ids), params)})"] if ids else []
+        # solvent ids are integers read from the table just now: written into the SQL as such
+        parts = [f"m.solvent_id IN ({', '.join(map(str, sorted(ids)))})"] if ids else []
         for i, text in enumerate(texts):
             params[f"solvent_text{i}"] = f"%{text}%"
             parts.append(_contains("m.solvent_text", f"solvent_text{i}", dialect))
         if not parts:  # pragma: no cover - solvents given but nothing to match
-            raise UsageError("--solvent: nothing to match")
+            raise UsageError("solvent: nothing to match")
         out.clauses.append(" OR ".join(parts))
+    if filters.compound:
+        params["compound"] = f"%{filters.compound}%"
+        out.clauses.append(
+            f"{_contains('c.label', 'compound', dialect)} OR {_contains('c.name', 'compound', dialect)}"
+        )
+        out.needs_compound = True
     return out

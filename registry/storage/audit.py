@@ -14,13 +14,9 @@ from collections.abc import Iterable, Mapping
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, select
-
-from registry.storage import rawsql
-from registry.storage.models import Revision
+from registry.storage.connection import Connection, utc
 
 GENESIS = "0" * 64
-_CHAIN_LOCK_KEY = 0x666C7578  # advisory lock id for PostgreSQL
 
 
 def _canonical(value: Any) -> str:
@@ -50,22 +46,13 @@ def revision_hash(prev_hash: str, fields: Mapping[str, Any]) -> str:
     return hashlib.sha256((prev_hash + _canonical(body)).encode("utf-8")).hexdigest()
 
 
-def _lock_chain(conn: Connection) -> None:
-    if conn.dialect.name == "postgresql":
-        conn.exec_driver_sql(f"SELECT pg_advisory_xact_lock({_CHAIN_LOCK_KEY})")
-
-
 def last_hash(conn: Connection) -> str:
     """The newest revision's hash (GENESIS for an empty history).
 
-    Plain SQL on purpose: this runs on every write, and building the equivalent ``select()``
-    costs more than the primary-key lookup itself.
+    The write transaction this runs in is the only writer (SQLite's ``BEGIN IMMEDIATE``, the
+    advisory lock on PostgreSQL), so the chain cannot fork.
     """
-    sql = "SELECT hash FROM revision ORDER BY id DESC LIMIT 1"
-    if rawsql.on_sqlite(conn):
-        found = rawsql.fetch_all(conn, sql)
-        return found[0][0] if found else GENESIS
-    return conn.exec_driver_sql(sql).scalar() or GENESIS
+    return conn.scalar("SELECT hash FROM revision ORDER BY id DESC LIMIT 1") or GENESIS
 
 
 def to_json(value: Mapping[str, Any] | None) -> str | None:
@@ -74,7 +61,6 @@ def to_json(value: Mapping[str, Any] | None) -> str | None:
 
 def record_many(conn: Connection, changes: Iterable[Mapping[str, Any]], actor: str) -> int:
     """Append revisions; each change has entity, entity_id, action, before, after (+reason, batch_id)."""
-    _lock_chain(conn)
     prev = last_hash(conn)
     at = datetime.now(UTC)
     rows = []
@@ -94,9 +80,9 @@ def record_many(conn: Connection, changes: Iterable[Mapping[str, Any]], actor: s
         row["hash"] = prev = revision_hash(prev, row)
         rows.append(row)
     if len(rows) == 1:
-        rawsql.insert_one(conn, Revision.__table__, rows[0])
+        conn.insert("revision", rows[0])
     else:
-        rawsql.insert_many(conn, Revision.__table__, rows)
+        conn.insert_many("revision", rows)
     return len(rows)
 
 
@@ -134,34 +120,20 @@ def verify_chain(conn: Connection) -> list[str]:
     """Problems in the hash chain (empty when intact), naming the first broken revision ids."""
     problems: list[str] = []
     prev = GENESIS
-    cols = [
-        Revision.id,
-        Revision.entity,
-        Revision.entity_id,
-        Revision.action,
-        Revision.actor,
-        Revision.at,
-        Revision.before_json,
-        Revision.after_json,
-        Revision.reason,
-        Revision.batch_id,
-        Revision.prev_hash,
-        Revision.hash,
-    ]
-    for row in conn.execute(select(*cols).order_by(Revision.id)).mappings():
-        fields = dict(row)
-        at = fields["at"]
-        if isinstance(at, datetime) and at.tzinfo is None:
-            fields["at"] = at.replace(tzinfo=UTC)
-        if row["prev_hash"] != prev:
+    for fields in conn.records(
+        "SELECT id, entity, entity_id, action, actor, at, before_json, after_json, reason, "
+        "batch_id, prev_hash, hash FROM revision ORDER BY id"
+    ):
+        fields["at"] = utc(fields["at"])
+        if fields["prev_hash"] != prev:
             problems.append(
-                f"revision {row['id']}: previous-hash link broken (a revision before it was changed or removed)"
+                f"revision {fields['id']}: previous-hash link broken (a revision before it was changed or removed)"
             )
-        elif revision_hash(prev, fields) != row["hash"]:
+        elif revision_hash(prev, fields) != fields["hash"]:
             problems.append(
-                f"revision {row['id']}: content does not match its hash (edited after the fact)"
+                f"revision {fields['id']}: content does not match its hash (edited after the fact)"
             )
-        prev = row["hash"]
+        prev = fields["hash"]
         if len(problems) >= 20:
             break
     return problems

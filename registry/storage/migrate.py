@@ -2,21 +2,23 @@
 
 The migration scripts live in the top-level ``migrations/`` folder, which installs as the
 package ``registry._migrations``; running from a source checkout finds the folder directly.
+Alembic (and SQLAlchemy) are loaded only when a migration or a schema comparison runs.
 """
 
 from __future__ import annotations
 
+import io
 import sys
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from sqlalchemy import inspect, text
+from registry.storage.database import Database, head_revision, schema_revision
+from registry.storage.schema import script_location
 
-from registry.storage.database import Database
-from registry.storage.schema import script_location, scripts_head
-
-if TYPE_CHECKING:  # Alembic is loaded only when a migration actually runs (fast start-up)
+if TYPE_CHECKING:
     from alembic.config import Config
+
+__all__ = ["alembic_head", "check", "current_revision", "head_revision", "known_revisions"]
 
 
 def alembic_config(database: Database | None = None) -> Config:
@@ -30,56 +32,52 @@ def alembic_config(database: Database | None = None) -> Config:
     return cfg
 
 
-def head_revision() -> str:
-    """The newest revision: from the scripts as text (no Alembic) unless they branch."""
-    return scripts_head() or _alembic_head()
-
-
-def _alembic_head() -> str:
+def alembic_head() -> str:
+    """The head as Alembic computes it (needed only when the scripts branch)."""
     from alembic.script import ScriptDirectory
 
     return ScriptDirectory.from_config(alembic_config()).get_current_head() or ""
 
 
+def known_revisions() -> list[str]:
+    """Every migration revision, oldest first."""
+    from alembic.script import ScriptDirectory
+
+    script = ScriptDirectory.from_config(alembic_config())
+    return [r.revision for r in reversed(list(script.walk_revisions()))]
+
+
 def current_revision(database: Database) -> str | None:
-    """The revision stamped in the database (None for an empty one), read with plain SQL."""
-    with database.engine.connect() as conn:
-        if not inspect(conn).has_table("alembic_version"):
-            return None
-        return conn.execute(text("SELECT version_num FROM alembic_version")).scalar()
+    """The revision stamped in the database (None for an empty one)."""
+    return schema_revision(database)
+
+
+def _run(database: Database, action: str, *args: object) -> None:
+    from alembic import command
+
+    cfg = alembic_config(database)
+    cfg.stdout = io.StringIO()  # Alembic's own chatter ("No new upgrade operations …")
+    with database.sqlalchemy_engine().begin() as conn:
+        cfg.attributes["connection"] = conn
+        getattr(command, action)(cfg, *args)
 
 
 def upgrade(database: Database, target: str = "head") -> None:
     """Bring the schema to ``target``; each migration runs in its own transaction."""
-    from alembic import command
-
-    cfg = alembic_config(database)
-    with database.engine.begin() as conn:
-        cfg.attributes["connection"] = conn
-        command.upgrade(cfg, target)
+    _run(database, "upgrade", target)
 
 
 def downgrade(database: Database, target: str) -> None:
-    from alembic import command
-
-    cfg = alembic_config(database)
-    with database.engine.begin() as conn:
-        cfg.attributes["connection"] = conn
-        command.downgrade(cfg, target)
+    _run(database, "downgrade", target)
 
 
 def check(database: Database) -> None:
     """Raise if the models and the migration head have drifted apart (Alembic autogenerate)."""
-    from alembic import command
-
-    cfg = alembic_config(database)
-    with database.engine.begin() as conn:
-        cfg.attributes["connection"] = conn
-        command.check(cfg)
+    _run(database, "check")
 
 
 def _main(argv: list[str]) -> None:
-    """Developer entry: ``python -m registry.storage.migrate revision -m MSG`` autogenerates a revision."""
+    """Developer entry: ``python -m registry.storage.migrate revision -m MSG`` autogenerates one."""
     import argparse
     import tempfile
 
@@ -98,9 +96,10 @@ def _main(argv: list[str]) -> None:
         cfg.set_main_option(
             "script_location", str(Path(__file__).resolve().parents[2] / "migrations")
         )
-        with database.engine.begin() as conn:
+        with database.sqlalchemy_engine().begin() as conn:
             cfg.attributes["connection"] = conn
             command.revision(cfg, message=args.message, autogenerate=True)
+        database.close()
 
 
 if __name__ == "__main__":

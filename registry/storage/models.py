@@ -11,6 +11,7 @@ from __future__ import annotations
 from datetime import datetime
 
 from sqlalchemy import (
+    BigInteger,
     Boolean,
     DateTime,
     Float,
@@ -259,3 +260,12 @@ class Motif(Base):
     description: Mapped[str] = mapped_column(Text, default="")
     created_by: Mapped[str] = mapped_column(String(128))
     created_at: Mapped[datetime] = mapped_column(DateTime(timezone=True))
+
+
+class ChangeCounter(Base):
+    """How often each kind of change has happened; triggers keep it (migration 0003), caches
+    compare it (:mod:`registry.storage.changes`)."""
+
+    __tablename__ = "change_counter"
+    name: Mapped[str] = mapped_column(String(32), primary_key=True)
+    n: Mapped[int] = mapped_column(BigInteger)

@@ -1,36 +1,24 @@
 """Write normalized entries: resolve compounds, processes and solvents, insert, record history.
 
-Works in batches with Core statements (no ORM object per row), so that one entry from ``add``
-and a hundred thousand from an import take the same path. Everything runs inside the caller's
+Works in batches (one ``executemany`` per table, no object per row), so that one entry from
+``add`` and a hundred thousand from an import take the same path. Everything runs inside the caller's
 write transaction: a failure anywhere leaves nothing behind.
 """
 
 from __future__ import annotations
 
 import json
-import weakref
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, select, text
-
 from registry.errors import FluxledgerError
 from registry.record import vocab
 from registry.record.chem import Structure
 from registry.record.entry import NormalizedEntry
-from registry.storage import audit, rawsql
-from registry.storage.lookup import rows_where_in
-from registry.storage.models import (
-    CoalescenceObservation,
-    Compound,
-    Measurement,
-    Process,
-    ProcessKind,
-    RatePoint,
-    Solvent,
-)
+from registry.storage import audit
+from registry.storage.connection import Connection
 
 
 class DuplicateCompoundError(FluxledgerError):
@@ -50,35 +38,31 @@ class WriteResult:
     compounds_added: int
 
 
-_REFERENCE_CACHE: weakref.WeakKeyDictionary[Any, dict[str, Any]] = weakref.WeakKeyDictionary()
+_REFERENCE_CACHE: dict[str, dict[str, Any]] = {}
 
 
 def _reference_cache(conn: Connection) -> dict[str, Any]:
-    """Per-engine cache of the small reference tables, refreshed when their size changes.
+    """The small reference tables (solvent spellings, process kinds), read again when they change.
 
-    Every single ``add`` needs the solvent spellings and the process kinds; building the spelling
-    index each time cost a quarter of a write.
+    Every single ``add`` needs them; building the spelling index each time cost a quarter of a
+    write. Kept per process, keyed on what the two tables hold (sizes and largest id).
     """
-    sql = (
+    stamp = conn.first(
         "SELECT (SELECT count(*) FROM solvent), (SELECT max(id) FROM solvent), "
-        "(SELECT count(*) FROM process_kind)"
+        "(SELECT count(*) FROM process_kind), "
+        "(SELECT coalesce(sum(length(aliases)), 0) FROM solvent)"
     )
-    if rawsql.on_sqlite(conn):
-        stamp = rawsql.fetch_all(conn, sql)[0]
-    else:
-        stamp = conn.execute(text(sql)).one()
-    cache = _REFERENCE_CACHE.setdefault(conn.engine, {})
-    if cache.get("stamp") != tuple(stamp):
+    cache = _REFERENCE_CACHE.get(conn.source)
+    if cache is None or cache.get("stamp") != stamp:
         index: dict[str, int] = {}
-        for sid, name, formula, aliases in conn.execute(
-            select(Solvent.id, Solvent.name, Solvent.formula, Solvent.aliases).order_by(Solvent.id)
+        for sid, name, formula, aliases in conn.rows(
+            "SELECT id, name, formula, aliases FROM solvent ORDER BY id"
         ):
             for spelling in (name, formula, *(aliases or "").split("|")):
                 if spelling:
                     index.setdefault(vocab.solvent_key(spelling), sid)
-        kinds = tuple(r[0] for r in conn.execute(select(ProcessKind.name)))
-        cache.clear()
-        cache.update(stamp=tuple(stamp), solvents=index, kinds=kinds)
+        kinds = tuple(conn.column("SELECT name FROM process_kind ORDER BY name"))
+        cache = _REFERENCE_CACHE[conn.source] = {"stamp": stamp, "solvents": index, "kinds": kinds}
     return cache
 
 
@@ -87,10 +71,10 @@ def solvent_index(conn: Connection) -> dict[str, int]:
     return _reference_cache(conn)["solvents"]
 
 
-def cached_process_kinds(engine: Any) -> tuple[str, ...] | None:
-    """The process kinds last read on ``engine`` (no query), or None before the first read."""
-    cache = _REFERENCE_CACHE.get(engine)
-    return cache.get("kinds") if cache else None
+def cached_process_kinds(key: str) -> tuple[str, ...] | None:
+    """The process kinds last read from the registry ``key`` in this process (no query)."""
+    cache = _REFERENCE_CACHE.get(key)
+    return cache["kinds"] if cache else None
 
 
 def known_process_kinds(conn: Connection) -> tuple[str, ...]:
@@ -140,10 +124,10 @@ def resolve_compounds(
     labels = {e.compound.get("label") for e in entries if e.compound.get("label")}
     by_key: dict[str, tuple[int, str | None]] = {}
     by_label: dict[str, tuple[int, str | None]] = {}
-    columns = (Compound.id, Compound.inchikey, Compound.label)
-    for cid, key, label in rows_where_in(conn, columns, Compound.inchikey, keys):
+    select = "SELECT id, inchikey, label FROM compound WHERE 1 = 1"
+    for cid, key, label in conn.rows_where_in(select, "inchikey", keys):
         by_key[key] = (cid, label)
-    for cid, key, label in rows_where_in(conn, columns, Compound.label, labels):
+    for cid, key, label in conn.rows_where_in(select, "label", labels):
         by_label[label] = (cid, key)
     # a compound known only by name (no structure, no label) is matched by that name
     names = {
@@ -154,13 +138,12 @@ def resolve_compounds(
         and (st is None or not st.inchikey)
     }
     by_name: dict[str, int] = {}
-    for chunk in _chunks(sorted(names), 500):
-        for cid, name in conn.execute(
-            select(Compound.id, Compound.name)
-            .where(Compound.name.in_(chunk), Compound.label.is_(None), Compound.inchikey.is_(None))
-            .order_by(Compound.id)
-        ):
-            by_name.setdefault(name, cid)
+    for cid, name in sorted(
+        conn.rows_where_in(
+            "SELECT id, name FROM compound WHERE label IS NULL AND inchikey IS NULL", "name", names
+        )
+    ):
+        by_name.setdefault(name, cid)
     new_rows: list[dict[str, Any]] = []
     pending: dict[str, int] = {}  # key (inchikey or label or name) → index in new_rows
     slots: list[tuple[str, int]] = []  # ("id", id) or ("new", index)
@@ -211,20 +194,16 @@ def resolve_compounds(
         slots.append(("new", len(new_rows) - 1))
     new_ids: list[int] = []
     if new_rows:
-        new_ids = _insert_returning_ids(conn, Compound, new_rows)
+        new_ids = _insert_returning_ids(conn, "compound", new_rows)
     ids = [value if kind == "id" else new_ids[value] for kind, value in slots]
     return ids, len(new_rows)
 
 
-def _insert_returning_ids(conn: Connection, model: Any, rows: list[dict[str, Any]]) -> list[int]:
+def _insert_returning_ids(conn: Connection, table: str, rows: list[dict[str, Any]]) -> list[int]:
     """Insert rows and return their ids in order (one row: the single-add path)."""
     if len(rows) == 1:
-        return [rawsql.insert_one(conn, model.__table__, rows[0], returning="id")]
-    return rawsql.insert_many(conn, model.__table__, rows, new_ids=True) or []
-
-
-def _chunks(items: Sequence[Any], size: int) -> list[Sequence[Any]]:
-    return [items[i : i + size] for i in range(0, len(items), size)]
+        return [conn.insert(table, rows[0], returning="id")]
+    return conn.insert_many(table, rows, new_ids=True)
 
 
 def resolve_processes(
@@ -238,8 +217,9 @@ def resolve_processes(
     }
     found: dict[tuple[int, str, str, str], int] = {}
     cids = sorted({w[0] for w in wanted})
-    columns = (Process.id, Process.compound_id, Process.kind, Process.sites, Process.nucleus)
-    for pid, cid, kind, sites, nucleus in rows_where_in(conn, columns, Process.compound_id, cids):
+    for pid, cid, kind, sites, nucleus in conn.rows_where_in(
+        "SELECT id, compound_id, kind, sites, nucleus FROM process WHERE 1 = 1", "compound_id", cids
+    ):
         found[(cid, kind, sites, nucleus)] = pid
     missing = sorted(w for w in wanted if w not in found)
     if missing:
@@ -247,7 +227,7 @@ def resolve_processes(
             {"compound_id": c, "kind": k, "sites": s, "nucleus": n, "description": None}
             for c, k, s, n in missing
         ]
-        for key, pid in zip(missing, _insert_returning_ids(conn, Process, rows), strict=True):
+        for key, pid in zip(missing, _insert_returning_ids(conn, "process", rows), strict=True):
             found[key] = pid
     return [
         None
@@ -290,20 +270,20 @@ def write_entries(
             else None,
         )
         rows.append(row)
-    ids = _insert_returning_ids(conn, Measurement, rows)
+    ids = _insert_returning_ids(conn, "measurement", rows)
     coalescence_rows = [
         {**e.coalescence, "measurement_id": mid}
         for e, mid in zip(entries, ids, strict=True)
         if e.coalescence
     ]
     if len(coalescence_rows) == 1:
-        rawsql.insert_one(conn, CoalescenceObservation.__table__, coalescence_rows[0])
+        conn.insert("coalescence", coalescence_rows[0])
     else:
-        rawsql.insert_many(conn, CoalescenceObservation.__table__, coalescence_rows)
+        conn.insert_many("coalescence", coalescence_rows)
     rate_rows = [
         {**r, "measurement_id": mid} for e, mid in zip(entries, ids, strict=True) for r in e.rates
     ]
-    rawsql.insert_many(conn, RatePoint.__table__, rate_rows)
+    conn.insert_many("rate_point", rate_rows)
     if record_history:
         audit.record_many(
             conn,

@@ -19,8 +19,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 from datetime import UTC, datetime
 
-from sqlalchemy import Connection
-
+from registry.storage.connection import Connection
 from registry.storage.database import Database, current_user
 from registry.validation.base import SEVERITIES, SEVERITY_RANK, CheckConfig, Finding, Rule
 from registry.validation.data import load_check_data

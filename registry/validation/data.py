@@ -15,17 +15,9 @@ from functools import cached_property, lru_cache
 import numpy as np
 import pandas as pd
 from numpy.typing import NDArray
-from sqlalchemy import Connection, func, select
 
 from registry.record import units
-from registry.storage.models import (
-    CoalescenceObservation,
-    Compound,
-    Measurement,
-    Process,
-    RatePoint,
-    Solvent,
-)
+from registry.storage.connection import Connection
 
 #: the leading number (with an optional "(3)" or "± 0.3" uncertainty) of a value as written
 _NUMBER_PREFIX = (
@@ -35,52 +27,52 @@ _NUMBER_PREFIX = (
 _NUMBER = r"^\s*([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)"
 
 _MEASUREMENT_COLUMNS = {
-    "id": Measurement.id,
-    "compound_id": Measurement.compound_id,
-    "process_id": Measurement.process_id,
-    "method": Measurement.method,
-    "solvent_id": Measurement.solvent_id,
-    "solvent_text": Measurement.solvent_text,
-    "field_mhz": Measurement.field_mhz,
-    "t_min_k": Measurement.t_min_k,
-    "t_min_text": Measurement.t_min_text,
-    "t_max_k": Measurement.t_max_k,
-    "t_max_text": Measurement.t_max_text,
-    "dg_kj_mol": Measurement.dg_kj_mol,
-    "dg_err_kj_mol": Measurement.dg_err_kj_mol,
-    "dg_text": Measurement.dg_text,
-    "dg_t_k": Measurement.dg_t_k,
-    "dg_t_text": Measurement.dg_t_text,
-    "dh_kj_mol": Measurement.dh_kj_mol,
-    "dh_err_kj_mol": Measurement.dh_err_kj_mol,
-    "dh_text": Measurement.dh_text,
-    "ds_j_mol_k": Measurement.ds_j_mol_k,
-    "ds_err_j_mol_k": Measurement.ds_err_j_mol_k,
-    "ds_text": Measurement.ds_text,
-    "ea_kj_mol": Measurement.ea_kj_mol,
-    "ea_err_kj_mol": Measurement.ea_err_kj_mol,
-    "ea_text": Measurement.ea_text,
-    "solvent_name": Solvent.name,
-    "mp_k": Solvent.mp_k,
-    "bp_k": Solvent.bp_k,
-    "compound_label": Compound.label,
-    "structure_ok": Compound.structure_ok,
-    "structure_problem": Compound.structure_problem,
-    "nucleus": Process.nucleus,
+    "id": "m.id",
+    "compound_id": "m.compound_id",
+    "process_id": "m.process_id",
+    "method": "m.method",
+    "solvent_id": "m.solvent_id",
+    "solvent_text": "m.solvent_text",
+    "field_mhz": "m.field_mhz",
+    "t_min_k": "m.t_min_k",
+    "t_min_text": "m.t_min_text",
+    "t_max_k": "m.t_max_k",
+    "t_max_text": "m.t_max_text",
+    "dg_kj_mol": "m.dg_kj_mol",
+    "dg_err_kj_mol": "m.dg_err_kj_mol",
+    "dg_text": "m.dg_text",
+    "dg_t_k": "m.dg_t_k",
+    "dg_t_text": "m.dg_t_text",
+    "dh_kj_mol": "m.dh_kj_mol",
+    "dh_err_kj_mol": "m.dh_err_kj_mol",
+    "dh_text": "m.dh_text",
+    "ds_j_mol_k": "m.ds_j_mol_k",
+    "ds_err_j_mol_k": "m.ds_err_j_mol_k",
+    "ds_text": "m.ds_text",
+    "ea_kj_mol": "m.ea_kj_mol",
+    "ea_err_kj_mol": "m.ea_err_kj_mol",
+    "ea_text": "m.ea_text",
+    "solvent_name": "s.name",
+    "mp_k": "s.mp_k",
+    "bp_k": "s.bp_k",
+    "compound_label": "c.label",
+    "structure_ok": "c.structure_ok",
+    "structure_problem": "c.structure_problem",
+    "nucleus": "p.nucleus",
 }
 
 _COALESCENCE_COLUMNS = {
-    "co_id": CoalescenceObservation.id,
-    "id": CoalescenceObservation.measurement_id,
-    "tc_k": CoalescenceObservation.tc_k,
-    "tc_err_k": CoalescenceObservation.tc_err_k,
-    "tc_text": CoalescenceObservation.tc_text,
-    "dnu_hz": CoalescenceObservation.dnu_hz,
-    "dnu_err_hz": CoalescenceObservation.dnu_err_hz,
-    "dnu_text": CoalescenceObservation.dnu_text,
-    "j_hz": CoalescenceObservation.j_hz,
-    "population_ratio": CoalescenceObservation.population_ratio,
-    "co_field_mhz": CoalescenceObservation.field_mhz,
+    "co_id": "co.id",
+    "id": "co.measurement_id",
+    "tc_k": "co.tc_k",
+    "tc_err_k": "co.tc_err_k",
+    "tc_text": "co.tc_text",
+    "dnu_hz": "co.dnu_hz",
+    "dnu_err_hz": "co.dnu_err_hz",
+    "dnu_text": "co.dnu_text",
+    "j_hz": "co.j_hz",
+    "population_ratio": "co.population_ratio",
+    "co_field_mhz": "co.field_mhz",
 }
 
 _FLOAT_COLUMNS = (
@@ -146,8 +138,6 @@ HASHED_COLUMNS = (
     "rate_sum_err",
 )
 
-_CHUNK = 2000
-
 
 @dataclass
 class CheckData:
@@ -187,35 +177,11 @@ class CheckData:
         return {int(p): self._hash_cache[int(p)] for p in positions}
 
 
-#: read SQLite through the DBAPI cursor (plain tuples, ~30 % less CPU than SQLAlchemy rows);
-#: other databases, and tests comparing both paths, use SQLAlchemy's result rows
-RAW_SQLITE = True
-
-
-def _fetch(conn: Connection, query, ids: Sequence[int] | None, id_column) -> list[tuple]:  # type: ignore[no-untyped-def]
-    """All rows of ``query`` (restricted to ``ids`` of ``id_column`` in chunks when given)."""
+def _fetch(conn: Connection, sql: str, ids: Sequence[int] | None, id_column: str) -> list[tuple]:  # type: ignore[type-arg]
+    """All rows of ``sql`` (a query ending in WHERE …), only those of ``ids`` when given."""
     if ids is None:
-        return _rows(conn, query)
-    rows: list[tuple] = []
-    unique = sorted(set(int(i) for i in ids))
-    for start in range(0, len(unique), _CHUNK):
-        chunk = unique[start : start + _CHUNK]
-        rows.extend(_rows(conn, query.where(id_column.in_(chunk))))
-    return rows
-
-
-def _rows(conn: Connection, query) -> list[tuple]:  # type: ignore[no-untyped-def]
-    if not (RAW_SQLITE and conn.dialect.name == "sqlite"):
-        return list(conn.execute(query).all())
-    compiled = query.compile(dialect=conn.dialect, compile_kwargs={"render_postcompile": True})
-    values = compiled.params  # a property that builds the whole dict: read it once
-    params = [values[name] for name in compiled.positiontup or ()]
-    cursor = conn.connection.dbapi_connection.cursor()  # same connection, same transaction
-    try:
-        cursor.execute(str(compiled), params)
-        return cursor.fetchall()
-    finally:
-        cursor.close()
+        return conn.rows(sql)
+    return conn.rows_where_in(sql, id_column, ids)
 
 
 def _frame(rows: list, columns: list[str]) -> pd.DataFrame:  # type: ignore[type-arg]
@@ -231,7 +197,7 @@ def covers_most(conn: Connection, ids: Sequence[int]) -> bool:
     Reading the whole table in one pass and keeping ``ids`` is then cheaper than selecting
     them in thousands of ``IN (...)`` chunks.
     """
-    total = conn.execute(select(func.count()).select_from(Measurement)).scalar_one()
+    total = conn.scalar("SELECT count(*) FROM measurement")
     return 2 * len(ids) >= total
 
 
@@ -248,27 +214,16 @@ def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> Check
         return CheckData(m=m, rates=rates, peers=data.peers)  # every live measurement
     ids = wanted
     mq = (
-        select(*(c.label(n) for n, c in _MEASUREMENT_COLUMNS.items()))
-        .select_from(Measurement)
-        .join(Compound, Compound.id == Measurement.compound_id)
-        .outerjoin(Process, Process.id == Measurement.process_id)
-        .outerjoin(Solvent, Solvent.id == Measurement.solvent_id)
-        .where(Measurement.status != "retracted")
+        f"SELECT {', '.join(_MEASUREMENT_COLUMNS.values())} FROM measurement m "
+        "JOIN compound c ON c.id = m.compound_id "
+        "LEFT OUTER JOIN process p ON p.id = m.process_id "
+        "LEFT OUTER JOIN solvent s ON s.id = m.solvent_id WHERE m.status != 'retracted'"
     )
-    m = _frame(_fetch(conn, mq, ids, Measurement.id), list(_MEASUREMENT_COLUMNS))
-    cq = select(*(c.label(n) for n, c in _COALESCENCE_COLUMNS.items()))
-    co = _frame(
-        _fetch(conn, cq, ids, CoalescenceObservation.measurement_id), list(_COALESCENCE_COLUMNS)
-    )
-    rq = select(
-        RatePoint.measurement_id.label("id"),
-        RatePoint.t_k,
-        RatePoint.k_per_s,
-        RatePoint.k_err_per_s,
-    )
-    rates = _frame(
-        _fetch(conn, rq, ids, RatePoint.measurement_id), ["id", "t_k", "k_per_s", "k_err_per_s"]
-    )
+    m = _frame(_fetch(conn, mq, ids, "m.id"), list(_MEASUREMENT_COLUMNS))
+    cq = f"SELECT {', '.join(_COALESCENCE_COLUMNS.values())} FROM coalescence co WHERE 1 = 1"
+    co = _frame(_fetch(conn, cq, ids, "co.measurement_id"), list(_COALESCENCE_COLUMNS))
+    rq = "SELECT measurement_id, t_k, k_per_s, k_err_per_s FROM rate_point WHERE 1 = 1"
+    rates = _frame(_fetch(conn, rq, ids, "measurement_id"), ["id", "t_k", "k_per_s", "k_err_per_s"])
     m = m.sort_values("id", kind="stable").reset_index(drop=True)
     m = _attach_coalescence(m, co)
     m = _attach_rate_summary(m, rates)
@@ -297,10 +252,9 @@ PEER_COLUMNS = (
 
 def _load_peers(conn: Connection, m: pd.DataFrame) -> pd.DataFrame:
     """Every live measurement of the compounds in ``m`` (to find repeats of a checked one)."""
-    cols = [getattr(Measurement, c) for c in PEER_COLUMNS]
-    query = select(*cols).where(Measurement.status != "retracted")
+    query = f"SELECT {', '.join(PEER_COLUMNS)} FROM measurement WHERE status != 'retracted'"
     compound_ids = m["compound_id"].dropna().astype(int).unique().tolist()
-    peers = _frame(_fetch(conn, query, compound_ids, Measurement.compound_id), list(PEER_COLUMNS))
+    peers = _frame(_fetch(conn, query, compound_ids, "compound_id"), list(PEER_COLUMNS))
     for name in ("dg_kj_mol", "dg_err_kj_mol", "dg_t_k"):
         peers[name] = pd.to_numeric(peers[name], errors="coerce").astype(np.float64)
     return peers

@@ -13,16 +13,11 @@ from collections.abc import Sequence
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, bindparam, delete, insert, select, update
-
 from registry.errors import NotFoundError, UsageError
 from registry.storage import audit
-from registry.storage.models import Revision, ValidationFinding
+from registry.storage.connection import Connection, utc
 from registry.validation.base import SEVERITY_RANK, Finding
-from registry.validation.data import covers_most
 
-_T = ValidationFinding.__table__
-_CHUNK = 2000
 _SLIP_RE = re.compile(r"\[([a-z0-9-]+)\](?=;|$)")
 
 Key = tuple[int, str, int, str | None]
@@ -33,20 +28,16 @@ def _key(mid: int, rule: str, version: int, inputs_hash: str | None) -> Key:
 
 
 def _select_stored(
-    conn: Connection, measurement_ids: Sequence[int] | None, query: Any = None
-) -> list[Any]:
-    """Stored findings (all columns, or ``query``'s) of ``measurement_ids`` (None: all)."""
-    query = select(_T).order_by(_T.c.measurement_id, _T.c.id) if query is None else query
+    conn: Connection, measurement_ids: Sequence[int] | None, columns: str = "*"
+) -> list[dict[str, Any]]:
+    """Stored findings (all columns, or ``columns``) of ``measurement_ids`` (None: all), in
+    (measurement, id) order."""
+    sql = f"SELECT {columns} FROM validation_finding WHERE 1 = 1"
     if measurement_ids is None:
-        return list(conn.execute(query).mappings())
-    ids = sorted({int(i) for i in measurement_ids})
-    if covers_most(conn, ids):  # one pass over the table beats thousands of IN chunks
-        wanted = set(ids)
-        return [r for r in conn.execute(query).mappings() if r["measurement_id"] in wanted]
-    rows: list[Any] = []
-    for start in range(0, len(ids), _CHUNK):
-        chunk = ids[start : start + _CHUNK]
-        rows.extend(conn.execute(query.where(_T.c.measurement_id.in_(chunk))).mappings())
+        rows = conn.records(sql)
+    else:
+        rows = conn.records_where_in(sql, "measurement_id", measurement_ids)
+    rows.sort(key=lambda r: (r["measurement_id"], r["id"]))
     return rows
 
 
@@ -66,10 +57,10 @@ def finding_from_row(row: Any, new: bool = False) -> Finding:
         slips=tuple(_SLIP_RE.findall(cause)) if cause else (),
         id=row["id"],
         inputs_hash=row["inputs_hash"],
-        found_at=row["found_at"],
+        found_at=utc(row["found_at"]),
         new=new,
         accepted_by=row["accepted_by"],
-        accepted_at=row["accepted_at"],
+        accepted_at=utc(row["accepted_at"]),
         accept_reason=row["accept_reason"],
     )
 
@@ -81,12 +72,10 @@ def reconcile(
     now: datetime,
 ) -> tuple[list[Finding], int, int]:
     """Store this run's findings for ``measurement_ids`` (None: all); return them, #new, #removed."""
-    keys_query = select(
-        _T.c.id, _T.c.measurement_id, _T.c.rule_id, _T.c.rule_version, _T.c.inputs_hash
-    )
     existing: dict[Key, int] = {}
     stale: list[int] = []
-    for row in _select_stored(conn, measurement_ids, keys_query):
+    keys = "id, measurement_id, rule_id, rule_version, inputs_hash"
+    for row in _select_stored(conn, measurement_ids, keys):
         fid, mid, rule, version, h = (row[c] for c in ("id", "measurement_id", "rule_id",
                                                         "rule_version", "inputs_hash"))  # fmt: skip
         key = _key(mid, rule, version, h)
@@ -121,9 +110,10 @@ def reconcile(
         )
     stale += [fid for key, fid in existing.items() if key not in produced]
     if stale:
-        conn.execute(delete(_T).where(_T.c.id == bindparam("fid")), [{"fid": i} for i in stale])
-    if rows:
-        conn.execute(insert(_T), rows)
+        conn.execute_many(
+            "DELETE FROM validation_finding WHERE id = :fid", [{"fid": i} for i in stale]
+        )
+    conn.insert_many("validation_finding", rows)
     inserted = {
         _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"]) for r in rows
     }
@@ -138,17 +128,18 @@ def reconcile(
 def accept(conn: Connection, finding_id: int, reason: str, actor: str) -> Finding:
     """Mark a finding accepted with the reason, and record who did it in the history."""
     if not reason or not reason.strip():
-        raise UsageError('accepting a finding needs a reason (--reason "…")')
-    row = conn.execute(select(_T).where(_T.c.id == finding_id)).mappings().first()
+        raise UsageError("accepting a finding needs a reason")
+    select = "SELECT * FROM validation_finding WHERE id = :id"
+    row = conn.record(select, {"id": finding_id})
     if row is None:
         raise NotFoundError(
             f"no finding with id {finding_id}; run 'fluxledger check' to see the current ones"
         )
     now = datetime.now(UTC)
-    conn.execute(
-        update(_T)
-        .where(_T.c.id == finding_id)
-        .values(accepted_by=actor, accepted_at=now, accept_reason=reason.strip())
+    conn.update(
+        "validation_finding",
+        {"accepted_by": actor, "accepted_at": now, "accept_reason": reason.strip()},
+        id=finding_id,
     )
     audit.record(
         conn,
@@ -167,7 +158,7 @@ def accept(conn: Connection, finding_id: int, reason: str, actor: str) -> Findin
         },
         reason=reason.strip(),
     )
-    fresh = conn.execute(select(_T).where(_T.c.id == finding_id)).mappings().one()
+    fresh = conn.record(select, {"id": finding_id})
     return finding_from_row(fresh)
 
 
@@ -177,12 +168,12 @@ RUN_ENTITY, RUN_ACTION = "validation", "check"
 
 def last_run(conn: Connection) -> datetime | None:
     """When the previous recorded check run happened (None if never)."""
-    return conn.execute(
-        select(Revision.at)
-        .where(Revision.entity == RUN_ENTITY, Revision.action == RUN_ACTION)
-        .order_by(Revision.id.desc())
-        .limit(1)
-    ).scalar()
+    at = conn.scalar(
+        "SELECT at FROM revision WHERE entity = :entity AND action = :action "
+        "ORDER BY id DESC LIMIT 1",
+        {"entity": RUN_ENTITY, "action": RUN_ACTION},
+    )
+    return utc(at)
 
 
 def record_check_run(

@@ -1,0 +1,68 @@
+"""The library: one function per user action; the CLI and notebooks call the same functions.
+
+Every action on a registry takes the handle :func:`open_registry` returns (a
+:class:`~registry.storage.database.Database`) and returns data — dicts, lists of dicts, frozen
+records, DataFrames on request — never printed text. Write actions run in one transaction each
+(all or nothing). Importing this package is cheap: each function loads what it needs (units,
+RDKit, pandas, matplotlib) when it is called.
+
+Grouped by what they act on:
+
+* ``registry``  — :func:`init_registry`, :func:`open_registry`, :func:`registry_info`
+* ``records``   — :func:`add_measurement`, :func:`deferred_checks`, :func:`get_measurement`,
+  :func:`list_measurements`, :func:`edit_measurement`, :func:`retract_measurement`,
+  :func:`add_rate_points`, :func:`history`
+* ``checks``    — :func:`check`, :func:`accept_finding`
+* ``admin``     — :func:`backup`, :func:`restore`, :func:`verify`, :func:`schema_state`,
+  :func:`upgrade_schema`
+* ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
+"""
+
+from __future__ import annotations
+
+from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
+from registry.api.checks import accept_finding, check
+from registry.api.records import (
+    add_measurement,
+    add_rate_points,
+    deferred_checks,
+    edit_measurement,
+    get_measurement,
+    history,
+    list_measurements,
+    retract_measurement,
+    summarize_change,
+)
+from registry.api.registry import actor_name, init_registry, open_registry, registry_info
+from registry.api.values import canonical_unit, convert, read_value
+from registry.record.fields import TABLE_COLUMNS
+from registry.storage.database import Database, take_warnings
+
+__all__ = [
+    "TABLE_COLUMNS",
+    "Database",
+    "accept_finding",
+    "actor_name",
+    "add_measurement",
+    "add_rate_points",
+    "backup",
+    "canonical_unit",
+    "check",
+    "convert",
+    "deferred_checks",
+    "edit_measurement",
+    "get_measurement",
+    "history",
+    "init_registry",
+    "list_measurements",
+    "open_registry",
+    "read_value",
+    "registry_info",
+    "restore",
+    "retract_measurement",
+    "schema_state",
+    "summarize_change",
+    "take_warnings",
+    "upgrade_schema",
+    "verify",
+]

@@ -1,0 +1,330 @@
+"""Measurements: add, show, list, edit, retract, rate points, history."""
+
+from __future__ import annotations
+
+import json
+from collections.abc import Iterator, Mapping, Sequence
+from contextlib import contextmanager
+from typing import TYPE_CHECKING, Any
+
+from registry.api.registry import actor_name
+from registry.errors import NotFoundError, UnitError
+from registry.record.fields import LISTING_COLUMNS, LISTING_SELECT
+from registry.storage.connection import Connection, utc
+from registry.storage.database import Database
+
+if TYPE_CHECKING:  # imported lazily at run time: units (pint) and RDKit are slow to load
+    from registry.record.entry import EntryInput, NormalizedEntry
+    from registry.storage.writer import WriteResult
+    from registry.validation import CheckReport
+
+
+def _entry(entry: EntryInput | Mapping[str, Any]) -> EntryInput:
+    from registry.record.entry import EntryInput
+
+    if isinstance(entry, EntryInput):
+        return entry
+    return EntryInput(**dict(entry))
+
+
+def add_measurement(
+    database: Database,
+    entry: EntryInput | Mapping[str, Any],
+    *,
+    actor: str | None = None,
+    check: bool = True,
+) -> int:
+    """Add one measurement (and its compound/process if new), check it; returns its id.
+
+    ``entry`` is an :class:`EntryInput` or a mapping of its fields (texts as reported, units
+    in any usual notation). The write is one transaction of its own. The validation rules then
+    run on the new row, so its findings are stored (``get_measurement(...)["findings"]``) — at
+    once, or, inside :func:`deferred_checks`, once for all the rows added there when the block
+    ends. ``check=False`` skips the check.
+    """
+    from registry.record.chem import structure_for
+    from registry.storage.writer import cached_process_kinds, known_process_kinds, write_entries
+
+    entry = _entry(entry)
+    kinds = cached_process_kinds(database.key)
+    if kinds is None:
+        with database.read() as conn:
+            kinds = known_process_kinds(conn)
+    normalized = _normalized(entry, kinds)
+    structure = structure_for(normalized.compound.get("smiles_input"))
+    who = actor_name(actor)
+
+    def work(conn: Connection) -> WriteResult:
+        # the kinds were read before the lock; if someone added one since, normalize again
+        current = known_process_kinds(conn)
+        ready = normalized if current == kinds else _normalized(entry, current)
+        return write_entries(conn, [ready], [structure], actor=who, extras=[entry.extra or None])
+
+    result = database.write(work)
+    if check and database.deferred_checks is not None:
+        database.deferred_checks.extend(result.measurement_ids)
+    elif check:
+        from registry.validation import check_measurements
+
+        check_measurements(database, result.measurement_ids, actor=who)
+    return result.measurement_ids[0]
+
+
+class DeferredChecks:
+    """What a :func:`deferred_checks` block added, and the report of its one check."""
+
+    def __init__(self) -> None:
+        self.ids: list[int] = []
+        self.report: CheckReport | None = None
+
+
+@contextmanager
+def deferred_checks(database: Database, *, actor: str | None = None) -> Iterator[DeferredChecks]:
+    """Check the measurements added in this block once, when it ends, instead of after each add.
+
+    For a script that adds rows one by one: each add still commits on its own (a crash keeps
+    every row added so far), and the rules run over all of them in one pass on the way out —
+    also when the block ends with an error, so no committed row stays unchecked.
+    """
+    if database.deferred_checks is not None:  # nested: the outer block checks everything
+        yield DeferredChecks()
+        return
+    block = DeferredChecks()
+    database.deferred_checks = block.ids
+    try:
+        yield block
+    finally:
+        database.deferred_checks = None
+        if block.ids:
+            from registry.validation import check_measurements
+
+            block.report = check_measurements(database, block.ids, actor=actor_name(actor))
+
+
+def _normalized(entry: EntryInput, kinds: tuple[str, ...]) -> NormalizedEntry:
+    """The entry normalized, or the error a user sees (one problem: its field and text)."""
+    from registry.record.entry import EntryError, normalize_entry
+
+    normalized, problems = normalize_entry(entry, kinds)
+    if normalized is None:
+        if len(problems) == 1:
+            first = problems[0]
+            raise UnitError(first.field, first.text, first.reason)
+        raise EntryError(problems)
+    return normalized
+
+
+# ---------------------------------------------------------------- reading
+
+
+def list_measurements(
+    database: Database,
+    *,
+    compound: str | None = None,
+    method: str | None = None,
+    solvent: str | None = None,
+    process: str | None = None,
+    status: str | None = None,
+    barrier: str | None = None,
+    barrier_min: str | float | None = None,
+    barrier_max: str | float | None = None,
+    include_retracted: bool = False,
+    ids: Sequence[int] | None = None,
+    limit: int | None = None,
+) -> list[dict[str, Any]]:
+    """Measurements with their compound, filtered; retracted ones only when asked for.
+
+    ``barrier`` is a range as chemists write it (``'>= 22 kcal/mol'``, ``'80-100 kJ/mol'``);
+    ``barrier_min``/``barrier_max`` are single bounds, texts with a unit or floats in kJ/mol.
+    ``solvent`` is a name, an alias, a class (``chlorinated`` …) or a part of the text.
+    """
+    from registry.search.filters import make_filters, with_bounds
+
+    filters = with_bounds(
+        make_filters(
+            barrier=barrier, solvent=solvent, method=method, process=process, status=status,
+            compound=compound, include_retracted=include_retracted,
+        ),
+        barrier_min, barrier_max,
+    )  # fmt: skip
+    return _listing(database, filters, ids, limit)
+
+
+def _listing(
+    database: Database, filters: Any, ids: Sequence[int] | None, limit: int | None
+) -> list[dict[str, Any]]:
+    from registry.search.filters import conditions
+
+    names = list(LISTING_COLUMNS)
+    with database.read() as conn:
+        where = conditions(conn, filters)
+        sql = f"{LISTING_SELECT} WHERE {where.sql()}"
+        if ids is not None:
+            rows = conn.rows_where_in(sql, "m.id", ids, where.params)
+            rows.sort(key=lambda r: r[0])
+            rows = rows[:limit] if limit else rows
+        else:
+            sql += " ORDER BY m.id" + (f" LIMIT {int(limit)}" if limit else "")
+            rows = conn.rows(sql, where.params)
+    return [dict(zip(names, r, strict=True)) for r in rows]
+
+
+def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
+    """Everything stored about one measurement: values, compound, process, data, findings."""
+    with database.read() as conn:
+        m = conn.record("SELECT * FROM measurement WHERE id = :id", {"id": measurement_id})
+        if m is None:
+            raise NotFoundError(f"no measurement with id {measurement_id}")
+        compound = (
+            conn.record(
+                "SELECT id, label, name, smiles_input, smiles_canonical, inchi, inchikey, "
+                "formula, net_charge, structure_ok, structure_problem, notes, created_at "
+                "FROM compound WHERE id = :id",
+                {"id": m["compound_id"]},
+            )
+            or {}
+        )
+        process = solvent = None
+        if m["process_id"]:
+            process = conn.record("SELECT * FROM process WHERE id = :id", {"id": m["process_id"]})
+        if m["solvent_id"]:
+            solvent = conn.record("SELECT * FROM solvent WHERE id = :id", {"id": m["solvent_id"]})
+        of = {"id": measurement_id}
+        coalescence = conn.records(
+            "SELECT * FROM coalescence WHERE measurement_id = :id ORDER BY id", of
+        )
+        rates = conn.records(
+            "SELECT * FROM rate_point WHERE measurement_id = :id ORDER BY t_k, id", of
+        )
+        findings = conn.records(
+            "SELECT * FROM validation_finding WHERE measurement_id = :id ORDER BY id", of
+        )
+        revisions = conn.scalar(
+            "SELECT count(*) FROM revision WHERE entity = 'measurement' AND entity_id = :id", of
+        )
+    for key in ("entered_at", "updated_at"):
+        m[key] = utc(m[key])
+    for f in findings:
+        f["found_at"], f["accepted_at"] = utc(f["found_at"]), utc(f["accepted_at"])
+    if compound:
+        compound["created_at"] = utc(compound["created_at"])
+    extra = json.loads(m.pop("extra_json") or "null")
+    return {
+        **m,
+        "extra": extra,
+        "compound": compound,
+        "process": process,
+        "solvent": solvent,
+        "coalescence": coalescence,
+        "rate_points": rates,
+        "findings": findings,
+        "revision_count": int(revisions),
+    }
+
+
+# ---------------------------------------------------------------- changing
+
+
+def add_rate_points(
+    database: Database,
+    measurement_id: int,
+    points: Sequence[Mapping[str, Any]],
+    *,
+    actor: str | None = None,
+    replace: bool = False,
+) -> int:
+    """Attach rate points (t_k, t_text, k_per_s, k_text, optional errors) to a measurement."""
+    if not points:
+        return 0
+    rows = []
+    for p in points:
+        if not (p.get("k_per_s") and p["k_per_s"] > 0 and p.get("t_k") and p["t_k"] > 0):
+            raise UnitError("rate point", str(p.get("k_text") or p), "k and T must be positive")
+        rows.append(
+            {
+                "measurement_id": measurement_id,
+                "t_k": float(p["t_k"]),
+                "t_err_k": p.get("t_err_k"),
+                "t_text": p.get("t_text") or f"{p['t_k']:g} K",
+                "k_per_s": float(p["k_per_s"]),
+                "k_err_per_s": p.get("k_err_per_s"),
+                "k_text": p.get("k_text") or f"{p['k_per_s']:.6g} s-1",
+            }
+        )
+    who = actor_name(actor)
+
+    def work(conn: Connection) -> int:
+        from registry.storage import audit
+
+        of = {"id": measurement_id}
+        if conn.scalar("SELECT id FROM measurement WHERE id = :id", of) is None:
+            raise NotFoundError(f"no measurement with id {measurement_id}")
+        before = [
+            list(r)
+            for r in conn.rows(
+                "SELECT t_text, k_text FROM rate_point WHERE measurement_id = :id ORDER BY id", of
+            )
+        ]
+        if replace:
+            conn.execute("DELETE FROM rate_point WHERE measurement_id = :id", of)
+        conn.insert_many("rate_point", rows)
+        after = ([] if replace else before) + [[r["t_text"], r["k_text"]] for r in rows]
+        audit.record(
+            conn,
+            entity="measurement",
+            entity_id=measurement_id,
+            action="rate-points",
+            actor=who,
+            before={"rates": before},
+            after={"rates": after},
+        )
+        return len(rows)
+
+    return database.write(work)
+
+
+def edit_measurement(
+    database: Database,
+    measurement_id: int,
+    changes: Mapping[str, str | None] | Sequence[str],
+    *,
+    actor: str | None = None,
+    reason: str | None = None,
+) -> dict[str, Any]:
+    """Change fields of one measurement; returns what changed, and its open findings.
+
+    ``changes`` maps fields (``dg``, ``tc``, ``solvent`` …) to new texts in any notation
+    (``None`` clears one), or is a list of ``FIELD=VALUE`` texts.
+    """
+    from registry.admin import edits
+
+    if not isinstance(changes, Mapping):
+        changes = edits.parse_assignments(list(changes))
+    return edits.edit_measurement(
+        database, measurement_id, changes, actor=actor_name(actor), reason=reason
+    )
+
+
+def retract_measurement(
+    database: Database, measurement_id: int, reason: str, *, actor: str | None = None
+) -> dict[str, Any]:
+    """Hide a measurement from default listings; it stays stored, with who, when and why."""
+    from registry.admin import edits
+
+    return edits.retract_measurement(database, measurement_id, reason, actor=actor_name(actor))
+
+
+def history(
+    database: Database, measurement_id: int | None = None, *, limit: int | None = 50
+) -> list[dict[str, Any]]:
+    """Revisions, oldest first: all of one measurement's (its findings' too), or the latest."""
+    from registry.admin.history import history as revisions
+
+    return revisions(database, measurement_id, limit=limit)
+
+
+def summarize_change(action: str, before: Any, after: Any) -> str:
+    """One line saying what a revision changed (texts as reported)."""
+    from registry.admin.history import summarize
+
+    return summarize(action, before, after)
