@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import pytest
-from sqlalchemy import text
 
 from registry import api
 from registry.errors import StructureError
@@ -56,7 +55,7 @@ def test_history_chain_detects_an_edit(database) -> None:  # type: ignore[no-unt
     with database.read() as conn:
         assert audit.verify_chain(conn) == []
     database.write(
-        lambda conn: conn.execute(text("UPDATE revision SET actor = 'mallory' WHERE id = 2"))
+        lambda conn: conn.execute("UPDATE revision SET actor = 'mallory' WHERE id = 2")
     )
     with database.read() as conn:
         problems = audit.verify_chain(conn)
@@ -68,7 +67,7 @@ def test_history_chain_detects_a_deleted_revision(database) -> None:  # type: ig
         api.add_measurement(
             database, EntryInput(method="computed", compound=f"C-{i}", dg=f"{60 + i} kJ/mol")
         )
-    database.write(lambda conn: conn.execute(text("DELETE FROM revision WHERE id = 2")))
+    database.write(lambda conn: conn.execute("DELETE FROM revision WHERE id = 2"))
     with database.read() as conn:
         problems = audit.verify_chain(conn)
     assert problems and problems[0].startswith("revision 3: previous-hash link broken")

@@ -22,16 +22,13 @@ from pathlib import Path
 from typing import Any
 
 import pytest
-from sqlalchemy import Connection, insert, text
-from sqlalchemy.exc import OperationalError
 
 from registry import api
-from registry.admin import edits, maintenance
 from registry.errors import DatabaseError
 from registry.record.entry import EntryInput, NormalizedEntry, normalize_entry
 from registry.storage import database as store
 from registry.storage import schema as filecheck
-from registry.storage.models import ImportBatch
+from registry.storage.connection import Connection
 from registry.storage.writer import write_entries
 
 FORK = multiprocessing.get_context("fork")
@@ -85,20 +82,19 @@ def write_batch(
         ]
 
     def work(conn: Connection) -> list[int]:
-        batch_id = conn.execute(
-            insert(ImportBatch).returning(ImportBatch.id),
-            [
-                {
-                    "file_name": prefix,
-                    "sha256": "0" * 64,
-                    "sheet": None,
-                    "actor": "test",
-                    "started_at": _now(),
-                    "rows_total": size,
-                    "rows_added": size,
-                }
-            ],
-        ).scalar_one()
+        batch_id = conn.insert(
+            "import_batch",
+            {
+                "file_name": prefix,
+                "sha256": "0" * 64,
+                "sheet": None,
+                "actor": "test",
+                "started_at": _now(),
+                "rows_total": size,
+                "rows_added": size,
+            },
+            returning="id",
+        )
         result = write_entries(
             conn, normalized, [None] * size, actor=prefix.split("-")[0], batch_id=batch_id
         )
@@ -233,7 +229,7 @@ def test_eight_processes_writing_at_once_lose_nothing(db_path: Path, tmp_path: P
     assert len(keys) == len(SMILES)  # racing writers registered each structure once
     assert all(count == 1 for _key, count in keys)
     assert revisions == len(expected)
-    report = maintenance.verify_file(db_path)
+    report = api.verify(str(db_path))
     assert report["ok"], report
 
 
@@ -249,16 +245,16 @@ def _endless_batches(db: str, worker: int, size: int) -> None:
 
 def _endless_batches_marked(db: str, worker: int, size: int, inside: Any) -> None:
     """As :func:`_endless_batches`, with ``inside`` set to 1 while a write transaction is open."""
-    from contextlib import contextmanager
-
     plain = store.Database._write_once
 
-    @contextmanager
-    def marked(self: store.Database) -> Any:
-        with plain(self) as conn:
+    def marked(self: store.Database, work: Any) -> Any:
+        def inner(conn: Connection) -> Any:
             inside.value = 1
-            yield conn
+            return work(conn)
+
+        result = plain(self, inner)
         inside.value = 0  # after COMMIT returned
+        return result
 
     store.Database._write_once = marked  # type: ignore[method-assign]
     _endless_batches(db, worker, size)
@@ -306,7 +302,7 @@ def test_writers_killed_at_random_moments_leave_whole_batches(db_path: Path) -> 
     # most kills must hit an open write transaction (BEGIN IMMEDIATE … COMMIT), or this test
     # would prove little; about 19 in 20 do
     assert mid_transaction >= trials // 3, mid_transaction
-    report = maintenance.verify_file(db_path)
+    report = api.verify(str(db_path))
     assert report["ok"], report
 
 
@@ -321,11 +317,11 @@ def test_backup_under_concurrent_writes_restores_to_a_clean_registry(
         seen = 0
         for k in range(3):
             seen = _wait_for_batches(db_path, seen)  # a busy machine may start writers slowly
-            made = maintenance.backup(database, tmp_path / f"b{k}.sqlite")
+            made = api.backup(database, tmp_path / f"b{k}.sqlite")
             backups.append(Path(made["backup"]))
         database.dispose()
         # restore the first backup into the live registry while the writers keep writing
-        restored = maintenance.restore(str(db_path), backups[0], force=True)
+        restored = api.restore(str(db_path), backups[0], force=True)
         assert restored["safety_backup"]
         _wait_for_batches(db_path, _batches_whole(db_path, size)[0])
     finally:
@@ -334,18 +330,18 @@ def test_backup_under_concurrent_writes_restores_to_a_clean_registry(
             p.join(timeout=10)
     counts = []
     for path in backups:
-        report = maintenance.verify_file(path)
+        report = api.verify(str(path))
         assert report["ok"], report
         stored, broken = _batches_whole(path, size)
         assert broken == []
         counts.append(stored)
     assert counts == sorted(counts) and counts[-1] > 0
     fresh = tmp_path / "fresh.sqlite"
-    maintenance.restore(str(fresh), backups[-1])
-    assert maintenance.verify_file(fresh)["ok"]
+    api.restore(str(fresh), backups[-1])
+    assert api.verify(str(fresh))["ok"]
     assert _batches_whole(fresh, size) == (counts[-1], [])
     # the live registry: the restored content plus what the writers added after it, all whole
-    assert maintenance.verify_file(db_path)["ok"]
+    assert api.verify(str(db_path))["ok"]
     assert _batches_whole(db_path, size)[1] == []
 
 
@@ -369,7 +365,7 @@ def _editor(db: str, field: str, values: list[str], go: float) -> None:
         while time.time() < go:
             time.sleep(0.005)
         for value in values:
-            edits.edit_measurement(database, 1, {field: value}, actor=f"editor-{field}")
+            api.edit_measurement(database, 1, {field: value}, actor=f"editor-{field}")
         database.dispose()
     except BaseException as exc:
         print(f"editor {field}: {type(exc).__name__}: {exc}", flush=True)
@@ -395,7 +391,7 @@ def test_two_people_editing_one_measurement_lose_neither_change(database, db_pat
     handle = api.open_registry(str(db_path))
     try:
         record = api.get_measurement(handle, 1)
-        history = edits.history(handle, 1, limit=None)
+        history = api.history(handle, 1, limit=None)
     finally:
         handle.dispose()
     assert record["reference"] == f"notebook page {n - 1}"
@@ -406,7 +402,7 @@ def test_two_people_editing_one_measurement_lose_neither_change(database, db_pat
     assert [h["before"]["reference"] for h in refs[1:]] == [
         h["after"]["reference"] for h in refs[:-1]
     ]
-    assert maintenance.verify_file(db_path)["ok"]
+    assert api.verify(str(db_path))["ok"]
 
 
 def test_the_installed_command_run_five_times_at_once(db_path: Path) -> None:
@@ -427,7 +423,7 @@ def test_the_installed_command_run_five_times_at_once(db_path: Path) -> None:
     json.loads(outs[3][0])
     json.loads(outs[4][0])
     assert sorted(_labels_of_compounds(db_path)) == [f"CLI-{i}" for i in range(3)]
-    assert maintenance.verify_file(db_path)["ok"]
+    assert api.verify(str(db_path))["ok"]
 
 
 def _labels_of_compounds(db_path: Path) -> list[str]:
@@ -473,10 +469,8 @@ def test_a_writer_waits_for_the_lock_instead_of_failing(database, db_path: Path)
     assert locked.wait(30)
     started = time.perf_counter()
     result = database.write(
-        lambda conn: (
-            conn.execute(
-                text("INSERT INTO process_kind (name, description) VALUES ('queued', '')")
-            ).rowcount
+        lambda conn: conn.execute(
+            "INSERT INTO process_kind (name, description) VALUES ('queued', '')"
         )
     )
     waited = time.perf_counter() - started
@@ -485,15 +479,15 @@ def test_a_writer_waits_for_the_lock_instead_of_failing(database, db_path: Path)
     assert waited >= 0.5  # it queued behind the other process's lock, then succeeded
 
 
-def _locked() -> OperationalError:
-    return OperationalError("INSERT …", {}, sqlite3.OperationalError("database is locked"))
+def _locked() -> sqlite3.OperationalError:
+    return sqlite3.OperationalError("database is locked")
 
 
 def test_write_retries_a_locked_transaction_from_the_start(database) -> None:  # type: ignore[no-untyped-def]
     calls = []
 
     def work(conn: Connection) -> int:
-        conn.execute(text("INSERT INTO process_kind (name, description) VALUES ('t-kind', '')"))
+        conn.execute("INSERT INTO process_kind (name, description) VALUES ('t-kind', '')")
         calls.append(1)
         if len(calls) < 3:
             raise _locked()  # as SQLite reports a busy state it does not wait in
@@ -501,9 +495,7 @@ def test_write_retries_a_locked_transaction_from_the_start(database) -> None:  #
 
     assert database.write(work) == 3
     with database.read() as conn:
-        count = conn.execute(
-            text("SELECT count(*) FROM process_kind WHERE name = 't-kind'")
-        ).scalar()
+        count = conn.scalar("SELECT count(*) FROM process_kind WHERE name = 't-kind'")
     assert count == 1  # the two failed attempts were rolled back
 
 
@@ -527,18 +519,18 @@ def test_other_operational_errors_are_not_retried(database) -> None:  # type: ig
 
     def work(conn: Connection) -> None:
         calls.append(1)
-        conn.execute(text("SELECT * FROM no_such_table"))
+        conn.execute("SELECT * FROM no_such_table")
 
-    with pytest.raises(OperationalError):
+    with pytest.raises(sqlite3.OperationalError):
         database.write(work)
     assert calls == [1]
 
 
 def test_each_connection_uses_wal_foreign_keys_and_a_busy_timeout(database) -> None:  # type: ignore[no-untyped-def]
     with database.read() as conn:
-        assert conn.exec_driver_sql("PRAGMA journal_mode").scalar() == "wal"
-        assert conn.exec_driver_sql("PRAGMA foreign_keys").scalar() == 1
-        assert conn.exec_driver_sql("PRAGMA busy_timeout").scalar() == store.BUSY_TIMEOUT_MS
+        assert conn.scalar("PRAGMA journal_mode") == "wal"
+        assert conn.scalar("PRAGMA foreign_keys") == 1
+        assert conn.scalar("PRAGMA busy_timeout") == store.BUSY_TIMEOUT_MS
 
 
 MOUNTS = """\

@@ -13,7 +13,6 @@ from pathlib import Path
 import pytest
 
 from registry import api
-from registry.admin import edits
 from registry.record.entry import EntryInput, normalize_entry
 from registry.storage import audit
 from registry.storage.writer import write_entries
@@ -36,7 +35,7 @@ def _record(db_path: Path, mid: int = 1) -> dict:
 def _history(db_path: Path, mid: int | None = 1) -> list[dict]:
     database = api.open_registry(str(db_path))
     try:
-        return edits.history(database, mid, limit=None)
+        return api.history(database, mid, limit=None)
     finally:
         database.dispose()
 
@@ -118,11 +117,11 @@ def test_edit_with_the_same_value_writes_nothing(cli, db_path: Path) -> None:  #
     ("args", "code", "message"),
     [
         (["edit", "1", "--set", "dg=14"], 1, "error: dg: cannot read '14': no unit given; write one, e.g. '14 kJ/mol'\n"),
-        (["edit", "1", "--set", "colour=blue"], 2, "error: cannot edit 'colour'; editable fields: method, label, process, sites, nucleus, solvent, field, t_min, t_max, dg, dg_t, dh, ds, ea, log10_a, tc, dnu, j, population, reference, status\n"),
-        (["edit", "1", "--set", "dg"], 2, "error: --set 'dg': write FIELD=VALUE, e.g. dg=\"14.5 kcal/mol\"\n"),
+        (["edit", "1", "--set", "colour=blue"], 2, "error: cannot edit 'colour'; editable fields: label, process, sites, nucleus, method, solvent, field, t_min, t_max, dg, dg_t, dh, ds, ea, log10_a, tc, dnu, j, population, reference, status\n"),
+        (["edit", "1", "--set", "dg"], 2, "error: 'dg': write FIELD=VALUE, e.g. dg=\"14.5 kcal/mol\"\n"),
         (["edit", "1"], 2, "error: nothing to change; give at least one --set FIELD=VALUE\n"),
         (["edit", "1", "--set", "tc="], 1, "error: tc: missing: coalescence data needs both Tc and Δν\n"),
-        (["edit", "1", "--set", "status=retracted"], 2, "error: to retract a measurement use 'fluxledger retract ID --reason TEXT' (it keeps why)\n"),
+        (["edit", "1", "--set", "status=retracted"], 2, "error: status: a measurement is retracted, with a reason the history keeps, not edited to 'retracted'\n"),
         (["edit", "7", "--set", "dg=60 kJ/mol"], 1, "error: no measurement with id 7\n"),
         (["edit", "x", "--set", "dg=60 kJ/mol"], 2, "error: 'x' is not a measurement id (a whole number)\n"),
     ],
@@ -201,12 +200,12 @@ def test_edit_keeps_a_bare_number_whose_unit_came_from_a_column_header(database)
     normalized, problems = normalize_entry(entry)
     assert not problems and normalized is not None
     database.write(lambda conn: write_entries(conn, [normalized], [None], actor="import"))
-    result = edits.edit_measurement(database, 1, {"reference": "lab book 7"}, actor="dave")
+    result = api.edit_measurement(database, 1, {"reference": "lab book 7"}, actor="dave")
     assert result["after"] == {"reference": "lab book 7"}
     record = api.get_measurement(database, 1)
     assert record["dg_kj_mol"] == pytest.approx(14.2 * 4.184)  # NIST SP 811 B.8
     assert record["dg_text"] == "14.2"
-    changed = edits.edit_measurement(database, 1, {"tc": "260 K"})
+    changed = api.edit_measurement(database, 1, {"tc": "260 K"})
     assert changed["after"]["coalescence"] == {"tc_k": 260.0, "tc_text": "260 K"}
     assert api.get_measurement(database, 1)["dg_kj_mol"] == pytest.approx(14.2 * 4.184)
 
@@ -228,7 +227,7 @@ def test_every_change_extends_an_intact_hash_chain(cli, db_path: Path) -> None: 
 
 
 def test_summary_shows_texts_not_the_floats_behind_them() -> None:
-    line = edits.summarize(
+    line = api.summarize_change(
         "edit",
         {"dg_text": "14.2 kcal/mol", "dg_kj_mol": 59.4128, "dg_err_kj_mol": None},
         {"dg_text": "60 kJ/mol", "dg_kj_mol": 60.0, "dg_err_kj_mol": None},
@@ -244,7 +243,7 @@ def test_accepting_a_finding_appears_in_the_measurement_history(cli, db_path: Pa
     try:
         finding = api.get_measurement(database, 1)["findings"][0]
         validation.accept_finding(database, finding["id"], "solvent effect", actor="erin")
-        entries = edits.history(database, 1, limit=None)
+        entries = api.history(database, 1, limit=None)
     finally:
         database.dispose()
     last = entries[-1]

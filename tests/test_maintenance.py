@@ -10,18 +10,19 @@ import json
 import os
 import sqlite3
 import subprocess
+import sys
 from datetime import UTC, datetime
 from pathlib import Path
 
 import pytest
-from sqlalchemy import MetaData, Table, insert, select
+from sqlalchemy import MetaData, Table, insert
 
 from registry import api
-from registry.admin import maintenance
+from registry.admin.verify import verify_file
 from registry.storage import audit, migrate
 from registry.storage.database import open_database
 
-FLUXLEDGER = Path(__file__).resolve().parent.parent / ".venv" / "bin" / "fluxledger"
+FLUXLEDGER = Path(sys.executable).with_name("fluxledger")
 
 ADD = [
     "add", "--method", "coalescence", "--smiles", "CN(C)C(=O)c1ccc(Cl)cc1", "--compound", "AM-1",
@@ -40,7 +41,7 @@ def _sql(path: Path, statement: str, *, fk: bool = True) -> None:
 
 
 def _verify(path: Path) -> dict:
-    return maintenance.verify_file(path)
+    return verify_file(path)
 
 
 def _failed(report: dict) -> dict[str, list[str]]:
@@ -122,13 +123,13 @@ def test_verify_finds_a_row_pointing_nowhere(cli, filled: Path) -> None:  # type
 
 
 def test_verify_reports_a_schema_behind_the_head(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
-    revisions = maintenance.known_revisions()
+    revisions = migrate.known_revisions()
     if len(revisions) < 2:
         pytest.skip("only one migration revision")
     path = tmp_path / "old.sqlite"
     database = open_database(str(path), must_exist=False)
     migrate.upgrade(database, revisions[0])
-    database.dispose()
+    database.close()
     report = _verify(path)
     assert _failed(report) == {
         "schema": [
@@ -166,7 +167,7 @@ def test_backup_then_restore_into_a_new_file(cli, filled: Path, tmp_path: Path) 
     try:
         assert [r["id"] for r in api.list_measurements(database)] == [1, 2]
     finally:
-        database.dispose()
+        database.close()
 
 
 def test_backup_into_a_folder_gets_a_dated_name(cli, filled: Path, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
@@ -200,7 +201,7 @@ def test_restore_over_a_registry_needs_force_and_keeps_a_safety_copy(
     try:  # back to the state of the backup: the retraction is gone
         assert api.get_measurement(database, 1)["status"] == "draft"
     finally:
-        database.dispose()
+        database.close()
     conn = sqlite3.connect(safety)
     assert conn.execute("SELECT status FROM measurement WHERE id = 1").fetchone() == ("retracted",)
     conn.close()
@@ -273,8 +274,8 @@ _FIRST_SCHEMA_ROWS: dict[str, list[dict]] = {
 def _fill_first_schema(path: Path) -> None:
     """Insert the fixture rows (and a hash-chained revision) into a registry at the first revision."""
     database = open_database(str(path), must_exist=False)
-    migrate.upgrade(database, maintenance.known_revisions()[0])
-    with database.engine.begin() as conn:
+    migrate.upgrade(database, migrate.known_revisions()[0])
+    with database.sqlalchemy_engine().begin() as conn:  # an old schema: plain SQLAlchemy
         meta = MetaData()
         for table, rows in _FIRST_SCHEMA_ROWS.items():
             conn.execute(insert(Table(table, meta, autoload_with=conn)), rows)
@@ -292,17 +293,15 @@ def _fill_first_schema(path: Path) -> None:
         }
         revision["hash"] = audit.revision_hash(audit.GENESIS, revision)
         conn.execute(insert(Table("revision", meta, autoload_with=conn)), [revision])
-    database.dispose()
+    database.close()
 
 
 def _rows_kept(path: Path) -> None:
     database = open_database(str(path))
     try:
         with database.read() as conn:
-            meta = MetaData()
             for table, rows in _FIRST_SCHEMA_ROWS.items():
-                t = Table(table, meta, autoload_with=conn)
-                stored = [dict(r) for r in conn.execute(select(t).order_by(t.c.id)).mappings()]
+                stored = conn.records(f"SELECT * FROM {table} ORDER BY id")
                 assert len(stored) == len(rows), table
                 for want, have in zip(rows, stored, strict=True):
                     for column, value in want.items():
@@ -312,17 +311,17 @@ def _rows_kept(path: Path) -> None:
                         else:
                             assert got == value, (table, column)
     finally:
-        database.dispose()
+        database.close()
 
 
 def test_every_revision_after_the_first_keeps_the_data(tmp_path: Path) -> None:
     path = tmp_path / "old.sqlite"
     _fill_first_schema(path)
-    for revision in maintenance.known_revisions()[1:]:
+    for revision in migrate.known_revisions()[1:]:
         database = open_database(str(path))
         migrate.upgrade(database, revision)
         assert migrate.current_revision(database) == revision
-        database.dispose()
+        database.close()
         _rows_kept(path)
 
 
@@ -330,7 +329,7 @@ def test_db_upgrade_of_the_installed_command_from_the_first_schema(tmp_path: Pat
     """A real process: ``fluxledger db upgrade`` backs up, upgrades, keeps rows; verify is clean."""
     path = tmp_path / "old.sqlite"
     _fill_first_schema(path)
-    revisions = maintenance.known_revisions()
+    revisions = migrate.known_revisions()
     env = {**os.environ, "FLUXLEDGER_DB": str(path), "FLUXLEDGER_USER": "tester"}
 
     def run(*args: str) -> subprocess.CompletedProcess[str]:

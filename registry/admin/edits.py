@@ -133,7 +133,7 @@ def edit_measurement(
     status = wanted.get("status")
     if "status" in wanted and (status is None or vocab.status_name(status) == "retracted"):
         raise UsageError(
-            "to retract a measurement, retract it (with a reason, which the history keeps)"
+            "status: a measurement is retracted, with a reason the history keeps, not edited to 'retracted'"
         )
     who = actor or current_user()
 

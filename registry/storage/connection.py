@@ -20,6 +20,8 @@ from collections.abc import Iterable, Mapping, Sequence
 from datetime import UTC, datetime
 from typing import Any
 
+from registry.storage.defaults import COLUMN_DEFAULTS, with_defaults
+
 Params = Mapping[str, Any] | None
 Row = tuple[Any, ...]
 
@@ -145,7 +147,11 @@ class Connection:
         return self.records(f"{sql} AND {self._where_in(column, wanted, bound)}", bound)
 
     def insert(self, table: str, row: Mapping[str, Any], *, returning: str | None = None) -> Any:
-        """Insert one row; the ``returning`` column's value (e.g. the new id), or None."""
+        """Insert one row; the ``returning`` column's value (e.g. the new id), or None.
+
+        Columns the row leaves out take their defaults (:mod:`registry.storage.defaults`).
+        """
+        row = with_defaults(table, dict(row))
         names = ", ".join(row)
         marks = ", ".join(f":{c}" for c in row)
         sql = f"INSERT INTO {table} ({names}) VALUES ({marks})"
@@ -167,6 +173,10 @@ class Connection:
         shape = list(rows[0])
         if any(list(r) != shape for r in rows):
             raise ValueError(f"rows for {table} do not all have the same columns")
+        missing = {k: v for k, v in COLUMN_DEFAULTS.get(table, {}).items() if k not in shape}
+        if missing:
+            rows = [{**r, **missing} for r in rows]
+            shape += list(missing)
         ids: list[int] = []
         if new_ids:
             ids = self._new_ids(table, len(rows))
