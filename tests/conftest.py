@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import shutil
 from collections.abc import Iterator
 from pathlib import Path
 
@@ -18,11 +19,20 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 _OPEN: list[Database] = []
 
 
-@pytest.fixture
-def db_path(tmp_path: Path) -> Path:
-    """A freshly initialised registry file."""
-    path = tmp_path / "registry.sqlite"
+@pytest.fixture(scope="session")
+def _template_registry(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """One registry made by ``init`` (all migrations) per session; tests get copies of it."""
+    path = tmp_path_factory.mktemp("template") / "registry.sqlite"
     api.init_registry(str(path))
+    return path
+
+
+@pytest.fixture
+def db_path(tmp_path: Path, _template_registry: Path) -> Path:
+    """A freshly initialised registry file (a copy of the session's template: the same bytes
+    ``init`` writes, without running every migration again for each test)."""
+    path = tmp_path / "registry.sqlite"
+    shutil.copyfile(_template_registry, path)
     return path
 
 
