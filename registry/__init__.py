@@ -1,21 +1,25 @@
 """fluxledger: a shared registry of measured barriers of dynamic molecular processes.
 
-Data flows spreadsheet → ``io`` → ``entry``/``units`` → ``writer``/``store`` → ``validation`` →
-``search`` / ``reports``:
+Data flows spreadsheet → ``io`` → ``record`` → ``storage`` → ``validation`` → ``search`` /
+``reports``, and every user action enters through ``api``:
 
-* ``units``       the one pint registry; reads values as chemists write them (canonical units)
-* ``chem``        every use of RDKit (parsing, InChIKey, fingerprints), imported lazily
-* ``vocab``       process kinds, methods, statuses, the solvent table's seed
-* ``entry``       one measurement as reported (texts) → normalized (texts + canonical floats)
-* ``models``      the tables (SQLAlchemy); ``migrations/`` (Alembic) creates them, ``migrate`` drives it
-* ``store``       engines, WAL, write transactions with retries; ``writer`` inserts entries in bulk
-* ``audit``       the append-only, hash-chained history of every change
-* ``kinetics``    Eyring, coalescence formulas, Eyring/Arrhenius fits, planning (no database)
-* ``lineshape``   exchange-broadened spectra: simulation, JCAMP-DX/CSV input, fits of k
+* ``api``         the library: one function per user action; the CLI and notebooks call it
+* ``cli``         typer commands that parse options, call ``api`` and render (tables, --json)
+* ``record``      the record model: ``fields`` (the table of fields), ``units`` (the one pint
+                  registry), ``vocab``, ``chem`` (every RDKit call), ``nuclei``, ``entry``
+                  (one measurement as reported → normalized)
+* ``storage``     the one data layer: ``database`` (open, read snapshots, write transactions),
+                  ``connection`` (SQL text on SQLite or PostgreSQL), ``writer``, ``audit`` (the
+                  hash-chained history), ``changes`` (counters for caches), ``models`` and
+                  ``migrate`` (Alembic)
+* ``admin``       edits and retractions, the history's summaries, verify, backup, upgrade
 * ``io``          spreadsheet import (header recognition, atomic batches) and export
 * ``validation``  rules that recompute barriers from raw data and diagnose the likely slip
+* ``kinetics``    Eyring, coalescence formulas, Eyring/Arrhenius fits, planning (no database)
+* ``lineshape``   exchange-broadened spectra: simulation, JCAMP-DX/CSV input, fits of k
 * ``search``      motif library, fingerprint screen + substructure confirmation
 * ``reports``     plots, the static HTML registry view, tables for papers
 * ``pg``          PostgreSQL specifics (RDKit cartridge screen, copying between databases)
-* ``api``         one function per user action; ``cli`` parses, calls ``api`` and renders
+
+Lower packages never import ``api`` or ``cli``; ``cli`` imports only ``api`` and ``errors``.
 """
