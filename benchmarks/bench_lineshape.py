@@ -25,7 +25,9 @@ from collections.abc import Callable
 import numpy as np
 
 from registry.lineshape.eyring import eyring_ln_rate
-from registry.lineshape.fit import SpectrumInput, _Shape, fit_global, fit_spectrum
+from registry.lineshape.fit import fit_spectrum
+from registry.lineshape.fit_core import ModelShape
+from registry.lineshape.fit_global import SpectrumInput, fit_global
 from registry.lineshape.simulate import ExchangeModel
 
 TARGET_S = 0.2
@@ -59,7 +61,7 @@ def main() -> None:
 
     model = ExchangeModel.equal([-60.0, 60.0])
     freq, _ = spectrum(model, 100.0, n, 0)
-    shape = _Shape(model, 2 * np.pi * freq)
+    shape = ModelShape(model, 2 * np.pi * freq)
     floor_wall, floor_cpu = medians(lambda: shape.value(100.0, 1.5, 0.5), 50)
     jac_wall, jac_cpu = medians(lambda: shape.derivatives(100.0, 1.5, 0.5), 20)
     threads = os.environ.get("OPENBLAS_NUM_THREADS", "unset (OpenBLAS default)")
