@@ -194,6 +194,7 @@ def test_missing_measurement_fails_before_fitting(
     [
         ({"files": []}, UsageError, "files: give a list of one or more spectra"),
         ({"files": "one.csv"}, UsageError, "files: give a list of one or more spectra"),
+        ({"files": read_spectrum}, UsageError, "files: give a list of one or more spectra"),
         ({"measurement_id": 1}, UsageError, "measurement_id: storing rate points needs"),
         ({"temps": "250"}, UsageError, "temps gives 1 temperature for 3 files"),
         ({"temps": "1,2,3 kJ/mol"}, UnitError, "temps: cannot read '1 kJ/mol'"),

@@ -102,13 +102,15 @@ def fit_lineshapes(
     """
     from registry.lineshape import inputs, workflow
 
-    if isinstance(files, (str, Path)) or not files:
+    single = isinstance(files, (str, Path)) or not hasattr(files, "__iter__")
+    sources = [] if single else list(files)
+    if not sources:
         raise UsageError("files: give a list of one or more spectra")
     if measurement_id is not None and database is None:
         raise UsageError("measurement_id: storing rate points needs the registry (database)")
     mhz_given = inputs.read_field(field)
-    temperatures = None if temps is None else inputs.read_temperatures(temps, len(files))
-    spectra = workflow.load_spectra(files, temperatures, inputs.read_x_unit(x_unit), mhz_given)
+    temperatures = None if temps is None else inputs.read_temperatures(temps, len(sources))
+    spectra = workflow.load_spectra(sources, temperatures, inputs.read_x_unit(x_unit), mhz_given)
     mhz = workflow.common_mhz(spectra, mhz_given)
     model, unit = inputs.read_sites(sites, populations, scheme, mhz)
     width_hz = inputs.read_positive(width, "shift", "width", "Hz")

@@ -22,7 +22,6 @@ from registry.kinetics.fits import EyringFit
 from registry.lineshape.fit import eyring_from_fits, fit_spectrum
 from registry.lineshape.fit_core import LineShapeFit
 from registry.lineshape.fit_global import GlobalFit, SpectrumInput, fit_global
-from registry.lineshape.inputs import count
 from registry.lineshape.results import LineShapeAnalysis, SimulatedSpectrum
 from registry.lineshape.simulate import ExchangeModel
 from registry.lineshape.spectrum import Spectrum, csv_text, read_spectrum
@@ -122,11 +121,7 @@ def load_spectra(
     spectra = [s if isinstance(s, Spectrum) else read_spectrum(s) for s in sources]
     if x_unit is not None:
         spectra = [s if s.x_unit else s.with_x_unit(x_unit) for s in spectra]
-    if temps is not None:
-        if len(temps) != len(spectra):  # inputs.read_temperatures checks this for texts
-            raise UsageError(
-                f"temps gives {count(len(temps), 'temperature')} for {count(len(spectra), 'file')}"
-            )
+    if temps is not None:  # one per file: inputs.read_temperatures checked the count
         spectra = [
             s.with_temperature(p.value, p.text.strip()) for s, p in zip(spectra, temps, strict=True)
         ]
