@@ -11,6 +11,8 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import subprocess
+import sys
 from pathlib import Path
 
 import numpy as np
@@ -225,3 +227,17 @@ def test_global_fit_needs_every_temperature(tmp_path: Path) -> None:
 def test_value_with_error_text() -> None:
     # the error to two significant figures (4.567 → 4.6), the value to the same decimal place
     assert api.value_with_error_text(123.456, 4.567, "s-1") == "123.5 ± 4.6 s-1"
+
+
+def test_simulate_loads_no_optimizer_or_plotting() -> None:
+    # simulate needs numpy and the unit layer only: scipy.optimize and matplotlib cost ~0.7 s
+    # each to import (PERFORMANCE.md), so only the fit workflow may load them
+    code = (
+        "import sys; from registry import api; "
+        "api.simulate_lineshape('-60,60 Hz', 5, points=64); "
+        "print(sorted(m for m in ('scipy.optimize', 'matplotlib') if m in sys.modules))"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True, timeout=120
+    )
+    assert out.stdout.strip() == "[]"

@@ -14,19 +14,21 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from registry.errors import UsageError
-from registry.kinetics.fits import EyringFit
-from registry.lineshape.fit import eyring_from_fits, fit_spectrum
-from registry.lineshape.fit_core import LineShapeFit
-from registry.lineshape.fit_global import GlobalFit, SpectrumInput, fit_global
 from registry.lineshape.results import LineShapeAnalysis, SimulatedSpectrum
 from registry.lineshape.simulate import ExchangeModel
 from registry.lineshape.spectrum import Spectrum, csv_text, read_spectrum
 from registry.lineshape.store_link import rate_points
 from registry.record.units import ParsedValue
+
+if TYPE_CHECKING:  # the fit modules load scipy.optimize: only the fit workflow pays for it
+    from registry.kinetics.fits import EyringFit
+    from registry.lineshape.fit_core import LineShapeFit
+    from registry.lineshape.fit_global import GlobalFit, SpectrumInput
 
 #: a spectrum as a caller names it: a file (CSV or JCAMP-DX) or one already in memory
 SpectrumSource = str | Path | Spectrum
@@ -155,6 +157,8 @@ def _inputs(
     spectra: Sequence[Spectrum], mhz: float | None, window_hz: tuple[float, float] | None
 ) -> list[SpectrumInput]:
     """Each spectrum in Hz, cut to the window (both ends included)."""
+    from registry.lineshape.fit_global import SpectrumInput
+
     inputs = []
     for spec in spectra:
         freq = spec.frequency_hz(mhz)
@@ -180,6 +184,8 @@ def analyse(
 ) -> LineShapeAnalysis:
     """Fit every spectrum, draw the Eyring line, optionally the global fit and the plots."""
     from registry.kinetics.safety import safety_notes
+    from registry.lineshape.fit import eyring_from_fits, fit_spectrum
+    from registry.lineshape.fit_global import fit_global
 
     inputs = _inputs(spectra, mhz, window_hz)
     fits = [
