@@ -4,7 +4,9 @@ For several exchange regimes, prints the median wall time and CPU time of ``fit_
 several runs, and the ratio to two floors measured in the same run: one evaluation of the
 model spectrum (what every Levenberg–Marquardt step needs at least once) and one evaluation
 with its analytic Jacobian. The machine may be shared, so CPU time and the ratios are the
-figures to compare. Also times the global (Eyring-tied) fit of six such spectra.
+figures to compare. Also times the global (Eyring-tied) fit of six such spectra, and the whole
+library call ``api.fit_lineshapes`` on six CSV files (reading, six fits, the Eyring line) against
+the sum of its six ``fit_spectrum`` calls, which shows what the workflow adds around the fits.
 
 OpenBLAS threads busy-wait inside scipy's Levenberg–Marquardt on tall 16,384×6 Jacobians; on a
 busy 2-core machine that roughly doubles the CPU time. Compare with a single BLAS thread:
@@ -19,13 +21,17 @@ import argparse
 import math
 import os
 import statistics
+import tempfile
 import time
 from collections.abc import Callable
+from pathlib import Path
 
 import numpy as np
 
 from registry.lineshape.eyring import eyring_ln_rate
-from registry.lineshape.fit import SpectrumInput, _Shape, fit_global, fit_spectrum
+from registry.lineshape.fit import fit_spectrum
+from registry.lineshape.fit_core import ModelShape
+from registry.lineshape.fit_global import SpectrumInput, fit_global
 from registry.lineshape.simulate import ExchangeModel
 
 TARGET_S = 0.2
@@ -59,7 +65,7 @@ def main() -> None:
 
     model = ExchangeModel.equal([-60.0, 60.0])
     freq, _ = spectrum(model, 100.0, n, 0)
-    shape = _Shape(model, 2 * np.pi * freq)
+    shape = ModelShape(model, 2 * np.pi * freq)
     floor_wall, floor_cpu = medians(lambda: shape.value(100.0, 1.5, 0.5), 50)
     jac_wall, jac_cpu = medians(lambda: shape.derivatives(100.0, 1.5, 0.5), 20)
     threads = os.environ.get("OPENBLAS_NUM_THREADS", "unset (OpenBLAS default)")
@@ -112,6 +118,42 @@ def main() -> None:
     print(
         f"median CPU of one fit over the cases: {statistics.median(cpu_all):.3f} s "
         f"(target {TARGET_S} s)"
+    )
+    workflow(model, temps, n, runs)
+
+
+def workflow(model: ExchangeModel, temps: list[float], n: int, runs: int) -> None:
+    """``api.fit_lineshapes`` on six CSV files against the bare fits of the same spectra."""
+    from registry import api
+    from registry.lineshape.spectrum import read_spectrum
+
+    with tempfile.TemporaryDirectory() as folder:
+        files = []
+        for i, t in enumerate(temps):
+            path = Path(folder) / f"T{t:.0f}.csv"
+            k = math.exp(eyring_ln_rate(t, 60.0, 5.0))
+            api.simulate_lineshape(
+                "-60,60 Hz", k, out=path, width=1.5, points=n, window="-400,400 Hz",
+                noise=0.01, seed=i, temperature=t,
+            )  # fmt: skip
+            files.append(path)
+        spectra = [read_spectrum(f) for f in files]
+
+        def bare() -> object:
+            return [
+                fit_spectrum(s.x, s.intensity, model, width_hz=1.5, fix_width=True, t_k=s.t_k)
+                for s in spectra
+            ]
+
+        def call() -> object:
+            return api.fit_lineshapes(files, "-60,60 Hz", width=1.5, fix_width=True)
+
+        b_wall, b_cpu = medians(bare, max(3, runs // 2))
+        w_wall, w_cpu = medians(call, max(3, runs // 2))
+    print(f"  six bare fit_spectrum calls:            {b_wall:.3f} s / {b_cpu:.3f} s")
+    print(
+        f"  api.fit_lineshapes, six files:          {w_wall:.3f} s / {w_cpu:.3f} s "
+        f"(CPU ratio to the bare fits {w_cpu / b_cpu:.2f})"
     )
 
 

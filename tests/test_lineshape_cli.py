@@ -136,11 +136,11 @@ def test_rates_are_stored_in_a_measurement(cli, vt_files: list[Path]) -> None:  
 @pytest.mark.parametrize(
     ("args", "code", "message"),
     [
-        (["--temps", "250"], 2, "error: --temps gives 1 temperature for 3 files\n"),
-        (["--scheme", "star"], 2, "error: --scheme must be one of mutual, cycle, not 'star'\n"),
-        (["--populations", "1,2,3"], 2, "error: --populations gives 3 values for 2 sites\n"),
-        (["--width", "-1"], 1, "error: --width: cannot read '-1': must be > 0\n"),
-        (["--x-unit", "cm"], 2, "error: --x-unit must be 'ppm' or 'Hz', not 'cm'\n"),
+        (["--temps", "250"], 2, "error: temps gives 1 temperature for 3 files\n"),
+        (["--scheme", "star"], 2, "error: scheme must be one of mutual, cycle, not 'star'\n"),
+        (["--populations", "1,2,3"], 2, "error: populations gives 3 values for 2 sites\n"),
+        (["--width", "-1"], 1, "error: width: cannot read '-1': must be > 0\n"),
+        (["--x-unit", "cm"], 2, "error: x_unit must be 'ppm' or 'Hz', not 'cm'\n"),
     ],
 )
 def test_user_errors(cli, vt_files: list[Path], args: list[str], code: int, message: str) -> None:  # type: ignore[no-untyped-def]
@@ -161,14 +161,15 @@ def test_file_problems_are_data_errors(cli, tmp_path: Path) -> None:  # type: ig
     result = cli("lineshape", "fit", str(nofield), "--sites", "1.0,1.1")
     assert result.exit_code == 2
     assert (
-        result.stderr == "error: --sites is in ppm: give the spectrometer frequency with --field\n"
+        result.stderr == "error: sites is in ppm: give the spectrometer frequency as field (MHz)\n"
     )
     result = cli(
         "lineshape", "fit", str(nofield), "--sites", "1.0,1.1", "--field", "400", "--global"
     )
     assert result.exit_code == 2
     assert result.stderr == (
-        f"error: {nofield}: no temperature in the file; give all of them with --temps\n"
+        f"error: {nofield}: no temperature in the file; "
+        "give the temperatures of all files (temps)\n"
     )
     result = cli("lineshape", "fit", str(nofield), "--sites", "1.0,1.1", "--field", "400")
     assert result.exit_code == 1
@@ -199,7 +200,9 @@ def test_installed_command(tmp_path: Path) -> None:
         capture_output=True, text=True, env=env, check=False,
     )  # fmt: skip
     assert run.returncode == 2
-    assert run.stderr == "error: --sites is in ppm: give the spectrometer frequency with --field\n"
+    assert run.stderr == (
+        "error: sites is in ppm: give the spectrometer frequency as field (MHz)\n"
+    )
 
 
 def _jcamp_from_csv(csv_path: Path, out: Path, t_celsius: float) -> None:

@@ -18,14 +18,9 @@ from registry.lineshape.eyring import (
     ln_rate_from_dg_dh,
     parameters_from_dg_dh,
 )
-from registry.lineshape.fit import (
-    LineShapeFitError,
-    SpectrumInput,
-    _Shape,
-    eyring_from_fits,
-    fit_global,
-    fit_spectrum,
-)
+from registry.lineshape.fit import eyring_from_fits, fit_spectrum
+from registry.lineshape.fit_core import LineShapeFitError, ModelShape
+from registry.lineshape.fit_global import SpectrumInput, fit_global
 from registry.lineshape.simulate import ExchangeModel
 
 TWO_SITE = ExchangeModel.equal([-60.0, 60.0])
@@ -101,7 +96,7 @@ def test_three_site_cycle() -> None:
 def test_analytic_jacobian_matches_finite_differences() -> None:
     model = ExchangeModel((-30.0, 5.0, 45.0), (0.5, 0.3, 0.2))
     omega = 2 * np.pi * np.linspace(-150.0, 150.0, 601)
-    shape = _Shape(model, omega)
+    shape = ModelShape(model, omega)
     k, w, off = 70.0, 1.3, 0.4
     s, d_lnk, d_w, d_off = shape.derivatives(k, w, off)
     h = 1e-6

@@ -10,7 +10,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from registry.errors import FileFormatError, UsageError
-from registry.lineshape.fit import LineShapeFit
+from registry.lineshape.fit_core import LineShapeFit
 from registry.lineshape.spectrum import csv_text, parse_csv_spectrum, read_spectrum
 from registry.lineshape.store_link import rate_points, value_with_error_text
 from registry.record.units import parse_value

@@ -16,12 +16,14 @@ Grouped by what they act on:
 * ``admin``     — :func:`backup`, :func:`restore`, :func:`verify`, :func:`schema_state`,
   :func:`upgrade_schema`
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
+* ``lineshape`` — :func:`simulate_lineshape`, :func:`fit_lineshapes`, :func:`value_with_error_text`
 """
 
 from __future__ import annotations
 
 from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
 from registry.api.checks import accept_finding, check
+from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
 from registry.api.records import (
     add_measurement,
     add_rate_points,
@@ -51,6 +53,7 @@ __all__ = [
     "convert",
     "deferred_checks",
     "edit_measurement",
+    "fit_lineshapes",
     "get_measurement",
     "history",
     "init_registry",
@@ -61,8 +64,10 @@ __all__ = [
     "restore",
     "retract_measurement",
     "schema_state",
+    "simulate_lineshape",
     "summarize_change",
     "take_warnings",
     "upgrade_schema",
+    "value_with_error_text",
     "verify",
 ]

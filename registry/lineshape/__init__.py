@@ -1,9 +1,11 @@
-"""Line-shape analysis: from variable-temperature spectra to rate constants and the registry.
+"""Line-shape analysis: from variable-temperature spectra to rate constants (and the registry).
 
-Data flow: spectrum files → :mod:`.spectrum` / :mod:`.jcamp` (a :class:`~.spectrum.Spectrum`,
-abscissa in ppm or Hz) → :mod:`.fit` (k per temperature, or ΔH‡/ΔS‡ for all at once, using
-the model in :mod:`.simulate`) → :mod:`.store_link` (rate points for a measurement) and
-:mod:`.plots` (PNGs).
+Data flow: the caller's quantities → :mod:`.inputs` (Hz, s⁻¹, K; the exchange model); spectrum
+files → :mod:`.spectrum` / :mod:`.jcamp` (a :class:`~.spectrum.Spectrum`, abscissa in ppm or Hz)
+→ :mod:`.workflow` (window, :mod:`.fit` per temperature, :mod:`.fit_global` for all at once,
+:mod:`.plots`, :mod:`.store_link` rate points, safety cautions) → a record of :mod:`.results`.
+:mod:`registry.api.lineshape` calls the workflows and stores the rate points; nothing here
+imports the api.
 
 Map:
     simulate    exchange-broadened spectra: the two-site closed form (Rogers & Woodbrey 1962)
@@ -11,12 +13,17 @@ Map:
                 k is the rate constant for *leaving* a site (k_AB = 1/τ_A, Gutowsky & Holm)
     spectrum    the Spectrum record; reading and writing the simple CSV form
     jcamp       a reader for 1D JCAMP-DX (XYDATA in AFFN/SQZ/DIF/DUP, XYPOINTS)
-    fit         per-temperature fits and the global Eyring-tied fit (scipy least_squares)
+    inputs      quantities as written (texts or numbers) → canonical floats; errors name the field
+    fit_core    the model of one spectrum, its analytic derivatives, the LineShapeFit record
+    fit         the per-temperature fit (grid start, scipy least_squares) and the Eyring line
+    fit_global  the global fit: ΔH‡/ΔS‡ shared by all spectra (Eyring-tied k)
     eyring      ln k(T) from ΔH‡/ΔS‡ and the decorrelated (ΔG‡(T_m), ΔH‡) pair of the global fit
-    store_link  fits → rate-point dicts → ``registry.api.add_rate_points``
+    store_link  fits → rate-point dicts (stored by ``registry.api.fit_lineshapes``)
     plots       PNG of data/fit/residuals per spectrum and the Eyring plot (matplotlib, lazily)
+    workflow    simulate one spectrum; load, fit, plot and caution a set of spectra
+    results     the frozen records the workflows return (SimulatedSpectrum, LineShapeAnalysis)
 
-Importing the package itself costs nothing. :mod:`.simulate` needs numpy, :mod:`.spectrum` and
-:mod:`.jcamp` also the unit layer (pint); scipy comes with :mod:`.fit` and :mod:`.eyring`,
-matplotlib only inside :mod:`.plots` functions.
+Importing the package itself costs nothing, nor does :mod:`.results`. :mod:`.simulate` needs
+numpy, :mod:`.spectrum`, :mod:`.jcamp` and :mod:`.inputs` also the unit layer (pint); scipy
+comes with the fit modules and :mod:`.eyring`, matplotlib only inside :mod:`.plots` functions.
 """

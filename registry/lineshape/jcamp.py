@@ -176,7 +176,7 @@ def _temperature(recs: dict[str, _Record], source: str) -> tuple[float | None, s
                 source,
                 f"line {rec.line}: ##TEMPERATURE= {value} has no unit; JCAMP-DX means °C, "
                 f"which gives {parsed.value:.0f} K — probably kelvin was meant; write the unit "
-                "in the file or give the temperature on the command line",
+                "in the file or give the temperatures of the files (temps)",
             )
         text = value if has_unit else f"{value} {'°C' if default_unit == 'degC' else 'K'}"
         return parsed.value, text

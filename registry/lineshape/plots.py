@@ -22,7 +22,7 @@ if TYPE_CHECKING:
 
     from registry.kinetics.fits import EyringFit
     from registry.lineshape.eyring import EyringParameters
-    from registry.lineshape.fit import LineShapeFit
+    from registry.lineshape.fit_core import LineShapeFit
 
 
 def _figure(height: float = 4.8) -> Figure:

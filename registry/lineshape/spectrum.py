@@ -52,7 +52,7 @@ class Spectrum:
         if unit is None:
             raise UsageError(
                 f"{self.source}: the abscissa unit is unknown; name it in the header "
-                "(e.g. 'shift_ppm') or pass the unit (ppm or Hz) on the command line"
+                "(e.g. 'shift_ppm') or give it as x_unit (ppm or Hz)"
             )
         if unit == "Hz":
             return self.x
@@ -60,7 +60,7 @@ class Spectrum:
         if not mhz:
             raise UsageError(
                 f"{self.source}: the spectrum is in ppm but no spectrometer frequency is known; "
-                "give it (MHz) on the command line"
+                "give it as field (MHz)"
             )
         return np.asarray(ppm_to_hz(self.x, mhz), dtype=float)
 

@@ -1,5 +1,8 @@
 """From fitted rates to the registry: the rate points a measurement holds.
 
+The points are plain dicts; :func:`registry.api.fit_lineshapes` stores them through
+:func:`registry.api.add_rate_points` (this module knows nothing of the registry).
+
 Per-temperature fits are what should be stored: each rate is an independent measurement, so the
 registry's own Eyring analysis (and anyone re-using the points) sees the real scatter. Rates
 from the global fit are tied by the Eyring equation; storing them would make a later Eyring fit
@@ -14,8 +17,8 @@ from typing import TYPE_CHECKING, Any
 
 from registry.errors import UsageError
 
-if TYPE_CHECKING:  # the fit module pulls in scipy; keep this one light
-    from registry.lineshape.fit import LineShapeFit
+if TYPE_CHECKING:  # the fit modules pull in scipy; keep this one light
+    from registry.lineshape.fit_core import LineShapeFit
 
 
 def value_with_error_text(value: float, error: float | None, unit: str) -> str:
@@ -39,7 +42,7 @@ def rate_points(fits: Sequence[LineShapeFit]) -> list[dict[str, Any]]:
         if fit.t_k is None:
             raise UsageError(
                 f"{fit.source}: no temperature known, so its rate cannot be stored; "
-                "give the temperatures on the command line"
+                "give the temperatures of all files (temps)"
             )
         points.append(
             {
@@ -51,20 +54,3 @@ def rate_points(fits: Sequence[LineShapeFit]) -> list[dict[str, Any]]:
             }
         )
     return points
-
-
-def store_rate_points(
-    db: str, measurement_id: int, fits: Sequence[LineShapeFit], *, actor: str | None = None
-) -> int:
-    """Add the fitted rates to measurement ``measurement_id`` of the registry at ``db``.
-
-    Returns the number of points written (one transaction, recorded in the history).
-    """
-    from registry import api
-
-    points = rate_points(fits)
-    database = api.open_registry(db)
-    try:
-        return api.add_rate_points(database, measurement_id, points, actor=actor)
-    finally:
-        database.dispose()

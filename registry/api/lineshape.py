@@ -1,0 +1,149 @@
+"""Line-shape analysis: simulate an exchange-broadened spectrum; fit rates to spectra and store them.
+
+Quantities are given as chemists write them — texts with or without a unit (``'3.10,2.95'`` ppm,
+``'-60,60 Hz'``, ``'1.2 kHz'``, ``'-20 °C'``) or plain numbers in the default unit — and read
+through the one unit layer. Errors name the argument (``sites``, ``width`` …) and the text.
+numpy, scipy and matplotlib load when a function is called, not when this module is imported.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import replace
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from registry.api.records import add_rate_points
+from registry.errors import NotFoundError, UsageError
+from registry.storage.database import Database
+
+if TYPE_CHECKING:
+    from registry.lineshape.inputs import Quantity, QuantityList
+    from registry.lineshape.results import LineShapeAnalysis, SimulatedSpectrum
+    from registry.lineshape.spectrum import Spectrum
+
+#: fewer points than this cannot show an exchange-broadened line
+MIN_POINTS = 16
+
+
+def simulate_lineshape(
+    sites: QuantityList,
+    k: Quantity,
+    *,
+    out: str | Path | None = None,
+    populations: QuantityList | None = None,
+    scheme: str = "mutual",
+    width: Quantity = "1 Hz",
+    field: Quantity | None = None,
+    points: int = 16384,
+    window: QuantityList | None = None,
+    noise: float = 0.0,
+    seed: int = 0,
+    temperature: Quantity | None = None,
+) -> SimulatedSpectrum:
+    """The unit-area spectrum of exchanging sites; written as CSV to ``out`` when given.
+
+    ``sites`` are shifts (ppm unless written in Hz; ppm needs ``field``, the spectrometer
+    frequency in MHz); ``k`` the rate constant for leaving site 1 (s⁻¹ unless written);
+    ``width`` the intrinsic FWHM (Hz unless written); ``window`` 'lo,hi' in the sites' unit
+    (default: the sites with a margin); ``noise`` Gaussian noise as a fraction of the tallest
+    point, drawn from ``seed``; ``temperature`` is only noted in the file. The record holds the
+    points too (``x`` in the sites' unit, ``intensity``).
+    """
+    from registry.lineshape import inputs, workflow
+
+    if isinstance(points, bool) or not isinstance(points, int) or points < MIN_POINTS:
+        raise UsageError(f"points must be a whole number ≥ {MIN_POINTS}, not {points!r}")
+    if not noise >= 0:
+        raise UsageError(f"noise must be ≥ 0 (a fraction of the tallest point), not {noise!r}")
+    mhz = inputs.read_field(field)
+    model, unit = inputs.read_sites(sites, populations, scheme, mhz)
+    k_per_s = inputs.read_positive(k, "rate", "k", "1/s")
+    width_hz = inputs.read_positive(width, "shift", "width", "Hz")
+    window_hz = None if window is None else inputs.read_window(window, "window", unit, mhz)
+    t = None if temperature is None else inputs.read_temperature(temperature)
+    return workflow.simulate(
+        model, k_per_s, width_hz, x_unit=unit, mhz=mhz, points=points, window_hz=window_hz,
+        noise=float(noise), seed=int(seed), temperature=t, out=out,
+    )  # fmt: skip
+
+
+def fit_lineshapes(
+    files: Sequence[str | Path | Spectrum],
+    sites: QuantityList,
+    *,
+    populations: QuantityList | None = None,
+    scheme: str = "mutual",
+    temps: QuantityList | None = None,
+    field: Quantity | None = None,
+    x_unit: str | None = None,
+    width: Quantity = "1 Hz",
+    fix_width: bool = False,
+    region: QuantityList | None = None,
+    global_fit: bool = False,
+    plots_dir: str | Path | None = None,
+    database: Database | None = None,
+    measurement_id: int | None = None,
+    actor: str | None = None,
+    solvent_bp: Quantity | None = None,
+) -> LineShapeAnalysis:
+    """Fit the exchange rate k to each spectrum (one per temperature) and analyse the rates.
+
+    ``files`` are CSV or JCAMP-DX files (or :class:`~registry.lineshape.spectrum.Spectrum`
+    records). ``temps`` gives their temperatures in order (K unless written), over what the
+    files say; ``field`` the spectrometer frequency when the files do not; ``x_unit`` (ppm or
+    Hz) the unit of a CSV shift column whose header does not name it. ``width`` is the
+    intrinsic FWHM to start from, or to hold with ``fix_width`` (near the slow- and
+    fast-exchange limits). ``region`` fits only the window 'lo,hi' (sites' unit).
+    ``global_fit`` also fits ΔH‡ and ΔS‡ to all spectra at once; ``plots_dir`` gets a PNG per
+    spectrum and ``eyring.png``. With ``database`` and ``measurement_id`` the per-temperature
+    rates are added to that measurement as rate points (one transaction, in its history).
+    ``solvent_bp`` (K unless written) sharpens the safety cautions.
+    """
+    from registry.lineshape import inputs, workflow
+
+    single = isinstance(files, (str, Path)) or not hasattr(files, "__iter__")
+    sources = [] if single else list(files)
+    if not sources:
+        raise UsageError("files: give a list of one or more spectra")
+    if measurement_id is not None and database is None:
+        raise UsageError("measurement_id: storing rate points needs the registry (database)")
+    mhz_given = inputs.read_field(field)
+    temperatures = None if temps is None else inputs.read_temperatures(temps, len(sources))
+    spectra = workflow.load_spectra(sources, temperatures, inputs.read_x_unit(x_unit), mhz_given)
+    mhz = workflow.common_mhz(spectra, mhz_given)
+    model, unit = inputs.read_sites(sites, populations, scheme, mhz)
+    width_hz = inputs.read_positive(width, "shift", "width", "Hz")
+    window_hz = None if region is None else inputs.read_window(region, "region", unit, mhz)
+    bp_k = None
+    if solvent_bp is not None:
+        bp_k = inputs.read_positive(solvent_bp, "temperature", "solvent_bp", "K")
+    if global_fit or measurement_id is not None:
+        workflow.require_temperatures(spectra)
+    if measurement_id is not None:
+        _require_measurement(database, measurement_id)  # before the fits: fail early
+    result = workflow.analyse(
+        spectra, model, mhz, width_hz=width_hz, fix_width=fix_width, window_hz=window_hz,
+        global_fit=global_fit, plots_dir=plots_dir, solvent_bp_k=bp_k,
+    )  # fmt: skip
+    if measurement_id is None:
+        return result
+    assert database is not None
+    stored = add_rate_points(database, measurement_id, result.rate_points, actor=actor)
+    return replace(result, stored_rate_points=stored, measurement_id=measurement_id)
+
+
+def _require_measurement(database: Database | None, measurement_id: int) -> None:
+    assert database is not None
+    with database.read() as conn:
+        found = conn.scalar("SELECT id FROM measurement WHERE id = :id", {"id": measurement_id})
+    if found is None:
+        raise NotFoundError(f"no measurement with id {measurement_id}")
+
+
+def value_with_error_text(value: float, error: float | None, unit: str) -> str:
+    """``'123.5 ± 4.6 s-1'``: the error to two significant figures and the value to match
+    (how stored rate texts are written; they read back to the same numbers)."""
+    from registry.lineshape.store_link import value_with_error_text as text
+
+    return text(value, error, unit)

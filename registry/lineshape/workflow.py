@@ -1,0 +1,246 @@
+"""The two line-shape workflows, on values already read (Hz, s⁻¹, K; see :mod:`.inputs`).
+
+* :func:`simulate` — one exchange-broadened spectrum, optionally with seeded noise, written as
+  CSV when a file is named.
+* :func:`load_spectra` then :func:`analyse` — spectra at several temperatures: a window, one fit
+  per spectrum, the Eyring line through the rates, the global Eyring-tied fit when asked for,
+  the plots, the rate points a measurement would hold and the safety cautions for the
+  temperatures measured. Storing the points is the api's part (:mod:`registry.api.lineshape`),
+  so nothing below the api touches the registry.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+from registry.errors import UsageError
+from registry.lineshape.results import LineShapeAnalysis, SimulatedSpectrum
+from registry.lineshape.simulate import ExchangeModel
+from registry.lineshape.spectrum import Spectrum, csv_text, read_spectrum
+from registry.lineshape.store_link import rate_points
+from registry.record.units import ParsedValue
+
+if TYPE_CHECKING:  # the fit modules load scipy.optimize: only the fit workflow pays for it
+    from registry.kinetics.fits import EyringFit
+    from registry.lineshape.fit_core import LineShapeFit
+    from registry.lineshape.fit_global import GlobalFit, SpectrumInput
+
+#: a spectrum as a caller names it: a file (CSV or JCAMP-DX) or one already in memory
+SpectrumSource = str | Path | Spectrum
+
+
+# ---------------------------------------------------------------------------------- simulate
+
+
+def simulate(
+    model: ExchangeModel,
+    k_per_s: float,
+    width_hz: float,
+    *,
+    x_unit: str,
+    mhz: float | None,
+    points: int,
+    window_hz: tuple[float, float] | None,
+    noise: float,
+    seed: int,
+    temperature: ParsedValue | None,
+    out: str | Path | None,
+) -> SimulatedSpectrum:
+    """The unit-area spectrum at rate k (plus noise, a fraction of the tallest point), as a record.
+
+    Without a window the spectrum spans the sites with a margin of the larger of their span,
+    25 widths and 20 Hz. With ``out`` it is written as CSV, abscissa in ``x_unit``.
+    """
+    sites_hz = list(model.shifts_hz)
+    if window_hz is None:
+        margin = max(model.span_hz, 25.0 * width_hz, 20.0)
+        lo, hi = min(sites_hz) - margin, max(sites_hz) + margin
+    else:
+        lo, hi = window_hz
+    freq = np.linspace(lo, hi, points)
+    intensity = model.spectrum(freq, k_per_s, width_hz)
+    if noise > 0:
+        rng = np.random.default_rng(seed)
+        intensity = intensity + rng.normal(0.0, noise * float(intensity.max()), points)
+    x = freq / mhz if x_unit == "ppm" and mhz else freq
+    if out is not None:
+        comments = {
+            "simulated": (
+                f"{len(sites_hz)} sites at {', '.join(f'{s:g}' for s in sites_hz)} Hz, "
+                f"k = {k_per_s:g} s-1 ({model.scheme}), width {width_hz:g} Hz, noise {noise:g}"
+            )
+        }
+        if temperature is not None:
+            comments["temperature"] = f"{temperature.value:.2f} K"
+        if mhz:
+            comments["observe frequency"] = f"{mhz:g} MHz"
+        _write(Path(out), csv_text(x, intensity, x_unit, comments))
+    return SimulatedSpectrum(
+        file=None if out is None else str(out),
+        points=points,
+        x_unit=x_unit,
+        sites_hz=tuple(sites_hz),
+        populations=tuple(model.populations),
+        scheme=model.scheme,
+        k_per_s=k_per_s,
+        width_hz=width_hz,
+        observe_mhz=mhz,
+        window_hz=(lo, hi),
+        noise=noise,
+        seed=seed if noise > 0 else None,
+        t_k=None if temperature is None else temperature.value,
+        x=x,
+        intensity=intensity,
+    )
+
+
+def _write(path: Path, text: str) -> None:
+    try:
+        path.write_text(text, encoding="utf-8")
+    except OSError as exc:
+        raise UsageError(f"cannot write {path}: {exc.strerror}") from exc
+
+
+# ---------------------------------------------------------------------------------- fit
+
+
+def load_spectra(
+    sources: Sequence[SpectrumSource],
+    temps: Sequence[ParsedValue] | None,
+    x_unit: str | None,
+    mhz: float | None,
+) -> list[Spectrum]:
+    """Read the spectra; give them the unit and temperatures the caller supplied.
+
+    Temperatures given override those in the files. Spectra recorded at different
+    spectrometer frequencies are refused unless one frequency is given for all.
+    """
+    spectra = [s if isinstance(s, Spectrum) else read_spectrum(s) for s in sources]
+    if x_unit is not None:
+        spectra = [s if s.x_unit else s.with_x_unit(x_unit) for s in spectra]
+    if temps is not None:  # one per file: inputs.read_temperatures checked the count
+        spectra = [
+            s.with_temperature(p.value, p.text.strip()) for s, p in zip(spectra, temps, strict=True)
+        ]
+    if mhz is None:
+        known = {round(s.observe_mhz, 2) for s in spectra if s.observe_mhz}
+        if len(known) > 1:
+            raise UsageError(
+                "the files were recorded at different spectrometer frequencies "
+                f"({', '.join(f'{m:g}' for m in sorted(known))} MHz); fit them separately"
+            )
+    return spectra
+
+
+def common_mhz(spectra: Sequence[Spectrum], mhz: float | None) -> float | None:
+    """The frequency given, else the first one a file states (load_spectra checked they agree)."""
+    if mhz:
+        return mhz
+    return next((s.observe_mhz for s in spectra if s.observe_mhz), None)
+
+
+def require_temperatures(spectra: Sequence[Spectrum]) -> None:
+    """A global fit and stored rate points need every spectrum's temperature."""
+    missing = next((s.source for s in spectra if s.t_k is None), None)
+    if missing is not None:
+        raise UsageError(
+            f"{missing}: no temperature in the file; give the temperatures of all files (temps)"
+        )
+
+
+def _inputs(
+    spectra: Sequence[Spectrum], mhz: float | None, window_hz: tuple[float, float] | None
+) -> list[SpectrumInput]:
+    """Each spectrum in Hz, cut to the window (both ends included)."""
+    from registry.lineshape.fit_global import SpectrumInput
+
+    inputs = []
+    for spec in spectra:
+        freq = spec.frequency_hz(mhz)
+        inten = spec.intensity
+        if window_hz is not None:
+            keep = (freq >= window_hz[0]) & (freq <= window_hz[1])
+            freq, inten = freq[keep], inten[keep]
+        inputs.append(SpectrumInput(freq, inten, spec.t_k or math.nan, spec.source, spec.t_text))
+    return inputs
+
+
+def analyse(
+    spectra: Sequence[Spectrum],
+    model: ExchangeModel,
+    mhz: float | None,
+    *,
+    width_hz: float,
+    fix_width: bool,
+    window_hz: tuple[float, float] | None,
+    global_fit: bool,
+    plots_dir: str | Path | None,
+    solvent_bp_k: float | None,
+) -> LineShapeAnalysis:
+    """Fit every spectrum, draw the Eyring line, optionally the global fit and the plots."""
+    from registry.kinetics.safety import safety_notes
+    from registry.lineshape.fit import eyring_from_fits, fit_spectrum
+    from registry.lineshape.fit_global import fit_global
+
+    inputs = _inputs(spectra, mhz, window_hz)
+    fits = [
+        fit_spectrum(
+            s.freq_hz,
+            s.intensity,
+            model,
+            width_hz=width_hz,
+            fix_width=fix_width,
+            source=s.source,
+            t_k=None if math.isnan(s.t_k) else s.t_k,
+            t_text=s.t_text,
+        )
+        for s in inputs
+    ]
+    line = eyring_from_fits(fits)
+    global_result = (
+        fit_global(inputs, model, width_hz=width_hz, fix_width=fix_width, starts=fits)
+        if global_fit
+        else None
+    )
+    plots: list[str] = []
+    if plots_dir is not None:
+        observe = [mhz if s.x_unit == "ppm" else None for s in spectra]
+        plots = _plots(fits, global_result, line, plots_dir, observe)
+    temps_k = [f.t_k for f in fits if f.t_k is not None]
+    cautions = safety_notes(np.array(temps_k), solvent_bp_k=solvent_bp_k) if temps_k else []
+    return LineShapeAnalysis(
+        sites_hz=tuple(model.shifts_hz),
+        populations=tuple(model.populations),
+        scheme=model.scheme,
+        observe_mhz=mhz,
+        fits=tuple(fits),
+        eyring_line=line,
+        global_fit=global_result,
+        rate_points=tuple(rate_points(fits)) if len(temps_k) == len(fits) else (),
+        plots=tuple(plots),
+        cautions=tuple(cautions),
+    )
+
+
+def _plots(
+    fits: list[LineShapeFit],
+    global_result: GlobalFit | None,
+    line: EyringFit | None,
+    directory: str | Path,
+    observe_mhz: list[float | None],
+) -> list[str]:
+    """One PNG per spectrum and the Eyring plot: of the global fit when there is one."""
+    from registry.lineshape.plots import write_plots
+
+    written = write_plots(
+        global_result.fits if global_result else fits,
+        directory,
+        line=global_result.eyring if global_result else line,
+        observe_mhz=observe_mhz,
+    )
+    return [str(p) for p in written]
