@@ -16,12 +16,15 @@ Grouped by what they act on:
 * ``admin``     — :func:`backup`, :func:`restore`, :func:`verify`, :func:`schema_state`,
   :func:`upgrade_schema`
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
+* ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
+  :func:`build_report`
 """
 
 from __future__ import annotations
 
 from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
 from registry.api.checks import accept_finding, check
+from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.records import (
     add_measurement,
     add_rate_points,
@@ -46,6 +49,7 @@ __all__ = [
     "add_measurement",
     "add_rate_points",
     "backup",
+    "build_report",
     "canonical_unit",
     "check",
     "convert",
@@ -56,6 +60,9 @@ __all__ = [
     "init_registry",
     "list_measurements",
     "open_registry",
+    "plot_coalescence",
+    "plot_eyring",
+    "plot_overview",
     "read_value",
     "registry_info",
     "restore",

@@ -25,7 +25,6 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from registry.errors import UsageError
-from registry.record.units import convert
 from registry.reports import theme
 from registry.reports.numbers import format_uncertain
 
@@ -82,12 +81,20 @@ def _new_figure(
     return fig
 
 
-def save_figure(fig: Figure, path: str | Path) -> Path:
-    """Write ``fig`` as PNG (150 dpi) or SVG; the folder must exist."""
+def check_output(path: str | Path) -> str:
+    """The format of an output file, once its suffix and folder are known to be fine: checked
+    before any work so a bad name costs nothing."""
     out = Path(path)
     fmt = figure_format(out)
     if not out.parent.exists():
         raise UsageError(f"{out}: the folder {out.parent} does not exist")
+    return fmt
+
+
+def save_figure(fig: Figure, path: str | Path) -> Path:
+    """Write ``fig`` as PNG (150 dpi) or SVG; the folder must exist."""
+    out = Path(path)
+    fmt = check_output(out)
     metadata = {"Date": None} if fmt == "svg" else {"Software": "fluxledger"}
     with _styled():
         fig.savefig(out, format=fmt, dpi=150, metadata=metadata)
@@ -103,6 +110,16 @@ def figure_bytes(fig: Figure, fmt: str = "svg") -> bytes:
     with _styled():
         fig.savefig(buffer, format=fmt, dpi=150, metadata=metadata)
     return buffer.getvalue()
+
+
+def convert(value: float, from_unit: str, to_unit: str) -> float:
+    """``value`` in ``to_unit``: through the unit registry (pint), loaded only when the units
+    differ, so a figure in the canonical units never pays for building it."""
+    if from_unit == to_unit:
+        return float(value)
+    from registry.record.units import convert as through_pint
+
+    return through_pint(value, from_unit, to_unit)
 
 
 def _energy(value_kj: float, err_kj: float | None, unit: str) -> str:

@@ -22,7 +22,7 @@ from typing import Any
 from registry.errors import UsageError
 from registry.reports import assets
 from registry.reports.numbers import format_uncertain
-from registry.storage.database import Database, redacted_url
+from registry.storage.database import Database
 
 #: what a report folder is made of; anything else in the folder is left alone
 _OWN = ("index.html", "compounds", "plots")
@@ -485,7 +485,7 @@ def build_report(
     measurements = gather.measurements_for_report(database, include_retracted=include_retracted)
     compounds = gather.compounds(database, include_retracted=include_retracted)
     when = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
-    subtitle = _e(f"{redacted_url(database)} · written {when} by fluxledger")
+    subtitle = _e(f"{database.name} · written {when} by fluxledger")
     result = ReportResult(directory=str(out), index=str(out / "index.html"))
     result.measurements = len(measurements)
     by_compound: dict[int, list[Mapping[str, Any]]] = {}
