@@ -75,6 +75,28 @@ def test_eyring_from_a_csv_file(cli, tmp_path: Path) -> None:  # type: ignore[no
     assert "rates.csv" in svg  # default title: the file name
 
 
+def test_eyring_from_points_on_the_command_line(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    # the same Eyring rates as above (ΔH‡ 60 kJ/mol, ΔS‡ 0; J. Chem. Phys. 3, 107 (1935))
+    args = []
+    for t_c in (0.0, 15.0, 30.0, 45.0):
+        t = t_c + 273.15
+        k = codata.k * t / codata.h * math.exp(-60000.0 / (codata.R * t))
+        args += ["--point", f"{t_c} °C, {k:.8g} s-1"]
+    result = cli("plot", "eyring", *args, "-o", str(tmp_path / "p.svg"), "--json")
+    assert result.exit_code == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert data["source"] == "points" and data["n_points"] == 4
+    assert data["dh_kj_mol"] == pytest.approx(60.0, abs=1e-4)
+    both = cli("plot", "eyring", "7", "--point", "300 K, 1 s-1", "-o", str(tmp_path / "x.svg"))
+    assert both.exit_code == 2
+    assert both.stderr == "error: give a measurement id or a file, or --point, not both\n"
+    none = cli("plot", "eyring", "-o", str(tmp_path / "x.svg"))
+    assert none.exit_code == 2
+    assert none.stderr == "error: give a measurement id, a rate table file, or --point 'T, k'\n"
+    bad = cli("plot", "eyring", "--point", "300 K", "--point", "310 K, 2 s-1", "-o", "x.svg")
+    assert bad.exit_code == 2 and bad.stderr.startswith("error: points[1]: cannot read '300 K'")
+
+
 def test_eyring_errors(cli, filled, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
     few = cli("plot", "eyring", str(filled["coalescence"]), "-o", str(tmp_path / "x.svg"))
     assert few.exit_code == 2

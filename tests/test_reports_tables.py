@@ -229,3 +229,38 @@ def test_no_uncertainty_note_without_uncertainties() -> None:
     assert "Uncertainties in parentheses" not in text
     assert _body(text)[2][4] == "−4.2"  # an entropy without uncertainty keeps one decimal
     assert "Uncertainties in parentheses" in render_markdown([ROWS[0]])
+
+
+def test_export_table_takes_the_listing_filters(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from registry import api
+    from registry.record.entry import EntryInput
+    from registry.reports.tables import export_table
+
+    def add(label: str, smiles: str, dg: str) -> int:
+        return api.add_measurement(
+            database,
+            EntryInput(method="coalescence", compound=label, smiles=smiles,
+                       process="bond-rotation", solvent="CDCl3", dg=dg),
+            check=False,
+        )  # fmt: skip
+
+    add("DEMO-LOW", "CN(C)C=O", "60.0 kJ/mol")
+    high = add("DEMO-HIGH", "CC(=O)N(C)C", "80.0 kJ/mol")
+    out = tmp_path / "t.md"
+    assert export_table(database, out, barrier_min="70 kJ/mol")["measurements"] == 1
+    assert "DEMO-HIGH" in out.read_text(encoding="utf-8")
+    # 17 kcal/mol = 71.128 kJ/mol (thermochemical calorie, NIST SP 811 (2008) B.8)
+    assert export_table(database, out, barrier="<= 17 kcal/mol")["measurements"] == 1
+    assert "DEMO-LOW" in out.read_text(encoding="utf-8")
+    api.retract_measurement(database, high, "demo: retracted")
+    assert export_table(database, out)["measurements"] == 1
+    assert export_table(database, out, include_retracted=True)["measurements"] == 2
+    assert export_table(database, out, ids=[high], include_retracted=True)["measurements"] == 1
+    before = out.read_text(encoding="utf-8")
+    with pytest.raises(UsageError, match=r"uncertainty 'sd': use paren"):
+        export_table(database, out, uncertainty="sd")
+    with pytest.raises(UsageError, match="the folder .* does not exist"):
+        export_table(database, tmp_path / "missing" / "t.md")
+    with pytest.raises(UnitError, match="^barrier_min: cannot read 'lots'"):
+        export_table(database, out, barrier_min="lots")
+    assert out.read_text(encoding="utf-8") == before  # a refused call leaves the file alone

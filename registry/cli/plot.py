@@ -13,7 +13,7 @@ import typer
 
 from registry.cli.context import state
 from registry.cli.output import print_json, table_text
-from registry.errors import NotFoundError
+from registry.errors import NotFoundError, UsageError
 
 NAME = "plot"
 
@@ -61,10 +61,10 @@ def eyring(
         options["t_ref"] = t_ref
     if point:
         if source is not None:
-            raise typer.BadParameter("give a measurement id or file, or --point, not both")
+            raise UsageError("give a measurement id or a file, or --point, not both")
         drawn = api.plot_eyring(points=point, **options)
     elif source is None:
-        raise typer.BadParameter("give a measurement id, a rate table file, or --point 'T, k'")
+        raise UsageError("give a measurement id, a rate table file, or --point 'T, k'")
     elif Path(source).exists():
         drawn = api.plot_eyring(file=source, sheet=sheet, **options)
     elif source.isdigit() and int(source) > 0:
