@@ -259,8 +259,8 @@ def test_export_table_takes_the_listing_filters(database, tmp_path) -> None:  # 
     before = out.read_text(encoding="utf-8")
     with pytest.raises(UsageError, match=r"uncertainty 'sd': use paren"):
         export_table(database, out, uncertainty="sd")
-    with pytest.raises(UsageError, match="the folder .* does not exist"):
+    with pytest.raises(UsageError, match=r"the folder .* does not exist"):
         export_table(database, tmp_path / "missing" / "t.md")
-    with pytest.raises(UnitError, match="^barrier_min: cannot read 'lots'"):
+    with pytest.raises(UnitError, match=r"^barrier_min: cannot read 'lots'"):
         export_table(database, out, barrier_min="lots")
     assert out.read_text(encoding="utf-8") == before  # a refused call leaves the file alone
