@@ -1,7 +1,7 @@
 """Figures and the HTML report: one call per ``fluxledger plot …`` / ``report`` command.
 
 Each call checks its inputs first (output suffix and folder, units, which source of data), then
-reads what it needs, fits with :mod:`registry.kinetics`, draws with :mod:`registry.reports.plots`
+reads what it needs, fits with :mod:`registry.kinetics`, draws with :mod:`registry.reports`
 (matplotlib's object API on the Agg canvas, never pyplot), writes the file and returns a record
 of what was drawn: the path, the fitted numbers in canonical units, notes and cautions.
 Quantities are given as floats in canonical units (K, kJ/mol, Hz, MHz, Δν in ppm) or as texts
@@ -15,7 +15,7 @@ Nothing here writes to the registry. Tables for papers are written by
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -29,8 +29,6 @@ if TYPE_CHECKING:
 
 #: a rate point given by a caller: ``"T, k"`` / ``"T; k; σk"`` text, or (T/K, k/s⁻¹[, σk/s⁻¹])
 RatePointInput = str | Sequence[float | None]
-#: ΔG‡ is quoted at 25 °C in papers (common practice, no source)
-T_REF_K = 298.15
 
 
 def _as_dict(record: Any) -> dict[str, Any]:
@@ -71,33 +69,37 @@ def plot_eyring(
     file: str | Path | None = None,
     sheet: str | None = None,
     out: str | Path,
-    t_ref: float | str = T_REF_K,
+    t_ref: float | str | None = None,
     title: str | None = None,
     energy_unit: str = "kJ/mol",
 ) -> EyringPlot:
     """ln(k/T) against 1/T with the weighted fit, its 95 % band, ΔH‡, ΔS‡ and ΔG‡ (at the mean
-    measured T and at ``t_ref``), written to ``out`` (.png or .svg).
+    measured T and at ``t_ref``, default 25 °C), written to ``out`` (.png or .svg).
 
     The rate points come from exactly one of: a stored measurement (``measurement_id``, needs
     ``database``), ``points`` (texts ``'T, k'`` / ``'T; k; σk'`` or tuples in K and s⁻¹), or a
     table ``file`` (CSV/TSV/spreadsheet with T and k columns, optional σk; ``sheet`` for a
     spreadsheet). σk weights the fit only when every point has one.
     """
-    from registry.reports import plots
+    from registry.reports import canvas, plots
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
-    plots.check_output(out)
+    canvas.check_output(out)
     series, source = _rate_series(database, measurement_id, points, file, sheet)
-    t_ref_k = _number(t_ref, "temperature", "t_ref", default_unit="K")[0]
     from registry.kinetics import fit_eyring
+    from registry.kinetics.constants import STANDARD_TEMPERATURE_K
+
+    t_ref_k = STANDARD_TEMPERATURE_K
+    if t_ref is not None:
+        t_ref_k = _number(t_ref, "temperature", "t_ref", default_unit="K")[0]
 
     fit = fit_eyring(series.t_k, series.k_per_s, series.k_err_per_s, t_ref_k=t_ref_k)
     shown = series.title if title is None else title
     fig, summary = plots.eyring_figure(
         fit, title=shown, energy_unit=unit, t_ref_k=t_ref_k, k_err_per_s=series.k_err_per_s
     )
-    written = plots.save_figure(fig, out)
+    written = canvas.save_figure(fig, out)
     return EyringPlot(
         str(written), source, shown, unit, summary, tuple(plots.eyring_text(summary, unit))
     )
@@ -199,7 +201,7 @@ class CoalescencePlot:
     observed: tuple[dict[str, Any], ...]
     solvent: dict[str, Any] | None
     notes: tuple[str, ...] = ()
-    cautions: tuple[str, ...] = field(default=())
+    cautions: tuple[str, ...] = ()
 
     def as_dict(self) -> dict[str, Any]:
         return _as_dict(self)
@@ -232,66 +234,49 @@ def plot_coalescence(
     """
     import numpy as np
 
-    from registry.reports import gather, plots
+    from registry.reports import canvas, coalescence_plot, gather
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
-    plots.check_output(out)
+    canvas.check_output(out)
     lo = _number(min_field, "field", "min_field", default_unit="MHz")[0]
     hi = _number(max_field, "field", "max_field", default_unit="MHz")[0]
     if not 0 < lo < hi:
         raise UsageError(f"min_field {lo:g} MHz must be above 0 and below max_field ({hi:g} MHz)")
-    if database is None and (measurement_id is not None or compound or solvent):
-        wanted = (
-            "measurement_id"
-            if measurement_id is not None
-            else "compound"
-            if compound
-            else "solvent"
-        )
-        raise UsageError(f"{wanted}: looking it up needs an open registry (database)")
-    observed: list[dict[str, Any]] = []
-    if database is not None and (measurement_id is not None or compound):
-        observed = gather.observed_coalescence(
-            database, measurement_id=measurement_id, compound=compound
-        )
-    dg = dg_err = dnu_ppm = None
-    j_hz = 0.0
-    own = [o for o in observed if o["measurement_id"] == measurement_id]
-    if own:
-        dg, dg_err, dnu_ppm = own[0]["dg_kj_mol"], own[0]["dg_err_kj_mol"], own[0]["dnu_ppm"]
-        j_hz = own[0]["j_hz"] or 0.0
-        solvent = solvent or own[0]["solvent_text"]
-    if barrier is not None:
-        dg, dg_err = _number(barrier, "energy", "barrier")
-    if dnu is not None:
-        dnu_ppm = _dnu_ppm(dnu, dnu_field)
-    if j is not None:
-        j_hz = _number(j, "frequency", "j", default_unit="Hz")[0]
-    if dg is None:
-        raise UsageError("barrier: give ΔG‡, or a measurement with a stored ΔG‡")
-    if dnu_ppm is None:
-        raise UsageError("dnu: give Δν, or a measurement with a stored coalescence Δν and field")
-    notes: list[str] = []
+    for name, value in (("measurement_id", measurement_id), ("compound", compound),
+                        ("solvent", solvent)):  # fmt: skip
+        if database is None and value is not None:
+            raise UsageError(f"{name}: looking it up needs an open registry (database)")
+    observed, own = _observed(database, measurement_id, compound)
+    dg, dg_err, dnu_ppm, j_hz = _barrier_and_shift(own, barrier, dnu, dnu_field, j)
+    solvent = solvent or own.get("solvent_text")
     solvent_info = gather.solvent_range(database, solvent) if database and solvent else None
+    notes = []
     if solvent and solvent_info is None:
         notes.append(f"solvent {solvent!r} is not in the solvent table; no liquid range drawn")
-    prediction = plots.predict_coalescence(
+    prediction = coalescence_plot.predict_coalescence(
         dg, dnu_ppm, np.linspace(lo, hi, 240), dg_err_kj_mol=dg_err, j_hz=j_hz
     )
-    fig = plots.coalescence_figure(
+    fig = coalescence_plot.coalescence_figure(
         prediction, observed=observed, solvent=solvent_info, title=title, energy_unit=unit
     )
-    written = plots.save_figure(fig, out)
+    written = canvas.save_figure(fig, out)
+    fields = [f for f in coalescence_plot.COMMON_FIELDS_MHZ if lo <= f <= hi]
+    at_fields = (
+        coalescence_plot.predict_coalescence(dg, dnu_ppm, fields, j_hz=j_hz).tc_k if fields else []
+    )
     return CoalescencePlot(
         file=str(written),
         dg_kj_mol=float(dg),
         dg_err_kj_mol=dg_err,
         dnu_ppm=float(dnu_ppm),
-        j_hz=float(j_hz),
+        j_hz=j_hz,
         field_range_mhz=(lo, hi),
         tc_range_k=(float(np.nanmin(prediction.tc_k)), float(np.nanmax(prediction.tc_k))),
-        predicted=_at_common_fields(plots, dg, dnu_ppm, j_hz, lo, hi),
+        predicted=tuple(
+            {"field_mhz": f, "tc_k": float(t), "tc_c": float(t) - 273.15}
+            for f, t in zip(fields, at_fields, strict=True)
+        ),
         observed=tuple(
             {k: o.get(k) for k in ("measurement_id", "compound", "field_mhz", "tc_k", "dnu_ppm")}
             for o in observed
@@ -302,17 +287,43 @@ def plot_coalescence(
     )
 
 
-def _at_common_fields(
-    plots: Any, dg: float, dnu_ppm: float, j_hz: float, lo: float, hi: float
-) -> tuple[dict[str, float], ...]:
-    """Predicted Tc at the usual spectrometer fields inside the drawn range (K and °C)."""
-    fields = [f for f in plots.COMMON_FIELDS_MHZ if lo <= f <= hi]
-    if not fields:
-        return ()
-    at = plots.predict_coalescence(dg, dnu_ppm, fields, j_hz=j_hz)
-    return tuple(
-        {"field_mhz": f, "tc_k": float(t), "tc_c": float(t) - 273.15}
-        for f, t in zip(fields, at.tc_k, strict=True)
+def _observed(
+    database: Database | None, measurement_id: int | None, compound: str | None
+) -> tuple[list[dict[str, Any]], dict[str, Any]]:
+    """The observed coalescence points to mark, and the measurement's own one (or {})."""
+    from registry.reports import gather
+
+    observed: list[dict[str, Any]] = []
+    if database is not None and (measurement_id is not None or compound):
+        observed = gather.observed_coalescence(
+            database, measurement_id=measurement_id, compound=compound
+        )
+    own = next((o for o in observed if o["measurement_id"] == measurement_id), {})
+    return observed, own
+
+
+def _barrier_and_shift(
+    own: Mapping[str, Any],
+    barrier: float | str | None,
+    dnu: float | str | None,
+    dnu_field: float | str | None,
+    j: float | str | None,
+) -> tuple[float, float | None, float, float]:
+    """ΔG‡ (and its error), Δν in ppm and J in Hz: as given, else the measurement's."""
+    dg, dg_err = own.get("dg_kj_mol"), own.get("dg_err_kj_mol")
+    if barrier is not None:
+        dg, dg_err = _number(barrier, "energy", "barrier")
+    dnu_ppm = _dnu_ppm(dnu, dnu_field) if dnu is not None else own.get("dnu_ppm")
+    j_hz = _number(j, "frequency", "j", default_unit="Hz")[0] if j is not None else None
+    if dg is None:
+        raise UsageError("barrier: give ΔG‡, or a measurement with a stored ΔG‡")
+    if dnu_ppm is None:
+        raise UsageError("dnu: give Δν, or a measurement with a stored coalescence Δν and field")
+    return (
+        float(dg),
+        dg_err,
+        float(dnu_ppm),
+        float(j_hz if j_hz is not None else own.get("j_hz") or 0.0),
     )
 
 
@@ -382,11 +393,11 @@ def plot_overview(
     ``by``: ``'kind'`` (process kind), ``'motif'`` (structural motif; needs motif matching),
     or ``'auto'`` (motif when available, else kind).
     """
-    from registry.reports import gather, plots
+    from registry.reports import canvas, gather, plots
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
-    plots.check_output(out)
+    canvas.check_output(out)
     if by not in ("auto", "kind", "motif"):
         raise UsageError(f"by {by!r}: use kind, motif or auto")
     groups = None
@@ -400,7 +411,7 @@ def plot_overview(
     if groups is None:
         groups = gather.barriers_by_kind(database, include_retracted=include_retracted)
     fig = plots.overview_figure(groups, energy_unit=unit, group_title=grouping, title=title)
-    written = plots.save_figure(fig, out)
+    written = canvas.save_figure(fig, out)
     rows = tuple(
         {"group": g, "n": len(v), "min_kj_mol": min(v), "max_kj_mol": max(v)}
         for g, v in groups.items()
