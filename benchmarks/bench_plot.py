@@ -62,8 +62,10 @@ def build_registry(path: Path, size: int) -> None:
             new_ids=True,
         )
         measurements = []
+        made = []  # the invented (ΔH‡, ΔS‡) each rate series is made from
         for cid in compound_ids:
             dh, ds = rng.uniform(45.0, 85.0), rng.uniform(-30.0, 10.0)
+            made.append((dh, ds))
             measurements.append(
                 {
                     "compound_id": cid,
@@ -79,10 +81,9 @@ def build_registry(path: Path, size: int) -> None:
             )
         measurement_ids = conn.insert_many("measurement", measurements, new_ids=True)
         points = []
-        for mid, m in zip(measurement_ids, measurements, strict=True):
-            dh = m["dg_kj_mol"]
+        for mid, (dh, ds) in zip(measurement_ids, made, strict=True):
             for t in TEMPERATURES_K:
-                k = eyring_k(t, dh, -5.0) * rng.uniform(0.95, 1.05)
+                k = eyring_k(t, dh, ds) * rng.uniform(0.95, 1.05)
                 points.append(
                     {
                         "measurement_id": mid,
@@ -125,12 +126,13 @@ def heavy_modules(db: Path, out: Path, measurement_id: int) -> list[str]:
         "try:\n    app(prog_name='fluxledger')\nexcept SystemExit:\n    pass\n"
         "names = ('pandas', 'scipy', 'sqlalchemy', 'rdkit', 'pint', 'matplotlib.pyplot',"
         " 'matplotlib', 'numpy')\n"
-        "print(','.join(n for n in names if n in sys.modules))\n"
+        "print('loaded:' + ','.join(n for n in names if n in sys.modules))\n"
     )
     done = subprocess.run(
         [sys.executable, "-c", code], capture_output=True, text=True, check=True, timeout=120
     )
-    return [m for m in done.stdout.strip().split(",") if m]
+    line = done.stdout.strip().splitlines()[-1]  # the command's own output comes first
+    return [m for m in line.removeprefix("loaded:").split(",") if m]
 
 
 def main() -> None:
