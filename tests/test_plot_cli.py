@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import json
 import math
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -208,3 +210,23 @@ def test_overview_by_motif(cli, filled, tmp_path: Path) -> None:  # type: ignore
     assert max(groups.values()) <= 3
     svg = (tmp_path / "m.svg").read_text(encoding="utf-8")
     assert "structural motif" in svg
+
+
+def test_plot_eyring_as_a_real_process(cli, filled, db_path: Path, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    """The installed command, in its own process: the file is written, a user error is one
+    line on stderr with exit code 2 and no traceback."""
+    command = Path(sys.executable).with_name("fluxledger")
+    out = tmp_path / "real.png"
+    done = subprocess.run(
+        [str(command), "--db", str(db_path), "plot", "eyring", str(filled["rates"]), "-o", str(out)],
+        capture_output=True, text=True, timeout=120,
+    )  # fmt: skip
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.startswith(f"wrote {out}: Eyring plot of 4 rate points\n")
+    assert out.read_bytes().startswith(b"\x89PNG\r\n\x1a\n")
+    bad = subprocess.run(
+        [str(command), "--db", str(db_path), "plot", "eyring", str(filled["rates"]), "-o", "x.gif"],
+        capture_output=True, text=True, timeout=120,
+    )  # fmt: skip
+    assert bad.returncode == 2
+    assert bad.stderr == "error: x.gif: write a .png or .svg file (the suffix chooses the format)\n"

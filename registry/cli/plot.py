@@ -73,7 +73,7 @@ def eyring(
     else:
         raise NotFoundError(f"{source}: no such file (nor a measurement id)")
     if as_json:
-        print_json({**drawn.as_dict(), "source": source if source is not None else "points"})
+        print_json(drawn.as_dict())
         return
     typer.echo(f"wrote {drawn.file}: Eyring plot of {drawn.summary.n_points} rate points")
     for line in drawn.lines[:4]:
