@@ -2,7 +2,11 @@
 
 from __future__ import annotations
 
+import re
+
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from registry.errors import UnitError, UsageError
 from registry.reports.tables import render_latex, render_markdown, table_rows, table_units
@@ -264,3 +268,20 @@ def test_export_table_takes_the_listing_filters(database, tmp_path) -> None:  # 
     with pytest.raises(UnitError, match=r"^barrier_min: cannot read 'lots'"):
         export_table(database, out, barrier_min="lots")
     assert out.read_text(encoding="utf-8") == before  # a refused call leaves the file alone
+
+
+@settings(max_examples=150, deadline=None)
+@given(text=st.text(min_size=1, max_size=40))
+def test_any_user_text_stays_inside_its_cell(text: str) -> None:
+    """Whatever a compound label or reference holds, the table keeps its shape: Markdown rows
+    keep their number of unescaped pipes, and LaTeX rows their number of unescaped '&'."""
+    row = dict(ROWS[0], compound=text, reference=text)
+    markdown = render_markdown([row])
+    lines = [ln for ln in markdown.splitlines() if ln.startswith("|")]
+    pipes = [len(re.findall(r"(?<!\\)\|", ln)) for ln in lines]
+    assert len(lines) == 3 and pipes == [pipes[0]] * 3
+    latex = render_latex([row])
+    body = [ln for ln in latex.splitlines() if ln.startswith("    ") and ln.endswith("\\\\")]
+    amps = [len(re.findall(r"(?<!\\)&", ln)) for ln in body]
+    assert len(body) == 2 and amps[0] == amps[1]
+    assert r"\end{table}" in latex and latex.count(r"\begin{tabular}") == 1

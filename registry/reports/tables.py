@@ -245,8 +245,14 @@ def _check_rows(rows: Iterable[Mapping[str, Any]]) -> list[Mapping[str, Any]]:
 _MD_SPECIAL = re.compile(r"([\\`*_\[\]<>|#])")
 
 
+def _one_line(text: str) -> str:
+    """User text on one line: every character Python counts as a line break (CR, form feed,
+    U+2028 …) becomes a space, so a label cannot end a table row early."""
+    return " ".join(text.splitlines()) if text else text
+
+
 def _md_escape(text: str) -> str:
-    return _MD_SPECIAL.sub(r"\\\1", text.replace("\n", " "))
+    return _MD_SPECIAL.sub(r"\\\1", _one_line(text))
 
 
 def _md_marker(marker: str) -> str:
@@ -323,7 +329,7 @@ _LATEX_TEXT = {"‡": r"\ddag{}", "°": r"\textdegree{}", "±": r"$\pm$", "−":
 
 
 def _latex_escape(text: str) -> str:
-    out = "".join(_LATEX_SPECIAL.get(ch, ch) for ch in text.replace("\n", " "))
+    out = "".join(_LATEX_SPECIAL.get(ch, ch) for ch in _one_line(text))
     for ch, repl in _LATEX_TEXT.items():
         out = out.replace(ch, repl)
     return out
