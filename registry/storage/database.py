@@ -191,7 +191,7 @@ class Database:
                 try:
                     yield self._hold(ServerConnection(sa, self.key))
                 finally:
-                    self._local.current = None  # the next read opens a new transaction
+                    self._local.current = None
             return
         with self._sqlite() as raw:
             delay = 0.01
