@@ -1,9 +1,10 @@
 """Wall time of ``fluxledger plot eyring`` (six stored rate points, one PNG) on a 10,000-measurement
 registry, next to a bare ``python -c "import typer"``.
 
-The two commands alternate (typer, plot, typer, plot, …) so that load on the shared machine hits
-both alike; the script prints the median of each, their ratio and the load average before and
-after. The registry is built once under ``benchmarks/out/`` (git-ignored) from invented demo
+The commands alternate (typer, plot, floor, typer, plot, floor, …) so that load on the shared
+machine hits them alike; the floor is numpy and matplotlib's Figure + Agg drawing one line into
+one PNG, what any PNG plot pays. The script prints the median of each, the ratios to typer and
+the load average before and after. The registry is built once under ``benchmarks/out/`` (git-ignored) from invented demo
 values: compounds without structures, one measurement each, and six rate points per measurement
 made with the Eyring equation from an invented ΔH‡/ΔS‡ with a little scatter — demo data, not
 chemistry. It also prints which heavy libraries the command imports (it should need only numpy
@@ -32,6 +33,18 @@ FLUXLEDGER = Path(sys.executable).with_name("fluxledger")
 #: Boltzmann and Planck constants and R, CODATA 2018 exact values (SI 2019 definitions)
 K_B, H, R = 1.380649e-23, 6.62607015e-34, 8.314462618
 TEMPERATURES_K = (263.0, 273.0, 283.0, 293.0, 303.0, 313.0)
+
+
+#: the floor a plot command cannot go below: import numpy and matplotlib's Figure + Agg canvas,
+#: draw one line and write one PNG at the same size and resolution
+FLOOR = (
+    "import numpy as np\n"
+    "from matplotlib.figure import Figure\n"
+    "from matplotlib.backends.backend_agg import FigureCanvasAgg\n"
+    "fig = Figure(figsize=(6.4, 4.4)); FigureCanvasAgg(fig)\n"
+    "fig.add_subplot().plot(np.arange(6.0), np.arange(6.0), 'o-')\n"
+    "fig.savefig('/dev/null', format='png', dpi=150)\n"
+)
 
 
 def eyring_k(t_k: float, dh_kj_mol: float, ds_j_mol_k: float) -> float:
@@ -148,18 +161,22 @@ def main() -> None:
         plot = [str(FLUXLEDGER), "--db", str(db), "plot", "eyring", str(measurement_id)]
         plot += ["-o", str(out)]
         bare = [sys.executable, "-c", "import typer"]
-        timed(bare), timed(plot)  # warm the file cache once, not counted
-        typer_s, plot_s = [], []
+        floor = [sys.executable, "-c", FLOOR]
+        timed(bare), timed(plot), timed(floor)  # warm the file cache once, not counted
+        typer_s, plot_s, floor_s = [], [], []
         for _ in range(args.runs):
             typer_s.append(timed(bare))
             plot_s.append(timed(plot))
+            floor_s.append(timed(floor))
         heavy = heavy_modules(db, out, measurement_id)
     load_after = os.getloadavg()
     t_typer, t_plot = statistics.median(typer_s), statistics.median(plot_s)
+    t_floor = statistics.median(floor_s)
     print(f"registry: {db.name} ({args.size} measurements, 6 rate points each)")
     print(f"runs: {args.runs} each, alternating; medians")
     print(f"python -c 'import typer'         {t_typer:.3f} s")
     print(f"fluxledger plot eyring (PNG)      {t_plot:.3f} s   ratio {t_plot / t_typer:.1f}x")
+    print(f"floor: numpy + Figure/Agg, 1 PNG  {t_floor:.3f} s   ratio {t_floor / t_typer:.1f}x")
     print(f"modules the plot command imports: {', '.join(heavy) or 'none of the heavy ones'}")
     print(
         "load average (1/5/15 min) before: "
