@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import json
 import math
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -75,6 +77,28 @@ def test_eyring_from_a_csv_file(cli, tmp_path: Path) -> None:  # type: ignore[no
     assert "rates.csv" in svg  # default title: the file name
 
 
+def test_eyring_from_points_on_the_command_line(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    # the same Eyring rates as above (ΔH‡ 60 kJ/mol, ΔS‡ 0; J. Chem. Phys. 3, 107 (1935))
+    args = []
+    for t_c in (0.0, 15.0, 30.0, 45.0):
+        t = t_c + 273.15
+        k = codata.k * t / codata.h * math.exp(-60000.0 / (codata.R * t))
+        args += ["--point", f"{t_c} °C, {k:.8g} s-1"]
+    result = cli("plot", "eyring", *args, "-o", str(tmp_path / "p.svg"), "--json")
+    assert result.exit_code == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert data["source"] == "points" and data["n_points"] == 4
+    assert data["dh_kj_mol"] == pytest.approx(60.0, abs=1e-4)
+    both = cli("plot", "eyring", "7", "--point", "300 K, 1 s-1", "-o", str(tmp_path / "x.svg"))
+    assert both.exit_code == 2
+    assert both.stderr == "error: give a measurement id or a file, or --point, not both\n"
+    none = cli("plot", "eyring", "-o", str(tmp_path / "x.svg"))
+    assert none.exit_code == 2
+    assert none.stderr == "error: give a measurement id, a rate table file, or --point 'T, k'\n"
+    bad = cli("plot", "eyring", "--point", "300 K", "--point", "310 K, 2 s-1", "-o", "x.svg")
+    assert bad.exit_code == 2 and bad.stderr.startswith("error: points[1]: cannot read '300 K'")
+
+
 def test_eyring_errors(cli, filled, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
     few = cli("plot", "eyring", str(filled["coalescence"]), "-o", str(tmp_path / "x.svg"))
     assert few.exit_code == 2
@@ -127,8 +151,8 @@ def test_coalescence_needs_a_field_for_hz(cli, tmp_path: Path) -> None:  # type:
     bad = cli("plot", "coalescence", "--barrier", "15 kcal/mol", "--dnu", "30 Hz", "-o", "x.png")
     assert bad.exit_code == 2
     assert bad.stderr == (
-        "error: --dnu '30 Hz': a Δν in Hz holds at one field only; add --dnu-field "
-        "(e.g. '400 MHz') or give Δν in ppm\n"
+        "error: dnu '30 Hz': a Δν in Hz holds at one field only; give the field it was measured"
+        " at (dnu_field, e.g. '400 MHz') or Δν in ppm\n"
     )
     ok = cli(
         "plot", "coalescence", "--barrier", "15 kcal/mol", "--dnu", "30 Hz",
@@ -137,7 +161,8 @@ def test_coalescence_needs_a_field_for_hz(cli, tmp_path: Path) -> None:  # type:
     assert ok.exit_code == 0, ok.stderr
     assert json.loads(ok.stdout)["dnu_ppm"] == pytest.approx(0.1)
     none = cli("plot", "coalescence", "--dnu", "0.1 ppm", "-o", "x.png")
-    assert none.exit_code == 2 and "give --barrier" in none.stderr
+    assert none.exit_code == 2
+    assert none.stderr == "error: barrier: give ΔG‡, or a measurement with a stored ΔG‡\n"
 
 
 def test_overview(cli, filled, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
@@ -149,7 +174,8 @@ def test_overview(cli, filled, tmp_path: Path) -> None:  # type: ignore[no-untyp
         {"group": "bond-rotation", "n": 2, "min_kj_mol": 64.0, "max_kj_mol": 66.0}
     ]
     bad = cli("plot", "overview", "--by", "colour", "-o", "o.svg")
-    assert bad.exit_code == 2 and "use kind, motif or auto" in bad.stderr
+    assert bad.exit_code == 2
+    assert bad.stderr == "error: by 'colour': use kind, motif or auto\n"
 
 
 def test_report_command(cli, filled, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
@@ -184,3 +210,23 @@ def test_overview_by_motif(cli, filled, tmp_path: Path) -> None:  # type: ignore
     assert max(groups.values()) <= 3
     svg = (tmp_path / "m.svg").read_text(encoding="utf-8")
     assert "structural motif" in svg
+
+
+def test_plot_eyring_as_a_real_process(cli, filled, db_path: Path, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    """The installed command, in its own process: the file is written, a user error is one
+    line on stderr with exit code 2 and no traceback."""
+    command = Path(sys.executable).with_name("fluxledger")
+    out = tmp_path / "real.png"
+    done = subprocess.run(
+        [str(command), "--db", str(db_path), "plot", "eyring", str(filled["rates"]), "-o", str(out)],
+        capture_output=True, text=True, timeout=120,
+    )  # fmt: skip
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.startswith(f"wrote {out}: Eyring plot of 4 rate points\n")
+    assert out.read_bytes().startswith(b"\x89PNG\r\n\x1a\n")
+    bad = subprocess.run(
+        [str(command), "--db", str(db_path), "plot", "eyring", str(filled["rates"]), "-o", "x.gif"],
+        capture_output=True, text=True, timeout=120,
+    )  # fmt: skip
+    assert bad.returncode == 2
+    assert bad.stderr == "error: x.gif: write a .png or .svg file (the suffix chooses the format)\n"

@@ -16,7 +16,7 @@ from scipy import stats
 
 from registry.errors import UsageError
 from registry.kinetics import fit_eyring
-from registry.reports import plots
+from registry.reports import canvas, coalescence_plot, plots
 
 T_K = np.array([268.0, 278.0, 288.0, 298.0, 308.0, 318.0])
 #: invented scatter (multiplicative) on exact Eyring rates, for demo fits
@@ -87,8 +87,8 @@ def test_summary_dg_at_mean_temperature_obeys_gibbs() -> None:
 def test_eyring_figure_files_by_suffix(tmp_path: Path) -> None:
     k = eyring_k(T_K, DH_KJ_MOL, DS_J_MOL_K) * SCATTER
     fig, summary = plots.eyring_figure(fit_eyring(T_K, k), title="demo", energy_unit="kcal/mol")
-    svg = plots.save_figure(fig, tmp_path / "e.svg").read_text(encoding="utf-8")
-    png = plots.save_figure(fig, tmp_path / "e.PNG").read_bytes()
+    svg = canvas.save_figure(fig, tmp_path / "e.svg").read_text(encoding="utf-8")
+    png = canvas.save_figure(fig, tmp_path / "e.PNG").read_bytes()
     assert png.startswith(b"\x89PNG\r\n\x1a\n")
     assert svg.lstrip().startswith("<?xml") and "<svg" in svg
     # the stated values, converted with the thermochemical calorie (4.184 J, NIST SP 811 B.8)
@@ -97,9 +97,9 @@ def test_eyring_figure_files_by_suffix(tmp_path: Path) -> None:
     assert "ΔG‡(298.15 K) = " in svg and "mean T" in svg
     assert "95 % confidence band of the line" in svg
     with pytest.raises(UsageError, match=r"\.png or \.svg"):
-        plots.save_figure(fig, tmp_path / "e.pdf")
+        canvas.save_figure(fig, tmp_path / "e.pdf")
     with pytest.raises(UsageError, match="does not exist"):
-        plots.save_figure(fig, tmp_path / "missing" / "e.svg")
+        canvas.save_figure(fig, tmp_path / "missing" / "e.svg")
 
 
 def test_two_points_without_errors_have_no_band() -> None:
@@ -116,7 +116,7 @@ def test_two_points_without_errors_have_no_band() -> None:
 def test_predicted_tc_satisfies_gutowsky_holm_and_eyring() -> None:
     dg, dnu_ppm = 65.0, 0.25
     fields = np.array([60.0, 300.0, 400.0, 600.0, 1000.0])
-    p = plots.predict_coalescence(dg, dnu_ppm, fields, dg_err_kj_mol=0.5)
+    p = coalescence_plot.predict_coalescence(dg, dnu_ppm, fields, dg_err_kj_mol=0.5)
     dnu_hz = dnu_ppm * fields
     # k_c = π·Δν/√2 (Gutowsky and Holm, J. Chem. Phys. 25, 1228 (1956)) must equal the
     # Eyring rate at the predicted Tc
@@ -132,20 +132,20 @@ def test_predicted_tc_satisfies_gutowsky_holm_and_eyring() -> None:
 
 
 def test_coalescence_and_overview_figures(tmp_path: Path) -> None:
-    p = plots.predict_coalescence(60.0, 0.3, np.linspace(60, 1000, 50))
-    fig = plots.coalescence_figure(
+    p = coalescence_plot.predict_coalescence(60.0, 0.3, np.linspace(60, 1000, 50))
+    fig = coalescence_plot.coalescence_figure(
         p,
         observed=[{"field_mhz": 400.0, "tc_k": 300.0, "label": "#7"}],
         solvent={"name": "dichloromethane-d2", "mp_k": 176.15, "bp_k": 313.15},
         title="demo",
     )
-    svg = plots.save_figure(fig, tmp_path / "c.svg").read_text(encoding="utf-8")
+    svg = canvas.save_figure(fig, tmp_path / "c.svg").read_text(encoding="utf-8")
     assert "#7" in svg and "pressure-rated sealed tube" in svg
     fig = plots.overview_figure(
         {"bond-rotation": [60.0, 62.0, 75.0, 80.0], "ring-inversion": [42.0]},
         energy_unit="kcal/mol",
     )
-    svg = plots.save_figure(fig, tmp_path / "o.svg").read_text(encoding="utf-8")
+    svg = canvas.save_figure(fig, tmp_path / "o.svg").read_text(encoding="utf-8")
     assert "(n = 4)" in svg and "(n = 1)" in svg and "ΔG‡ (kcal/mol)" in svg
     with pytest.raises(UsageError, match="no barriers"):
         plots.overview_figure({"x": []})
@@ -154,6 +154,6 @@ def test_coalescence_and_overview_figures(tmp_path: Path) -> None:
 def test_same_data_same_svg(tmp_path: Path) -> None:
     """Reports are rebuilt often; unchanged data must give byte-identical plot files."""
     k = eyring_k(T_K, DH_KJ_MOL, DS_J_MOL_K) * SCATTER
-    a = plots.save_figure(plots.eyring_figure(fit_eyring(T_K, k))[0], tmp_path / "a.svg")
-    b = plots.save_figure(plots.eyring_figure(fit_eyring(T_K, k))[0], tmp_path / "b.svg")
+    a = canvas.save_figure(plots.eyring_figure(fit_eyring(T_K, k))[0], tmp_path / "a.svg")
+    b = canvas.save_figure(plots.eyring_figure(fit_eyring(T_K, k))[0], tmp_path / "b.svg")
     assert a.read_bytes() == b.read_bytes()

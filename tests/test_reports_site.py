@@ -16,12 +16,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 from scipy import constants as codata
-from sqlalchemy import insert
 
 from registry import api
 from registry.record.entry import EntryInput
-from registry.reports import site
-from registry.storage.models import ValidationFinding
 
 #: invented activation parameters for the demo rate series (not from any paper)
 DEMO_DH_KJ_MOL = 58.0
@@ -118,8 +115,8 @@ def populate(database) -> dict[str, int]:  # type: ignore[no-untyped-def]
     )
 
     def finding(conn) -> None:  # type: ignore[no-untyped-def]
-        conn.execute(
-            insert(ValidationFinding),
+        conn.insert_many(
+            "validation_finding",
             [
                 {
                     "measurement_id": ids["dma"],
@@ -171,7 +168,7 @@ def build_demo_report(tmp_path_factory: pytest.TempPathFactory):  # type: ignore
     api.init_registry(str(base / "registry.sqlite"))
     database = api.open_registry(str(base / "registry.sqlite"))
     ids = populate(database)
-    result = site.build_report(database, base / "report", title="Demo group registry")
+    result = api.build_report(database, base / "report", title="Demo group registry")
     return database, base / "report", result, ids
 
 
@@ -287,11 +284,11 @@ def test_report_refuses_a_file_as_folder(database, tmp_path) -> None:  # type: i
     target = tmp_path / "taken"
     target.write_text("not a folder")
     with pytest.raises(UsageError, match="is not a folder"):
-        site.build_report(database, target)
+        api.build_report(database, target)
 
 
 def test_report_of_empty_registry(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
-    result = site.build_report(database, tmp_path / "empty")
+    result = api.build_report(database, tmp_path / "empty")
     assert result.measurements == 0
     text = (tmp_path / "empty" / "index.html").read_text(encoding="utf-8")
     assert '<table id="measurements"' in text
@@ -306,8 +303,8 @@ def test_finding_of_a_known_rule_says_what_the_rule_checks(database, tmp_path) -
     )
 
     def finding(conn) -> None:  # type: ignore[no-untyped-def]
-        conn.execute(
-            insert(ValidationFinding),
+        conn.insert_many(
+            "validation_finding",
             [
                 {
                     "measurement_id": mid,
@@ -321,7 +318,7 @@ def test_finding_of_a_known_rule_says_what_the_rule_checks(database, tmp_path) -
         )
 
     database.write(finding)
-    site.build_report(database, tmp_path / "r", plots=False)
+    api.build_report(database, tmp_path / "r", plots=False)
     compound_id = api.get_measurement(database, mid)["compound"]["id"]
     page = (tmp_path / "r" / "compounds" / f"c{compound_id}.html").read_text(encoding="utf-8")
     title = rule.title[:1].upper() + rule.title[1:]
@@ -335,10 +332,10 @@ def test_report_never_replaces_folders_it_did_not_write(database, tmp_path) -> N
     (mine / "plots").mkdir(parents=True)
     (mine / "plots" / "thesis-figure.png").write_bytes(b"keep me")
     with pytest.raises(UsageError, match="already holds plots not written by 'fluxledger report'"):
-        site.build_report(database, mine, plots=False)
+        api.build_report(database, mine, plots=False)
     assert (mine / "plots" / "thesis-figure.png").read_bytes() == b"keep me"
     fresh = tmp_path / "fresh"
-    site.build_report(database, fresh, plots=False)
+    api.build_report(database, fresh, plots=False)
     (fresh / "notes.txt").write_text("mine")
-    site.build_report(database, fresh, plots=False)  # a rebuild of our own folder is fine
+    api.build_report(database, fresh, plots=False)  # a rebuild of our own folder is fine
     assert (fresh / "notes.txt").read_text() == "mine"

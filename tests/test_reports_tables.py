@@ -2,7 +2,11 @@
 
 from __future__ import annotations
 
+import re
+
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from registry.errors import UnitError, UsageError
 from registry.reports.tables import render_latex, render_markdown, table_rows, table_units
@@ -128,7 +132,7 @@ def test_markdown_escapes_table_syntax() -> None:
 def test_errors() -> None:
     with pytest.raises(UsageError, match="no measurements"):
         render_markdown([])
-    with pytest.raises(UnitError, match="--energy-unit"):
+    with pytest.raises(UnitError, match=r"^energy_unit: cannot read 'K'"):
         table_units("K")
     with pytest.raises(UnitError):
         render_latex(ROWS, energy_unit="parsec")
@@ -180,7 +184,7 @@ def test_export_command_writes_paper_tables(cli, tmp_path) -> None:  # type: ign
     )
     bad = cli("export", "-o", str(tmp_path / "t.md"), "--energy-unit", "eV")
     assert bad.exit_code == 2
-    assert bad.stderr == "error: --energy-unit 'eV': use kJ/mol or kcal/mol\n"
+    assert bad.stderr == "error: energy_unit 'eV': use kJ/mol or kcal/mol\n"
     csv_still = cli("export", "-o", str(tmp_path / "t.csv"))
     assert csv_still.exit_code == 0 and "(csv)" in csv_still.stdout
 
@@ -229,3 +233,55 @@ def test_no_uncertainty_note_without_uncertainties() -> None:
     assert "Uncertainties in parentheses" not in text
     assert _body(text)[2][4] == "−4.2"  # an entropy without uncertainty keeps one decimal
     assert "Uncertainties in parentheses" in render_markdown([ROWS[0]])
+
+
+def test_export_table_takes_the_listing_filters(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from registry import api
+    from registry.record.entry import EntryInput
+    from registry.reports.tables import export_table
+
+    def add(label: str, smiles: str, dg: str) -> int:
+        return api.add_measurement(
+            database,
+            EntryInput(method="coalescence", compound=label, smiles=smiles,
+                       process="bond-rotation", solvent="CDCl3", dg=dg),
+            check=False,
+        )  # fmt: skip
+
+    add("DEMO-LOW", "CN(C)C=O", "60.0 kJ/mol")
+    high = add("DEMO-HIGH", "CC(=O)N(C)C", "80.0 kJ/mol")
+    out = tmp_path / "t.md"
+    assert export_table(database, out, barrier_min="70 kJ/mol")["measurements"] == 1
+    assert "DEMO-HIGH" in out.read_text(encoding="utf-8")
+    # 17 kcal/mol = 71.128 kJ/mol (thermochemical calorie, NIST SP 811 (2008) B.8)
+    assert export_table(database, out, barrier="<= 17 kcal/mol")["measurements"] == 1
+    assert "DEMO-LOW" in out.read_text(encoding="utf-8")
+    api.retract_measurement(database, high, "demo: retracted")
+    assert export_table(database, out)["measurements"] == 1
+    assert export_table(database, out, include_retracted=True)["measurements"] == 2
+    assert export_table(database, out, ids=[high], include_retracted=True)["measurements"] == 1
+    before = out.read_text(encoding="utf-8")
+    with pytest.raises(UsageError, match=r"uncertainty 'sd': use paren"):
+        export_table(database, out, uncertainty="sd")
+    with pytest.raises(UsageError, match=r"the folder .* does not exist"):
+        export_table(database, tmp_path / "missing" / "t.md")
+    with pytest.raises(UnitError, match=r"^barrier_min: cannot read 'lots'"):
+        export_table(database, out, barrier_min="lots")
+    assert out.read_text(encoding="utf-8") == before  # a refused call leaves the file alone
+
+
+@settings(max_examples=150, deadline=None)
+@given(text=st.text(min_size=1, max_size=40))
+def test_any_user_text_stays_inside_its_cell(text: str) -> None:
+    """Whatever a compound label or reference holds, the table keeps its shape: Markdown rows
+    keep their number of unescaped pipes, and LaTeX rows their number of unescaped '&'."""
+    row = dict(ROWS[0], compound=text, reference=text)
+    markdown = render_markdown([row])
+    lines = [ln for ln in markdown.splitlines() if ln.startswith("|")]
+    pipes = [len(re.findall(r"(?<!\\)\|", ln)) for ln in lines]
+    assert len(lines) == 3 and pipes == [pipes[0]] * 3
+    latex = render_latex([row])
+    body = [ln for ln in latex.splitlines() if ln.startswith("    ") and ln.endswith("\\\\")]
+    amps = [len(re.findall(r"(?<!\\)&", ln)) for ln in body]
+    assert len(body) == 2 and amps[0] == amps[1]
+    assert r"\end{table}" in latex and latex.count(r"\begin{tabular}") == 1

@@ -17,12 +17,15 @@ Grouped by what they act on:
   :func:`upgrade_schema`
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
 * ``lineshape`` — :func:`simulate_lineshape`, :func:`fit_lineshapes`, :func:`value_with_error_text`
+* ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
+  :func:`build_report`
 """
 
 from __future__ import annotations
 
 from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
 from registry.api.checks import accept_finding, check
+from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
 from registry.api.records import (
     add_measurement,
@@ -48,6 +51,7 @@ __all__ = [
     "add_measurement",
     "add_rate_points",
     "backup",
+    "build_report",
     "canonical_unit",
     "check",
     "convert",
@@ -59,6 +63,9 @@ __all__ = [
     "init_registry",
     "list_measurements",
     "open_registry",
+    "plot_coalescence",
+    "plot_eyring",
+    "plot_overview",
     "read_value",
     "registry_info",
     "restore",

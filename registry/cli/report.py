@@ -1,7 +1,6 @@
 """``fluxledger report``: the registry as a static HTML folder to open offline from a shared drive.
 
-Tables for papers are written by ``fluxledger export -o FILE.tex|FILE.md`` (see
-:mod:`registry.reports.tables`).
+Tables for papers are written by ``fluxledger export -o FILE.tex|FILE.md``.
 """
 
 from __future__ import annotations
@@ -33,10 +32,9 @@ def report(
     """Write a browsable HTML view of the registry: a filterable, sortable index and a page per
     compound with its structure, measurements, validation findings and Eyring plots."""
     from registry import api
-    from registry.reports.site import build_report
 
     database = api.open_registry(state(ctx).db)
-    result = build_report(
+    result = api.build_report(
         database, out, title=title, include_retracted=include_retracted, plots=not no_plots
     )
     if as_json:

@@ -1,34 +1,36 @@
-"""What the figures and pages need from the registry, read in a few queries.
+"""What the figures, tables and pages need from the registry, read in a few queries.
 
-Reads only; every function takes an open :class:`registry.storage.database.Database`. Retracted
-measurements are left out of overviews and pages unless asked for, as in listings.
+Reads only; every function takes an open :class:`registry.storage.database.Database` and asks it
+for SQL text through one :class:`~registry.storage.connection.Connection` snapshot (the same SQL
+on SQLite and PostgreSQL; rows by many ids through ``rows_where_in``). Retracted measurements
+are left out of overviews, tables and pages unless asked for, as in listings.
+
+numpy is imported on first use (a rate series is its arrays), so importing this module costs
+nothing beyond the storage layer.
 """
 
 from __future__ import annotations
 
 from collections import defaultdict
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from typing import Any
-
-import numpy as np
-from numpy.typing import NDArray
-from sqlalchemy import select
+from typing import TYPE_CHECKING, Any
 
 from registry.errors import NotFoundError, UsageError
+from registry.record.fields import LISTING_COLUMNS, LISTING_FROM
+from registry.storage.connection import Connection
 from registry.storage.database import Database
-from registry.storage.models import (
-    CoalescenceObservation,
-    Compound,
-    Measurement,
-    Process,
-    RatePoint,
-    Solvent,
-    ValidationFinding,
-)
+
+if TYPE_CHECKING:
+    import numpy as np
+    from numpy.typing import NDArray
+
+    from registry.search.filters import Filters
 
 #: the group of compounds that match no motif
 NO_MOTIF = "(no motif)"
+#: the group of measurements without a process kind
+NO_KIND = "(no process kind)"
 
 
 @dataclass(frozen=True)
@@ -41,41 +43,64 @@ class RateSeries:
     title: str
 
 
+def series_from_points(
+    t_k: Sequence[float], k_per_s: Sequence[float], k_err: Sequence[float | None], title: str
+) -> RateSeries:
+    """Arrays for a fit; σ_k kept only when every point has a positive one (a weighted fit needs
+    all of them; a partial set would silently weight some points and not others)."""
+    import numpy as np
+
+    err = np.array(k_err, dtype=float) if all(e and e > 0 for e in k_err) else None
+    return RateSeries(np.array(t_k, dtype=float), np.array(k_per_s, dtype=float), err, title)
+
+
 def rate_series(database: Database, measurement_id: int) -> RateSeries:
-    """The stored rate points of a measurement; σ_k only when every point has one."""
+    """The stored rate points of a measurement, ordered by temperature."""
+    of = {"id": measurement_id}
     with database.read() as conn:
-        head = conn.execute(
-            select(Measurement.id, Measurement.label, Compound.label, Compound.name)
-            .join(Compound, Compound.id == Measurement.compound_id)
-            .where(Measurement.id == measurement_id)
-        ).first()
+        head = conn.first(
+            "SELECT m.label, c.label, c.name FROM measurement m "
+            "JOIN compound c ON c.id = m.compound_id WHERE m.id = :id",
+            of,
+        )
         if head is None:
             raise NotFoundError(f"no measurement with id {measurement_id}")
-        points = conn.execute(
-            select(RatePoint.t_k, RatePoint.k_per_s, RatePoint.k_err_per_s)
-            .where(RatePoint.measurement_id == measurement_id)
-            .order_by(RatePoint.t_k)
-        ).all()
+        points = conn.rows(
+            "SELECT t_k, k_per_s, k_err_per_s FROM rate_point "
+            "WHERE measurement_id = :id ORDER BY t_k, id",
+            of,
+        )
     if len(points) < 2:
         raise UsageError(
             f"measurement {measurement_id} has {len(points)} rate point(s); an Eyring plot needs"
-            " at least 2 (add them with 'fluxledger add --rate' or an import)"
+            " at least 2"
         )
-    errs = [p[2] for p in points]
-    err = np.array(errs, dtype=float) if all(e and e > 0 for e in errs) else None
-    return RateSeries(
-        np.array([p[0] for p in points], dtype=float),
-        np.array([p[1] for p in points], dtype=float),
-        err,
-        _title(measurement_id, head[1], head[2], head[3]),
+    return series_from_points(
+        [p[0] for p in points],
+        [p[1] for p in points],
+        [p[2] for p in points],
+        measurement_title(measurement_id, *head),
     )
 
 
-def _title(mid: int, m_label: str | None, c_label: str | None, c_name: str | None) -> str:
+def measurement_title(
+    mid: int, m_label: str | None, c_label: str | None, c_name: str | None
+) -> str:
+    """``measurement 7 — DEMO-1 (N,N-dimethylacetamide) [run 2]``: a default figure title."""
     who = " ".join(x for x in (c_label, f"({c_name})" if c_name else None) if x)
     return (
         f"measurement {mid}" + (f" — {who}" if who else "") + (f" [{m_label}]" if m_label else "")
     )
+
+
+_OBSERVED = (
+    "SELECT m.id AS measurement_id, c.label AS compound, c.name AS compound_name, "
+    "o.tc_k, o.dnu_hz, o.j_hz, coalesce(o.field_mhz, m.field_mhz) AS field_mhz, "
+    "m.dg_kj_mol, m.dg_err_kj_mol, m.solvent_text "
+    "FROM coalescence o JOIN measurement m ON m.id = o.measurement_id "
+    "JOIN compound c ON c.id = m.compound_id "
+    "WHERE m.status != :retracted"
+)
 
 
 def observed_coalescence(
@@ -85,47 +110,29 @@ def observed_coalescence(
     every measurement of the compounds whose label or name contains ``compound``."""
     if measurement_id is None and not compound:
         return []
-    query = (
-        select(
-            Measurement.id.label("measurement_id"),
-            Compound.label.label("compound"),
-            Compound.name.label("compound_name"),
-            CoalescenceObservation.tc_k,
-            CoalescenceObservation.dnu_hz,
-            CoalescenceObservation.j_hz,
-            CoalescenceObservation.field_mhz.label("obs_field_mhz"),
-            Measurement.field_mhz.label("m_field_mhz"),
-            Measurement.dg_kj_mol,
-            Measurement.dg_err_kj_mol,
-            Measurement.solvent_text,
-        )
-        .join(Measurement, Measurement.id == CoalescenceObservation.measurement_id)
-        .join(Compound, Compound.id == Measurement.compound_id)
-        .where(Measurement.status != "retracted")
-        .order_by(Measurement.id, CoalescenceObservation.id)
-    )
-    if measurement_id is not None:
-        query = query.where(Measurement.id == measurement_id)
-    if compound:
-        like = f"%{compound}%"
-        query = query.where(Compound.label.ilike(like) | Compound.name.ilike(like))
+    sql = _OBSERVED
+    params: dict[str, Any] = {"retracted": "retracted"}
     with database.read() as conn:
-        rows = [dict(r) for r in conn.execute(query).mappings()]
+        if measurement_id is not None:
+            sql += " AND m.id = :id"
+            params["id"] = measurement_id
+        if compound:
+            from registry.search.filters import _contains
+
+            label = _contains("c.label", "compound", conn.dialect)
+            name = _contains("c.name", "compound", conn.dialect)
+            sql += f" AND ({label} OR {name})"
+            params["compound"] = f"%{compound}%"
+        rows = conn.records(sql + " ORDER BY m.id, o.id", params)
         if measurement_id is not None and not rows:
-            exists = conn.execute(
-                select(Measurement.id).where(Measurement.id == measurement_id)
-            ).scalar()
-            if exists is None:
+            found = conn.scalar("SELECT id FROM measurement WHERE id = :id", {"id": measurement_id})
+            if found is None:
                 raise NotFoundError(f"no measurement with id {measurement_id}")
-    out = []
     for r in rows:
-        field = r.pop("obs_field_mhz") or r.pop("m_field_mhz", None)
-        r.pop("m_field_mhz", None)
-        r["field_mhz"] = field
+        field = r["field_mhz"]
         r["dnu_ppm"] = r["dnu_hz"] / field if field else None
         r["label"] = f"#{r['measurement_id']}"
-        out.append(r)
-    return out
+    return rows
 
 
 def solvent_range(database: Database, text: str) -> dict[str, Any] | None:
@@ -134,33 +141,35 @@ def solvent_range(database: Database, text: str) -> dict[str, Any] | None:
 
     key = vocab.solvent_key(text)
     with database.read() as conn:
-        for name, formula, aliases, mp_k, bp_k in conn.execute(
-            select(Solvent.name, Solvent.formula, Solvent.aliases, Solvent.mp_k, Solvent.bp_k)
-        ):
-            spellings = (name, formula, *(aliases or "").split("|"))
-            if any(s and vocab.solvent_key(s) == key for s in spellings):
-                return {"name": name, "formula": formula, "mp_k": mp_k, "bp_k": bp_k}
+        rows = conn.rows("SELECT name, formula, aliases, mp_k, bp_k FROM solvent ORDER BY id")
+    for name, formula, aliases, mp_k, bp_k in rows:
+        spellings = (name, formula, *(aliases or "").split("|"))
+        if any(s and vocab.solvent_key(s) == key for s in spellings):
+            return {"name": name, "formula": formula, "mp_k": mp_k, "bp_k": bp_k}
     return None
+
+
+def _sorted_groups(groups: Mapping[str, list[float]]) -> dict[str, list[float]]:
+    """Largest group first, then by name (a stable order: the same data give the same figure)."""
+    kept = {k: v for k, v in groups.items() if v}
+    return dict(sorted(kept.items(), key=lambda kv: (-len(kv[1]), kv[0])))
 
 
 def barriers_by_kind(
     database: Database, *, include_retracted: bool = False
 ) -> dict[str, list[float]]:
     """ΔG‡ (kJ/mol) of every measurement that has one, grouped by process kind."""
-    query = (
-        select(Process.kind, Measurement.dg_kj_mol)
-        .select_from(Measurement)
-        .outerjoin(Process, Process.id == Measurement.process_id)
-        .where(Measurement.dg_kj_mol.is_not(None))
-        .order_by(Process.kind, Measurement.id)
+    sql = (
+        "SELECT p.kind, m.dg_kj_mol FROM measurement m "
+        "LEFT OUTER JOIN process p ON p.id = m.process_id WHERE m.dg_kj_mol IS NOT NULL"
     )
     if not include_retracted:
-        query = query.where(Measurement.status != "retracted")
+        sql += " AND m.status != 'retracted'"
     groups: dict[str, list[float]] = defaultdict(list)
     with database.read() as conn:
-        for kind, dg in conn.execute(query):
-            groups[kind or "(no process kind)"].append(float(dg))
-    return dict(sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])))
+        for kind, dg in conn.rows(sql + " ORDER BY m.id"):
+            groups[kind or NO_KIND].append(float(dg))
+    return _sorted_groups(groups)
 
 
 def barriers_by_motif(
@@ -172,102 +181,109 @@ def barriers_by_motif(
     matches several motifs counts in each of them; one that matches none is in ``(no motif)``.
     """
     try:
-        from registry import search  # written by another part of the project
-    except ImportError:  # structure search is a separate part of the project
+        from registry import search
+    except ImportError:  # structure search needs RDKit
         return None
     matcher = getattr(search, "motif_matches", None)
     if matcher is None:
         return None
-    matches = matcher(database)  # {motif name: [compound ids]}
-    query = select(Measurement.compound_id, Measurement.dg_kj_mol).where(
-        Measurement.dg_kj_mol.is_not(None)
-    )
+    matches: dict[str, list[int]] = matcher(database)  # {motif name: [compound ids]}
+    sql = "SELECT m.compound_id, m.dg_kj_mol FROM measurement m WHERE m.dg_kj_mol IS NOT NULL"
     if not include_retracted:
-        query = query.where(Measurement.status != "retracted")
+        sql += " AND m.status != 'retracted'"
     by_compound: dict[int, list[float]] = defaultdict(list)
     with database.read() as conn:
-        for cid, dg in conn.execute(query):
-            by_compound[cid].append(float(dg))
+        for cid, dg in conn.rows(sql + " ORDER BY m.id"):
+            by_compound[int(cid)].append(float(dg))
     groups = {
-        motif: [dg for cid in ids for dg in by_compound.get(cid, [])]
+        motif: [dg for cid in ids for dg in by_compound.get(int(cid), [])]
         for motif, ids in matches.items()
     }
-    matched = {cid for ids in matches.values() for cid in ids}
+    matched = {int(cid) for ids in matches.values() for cid in ids}
     groups[NO_MOTIF] = [dg for cid, dgs in by_compound.items() if cid not in matched for dg in dgs]
-    groups = {k: v for k, v in groups.items() if v}
-    return dict(sorted(groups.items(), key=lambda kv: (-len(kv[1]), kv[0])))
+    return _sorted_groups(groups)
 
 
-# --- for the HTML report ---------------------------------------------------------------------
+# --- rows of measurements: tables and the HTML report ----------------------------------------
+
+#: columns tables and pages need beyond the listing's
+_DETAIL_COLUMNS = {
+    "dh_err_kj_mol": "m.dh_err_kj_mol",
+    "ds_err_j_mol_k": "m.ds_err_j_mol_k",
+    "dg_text": "m.dg_text",
+    "dh_text": "m.dh_text",
+    "ds_text": "m.ds_text",
+    "sites": "p.sites",
+}
 
 
-def compounds(database: Database, *, include_retracted: bool = False) -> list[dict[str, Any]]:
-    """Every compound that has at least one (non-retracted) measurement, with its structure."""
-    used = select(Measurement.compound_id)
-    if not include_retracted:
-        used = used.where(Measurement.status != "retracted")
-    query = select(Compound.__table__).where(Compound.id.in_(used))
+def measurement_rows(
+    database: Database,
+    filters: Filters | None = None,
+    *,
+    include_retracted: bool = False,
+    ids: Sequence[int] | None = None,
+) -> list[dict[str, Any]]:
+    """Listing rows (:data:`registry.record.fields.LISTING_COLUMNS`) plus ΔH‡/ΔS‡ errors, the
+    texts as reported and the process's sites, ordered by id.
+
+    ``filters`` are those of a listing (:func:`registry.search.filters.make_filters`); without
+    them every measurement (retracted ones only with ``include_retracted``). ``ids`` narrows
+    to those measurements.
+    """
+    columns = {**LISTING_COLUMNS, **_DETAIL_COLUMNS}
+    sql = f"SELECT {', '.join(columns.values())} FROM {LISTING_FROM} WHERE "
     with database.read() as conn:
-        return [dict(r) for r in conn.execute(query.order_by(Compound.id)).mappings()]
+        if filters is not None:
+            from registry.search.filters import conditions
+
+            where = conditions(conn, filters)
+            sql, params = sql + where.sql(), where.params
+        else:
+            sql += "1 = 1" if include_retracted else "m.status != 'retracted'"
+            params = {}
+        if ids is not None:
+            rows = sorted(conn.rows_where_in(sql, "m.id", ids, params), key=lambda r: r[0])
+        else:
+            rows = conn.rows(f"{sql} ORDER BY m.id", params)
+    names = list(columns)
+    return [dict(zip(names, r, strict=True)) for r in rows]
 
 
 def measurements_for_report(
     database: Database, *, include_retracted: bool = False
 ) -> list[dict[str, Any]]:
-    """Measurements with compound, process, coalescence, rate points and findings attached."""
-    from registry import api
-
-    rows = api.list_measurements(database, include_retracted=include_retracted)
+    """Measurement rows with their coalescence observations, rate points and findings attached."""
+    rows = measurement_rows(database, include_retracted=include_retracted)
     ids = [r["id"] for r in rows]
-    extra_cols = (
-        Measurement.id,
-        Measurement.compound_id,
-        Measurement.dh_err_kj_mol,
-        Measurement.ds_err_j_mol_k,
-        Measurement.dg_text,
-        Measurement.dh_text,
-        Measurement.ds_text,
-        Measurement.label,
-        Process.sites,
-    )
     with database.read() as conn:
-        extra = {
-            r[0]: r
-            for r in conn.execute(
-                select(*extra_cols)
-                .outerjoin(Process, Process.id == Measurement.process_id)
-                .where(Measurement.id.in_(ids))
-            )
-        }
-        co = _grouped(conn, CoalescenceObservation, ids, CoalescenceObservation.id)
-        rates = _grouped(conn, RatePoint, ids, RatePoint.t_k)
-        findings = _grouped(conn, ValidationFinding, ids, ValidationFinding.id)
+        co = _by_measurement(conn, "coalescence", ids, "id")
+        rates = _by_measurement(conn, "rate_point", ids, "t_k, id")
+        findings = _by_measurement(conn, "validation_finding", ids, "id")
     for r in rows:
-        e = extra[r["id"]]
-        r.update(
-            compound_id=e[1],
-            dh_err_kj_mol=e[2],
-            ds_err_j_mol_k=e[3],
-            dg_text=e[4],
-            dh_text=e[5],
-            ds_text=e[6],
-            sites=e[8],
-            coalescence=co.get(r["id"], []),
-            rate_points=rates.get(r["id"], []),
-            findings=findings.get(r["id"], []),
-        )
+        r["coalescence"] = co.get(r["id"], [])
+        r["rate_points"] = rates.get(r["id"], [])
+        r["findings"] = findings.get(r["id"], [])
     return rows
 
 
-def _grouped(conn: Any, model: Any, ids: Sequence[int], order: Any) -> dict[int, list[dict]]:
-    out: dict[int, list[dict]] = defaultdict(list)
-    if not ids:
-        return out
-    table = model.__table__
-    for chunk in range(0, len(ids), 500):
-        part = ids[chunk : chunk + 500]
-        for r in conn.execute(
-            select(table).where(table.c.measurement_id.in_(part)).order_by(order)
-        ).mappings():
-            out[r["measurement_id"]].append(dict(r))
+def _by_measurement(
+    conn: Connection, table: str, ids: Sequence[int], order: str
+) -> dict[int, list[dict[str, Any]]]:
+    """Rows of ``table`` (a name from this module, never user text) grouped by measurement id."""
+    out: dict[int, list[dict[str, Any]]] = defaultdict(list)
+    found = conn.records_where_in(f"SELECT * FROM {table} WHERE 1 = 1", "measurement_id", ids)
+    keys = [k.strip() for k in order.split(",")]
+    found.sort(key=lambda r: tuple(r[k] for k in keys))
+    for r in found:
+        out[r["measurement_id"]].append(r)
     return out
+
+
+def compounds(database: Database, *, include_retracted: bool = False) -> list[dict[str, Any]]:
+    """Every compound that has at least one (non-retracted) measurement, with its structure."""
+    used = "SELECT compound_id FROM measurement"
+    if not include_retracted:
+        used += " WHERE status != 'retracted'"
+    with database.read() as conn:
+        return conn.records(f"SELECT * FROM compound WHERE id IN ({used}) ORDER BY id")

@@ -1,28 +1,24 @@
-"""A static, self-contained HTML view of the registry that a group opens from a shared folder.
+"""The static HTML report: a self-contained folder a group opens from a shared drive, offline.
 
 ``index.html`` lists every measurement in a table one can filter and sort; ``compounds/`` has a
-page per compound with its drawn structure, its measurements, what validation found about them
-and an Eyring plot for each measurement with at least two rate points (``plots/``, SVG). All
-CSS and JavaScript is inline; nothing is fetched from a network, so the folder works offline
-and from ``file://``. Every piece of user text goes through :func:`html.escape`.
+page per compound (:mod:`.pages`) with its drawn structure (:mod:`.drawing`), its measurements,
+what validation found about them and an Eyring plot for each measurement with at least two rate
+points (``plots/``, SVG). A ``.fluxledger-report`` marker lets a rebuild replace its own files,
+and only those.
 """
 
 from __future__ import annotations
 
-import math
-import re
 import shutil
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from datetime import UTC, datetime
-from html import escape
 from pathlib import Path
 from typing import Any
 
 from registry.errors import UsageError
-from registry.reports import assets
-from registry.reports.numbers import format_uncertain
-from registry.storage.database import Database, redacted_url
+from registry.reports.pages import escaped, render_compound, render_index
+from registry.storage.database import Database
 
 #: what a report folder is made of; anything else in the folder is left alone
 _OWN = ("index.html", "compounds", "plots")
@@ -47,392 +43,22 @@ class ReportResult:
         return dict(self.__dict__)
 
 
-def _e(value: Any) -> str:
-    """Escaped text for HTML; None shows as nothing."""
-    return "" if value is None else escape(str(value), quote=True)
-
-
-def _num(value: Any, digits: int = 1) -> str:
-    if value is None or (isinstance(value, float) and not math.isfinite(value)):
-        return ""
-    return f"{float(value):.{digits}f}"
-
-
-def _kelvin(value: Any) -> str:
-    """A temperature as written in papers: 298.15, 343.15, 320 (no float noise, no '.0')."""
-    if value is None or (isinstance(value, float) and not math.isfinite(value)):
-        return ""
-    text = format_uncertain(float(value), None, default_decimals=2)
-    return text.rstrip("0").rstrip(".") if "." in text else text
-
-
-def _energy(value: Any, err: Any) -> str:
-    if value is None:
-        return ""
-    return format_uncertain(float(value), err, style="pm", minus="−")
-
-
-def _page(title: str, body: str, *, subtitle: str = "", home: str | None = None) -> str:
-    back = f' · <a href="{_e(home)}">all measurements</a>' if home else ""
-    return f"""<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="utf-8">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<meta name="generator" content="fluxledger">
-<link rel="icon" href="data:,">
-<title>{_e(title)}</title>
-<script>{assets.ERROR_SINK_JS}</script>
-<style>{assets.CSS}</style>
-</head>
-<body>
-<header class="band"><h1>{_e(title)}</h1><div class="sub">{subtitle}{back}</div></header>
-<div id="page-errors" role="alert" hidden></div>
-<main>
-{body}
-</main>
-</body>
-</html>
-"""
-
-
-def _status(status: Any) -> str:
-    s = _e(status or "")
-    return f'<span class="badge {s}">{s}</span>' if s else ""
-
-
-def _compound_href(cid: Any, prefix: str = "compounds/") -> str:
-    return f"{prefix}c{int(cid)}.html"
-
-
-# --- index -----------------------------------------------------------------------------------
-
-_INDEX_COLUMNS: list[tuple[str, str, str]] = [
-    ("id", "ID", "num"),
-    ("compound", "Compound", "text"),
-    ("compound_name", "Name", "text"),
-    ("process", "Process", "text"),
-    ("method", "Method", "text"),
-    ("solvent", "Solvent", "text"),
-    ("dg", "ΔG‡ (kJ/mol)", "num"),
-    ("dg_t_k", "at T (K)", "num"),
-    ("status", "Status", "text"),
-    ("findings", "Findings", "num"),
-]
-
-
-def _index_row(m: Mapping[str, Any]) -> str:
-    findings = m.get("findings") or []
-    open_findings = [f for f in findings if not f.get("accepted_by")]
-    search = " ".join(
-        str(m.get(k) or "")
-        for k in (
-            "id",
-            "label",
-            "compound",
-            "compound_name",
-            "smiles",
-            "process",
-            "nucleus",
-            "method",
-            "solvent",
-            "status",
-            "reference",
-        )
-    ).lower()
-    compound_text = m.get("compound") or m.get("compound_name") or f"compound {m['compound_id']}"
-    cells = [
-        f'<td class="num" data-v="{int(m["id"])}">{int(m["id"])}</td>',
-        f'<td><a href="{_compound_href(m["compound_id"])}">{_e(compound_text)}</a></td>',
-        f"<td>{_e(m.get('compound_name'))}</td>",
-        f"<td>{_e(m.get('process'))}</td>",
-        f"<td>{_e(m.get('method'))}</td>",
-        f"<td>{_e(m.get('solvent'))}</td>",
-        f'<td class="num" data-v="{_num(m.get("dg_kj_mol"), 4)}">'
-        f"{_e(_energy(m.get('dg_kj_mol'), m.get('dg_err_kj_mol')))}</td>",
-        f'<td class="num" data-v="{_num(m.get("dg_t_k"), 3)}">{_kelvin(m.get("dg_t_k"))}</td>',
-        f"<td>{_status(m.get('status'))}</td>",
-        f'<td class="num" data-v="{len(open_findings)}">'
-        + (f"{len(open_findings)}" if open_findings else "")
-        + (
-            f' <span class="muted small">(+{len(findings) - len(open_findings)} accepted)</span>'
-            if len(findings) > len(open_findings)
-            else ""
-        )
-        + "</td>",
-    ]
-    return f'<tr data-search="{_e(search)}">' + "".join(cells) + "</tr>"
-
-
-def render_index(
-    measurements: Sequence[Mapping[str, Any]],
-    *,
-    title: str,
-    subtitle: str,
-    counts: Mapping[str, int],
-    overview: str | None,
-) -> str:
-    """The index page: counts, the filter box, the sortable table, the overview plot."""
-    head = "".join(
-        f'<th scope="col" class="{"num" if kind == "num" else ""}" data-type="{kind}">'
-        f'<button type="button">{_e(label)}</button></th>'
-        for _key, label, kind in _INDEX_COLUMNS
-    )
-    rows = "\n".join(_index_row(m) for m in measurements)
-    chips = "".join(f"<li><b>{n}</b> {_e(label)}</li>" for label, n in counts.items())
-    plot = (
-        f'<section class="card"><h2>Barriers by process kind</h2><figure class="plot">'
-        f'<img src="{_e(overview)}" alt="ΔG‡ of every measurement grouped by process kind">'
-        f"</figure></section>"
-        if overview
-        else ""
-    )
-    body = f"""<ul class="chips">{chips}</ul>
-<div class="tools">
-  <label for="filter">Filter</label>
-  <input id="filter" type="search" autocomplete="off" spellcheck="false"
-    placeholder="compound, process, method, solvent, status …">
-  <span id="shown-count" class="count" aria-live="polite"></span>
-</div>
-<table id="measurements" class="grid">
-<thead><tr>{head}</tr></thead>
-<tbody>
-{rows}
-</tbody>
-</table>
-<p class="muted small">Click a column header to sort; click again to reverse. Every word typed in
-the filter must appear somewhere in a row (compound, name, SMILES, process, method, solvent,
-status, reference).</p>
-{plot}
-<script>{assets.TABLE_JS}</script>"""
-    return _page(title, body, subtitle=subtitle)
-
-
-# --- compound pages --------------------------------------------------------------------------
-
-
-def _rule_explanation(rule_id: str) -> str | None:
-    """What a validation rule checks: its title and docstring from :mod:`registry.validation`."""
-    try:
-        from registry.validation import rule_by_id
-    except ImportError:  # the validation package is optional for the report
-        return None
-    rule = rule_by_id(rule_id)
-    if rule is None:
-        return None
-    title = str(getattr(rule, "title", "") or "").strip()
-    title = title[:1].upper() + title[1:]
-    doc = _plain_text((type(rule).__doc__ or "").strip().split("\n\n")[0])
-    if title and doc:
-        return f"{title}. {doc}"
-    return title or doc or None
-
-
-def _plain_text(doc: str) -> str:
-    """A docstring paragraph for readers: reST roles and literals become plain words."""
-    text = re.sub(r":[a-z]+:`~?([^`]+)`", r"\1", doc)
-    text = text.replace("``", "")
-    return " ".join(text.split())
-
-
-def _finding_item(f: Mapping[str, Any]) -> str:
-    severity = _e(f.get("severity") or "info")
-    parts = [
-        f'<span class="badge {severity}">{severity}</span> '
-        f"<code>{_e(f.get('rule_id'))}</code> {_e(f.get('message'))}"
-    ]
-    if f.get("reported") is not None or f.get("recomputed") is not None:
-        unit = _e(f.get("unit") or "")
-        numbers = []
-        for key, label in (
-            ("reported", "reported"),
-            ("recomputed", "recomputed"),
-            ("difference", "difference"),
-        ):
-            if f.get(key) is not None:
-                numbers.append(f"{label} {_num(f[key], 2)} {unit}".strip())
-        parts.append(f'<div class="small">{"; ".join(numbers)}</div>')
-    if f.get("likely_cause"):
-        parts.append(f'<div class="small">Likely cause: {_e(f["likely_cause"])}</div>')
-    explanation = _rule_explanation(str(f.get("rule_id") or ""))
-    if explanation:
-        parts.append(f'<div class="small muted">What this rule checks: {_e(explanation)}</div>')
-    if f.get("accepted_by"):
-        parts.append(
-            f'<div class="small muted">Accepted by {_e(f["accepted_by"])}: '
-            f"{_e(f.get('accept_reason'))}</div>"
-        )
-    return f'<li class="{severity}">' + "".join(parts) + "</li>"
-
-
-def _values_table(m: Mapping[str, Any]) -> str:
-    rows = []
-
-    def add(label: str, value: str, reported: Any = None) -> None:
-        if value:
-            rep = (
-                f' <span class="muted small">(reported: {_e(reported)})</span>' if reported else ""
-            )
-            rows.append(f"<tr><th scope='row'>{label}</th><td>{_e(value)}{rep}</td></tr>")
-
-    if m.get("dg_kj_mol") is not None:
-        at = f" at {_kelvin(m.get('dg_t_k'))} K" if m.get("dg_t_k") is not None else ""
-        add(
-            "ΔG‡",
-            _energy(m["dg_kj_mol"], m.get("dg_err_kj_mol")) + " kJ/mol" + at,
-            m.get("dg_text"),
-        )
-    if m.get("dh_kj_mol") is not None:
-        add("ΔH‡", _energy(m["dh_kj_mol"], m.get("dh_err_kj_mol")) + " kJ/mol", m.get("dh_text"))
-    if m.get("ds_j_mol_k") is not None:
-        add(
-            "ΔS‡",
-            _energy(m["ds_j_mol_k"], m.get("ds_err_j_mol_k")) + " J/(mol·K)",
-            m.get("ds_text"),
-        )
-    if m.get("field_mhz") is not None:
-        add("Spectrometer", f"{_num(m['field_mhz'], 0)} MHz")
-    for co in m.get("coalescence") or []:
-        extra = f", J {_num(co.get('j_hz'))} Hz" if co.get("j_hz") else ""
-        pops = f", populations {co['population_text']}" if co.get("population_text") else ""
-        add(
-            "Coalescence",
-            f"Tc {_kelvin(co['tc_k'])} K, Δν {_num(co['dnu_hz'], 2)} Hz{extra}{pops}",
-            f"{co.get('tc_text')}; {co.get('dnu_text')}",
-        )
-    if m.get("reference"):
-        add("Reference", str(m["reference"]))
-    if not rows:
-        return '<p class="muted small">No values stored.</p>'
-    return '<table class="grid small">' + "".join(rows) + "</table>"
-
-
-def _rates_table(points: Sequence[Mapping[str, Any]]) -> str:
-    if not points:
-        return ""
-
-    def row(p: Mapping[str, Any]) -> str:
-        err = p.get("k_err_per_s")
-        return (
-            f"<tr><td class='num'>{_num(p['t_k'], 2)}</td><td class='num'>{p['k_per_s']:.4g}</td>"
-            f"<td class='num'>{'' if err is None else format(err, '.2g')}</td>"
-            f"<td class='muted'>{_e(p.get('t_text'))}; {_e(p.get('k_text'))}</td></tr>"
-        )
-
-    body = "".join(row(p) for p in points)
-    return (
-        "<details><summary>Rate points</summary>"
-        '<table class="grid small"><thead><tr><th class="num">T (K)</th><th class="num">k (s⁻¹)'
-        '</th><th class="num">σk (s⁻¹)</th><th>as reported</th></tr></thead>'
-        f"<tbody>{body}</tbody></table></details>"
-    )
-
-
-def _measurement_card(m: Mapping[str, Any], plot: str | None, plot_note: str | None) -> str:
-    bits = [
-        b
-        for b in (
-            m.get("process"),
-            m.get("sites"),
-            m.get("nucleus"),
-            m.get("method"),
-            m.get("solvent"),
-        )
-        if b
-    ]
-    label = f" · {_e(m['label'])}" if m.get("label") else ""
-    findings = m.get("findings") or []
-    findings_html = (
-        '<h3>Validation findings</h3><ul class="findings">'
-        + "".join(_finding_item(f) for f in findings)
-        + "</ul>"
-        if findings
-        else '<p class="muted small">No validation findings.</p>'
-    )
-    plot_html = ""
-    if plot:
-        plot_html = (
-            f'<figure class="plot"><img src="{_e(plot)}" alt="Eyring plot of measurement '
-            f'{int(m["id"])}"><figcaption>Eyring plot of the stored rate points: weighted fit, '
-            f"95 % confidence band of the line, ± one standard error in the box."
-            f"</figcaption></figure>"
-        )
-    elif plot_note:
-        plot_html = f'<p class="muted small">{_e(plot_note)}</p>'
-    return f"""<section class="card" id="m{int(m["id"])}">
-<h2>Measurement {int(m["id"])}{label} {_status(m.get("status"))}</h2>
-<p class="muted small">{" · ".join(_e(b) for b in bits)}</p>
-{_values_table(m)}
-{_rates_table(m.get("rate_points") or [])}
-{findings_html}
-{plot_html}
-</section>"""
-
-
-def render_compound(
-    compound: Mapping[str, Any],
-    measurements: Sequence[Mapping[str, Any]],
-    *,
-    structure: str | None,
-    plots: Mapping[int, str],
-    plot_notes: Mapping[int, str],
-    subtitle: str,
-) -> str:
-    """One compound: structure (or a placeholder saying why not), identity, measurements."""
-    name = compound.get("label") or compound.get("name") or f"compound {compound['id']}"
-    if structure:
-        figure = structure
-    elif not compound.get("structure_ok", True):
-        figure = (
-            '<div class="structure-missing">Structure not drawn: it is stored unsanitized'
-            f" ({_e(compound.get('structure_problem') or 'RDKit could not sanitize it')}).<br>"
-            f"SMILES as entered: <code>{_e(compound.get('smiles_input'))}</code></div>"
-        )
-    else:
-        figure = '<div class="structure-missing">No structure stored for this compound.</div>'
-    facts = [
-        ("Label", compound.get("label")),
-        ("Name", compound.get("name")),
-        ("SMILES", compound.get("smiles_canonical") or compound.get("smiles_input")),
-        ("InChIKey", compound.get("inchikey")),
-        ("Formula", compound.get("formula")),
-        ("Charge", compound.get("net_charge") if compound.get("net_charge") else None),
-        ("Notes", compound.get("notes")),
-    ]
-    dl = "".join(
-        f"<dt>{label}</dt><dd>{'<code>' if label in ('SMILES', 'InChIKey') else ''}{_e(v)}"
-        f"{'</code>' if label in ('SMILES', 'InChIKey') else ''}</dd>"
-        for label, v in facts
-        if v not in (None, "")
-    )
-    cards = "\n".join(
-        _measurement_card(m, plots.get(int(m["id"])), plot_notes.get(int(m["id"])))
-        for m in measurements
-    )
-    body = f"""<div class="compound-head">
-<figure class="structure" id="structure" aria-label="structure of {_e(name)}">{figure}</figure>
-<section><dl class="facts">{dl}</dl>
-<p class="small muted">{len(measurements)} measurement(s) on this page.</p></section>
-</div>
-{cards}"""
-    return _page(str(name), body, subtitle=subtitle, home="../index.html")
-
-
-# --- the whole folder ------------------------------------------------------------------------
-
-
-def _prepare(directory: Path) -> None:
-    """Create the folder; replace our own pages and plots, never files someone else put there."""
+def _check_folder(directory: Path) -> None:
+    """Refuse a file, or a folder holding pages or plots someone else put there."""
     if directory.exists() and not directory.is_dir():
         raise UsageError(f"{directory} exists and is not a folder")
-    directory.mkdir(parents=True, exist_ok=True)
-    ours = (directory / MARKER).exists()
     clash = [name for name in _OWN if (directory / name).exists()]
-    if clash and not ours:
+    if clash and not (directory / MARKER).exists():
         raise UsageError(
             f"{directory} already holds {', '.join(clash)} not written by 'fluxledger report';"
             " choose an empty or new folder"
         )
+
+
+def _prepare(directory: Path) -> None:
+    """Create the folder; replace our own pages and plots, never files someone else put there."""
+    _check_folder(directory)
+    directory.mkdir(parents=True, exist_ok=True)
     (directory / MARKER).write_text(
         "This folder is written by 'fluxledger report'; index.html, compounds/ and plots/ are"
         " replaced on every run.\n",
@@ -448,24 +74,44 @@ def _prepare(directory: Path) -> None:
 def _eyring_plot(m: Mapping[str, Any], out: Path) -> tuple[str | None, str | None]:
     """Draw the Eyring plot of one measurement; (file name, None) or (None, why not)."""
     from registry.kinetics import KineticsInputError, fit_eyring
-    from registry.reports.plots import eyring_figure, save_figure
+    from registry.reports.canvas import save_figure
+    from registry.reports.gather import series_from_points
+    from registry.reports.plots import eyring_figure
 
     points = m.get("rate_points") or []
     if len(points) < 2:
         return None, None
-    t = [p["t_k"] for p in points]
-    k = [p["k_per_s"] for p in points]
-    errs = [p.get("k_err_per_s") for p in points]
-    k_err = errs if all(e and e > 0 for e in errs) else None
+    title = f"measurement {int(m['id'])}: {m.get('compound') or m.get('compound_name') or ''}"
+    series = series_from_points(
+        [p["t_k"] for p in points],
+        [p["k_per_s"] for p in points],
+        [p.get("k_err_per_s") for p in points],
+        title.strip(),
+    )
     try:
-        fit = fit_eyring(t, k, k_err)
+        fit = fit_eyring(series.t_k, series.k_per_s, series.k_err_per_s)
     except KineticsInputError as exc:
         return None, f"No Eyring plot: {exc}"
-    title = f"measurement {int(m['id'])}: {m.get('compound') or m.get('compound_name') or ''}"
-    fig, _ = eyring_figure(fit, title=title.strip(), k_err_per_s=k_err)
+    fig, _ = eyring_figure(fit, title=series.title, k_err_per_s=series.k_err_per_s)
     name = f"eyring-m{int(m['id'])}.svg"
     save_figure(fig, out / name)
     return name, None
+
+
+def _eyring_plots(
+    measurements: Sequence[Mapping[str, Any]], out: Path, result: ReportResult
+) -> tuple[dict[int, str], dict[int, str]]:
+    """Draw every measurement's Eyring plot; (files by id, why-not notes by id)."""
+    files: dict[int, str] = {}
+    notes: dict[int, str] = {}
+    for m in measurements:
+        name, note = _eyring_plot(m, out)
+        if name:
+            files[int(m["id"])] = f"../plots/{name}"
+            result.eyring_plots += 1
+        elif note:
+            notes[int(m["id"])] = note
+    return files, notes
 
 
 def build_report(
@@ -476,31 +122,30 @@ def build_report(
     include_retracted: bool = False,
     plots: bool = True,
 ) -> ReportResult:
-    """Write the report folder (index, a page per compound, plots) and say what went in."""
+    """Write the report folder (index, a page per compound, plots) and say what went in.
+
+    The folder is checked before anything is read and the registry is read before anything is
+    written, so a refused folder or an unreadable registry leaves an existing report intact.
+    """
     from registry.reports import gather
     from registry.reports.drawing import structure_svg
 
     out = Path(directory)
-    _prepare(out)
+    _check_folder(out)
     measurements = gather.measurements_for_report(database, include_retracted=include_retracted)
     compounds = gather.compounds(database, include_retracted=include_retracted)
+    groups = gather.barriers_by_kind(database, include_retracted=include_retracted)
+    _prepare(out)
     when = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
-    subtitle = _e(f"{redacted_url(database)} · written {when} by fluxledger")
+    subtitle = escaped(f"{database.name} · written {when} by fluxledger")
     result = ReportResult(directory=str(out), index=str(out / "index.html"))
     result.measurements = len(measurements)
     by_compound: dict[int, list[Mapping[str, Any]]] = {}
     for m in measurements:
         by_compound.setdefault(int(m["compound_id"]), []).append(m)
-    plot_files: dict[int, str] = {}
-    plot_notes: dict[int, str] = {}
-    if plots:
-        for m in measurements:
-            name, note = _eyring_plot(m, out / "plots")
-            if name:
-                plot_files[int(m["id"])] = f"../plots/{name}"
-                result.eyring_plots += 1
-            elif note:
-                plot_notes[int(m["id"])] = note
+    plot_files, plot_notes = (
+        _eyring_plots(measurements, out / "plots", result) if plots else ({}, {})
+    )
     for c in compounds:
         svg = structure_svg(c)
         if svg:
@@ -518,18 +163,17 @@ def build_report(
         (out / "compounds" / f"c{int(c['id'])}.html").write_text(page, encoding="utf-8")
         result.compound_pages += 1
     overview = None
-    groups = gather.barriers_by_kind(database, include_retracted=include_retracted)
     if plots and groups:
-        from registry.reports.plots import overview_figure, save_figure
+        from registry.reports.canvas import save_figure
+        from registry.reports.plots import overview_figure
 
         save_figure(overview_figure(groups), out / "plots" / "overview.svg")
         overview = "plots/overview.svg"
-    findings = sum(len(m.get("findings") or []) for m in measurements)
     counts = {
         "measurements": len(measurements),
         "compounds": len(compounds),
         "with rate points": sum(1 for m in measurements if len(m.get("rate_points") or []) >= 2),
-        "validation findings": findings,
+        "validation findings": sum(len(m.get("findings") or []) for m in measurements),
     }
     index = render_index(
         measurements, title=title, subtitle=subtitle, counts=counts, overview=overview

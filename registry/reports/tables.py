@@ -6,8 +6,10 @@ distinct (method, solvent) pair becomes a lettered footnote on the ΔG‡ value,
 lay out such tables; references become numbered notes. Columns with no value in any row are
 left out. All user text is escaped for the target format.
 
-Rows are mappings with the keys of :func:`registry.api.list_measurements` plus optional
-``dh_err_kj_mol`` and ``ds_err_j_mol_k``; :func:`table_rows` fetches exactly that.
+Rows are mappings with the keys of a measurement listing
+(:data:`registry.record.fields.LISTING_COLUMNS`) plus optional ``dh_err_kj_mol`` and
+``ds_err_j_mol_k``; :func:`table_rows` fetches exactly that. Units are converted by the one unit
+registry (:mod:`registry.record.units`, pint), loaded only when a table is rendered.
 """
 
 from __future__ import annotations
@@ -17,11 +19,13 @@ import re
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from registry.errors import UsageError
-from registry.record.units import convert, unit_of
 from registry.reports.numbers import format_uncertain
+
+if TYPE_CHECKING:
+    from registry.storage.database import Database
 
 #: energy units a table header knows how to write; others are written as given
 _ENERGY_LABEL = {
@@ -48,8 +52,8 @@ class TableUnits:
     entropy_label: tuple[str, str]
 
 
-def energy_unit_name(text: str, field: str = "--energy-unit") -> str:
-    """kJ/mol or kcal/mol, however spelled (the units barrier tables are written in)."""
+def energy_unit_name(text: str, field: str = "energy_unit") -> str:
+    """kJ/mol or kcal/mol, however spelled (the units barrier tables and figures are written in)."""
     key = text.replace(" ", "").replace("⁻¹", "-1").lower()
     if key in ("kj/mol", "kjmol-1", "kj", "kj/mole"):
         return "kJ/mol"
@@ -60,11 +64,13 @@ def energy_unit_name(text: str, field: str = "--energy-unit") -> str:
 
 def table_units(energy_unit: str = "kJ/mol", entropy_unit: str | None = None) -> TableUnits:
     """Normalise the requested units; ΔS‡ follows the energy unit (cal with kcal) unless given."""
+    from registry.record.units import unit_of
+
     energy = _canonical_energy(energy_unit)
     if entropy_unit is None:
         entropy = "cal/(mol*K)" if energy == "kcal/mol" else "J/(mol*K)"
     else:
-        unit_of(entropy_unit, "entropy", field="--entropy-unit")
+        unit_of(entropy_unit, "entropy", field="entropy_unit")
         entropy = entropy_unit
     e_label = _ENERGY_LABEL.get(energy, (energy, _latex_escape(energy)))
     s_label = _ENTROPY_LABEL.get(entropy, (entropy, _latex_escape(entropy)))
@@ -72,7 +78,9 @@ def table_units(energy_unit: str = "kJ/mol", entropy_unit: str | None = None) ->
 
 
 def _canonical_energy(text: str) -> str:
-    unit_of(text, "energy", field="--energy-unit")
+    from registry.record.units import unit_of
+
+    unit_of(text, "energy", field="energy_unit")
     key = text.replace(" ", "").lower()
     if key in ("kj/mol", "kjmol-1", "kjmol^-1", "kj/mole"):
         return "kJ/mol"
@@ -81,29 +89,35 @@ def _canonical_energy(text: str) -> str:
     return text
 
 
-def table_rows(database: Any, **filters: Any) -> list[dict[str, Any]]:
-    """The rows a table needs: :func:`registry.api.list_measurements` plus ΔH‡/ΔS‡ errors."""
-    from sqlalchemy import select
+def table_rows(
+    database: Database,
+    *,
+    compound: str | None = None,
+    method: str | None = None,
+    solvent: str | None = None,
+    process: str | None = None,
+    status: str | None = None,
+    barrier: str | None = None,
+    barrier_min: str | float | None = None,
+    barrier_max: str | float | None = None,
+    include_retracted: bool = False,
+    ids: Sequence[int] | None = None,
+    limit: int | None = None,
+) -> list[dict[str, Any]]:
+    """The rows a table needs: the measurements a listing with these filters selects (same
+    filters, same meaning as ``registry.api.list_measurements``), with ΔH‡/ΔS‡ errors."""
+    from registry.reports.gather import measurement_rows
+    from registry.search.filters import make_filters, with_bounds
 
-    from registry import api
-    from registry.storage.models import Measurement
-
-    rows = api.list_measurements(database, **filters)
-    if not rows:
-        return rows
-    ids = [r["id"] for r in rows]
-    with database.read() as conn:
-        extra = {
-            mid: (dh_err, ds_err)
-            for mid, dh_err, ds_err in conn.execute(
-                select(Measurement.id, Measurement.dh_err_kj_mol, Measurement.ds_err_j_mol_k).where(
-                    Measurement.id.in_(ids)
-                )
-            )
-        }
-    for r in rows:
-        r["dh_err_kj_mol"], r["ds_err_j_mol_k"] = extra.get(r["id"], (None, None))
-    return rows
+    filters = with_bounds(
+        make_filters(
+            barrier=barrier, solvent=solvent, method=method, process=process, status=status,
+            compound=compound, include_retracted=include_retracted,
+        ),
+        barrier_min, barrier_max,
+    )  # fmt: skip
+    rows = measurement_rows(database, filters, ids=ids)
+    return rows[:limit] if limit else rows
 
 
 # --- shared layout ---------------------------------------------------------------------------
@@ -150,6 +164,8 @@ def _temperature_text(t_k: Any) -> str:
 def _layout(
     rows: Sequence[Mapping[str, Any]], units: TableUnits, style: str, minus: str, pm: str
 ) -> _Layout:
+    from registry.record.units import convert
+
     conditions: dict[tuple[str | None, str | None], str] = {}
     references: dict[str, int] = {}
     out: list[dict[str, _Cell]] = []
@@ -229,8 +245,14 @@ def _check_rows(rows: Iterable[Mapping[str, Any]]) -> list[Mapping[str, Any]]:
 _MD_SPECIAL = re.compile(r"([\\`*_\[\]<>|#])")
 
 
+def _one_line(text: str) -> str:
+    """User text on one line: every character Python counts as a line break (CR, form feed,
+    U+2028 …) becomes a space, so a label cannot end a table row early."""
+    return " ".join(text.splitlines()) if text else text
+
+
 def _md_escape(text: str) -> str:
-    return _MD_SPECIAL.sub(r"\\\1", text.replace("\n", " "))
+    return _MD_SPECIAL.sub(r"\\\1", _one_line(text))
 
 
 def _md_marker(marker: str) -> str:
@@ -307,7 +329,7 @@ _LATEX_TEXT = {"‡": r"\ddag{}", "°": r"\textdegree{}", "±": r"$\pm$", "−":
 
 
 def _latex_escape(text: str) -> str:
-    out = "".join(_LATEX_SPECIAL.get(ch, ch) for ch in text.replace("\n", " "))
+    out = "".join(_LATEX_SPECIAL.get(ch, ch) for ch in _one_line(text))
     for ch, repl in _LATEX_TEXT.items():
         out = out.replace(ch, repl)
     return out
@@ -397,7 +419,7 @@ TABLE_FORMATS = {"latex": "latex", "tex": "latex", "markdown": "markdown", "md":
 
 
 def export_table(
-    database: Any,
+    database: Database,
     output: str | Path,
     fmt: str | None = None,
     *,
@@ -409,7 +431,10 @@ def export_table(
     """Write the measurements ``filters`` select as a LaTeX or Markdown table file.
 
     ``fmt`` is latex/tex or markdown/md, or None to take it from the suffix (.tex, .md);
-    ``filters`` are those of :func:`registry.api.list_measurements`.
+    ``filters`` are the keywords of :func:`table_rows` (those of a measurement listing:
+    compound, method, solvent, process, status, barrier, barrier_min, barrier_max,
+    include_retracted, ids, limit). Everything is checked before the file is written, and the
+    text is written in one go, so a bad call leaves no half-written table behind.
     """
     path = Path(output)
     energy_unit = energy_unit_name(energy_unit)
@@ -417,9 +442,9 @@ def export_table(
     if name is None:
         raise UsageError(f"{path}: a table is written as latex (.tex) or markdown (.md)")
     if uncertainty not in ("paren", "pm"):
-        raise UsageError(f"--uncertainty {uncertainty!r}: use paren (62.3(4)) or pm (62.3 ± 0.4)")
+        raise UsageError(f"uncertainty {uncertainty!r}: use paren (62.3(4)) or pm (62.3 ± 0.4)")
     if not path.parent.exists():
-        raise UsageError(f"folder {path.parent} does not exist")
+        raise UsageError(f"{path}: the folder {path.parent} does not exist")
     rows = table_rows(database, **filters)
     if name == "latex":
         text = render_latex(rows, energy_unit=energy_unit, uncertainty=uncertainty, caption=caption)

@@ -1,0 +1,438 @@
+"""Figures and the HTML report: one call per ``fluxledger plot …`` / ``report`` command.
+
+Each call checks its inputs first (output suffix and folder, units, which source of data), then
+reads what it needs, fits with :mod:`registry.kinetics`, draws with :mod:`registry.reports`
+(matplotlib's object API on the Agg canvas, never pyplot), writes the file and returns a record
+of what was drawn: the path, the fitted numbers in canonical units, notes and cautions.
+Quantities are given as floats in canonical units (K, kJ/mol, Hz, MHz, Δν in ppm) or as texts
+in any usual notation (``'15.2 ± 0.2 kcal/mol'``, ``'25 °C'``); only texts need the unit
+registry, so a plot of stored data in kJ/mol never builds it.
+
+Nothing here writes to the registry. Tables for papers are written by
+:func:`registry.reports.tables.export_table` (through ``export_measurements``).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from registry.errors import UsageError
+
+if TYPE_CHECKING:
+    from registry.reports.gather import RateSeries
+    from registry.reports.plots import EyringSummary
+    from registry.reports.site import ReportResult
+    from registry.storage.database import Database
+
+#: a rate point given by a caller: ``"T, k"`` / ``"T; k; σk"`` text, or (T/K, k/s⁻¹[, σk/s⁻¹])
+RatePointInput = str | Sequence[float | None]
+
+
+def _as_dict(record: Any) -> dict[str, Any]:
+    return {k: getattr(record, k) for k in record.__dataclass_fields__}
+
+
+# ---------------------------------------------------------------- Eyring
+
+
+@dataclass(frozen=True)
+class EyringPlot:
+    """What :func:`plot_eyring` drew: the file, where the points came from, the fit's numbers
+    (:class:`registry.reports.plots.EyringSummary`, canonical units) and the lines written on
+    the figure (in ``energy_unit``)."""
+
+    file: str
+    source: str
+    title: str
+    energy_unit: str
+    summary: EyringSummary
+    lines: tuple[str, ...]
+
+    @property
+    def notes(self) -> tuple[str, ...]:
+        """The fit's warnings (few points, narrow range, extrapolated ΔG‡ …)."""
+        return self.summary.warnings
+
+    def as_dict(self) -> dict[str, Any]:
+        head = {k: getattr(self, k) for k in ("file", "source", "title", "energy_unit")}
+        return {**head, **self.summary.as_dict(), "lines": list(self.lines)}
+
+
+def plot_eyring(
+    database: Database | None = None,
+    *,
+    measurement_id: int | None = None,
+    points: Sequence[RatePointInput] | None = None,
+    file: str | Path | None = None,
+    sheet: str | None = None,
+    out: str | Path,
+    t_ref: float | str | None = None,
+    title: str | None = None,
+    energy_unit: str = "kJ/mol",
+) -> EyringPlot:
+    """ln(k/T) against 1/T with the weighted fit, its 95 % band, ΔH‡, ΔS‡ and ΔG‡ (at the mean
+    measured T and at ``t_ref``, default 25 °C), written to ``out`` (.png or .svg).
+
+    The rate points come from exactly one of: a stored measurement (``measurement_id``, needs
+    ``database``), ``points`` (texts ``'T, k'`` / ``'T; k; σk'`` or tuples in K and s⁻¹), or a
+    table ``file`` (CSV/TSV/spreadsheet with T and k columns, optional σk; ``sheet`` for a
+    spreadsheet). σk weights the fit only when every point has one.
+    """
+    from registry.reports import canvas, plots
+    from registry.reports.tables import energy_unit_name
+
+    unit = energy_unit_name(energy_unit)
+    canvas.check_output(out)
+    series, source = _rate_series(database, measurement_id, points, file, sheet)
+    from registry.kinetics import fit_eyring
+    from registry.kinetics.constants import STANDARD_TEMPERATURE_K
+
+    t_ref_k = STANDARD_TEMPERATURE_K
+    if t_ref is not None:
+        t_ref_k = _number(t_ref, "temperature", "t_ref", default_unit="K")[0]
+
+    fit = fit_eyring(series.t_k, series.k_per_s, series.k_err_per_s, t_ref_k=t_ref_k)
+    shown = series.title if title is None else title
+    fig, summary = plots.eyring_figure(
+        fit, title=shown, energy_unit=unit, t_ref_k=t_ref_k, k_err_per_s=series.k_err_per_s
+    )
+    written = canvas.save_figure(fig, out)
+    return EyringPlot(
+        str(written), source, shown, unit, summary, tuple(plots.eyring_text(summary, unit))
+    )
+
+
+def _rate_series(
+    database: Database | None,
+    measurement_id: int | None,
+    points: Sequence[RatePointInput] | None,
+    file: str | Path | None,
+    sheet: str | None,
+) -> tuple[RateSeries, str]:
+    """The rate points from the one source given, and how to name that source."""
+    from registry.reports import gather
+
+    given = [n for n, v in (("measurement_id", measurement_id), ("points", points),
+                            ("file", file)) if v is not None]  # fmt: skip
+    if len(given) != 1:
+        raise UsageError(
+            "give one source of rate points: measurement_id, points or file"
+            + (f" (got {', '.join(given)})" if given else "")
+        )
+    if sheet is not None and file is None:
+        raise UsageError("sheet: applies to a spreadsheet file only")
+    if measurement_id is not None:
+        if database is None:
+            raise UsageError(f"measurement_id {measurement_id}: needs an open registry (database)")
+        return gather.rate_series(database, int(measurement_id)), f"measurement {measurement_id}"
+    if file is not None:
+        from registry.kinetics.rate_table import read_rate_table
+
+        table = read_rate_table(file, sheet=sheet)
+        series = gather.RateSeries(table.t_k, table.k_per_s, table.k_err_per_s, Path(file).name)
+        return series, str(file)
+    t, k, k_err = _read_points(points or [])
+    return gather.series_from_points(t, k, k_err, f"{len(t)} rate points"), "points"
+
+
+def _read_points(
+    points: Sequence[RatePointInput],
+) -> tuple[list[float], list[float], list[float | None]]:
+    """Texts through the rate-point reader (units), tuples as K and s⁻¹; σk for all or none."""
+    t: list[float] = []
+    k: list[float] = []
+    errs: list[float | None] = []
+    for i, point in enumerate(points, start=1):
+        if isinstance(point, str):
+            from registry.kinetics.rate_table import parse_point
+
+            ti, ki, ei = parse_point(point, field=f"points[{i}]")
+        else:
+            values = list(point)
+            if len(values) not in (2, 3):
+                raise UsageError(f"points[{i}] {point!r}: give (T in K, k in s⁻¹) or (T, k, σk)")
+            ti, ki = float(values[0]), float(values[1])  # type: ignore[arg-type]
+            ei = float(values[2]) if len(values) == 3 and values[2] is not None else None
+        t.append(ti)
+        k.append(ki)
+        errs.append(ei)
+    if len(t) < 2:
+        raise UsageError(f"points: {len(t)} rate point(s); an Eyring plot needs at least 2")
+    if any(e is None for e in errs) and not all(e is None for e in errs):
+        raise UsageError("points: σk is given for some points but not all; give all or none")
+    return t, k, errs
+
+
+def _number(
+    value: float | str, quantity: str, name: str, *, default_unit: str | None = None
+) -> tuple[float, float | None]:
+    """A float (canonical unit) as is; a text read by the unit registry. (value, error)."""
+    if isinstance(value, bool):
+        raise UsageError(f"{name} {value!r}: give a number or a text with a unit")
+    if isinstance(value, (int, float)):
+        return float(value), None
+    if not isinstance(value, str):
+        raise UsageError(f"{name} {value!r}: give a number or a text with a unit")
+    from registry.record.units import parse_value
+
+    parsed = parse_value(value, quantity, field=name, default_unit=default_unit)
+    return parsed.value, parsed.error
+
+
+# ---------------------------------------------------------------- coalescence
+
+
+@dataclass(frozen=True)
+class CoalescencePlot:
+    """What :func:`plot_coalescence` drew (K, kJ/mol, Hz, MHz; Δν in ppm). ``cautions`` are the
+    usual safety lines for the predicted temperatures (boiling/melting point, heat, cold)."""
+
+    file: str
+    dg_kj_mol: float
+    dg_err_kj_mol: float | None
+    dnu_ppm: float
+    j_hz: float
+    field_range_mhz: tuple[float, float]
+    tc_range_k: tuple[float, float]
+    predicted: tuple[dict[str, float], ...]
+    observed: tuple[dict[str, Any], ...]
+    solvent: dict[str, Any] | None
+    notes: tuple[str, ...] = ()
+    cautions: tuple[str, ...] = ()
+
+    def as_dict(self) -> dict[str, Any]:
+        return _as_dict(self)
+
+
+def plot_coalescence(
+    database: Database | None = None,
+    *,
+    out: str | Path,
+    barrier: float | str | None = None,
+    dnu: float | str | None = None,
+    dnu_field: float | str | None = None,
+    j: float | str | None = None,
+    measurement_id: int | None = None,
+    compound: str | None = None,
+    solvent: str | None = None,
+    min_field: float | str = 60.0,
+    max_field: float | str = 1000.0,
+    title: str | None = None,
+    energy_unit: str = "kJ/mol",
+) -> CoalescencePlot:
+    """Predicted coalescence temperature against spectrometer field (Gutowsky–Holm k_c with
+    Eyring), the observed Tc of a measurement or of compounds, and the solvent's liquid range.
+
+    ``barrier`` (ΔG‡, kJ/mol or a text), ``dnu`` (Δν in ppm, or a text; Hz needs ``dnu_field``,
+    the field it was measured at) and ``j`` (Hz) default to the values stored with
+    ``measurement_id``; ``compound`` marks the observed Tc of compounds whose label or name
+    contains it; ``solvent`` (default: the measurement's) shades temperatures outside its
+    liquid range. Looking anything up needs ``database``.
+    """
+    import numpy as np
+
+    from registry.reports import canvas, coalescence_plot, gather
+    from registry.reports.tables import energy_unit_name
+
+    unit = energy_unit_name(energy_unit)
+    canvas.check_output(out)
+    lo = _number(min_field, "field", "min_field", default_unit="MHz")[0]
+    hi = _number(max_field, "field", "max_field", default_unit="MHz")[0]
+    if not 0 < lo < hi:
+        raise UsageError(f"min_field {lo:g} MHz must be above 0 and below max_field ({hi:g} MHz)")
+    for name, value in (("measurement_id", measurement_id), ("compound", compound),
+                        ("solvent", solvent)):  # fmt: skip
+        if database is None and value is not None:
+            raise UsageError(f"{name}: looking it up needs an open registry (database)")
+    observed, own = _observed(database, measurement_id, compound)
+    dg, dg_err, dnu_ppm, j_hz = _barrier_and_shift(own, barrier, dnu, dnu_field, j)
+    solvent = solvent or own.get("solvent_text")
+    solvent_info = gather.solvent_range(database, solvent) if database and solvent else None
+    notes = []
+    if solvent and solvent_info is None:
+        notes.append(f"solvent {solvent!r} is not in the solvent table; no liquid range drawn")
+    prediction = coalescence_plot.predict_coalescence(
+        dg, dnu_ppm, np.linspace(lo, hi, 240), dg_err_kj_mol=dg_err, j_hz=j_hz
+    )
+    fig = coalescence_plot.coalescence_figure(
+        prediction, observed=observed, solvent=solvent_info, title=title, energy_unit=unit
+    )
+    written = canvas.save_figure(fig, out)
+    fields = [f for f in coalescence_plot.COMMON_FIELDS_MHZ if lo <= f <= hi]
+    at_fields = (
+        coalescence_plot.predict_coalescence(dg, dnu_ppm, fields, j_hz=j_hz).tc_k if fields else []
+    )
+    return CoalescencePlot(
+        file=str(written),
+        dg_kj_mol=float(dg),
+        dg_err_kj_mol=dg_err,
+        dnu_ppm=float(dnu_ppm),
+        j_hz=j_hz,
+        field_range_mhz=(lo, hi),
+        tc_range_k=(float(np.nanmin(prediction.tc_k)), float(np.nanmax(prediction.tc_k))),
+        predicted=tuple(
+            {"field_mhz": f, "tc_k": float(t), "tc_c": float(t) - 273.15}
+            for f, t in zip(fields, at_fields, strict=True)
+        ),
+        observed=tuple(
+            {k: o.get(k) for k in ("measurement_id", "compound", "field_mhz", "tc_k", "dnu_ppm")}
+            for o in observed
+        ),
+        solvent=solvent_info,
+        notes=tuple(notes),
+        cautions=tuple(_cautions(prediction.tc_k, solvent_info)),
+    )
+
+
+def _observed(
+    database: Database | None, measurement_id: int | None, compound: str | None
+) -> tuple[list[dict[str, Any]], dict[str, Any]]:
+    """The observed coalescence points to mark, and the measurement's own one (or {})."""
+    from registry.reports import gather
+
+    observed: list[dict[str, Any]] = []
+    if database is not None and (measurement_id is not None or compound):
+        observed = gather.observed_coalescence(
+            database, measurement_id=measurement_id, compound=compound
+        )
+    own = next((o for o in observed if o["measurement_id"] == measurement_id), {})
+    return observed, own
+
+
+def _barrier_and_shift(
+    own: Mapping[str, Any],
+    barrier: float | str | None,
+    dnu: float | str | None,
+    dnu_field: float | str | None,
+    j: float | str | None,
+) -> tuple[float, float | None, float, float]:
+    """ΔG‡ (and its error), Δν in ppm and J in Hz: as given, else the measurement's."""
+    dg, dg_err = own.get("dg_kj_mol"), own.get("dg_err_kj_mol")
+    if barrier is not None:
+        dg, dg_err = _number(barrier, "energy", "barrier")
+    dnu_ppm = _dnu_ppm(dnu, dnu_field) if dnu is not None else own.get("dnu_ppm")
+    j_hz = _number(j, "frequency", "j", default_unit="Hz")[0] if j is not None else None
+    if dg is None:
+        raise UsageError("barrier: give ΔG‡, or a measurement with a stored ΔG‡")
+    if dnu_ppm is None:
+        raise UsageError("dnu: give Δν, or a measurement with a stored coalescence Δν and field")
+    return (
+        float(dg),
+        dg_err,
+        float(dnu_ppm),
+        float(j_hz if j_hz is not None else own.get("j_hz") or 0.0),
+    )
+
+
+def _cautions(tc_k: Any, solvent: Mapping[str, Any] | None) -> list[str]:
+    """The usual cautions (pressure-rated sealed tube above the boiling point, freezing, heat,
+    cryogens); they defer to the facility's rules."""
+    from registry.kinetics import safety_notes
+
+    return safety_notes(
+        tc_k,
+        solvent_bp_k=(solvent or {}).get("bp_k"),
+        solvent_mp_k=(solvent or {}).get("mp_k"),
+    )
+
+
+def _dnu_ppm(dnu: float | str, dnu_field: float | str | None) -> float:
+    """Δν in ppm; a frequency needs the field it was measured at (Δν in Hz scales with field)."""
+    if isinstance(dnu, (int, float)) and not isinstance(dnu, bool):
+        if dnu <= 0:
+            raise UsageError(f"dnu {dnu!r}: Δν must be > 0 (ppm)")
+        return float(dnu)
+    if not isinstance(dnu, str):
+        raise UsageError(f"dnu {dnu!r}: give Δν in ppm or a text with a unit")
+    from registry.record.units import parse_value
+
+    # read at a nominal 1 MHz: a value in ppm comes back as Hz per MHz, i.e. in ppm
+    parsed = parse_value(dnu, "shift", field="dnu", spectrometer_mhz=1.0)
+    if parsed.unit.strip().lower() == "ppm":
+        return parsed.value
+    if dnu_field is None:
+        raise UsageError(
+            f"dnu {dnu!r}: a Δν in Hz holds at one field only; give the field it was measured"
+            " at (dnu_field, e.g. '400 MHz') or Δν in ppm"
+        )
+    field_mhz = _number(dnu_field, "field", "dnu_field", default_unit="MHz")[0]
+    if field_mhz <= 0:
+        raise UsageError(f"dnu_field {dnu_field!r}: the field must be > 0")
+    return parsed.value / field_mhz
+
+
+# ---------------------------------------------------------------- overview
+
+
+@dataclass(frozen=True)
+class OverviewPlot:
+    """What :func:`plot_overview` drew: the grouping and each group's size and range (kJ/mol)."""
+
+    file: str
+    grouped_by: str
+    groups: tuple[dict[str, Any], ...]
+
+    def as_dict(self) -> dict[str, Any]:
+        return {"file": self.file, "grouped_by": self.grouped_by, "groups": list(self.groups)}
+
+
+def plot_overview(
+    database: Database,
+    *,
+    out: str | Path,
+    by: str = "auto",
+    include_retracted: bool = False,
+    title: str | None = None,
+    energy_unit: str = "kJ/mol",
+) -> OverviewPlot:
+    """ΔG‡ of every measurement, grouped, as boxes (≥ 3 values) and points.
+
+    ``by``: ``'kind'`` (process kind), ``'motif'`` (structural motif; needs motif matching),
+    or ``'auto'`` (motif when available, else kind).
+    """
+    from registry.reports import canvas, gather, plots
+    from registry.reports.tables import energy_unit_name
+
+    unit = energy_unit_name(energy_unit)
+    canvas.check_output(out)
+    if by not in ("auto", "kind", "motif"):
+        raise UsageError(f"by {by!r}: use kind, motif or auto")
+    groups = None
+    grouping = "process kind"
+    if by in ("auto", "motif"):
+        groups = gather.barriers_by_motif(database, include_retracted=include_retracted)
+        if groups is None and by == "motif":
+            raise UsageError("by 'motif': motif matching is not available here; use kind")
+        if groups is not None:
+            grouping = "structural motif"
+    if groups is None:
+        groups = gather.barriers_by_kind(database, include_retracted=include_retracted)
+    fig = plots.overview_figure(groups, energy_unit=unit, group_title=grouping, title=title)
+    written = canvas.save_figure(fig, out)
+    rows = tuple(
+        {"group": g, "n": len(v), "min_kj_mol": min(v), "max_kj_mol": max(v)}
+        for g, v in groups.items()
+    )
+    return OverviewPlot(str(written), grouping, rows)
+
+
+# ---------------------------------------------------------------- the HTML report
+
+
+def build_report(
+    database: Database,
+    out_dir: str | Path,
+    *,
+    title: str = "Barrier registry",
+    include_retracted: bool = False,
+    plots: bool = True,
+) -> ReportResult:
+    """Write the static HTML report: a filterable, sortable index, a page per compound with its
+    structure, measurements, findings and Eyring plots, and a ΔG‡ overview. ``plots=False``
+    skips the figures (much faster on big registries). Only our own files are ever replaced."""
+    from registry.reports.site import build_report as write
+
+    return write(database, out_dir, title=title, include_retracted=include_retracted, plots=plots)

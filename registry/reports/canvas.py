@@ -1,0 +1,109 @@
+"""The canvas every figure is drawn on, and how figures are written to files.
+
+matplotlib is imported inside the functions and used through its object API with the Agg
+canvas (``Figure`` + ``FigureCanvasAgg``), never through pyplot, so drawing a figure does not
+change a notebook's backend or global settings; our look (:mod:`.theme`) is applied in an
+``rc_context``. PNG or SVG is chosen by the output file's suffix; SVG text stays text and
+element ids are salted (see :data:`.theme.RC`) so unchanged data give byte-identical files.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterator
+from contextlib import contextmanager
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from registry.errors import UsageError
+from registry.reports import theme
+from registry.reports.numbers import format_uncertain
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
+
+#: output formats by file suffix
+FORMATS = {".png": "png", ".svg": "svg"}
+
+
+def figure_format(path: str | Path) -> str:
+    """'png' or 'svg' from the suffix; anything else is a usage error naming the file."""
+    suffix = Path(path).suffix.lower()
+    if suffix not in FORMATS:
+        raise UsageError(f"{path}: write a .png or .svg file (the suffix chooses the format)")
+    return FORMATS[suffix]
+
+
+@contextmanager
+def styled() -> Iterator[Any]:
+    import matplotlib
+
+    with matplotlib.rc_context(theme.RC):
+        yield matplotlib
+
+
+def new_figure(
+    width: float, height: float, margins: tuple[float, float, float, float] | None = None
+) -> Figure:
+    """A figure on the Agg canvas. Fixed ``margins`` (left, bottom, right, top in inches) are
+    twice as fast to draw as the constrained layout, which matters for a report with many plots;
+    without them the layout adapts (for labels of unknown length)."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(width, height), dpi=100, layout=None if margins else "constrained")
+    if margins:
+        left, bottom, right, top = margins
+        fig.subplots_adjust(
+            left=left / width,
+            bottom=bottom / height,
+            right=1.0 - right / width,
+            top=1.0 - top / height,
+        )
+    FigureCanvasAgg(fig)
+    return fig
+
+
+def check_output(path: str | Path) -> str:
+    """The format of an output file, once its suffix and folder are known to be fine: checked
+    before any work so a bad name costs nothing."""
+    out = Path(path)
+    fmt = figure_format(out)
+    if not out.parent.exists():
+        raise UsageError(f"{out}: the folder {out.parent} does not exist")
+    return fmt
+
+
+def save_figure(fig: Figure, path: str | Path) -> Path:
+    """Write ``fig`` as PNG (150 dpi) or SVG; the folder must exist."""
+    out = Path(path)
+    fmt = check_output(out)
+    metadata = {"Date": None} if fmt == "svg" else {"Software": "fluxledger"}
+    with styled():
+        fig.savefig(out, format=fmt, dpi=150, metadata=metadata)
+    return out
+
+
+def convert(value: float, from_unit: str, to_unit: str) -> float:
+    """``value`` in ``to_unit``: through the unit registry (pint), loaded only when the units
+    differ, so a figure in the canonical units never pays for building it."""
+    if from_unit == to_unit:
+        return float(value)
+    from registry.record.units import convert as through_pint
+
+    return through_pint(value, from_unit, to_unit)
+
+
+def energy_text(value_kj: float, err_kj: float | None, unit: str) -> str:
+    v = convert(value_kj, "kJ/mol", unit)
+    e = convert(err_kj, "kJ/mol", unit) if err_kj is not None and math.isfinite(err_kj) else None
+    return format_uncertain(v, e, style="pm", minus="−") + f" {unit}"
+
+
+def entropy_text(value: float, err: float | None, energy_unit: str) -> str:
+    unit, label = (
+        ("cal/(mol*K)", "cal/(mol·K)") if energy_unit == "kcal/mol" else ("J/(mol*K)", "J/(mol·K)")
+    )
+    v = convert(value, "J/(mol*K)", unit)
+    e = convert(err, "J/(mol*K)", unit) if err is not None and math.isfinite(err) else None
+    return format_uncertain(v, e, style="pm", minus="−", default_decimals=0) + f" {label}"
