@@ -16,11 +16,14 @@ Grouped by what they act on:
 * ``admin``     — :func:`backup`, :func:`restore`, :func:`verify`, :func:`schema_state`,
   :func:`upgrade_schema`
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
+* ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
+  :func:`calc_halflife`, :func:`calc_plan` (kinetics at the bench, no database)
 """
 
 from __future__ import annotations
 
 from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
+from registry.api.calc import calc_coalescence, calc_eyring, calc_halflife, calc_plan, calc_rate
 from registry.api.checks import accept_finding, check
 from registry.api.records import (
     add_measurement,
@@ -46,6 +49,11 @@ __all__ = [
     "add_measurement",
     "add_rate_points",
     "backup",
+    "calc_coalescence",
+    "calc_eyring",
+    "calc_halflife",
+    "calc_plan",
+    "calc_rate",
     "canonical_unit",
     "check",
     "convert",

@@ -51,8 +51,8 @@ def safety_notes(
         )
     elif solvent_bp_k is None and hi > ZERO_CELSIUS_K + 40.0:
         notes.append(
-            f"Up to {_c(hi)}: check the solvent's boiling point; above it only a "
-            "pressure-rated sealed NMR tube is safe."
+            f"Up to {_c(hi)}: check the solvent's boiling point (give the solvent bp for "
+            "a specific caution); above it only a pressure-rated sealed NMR tube is safe."
         )
     if solvent_mp_k is not None and lo < solvent_mp_k:
         notes.append(
