@@ -338,3 +338,23 @@ def test_json_nan_becomes_null() -> None:
     data = calc_json("eyring", "--point", "300 K, 0.01", "--point", "320 K, 0.1")
     assert data["dh_err_kj_mol"] is None  # two points, no σk: no standard error exists
     assert np.isfinite(data["dh_kj_mol"])
+
+
+def test_cli_module_imports_only_the_api_errors_and_cli() -> None:
+    # the CLI parses, calls registry.api and renders: no engine or unit module imported directly
+    import ast
+
+    import registry.cli.calc as module
+
+    tree = ast.parse(Path(module.__file__).read_text(encoding="utf-8"))
+    imported: set[str] = set()
+    for node in ast.walk(tree):
+        if isinstance(node, ast.ImportFrom) and node.module:
+            names = [f"{node.module}.{a.name}" for a in node.names]
+            imported |= {node.module} if node.module != "registry" else set(names)
+        elif isinstance(node, ast.Import):
+            imported |= {a.name for a in node.names}
+    ours = {m for m in imported if m.split(".")[0] == "registry"}
+    assert ours, "the check must see the module's imports"
+    allowed = ("registry.api", "registry.errors", "registry.cli.")
+    assert all(m == "registry.api" or m.startswith(allowed) for m in ours), ours
