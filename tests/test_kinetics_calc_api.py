@@ -13,6 +13,8 @@ import sys
 from pathlib import Path
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from scipy import constants as codata
 
 from registry import api
@@ -362,3 +364,20 @@ def test_fast_paths_import_no_scipy_submodule_and_no_pandas() -> None:
         [sys.executable, "-c", code], capture_output=True, text=True, check=True, timeout=120
     )
     assert out.stdout.strip() == "[] []"
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    tc=st.floats(min_value=120.0, max_value=480.0),
+    dnu=st.floats(min_value=0.5, max_value=5000.0),
+    field=st.sampled_from([60.0, 400.0, 600.0]),
+)
+def test_texts_and_canonical_numbers_agree(tc: float, dnu: float, field: float) -> None:
+    ppm = f"{dnu / field!r} ppm"
+    text = api.calc_coalescence(tc=f"{tc - 273.15!r} °C", dnu=ppm, field=f"{field!r} MHz")
+    number = api.calc_coalescence(tc=tc, dnu=dnu, field=field)
+    assert text.tc.k == pytest.approx(tc, rel=1e-12)
+    assert text.dnu_hz == pytest.approx(dnu, rel=1e-12)
+    k_c = math.pi * dnu / math.sqrt(2)  # Gutowsky–Holm
+    for res in (text, number):
+        assert res.dg.kj_mol == pytest.approx(eyring_dg(k_c, tc), rel=1e-9)
