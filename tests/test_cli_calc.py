@@ -86,41 +86,41 @@ def test_coalescence_coupled() -> None:
         (
             ["--tc", "-12 °C", "--dnu", "0.045 ppm"],
             1,
-            "error: --dnu: cannot read '0.045 ppm': a value in ppm needs the spectrometer"
+            "error: dnu: cannot read '0.045 ppm': a value in ppm needs the spectrometer"
             " frequency (MHz)\n",
         ),
         (
             ["--tc", "-300 °C", "--dnu", "20 Hz"],
             1,
-            "error: --tc: cannot read '-300 °C': below absolute zero\n",
+            "error: tc: cannot read '-300 °C': below absolute zero\n",
         ),
-        (["--tc", "0 K", "--dnu", "20 Hz"], 1, "error: --tc: cannot read '0 K': must be > 0\n"),
-        (["--tc", "300 K", "--dnu", "0 Hz"], 1, "error: --dnu: cannot read '0 Hz': must be > 0\n"),
+        (["--tc", "0 K", "--dnu", "20 Hz"], 1, "error: tc: cannot read '0 K': must be > 0\n"),
+        (["--tc", "300 K", "--dnu", "0 Hz"], 1, "error: dnu: cannot read '0 Hz': must be > 0\n"),
         (
             ["--tc", "300", "--dnu", "20 Hz"],
             1,
-            "error: --tc: cannot read '300': no unit given; write one, e.g. '300 K'\n",
+            "error: tc: cannot read '300': no unit given; write one, e.g. '300 K'\n",
         ),
         (
             ["--tc", "300 K", "--dnu", "20 Hz", "--ratio", "0.5"],
             1,
-            "error: --ratio: cannot read '0.5': the ratio is major/minor and must be ≥ 1"
+            "error: ratio: cannot read '0.5': the ratio is major/minor and must be ≥ 1"
             " (e.g. '3' or '75:25')\n",
         ),
         (
             ["--tc", "300 K", "--dnu", "20 Hz", "--ratio", "lots"],
             1,
-            "error: --ratio: cannot read 'lots': no number found\n",
+            "error: ratio: cannot read 'lots': no number found\n",
         ),
         (
             ["--tc", "300 K", "--dnu", "20 Hz", "--ratio", "3", "--j", "5 Hz"],
             2,
-            "error: --ratio (unequal populations) and --j (coupled AB) cannot be combined\n",
+            "error: ratio (unequal populations) and j (coupled AB) cannot be combined\n",
         ),
         (
             ["--tc", "300 K", "--dnu", "20 Hz", "--mhz", "-5"],
             1,
-            "error: --mhz: cannot read '-5': the spectrometer frequency must be > 0 MHz\n",
+            "error: field: cannot read '-5': the spectrometer frequency must be > 0 MHz\n",
         ),
     ],
 )
@@ -194,7 +194,7 @@ def test_eyring_bad_files(tmp_path: Path, content: str, stderr_start: str, code:
 def test_eyring_needs_input() -> None:
     result = calc("eyring")
     assert result.exit_code == 2
-    assert result.stderr == "error: give a table file, or rate points with --point 'T, k'\n"
+    assert result.stderr == "error: give a table file, or rate points 'T, k'\n"
 
 
 def test_eyring_mixed_sigma_is_refused() -> None:
@@ -216,10 +216,10 @@ def test_rate_json_and_text() -> None:
 def test_rate_barrier_errors() -> None:
     result = calc("rate", "--dh", "80 kJ/mol")
     assert result.exit_code == 2
-    assert result.stderr == "error: give the barrier: --dg, or both --dh and --ds\n"
+    assert result.stderr == "error: give the barrier: dg, or both dh and ds\n"
     result = calc("rate", "--dg", "80 kJ")
     assert result.exit_code == 1
-    assert result.stderr.startswith("error: --dg: cannot read '80 kJ'")
+    assert result.stderr.startswith("error: dg: cannot read '80 kJ'")
 
 
 def test_halflife_oki_criterion() -> None:
@@ -290,7 +290,7 @@ def test_mounted_under_main_app() -> None:
     assert mounted.stdout == calc(*args[1:]).stdout
     bad = runner.invoke(main_app, ["calc", "coalescence", "--tc", "1 K", "--dnu", "1 ppm"])
     assert bad.exit_code == 1
-    assert bad.stderr.startswith("error: --dnu: cannot read '1 ppm'")
+    assert bad.stderr.startswith("error: dnu: cannot read '1 ppm'")
     debug = runner.invoke(
         main_app, ["--debug", "calc", "coalescence", "--tc", "1 K", "--dnu", "1 ppm"]
     )
@@ -320,7 +320,7 @@ def test_installed_command_runs_in_a_real_process() -> None:
         check=False,
     )
     assert bad.returncode == 1
-    assert bad.stderr == "error: --tc: cannot read '-5 K': below absolute zero\n"
+    assert bad.stderr == "error: tc: cannot read '-5 K': below absolute zero\n"
 
 
 def test_calc_import_is_light() -> None:
@@ -338,3 +338,23 @@ def test_json_nan_becomes_null() -> None:
     data = calc_json("eyring", "--point", "300 K, 0.01", "--point", "320 K, 0.1")
     assert data["dh_err_kj_mol"] is None  # two points, no σk: no standard error exists
     assert np.isfinite(data["dh_kj_mol"])
+
+
+def test_cli_module_imports_only_the_api_errors_and_cli() -> None:
+    # the CLI parses, calls registry.api and renders: no engine or unit module imported directly
+    import ast
+
+    import registry.cli.calc as module
+
+    tree = ast.parse(Path(module.__file__).read_text(encoding="utf-8"))
+    imported: set[str] = set()
+    for node in ast.walk(tree):
+        if isinstance(node, ast.ImportFrom) and node.module:
+            names = [f"{node.module}.{a.name}" for a in node.names]
+            imported |= {node.module} if node.module != "registry" else set(names)
+        elif isinstance(node, ast.Import):
+            imported |= {a.name for a in node.names}
+    ours = {m for m in imported if m.split(".")[0] == "registry"}
+    assert ours, "the check must see the module's imports"
+    allowed = ("registry.api", "registry.errors", "registry.cli.")
+    assert all(m == "registry.api" or m.startswith(allowed) for m in ours), ours

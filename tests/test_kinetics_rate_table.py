@@ -107,8 +107,8 @@ def test_parse_point() -> None:
 @pytest.mark.parametrize(
     ("text", "error", "message"),
     [
-        ("300", UsageError, "--point: cannot read '300': write 'T, k' or 'T; k; σk'"),
-        ("25, 0.01", UnitError, "--point: cannot read '25, 0.01': 25 K? write the unit"),
+        ("300", UsageError, "point: cannot read '300': write 'T, k' or 'T; k; σk'"),
+        ("25, 0.01", UnitError, "point: cannot read '25, 0.01': 25 K? write the unit"),
         ("300 K, -1", UnitError, "a rate constant must be > 0"),
         ("300 K, 1 Hz, 0 Hz", UnitError, "σk must be > 0"),
     ],

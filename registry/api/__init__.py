@@ -19,11 +19,14 @@ Grouped by what they act on:
 * ``lineshape`` — :func:`simulate_lineshape`, :func:`fit_lineshapes`, :func:`value_with_error_text`
 * ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
   :func:`build_report`
+* ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
+  :func:`calc_halflife`, :func:`calc_plan` (kinetics at the bench, no database)
 """
 
 from __future__ import annotations
 
 from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
+from registry.api.calc import calc_coalescence, calc_eyring, calc_halflife, calc_plan, calc_rate
 from registry.api.checks import accept_finding, check
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
@@ -52,6 +55,11 @@ __all__ = [
     "add_rate_points",
     "backup",
     "build_report",
+    "calc_coalescence",
+    "calc_eyring",
+    "calc_halflife",
+    "calc_plan",
+    "calc_rate",
     "canonical_unit",
     "check",
     "convert",

@@ -21,6 +21,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from registry.kinetics.checks import KineticsInputError, checked
 from registry.kinetics.constants import LN_KB_OVER_H, R_J_MOL_K, R_KJ_MOL_K, STANDARD_TEMPERATURE_K
+from registry.kinetics.distributions import chi2_upper_tail, normal_quantile, student_t_quantile
 
 #: below this temperature span ΔH‡ and ΔS‡ separate poorly (common practice, no source)
 MIN_SPAN_K = 30.0
@@ -110,9 +111,10 @@ class ArrheniusFit:
 
 
 def weighted_line(x: NDArray, y: NDArray, sigma_y: NDArray | None) -> LineFit:
-    """Weighted least squares on centred x (well conditioned for x = 1/T ≈ 3·10⁻³)."""
-    from scipy import stats
+    """Weighted least squares on centred x (well conditioned for x = 1/T ≈ 3·10⁻³).
 
+    numpy only: the t and χ² numbers come from :mod:`.distributions`, not scipy.stats.
+    """
     n = x.size
     absolute = sigma_y is not None
     w = np.ones_like(x) if sigma_y is None else 1.0 / sigma_y**2
@@ -132,13 +134,13 @@ def weighted_line(x: NDArray, y: NDArray, sigma_y: NDArray | None) -> LineFit:
     dof = n - 2
     cov = np.array([[1.0 / sw + x_mean**2 / sxx, -x_mean / sxx], [-x_mean / sxx, 1.0 / sxx]])
     if absolute:
-        p_value = float(stats.chi2.sf(chi2, dof)) if dof > 0 else float("nan")
-        factor = float(stats.norm.ppf(0.975))
+        p_value = chi2_upper_tail(chi2, dof) if dof > 0 else float("nan")
+        factor = normal_quantile(0.975)
     else:
         scale = chi2 / dof if dof > 0 else float("nan")
         cov = cov * scale
         p_value = float("nan")
-        factor = float(stats.t.ppf(0.975, dof)) if dof > 0 else float("nan")
+        factor = student_t_quantile(0.975, dof) if dof > 0 else float("nan")
     return LineFit(
         slope, intercept, cov, x_mean, residuals, r_squared, chi2, dof, absolute, p_value, factor
     )

@@ -84,8 +84,6 @@ def temperature_for_rate(
 
     NaN where no positive temperature gives that rate (ΔH‡ ≤ 0).
     """
-    from scipy.special import lambertw
-
     k = checked("k_per_s", k_per_s, what="must be > 0 s⁻¹")
     dh, ds = _activation(dg_kj_mol, dh_kj_mol, ds_j_mol_k)
     kap = float(checked("kappa", kappa, what="must be > 0"))
@@ -94,18 +92,29 @@ def temperature_for_rate(
     with np.errstate(invalid="ignore"):
         ln_ac = np.log(a_pos) + np.log(kap * KB_OVER_H_PER_S_K) - np.log(k) + ds / R_J_MOL_K
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
-        arg = np.exp(ln_ac)
-        w = np.where(np.isfinite(arg), lambertw(arg).real, _w_asymptotic(ln_ac))
-        t = a / w
+        t = a / lambert_w_of_log(ln_ac)
     return scalar_or_array(np.where(np.isfinite(t) & (t > 0), t, np.nan))
 
 
-def _w_asymptotic(ln_z: NDArray) -> NDArray:
-    """W(z) for z too large for a float, from ln z (de Bruijn's series, two terms and a Newton step)."""
-    l1 = ln_z
-    l2 = np.log(np.maximum(l1, 1.0))
-    w = l1 - l2 + l2 / l1
-    return w - (w + np.log(w) - l1) / (1.0 + 1.0 / w)
+def lambert_w_of_log(ln_z: ArrayLike) -> NDArray[np.float64]:
+    """The principal branch W(z) for z > 0, given ln z (so z may exceed the float range).
+
+    W solves w + ln w = ln z (R. M. Corless et al., Adv. Comput. Math. 5, 329 (1996)).
+    g(w) = w + ln w − ln z is increasing and concave, so Newton's method started below the
+    root climbs to it monotonically; both starts are lower bounds of W: ln z − ln ln z for
+    z > e, and z/(1 + z) for z ≤ e (as e^w·(1 − w) ≤ 1). NaN stays NaN; ln z = +inf gives inf.
+    """
+    ln = np.asarray(ln_z, dtype=np.float64)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        big = ln > 1.0
+        z = np.exp(np.minimum(ln, 1.0))
+        w = np.where(big, ln - np.log(np.where(big, ln, 1.0)), z / (1.0 + z))
+        for _ in range(100):  # quadratic convergence: ~5 steps from these starts
+            step = (w + np.log(w) - ln) / (1.0 + 1.0 / w)
+            w = w - step
+            if not np.any(np.abs(step) > 4e-16 * np.abs(w)):
+                break
+        return np.where(np.isposinf(ln), np.inf, w)
 
 
 def temperature_for_half_life(

@@ -188,7 +188,9 @@ def read_rate_table(path: str | Path, *, sheet: str | None = None) -> RatePoints
             )
         else:
             if sheet:
-                raise UsageError("--sheet applies to spreadsheets only")
+                raise UsageError(
+                    f"sheet {sheet!r}: only spreadsheets have sheets; {name} is a text table"
+                )
             text = _decode(file, name)
             sep = _separator(text)
             frame = pd.read_csv(io.StringIO(text), sep=sep, dtype=str, keep_default_na=False)
@@ -228,7 +230,7 @@ def _first_line(exc: Exception) -> str:
     return (str(exc).strip().splitlines() or [type(exc).__name__])[0]
 
 
-def parse_point(text: str, *, field: str = "--point") -> tuple[float, float, float | None]:
+def parse_point(text: str, *, field: str = "point") -> tuple[float, float, float | None]:
     """One rate point from the command line: ``"T, k"`` or ``"T; k; σk"`` (K and s⁻¹ by default).
 
     Parts are split at ';' when there is one (so decimal commas stay usable), else at ','.

@@ -10,15 +10,16 @@ from __future__ import annotations
 from collections.abc import Iterable
 
 import numpy as np
-from scipy.constants import zero_Celsius
+
+from registry.kinetics.constants import ZERO_CELSIUS_K
 
 #: below this a VT unit usually cools with liquid-nitrogen boil-off (−40 °C)
-CRYOGEN_BELOW_K = zero_Celsius - 40.0
+CRYOGEN_BELOW_K = ZERO_CELSIUS_K - 40.0
 #: above this hot surfaces and hot solvent vapour are a burn hazard (+80 °C)
-HOT_ABOVE_K = zero_Celsius + 80.0
+HOT_ABOVE_K = ZERO_CELSIUS_K + 80.0
 #: the range most VT-NMR probes are rated for (−150 °C … +150 °C)
-PROBE_MIN_K = zero_Celsius - 150.0
-PROBE_MAX_K = zero_Celsius + 150.0
+PROBE_MIN_K = ZERO_CELSIUS_K - 150.0
+PROBE_MAX_K = ZERO_CELSIUS_K + 150.0
 
 DEFER = (
     "Follow your facility's safety rules and local regulations; these notes do not replace them."
@@ -26,7 +27,7 @@ DEFER = (
 
 
 def _c(t_k: float) -> str:
-    return f"{t_k - zero_Celsius:.0f} °C"
+    return f"{t_k - ZERO_CELSIUS_K:.0f} °C"
 
 
 def safety_notes(
@@ -48,10 +49,10 @@ def safety_notes(
             "builds pressure; use only a pressure-rated sealed NMR tube within its rating, or "
             "choose a higher-boiling solvent."
         )
-    elif solvent_bp_k is None and hi > zero_Celsius + 40.0:
+    elif solvent_bp_k is None and hi > ZERO_CELSIUS_K + 40.0:
         notes.append(
-            f"Up to {_c(hi)}: check the solvent's boiling point (--solvent-bp); above it only a "
-            "pressure-rated sealed NMR tube is safe."
+            f"Up to {_c(hi)}: check the solvent's boiling point (give the solvent bp for "
+            "a specific caution); above it only a pressure-rated sealed NMR tube is safe."
         )
     if solvent_mp_k is not None and lo < solvent_mp_k:
         notes.append(
