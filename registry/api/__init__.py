@@ -16,12 +16,14 @@ Grouped by what they act on:
 * ``admin``     — :func:`backup`, :func:`restore`, :func:`verify`, :func:`schema_state`,
   :func:`upgrade_schema`
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
+* ``files``     — :func:`import_table`, :func:`export_measurements`
 """
 
 from __future__ import annotations
 
 from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
 from registry.api.checks import accept_finding, check
+from registry.api.files import export_measurements, import_table
 from registry.api.records import (
     add_measurement,
     add_rate_points,
@@ -51,8 +53,10 @@ __all__ = [
     "convert",
     "deferred_checks",
     "edit_measurement",
+    "export_measurements",
     "get_measurement",
     "history",
+    "import_table",
     "init_registry",
     "list_measurements",
     "open_registry",
