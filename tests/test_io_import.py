@@ -398,3 +398,92 @@ def test_cli_progress_bar_only_on_a_terminal_for_big_imports(
     piped = io.StringIO()  # not a terminal (a pipe, a file): no bar
     io_commands.ProgressBar(piped)("rows", 10**6, 10**6)
     assert piped.getvalue() == ""
+
+
+MAPPING = """
+[columns]
+"Cmpd code" = "compound"
+"Temp." = "tc"
+"Sep." = "dnu"
+"Barrier" = { field = "dg", unit = "kcal/mol" }
+"Notes" = "extra"
+"Junk" = "ignore"
+
+[units]
+tc = "°C"
+dnu = "Hz"
+
+[defaults]
+method = "coalescence"
+solvent = "CDCl3"
+"""
+
+
+def test_mapping_file_columns_units_and_defaults(database: Database, tmp_path: Path) -> None:
+    path = write_csv(
+        tmp_path / "odd.csv",
+        ["Cmpd code", "Temp.", "Sep.", "Barrier", "Notes", "Junk"],
+        [["K-7", 25, 38.5, 14.8, "ok", "xx"], ["K-8", "", "", 15.0, "", ""]],
+    )
+    mapping = tmp_path / "odd.toml"
+    mapping.write_text(MAPPING, encoding="utf-8")
+    summary = import_table(database, path, mapping=mapping)
+    assert summary["added"] == 2
+    first = api.get_measurement(database, summary["measurement_ids"]["added"][0])
+    assert (first["method"], first["solvent_text"]) == ("coalescence", "CDCl3")
+    # 25 °C = 298.15 K (NIST SP 811 (2008) 4.2.1.1); 1 kcal = 4.184 kJ (NIST SP 811 B.8)
+    assert first["coalescence"][0]["tc_k"] == pytest.approx(298.15)
+    assert first["coalescence"][0]["dnu_hz"] == pytest.approx(38.5)
+    assert first["dg_kj_mol"] == pytest.approx(14.8 * 4.184)
+    assert first["extra"] == {"Notes": "ok"}  # "Junk" is ignored, not kept
+    described = {r["header"]: (r["field"], r["from"]) for r in summary["mapping"]["odd.csv"]}
+    assert described["Temp."] == ("tc", "mapping file")
+    assert described["Junk"] == (None, "mapping file")
+
+
+def test_mapping_file_names_the_sheets(database: Database, tmp_path: Path) -> None:
+    # "Kinetics" has a compound column, so on its own it would be read as an entries sheet
+    path = write_xlsx(
+        tmp_path / "named.xlsx",
+        {
+            "Barriers": [["label", "compound", "method", "ΔH‡ (kJ/mol)"], ["R1", "Q1", "DNMR", 55]],
+            "Kinetics": [["label", "compound", "T (K)", "k (s-1)"], ["R1", "Q1", 300, 12.0]],
+        },
+    )
+    mapping = tmp_path / "sheets.toml"
+    mapping.write_text('[sheets]\nentries = "Barriers"\nrates = "Kinetics"\n', encoding="utf-8")
+    summary = import_table(database, path, mapping=mapping)
+    assert summary["sheet_kinds"] == {"Barriers": "entries", "Kinetics": "rates"}
+    record = api.get_measurement(database, summary["measurement_ids"]["added"][0])
+    assert [(p["t_k"], p["k_per_s"]) for p in record["rate_points"]] == [(300.0, 12.0)]
+    mapping.write_text('[sheets]\nrates = "Barriers"\n', encoding="utf-8")  # no T, no k there
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path, mapping=mapping)
+    (problem,) = info.value.problems
+    assert (problem.sheet, problem.row) == ("Barriers", 1)
+    assert problem.reason == "a rates sheet needs label, T and k columns; this one has no T, k"
+
+
+def test_cli_map_rejects_and_dry_run_exit_codes(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    path = write_csv(
+        tmp_path / "odd.csv",
+        ["Cmpd code", "Temp.", "Sep.", "Barrier"],
+        [["K-7", 25, 38.5, 14.8], ["K-9", "hot", 30, 15.0]],
+    )
+    mapping = tmp_path / "odd.toml"
+    mapping.write_text(MAPPING, encoding="utf-8")
+    dry = cli("import", str(path), "--map", str(mapping), "--dry-run")
+    assert dry.exit_code == 1  # a dry run that finds problems says so in its exit code
+    assert "would add 1, update 0, leave 0 unchanged; 1 row(s) with problems" in dry.stdout
+    assert "row 3, column 'Temp.': 'hot': not a number" in dry.stdout
+    rejects = tmp_path / "out" / "bad.csv"
+    rejects.parent.mkdir()
+    done = cli("import", str(path), "--map", str(mapping), "--skip-bad", "--rejects", str(rejects))
+    assert done.exit_code == 0, done.stderr
+    assert "1 added, 0 updated, 0 unchanged, 1 rejected" in done.stdout
+    with rejects.open(encoding="utf-8") as fh:
+        (line,) = list(csv.DictReader(fh))
+    assert (line["row"], line["column"], line["text"]) == ("3", "Temp.", "hot")
+    missing = cli("import", str(path), "--map", str(tmp_path / "nope.toml"))
+    assert missing.exit_code == 2
+    assert missing.stderr == f"error: mapping file {tmp_path / 'nope.toml'}: no such file\n"

@@ -23,7 +23,6 @@ from registry.io.results import Prepared
 from registry.storage.connection import Connection
 from registry.storage.writer import solvent_index, write_entries
 
-
 #: the counts an import batch row keeps
 _COUNTS = ("rows_total", "rows_added", "rows_updated", "rows_unchanged", "rows_rejected")
 
