@@ -148,7 +148,7 @@ def test_filters_and_bad_format(filled: Database, tmp_path: Path) -> None:
     assert export_measurements(filled, tmp_path / "a.csv", method="DNMR")["measurements"] == 1
     with pytest.raises(UsageError, match="format must be one of csv, xlsx, json, latex, markdown"):
         export_measurements(filled, tmp_path / "a.txt")
-    with pytest.raises(UsageError, match="folder .* does not exist"):
+    with pytest.raises(UsageError, match=r"folder .* does not exist"):
         export_measurements(filled, tmp_path / "no" / "a.csv")
 
 

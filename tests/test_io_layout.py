@@ -24,7 +24,9 @@ def test_io_uses_the_storage_layer_only() -> None:
     for path in sorted((ROOT / "registry" / "io").glob("*.py")):
         found = _imports(path)
         banned = {
-            m for m in found if m.startswith(("sqlalchemy", "registry.api", "registry.storage.models"))
+            m
+            for m in found
+            if m.startswith(("sqlalchemy", "registry.api", "registry.storage.models"))
         }
         assert not banned, f"{path.name} imports {sorted(banned)}"
 

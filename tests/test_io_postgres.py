@@ -45,12 +45,16 @@ def test_imports_and_export_match_sqlite(pg_url: str, tmp_path: Path) -> None:
             for r in (import_table(database, f) for f in _files(tmp_path))
         ]
     try:
-        assert reports["sqlite"] == reports["postgresql"] == [
-            {"added": 2, "updated": 0, "unchanged": 0, "rejected": 0},
-            {"added": 0, "updated": 0, "unchanged": 2, "rejected": 0},
-            {"added": 0, "updated": 1, "unchanged": 1, "rejected": 0},
-            {"added": 1, "updated": 0, "unchanged": 0, "rejected": 0},
-        ]
+        assert (
+            reports["sqlite"]
+            == reports["postgresql"]
+            == [
+                {"added": 2, "updated": 0, "unchanged": 0, "rejected": 0},
+                {"added": 0, "updated": 0, "unchanged": 2, "rejected": 0},
+                {"added": 0, "updated": 1, "unchanged": 1, "rejected": 0},
+                {"added": 1, "updated": 0, "unchanged": 0, "rejected": 0},
+            ]
+        )
         pg = registries["postgresql"]
         assert _canonical(pg) == _canonical(registries["sqlite"])
         assert count(pg, "import_batch") == 4
