@@ -269,8 +269,8 @@ def _build_entry(
             if default is not None:
                 kw[name] = with_unit(default, unit)
             continue
-        if not looks_numeric(t):
-            problems.append(not_a_number(result.file, sheet, row_no, col, t))  # type: ignore[arg-type]
+        if col is not None and not looks_numeric(t):  # (a default has no column)
+            problems.append(not_a_number(result.file, sheet, row_no, col, t))
             continue
         err = texts[err_j][i] if err_j is not None else None
         if err is not None and err.lower() in EMPTY_MARKERS:
