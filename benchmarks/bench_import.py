@@ -3,7 +3,7 @@
     .venv/bin/python benchmarks/bench_import.py [--rows 100000] [--repeats 3] [--format csv]
 
 Bare pipeline (the floor): pandas read → RDKit MolFromSmiles → MolToInchiKey → one sqlite3
-executemany in one transaction, single process. fluxledger: ``registry.io.import_table`` into a
+executemany in one transaction, single process. fluxledger: ``registry.api.import_table`` into a
 fresh registry (header mapping, every value through the unit layer, structures parsed in a pool
 of 2 processes with InChI, InChIKey, pattern fingerprint and mol binary, compounds, measurements,
 coalescence rows and revisions written, validation rules run on the new rows). Both print
@@ -12,9 +12,9 @@ time (bare; this process; the pool workers) is printed because on a shared 2-cor
 wall-time ratio follows the other jobs' load. Nothing is asserted (RULES 5).
 
 Molecules: the open SMILES set in the PyPI ``molsets`` wheel (``moses/dataset/data/
-train.csv.gz``). Installing molsets drags in torch and a pinned pomegranate that does not build
-on current Python, so this script downloads the wheel with ``pip download --no-deps molsets``
-into ``benchmarks/out/`` and reads the csv.gz straight out of the wheel zip.
+train.csv.gz``), read as ``find_data.molsets_smiles`` reads it (the wheel fetched once with
+``pip download --no-deps molsets`` into ``benchmarks/out/wheels/``; installing molsets would drag
+in torch and a pinned pomegranate that does not build on current Python).
 
 ``--what-if-cache`` adds a third timing with ``registry.record.units.parse_value`` memoized (an
 experiment in this process only, to size a possible change to the unit layer; not a product
@@ -24,17 +24,13 @@ path).
 from __future__ import annotations
 
 import argparse
-import gzip
-import io
 import os
 import resource
 import sqlite3
 import statistics
-import subprocess
 import sys
 import tempfile
 import time
-import zipfile
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from pathlib import Path
@@ -43,24 +39,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-OUT = Path(__file__).resolve().parent / "out"
-MEMBER = "moses/dataset/data/train.csv.gz"
-
-
-def molsets_smiles(n: int) -> list[str]:
-    """The first ``n`` SMILES of the molsets training set, read from the wheel."""
-    wheels = sorted(OUT.glob("molsets-*.whl"))
-    if not wheels:
-        OUT.mkdir(parents=True, exist_ok=True)
-        subprocess.run(
-            [sys.executable, "-m", "pip", "download", "--no-deps", "--quiet", "molsets", "-d", OUT],
-            check=True,
-        )
-        wheels = sorted(OUT.glob("molsets-*.whl"))
-    with zipfile.ZipFile(wheels[-1]) as zf:
-        raw = gzip.decompress(zf.read(MEMBER))
-    frame = pd.read_csv(io.BytesIO(raw), nrows=n)
-    return frame["SMILES"].astype(str).tolist()
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from find_data import molsets_smiles
 
 
 def make_sheet(smiles: list[str], path: Path, fmt: str) -> None:
@@ -143,7 +123,7 @@ def cpu_seconds() -> tuple[float, float]:
 
 def fluxledger_import(path: Path, db: Path, stages: dict[str, list[float]]) -> None:
     from registry import api
-    from registry.io import importer
+    from registry.io import commit, prepare, report
 
     api.init_registry(str(db))
     database = api.open_registry(str(db))
@@ -152,18 +132,14 @@ def fluxledger_import(path: Path, db: Path, stages: dict[str, list[float]]) -> N
     t0 = time.perf_counter()
     try:
         with (
-            timing(importer, "prepare", phase, "read, normalize, structures"),
-            timing(importer, "write_entries", phase, "write new rows (writer)"),
-            timing(importer, "run_validation_hook", phase, "validation of the new rows"),
+            timing(prepare, "prepare", phase, "read, normalize, structures"),
+            timing(commit, "write_entries", phase, "write new rows (writer)"),
+            timing(report, "validation_report", phase, "validation of the new rows"),
         ):
             # skip_bad: the set holds a few pairs of SMILES with one InChIKey (same structure),
             # which the importer refuses under two different compound labels; set aside
-            summary = importer.import_table(
-                database,
-                path,
-                workers=2,
-                skip_bad=True,
-                rejects_path=db.with_suffix(".rejected.csv"),
+            summary = api.import_table(
+                database, path, workers=2, skip_bad=True, rejects=db.with_suffix(".rejected.csv")
             )
     finally:
         database.dispose()

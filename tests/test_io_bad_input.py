@@ -10,18 +10,15 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from openpyxl import Workbook
-from sqlalchemy import func, select
-from test_io_import import HEADERS, ROWS, write_csv, write_xlsx
+from test_io_import import HEADERS, ROWS, count, write_csv, write_xlsx
 
+from registry.api import import_table
 from registry.errors import FileFormatError, FluxledgerError, ImportRowError
-from registry.io import import_table
 from registry.storage.database import Database
-from registry.storage.models import ImportBatch, Measurement
 
 
 def measurements(database: Database) -> int:
-    with database.read() as conn:
-        return conn.execute(select(func.count()).select_from(Measurement)).scalar_one()
+    return count(database, "measurement")
 
 
 def only_problem(exc: pytest.ExceptionInfo[ImportRowError]) -> tuple[object, ...]:
@@ -232,7 +229,7 @@ def test_random_cells_raise_only_fluxledger_errors(
     except Exception:  # openpyxl refuses some control characters: not our input to test
         return
     with contextlib.suppress(FluxledgerError):
-        import_table(database, book, skip_bad=True, rejects_path=tmp_path / "rej.csv")
+        import_table(database, book, skip_bad=True, rejects=tmp_path / "rej.csv")
 
 
 def test_nothing_half_written_after_a_failed_import(database: Database, tmp_path: Path) -> None:
@@ -240,8 +237,7 @@ def test_nothing_half_written_after_a_failed_import(database: Database, tmp_path
     bad = write_csv(tmp_path / "bad.csv", HEADERS, [ROWS[1], ["Z", "C1CC(", "tc", "x", 1, 1, 1, 1]])
     with pytest.raises(ImportRowError):
         import_table(database, bad)
-    with database.read() as conn:
-        assert conn.execute(select(func.count()).select_from(ImportBatch)).scalar_one() == 1
+    assert count(database, "import_batch") == 1
     assert measurements(database) == 1
 
 
@@ -283,8 +279,7 @@ def test_a_small_file_lists_every_bad_row_once(database: Database, tmp_path: Pat
     assert str(info.value.problems[2]).endswith(
         "the cell holds a formula; the registry stores values as reported — paste the value instead"
     )
-    with database.read() as conn:
-        assert conn.exec_driver_sql("SELECT count(*) FROM measurement").scalar() == 0
+    assert measurements(database) == 0
 
 
 def _ods_with_formula(path: Path) -> Path:

@@ -12,8 +12,8 @@ from openpyxl import load_workbook
 from test_io_import import write_csv, write_xlsx
 
 from registry import api
+from registry.api import export_measurements, import_table
 from registry.errors import UsageError
-from registry.io import export_measurements, import_table
 from registry.storage.database import Database
 
 SEED = Path(__file__).resolve().parent.parent / "seed_demo"
@@ -81,7 +81,7 @@ def test_export_then_import_into_an_empty_registry_reproduces_it(
     filled: Database, tmp_path: Path, fmt: str
 ) -> None:
     out = tmp_path / f"export.{fmt}"
-    summary = export_measurements(filled, out, fmt)
+    summary = export_measurements(filled, out, format=fmt)
     assert summary["measurements"] == 5 and summary["rate_points"] == 2
     empty_path = tmp_path / "empty.sqlite"
     api.init_registry(str(empty_path))
@@ -113,7 +113,7 @@ def test_demo_files_round_trip(database: Database, tmp_path: Path) -> None:
 
 def test_text_cells_are_guarded_and_numbers_stay_numbers(filled: Database, tmp_path: Path) -> None:
     out = tmp_path / "e.csv"
-    export_measurements(filled, out, "csv")
+    export_measurements(filled, out, format="csv")
     with out.open(encoding="utf-8") as fh:
         rows = {r["label"]: r for r in csv.DictReader(fh)}
     assert rows["E1"]["tc"] == "'-20 °C"
@@ -146,8 +146,10 @@ def test_json_export_has_reported_normalized_findings(filled: Database, tmp_path
 
 def test_filters_and_bad_format(filled: Database, tmp_path: Path) -> None:
     assert export_measurements(filled, tmp_path / "a.csv", method="DNMR")["measurements"] == 1
-    with pytest.raises(UsageError, match="--format must be one of csv, xlsx, json"):
+    with pytest.raises(UsageError, match="format must be one of csv, xlsx, json, latex, markdown"):
         export_measurements(filled, tmp_path / "a.txt")
+    with pytest.raises(UsageError, match=r"folder .* does not exist"):
+        export_measurements(filled, tmp_path / "no" / "a.csv")
 
 
 def test_cli_export(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]

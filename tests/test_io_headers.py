@@ -8,8 +8,17 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from registry.errors import RowProblem, UsageError
-from registry.io.cells import cell_text, neutralise, unneutralise
+from registry.errors import RowProblem, UnitError, UsageError
+from registry.io.cells import (
+    RATE_COLUMNS,
+    cell_text,
+    combine_error,
+    format_rate_list,
+    neutralise,
+    parse_rate_list,
+    unneutralise,
+    with_unit,
+)
 from registry.io.headers import concept_key, guess_header, split_header
 from registry.io.mapping import MappingFile, load_mapping, plan_sheet
 
@@ -165,3 +174,41 @@ def test_cell_text_keeps_numbers_as_written() -> None:
     assert cell_text(1.5e-5) == "1.5e-05"
     assert cell_text(float("nan")) is None
     assert cell_text("  '-20 °C ") == "-20 °C"
+
+
+_rate_text = st.text(
+    st.characters(blacklist_characters=";@,", blacklist_categories=("Cs", "Cc", "Zs", "Zl", "Zp")),
+    min_size=1,
+    max_size=10,
+)
+
+
+@given(st.lists(st.tuples(_rate_text, _rate_text), max_size=6))
+def test_rate_lists_round_trip(rates: list[tuple[str, str]]) -> None:
+    assert parse_rate_list(format_rate_list(rates)) == rates
+
+
+def test_rate_lists_as_groups_write_them() -> None:
+    assert parse_rate_list("12.5 s-1 @ 300 K; 40 s-1 @ 310 K;") == [
+        ("300 K", "12.5 s-1"),
+        ("310 K", "40 s-1"),
+    ]
+    assert parse_rate_list("300 K, 12.5 s-1") == [("300 K", "12.5 s-1")]  # T, k
+    with pytest.raises(UnitError, match="write rate points as 'k @ T; k @ T'"):
+        parse_rate_list("12.5 at 300 K")
+
+
+def test_uncertainty_columns_and_header_units_are_folded_into_the_text() -> None:
+    assert combine_error("14.2", "0.3") == "14.2 ± 0.3"
+    assert combine_error("14.2 kcal/mol", "0.3") == "14.2 ± 0.3 kcal/mol"
+    assert combine_error("14.2 ± 0.2", "0.3") == "14.2 ± 0.2"  # the cell's own error wins
+    assert combine_error("14.2", None) == "14.2"
+    assert with_unit("14.2 ± 0.3", "kcal/mol") == "14.2 ± 0.3 kcal/mol"
+    assert with_unit("14.2(3)", "kcal/mol") == "14.2(3) kcal/mol"
+    assert with_unit("-20 °C", "K") == "-20 °C"  # a unit written in the cell wins
+    assert with_unit("14,2", None) == "14,2"
+
+
+def test_rate_point_columns_come_from_the_fields_table() -> None:
+    # the columns of the rate_point table (registry/storage/models.py, the first migration)
+    assert RATE_COLUMNS == ("t_k", "t_err_k", "t_text", "k_per_s", "k_err_per_s", "k_text")

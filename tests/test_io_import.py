@@ -8,15 +8,13 @@ from pathlib import Path
 
 import pytest
 from openpyxl import Workbook
-from sqlalchemy import func, select
 
 from registry import api
+from registry.api import import_table
 from registry.errors import ImportRowError
-from registry.io import import_table, parallel
-from registry.io import importer as importer_mod
+from registry.io import parallel, results, upsert
 from registry.record.chem import read_structure
 from registry.storage.database import Database
-from registry.storage.models import Compound, ImportBatch, Measurement, RatePoint, Revision, Solvent
 
 HEADERS = [
     "compound",
@@ -52,9 +50,10 @@ def write_xlsx(path: Path, sheets: dict[str, list[list[object]]]) -> Path:
     return path
 
 
-def count(database: Database, model: object) -> int:
+def count(database: Database, table: str) -> int:
+    """Rows in one table of the registry."""
     with database.read() as conn:
-        return conn.execute(select(func.count()).select_from(model)).scalar_one()
+        return int(conn.scalar(f"SELECT count(*) FROM {table}"))
 
 
 ROWS = [
@@ -85,7 +84,7 @@ def test_values_units_and_extras_are_stored(database: Database, sample_csv: Path
     assert second["coalescence"][0]["tc_text"] == "-20 °C"
     # "chloroform" is a usual spelling of the solvent table's chloroform-d
     with database.read() as conn:
-        sid = conn.execute(select(Solvent.id).where(Solvent.name == "chloroform-d")).scalar()
+        sid = conn.scalar("SELECT id FROM solvent WHERE name = 'chloroform-d'")
     assert first["solvent_id"] == sid == second["solvent_id"]
 
 
@@ -94,7 +93,7 @@ def test_import_batch_is_recorded(database: Database, sample_csv: Path) -> None:
 
     summary = import_table(database, sample_csv, actor="ingrid")
     with database.read() as conn:
-        batch = conn.execute(select(ImportBatch.__table__)).mappings().one()
+        (batch,) = conn.records("SELECT * FROM import_batch")
     assert batch["file_name"] == "sample.csv"
     assert batch["sha256"] == hashlib.sha256(sample_csv.read_bytes()).hexdigest()
     assert (batch["actor"], batch["rows_total"], batch["rows_added"]) == ("ingrid", 2, 2)
@@ -104,12 +103,12 @@ def test_import_batch_is_recorded(database: Database, sample_csv: Path) -> None:
 
 def test_same_file_twice_adds_nothing(database: Database, sample_csv: Path) -> None:
     import_table(database, sample_csv)
-    revisions = count(database, Revision)
+    revisions = count(database, "revision")
     again = import_table(database, sample_csv)
     assert (again["added"], again["updated"], again["unchanged"]) == (0, 0, 2)
-    assert count(database, Measurement) == 2
-    assert count(database, Revision) == revisions
-    assert count(database, ImportBatch) == 2
+    assert count(database, "measurement") == 2
+    assert count(database, "revision") == revisions
+    assert count(database, "import_batch") == 2
 
 
 def test_corrected_file_updates_and_records_before_after(
@@ -126,15 +125,15 @@ def test_corrected_file_updates_and_records_before_after(
     assert record["dg_kj_mol"] == pytest.approx(14.9 * 4.184)
     assert record["extra"] == {"notebook": "p1 (corrected)"}
     with database.read() as conn:
-        rev = conn.execute(
-            select(Revision.before_json, Revision.after_json).where(
-                Revision.entity_id == mid, Revision.action == "import-update"
-            )
-        ).one()
+        (rev,) = conn.rows(
+            "SELECT before_json, after_json FROM revision "
+            "WHERE entity_id = :id AND action = 'import-update'",
+            {"id": mid},
+        )
     before, after = json.loads(rev[0]), json.loads(rev[1])
     assert before["dg_text"] == "14.6 kcal/mol" and after["dg_text"] == "14.9 kcal/mol"
     assert after["extra"] == {"notebook": "p1 (corrected)"}
-    assert count(database, Measurement) == 2
+    assert count(database, "measurement") == 2
 
 
 def test_workbook_with_rates_sheet(database: Database, tmp_path: Path) -> None:
@@ -162,7 +161,7 @@ def test_workbook_with_rates_sheet(database: Database, tmp_path: Path) -> None:
     assert record["ds_j_mol_k"] == pytest.approx(-8.368)
     again = import_table(database, path)
     assert again["added"] == 0 and again["updated"] == 0
-    assert count(database, RatePoint) == 2
+    assert count(database, "rate_point") == 2
 
 
 def test_rates_only_file_attaches_to_existing_measurements(
@@ -193,8 +192,8 @@ def test_one_bad_row_means_nothing_is_written(database: Database, tmp_path: Path
         import_table(database, path)
     (problem,) = info.value.problems
     assert (problem.row, problem.column, problem.text) == (4, "ΔG‡ (kcal/mol)", "abc")
-    assert count(database, Measurement) == 0
-    assert count(database, ImportBatch) == 0
+    assert count(database, "measurement") == 0
+    assert count(database, "import_batch") == 0
 
 
 def test_skip_bad_imports_good_rows_and_writes_rejects(database: Database, tmp_path: Path) -> None:
@@ -211,8 +210,8 @@ def test_skip_bad_imports_good_rows_and_writes_rejects(database: Database, tmp_p
     assert "unreadable SMILES" in lines[0]["reason"]
     assert lines[0]["compound"] == "A3"
     with database.read() as conn:
-        status = conn.execute(select(ImportBatch.status, ImportBatch.rows_rejected)).one()
-    assert tuple(status) == ("partial", 1)
+        status = conn.first("SELECT status, rows_rejected FROM import_batch")
+    assert status == ("partial", 1)
 
 
 def test_interrupt_during_the_write_leaves_nothing(
@@ -221,12 +220,12 @@ def test_interrupt_during_the_write_leaves_nothing(
     def boom(*args: object, **kwargs: object) -> None:
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(importer_mod.upsert, "apply_changes", boom)
+    monkeypatch.setattr(upsert, "apply_changes", boom)
     with pytest.raises(KeyboardInterrupt):
         import_table(database, sample_csv)
-    assert count(database, Measurement) == 0
-    assert count(database, ImportBatch) == 0
-    assert count(database, Revision) == 0
+    assert count(database, "measurement") == 0
+    assert count(database, "import_batch") == 0
+    assert count(database, "revision") == 0
 
 
 def test_dry_run_writes_nothing(database: Database, sample_csv: Path) -> None:
@@ -235,7 +234,7 @@ def test_dry_run_writes_nothing(database: Database, sample_csv: Path) -> None:
     assert summary["preview"][0]["dg_kj_mol"] == pytest.approx(14.6 * 4.184)
     fields = {row["header"]: row["field"] for row in summary["mapping"]["sample.csv"]}
     assert fields["Tc (°C)"] == "tc" and fields["notebook"] is None
-    assert count(database, Measurement) == 0 and count(database, ImportBatch) == 0
+    assert count(database, "measurement") == 0 and count(database, "import_batch") == 0
 
 
 def test_validation_findings_are_counted(database: Database, tmp_path: Path) -> None:
@@ -274,9 +273,7 @@ def test_the_process_pool_gives_the_same_result(
     # every stored structure value is what this process computes for the same SMILES
     fields = ("smiles_canonical", "inchi", "inchikey", "formula", "mol_binary", "pattern_fp")
     with database.read() as conn:
-        stored = conn.execute(
-            select(Compound.smiles_input, *(getattr(Compound, f) for f in fields))
-        ).all()
+        stored = conn.rows(f"SELECT smiles_input, {', '.join(fields)} FROM compound")
     assert sorted(r[0] for r in stored) == sorted(smiles)
     for smi, *values in stored:
         here = read_structure(smi)
@@ -308,7 +305,7 @@ def test_early_stop_after_structures_were_queued(
     # import reports it without waiting for the structures, and writes nothing
     monkeypatch.setattr(parallel, "PARALLEL_MIN_ROWS", 3)
     monkeypatch.setattr(parallel, "CHUNK_SMILES", 1)
-    monkeypatch.setattr(importer_mod, "EARLY_STOP_MIN_ROWS", 2)
+    monkeypatch.setattr(results, "EARLY_STOP_MIN_ROWS", 2)
     entries = [["label", "compound", "SMILES", "method", "ΔH‡ (kJ/mol)"]] + [
         [f"L{i}", f"B{i}", "C" * (i + 1), "DNMR", 70.0] for i in range(6)
     ]
@@ -320,7 +317,7 @@ def test_early_stop_after_structures_were_queued(
         import_table(database, path, workers=2)
     (problem,) = info.value.problems
     assert (problem.sheet, problem.row, problem.column) == ("rates", 2, "k (s-1)")
-    assert count(database, Measurement) == 0
+    assert count(database, "measurement") == 0
 
 
 def test_cli_import_and_dry_run(cli, tmp_path: Path, sample_csv: Path) -> None:  # type: ignore[no-untyped-def]
@@ -367,18 +364,126 @@ def test_semicolon_csv_with_decimal_commas(database: Database, tmp_path: Path) -
     assert record["extra"] == {"Bemerkung": "gut"}
 
 
-def test_progress_bar_path(
-    database: Database,
-    sample_csv: Path,
-    monkeypatch: pytest.MonkeyPatch,
-    capsys: pytest.CaptureFixture[str],
-) -> None:
-    import sys
-
-    monkeypatch.setattr(importer_mod, "PROGRESS_MIN_ROWS", 1)
-    monkeypatch.setattr(sys.stderr, "isatty", lambda: True, raising=False)
-    summary = import_table(database, sample_csv, progress=True)
+def test_progress_is_reported_by_stage(database: Database, sample_csv: Path) -> None:
+    calls: list[tuple[str, int, int]] = []
+    summary = import_table(database, sample_csv, progress=lambda *a: calls.append(a))
     assert summary["added"] == 2
-    assert "structures" in capsys.readouterr().err  # the bar's second stage was shown
-    # not asked for (e.g. --json): no bar
-    assert importer_mod._progress_bar(False, 10**6, "x") is None
+    # two rows to normalize, then two distinct SMILES to parse: four units in all
+    assert {total for _, _, total in calls} == {4}
+    done = {stage: sum(d for s, d, _ in calls if s == stage) for stage, _, _ in calls}
+    assert done == {"rows": 2, "structures": 2}
+    assert [s for s, _, _ in calls].index("structures") > [s for s, _, _ in calls].index("rows")
+
+
+def test_cli_progress_bar_only_on_a_terminal_for_big_imports(
+    monkeypatch: pytest.MonkeyPatch,
+) -> None:
+    import io
+
+    from registry.cli import io_commands
+
+    class Terminal(io.StringIO):
+        def isatty(self) -> bool:
+            return True
+
+    screen = Terminal()
+    bar = io_commands.ProgressBar(screen)
+    bar("rows", 10, 100)  # below PROGRESS_MIN_ROWS: nothing drawn
+    assert screen.getvalue() == ""
+    monkeypatch.setattr(io_commands, "PROGRESS_MIN_ROWS", 1)
+    bar("rows", 60, 100)
+    bar("structures", 40, 100)
+    bar.close()
+    assert "structures" in screen.getvalue()
+    piped = io.StringIO()  # not a terminal (a pipe, a file): no bar
+    io_commands.ProgressBar(piped)("rows", 10**6, 10**6)
+    assert piped.getvalue() == ""
+
+
+MAPPING = """
+[columns]
+"Cmpd code" = "compound"
+"Temp." = "tc"
+"Sep." = "dnu"
+"Barrier" = { field = "dg", unit = "kcal/mol" }
+"Notes" = "extra"
+"Junk" = "ignore"
+
+[units]
+tc = "°C"
+dnu = "Hz"
+
+[defaults]
+method = "coalescence"
+solvent = "CDCl3"
+"""
+
+
+def test_mapping_file_columns_units_and_defaults(database: Database, tmp_path: Path) -> None:
+    path = write_csv(
+        tmp_path / "odd.csv",
+        ["Cmpd code", "Temp.", "Sep.", "Barrier", "Notes", "Junk"],
+        [["K-7", 25, 38.5, 14.8, "ok", "xx"], ["K-8", "", "", 15.0, "", ""]],
+    )
+    mapping = tmp_path / "odd.toml"
+    mapping.write_text(MAPPING, encoding="utf-8")
+    summary = import_table(database, path, mapping=mapping)
+    assert summary["added"] == 2
+    first = api.get_measurement(database, summary["measurement_ids"]["added"][0])
+    assert (first["method"], first["solvent_text"]) == ("coalescence", "CDCl3")
+    # 25 °C = 298.15 K (NIST SP 811 (2008) 4.2.1.1); 1 kcal = 4.184 kJ (NIST SP 811 B.8)
+    assert first["coalescence"][0]["tc_k"] == pytest.approx(298.15)
+    assert first["coalescence"][0]["dnu_hz"] == pytest.approx(38.5)
+    assert first["dg_kj_mol"] == pytest.approx(14.8 * 4.184)
+    assert first["extra"] == {"Notes": "ok"}  # "Junk" is ignored, not kept
+    described = {r["header"]: (r["field"], r["from"]) for r in summary["mapping"]["odd.csv"]}
+    assert described["Temp."] == ("tc", "mapping file")
+    assert described["Junk"] == (None, "mapping file")
+
+
+def test_mapping_file_names_the_sheets(database: Database, tmp_path: Path) -> None:
+    # "Kinetics" has a compound column, so on its own it would be read as an entries sheet
+    path = write_xlsx(
+        tmp_path / "named.xlsx",
+        {
+            "Barriers": [["label", "compound", "method", "ΔH‡ (kJ/mol)"], ["R1", "Q1", "DNMR", 55]],
+            "Kinetics": [["label", "compound", "T (K)", "k (s-1)"], ["R1", "Q1", 300, 12.0]],
+        },
+    )
+    mapping = tmp_path / "sheets.toml"
+    mapping.write_text('[sheets]\nentries = "Barriers"\nrates = "Kinetics"\n', encoding="utf-8")
+    summary = import_table(database, path, mapping=mapping)
+    assert summary["sheet_kinds"] == {"Barriers": "entries", "Kinetics": "rates"}
+    record = api.get_measurement(database, summary["measurement_ids"]["added"][0])
+    assert [(p["t_k"], p["k_per_s"]) for p in record["rate_points"]] == [(300.0, 12.0)]
+    mapping.write_text('[sheets]\nrates = "Barriers"\n', encoding="utf-8")  # no T, no k there
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path, mapping=mapping)
+    (problem,) = info.value.problems
+    assert (problem.sheet, problem.row) == ("Barriers", 1)
+    assert problem.reason == "a rates sheet needs label, T and k columns; this one has no T, k"
+
+
+def test_cli_map_rejects_and_dry_run_exit_codes(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    path = write_csv(
+        tmp_path / "odd.csv",
+        ["Cmpd code", "Temp.", "Sep.", "Barrier"],
+        [["K-7", 25, 38.5, 14.8], ["K-9", "hot", 30, 15.0]],
+    )
+    mapping = tmp_path / "odd.toml"
+    mapping.write_text(MAPPING, encoding="utf-8")
+    dry = cli("import", str(path), "--map", str(mapping), "--dry-run")
+    assert dry.exit_code == 1  # a dry run that finds problems says so in its exit code
+    assert "would add 1, update 0, leave 0 unchanged; 1 row(s) with problems" in dry.stdout
+    assert "row 3, column 'Temp.': 'hot': not a number" in dry.stdout
+    rejects = tmp_path / "out" / "bad.csv"
+    rejects.parent.mkdir()
+    done = cli("import", str(path), "--map", str(mapping), "--skip-bad", "--rejects", str(rejects))
+    assert done.exit_code == 0, done.stderr
+    assert "1 added, 0 updated, 0 unchanged, 1 rejected" in done.stdout
+    with rejects.open(encoding="utf-8") as fh:
+        (line,) = list(csv.DictReader(fh))
+    assert (line["row"], line["column"], line["text"]) == ("3", "Temp.", "hot")
+    missing = cli("import", str(path), "--map", str(tmp_path / "nope.toml"))
+    assert missing.exit_code == 2
+    assert missing.stderr == f"error: mapping file {tmp_path / 'nope.toml'}: no such file\n"

@@ -21,6 +21,7 @@ Grouped by what they act on:
   :func:`build_report`
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
   :func:`calc_halflife`, :func:`calc_plan` (kinetics at the bench, no database)
+* ``files``     — :func:`import_table`, :func:`export_measurements`
 """
 
 from __future__ import annotations
@@ -29,6 +30,7 @@ from registry.api.admin import backup, restore, schema_state, upgrade_schema, ve
 from registry.api.calc import calc_coalescence, calc_eyring, calc_halflife, calc_plan, calc_rate
 from registry.api.checks import accept_finding, check
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
+from registry.api.files import export_measurements, import_table
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
 from registry.api.records import (
     add_measurement,
@@ -65,9 +67,11 @@ __all__ = [
     "convert",
     "deferred_checks",
     "edit_measurement",
+    "export_measurements",
     "fit_lineshapes",
     "get_measurement",
     "history",
+    "import_table",
     "init_registry",
     "list_measurements",
     "open_registry",

@@ -1,13 +1,18 @@
-"""``import`` and ``export``: spreadsheets in and out (the work is in :mod:`registry.io`)."""
+"""``import`` and ``export``: spreadsheets in and out (:func:`registry.api.import_table`,
+:func:`registry.api.export_measurements`)."""
 
 from __future__ import annotations
 
+import sys
 from typing import Any
 
 import typer
 
 from registry.cli.context import state
 from registry.cli.output import print_json, table_text
+
+#: imports of fewer rows (and structures) than this show no progress bar
+PROGRESS_MIN_ROWS = 5000
 
 
 def register(app: typer.Typer) -> None:
@@ -61,21 +66,25 @@ def import_cmd(
     as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
 ) -> None:
     from registry import api
-    from registry.io import import_table
 
     st = state(ctx)
     database = api.open_registry(st.db)
-    summary = import_table(
-        database,
-        file,
-        sheet=sheet,
-        mapping_path=map_file,
-        dry_run=dry_run,
-        skip_bad=skip_bad,
-        rejects_path=rejects,
-        actor=st.actor,
-        progress=not as_json,
-    )
+    bar = None if as_json else ProgressBar()
+    try:
+        summary = api.import_table(
+            database,
+            file,
+            sheet=sheet,
+            mapping=map_file,
+            dry_run=dry_run,
+            skip_bad=skip_bad,
+            rejects=rejects,
+            actor=st.actor,
+            progress=bar,
+        )
+    finally:
+        if bar is not None:
+            bar.close()
     if as_json:
         print_json(summary)
     else:
@@ -84,58 +93,37 @@ def import_cmd(
         raise typer.Exit(1)
 
 
+class ProgressBar:
+    """A progress bar on stderr for big imports, on a terminal only (never with --json)."""
+
+    def __init__(self, stream: Any = None) -> None:
+        self.stream = stream or sys.stderr
+        self.bar: Any = None
+        self.stage: str | None = None
+
+    def __call__(self, stage: str, done: int, total: int) -> None:
+        if total < PROGRESS_MIN_ROWS or not self.stream.isatty():
+            return
+        if self.bar is None:
+            from tqdm import tqdm
+
+            self.bar = tqdm(total=total, unit="row", file=self.stream, leave=False)
+        if stage != self.stage:
+            self.stage = stage
+            self.bar.set_description(stage)
+            self.bar.refresh()
+        self.bar.update(done)
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.close()
+            self.bar = None
+
+
 def render_summary(s: dict[str, Any]) -> str:
-    """The import summary as text (the --json form carries the same data)."""
-    lines: list[str] = []
-    if s["dry_run"]:
-        lines.append(f"dry run of {s['file']} — nothing written")
-        for sheet, rows in s["mapping"].items():
-            lines.append(f"\nsheet {sheet} ({s['sheet_kinds'][sheet]}): columns")
-            lines.append(
-                _indent(table_text(rows, ["column", "header", "field", "unit", "role", "from"]))
-            )
-        if s.get("preview"):
-            lines.append("\nfirst rows as they would be stored")
-            cols = [
-                "compound",
-                "method",
-                "solvent",
-                "dg_kj_mol",
-                "dg_text",
-                "tc_k",
-                "dnu_hz",
-                "field_mhz",
-                "rate_points",
-                "inchikey",
-            ]
-            lines.append(_indent(table_text(s["preview"], cols)))
-        lines.append(
-            f"\nwould add {s['would_add']}, update {s['would_update']}, leave "
-            f"{s['unchanged']} unchanged; {s['would_reject']} row(s) with problems"
-        )
-    else:
-        lines.append(
-            f"imported {s['file']} (batch {s['batch_id']}): {s['added']} added, "
-            f"{s['updated']} updated, {s['unchanged']} unchanged, {s['rejected']} rejected"
-        )
-        v = s.get("validation") or {}
-        if v.get("available"):
-            counts = v.get("findings") or {}
-            text = ", ".join(f"{n} {sev}" for sev, n in sorted(counts.items()) if n) or "none"
-            lines.append(f"validation findings on the new/changed rows: {text}")
-            for f in v.get("list", [])[:20]:
-                message = f["message"] if len(f["message"]) <= 160 else f["message"][:157] + "…"
-                lines.append(
-                    f"  measurement {f['measurement_id']}: {f['severity']} [{f['rule_id']}] {message}"
-                )
-            if len(v.get("list", [])) > 20:
-                lines.append(f"  … and {len(v['list']) - 20} more ('fluxledger check' lists all)")
-        else:
-            lines.append("validation: not available in this installation (rules not installed)")
-        if s.get("rejects_file"):
-            lines.append(f"rejected rows written to {s['rejects_file']}")
-    for note in s["notes"]:
-        lines.append(f"note: {note}")
+    """The import report as text (the --json form carries the same data)."""
+    lines = _dry_run_lines(s) if s["dry_run"] else _written_lines(s)
+    lines.extend(f"note: {note}" for note in s["notes"])
     if s["problems"]:
         lines.append(f"{len(s['problems'])} problem(s):")
         for p in s["problems"][:50]:
@@ -153,6 +141,53 @@ def render_summary(s: dict[str, Any]) -> str:
         if len(s["problems"]) > 50:
             lines.append(f"  … and {len(s['problems']) - 50} more")
     return "\n".join(lines)
+
+
+_PREVIEW_COLUMNS = [
+    "compound", "method", "solvent", "dg_kj_mol", "dg_text", "tc_k", "dnu_hz", "field_mhz",
+    "rate_points", "inchikey",
+]  # fmt: skip
+
+
+def _dry_run_lines(s: dict[str, Any]) -> list[str]:
+    lines = [f"dry run of {s['file']} — nothing written"]
+    for sheet, rows in s["mapping"].items():
+        lines.append(f"\nsheet {sheet} ({s['sheet_kinds'][sheet]}): columns")
+        lines.append(
+            _indent(table_text(rows, ["column", "header", "field", "unit", "role", "from"]))
+        )
+    if s.get("preview"):
+        lines.append("\nfirst rows as they would be stored")
+        lines.append(_indent(table_text(s["preview"], _PREVIEW_COLUMNS)))
+    lines.append(
+        f"\nwould add {s['would_add']}, update {s['would_update']}, leave "
+        f"{s['unchanged']} unchanged; {s['would_reject']} row(s) with problems"
+    )
+    return lines
+
+
+def _written_lines(s: dict[str, Any]) -> list[str]:
+    lines = [
+        f"imported {s['file']} (batch {s['batch_id']}): {s['added']} added, "
+        f"{s['updated']} updated, {s['unchanged']} unchanged, {s['rejected']} rejected"
+    ]
+    v = s.get("validation") or {}
+    if v.get("available"):
+        counts = v.get("findings") or {}
+        text = ", ".join(f"{n} {sev}" for sev, n in sorted(counts.items()) if n) or "none"
+        lines.append(f"validation findings on the new/changed rows: {text}")
+        for f in v.get("list", [])[:20]:
+            message = f["message"] if len(f["message"]) <= 160 else f["message"][:157] + "…"
+            lines.append(
+                f"  measurement {f['measurement_id']}: {f['severity']} [{f['rule_id']}] {message}"
+            )
+        if len(v.get("list", [])) > 20:
+            lines.append(f"  … and {len(v['list']) - 20} more ('fluxledger check' lists all)")
+    else:
+        lines.append("validation: not available in this installation (rules not installed)")
+    if s.get("rejects_file"):
+        lines.append(f"rejected rows written to {s['rejects_file']}")
+    return lines
 
 
 def _indent(text: str) -> str:
@@ -185,41 +220,31 @@ def export_cmd(
     ),
     as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
 ) -> None:
-    from pathlib import Path
-
     from registry import api
-    from registry.io import export_measurements
-    from registry.record.units import parse_value
-    from registry.reports.tables import TABLE_FORMATS, export_table
 
-    lo = parse_value(barrier_min, "energy", field="--barrier-min").value if barrier_min else None
-    hi = parse_value(barrier_max, "energy", field="--barrier-max").value if barrier_max else None
     database = api.open_registry(state(ctx).db)
-    filters: dict[str, Any] = dict(
+    result = api.export_measurements(
+        database,
+        output,
+        format=fmt,
         compound=compound,
         method=method,
         solvent=solvent,
         process=process,
         status=status,
-        dg_min_kj_mol=lo,
-        dg_max_kj_mol=hi,
+        barrier_min=barrier_min,
+        barrier_max=barrier_max,
         include_retracted=include_retracted,
+        energy_unit=energy_unit,
+        uncertainty=uncertainty,
     )
-    if (fmt or Path(output).suffix.lstrip(".")).lower() in TABLE_FORMATS:  # a table for a paper
-        result = export_table(
-            database, output, fmt, energy_unit=energy_unit, uncertainty=uncertainty, **filters
-        )
-        if as_json:
-            print_json(result)
-        else:
-            typer.echo(
-                f"exported {result['measurements']} measurement(s) to {result['file']} as a "
-                f"{result['format']} table ({result['energy_unit']})"
-            )
-        return
-    result = export_measurements(database, output, fmt, **filters)
     if as_json:
         print_json(result)
+    elif "energy_unit" in result:  # a table for a paper
+        typer.echo(
+            f"exported {result['measurements']} measurement(s) to {result['file']} as a "
+            f"{result['format']} table ({result['energy_unit']})"
+        )
     else:
         typer.echo(
             f"exported {result['measurements']} measurement(s), {result['rate_points']} rate "

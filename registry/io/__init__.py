@@ -1,21 +1,25 @@
 """Spreadsheets in and out: import group tables, export clean ones.
 
-Map (data flows top to bottom on import)::
+Map (data flows top to bottom on import; :mod:`.importer` runs the stages in order)::
 
     readers    .xlsx/.ods (pandas + calamine), .csv/.tsv (UTF-8, else cp1252 with a note);
                formulas and merged cells read from the workbook itself
-    headers    header text → field + unit ("ΔG‡ (kcal/mol)", "T_c/K", "Δν (Hz)" …)
+    headers    header text → field + unit ("ΔG‡ (kcal/mol)", "T_c/K", "Δν (Hz)" …), from the
+               fields table (registry.record.fields)
     mapping    a sheet's column plan; a TOML mapping file overrides the guess
     cells      cell → text; formula-injection guard (export) and its undoing (import)
-    parallel   normalize entries and parse distinct SMILES in a process pool
+    sheets     read stage: each sheet's header row and plan, handed to entries or rates
+    entries    build stage: one EntryInput per row of an entries sheet
+    rates      rates sheets, rate lists in one cell, rate points of stored measurements
+    prepare    normalize stage: units and structures (parallel: a process pool for big files)
+    conflicts  compound label/structure conflicts and duplicate rows, before the write
     upsert     match existing measurements; update them with before/after revisions
-    importer   the whole import: read → check everything → one write transaction
+    commit     write stage: one transaction (batch row, new rows, updates, rate points)
+    report     the import report, the rejected-rows file, the validation of new rows
+    results    what one stage hands to the next
+    importer   the orchestrator: read → check everything → one write transaction
     export     csv / xlsx / json with reported and normalized values, findings, references
 
-Public entry points: :func:`import_table` and :func:`export_measurements`.
+The library surface is :func:`registry.api.import_table` and
+:func:`registry.api.export_measurements`; importing this package loads nothing heavy.
 """
-
-from registry.io.export import export_measurements
-from registry.io.importer import import_table
-
-__all__ = ["export_measurements", "import_table"]

@@ -11,8 +11,12 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Sequence
 from datetime import date, datetime, time
 from typing import Any
+
+from registry.errors import UnitError
+from registry.record import fields
 
 #: characters that make a spreadsheet program read a text cell as a formula
 FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
@@ -21,6 +25,12 @@ FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
 EMPTY_MARKERS = frozenset({"-", "–", "—", "−", "n.d.", "nd", "n/a", "na", "n.a.", "?", "--"})
 
 _NUMBER_START = re.compile(r"^\s*[~≈]?\s*[+\-−–]?\s*(?:\d|[.,]\d)")
+_PLAIN_NUMBER = re.compile(
+    r"^[+\-−–]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+\-]?\d+)?(?:\(\d+\))?"
+    r"(?:\s*(?:±|\+/-|\+-)\s*\+?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+\-]?\d+)?)?$"
+)
+_NUMBER_PREFIX = re.compile(r"^\s*([+\-−–]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+\-]?\d+)?)(.*)$")
+_TRIGGER_CHARS = "=+-@\t\r"
 
 
 def neutralise(text: str) -> str:
@@ -32,7 +42,7 @@ def neutralise(text: str) -> str:
 
 def unneutralise(text: str) -> str:
     """Undo :func:`neutralise`: drop a leading apostrophe that guards a formula trigger."""
-    if len(text) > 1 and text[0] == "'" and text[1] in "=+-@\t\r":
+    if len(text) > 1 and text[0] == "'" and text[1] in _TRIGGER_CHARS:
         return text[1:]
     return text
 
@@ -66,3 +76,84 @@ def looks_numeric(text: str) -> bool:
 def is_formula_text(text: str) -> bool:
     """A cell text that is a spreadsheet formula (an un-neutralised leading '=')."""
     return text.startswith("=") and len(text) > 1
+
+
+def column_texts(series: Any) -> list[str | None]:
+    """One column's cells as text (see :func:`cell_text`); text cells take a fast path.
+
+    The importer reads every cell of a used column through here (a 100,000-row sheet: a few
+    hundred thousand cells), so plain strings skip :func:`cell_text`'s type tests.
+    """
+    out: list[str | None] = []
+    append = out.append
+    for v in series.tolist():
+        if type(v) is str:
+            t = v.strip()
+            if len(t) > 1 and t[0] == "'" and t[1] in _TRIGGER_CHARS:
+                t = t[1:].strip()
+            append(t or None)
+        else:
+            append(cell_text(v))
+    return out
+
+
+def raw_formula_rows(series: Any) -> list[int]:
+    """Positions of text cells that are formulas (an un-neutralised leading '=')."""
+    return [
+        i
+        for i, v in enumerate(series.tolist())
+        if type(v) is str and v[:1] in ("=", " ") and is_formula_text(v.strip())
+    ]
+
+
+def combine_error(value: str, error: str | None) -> str:
+    """'14.2' + '0.3' → '14.2 ± 0.3'; '14.2 kcal/mol' + '0.3' → '14.2 ± 0.3 kcal/mol'.
+
+    A separate uncertainty column is folded into the value's text, so the stored text says
+    what the sheet said and the unit layer reads both at once.
+    """
+    if not error:
+        return value
+    m = _NUMBER_PREFIX.match(value)
+    e = _NUMBER_PREFIX.match(error)
+    if not m or not e or "±" in value or "+/-" in value:
+        return value
+    return f"{m[1]} ± {e[1]}{m[2]}"
+
+
+def with_unit(text: str, unit: str | None) -> str:
+    """Append the header's unit to a bare number, so the stored text says what was meant."""
+    if unit and _PLAIN_NUMBER.match(text):
+        return f"{text} {unit}"
+    return text
+
+
+#: the columns of one rate point (T and k: value, uncertainty, text as reported)
+RATE_COLUMNS: tuple[str, ...] = tuple(
+    c
+    for f in fields.stored_values("rate_point")
+    for c in (f.value_column, f.error_column, f.text_column)
+    if c
+)
+
+
+def parse_rate_list(text: str) -> list[tuple[str, str]]:
+    """An export's embedded rate points, ``k @ T; k @ T`` (or ``T, k; T, k``) → [(T, k)]."""
+    out = []
+    for part in text.split(";"):
+        part = part.strip()
+        if not part:
+            continue
+        if "@" in part:
+            k_text, t_text = (p.strip() for p in part.split("@", 1))
+        elif "," in part:
+            t_text, k_text = (p.strip() for p in part.split(",", 1))
+        else:
+            raise UnitError("rates", part, "write rate points as 'k @ T; k @ T'")
+        out.append((t_text, k_text))
+    return out
+
+
+def format_rate_list(rates: Sequence[tuple[str, str]]) -> str:
+    """Inverse of :func:`parse_rate_list`: [(T, k)] → ``k @ T; k @ T``."""
+    return "; ".join(f"{k} @ {t}" for t, k in rates)

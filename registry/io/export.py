@@ -15,77 +15,33 @@ from __future__ import annotations
 
 import csv
 import json
-from collections import defaultdict
 from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
-from sqlalchemy import select
-
 from registry.errors import UsageError
-from registry.io.cells import neutralise
-from registry.io.importer import format_rate_list
+from registry.io.cells import RATE_COLUMNS, format_rate_list, neutralise
+from registry.record import fields
 from registry.storage.database import Database
-from registry.storage.models import (
-    CoalescenceObservation,
-    Compound,
-    Measurement,
-    Process,
-    RatePoint,
-    ValidationFinding,
-)
 
 FORMATS = ("csv", "xlsx", "json")
 
-#: reported-text columns: header → (table, column)
+#: which part of a gathered record each table's columns are in
+_PART = {"measurement": "m", "compound": "c", "process": "p", "coalescence": "co"}
+
+#: reported-text columns: header (the entry field) → (part, column), in the fields table's order
 REPORTED: list[tuple[str, str, str]] = [
-    ("label", "m", "label"),
-    ("compound", "c", "label"),
-    ("name", "c", "name"),
-    ("smiles", "c", "smiles_input"),
-    ("process", "p", "kind"),
-    ("sites", "p", "sites"),
-    ("nucleus", "p", "nucleus"),
-    ("method", "m", "method"),
-    ("solvent", "m", "solvent_text"),
-    ("field", "m", "field_text"),
-    ("t_min", "m", "t_min_text"),
-    ("t_max", "m", "t_max_text"),
-    ("dg", "m", "dg_text"),
-    ("dg_t", "m", "dg_t_text"),
-    ("dh", "m", "dh_text"),
-    ("ds", "m", "ds_text"),
-    ("ea", "m", "ea_text"),
-    ("log10_a", "m", "log10_a_text"),
-    ("tc", "co", "tc_text"),
-    ("dnu", "co", "dnu_text"),
-    ("j", "co", "j_text"),
-    ("population", "co", "population_text"),
-    ("reference", "m", "reference"),
-    ("status", "m", "status"),
+    (f.name, _PART[f.table], f.text_column) for f in fields.FIELDS if f.entry and f.text_column
 ]
 
-#: normalized numeric columns (canonical units in the names)
+#: normalized numeric columns (canonical units in the names): every value field's float and
+#: uncertainty, and the population ratio read from its text
 NORMALIZED: list[tuple[str, str]] = [
-    ("m", "field_mhz"),
-    ("m", "t_min_k"),
-    ("m", "t_max_k"),
-    ("m", "dg_kj_mol"),
-    ("m", "dg_err_kj_mol"),
-    ("m", "dg_t_k"),
-    ("m", "dh_kj_mol"),
-    ("m", "dh_err_kj_mol"),
-    ("m", "ds_j_mol_k"),
-    ("m", "ds_err_j_mol_k"),
-    ("m", "ea_kj_mol"),
-    ("m", "ea_err_kj_mol"),
-    ("m", "log10_a"),
-    ("co", "tc_k"),
-    ("co", "tc_err_k"),
-    ("co", "dnu_hz"),
-    ("co", "dnu_err_hz"),
-    ("co", "j_hz"),
-    ("co", "population_ratio"),
+    (_PART[f.table], column)
+    for f in fields.FIELDS
+    if f.entry
+    for column in fields.value_columns_of_text().get(f.text_column or "", ())
+    if not column.endswith("_id")  # the solvent's row in the solvent table, not a value
 ]
 
 DERIVED: list[tuple[str, str]] = [
@@ -103,51 +59,47 @@ DERIVED: list[tuple[str, str]] = [
 ]
 
 
-def _chunks(items: Sequence[Any], size: int = 500) -> list[Sequence[Any]]:
-    return [items[i : i + size] for i in range(0, len(items), size)]
+#: compound columns an export reads (not the binary molecule and fingerprint)
+_COMPOUND_COLUMNS = (
+    "id, label, name, smiles_input, smiles_canonical, inchi, inchikey, formula, net_charge, "
+    "structure_ok, structure_problem, notes, created_at"
+)
 
 
 def gather(database: Database, ids: Sequence[int]) -> list[dict[str, Any]]:
     """Full records of measurements (compound, process, coalescence, rates, findings), by id."""
-    m_t, c_t, p_t = Measurement.__table__, Compound.__table__, Process.__table__
-    co_t, r_t, f_t = (
-        CoalescenceObservation.__table__,
-        RatePoint.__table__,
-        ValidationFinding.__table__,
-    )
     records: dict[int, dict[str, Any]] = {}
     with database.read() as conn:
-        for chunk in _chunks(list(ids)):
-            for m in conn.execute(select(m_t).where(m_t.c.id.in_(chunk))).mappings():
-                records[m["id"]] = {
-                    "m": dict(m),
-                    "c": {},
-                    "p": {},
-                    "co": [],
-                    "rates": [],
-                    "findings": [],
-                }
-            cids = sorted({records[i]["m"]["compound_id"] for i in chunk if i in records})
-            pids = sorted({records[i]["m"]["process_id"] for i in chunk if i in records} - {None})
-            cols = [c for c in c_t.c if c.name not in ("mol_binary", "pattern_fp")]
-            compounds = {
-                r["id"]: dict(r)
-                for r in conn.execute(select(*cols).where(c_t.c.id.in_(cids))).mappings()
-            }
-            processes = {
-                r["id"]: dict(r)
-                for r in conn.execute(select(p_t).where(p_t.c.id.in_(pids))).mappings()
-            }
-            for i in chunk:
-                if i in records:
-                    rec = records[i]
-                    rec["c"] = compounds.get(rec["m"]["compound_id"], {})
-                    rec["p"] = processes.get(rec["m"]["process_id"], {}) or {}
-            for table, key in ((co_t, "co"), (r_t, "rates"), (f_t, "findings")):
-                for r in conn.execute(
-                    select(table).where(table.c.measurement_id.in_(chunk)).order_by(table.c.id)
-                ).mappings():
-                    records[r["measurement_id"]][key].append(dict(r))
+        for m in conn.records_where_in("SELECT * FROM measurement WHERE 1 = 1", "id", ids):
+            records[m["id"]] = {"m": m, "c": {}, "p": {}, "co": [], "rates": [], "findings": []}
+        measurements = [r["m"] for r in records.values()]
+        compounds = {
+            r["id"]: r
+            for r in conn.records_where_in(
+                f"SELECT {_COMPOUND_COLUMNS} FROM compound WHERE 1 = 1",
+                "id",
+                {m["compound_id"] for m in measurements},
+            )
+        }
+        processes = {
+            r["id"]: r
+            for r in conn.records_where_in(
+                "SELECT * FROM process WHERE 1 = 1", "id", {m["process_id"] for m in measurements}
+            )
+        }
+        for table, key in (
+            ("coalescence", "co"),
+            ("rate_point", "rates"),
+            ("validation_finding", "findings"),
+        ):
+            rows = conn.records_where_in(
+                f"SELECT * FROM {table} WHERE 1 = 1", "measurement_id", records
+            )
+            for r in sorted(rows, key=lambda r: r["id"]):
+                records[r["measurement_id"]][key].append(r)
+    for rec in records.values():
+        rec["c"] = compounds.get(rec["m"]["compound_id"], {})
+        rec["p"] = processes.get(rec["m"]["process_id"], {})
     return [records[i] for i in ids if i in records]
 
 
@@ -205,10 +157,7 @@ def json_record(rec: dict[str, Any]) -> dict[str, Any]:
             for _, col in NORMALIZED
             if flat[f"{col} (normalized)"] is not None
         },
-        "rate_points": [
-            {k: r[k] for k in ("t_k", "t_err_k", "t_text", "k_per_s", "k_err_per_s", "k_text")}
-            for r in rec["rates"]
-        ],
+        "rate_points": [{k: r[k] for k in RATE_COLUMNS} for r in rec["rates"]],
         "extra": json.loads(m["extra_json"]) if m.get("extra_json") else {},
         "findings": [
             {
@@ -256,19 +205,16 @@ def _safe(value: Any) -> Any:
     return neutralise(str(value))
 
 
-def export_measurements(
-    database: Database, output: str | Path, fmt: str | None = None, **filters: Any
+def write_export(
+    database: Database, ids: Sequence[int], output: str | Path, fmt: str | None = None
 ) -> dict[str, Any]:
-    """Write the measurements that ``filters`` (those of :func:`registry.api.list_measurements`) select."""
-    from registry import api
-
+    """Write the measurements ``ids`` as csv, xlsx or json (``fmt``, else the file's suffix)."""
     path = Path(output)
     fmt = (fmt or path.suffix.lstrip(".")).lower()
     if fmt not in FORMATS:
-        raise UsageError(f"--format must be one of {', '.join(FORMATS)} (got {fmt!r})")
+        raise UsageError(f"format must be one of {', '.join(FORMATS)} (got {fmt!r})")
     if not path.parent.exists():
         raise UsageError(f"folder {path.parent} does not exist")
-    ids = [r["id"] for r in api.list_measurements(database, **filters)]
     records = gather(database, ids)
     if fmt == "json":
         path.write_text(
@@ -317,11 +263,3 @@ def _write_xlsx(path: Path, rows: Sequence[dict[str, Any]], columns: list[str]) 
     for row in rows:
         sheet.append([_safe(row.get(c)) for c in columns])
     book.save(path)
-
-
-def _counts_by_severity(records: Sequence[dict[str, Any]]) -> dict[str, int]:
-    out: dict[str, int] = defaultdict(int)
-    for r in records:
-        for f in r["findings"]:
-            out[f["severity"]] += 1
-    return dict(out)

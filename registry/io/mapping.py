@@ -52,6 +52,10 @@ _ENTRY_FIELDS = {
 }
 
 
+#: the columns every rates sheet needs (field, as messages name it)
+_RATE_COLUMNS = (("label", "label"), ("t", "T"), ("k", "k"))
+
+
 @dataclass
 class MappingFile:
     """A parsed mapping file; every part optional."""
@@ -170,43 +174,55 @@ def plan_sheet(
         header = "" if raw is None else str(raw).strip()
         if header.lower() in ("nan", "none"):
             header = ""
-        if not header:
-            if data_columns is not None and index in data_columns:
-                problems.append(
-                    RowProblem(
-                        file,
-                        sheet,
-                        header_row,
-                        column_letter(index),
-                        None,
-                        "this column has values but no header; name it (or map it in a mapping file)",
-                    )
-                )
-            continue
-        if header in mapping.columns:
-            target, unit = mapping.columns[header]
-            if target in ROLES:
-                columns.append(Column(index, header, None, None, target, "mapping file"))
-            elif target.endswith("_err") and target[:-4] in VALUE_QUANTITY:
-                columns.append(Column(index, header, target[:-4], unit, "error", "mapping file"))
-            else:
-                guess = guess_header(header)
-                columns.append(
-                    Column(index, header, target, unit or guess.unit, "value", "mapping file")
-                )
-            continue
-        guess: HeaderGuess = guess_header(header)
-        field_name = guess.field
-        if guess.role == "error" and field_name is None:
-            # a bare "±" column: the uncertainty of the value column just before it
-            previous = columns[-1] if columns else None
-            if previous is not None and previous.role == "value" and previous.field:
-                field_name = previous.field
-            else:
-                columns.append(Column(index, header, None, None, "extra", "guess"))
-                continue
-        columns.append(Column(index, header, field_name, guess.unit, guess.role, "guess"))
+        if header:
+            columns.append(_column(index, header, mapping, columns[-1] if columns else None))
+        elif data_columns is not None and index in data_columns:
+            reason = "this column has values but no header; name it (or map it in a mapping file)"
+            problems.append(RowProblem(file, sheet, header_row, column_letter(index), None, reason))
+    _demote_repeats(columns, notes)
+    kind = _sheet_kind(sheet, columns, mapping)
+    if kind == "rates":  # chosen by the mapping file: the columns may still be missing
+        have = {c.field for c in columns if c.role == "value"}
+        missing = [title for name, title in _RATE_COLUMNS if name not in have]
+        if missing:
+            reason = (
+                f"a rates sheet needs label, T and k columns; this one has no {', '.join(missing)}"
+            )
+            problems.append(RowProblem(file, sheet, header_row, None, None, reason))
+    for field_name, unit in mapping.units.items():
+        for col in columns:
+            if col.field == field_name and col.role in ("value", "error") and not col.unit:
+                col.unit = unit
+    for col in columns:
+        if col.role in ("value", "error") and col.field in VALUE_QUANTITY and col.unit:
+            _check_header_unit(file, sheet, header_row, col, problems, notes)
+        elif col.role == "value" and col.field not in VALUE_QUANTITY and col.unit:
+            col.unit = None  # "Solvent (deuterated)": a remark, not a unit
+    return SheetPlan(sheet, kind, header_row, columns, dict(mapping.defaults), notes)
 
+
+def _column(index: int, header: str, mapping: MappingFile, previous: Column | None) -> Column:
+    """What one named column is: from the mapping file when it names it, else guessed."""
+    if header in mapping.columns:
+        target, unit = mapping.columns[header]
+        if target in ROLES:
+            return Column(index, header, None, None, target, "mapping file")
+        if target.endswith("_err") and target[:-4] in VALUE_QUANTITY:
+            return Column(index, header, target[:-4], unit, "error", "mapping file")
+        return Column(
+            index, header, target, unit or guess_header(header).unit, "value", "mapping file"
+        )
+    guess: HeaderGuess = guess_header(header)
+    if guess.role == "error" and guess.field is None:
+        # a bare "±" column: the uncertainty of the value column just before it
+        if previous is not None and previous.role == "value" and previous.field:
+            return Column(index, header, previous.field, guess.unit, "error", "guess")
+        return Column(index, header, None, None, "extra", "guess")
+    return Column(index, header, guess.field, guess.unit, guess.role, "guess")
+
+
+def _demote_repeats(columns: list[Column], notes: list[str]) -> None:
+    """A second column for the same field is kept as an extra attribute (with a note)."""
     seen: dict[tuple[str, str], Column] = {}
     for col in columns:
         if col.role not in ("value", "error") or not col.field:
@@ -223,6 +239,9 @@ def plan_sheet(
             continue
         seen.setdefault(key, col)
 
+
+def _sheet_kind(sheet: str | None, columns: list[Column], mapping: MappingFile) -> str:
+    """entries, rates or skip; a bare T is ΔG‡'s temperature in entries, the rate's in rates."""
     value_fields = {c.field for c in columns if c.role == "value"}
     kind = "skip"
     if value_fields & _ENTRY_FIELDS or "method" in mapping.defaults:
@@ -241,17 +260,7 @@ def plan_sheet(
         for col in columns:
             if col.field == "dg_t":
                 col.field = "t"
-
-    for field_name, unit in mapping.units.items():
-        for col in columns:
-            if col.field == field_name and col.role in ("value", "error") and not col.unit:
-                col.unit = unit
-    for col in columns:
-        if col.role in ("value", "error") and col.field in VALUE_QUANTITY and col.unit:
-            _check_header_unit(file, sheet, header_row, col, problems, notes)
-        elif col.role == "value" and col.field not in VALUE_QUANTITY and col.unit:
-            col.unit = None  # "Solvent (deuterated)": a remark, not a unit
-    return SheetPlan(sheet, kind, header_row, columns, dict(mapping.defaults), notes)
+    return kind
 
 
 def _check_header_unit(

@@ -77,7 +77,9 @@ def read_file(path: Path, sheet: str | None = None) -> RawFile:
     suffix = path.suffix.lower()
     if suffix in (".csv", ".tsv", ".txt"):
         if sheet:
-            raise FileFormatError(str(path), "a CSV/TSV file has no sheets; drop --sheet", sheet)
+            raise FileFormatError(
+                str(path), "a CSV/TSV file has no sheets; import it without a sheet name", sheet
+            )
         raw = _read_delimited(path, data, suffix)
         return RawFile(path, digest, [raw], list(raw.notes))
     if suffix in (".xlsx", ".xlsm", ".ods"):

@@ -20,20 +20,12 @@ from dataclasses import dataclass, field
 from datetime import UTC, datetime
 from typing import Any
 
-from sqlalchemy import Connection, delete, insert, select, update
-
+from registry.io.cells import RATE_COLUMNS
 from registry.record import vocab
 from registry.record.chem import Structure
 from registry.record.entry import NormalizedEntry
 from registry.storage import audit
-from registry.storage.lookup import rows_where_in
-from registry.storage.models import (
-    CoalescenceObservation,
-    Compound,
-    Measurement,
-    Process,
-    RatePoint,
-)
+from registry.storage.connection import Connection
 from registry.storage.writer import solvent_index
 
 MatchKey = tuple[Any, ...]
@@ -63,10 +55,6 @@ class UpsertPlan:
     ambiguous: list[tuple[int, list[int]]]  # (index, candidate ids)
 
 
-def _chunks(items: Sequence[Any], size: int = 500) -> list[Sequence[Any]]:
-    return [items[i : i + size] for i in range(0, len(items), size)]
-
-
 def _solvent_part(solvent_id: int | None, text: str | None) -> Any:
     if solvent_id is not None:
         return ("id", solvent_id)
@@ -84,34 +72,79 @@ def find_matches(
     structures: Sequence[Structure | None],
 ) -> tuple[list[int | None], list[tuple[int, list[int]]]]:
     """The existing measurement id each entry matches (None when new), and ambiguous entries."""
-    keys = sorted({s.inchikey for s in structures if s is not None and s.inchikey})
-    labels = sorted({e.compound["label"] for e in entries if e.compound.get("label")})
-    names = sorted(
-        {
-            e.compound["name"]
-            for e, s in zip(entries, structures, strict=True)
-            if e.compound.get("name") and not e.compound.get("label") and s is None
-        }
-    )
-    by_key: dict[str, int] = {}
-    by_label: dict[str, int] = {}
+    compound_ids = _compound_ids(conn, entries, structures)
+    known = {c for c in compound_ids if c is not None}
+    processes: dict[tuple[int, str, str, str], int] = {}
+    for pid, cid, kind, sites, nucleus in conn.rows_where_in(
+        "SELECT id, compound_id, kind, sites, nucleus FROM process WHERE 1 = 1",
+        "compound_id",
+        known,
+    ):
+        processes[(cid, kind, sites, nucleus)] = pid
+    existing: dict[MatchKey, list[int]] = defaultdict(list)
+    for mid, cid, pid, method, solvent_id, solvent_text, reference, label in conn.rows_where_in(
+        "SELECT id, compound_id, process_id, method, solvent_id, solvent_text, reference, label "
+        "FROM measurement WHERE 1 = 1",
+        "compound_id",
+        known,
+    ):
+        key = (
+            cid, pid, method, _solvent_part(solvent_id, solvent_text), reference or "", label or ""
+        )  # fmt: skip
+        existing[key].append(mid)
+    solvents = solvent_index(conn)
+    matches: list[int | None] = []
+    ambiguous: list[tuple[int, list[int]]] = []
+    for i, (e, cid) in enumerate(zip(entries, compound_ids, strict=True)):
+        pid = None
+        if cid is not None and e.process is not None:
+            pid = processes.get((cid, e.process["kind"], e.process["sites"], e.process["nucleus"]))
+        if cid is None or (e.process is not None and pid is None):
+            matches.append(None)
+            continue
+        m = e.measurement
+        sid = solvents.get(e.solvent_key) if e.solvent_key else None
+        key = (
+            cid, pid, m["method"], _solvent_part(sid, m["solvent_text"]), m["reference"] or "",
+            m["label"] or "",
+        )  # fmt: skip
+        ids = existing.get(key, [])
+        if len(ids) > 1:
+            ambiguous.append((i, sorted(ids)))
+            matches.append(None)
+        else:
+            matches.append(ids[0] if ids else None)
+    return matches, ambiguous
+
+
+def _compound_ids(
+    conn: Connection,
+    entries: Sequence[NormalizedEntry],
+    structures: Sequence[Structure | None],
+) -> list[int | None]:
+    """The registered compound of each entry (by InChIKey, then label, then a bare name)."""
+    keys = {s.inchikey for s in structures if s is not None and s.inchikey}
+    labels = {e.compound["label"] for e in entries if e.compound.get("label")}
+    names = {
+        e.compound["name"]
+        for e, s in zip(entries, structures, strict=True)
+        if e.compound.get("name") and not e.compound.get("label") and s is None
+    }
+    select = "SELECT id, {0} FROM compound WHERE 1 = 1"
+    by_key = {
+        key: cid for cid, key in conn.rows_where_in(select.format("inchikey"), "inchikey", keys)
+    }
+    by_label = {
+        lab: cid for cid, lab in conn.rows_where_in(select.format("label"), "label", labels)
+    }
     by_name: dict[str, int] = {}
-    for cid, key in rows_where_in(conn, [Compound.id, Compound.inchikey], Compound.inchikey, keys):
-        by_key[key] = cid
-    for cid, label in rows_where_in(conn, [Compound.id, Compound.label], Compound.label, labels):
-        by_label[label] = cid
     for cid, name in sorted(
-        rows_where_in(
-            conn,
-            [Compound.id, Compound.name],
-            Compound.name,
-            names,
-            Compound.label.is_(None),
-            Compound.inchikey.is_(None),
+        conn.rows_where_in(
+            "SELECT id, name FROM compound WHERE label IS NULL AND inchikey IS NULL", "name", names
         )
     ):
         by_name.setdefault(name, cid)
-    compound_ids: list[int | None] = []
+    out: list[int | None] = []
     for e, s in zip(entries, structures, strict=True):
         cid = None
         if s is not None and s.inchikey:
@@ -120,71 +153,8 @@ def find_matches(
             cid = by_label.get(e.compound["label"])
         if cid is None and e.compound.get("name") and not e.compound.get("label") and s is None:
             cid = by_name.get(e.compound["name"])
-        compound_ids.append(cid)
-    known = sorted({c for c in compound_ids if c is not None})
-    processes: dict[tuple[int, str, str, str], int] = {}
-    existing: dict[MatchKey, list[int]] = defaultdict(list)
-    for pid, cid, kind, sites, nucleus in rows_where_in(
-        conn,
-        [Process.id, Process.compound_id, Process.kind, Process.sites, Process.nucleus],
-        Process.compound_id,
-        known,
-    ):
-        processes[(cid, kind, sites, nucleus)] = pid
-    for mid, cid, pid, method, solvent_id, solvent_text, reference, label in rows_where_in(
-        conn,
-        [
-            Measurement.id,
-            Measurement.compound_id,
-            Measurement.process_id,
-            Measurement.method,
-            Measurement.solvent_id,
-            Measurement.solvent_text,
-            Measurement.reference,
-            Measurement.label,
-        ],
-        Measurement.compound_id,
-        known,
-    ):
-        key = (
-            cid,
-            pid,
-            method,
-            _solvent_part(solvent_id, solvent_text),
-            reference or "",
-            label or "",
-        )
-        existing[key].append(mid)
-    solvents = solvent_index(conn)
-    matches: list[int | None] = []
-    ambiguous: list[tuple[int, list[int]]] = []
-    for i, (e, cid) in enumerate(zip(entries, compound_ids, strict=True)):
-        if cid is None:
-            matches.append(None)
-            continue
-        pid = None
-        if e.process is not None:
-            pid = processes.get((cid, e.process["kind"], e.process["sites"], e.process["nucleus"]))
-            if pid is None:
-                matches.append(None)
-                continue
-        m = e.measurement
-        sid = solvents.get(e.solvent_key) if e.solvent_key else None
-        key = (
-            cid,
-            pid,
-            m["method"],
-            _solvent_part(sid, m["solvent_text"]),
-            m["reference"] or "",
-            m["label"] or "",
-        )
-        ids = existing.get(key, [])
-        if len(ids) > 1:
-            ambiguous.append((i, sorted(ids)))
-            matches.append(None)
-        else:
-            matches.append(ids[0] if ids else None)
-    return matches, ambiguous
+        out.append(cid)
+    return out
 
 
 def plan_upsert(
@@ -222,25 +192,15 @@ def plan_upsert(
 
 
 def _stored_state(conn: Connection, ids: Sequence[int]) -> dict[int, dict[str, Any]]:
+    """Each measurement's row with its coalescence rows and rate points (in insertion order)."""
     state: dict[int, dict[str, Any]] = {}
-    m_table = Measurement.__table__
-    c_table = CoalescenceObservation.__table__
-    r_table = RatePoint.__table__
-    for chunk in _chunks(sorted(set(ids))):
-        for row in conn.execute(select(m_table).where(m_table.c.id.in_(chunk))).mappings():
-            state[row["id"]] = {"measurement": dict(row), "coalescence": [], "rates": []}
-        for row in conn.execute(
-            select(c_table).where(c_table.c.measurement_id.in_(chunk)).order_by(c_table.c.id)
-        ).mappings():
-            state[row["measurement_id"]]["coalescence"].append(dict(row))
-        for row in conn.execute(
-            select(r_table).where(r_table.c.measurement_id.in_(chunk)).order_by(r_table.c.id)
-        ).mappings():
-            state[row["measurement_id"]]["rates"].append(dict(row))
+    for row in conn.records_where_in("SELECT * FROM measurement WHERE 1 = 1", "id", ids):
+        state[row["id"]] = {"measurement": row, "coalescence": [], "rates": []}
+    for table, key in (("coalescence", "coalescence"), ("rate_point", "rates")):
+        rows = conn.records_where_in(f"SELECT * FROM {table} WHERE 1 = 1", "measurement_id", state)
+        for row in sorted(rows, key=lambda r: r["id"]):
+            state[row["measurement_id"]][key].append(row)
     return state
-
-
-_RATE_KEYS = ("t_k", "t_err_k", "t_text", "k_per_s", "k_err_per_s", "k_text")
 
 
 def _compare(
@@ -275,8 +235,8 @@ def _compare(
         change.replace_coalescence = True
         change.coalescence = entry.coalescence
     if entry.rates:
-        old_rates = [{k: r[k] for k in _RATE_KEYS} for r in stored["rates"]]
-        new_rates = [{k: r.get(k) for k in _RATE_KEYS} for r in entry.rates]
+        old_rates = [{k: r[k] for k in RATE_COLUMNS} for r in stored["rates"]]
+        new_rates = [{k: r.get(k) for k in RATE_COLUMNS} for r in entry.rates]
         if old_rates != new_rates:
             before["rates"] = [[r["t_text"], r["k_text"]] for r in old_rates]
             after["rates"] = [[r["t_text"], r["k_text"]] for r in new_rates]
@@ -313,18 +273,13 @@ def apply_changes(
         if ch.replace_extra:
             values["extra_json"] = ch.extra_json
         values["updated_at"] = now
-        conn.execute(update(Measurement).where(Measurement.id == ch.measurement_id).values(values))
+        conn.update("measurement", values, id=ch.measurement_id)
         if ch.replace_coalescence:
             conn.execute(
-                delete(CoalescenceObservation).where(
-                    CoalescenceObservation.measurement_id == ch.measurement_id
-                )
+                "DELETE FROM coalescence WHERE measurement_id = :id", {"id": ch.measurement_id}
             )
             if ch.coalescence:
-                conn.execute(
-                    insert(CoalescenceObservation),
-                    [{**ch.coalescence, "measurement_id": ch.measurement_id}],
-                )
+                conn.insert("coalescence", {**ch.coalescence, "measurement_id": ch.measurement_id})
         if ch.rates is not None:
             replace_rate_points(conn, ch.measurement_id, ch.rates)
     audit.record_many(
@@ -349,30 +304,23 @@ def replace_rate_points(
     conn: Connection, measurement_id: int, rates: Sequence[dict[str, Any]]
 ) -> None:
     """Replace a measurement's rate points (inside the caller's transaction)."""
-    conn.execute(delete(RatePoint).where(RatePoint.measurement_id == measurement_id))
-    if rates:
-        conn.execute(
-            insert(RatePoint),
-            [
-                {**{k: r.get(k) for k in _RATE_KEYS}, "measurement_id": measurement_id}
-                for r in rates
-            ],
-        )
+    conn.execute("DELETE FROM rate_point WHERE measurement_id = :id", {"id": measurement_id})
+    conn.insert_many(
+        "rate_point",
+        [{**{k: r.get(k) for k in RATE_COLUMNS}, "measurement_id": measurement_id} for r in rates],
+    )
 
 
 def stored_rates(conn: Connection, ids: Sequence[int]) -> dict[int, list[dict[str, Any]]]:
     """Rate points of measurements, as dicts of the rate columns, in insertion order."""
     out: dict[int, list[dict[str, Any]]] = defaultdict(list)
-    r_table = RatePoint.__table__
-    for chunk in _chunks(sorted(set(ids))):
-        for row in conn.execute(
-            select(r_table).where(r_table.c.measurement_id.in_(chunk)).order_by(r_table.c.id)
-        ).mappings():
-            out[row["measurement_id"]].append({k: row[k] for k in _RATE_KEYS})
+    rows = conn.records_where_in("SELECT * FROM rate_point WHERE 1 = 1", "measurement_id", ids)
+    for row in sorted(rows, key=lambda r: r["id"]):
+        out[row["measurement_id"]].append({k: row[k] for k in RATE_COLUMNS})
     return out
 
 
 def same_rates(old: Sequence[dict[str, Any]], new: Sequence[dict[str, Any]]) -> bool:
-    return [{k: r.get(k) for k in _RATE_KEYS} for r in old] == [
-        {k: r.get(k) for k in _RATE_KEYS} for r in new
+    return [{k: r.get(k) for k in RATE_COLUMNS} for r in old] == [
+        {k: r.get(k) for k in RATE_COLUMNS} for r in new
     ]

@@ -1,0 +1,106 @@
+"""Spreadsheets in and out: import a group's table, export measurements as files."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+from pathlib import Path
+from typing import Any
+
+from registry.api.registry import actor_name
+from registry.errors import UsageError
+from registry.storage.database import Database
+
+#: the file formats :func:`export_measurements` writes: data files, and tables for papers
+DATA_FORMATS = ("csv", "xlsx", "json")
+TABLE_FORMATS = ("latex", "tex", "markdown", "md")
+
+
+def import_table(
+    database: Database,
+    path: str | Path,
+    *,
+    sheet: str | None = None,
+    mapping: str | Path | None = None,
+    dry_run: bool = False,
+    skip_bad: bool = False,
+    rejects: str | Path | None = None,
+    actor: str | None = None,
+    progress: Callable[[str, int, int], None] | None = None,
+    workers: int | None = None,
+) -> dict[str, Any]:
+    """Import a spreadsheet (.xlsx, .ods, .csv, .tsv) of measurements and/or rate points.
+
+    Every row is read and checked first; then either the whole file is written in one
+    transaction or — when any row has a problem — nothing, and
+    :class:`~registry.errors.ImportRowError` lists every problem with its file, sheet, row,
+    column and text. ``skip_bad`` imports the good rows instead and writes the rejected ones
+    with their reasons to ``rejects`` (default: ``<file>.rejected.csv`` beside the file).
+    ``dry_run`` reads and checks everything and writes nothing. ``mapping`` is a TOML mapping
+    file (columns, units, defaults, sheets); ``sheet`` picks one sheet of a workbook.
+    Importing the same file again adds nothing; a corrected file updates the matching
+    measurements, each change recorded in the history. ``progress(stage, done, total)`` is
+    called as rows are normalized and structures parsed; ``workers`` sets the size of the
+    process pool big files are parsed in (default: up to two).
+
+    Returns the import report: the mapping of each sheet, notes, problems, and the counts and
+    ids of added, updated and unchanged measurements with the validation findings on them
+    (``would_add`` … and a preview of the first rows for a dry run).
+    """
+    from registry.io.importer import import_table as run
+
+    return run(
+        database, path, sheet=sheet, mapping=mapping, dry_run=dry_run, skip_bad=skip_bad,
+        rejects=rejects, actor=actor_name(actor), progress=progress, workers=workers,
+    )  # fmt: skip
+
+
+def export_measurements(
+    database: Database,
+    out: str | Path,
+    *,
+    format: str | None = None,
+    compound: str | None = None,
+    method: str | None = None,
+    solvent: str | None = None,
+    process: str | None = None,
+    status: str | None = None,
+    barrier: str | None = None,
+    barrier_min: str | float | None = None,
+    barrier_max: str | float | None = None,
+    include_retracted: bool = False,
+    ids: Sequence[int] | None = None,
+    energy_unit: str = "kJ/mol",
+    uncertainty: str = "paren",
+) -> dict[str, Any]:
+    """Write the measurements the filters select (those of :func:`list_measurements`) to ``out``.
+
+    ``format`` is csv, xlsx or json (reported texts, normalized values, findings, rate points;
+    text cells a spreadsheet would evaluate get a leading apostrophe, which the importer strips
+    again), or latex/markdown for a table in a paper (ΔG‡, ΔH‡, ΔS‡ in ``energy_unit``,
+    uncertainties as ``62.3(4)`` with ``uncertainty='paren'`` or ``62.3 ± 0.4`` with
+    ``'pm'``). Without ``format`` the file's suffix decides (.csv, .xlsx, .json, .tex, .md).
+    Returns what was written: file, format and counts.
+    """
+    from registry.api.records import list_measurements
+
+    filters: dict[str, Any] = dict(
+        compound=compound, method=method, solvent=solvent, process=process, status=status,
+        barrier=barrier, barrier_min=barrier_min, barrier_max=barrier_max,
+        include_retracted=include_retracted, ids=ids,
+    )  # fmt: skip
+    kind = (format or Path(out).suffix.lstrip(".")).lower()
+    if kind not in DATA_FORMATS + TABLE_FORMATS:
+        raise UsageError(
+            f"format must be one of csv, xlsx, json, latex, markdown (got {kind or 'none'!r}); "
+            "name it, or end the file name in .csv, .xlsx, .json, .tex or .md"
+        )
+    if kind in TABLE_FORMATS:
+        from registry.reports.tables import export_table
+
+        return export_table(
+            database, out, format, energy_unit=energy_unit, uncertainty=uncertainty, **filters
+        )
+    from registry.io.export import write_export
+
+    chosen = [r["id"] for r in list_measurements(database, **filters)]
+    return write_export(database, chosen, out, format)

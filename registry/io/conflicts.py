@@ -1,0 +1,131 @@
+"""Rows the registry would refuse, found before the write: compound conflicts and duplicates.
+
+A compound label names one structure and a structure carries one label, in the file and in the
+registry; two rows of one file that describe the same measurement (same compound, process,
+solvent, method, reference and label — the matching key of :mod:`.upsert`) are one too many.
+Each such row becomes a problem naming its sheet, row and column, so that the whole file is
+judged before anything is written.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from typing import Any
+
+from registry.errors import RowProblem
+from registry.io.results import ReadResult
+from registry.record.chem import Structure
+from registry.record.entry import NormalizedEntry
+from registry.storage.connection import Connection
+
+
+def screen_entries(
+    conn: Connection,
+    read: ReadResult,
+    entries: list[NormalizedEntry],
+    structures: list[Structure | None],
+    kept: list[int],
+    solvents: dict[str, int],
+    problems: list[RowProblem],
+) -> tuple[list[NormalizedEntry], list[Structure | None], list[int]]:
+    """The entries without compound conflicts and duplicates; the others' problems added."""
+    conflicts = compound_conflicts(conn, entries, structures)
+    seen: dict[tuple[Any, ...], int] = {}
+    drop: set[int] = set()
+    for j, (ne, st) in enumerate(zip(entries, structures, strict=True)):
+        src = read.sources[kept[j]]
+        if j in conflicts:
+            values = src.plan.value_columns()
+            col = values.get("compound") or values.get("smiles")
+            problems.append(
+                RowProblem(
+                    read.file, src.sheet, src.row, col.header if col else "compound",
+                    ne.compound.get("label") or ne.compound.get("smiles_input"), conflicts[j],
+                )
+            )  # fmt: skip
+            drop.add(j)
+            continue
+        key = match_key(ne, st, solvents)
+        if key in seen:
+            first = read.sources[kept[seen[key]]]
+            problems.append(
+                RowProblem(
+                    read.file, src.sheet, src.row, None, None,
+                    f"duplicate of row {first.row}: same compound, process, solvent, method, "
+                    "reference and label; remove it or give each measurement its own label",
+                )
+            )  # fmt: skip
+            drop.add(j)
+            continue
+        seen[key] = j
+    if not drop:
+        return entries, structures, kept
+    keep = [j for j in range(len(entries)) if j not in drop]
+    return [entries[j] for j in keep], [structures[j] for j in keep], [kept[j] for j in keep]
+
+
+def _identity(entry: NormalizedEntry, structure: Structure | None) -> str:
+    if structure is not None and structure.inchikey:
+        return structure.inchikey
+    if entry.compound.get("label"):
+        return f"label:{entry.compound['label']}"
+    return f"name:{entry.compound.get('name')}"
+
+
+def match_key(
+    entry: NormalizedEntry, structure: Structure | None, solvents: dict[str, int]
+) -> tuple[Any, ...]:
+    """What makes two rows of one file the same measurement."""
+    m = entry.measurement
+    process = (
+        (entry.process["kind"], entry.process["sites"], entry.process["nucleus"])
+        if entry.process
+        else None
+    )
+    sid = solvents.get(entry.solvent_key) if entry.solvent_key else None
+    solvent = ("id", sid) if sid is not None else ("text", entry.solvent_key or "")
+    return (
+        _identity(entry, structure),
+        process,
+        m["method"],
+        solvent,
+        m["reference"] or "",
+        m["label"] or "",
+    )
+
+
+def compound_conflicts(
+    conn: Connection, entries: Sequence[NormalizedEntry], structures: Sequence[Structure | None]
+) -> dict[int, str]:
+    """Entries whose compound label and structure disagree with each other or the registry."""
+    select = "SELECT inchikey, label FROM compound WHERE 1 = 1"
+    keys = {s.inchikey for s in structures if s is not None and s.inchikey}
+    labels = {e.compound["label"] for e in entries if e.compound.get("label")}
+    db_key: dict[str, str | None] = dict(conn.rows_where_in(select, "inchikey", keys))
+    db_label: dict[str, str | None] = {
+        label: key for key, label in conn.rows_where_in(select, "label", labels)
+    }
+    out: dict[int, str] = {}
+    file_key: dict[str, str] = {}
+    file_label: dict[str, str] = {}
+    for i, (e, s) in enumerate(zip(entries, structures, strict=True)):
+        label = e.compound.get("label")
+        key = s.inchikey if s is not None else None
+        if key and key in db_key and label and db_key[key] and db_key[key] != label:
+            out[i] = (
+                f"this structure is already registered as compound {db_key[key]!r} "
+                f"(InChIKey {key}); use that label"
+            )
+        elif label and label in db_label and key and db_label[label] and db_label[label] != key:
+            out[i] = (
+                f"compound {label!r} already names a different structure "
+                f"(InChIKey {db_label[label]}); choose another label"
+            )
+        elif key and label and key in file_key and file_key[key] != label:
+            out[i] = f"the same structure is labelled {file_key[key]!r} in an earlier row"
+        elif key and label and label in file_label and file_label[label] != key:
+            out[i] = f"compound {label!r} names a different structure in an earlier row"
+        elif key and label:
+            file_key.setdefault(key, label)
+            file_label.setdefault(label, key)
+    return out
