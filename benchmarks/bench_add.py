@@ -26,6 +26,7 @@ from pathlib import Path
 os.environ.setdefault("FLUXLEDGER_USER", "bench")
 
 from registry import api
+from registry.record.chem import structure_for
 from registry.record.entry import EntryInput, normalize_entry
 from registry.storage.writer import known_process_kinds, write_entries
 
@@ -139,7 +140,7 @@ def run_steps(db: str, n: int) -> tuple[float, dict[str, float]]:
         normalized = timed("normalize", norm)
         structure = timed(
             "structure (RDKit)",
-            lambda normalized=normalized: api.structure_for(normalized.compound["smiles_input"]),
+            lambda normalized=normalized: structure_for(normalized.compound["smiles_input"]),
         )
         result = timed(
             "write",
@@ -161,7 +162,7 @@ def run_write_only(db: str, n: int) -> float:
     started = time.perf_counter()
     for i in range(n):
         normalized = normalize_entry(entry(i), kinds)[0]
-        structure = api.structure_for(normalized.compound["smiles_input"])
+        structure = structure_for(normalized.compound["smiles_input"])
         database.write(
             lambda conn, normalized=normalized, structure=structure: write_entries(
                 conn, [normalized], [structure], actor="bench"
@@ -193,7 +194,7 @@ def run_floor(folder: Path, n: int, synchronous: str) -> float:
 def main() -> None:
     n = int(sys.argv[1]) if len(sys.argv) > 1 else 1000
     runs = int(sys.argv[2]) if len(sys.argv) > 2 else 3
-    api.structure_for("CCO")  # load RDKit outside the timing
+    structure_for("CCO")  # load RDKit outside the timing
     from registry.validation import check_measurements  # noqa: F401  (pandas, likewise)
 
     with tempfile.TemporaryDirectory() as tmp:
