@@ -38,9 +38,7 @@ def _float_or_nan(value: Any) -> float:
 
 
 def to_objects(values: Sequence[Any]) -> NDArray[np.object_]:
-    out = np.empty(len(values), dtype=object)
-    out[:] = list(values)
-    return out
+    return np.fromiter(values, dtype=object, count=len(values))
 
 
 def columns_of(

@@ -250,26 +250,38 @@ LEGACY_VARIANTS: tuple[frozenset[str], ...] = (
 
 
 def _row_digests(data: CheckData, rows: list[int], variant: frozenset[str]) -> list[str]:
+    """The digests of ``rows``: every hashed column hashed at once by kind (one pass over all
+    texts, one over all floats), then folded per row in column order."""
     at = np.asarray(rows, dtype=np.int64)
-    hashed = []
-    for name, kind in HASHED_COLUMNS.items():
-        values = data.columns[name][at]
-        if name == "tc_text" and "tc-text-float" in variant:
-            h = digest.hash_texts(values.tolist())
-            missing = np.array([digest.is_missing(v) for v in values.tolist()], dtype=bool)
-            h[missing] = digest.hash_floats(np.full(int(missing.sum()), np.nan))
-        elif name == "rate_count" and "rate-count-int" in variant:
-            h = digest.hash_integers(values.astype(np.int64))
-        elif kind == "float":
-            h = digest.hash_floats(values)
-        elif kind == "integer":
-            h = digest.hash_integers(values)
-        elif kind == "flag":
-            h = digest.hash_flags(values.tolist())
-        else:
-            h = digest.hash_texts(values.tolist())
-        hashed.append(h)
-    return [f"{h:016x}" for h in digest.combine(hashed, at.size).tolist()]
+    n = at.size
+    names = list(HASHED_COLUMNS)
+    kinds = dict(HASHED_COLUMNS)
+    if "rate-count-int" in variant:
+        kinds["rate_count"] = "integer"
+    by_kind: dict[str, list[str]] = {}
+    for name in names:
+        by_kind.setdefault(kinds[name], []).append(name)
+    hashed: dict[str, digest.U64] = {}
+    floats = by_kind.get("float", [])
+    if floats:
+        block = digest.hash_floats(np.concatenate([data.columns[c][at] for c in floats]))
+        hashed.update((c, block[k * n : (k + 1) * n]) for k, c in enumerate(floats))
+    texts = by_kind.get("text", [])
+    if texts:
+        values = [v for c in texts for v in data.columns[c][at].tolist()]
+        block = digest.hash_texts(values)
+        hashed.update((c, block[k * n : (k + 1) * n]) for k, c in enumerate(texts))
+        if "tc-text-float" in variant:
+            tc = data.columns["tc_text"][at].tolist()
+            missing = np.array([digest.is_missing(v) for v in tc], dtype=bool)
+            hashed["tc_text"] = np.where(
+                missing, digest.hash_floats(np.full(n, np.nan)), hashed["tc_text"]
+            )
+    for c in by_kind.get("integer", []):
+        hashed[c] = digest.hash_integers(data.columns[c][at].astype(np.int64))
+    for c in by_kind.get("flag", []):
+        hashed[c] = digest.hash_flags(data.columns[c][at].tolist())
+    return [f"{h:016x}" for h in digest.combine([hashed[c] for c in names], n).tolist()]
 
 
 # ---------------------------------------------------------------- loading

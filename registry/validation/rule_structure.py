@@ -91,25 +91,41 @@ class RepeatsAgree(Rule):
         return out
 
 
-def _match_keys(
-    columns: dict[str, NDArray[Any]], codes: dict[tuple[Any, ...], int]
-) -> NDArray[np.int64]:
-    """A code per row for (compound, process, method, solvent); the solvent is its table id,
-    else the key of its spelling. Equal codes mean the same conditions."""
-    out = []
-    for compound, process, method, solvent_id, solvent_text in zip(
-        columns["compound_id"].tolist(), columns["process_id"].tolist(),
-        columns["method"].tolist(), columns["solvent_id"].tolist(),
-        columns["solvent_text"].tolist(), strict=True,
-    ):  # fmt: skip
-        solvent = (
-            f"id:{int(solvent_id)}"
-            if solvent_id is not None
-            else "text:" + vocab.solvent_key(str(solvent_text or ""))
-        )
-        key = (compound, -1 if process is None else int(process), str(method), solvent)
-        out.append(codes.setdefault(key, len(codes)))
-    return np.array(out, dtype=np.int64)
+def _integers(values: NDArray[Any], missing: int = -1) -> NDArray[np.int64]:
+    """An object column of integer ids as int64 (``missing`` where None)."""
+    items = values.tolist()
+    try:
+        return np.array(items, dtype=np.int64)
+    except TypeError:  # some are None
+        return np.array([missing if v is None else v for v in items], dtype=np.int64)
+
+
+def _match_keys(columns: dict[str, NDArray[Any]], methods: dict[str, int]) -> NDArray[np.int64]:
+    """(compound, process, method, solvent) of each row as four integers: the solvent is its
+    table id, else (negative) the code of its spelling's key; -1 for no process."""
+    method = [methods.setdefault(str(m), len(methods)) for m in columns["method"].tolist()]
+    solvent = _integers(columns["solvent_id"], missing=-1)
+    for row in np.flatnonzero(solvent < 0).tolist():
+        text = columns["solvent_text"][row]
+        key = "text:" + vocab.solvent_key(str(text or ""))
+        solvent[row] = -1 - methods.setdefault(key, len(methods))
+    return np.column_stack(
+        [_integers(columns["compound_id"]), _integers(columns["process_id"]), method, solvent]
+    )
+
+
+def _match_codes(data: CheckData) -> tuple[NDArray[np.int64], NDArray[np.int64]]:
+    """One code per checked row and per peer: equal codes mean the same compound, process,
+    method and solvent (for a whole-registry check the peers are the checked rows)."""
+    names: dict[str, int] = {}
+    mine = _match_keys(data.columns, names)
+    if data.peers["id"] is data.columns["id"]:
+        keys = mine
+    else:
+        keys = np.concatenate([mine, _match_keys(data.peers, names)])
+    _, codes = np.unique(keys, axis=0, return_inverse=True)
+    codes = codes.reshape(-1)
+    return codes[: len(data)], codes[len(data) :] if keys is not mine else codes
 
 
 def _disagreeing_pairs(
@@ -119,9 +135,7 @@ def _disagreeing_pairs(
     peers = data.peers
     if len(data) == 0 or peers["id"].size == 0:
         return None
-    codes: dict[tuple[Any, ...], int] = {}
-    mine_code = _match_keys(data.columns, codes)
-    peer_code = _match_keys(peers, codes)
+    mine_code, peer_code = _match_codes(data)
     mine_rows = np.flatnonzero(np.isfinite(data.col("dg_kj_mol")))
     peer_rows = np.flatnonzero(np.isfinite(peers["dg_kj_mol"]))
     # peers grouped by code (by id inside a group), each checked row paired with its group

@@ -27,12 +27,9 @@ def _key(mid: int, rule: str, version: int, inputs_hash: str | None) -> Key:
     return (int(mid), rule, int(version), inputs_hash)
 
 
-def _select_stored(
-    conn: Connection, measurement_ids: Sequence[int] | None, columns: str = "*"
-) -> list[dict[str, Any]]:
-    """Stored findings (all columns, or ``columns``) of ``measurement_ids`` (None: all), in
-    (measurement, id) order."""
-    sql = f"SELECT {columns} FROM validation_finding WHERE 1 = 1"
+def _select_stored(conn: Connection, measurement_ids: Sequence[int] | None) -> list[dict[str, Any]]:
+    """Stored findings of ``measurement_ids`` (None: all), in (measurement, id) order."""
+    sql = "SELECT * FROM validation_finding WHERE 1 = 1"
     if measurement_ids is None:
         rows = conn.records(sql)
     else:
@@ -78,13 +75,11 @@ def reconcile(
     for the same inputs; a stored finding with one of them is kept (date and acceptance) and
     its hash brought up to date.
     """
+    stored = {row["id"]: row for row in _select_stored(conn, measurement_ids)}
     existing: dict[Key, int] = {}
     stale: list[int] = []
-    keys = "id, measurement_id, rule_id, rule_version, inputs_hash"
-    for row in _select_stored(conn, measurement_ids, keys):
-        fid, mid, rule, version, h = (row[c] for c in ("id", "measurement_id", "rule_id",
-                                                        "rule_version", "inputs_hash"))  # fmt: skip
-        key = _key(mid, rule, version, h)
+    for fid, row in stored.items():
+        key = _key(row["measurement_id"], row["rule_id"], row["rule_version"], row["inputs_hash"])
         if key in existing:
             stale.append(fid)  # a duplicate left by an interrupted run
         else:
@@ -99,21 +94,20 @@ def reconcile(
         if key not in existing:
             fresh.append(f)
     if fresh and legacy_hashes is not None:
-        fresh = _keep_legacy(conn, existing, produced, fresh, legacy_hashes)
+        fresh = _keep_legacy(conn, stored, existing, produced, fresh, legacy_hashes)
     rows = [_row(f, now) for f in fresh]
     stale += [fid for key, fid in existing.items() if key not in produced]
     if stale:
         conn.execute_many(
             "DELETE FROM validation_finding WHERE id = :fid", [{"fid": i} for i in stale]
         )
-    conn.insert_many("validation_finding", rows)
-    inserted = {
-        _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"]) for r in rows
-    }
-    result = []
-    for r in _select_stored(conn, measurement_ids):
-        key = _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"])
-        result.append(finding_from_row(r, new=key in inserted))
+    new_ids = conn.insert_many("validation_finding", rows, new_ids=True)
+    for fid in stale:
+        del stored[fid]
+    unset = {"accepted_by": None, "accepted_at": None, "accept_reason": None}
+    stored.update((fid, {**r, **unset, "id": fid}) for fid, r in zip(new_ids, rows, strict=True))
+    added = set(new_ids)
+    result = [finding_from_row(r, new=fid in added) for fid, r in stored.items()]
     result.sort(key=lambda f: (f.measurement_id, SEVERITY_RANK.get(f.severity, 9), f.rule_id))
     return result, len(rows), len(stale)
 
@@ -137,6 +131,7 @@ def _row(f: Finding, now: datetime) -> dict[str, Any]:
 
 def _keep_legacy(
     conn: Connection,
+    stored: dict[int, dict[str, Any]],
     existing: dict[Key, int],
     produced: set[Key],
     fresh: list[Finding],
@@ -161,6 +156,7 @@ def _keep_legacy(
                 new_key = _key(f.measurement_id, f.rule_id, f.rule_version, f.inputs_hash)
                 existing[new_key] = fid
                 updates.append({"fid": fid, "inputs_hash": f.inputs_hash})
+                stored[fid]["inputs_hash"] = f.inputs_hash
                 break
         else:
             still_new.append(f)
