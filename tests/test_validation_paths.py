@@ -22,6 +22,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
+import pytest
 from scipy import constants as C
 
 from registry import api
@@ -31,6 +32,8 @@ from registry.storage.database import Database
 R_KJ = C.R / 1000.0
 KB_H = C.Boltzmann / C.Planck
 LEGACY = Path(__file__).parent / "data" / "validation_legacy_registry.sql"
+
+pytest_plugins = ("conftest_pg",)
 
 
 def eyring_k(dh_kj: float, ds_j: float, t: float) -> float:
@@ -121,8 +124,8 @@ def build_varied(database: Database, tag: str = "V") -> list[int]:
          {"m": gh}),
         ("UPDATE rate_point SET k_err_per_s = 0.05 * k_per_s WHERE measurement_id = :m",
          {"m": refit}),
-        ("UPDATE compound SET structure_ok = 0, structure_problem = 'hand-edited' "
-         "WHERE label = :label", {"label": f"{tag}-EA"}),
+        ("UPDATE compound SET structure_ok = :no, structure_problem = 'hand-edited' "
+         "WHERE label = :label", {"no": False, "label": f"{tag}-EA"}),
         ("UPDATE measurement SET status = 'retracted' WHERE id = :m", {"m": one[f"{tag}-GONE"]}),
     ]  # fmt: skip
 
@@ -176,6 +179,27 @@ def test_rules_on_loaded_rows_agree_without_storing(database: Database) -> None:
             _as_tuple(f) for i in ids for f in run_rules(load_check_data(conn, [i]), config)
         )
     assert single == whole and len(whole) > len(ids)
+
+
+@pytest.mark.postgres
+def test_same_findings_on_sqlite_and_postgresql(pg_url: str, tmp_path: Path) -> None:
+    from registry.validation import check_measurements
+
+    found = {}
+    for backend, db in (("sqlite", str(tmp_path / "r.sqlite")), ("postgresql", pg_url)):
+        api.init_registry(db)
+        database = api.open_registry(db)
+        try:
+            ids = build_varied(database)
+            whole = sorted(map(_as_tuple, check_measurements(database).findings))
+            single = sorted(
+                _as_tuple(f) for i in ids for f in check_measurements(database, [i]).findings
+            )
+            assert single == whole, backend
+            found[backend] = whole
+        finally:
+            database.close()
+    assert found["postgresql"] == found["sqlite"]
 
 
 def _load_dump(path: Path, target: Path) -> None:
