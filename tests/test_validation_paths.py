@@ -252,13 +252,48 @@ def test_findings_stored_by_the_older_checker_are_kept(tmp_path: Path) -> None:
         assert {f.id for f in report.findings if f.accepted} == accepted
     finally:
         database.close()
-    after = _stored(db)
+    after = _stored(db, live_only=True)
     assert after.keys() == before.keys()
     for fid, row in before.items():
         # same measurement, rule, version, date and acceptance; only the hash may be re-stamped
         assert after[fid][:3] == row[:3] and after[fid][4:] == row[4:], fid
     restamped = [fid for fid in before if after[fid][3] != before[fid][3]]
     assert restamped  # the older one-row digests were met, and brought up to date
+    # and the older checker wrote the very messages and values the rules give now
+    assert _computed_now(db) == _stored_texts(db)
+
+
+def _stored_texts(path: Path) -> list[tuple[Any, ...]]:
+    conn = sqlite3.connect(path)
+    try:
+        return sorted(
+            conn.execute(
+                "SELECT f.measurement_id, f.rule_id, f.inputs_hash, f.severity, f.message, "
+                "f.reported, f.recomputed, f.difference, f.unit, f.likely_cause "
+                "FROM validation_finding f JOIN measurement m ON m.id = f.measurement_id "
+                "WHERE m.status != 'retracted'"
+            ).fetchall()
+        )
+    finally:
+        conn.close()
+
+
+def _computed_now(path: Path) -> list[tuple[Any, ...]]:
+    from registry.validation import CheckConfig
+    from registry.validation.data import load_check_data
+    from registry.validation.engine import run_rules
+
+    database = api.open_registry(str(path))
+    try:
+        with database.read() as conn:
+            found = run_rules(load_check_data(conn), CheckConfig())
+    finally:
+        database.close()
+    return sorted(
+        (f.measurement_id, f.rule_id, f.inputs_hash, f.severity, f.message, f.reported,
+         f.recomputed, f.difference, f.unit, f.likely_cause)
+        for f in found
+    )  # fmt: skip
 
 
 def test_add_does_not_import_pandas(tmp_path: Path) -> None:

@@ -19,6 +19,7 @@ no data-frame library (tests compare both on varied values):
 from __future__ import annotations
 
 from collections.abc import Sequence
+from functools import lru_cache
 
 import numpy as np
 from numpy.typing import NDArray
@@ -163,12 +164,19 @@ def hash_texts(values: Sequence[object]) -> U64:
 def combine(columns: Sequence[U64], rows: int) -> U64:
     """Fold per-column hashes into one hash per row, in column order (CPython tuple style)."""
     out = np.full(rows, np.uint64(0x345678), dtype=np.uint64)
-    mult = np.uint64(1000003)
-    count = len(columns)
     with np.errstate(over="ignore"):
-        for i, column in enumerate(columns):
+        for column, mult in zip(columns, _multipliers(len(columns)), strict=True):
             out ^= column
             out *= mult
-            mult += np.uint64(82520 + 2 * (count - i))
         out += np.uint64(97531)
+    return out
+
+
+@lru_cache(maxsize=8)
+def _multipliers(count: int) -> list[np.uint64]:
+    """The multiplier of each column in :func:`combine` (1000003, then + 82520 + 2·left)."""
+    out, mult = [], 1000003
+    for i in range(count):
+        out.append(np.uint64(mult % 2**64))
+        mult += 82520 + 2 * (count - i)
     return out

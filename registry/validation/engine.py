@@ -68,8 +68,10 @@ def run_rules(data: CheckData, config: CheckConfig, rules: Sequence[Rule] = RULE
     """All findings of ``rules`` on ``data``, each with its ``inputs_hash``."""
     raw: list[tuple[Rule, str, Finding]] = []
     for rule in rules:
-        params = _params(rule, config)
-        raw.extend((rule, params, f) for f in rule.run(data, config))
+        found = rule.run(data, config)
+        if found:
+            params = _params(rule, config)
+            raw.extend((rule, params, f) for f in found)
     if not raw:
         return []
     positions = data.positions([f.measurement_id for _, _, f in raw]).tolist()
