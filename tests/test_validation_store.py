@@ -147,7 +147,7 @@ def _finding_keys(report) -> set[tuple[int, str, str | None]]:  # type: ignore[n
 
 @pytest.mark.parametrize("share", [0.2, 0.8])
 def test_checking_some_ids_equals_checking_all(database: Database, share: float) -> None:
-    """A few ids are selected by IN lists; most of the table is read whole and filtered."""
+    """A fifth or most of the measurements, by key, give the findings a whole check gives."""
     ids = []
     with api.deferred_checks(database):  # findings are written once below, not per add
         for i in range(10):

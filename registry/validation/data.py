@@ -152,7 +152,12 @@ PEER_COLUMNS = (
     "dg_err_kj_mol",
     "dg_t_k",
 )
-_PEER_SQL = f"SELECT {', '.join(PEER_COLUMNS)} FROM measurement WHERE status != 'retracted'"
+#: live measurements of a compound that has another live one (only those can be repeats)
+_PEER_SQL = (
+    f"SELECT {', '.join(f'm.{c}' for c in PEER_COLUMNS)} FROM measurement m "
+    "WHERE m.status != 'retracted' AND EXISTS (SELECT 1 FROM measurement o "
+    "WHERE o.compound_id = m.compound_id AND o.id != m.id AND o.status != 'retracted')"
+)
 
 
 @dataclass(frozen=True)
@@ -330,10 +335,11 @@ def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> Check
 
 
 def _load_peers(conn: Connection, compound_ids: NDArray[Any]) -> dict[str, NDArray[Any]]:
-    """Every live measurement of these compounds (to find repeats of a checked one), by id."""
+    """The live measurements of these compounds that could be a repeat (their compound has
+    another live measurement), by id."""
     wanted = sorted({int(c) for c in compound_ids.tolist() if c is not None})
     floats = {"dg_kj_mol", "dg_err_kj_mol", "dg_t_k"}
-    peers = columns_of(_fetch(conn, _PEER_SQL, wanted, "compound_id"), PEER_COLUMNS, floats)
+    peers = columns_of(_fetch(conn, _PEER_SQL, wanted, "m.compound_id"), PEER_COLUMNS, floats)
     return take(peers, np.argsort(peers["id"].astype(np.int64), kind="stable"))
 
 
