@@ -33,108 +33,112 @@ HERE = Path(__file__).resolve()
 THIS_TREE = HERE.parent.parent
 
 
-def build(path: Path, n: int, seed: int = 1) -> None:
-    """A registry of ``n`` measurements written with one bulk insert per table."""
+def _draw(n: int, seed: int, solvents: list[tuple[Any, ...]]) -> dict[str, Any]:
+    """The generated values: kinds, Tc, Δν, fields, true and reported barriers, repeats."""
     import numpy as np
     from scipy import constants as C
 
-    from registry import api
-
     r_kj, kb_h = C.R / 1000.0, C.Boltzmann / C.Planck
-    api.init_registry(str(path))
-    database = api.open_registry(str(path))
     rng = np.random.default_rng(seed)
-    now = datetime.now(UTC)
-    with database.read() as conn:
-        solvents = conn.rows("SELECT id, formula, mp_k, bp_k FROM solvent ORDER BY id")
-    kind = rng.choice(3, size=n, p=[0.7, 0.2, 0.1])
-    tc = rng.uniform(180, 420, n)
-    dnu = np.exp(rng.uniform(math.log(5), math.log(300), n))
-    field = rng.choice([200.0, 300.0, 400.0, 500.0, 600.0, 800.0], n)
-    dg_true = r_kj * tc * np.log(kb_h * tc / (math.pi * dnu / math.sqrt(2)))
+    d: dict[str, Any] = {"n": n, "r_kj": r_kj, "kb_h": kb_h}
+    d["kind"] = rng.choice(3, size=n, p=[0.7, 0.2, 0.1])
+    tc = d["tc"] = rng.uniform(180, 420, n)
+    dnu = d["dnu"] = np.exp(rng.uniform(math.log(5), math.log(300), n))
+    field = d["field"] = rng.choice([200.0, 300.0, 400.0, 500.0, 600.0, 800.0], n)
+    # Gutowsky–Holm k_c = πΔν/√2 and the Eyring equation (constants: CODATA via scipy)
+    dg_true = d["dg_true"] = r_kj * tc * np.log(kb_h * tc / (math.pi * dnu / math.sqrt(2)))
     slip = rng.random(n) < 0.1
     repeat = np.zeros(n, dtype=bool)
     repeat[np.arange(1, n, 20)] = True
     for arr in (tc, dnu, field, dg_true):
         arr[repeat] = arr[np.flatnonzero(repeat) - 1]
-    compound = np.cumsum(~repeat) - 1  # index into the compounds; a repeat shares its predecessor's
-    n_compounds = int(compound[-1]) + 1
-    dg = np.where(slip, dg_true / C.calorie, dg_true + rng.normal(0, 0.2, n))
-    dh = rng.uniform(40, 90, n)
-    ds = rng.uniform(-40, 20, n)
-    liquid = [
+    d["compound"] = np.cumsum(~repeat) - 1  # a repeat shares its predecessor's compound
+    d["dg"] = np.where(slip, dg_true / C.calorie, dg_true + rng.normal(0, 0.2, n))
+    d["dh"] = rng.uniform(40, 90, n)
+    d["ds"] = rng.uniform(-40, 20, n)
+    d["liquid"] = [
         [(sid, formula) for sid, formula, mp, bp in solvents if mp < t - 35 and bp > t + 35]
+        or [solvents[0][:2]]
         for t in range(150, 460)
     ]
+    return d
 
-    def work(conn):  # type: ignore[no-untyped-def]
-        compound_ids = conn.insert_many(
-            "compound",
-            [{"label": f"B-{i}", "structure_ok": True, "created_at": now}
-             for i in range(n_compounds)],
-            new_ids=True,
-        )  # fmt: skip
-        process_ids = conn.insert_many(
-            "process",
-            [{"compound_id": c, "kind": "bond-rotation", "sites": "", "nucleus": "1H"}
-             for c in compound_ids],
-            new_ids=True,
-        )  # fmt: skip
-        rows = []
-        for i in range(n):
-            fits = liquid[int(tc[i]) - 150] or [solvents[0][:2]]
-            sid, formula = fits[int(compound[i]) % len(fits)]
-            row = {
-                "compound_id": compound_ids[compound[i]],
-                "process_id": process_ids[compound[i]],
-                "method": ("coalescence", "lineshape", "equilibration")[kind[i]],
-                "solvent_id": sid,
-                "solvent_text": formula,
-                "field_mhz": float(field[i]),
-                "field_text": f"{field[i]:g} MHz",
-                "t_min_k": float(tc[i] - 30),
-                "t_min_text": f"{tc[i] - 30:.1f} K",
-                "t_max_k": float(tc[i] + 30),
-                "t_max_text": f"{tc[i] + 30:.1f} K",
-                "dg_kj_mol": float(dg[i]),
-                "dg_text": f"{dg[i]:.2f} kJ/mol",
-                "dg_t_k": float(tc[i]),
-                "dh_kj_mol": None, "dh_text": None, "ds_j_mol_k": None, "ds_text": None,
-                "ea_kj_mol": None, "ea_text": None,
-                "status": "draft",
-                "entered_by": "bench",
-                "entered_at": now,
-            }  # fmt: skip
-            if kind[i] == 2:
-                t = tc[i]
-                row.update(
-                    dh_kj_mol=float(dh[i]),
-                    dh_text=f"{dh[i]:.1f} kJ/mol",
-                    ds_j_mol_k=float(ds[i]),
-                    ds_text=f"{ds[i]:.1f} J/(mol K)",
-                    dg_kj_mol=float(dh[i] - t * ds[i] / 1000),
-                    dg_text=f"{dh[i] - t * ds[i] / 1000:.2f} kJ/mol",
-                    ea_kj_mol=float(dh[i] + r_kj * t),
-                    ea_text=f"{dh[i] + r_kj * t:.2f} kJ/mol",
-                )
-            rows.append(row)
-        ids = conn.insert_many("measurement", rows, new_ids=True)
-        conn.insert_many(
-            "coalescence",
-            [{"measurement_id": ids[i], "tc_k": float(tc[i]), "tc_text": f"{tc[i]:.1f} K",
-              "dnu_hz": float(dnu[i]), "dnu_text": f"{dnu[i]:.2f} Hz",
-              "field_mhz": float(field[i])}
-             for i in np.flatnonzero(kind == 0)],
-        )  # fmt: skip
-        rates = []
-        for i in np.flatnonzero(kind == 1):
-            for t in (tc[i] - 20, tc[i] - 10, tc[i], tc[i] + 10, tc[i] + 20):
-                k = kb_h * t * math.exp(-dg_true[i] / (r_kj * t))
-                rates.append({"measurement_id": ids[i], "t_k": float(t), "t_text": f"{t:.1f} K",
-                              "k_per_s": k, "k_text": f"{k:.5g} s-1"})  # fmt: skip
-        conn.insert_many("rate_point", rates)
 
-    database.write(work)
+def _measurement_row(d: dict[str, Any], i: int, compound_id: int, process_id: int,
+                     now: datetime) -> dict[str, Any]:  # fmt: skip
+    tc, dg, kind = d["tc"][i], d["dg"][i], d["kind"][i]
+    fits = d["liquid"][int(tc) - 150]
+    sid, formula = fits[int(d["compound"][i]) % len(fits)]
+    row = {
+        "compound_id": compound_id, "process_id": process_id,
+        "method": ("coalescence", "lineshape", "equilibration")[kind],
+        "solvent_id": sid, "solvent_text": formula,
+        "field_mhz": float(d["field"][i]), "field_text": f"{d['field'][i]:g} MHz",
+        "t_min_k": float(tc - 30), "t_min_text": f"{tc - 30:.1f} K",
+        "t_max_k": float(tc + 30), "t_max_text": f"{tc + 30:.1f} K",
+        "dg_kj_mol": float(dg), "dg_text": f"{dg:.2f} kJ/mol", "dg_t_k": float(tc),
+        "dh_kj_mol": None, "dh_text": None, "ds_j_mol_k": None, "ds_text": None,
+        "ea_kj_mol": None, "ea_text": None,
+        "status": "draft", "entered_by": "bench", "entered_at": now,
+    }  # fmt: skip
+    if kind == 2:  # activation parameters: ΔG‡ = ΔH‡ − TΔS‡, Ea = ΔH‡ + RT
+        dh, ds, r_kj = d["dh"][i], d["ds"][i], d["r_kj"]
+        row.update(
+            dh_kj_mol=float(dh), dh_text=f"{dh:.1f} kJ/mol",
+            ds_j_mol_k=float(ds), ds_text=f"{ds:.1f} J/(mol K)",
+            dg_kj_mol=float(dh - tc * ds / 1000), dg_text=f"{dh - tc * ds / 1000:.2f} kJ/mol",
+            ea_kj_mol=float(dh + r_kj * tc), ea_text=f"{dh + r_kj * tc:.2f} kJ/mol",
+        )  # fmt: skip
+    return row
+
+
+def _write(conn: Any, d: dict[str, Any], now: datetime) -> None:
+    import numpy as np
+
+    n_compounds = int(d["compound"][-1]) + 1
+    compound_ids = conn.insert_many(
+        "compound",
+        [{"label": f"B-{i}", "structure_ok": True, "created_at": now} for i in range(n_compounds)],
+        new_ids=True,
+    )
+    process_ids = conn.insert_many(
+        "process",
+        [{"compound_id": c, "kind": "bond-rotation", "sites": "", "nucleus": "1H"}
+         for c in compound_ids],
+        new_ids=True,
+    )  # fmt: skip
+    rows = [
+        _measurement_row(d, i, compound_ids[c], process_ids[c], now)
+        for i, c in enumerate(d["compound"].tolist())
+    ]
+    ids = conn.insert_many("measurement", rows, new_ids=True)
+    tc, dnu, field, kind = d["tc"], d["dnu"], d["field"], d["kind"]
+    conn.insert_many(
+        "coalescence",
+        [{"measurement_id": ids[i], "tc_k": float(tc[i]), "tc_text": f"{tc[i]:.1f} K",
+          "dnu_hz": float(dnu[i]), "dnu_text": f"{dnu[i]:.2f} Hz", "field_mhz": float(field[i])}
+         for i in np.flatnonzero(kind == 0)],
+    )  # fmt: skip
+    rates = []
+    for i in np.flatnonzero(kind == 1):
+        for t in (tc[i] - 20, tc[i] - 10, tc[i], tc[i] + 10, tc[i] + 20):
+            k = d["kb_h"] * t * math.exp(-d["dg_true"][i] / (d["r_kj"] * t))  # Eyring
+            rates.append({"measurement_id": ids[i], "t_k": float(t), "t_text": f"{t:.1f} K",
+                          "k_per_s": k, "k_text": f"{k:.5g} s-1"})  # fmt: skip
+    conn.insert_many("rate_point", rates)
+
+
+def build(path: Path, n: int, seed: int = 1) -> None:
+    """A registry of ``n`` measurements written with one bulk insert per table."""
+    from registry import api
+
+    api.init_registry(str(path))
+    database = api.open_registry(str(path))
+    with database.read() as conn:
+        solvents = conn.rows("SELECT id, formula, mp_k, bp_k FROM solvent ORDER BY id")
+    draw = _draw(n, seed, solvents)
+    now = datetime.now(UTC)
+    database.write(lambda conn: _write(conn, draw, now))
     database.close()
 
 
@@ -238,7 +242,9 @@ def main(argv: list[str]) -> None:
         floor = _median(rs, "wall", "floor")
         for step in steps:
             wall, cpu = _median(rs, "wall", step), _median(rs, "cpu", step)
-            ratio = f"  ({wall / floor:.1f}× floor)" if step in ("first run", "nothing changed") else ""
+            ratio = (
+                f"  ({wall / floor:.1f}× floor)" if step in ("first run", "nothing changed") else ""
+            )
             print(f"  {step:<26} wall {wall:8.3f} s   cpu {cpu:8.3f} s{ratio}")
     if against:
         new, old = results["this tree"], results[f"against {against}"]
