@@ -3,7 +3,8 @@
 A stored value is a float in the canonical unit plus the text as entered; the text tells how to
 show the value back (kcal/mol stays kcal/mol, °C stays °C). Each distinct unit text is looked
 up once (pint, through :mod:`registry.record.units`), so 10⁵ texts cost a regular expression
-each and a handful of unit look-ups.
+each and a handful of unit look-ups. The unit registry is loaded only when a finding needs a
+label (a check that flags nothing does without it).
 """
 
 from __future__ import annotations
@@ -14,8 +15,6 @@ from functools import lru_cache
 
 import numpy as np
 from numpy.typing import NDArray
-
-from registry.record import units
 
 #: the leading number (with an optional "(3)" or "± 0.3" uncertainty) of a value as written
 _NUMBER_PREFIX = re.compile(
@@ -54,6 +53,8 @@ _KNOWN_LABELS = {
 @lru_cache(maxsize=256)
 def _unit_label(unit_text: str, quantity: str) -> tuple[str, float] | None:
     """A display label and the factor from the canonical unit for a written unit, or None."""
+    from registry.record import units
+
     try:
         units.unit_of(unit_text, quantity)
         factor = units.convert(1.0, units.CANONICAL[quantity], unit_text)
@@ -68,11 +69,15 @@ def _unit_label(unit_text: str, quantity: str) -> tuple[str, float] | None:
 @lru_cache(maxsize=1)
 def kcal_per_kj() -> float:
     """kcal/mol per kJ/mol (thermochemical calorie, via the unit registry)."""
+    from registry.record import units
+
     return units.convert(1.0, "kJ/mol", "kcal/mol")
 
 
 @lru_cache(maxsize=4)
 def _alternative_factor(quantity: str) -> float:
+    from registry.record import units
+
     return units.convert(1.0, units.CANONICAL[quantity], _KNOWN_LABELS[quantity][1][0])
 
 
@@ -113,6 +118,8 @@ def value_units(
 @lru_cache(maxsize=64)
 def _temperature_map(unit_text: str) -> tuple[str, float, float] | None:
     """(label, offset, scale) so that display = offset + scale·K for a written temperature unit."""
+    from registry.record import units
+
     try:
         normal = units.unit_of(unit_text, "temperature")
         zero = units.convert(0.0, "K", normal)
@@ -145,5 +152,7 @@ def as_temperature(value_k: float, label: str) -> str:
     """A temperature for a message: '333.2 K' or '60.0 °C (333.2 K)'."""
     if label == "K" or value_k != value_k:
         return f"{value_k:.1f} K"
+    from registry.record import units
+
     shown = units.convert(value_k, "K", {"°C": "degC", "°F": "degF"}[label])
     return f"{shown:.1f} {label} ({value_k:.1f} K)"

@@ -12,11 +12,11 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from numpy.typing import NDArray
 
-from registry.record import units
 from registry.validation.coalescence_model import (
     CoalescenceInputs,
     Recomputed,
@@ -26,11 +26,19 @@ from registry.validation.coalescence_model import (
 
 Array = NDArray[np.float64]
 
-#: 0 °C in kelvin, through the unit registry (not an inline constant)
-ZERO_CELSIUS_K = units.convert(0.0, "degC", "K")
-_KJ_PER_KCAL = units.convert(1.0, "kcal/mol", "kJ/mol")
-#: 25 °C in kelvin: the temperature a barrier is wrongly evaluated at in one of the slips
-STANDARD_K = units.convert(25.0, "degC", "K")
+
+@lru_cache(maxsize=1)
+def _constants() -> tuple[float, float, float]:
+    """0 °C in kelvin, kJ per kcal, and 25 °C in kelvin (the temperature a barrier is wrongly
+    evaluated at in one slip), through the unit registry, not inline; loaded when a barrier is
+    first diagnosed, so a check that flags nothing does not load the unit registry."""
+    from registry.record import units
+
+    return (
+        units.convert(0.0, "degC", "K"),
+        units.convert(1.0, "kcal/mol", "kJ/mol"),
+        units.convert(25.0, "degC", "K"),
+    )
 
 
 @dataclass(frozen=True)
@@ -92,19 +100,19 @@ def _scaled(inp: CoalescenceInputs, correct: Recomputed, factor: float) -> Array
 
 
 def _kcal_as_kj(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
-    values = _scaled(inp, correct, 1.0 / _KJ_PER_KCAL)
+    values = _scaled(inp, correct, 1.0 / _constants()[1])
     return Candidate(values, ["a kcal/mol value labelled kJ/mol"] * values.size)
 
 
 def _kj_as_kcal(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
-    values = _scaled(inp, correct, _KJ_PER_KCAL)
+    values = _scaled(inp, correct, _constants()[1])
     return Candidate(values, ["a kJ/mol value labelled kcal/mol"] * values.size)
 
 
 def _tc_celsius_as_kelvin(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
-    t = inp.tc_k - ZERO_CELSIUS_K
+    t = inp.tc_k - _constants()[0]
     t = np.where(t > 0, t, np.nan)
     values = _nearest(inp, t_eyring_k=t, rates_per_s=_same_rates(correct))
     detail = [
@@ -116,7 +124,7 @@ def _tc_celsius_as_kelvin(
 def _tc_celsius_labelled_kelvin(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
-    t = inp.tc_k + ZERO_CELSIUS_K
+    t = inp.tc_k + _constants()[0]
     values = _nearest(inp.with_(tc_k=t), t_eyring_k=t)
     detail = [
         f"Tc written in K but really in °C (the barrier fits Tc = {x:.1f} K)" for x in t.tolist()
@@ -199,7 +207,7 @@ def _other_temperature(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     options = []
-    standard = STANDARD_K
+    standard = _constants()[2]
     with np.errstate(invalid="ignore"):
         t_std = np.where(np.abs(inp.tc_k - standard) > 2.0, standard, np.nan)
         t_stated = np.where(np.abs(inp.dg_t_k - inp.tc_k) > 2.0, inp.dg_t_k, np.nan)
