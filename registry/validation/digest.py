@@ -150,12 +150,12 @@ def hash_texts(values: Sequence[object]) -> U64:
     Each distinct text is hashed once. A value that is not text is hashed as its ``str``.
     """
     out = np.full(len(values), MISSING, dtype=np.uint64)
-    distinct: dict[object, list[int]] = {}
+    distinct: dict[tuple[type, object], list[int]] = {}  # by type too: 1, 1.0 and True differ
     for i, v in enumerate(values):
         if not is_missing(v):
-            distinct.setdefault(v, []).append(i)
+            distinct.setdefault((type(v), v), []).append(i)
     if distinct:
-        hashed = mix(siphash24([_text_bytes(v) for v in distinct]))
+        hashed = mix(siphash24([_text_bytes(v) for _, v in distinct]))
         for h, rows in zip(hashed.tolist(), distinct.values(), strict=True):
             out[rows] = h
     return out
