@@ -1,33 +1,43 @@
-"""Benchmark: add 1,000 single measurements through the library API (WAL on), one at a time.
+"""Benchmark: add single measurements through the library API (WAL on), one at a time.
 
-Each run starts from a fresh registry file and calls ``api.add_measurement`` 1,000 times on one
-open :class:`Database` (real structures cycled from a small set, so compounds are both created
-and reused, and coalescence data so the rules have work). Prints the median rate of several runs
-in measurements per second, and where one add spends its time, timed step by step in the same
-run (one run of N/5 adds): normalize, structure (RDKit), the write transaction, and the validation check that ``add``
-runs on the new row. Also times the same adds inside ``api.deferred_checks`` (each add commits
-on its own; the rules run once over all of them at the end of the block, inside the timing), the
-write path alone and, for comparison, re-opening the registry (with its schema-head check)
-before every add, as a caller that opens per call would.
+Each variant starts from a fresh registry file and adds N measurements on one open registry
+(real structures cycled from a small set, so compounds are both created and reused, and
+coalescence data so the rules have work):
 
-Usage: python benchmarks/bench_add.py [N] [runs]
+* ``api.add_measurement`` — with the validation check it runs on every new row;
+* the same inside ``api.deferred_checks`` — each add commits on its own, the rules run once
+  over all rows at the end of the block (inside the timing);
+* the storage path alone — normalize, structure (RDKit), the write transaction; no check;
+* re-opening the registry (with its schema-head check) before every add, as a caller that
+  opens per call would (N/10 adds);
+* one add step by step (N/5 adds): normalize, structure, write, check, timed separately;
+* floors: bare ``sqlite3`` one-row transactions (synchronous NORMAL and FULL).
+
+Rates are adds per second of wall time and of CPU time of the adding process (the machine is
+shared: CPU time is what an unloaded machine would come close to). Every round runs in a fresh
+process; with ``--against TREE`` (a checkout of another version) the rounds alternate between
+this tree and that one, and the ratios of their medians compare the two.
+
+Usage: python benchmarks/bench_add.py [N] [rounds] [--against TREE]
 """
 
 from __future__ import annotations
 
+import json
 import os
 import statistics
+import subprocess
 import sys
 import tempfile
 import time
 from collections.abc import Callable
 from pathlib import Path
+from typing import Any
 
-os.environ.setdefault("FLUXLEDGER_USER", "bench")
-
-from registry import api
-from registry.record.entry import EntryInput, normalize_entry
-from registry.storage.writer import known_process_kinds, write_entries
+HERE = Path(__file__).resolve()
+THIS_TREE = HERE.parent.parent
+#: adds per second through the library with a check after every add (issue 15)
+TARGET_PER_S = 300
 
 #: real, public structures (amides, biaryls, rings) cycled through the adds
 SMILES = [
@@ -54,7 +64,11 @@ SMILES = [
 ]
 
 
-def entry(i: int) -> EntryInput:
+def entry(i: int) -> Any:
+    """An invented coalescence entry (most of them disagree with their own data: the checks
+    then also diagnose the slip, the dearer path)."""
+    from registry.record.entry import EntryInput
+
     return EntryInput(
         method="coalescence",
         smiles=SMILES[i % len(SMILES)],
@@ -70,106 +84,155 @@ def entry(i: int) -> EntryInput:
     )
 
 
-def fresh_registry(folder: Path, name: str) -> str:
+def _close(database: Any) -> None:
+    (getattr(database, "close", None) or database.dispose)()  # older trees: dispose()
+
+
+def _fresh(folder: Path, name: str) -> str:
+    from registry import api
+
     path = folder / f"{name}.sqlite"
     api.init_registry(str(path))
     return str(path)
 
 
-def run_api(db: str, n: int) -> float:
-    """``api.add_measurement`` n times on one open registry; returns adds per second."""
-    database = api.open_registry(db)
-    entries = [entry(i) for i in range(n)]
-    started = time.perf_counter()
-    for e in entries:
-        api.add_measurement(database, e)
-    elapsed = time.perf_counter() - started
-    database.dispose()
-    return n / elapsed
+def _clocked(fn: Callable[[], None], n: int) -> dict[str, float]:
+    wall, cpu = time.perf_counter(), time.process_time()
+    fn()
+    return {"wall": n / (time.perf_counter() - wall), "cpu": n / (time.process_time() - cpu)}
 
 
-def run_api_deferred(db: str, n: int) -> float:
-    """``add_measurement`` n times inside ``api.deferred_checks``: each add commits on its own,
-    the rules run once over all n rows when the block ends (that check is inside the timing)."""
+def run_api(db: str, n: int) -> dict[str, float]:
+    """``api.add_measurement`` n times on one open registry."""
+    from registry import api
+
     database = api.open_registry(db)
     entries = [entry(i) for i in range(n)]
-    started = time.perf_counter()
-    with api.deferred_checks(database) as block:
+
+    def work() -> None:
         for e in entries:
             api.add_measurement(database, e)
-    elapsed = time.perf_counter() - started
-    assert block.report is not None and block.report.checked == n
-    database.dispose()
-    return n / elapsed
+
+    rates = _clocked(work, n)
+    _close(database)
+    return rates
 
 
-def run_reopen(db: str, n: int) -> float:
-    """``open_registry`` (schema-head check) before every add, as a per-call caller would."""
+def run_api_deferred(db: str, n: int) -> dict[str, float]:
+    """The same inside ``api.deferred_checks`` (its one check inside the timing)."""
+    from registry import api
+
+    database = api.open_registry(db)
     entries = [entry(i) for i in range(n)]
-    started = time.perf_counter()
-    for e in entries:
-        database = api.open_registry(db)
-        api.add_measurement(database, e)
-        database.dispose()
-    return n / (time.perf_counter() - started)
+
+    def work() -> None:
+        with api.deferred_checks(database) as block:
+            for e in entries:
+                api.add_measurement(database, e)
+        assert block.report is not None and block.report.checked == n
+
+    rates = _clocked(work, n)
+    _close(database)
+    return rates
 
 
-def run_steps(db: str, n: int) -> tuple[float, dict[str, float]]:
-    """The steps of one add, timed separately (ms per add); returns (adds/s, step times)."""
+def run_reopen(db: str, n: int) -> dict[str, float]:
+    """``open_registry`` (schema-head check) before every add."""
+    from registry import api
+
+    entries = [entry(i) for i in range(n)]
+
+    def work() -> None:
+        for e in entries:
+            database = api.open_registry(db)
+            api.add_measurement(database, e)
+            _close(database)
+
+    return _clocked(work, n)
+
+
+def run_write_only(db: str, n: int) -> dict[str, float]:
+    """Normalize + structure + write transaction, no validation check: the storage path."""
+    from registry import api
+    from registry.record.chem import structure_for
+    from registry.record.entry import normalize_entry
+    from registry.storage.writer import known_process_kinds, write_entries
+
+    database = api.open_registry(db)
+    with database.read() as conn:
+        kinds = known_process_kinds(conn)
+    entries = [entry(i) for i in range(n)]
+
+    def work() -> None:
+        for e in entries:
+            normalized = normalize_entry(e, kinds)[0]
+            structure = structure_for(normalized.compound["smiles_input"])
+            database.write(
+                lambda conn, normalized=normalized, structure=structure: write_entries(
+                    conn, [normalized], [structure], actor="bench"
+                )
+            )
+
+    rates = _clocked(work, n)
+    _close(database)
+    return rates
+
+
+def run_steps(db: str, n: int) -> dict[str, float]:
+    """The steps of one add, timed separately: CPU ms per add."""
+    from registry import api
+    from registry.record.chem import structure_for
+    from registry.record.entry import normalize_entry
+    from registry.storage.writer import known_process_kinds, write_entries
     from registry.validation import check_measurements
 
     database = api.open_registry(db)
     steps = {"normalize": 0.0, "structure (RDKit)": 0.0, "write": 0.0, "check": 0.0}
 
-    def timed(name: str, fn: Callable[[], object]) -> object:
-        t = time.perf_counter()
+    def timed(name: str, fn: Callable[[], Any]) -> Any:
+        t = time.process_time()
         out = fn()
-        steps[name] += time.perf_counter() - t
+        steps[name] += time.process_time() - t
         return out
 
-    started = time.perf_counter()
     for i in range(n):
         e = entry(i)
 
-        def norm(e: EntryInput = e) -> object:
+        def norm(e: Any = e) -> Any:
             with database.read() as conn:
                 kinds = known_process_kinds(conn)
             return normalize_entry(e, kinds)[0]
 
         normalized = timed("normalize", norm)
         structure = timed(
-            "structure (RDKit)",
-            lambda normalized=normalized: api.structure_for(normalized.compound["smiles_input"]),
+            "structure (RDKit)", lambda n=normalized: structure_for(n.compound["smiles_input"])
         )
         result = timed(
             "write",
-            lambda normalized=normalized, structure=structure: database.write(
-                lambda conn: write_entries(conn, [normalized], [structure], actor="bench")
+            lambda n=normalized, s=structure: database.write(
+                lambda conn: write_entries(conn, [n], [s], actor="bench")
             ),
         )
-        timed("check", lambda result=result: check_measurements(database, result.measurement_ids))
-    elapsed = time.perf_counter() - started
-    database.dispose()
-    return n / elapsed, {k: 1000 * v / n for k, v in steps.items()}
+        timed("check", lambda r=result: check_measurements(database, r.measurement_ids))
+    _close(database)
+    return {k: 1000 * v / n for k, v in steps.items()}
 
 
-def run_write_only(db: str, n: int) -> float:
-    """Normalize + structure + write transaction, no validation check: the storage path alone."""
-    database = api.open_registry(db)
-    with database.read() as conn:
-        kinds = known_process_kinds(conn)
-    started = time.perf_counter()
-    for i in range(n):
-        normalized = normalize_entry(entry(i), kinds)[0]
-        structure = api.structure_for(normalized.compound["smiles_input"])
-        database.write(
-            lambda conn, normalized=normalized, structure=structure: write_entries(
-                conn, [normalized], [structure], actor="bench"
-            )
-        )
-    elapsed = time.perf_counter() - started
-    database.dispose()
-    return n / elapsed
+def child(n: int) -> dict[str, Any]:
+    """One round of every variant, with the code on PYTHONPATH; imports outside the timings."""
+    from registry.record.chem import structure_for
+    from registry.validation import check_measurements  # noqa: F401  (load the rules' code)
+
+    structure_for("CCO")  # load RDKit
+    with tempfile.TemporaryDirectory() as tmp:
+        folder = Path(tmp)
+        return {
+            "api": run_api(_fresh(folder, "api"), n),
+            "deferred": run_api_deferred(_fresh(folder, "deferred"), n),
+            "write path": run_write_only(_fresh(folder, "write"), n),
+            "re-open each add": run_reopen(_fresh(folder, "reopen"), max(n // 10, 20)),
+            "steps": run_steps(_fresh(folder, "steps"), max(n // 5, 50)),
+        }
 
 
 def run_floor(folder: Path, n: int, synchronous: str) -> float:
@@ -190,49 +253,68 @@ def run_floor(folder: Path, n: int, synchronous: str) -> float:
     return n / elapsed
 
 
-def main() -> None:
-    n = int(sys.argv[1]) if len(sys.argv) > 1 else 1000
-    runs = int(sys.argv[2]) if len(sys.argv) > 2 else 3
-    api.structure_for("CCO")  # load RDKit outside the timing
-    from registry.validation import check_measurements  # noqa: F401  (pandas, likewise)
+def _run_child(tree: Path, n: int) -> dict[str, Any]:
+    env = {**os.environ, "PYTHONPATH": str(tree), "FLUXLEDGER_USER": "bench"}
+    done = subprocess.run(
+        [sys.executable, str(HERE), "--child", str(n)],
+        capture_output=True, text=True, env=env, timeout=3600, check=False,
+    )  # fmt: skip
+    if done.returncode != 0:
+        raise SystemExit(f"round with {tree} failed:\n{done.stderr}")
+    return json.loads(done.stdout.strip().splitlines()[-1])
 
+
+def main(argv: list[str]) -> None:
+    if argv[:1] == ["--child"]:
+        print(json.dumps(child(int(argv[1]))))
+        return
+    against = None
+    if "--against" in argv:
+        at = argv.index("--against")
+        against = Path(argv[at + 1]).resolve()
+        argv = argv[:at] + argv[at + 2 :]
+    n = int(argv[0]) if argv else 1000
+    rounds = int(argv[1]) if len(argv) > 1 else 3
+    trees = {"this tree": THIS_TREE} | ({f"against {against}": against} if against else {})
+    results: dict[str, list[dict[str, Any]]] = {name: [] for name in trees}
+    floors: dict[str, list[float]] = {"NORMAL": [], "FULL": []}
+    print(f"load average before: {' '.join(f'{x:.1f}' for x in os.getloadavg())}")
     with tempfile.TemporaryDirectory() as tmp:
-        folder = Path(tmp)
-        api_rates = [run_api(fresh_registry(folder, f"api{r}"), n) for r in range(runs)]
-        write_rates = [run_write_only(fresh_registry(folder, f"w{r}"), n) for r in range(runs)]
-        batch_rates = [run_api_deferred(fresh_registry(folder, f"b{r}"), n) for r in range(runs)]
-        step_runs = [run_steps(fresh_registry(folder, "steps"), max(n // 5, 50))]
-        floor_normal = [run_floor(folder, n, "NORMAL") for _ in range(runs)]
-        floor_full = [run_floor(folder, n, "FULL") for _ in range(runs)]
-        reopen_n = max(n // 10, 50)
-        reopen_rates = [run_reopen(fresh_registry(folder, f"o{r}"), reopen_n) for r in range(runs)]
-    api_median = statistics.median(api_rates)
-    write_median = statistics.median(write_rates)
-    reopen_median = statistics.median(reopen_rates)
-    print(f"add {n} single measurements, WAL on, {runs} runs each (medians)")
-    print(f"  api.add_measurement (with its validation check)  {api_median:8.0f} /s")
-    batch_median = statistics.median(batch_rates)
-    print(f"  the same inside api.deferred_checks (one check)  {batch_median:8.0f} /s")
-    print(f"  write path only (normalize+RDKit+transaction)    {write_median:8.0f} /s")
-    print(f"  re-open registry before every add ({reopen_n} adds)   {reopen_median:8.0f} /s")
-    print(f"  ratio write-only / api                            {write_median / api_median:8.2f}")
-    print(f"  ratio api / re-open each time                     {api_median / reopen_median:8.2f}")
-    normal, full = statistics.median(floor_normal), statistics.median(floor_full)
-    print(f"  floor: bare sqlite3 1-row transactions, synchronous=NORMAL {normal:8.0f} /s")
-    print(f"  floor: bare sqlite3 1-row transactions, synchronous=FULL   {full:8.0f} /s")
-    print(f"  ratio floor(NORMAL) / api                         {normal / api_median:8.1f}")
-    print(f"  one add, step by step (ms per add, {max(n // 5, 50)} adds):")
-    for step in step_runs[0][1]:
-        ms = step_runs[0][1][step]
-        print(f"    {step:<20} {ms:7.3f} ms")
-    target = 500
-    for label, rate in (
-        ("with a check per add", api_median),
-        ("checks deferred to the end of the block", batch_median),
-    ):
-        verdict = "meets" if rate >= target else "below"
-        print(f"  target {target}/s through the library API, {label}: {verdict} ({rate:.0f}/s)")
+        for _ in range(rounds):  # alternate the trees: both see the same machine load
+            for name, tree in trees.items():
+                results[name].append(_run_child(tree, n))
+            for sync in floors:
+                floors[sync].append(run_floor(Path(tmp), n, sync))
+    print(f"load average after:  {' '.join(f'{x:.1f}' for x in os.getloadavg())}")
+    print(f"add {n} single measurements, WAL on, {rounds} rounds (medians; adds per second)")
+    variants = ("api", "deferred", "write path", "re-open each add")
+    for name, rs in results.items():
+        print(f"{name}:")
+        for v in variants:
+            wall = statistics.median(r[v]["wall"] for r in rs)
+            cpu = statistics.median(r[v]["cpu"] for r in rs)
+            print(f"  {v:<18} wall {wall:8.0f} /s   cpu {cpu:8.0f} /s")
+        print(f"  one add step by step (CPU ms per add, {max(n // 5, 50)} adds):")
+        for step in rs[0]["steps"]:
+            ms = statistics.median(r["steps"][step] for r in rs)
+            print(f"    {step:<20} {ms:7.3f} ms")
+        api = statistics.median(r["api"]["wall"] for r in rs)
+        api_cpu = statistics.median(r["api"]["cpu"] for r in rs)
+        verdict = "meets" if api >= TARGET_PER_S else "below"
+        print(f"  target {TARGET_PER_S}/s with a check after every add: {verdict} "
+              f"(wall {api:.0f}/s, cpu {api_cpu:.0f}/s)")  # fmt: skip
+    for sync, rates in floors.items():
+        print(f"floor: bare sqlite3 1-row transactions, synchronous={sync}: "
+              f"{statistics.median(rates):8.0f} /s")  # fmt: skip
+    if against:
+        new, old = results["this tree"], results[f"against {against}"]
+        print("ratio this tree / other tree (medians; > 1 is faster):")
+        for v in variants:
+            for kind in ("wall", "cpu"):
+                a = statistics.median(r[v][kind] for r in new)
+                b = statistics.median(r[v][kind] for r in old)
+                print(f"  {v:<18} {kind:<4} {a / b:7.2f}")
 
 
 if __name__ == "__main__":
-    main()
+    main(sys.argv[1:])

@@ -11,19 +11,16 @@ from __future__ import annotations
 import math
 
 import numpy as np
-import pandas as pd
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import constants as C
-from sqlalchemy import update
 
 from registry import api, kinetics
 from registry.record.entry import EntryInput
 from registry.storage.database import Database
-from registry.storage.models import Compound
 from registry.validation import Finding, check_measurements
-from registry.validation.data import energy_units
+from registry.validation.reported import energy_units
 from registry.validation.rule_refit import grouped_eyring_fit
 
 R_KJ = C.R / 1000.0
@@ -234,7 +231,8 @@ def test_structure_flag_from_the_table(database: Database) -> None:
     assert findings(database, mid, "structure-parse") == []
     database.write(
         lambda conn: conn.execute(
-            update(Compound).values(structure_ok=False, structure_problem="hand-edited")
+            "UPDATE compound SET structure_ok = :ok, structure_problem = 'hand-edited'",
+            {"ok": False},
         )
     )
     (f,) = findings(database, mid, "structure-parse")
@@ -281,7 +279,7 @@ def test_energy_units_read_back_the_written_unit(
 
     text = f"{value:.3f}" + (f" ± {err:.2f}" if err else "") + f" {spelling}"
     stored = parse_value(text, "energy").value
-    labels, factors = energy_units(pd.Series([text, None]), pd.Series([stored, np.nan]))
+    labels, factors = energy_units([text, None], [stored, np.nan])
     assert labels[0] == ("kJ/mol" if _ENERGY_SPELLINGS[spelling] == 1.0 else "kcal/mol")
     assert stored * factors[0] == pytest.approx(float(f"{value:.3f}"), rel=1e-9)
     assert labels[1] == "kJ/mol" and factors[1] == 1.0
@@ -289,7 +287,7 @@ def test_energy_units_read_back_the_written_unit(
 
 def test_header_unit_is_recovered_from_the_ratio() -> None:
     # a bare number whose unit came from a spreadsheet header ("ΔG‡ (kcal/mol)")
-    labels, factors = energy_units(pd.Series(["15.2", "63.6"]), pd.Series([15.2 * C.calorie, 63.6]))
+    labels, factors = energy_units(["15.2", "63.6"], [15.2 * C.calorie, 63.6])
     assert list(labels) == ["kcal/mol", "kJ/mol"]
     assert factors[0] == pytest.approx(1 / C.calorie)
 
@@ -297,8 +295,6 @@ def test_header_unit_is_recovered_from_the_ratio() -> None:
 def test_13c_ppm_converted_at_the_1h_frequency(database: Database) -> None:
     # 13C observe frequency = 400 MHz × Ξ(13C)/Ξ(1H) = 400 × 0.25145020 = 100.58 MHz
     # (Ξ from R. K. Harris et al., Pure Appl. Chem. 73, 1795 (2001); from memory)
-    from sqlalchemy import text
-
     mid = add(
         database, method="coalescence", nucleus="13C", field="400 MHz", tc="300 K", dnu="1.5 ppm"
     )
@@ -307,7 +303,7 @@ def test_13c_ppm_converted_at_the_1h_frequency(database: Database) -> None:
     # … and a row stored the old way (at the 1H frequency) is flagged
     database.write(
         lambda conn: conn.execute(
-            text("UPDATE coalescence SET dnu_hz = 600.0 WHERE measurement_id = :m"), {"m": mid}
+            "UPDATE coalescence SET dnu_hz = 600.0 WHERE measurement_id = :m", {"m": mid}
         )
     )
     (f,) = findings(database, mid, "dnu-ppm-nucleus")

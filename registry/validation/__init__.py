@@ -1,8 +1,11 @@
 """Validation: recompute every stored barrier from its raw data, flag disagreements, name the slip.
 
 Map (data flows top to bottom):
-    data               load measurements, coalescence rows and rate points in bulk (one query
-                       per table) into pandas columns; the units each value was reported in
+    data               load measurements, coalescence rows and rate points (one query per
+                       table, for one row or all) into numpy columns: CheckData
+    columns            rows → numpy columns; per-measurement sums, means and extremes
+    digest             the 64-bit digest of a measurement's checked values (inputs hash)
+    reported           the unit each value was reported in (findings speak the user's units)
     base               CheckConfig (tolerances), Finding, the Rule base class
     coalescence_model  ΔG‡(Tc) for whole columns (Gutowsky–Holm, coupled AB, unequal populations)
     slips              the usual slips, each a recomputation with one thing done wrong
@@ -19,11 +22,11 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 from datetime import UTC, datetime
 
-from registry.storage.connection import Connection
+from registry.storage.connection import Connection, utc
 from registry.storage.database import Database, current_user
 from registry.validation.base import SEVERITIES, SEVERITY_RANK, CheckConfig, Finding, Rule
 from registry.validation.data import load_check_data
-from registry.validation.engine import RULES, rule_by_id, run_rules
+from registry.validation.engine import RULES, legacy_hashes, rule_by_id, run_rules
 from registry.validation.slips import SLIP_IDS
 from registry.validation.store import accept, last_run, reconcile, record_check_run
 
@@ -117,8 +120,10 @@ def check_measurements(
     findings = run_rules(data, cfg)
     now = datetime.now(UTC)
 
+    older = legacy_hashes(data, cfg)
+
     def work(conn: Connection) -> tuple[list[Finding], int, int]:
-        stored, added, removed = reconcile(conn, id_list, findings, now)
+        stored, added, removed = reconcile(conn, id_list, findings, now, older)
         if not record_run:
             return stored, added, removed
         previous = last_run(conn)
@@ -135,7 +140,7 @@ def check_measurements(
     stored, added, removed = database.write(work)
     return CheckReport(
         findings=tuple(stored),
-        checked=len(data.m),
+        checked=len(data),
         ran_at=now,
         measurement_ids=tuple(int(i) for i in data.ids),
         actor=actor,
@@ -146,12 +151,7 @@ def check_measurements(
 
 
 def _after(at: datetime | None, previous: datetime) -> bool:
-    return at is not None and _utc(at) > _utc(previous)
-
-
-def _utc(at: datetime) -> datetime:
-    """SQLite returns naive datetimes (stored as UTC); PostgreSQL returns aware ones."""
-    return at.replace(tzinfo=UTC) if at.tzinfo is None else at.astimezone(UTC)
+    return at is not None and utc(at) > utc(previous)  # type: ignore[operator]
 
 
 def _as_new(f: Finding) -> Finding:

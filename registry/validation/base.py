@@ -2,8 +2,9 @@
 
 A rule is a small class with a stable ``id`` of our own, an integer ``version`` (raise it whenever
 the rule's logic or wording changes, so stored findings are recomputed), a ``severity`` and a
-``run`` method that looks at a whole :class:`~registry.validation.data.CheckData` (numpy/pandas
-columns for every measurement checked) and returns findings for the rows it flags.
+``run`` method that looks at a whole :class:`~registry.validation.data.CheckData` (numpy
+columns for every measurement checked: one row when ``add`` checks, all of them when ``check``
+does — the same code decides both) and returns findings for the rows it flags.
 """
 
 from __future__ import annotations

@@ -96,19 +96,35 @@ def recompute(
     t_eyring_k: Array | None = None,
     kc_scale: float = 1.0,
     log10: bool = False,
+    rates_per_s: tuple[Array, Array] | None = None,
 ) -> Recomputed:
-    """ΔG‡ from the coalescence data; the keywords reproduce a slip (see :mod:`.slips`)."""
-    k1, k2 = rates(inp)
+    """ΔG‡ from the coalescence data; the keywords reproduce a slip (see :mod:`.slips`).
+
+    ``rates_per_s`` are the rates of ``inp`` when the caller has them already (a slip that
+    changes only the temperature or the k_c factor), so they are not computed again.
+    """
+    k1, k2 = rates(inp) if rates_per_s is None else rates_per_s
     k1 = k1 * kc_scale
     k2 = k2 * kc_scale
     t = inp.tc_k if t_eyring_k is None else t_eyring_k
+    # both directions in one call (one pass of the input checks instead of two)
     with np.errstate(invalid="ignore", divide="ignore"):
-        dg1 = np.atleast_1d(kinetics.eyring_barrier(k1, t, invalid="nan")).astype(float)
-        dg2 = np.atleast_1d(kinetics.eyring_barrier(k2, t, invalid="nan")).astype(float)
+        both = kinetics.eyring_barrier(
+            np.concatenate([k1, k2]), np.concatenate([t, t]), invalid="nan"
+        )
+    dg = np.atleast_1d(both).astype(float)
+    dg1, dg2 = dg[: k1.size], dg[k1.size :]
     if log10:
         dg1 = dg1 / np.log(10.0)
         dg2 = dg2 / np.log(10.0)
     return Recomputed(k1, k2, dg1, dg2)
+
+
+def stack(inputs: list[CoalescenceInputs]) -> CoalescenceInputs:
+    """Several versions of the same rows as one (to recompute them in one pass)."""
+    return CoalescenceInputs(
+        **{k: np.concatenate([getattr(i, k) for i in inputs]) for k in inputs[0].__dict__}
+    )
 
 
 def uncertainty(inp: CoalescenceInputs, tc_err_k: Array, dnu_err_hz: Array) -> tuple[Array, Array]:

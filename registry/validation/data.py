@@ -1,30 +1,34 @@
-"""Load what the rules need in bulk, as columns: one query per table, no ORM object per row.
+"""Load what the rules need, as numpy columns: one query per table, whatever the number of rows.
 
-:class:`CheckData` holds one pandas row per measurement (measurement, compound, process and
-solvent columns, plus the coalescence observation the reported ΔG‡ refers to) and the rate
-points as a long table. It also knows the unit each value was *reported* in, so findings can
-speak the user's units (kcal/mol stays kcal/mol, °C stays °C).
+:class:`CheckData` holds one row per measurement checked (measurement, compound, process and
+solvent columns, plus the coalescence observation the reported ΔG‡ refers to), the rate points
+as a long table (:class:`RatePoints`), and the measurements a repeat may be compared with. The
+same object serves a check of one added row and of a whole registry, so the same rule code
+decides both, and gives the same findings and hashes.
 """
 
 from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from functools import cached_property, lru_cache
+from functools import cached_property
+from typing import Any
 
 import numpy as np
-import pandas as pd
 from numpy.typing import NDArray
 
-from registry.record import units
 from registry.storage.connection import Connection
-
-#: the leading number (with an optional "(3)" or "± 0.3" uncertainty) of a value as written
-_NUMBER_PREFIX = (
-    r"^\s*[-+−–]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?\s*(?:\(\d+\))?\s*"
-    r"(?:(?:±|\+/-|\+-|\+/−)\s*(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)?\s*"
+from registry.validation import digest
+from registry.validation.columns import (
+    Floats,
+    Ints,
+    columns_of,
+    group_extremes,
+    group_sums,
+    positions_in,
+    take,
+    to_floats,
 )
-_NUMBER = r"^\s*([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)"
 
 _MEASUREMENT_COLUMNS = {
     "id": "m.id",
@@ -61,6 +65,13 @@ _MEASUREMENT_COLUMNS = {
     "nucleus": "p.nucleus",
 }
 
+_MEASUREMENT_SQL = (
+    f"SELECT {', '.join(_MEASUREMENT_COLUMNS.values())} FROM measurement m "
+    "JOIN compound c ON c.id = m.compound_id "
+    "LEFT OUTER JOIN process p ON p.id = m.process_id "
+    "LEFT OUTER JOIN solvent s ON s.id = m.solvent_id WHERE m.status != 'retracted'"
+)
+
 _COALESCENCE_COLUMNS = {
     "co_id": "co.id",
     "id": "co.measurement_id",
@@ -75,166 +86,59 @@ _COALESCENCE_COLUMNS = {
     "co_field_mhz": "co.field_mhz",
 }
 
-_FLOAT_COLUMNS = (
-    "field_mhz",
-    "t_min_k",
-    "t_max_k",
-    "dg_kj_mol",
-    "dg_err_kj_mol",
-    "dg_t_k",
-    "dh_kj_mol",
-    "dh_err_kj_mol",
-    "ds_j_mol_k",
-    "ds_err_j_mol_k",
-    "ea_kj_mol",
-    "ea_err_kj_mol",
-    "mp_k",
-    "bp_k",
-    "tc_k",
-    "tc_err_k",
-    "dnu_hz",
-    "dnu_err_hz",
-    "j_hz",
-    "population_ratio",
-    "co_field_mhz",
+_COALESCENCE_SQL = (
+    f"SELECT {', '.join(_COALESCENCE_COLUMNS.values())} FROM coalescence co WHERE 1 = 1"
 )
 
-#: the columns whose values make up a measurement's inputs hash
-HASHED_COLUMNS = (
-    "method",
-    "solvent_text",
-    "field_mhz",
-    "t_min_k",
-    "t_max_k",
-    "dg_kj_mol",
-    "dg_err_kj_mol",
-    "dg_text",
-    "dg_t_k",
-    "dh_kj_mol",
-    "dh_err_kj_mol",
-    "dh_text",
-    "ds_j_mol_k",
-    "ds_err_j_mol_k",
-    "ea_kj_mol",
-    "ea_err_kj_mol",
-    "ea_text",
-    "mp_k",
-    "bp_k",
-    "structure_ok",
-    "structure_problem",
-    "nucleus",
-    "tc_k",
-    "tc_err_k",
-    "tc_text",
-    "dnu_hz",
-    "dnu_err_hz",
-    "j_hz",
-    "population_ratio",
-    "co_field_mhz",
-    "co_count",
-    "rate_count",
-    "rate_sum_t",
-    "rate_sum_lnk",
-    "rate_sum_err",
-)
+_RATE_COLUMNS = ("point_id", "id", "t_k", "k_per_s", "k_err_per_s")
+_RATE_SQL = "SELECT id, measurement_id, t_k, k_per_s, k_err_per_s FROM rate_point WHERE 1 = 1"
 
+_FLOAT_COLUMNS = {
+    "field_mhz", "t_min_k", "t_max_k", "dg_kj_mol", "dg_err_kj_mol", "dg_t_k", "dh_kj_mol",
+    "dh_err_kj_mol", "ds_j_mol_k", "ds_err_j_mol_k", "ea_kj_mol", "ea_err_kj_mol", "mp_k",
+    "bp_k", "tc_k", "tc_err_k", "dnu_hz", "dnu_err_hz", "j_hz", "population_ratio",
+    "co_field_mhz", "t_k", "k_per_s", "k_err_per_s",
+}  # fmt: skip
 
-@dataclass
-class CheckData:
-    """Every checked measurement as one row of ``m``; rate points in ``rates``."""
-
-    m: pd.DataFrame
-    rates: pd.DataFrame
-    #: the measurements a repeat could be compared with (same compounds), all columns of ``m``
-    #: that the comparison needs; for a full check this is ``m`` itself
-    peers: pd.DataFrame | None = None
-    _hash_cache: dict[int, str] = field(default_factory=dict)
-
-    @cached_property
-    def ids(self) -> NDArray[np.int64]:
-        """Measurement ids in row order (``m`` is not changed after loading)."""
-        return self.m["id"].to_numpy(dtype=np.int64)
-
-    def col(self, name: str) -> NDArray[np.float64]:
-        """A numeric column as floats (NaN for missing)."""
-        return self.m[name].to_numpy(dtype=np.float64, na_value=np.nan)
-
-    def text(self, name: str) -> NDArray[np.object_]:
-        return self.m[name].to_numpy(dtype=object, na_value=None)
-
-    def digests(self, positions: Sequence[int]) -> dict[int, str]:
-        """A digest of everything the rules read about each measurement at ``positions``.
-
-        ``pandas.util.hash_pandas_object`` hashes each row's values (exact float bits, texts)
-        to 64 bits in one vectorized pass; the engine folds it into the finding's sha256.
-        """
-        todo = sorted({int(p) for p in positions} - self._hash_cache.keys())
-        if todo:
-            block = self.m[list(HASHED_COLUMNS)].iloc[todo]
-            hashed = pd.util.hash_pandas_object(block, index=False).to_numpy()
-            for p, h in zip(todo, hashed.tolist(), strict=True):
-                self._hash_cache[p] = f"{h:016x}"
-        return {int(p): self._hash_cache[int(p)] for p in positions}
-
-
-def _fetch(conn: Connection, sql: str, ids: Sequence[int] | None, id_column: str) -> list[tuple]:  # type: ignore[type-arg]
-    """All rows of ``sql`` (a query ending in WHERE …), only those of ``ids`` when given."""
-    if ids is None:
-        return conn.rows(sql)
-    return conn.rows_where_in(sql, id_column, ids)
-
-
-def _frame(rows: list, columns: list[str]) -> pd.DataFrame:  # type: ignore[type-arg]
-    """Rows → DataFrame column by column (pandas' row-wise path probes each Row object)."""
-    if not rows:
-        return pd.DataFrame({c: pd.Series(dtype=object) for c in columns})
-    return pd.DataFrame(dict(zip(columns, (list(v) for v in zip(*rows, strict=True)), strict=True)))
-
-
-def covers_most(conn: Connection, ids: Sequence[int]) -> bool:
-    """True when ``ids`` are at least half of all measurements (e.g. a first import).
-
-    Reading the whole table in one pass and keeping ``ids`` is then cheaper than selecting
-    them in thousands of ``IN (...)`` chunks.
-    """
-    total = conn.scalar("SELECT count(*) FROM measurement")
-    return 2 * len(ids) >= total
-
-
-def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> CheckData:
-    """Read the measurements (all, or ``ids``) with their coalescence data and rate points."""
-    wanted = None if ids is None else sorted({int(i) for i in ids})
-    if wanted is not None and covers_most(conn, wanted):
-        data = load_check_data(conn, None)
-        keep = data.m["id"].isin(wanted)
-        if bool(keep.all()):
-            return data
-        m = data.m[keep].reset_index(drop=True)
-        rates = data.rates[data.rates["id"].isin(m["id"])].reset_index(drop=True)
-        return CheckData(m=m, rates=rates, peers=data.peers)  # every live measurement
-    ids = wanted
-    mq = (
-        f"SELECT {', '.join(_MEASUREMENT_COLUMNS.values())} FROM measurement m "
-        "JOIN compound c ON c.id = m.compound_id "
-        "LEFT OUTER JOIN process p ON p.id = m.process_id "
-        "LEFT OUTER JOIN solvent s ON s.id = m.solvent_id WHERE m.status != 'retracted'"
-    )
-    m = _frame(_fetch(conn, mq, ids, "m.id"), list(_MEASUREMENT_COLUMNS))
-    cq = f"SELECT {', '.join(_COALESCENCE_COLUMNS.values())} FROM coalescence co WHERE 1 = 1"
-    co = _frame(_fetch(conn, cq, ids, "co.measurement_id"), list(_COALESCENCE_COLUMNS))
-    rq = "SELECT measurement_id, t_k, k_per_s, k_err_per_s FROM rate_point WHERE 1 = 1"
-    rates = _frame(_fetch(conn, rq, ids, "measurement_id"), ["id", "t_k", "k_per_s", "k_err_per_s"])
-    m = m.sort_values("id", kind="stable").reset_index(drop=True)
-    m = _attach_coalescence(m, co)
-    m = _attach_rate_summary(m, rates)
-    for name in _FLOAT_COLUMNS:
-        m[name] = pd.to_numeric(m[name], errors="coerce").astype(np.float64)
-    rates = rates[rates["id"].isin(m["id"])].reset_index(drop=True)
-    for name in ("t_k", "k_per_s", "k_err_per_s"):
-        rates[name] = pd.to_numeric(rates[name], errors="coerce").astype(np.float64)
-    peers = m[list(PEER_COLUMNS)] if ids is None else _load_peers(conn, m)
-    return CheckData(m=m, rates=rates, peers=peers)
-
+#: the columns whose values make up a measurement's inputs hash, in hashing order, and how
+#: each is hashed (see :mod:`.digest`)
+HASHED_COLUMNS: dict[str, str] = {
+    "method": "text",
+    "solvent_text": "text",
+    "field_mhz": "float",
+    "t_min_k": "float",
+    "t_max_k": "float",
+    "dg_kj_mol": "float",
+    "dg_err_kj_mol": "float",
+    "dg_text": "text",
+    "dg_t_k": "float",
+    "dh_kj_mol": "float",
+    "dh_err_kj_mol": "float",
+    "dh_text": "text",
+    "ds_j_mol_k": "float",
+    "ds_err_j_mol_k": "float",
+    "ea_kj_mol": "float",
+    "ea_err_kj_mol": "float",
+    "ea_text": "text",
+    "mp_k": "float",
+    "bp_k": "float",
+    "structure_ok": "flag",
+    "structure_problem": "text",
+    "nucleus": "text",
+    "tc_k": "float",
+    "tc_err_k": "float",
+    "tc_text": "text",
+    "dnu_hz": "float",
+    "dnu_err_hz": "float",
+    "j_hz": "float",
+    "population_ratio": "float",
+    "co_field_mhz": "float",
+    "co_count": "integer",
+    "rate_count": "float",
+    "rate_sum_t": "float",
+    "rate_sum_lnk": "float",
+    "rate_sum_err": "float",
+}
 
 #: what a repeated measurement is matched and compared on
 PEER_COLUMNS = (
@@ -248,178 +152,242 @@ PEER_COLUMNS = (
     "dg_err_kj_mol",
     "dg_t_k",
 )
+#: live measurements of a compound that has another live one (only those can be repeats)
+_PEER_SQL = (
+    f"SELECT {', '.join(f'm.{c}' for c in PEER_COLUMNS)} FROM measurement m "
+    "WHERE m.status != 'retracted' AND EXISTS (SELECT 1 FROM measurement o "
+    "WHERE o.compound_id = m.compound_id AND o.id != m.id AND o.status != 'retracted')"
+)
 
 
-def _load_peers(conn: Connection, m: pd.DataFrame) -> pd.DataFrame:
-    """Every live measurement of the compounds in ``m`` (to find repeats of a checked one)."""
-    query = f"SELECT {', '.join(PEER_COLUMNS)} FROM measurement WHERE status != 'retracted'"
-    compound_ids = m["compound_id"].dropna().astype(int).unique().tolist()
-    peers = _frame(_fetch(conn, query, compound_ids, "compound_id"), list(PEER_COLUMNS))
-    for name in ("dg_kj_mol", "dg_err_kj_mol", "dg_t_k"):
-        peers[name] = pd.to_numeric(peers[name], errors="coerce").astype(np.float64)
-    return peers
+@dataclass(frozen=True)
+class RatePoints:
+    """The rate points of the checked measurements, grouped by measurement, in stored order."""
+
+    #: row of :class:`CheckData` each point belongs to (ascending)
+    pos: Ints
+    t_k: Floats
+    k_per_s: Floats
+    k_err_per_s: Floats
+    #: how many rows the :class:`CheckData` has (the number of groups)
+    rows: int
+
+    def __len__(self) -> int:
+        return int(self.pos.size)
+
+    @cached_property
+    def t_sum_count(self) -> tuple[Floats, Ints]:
+        return group_sums(self.pos, self.t_k, self.rows)
+
+    @cached_property
+    def t_extremes(self) -> tuple[Floats, Floats]:
+        """Lowest and highest temperature of each measurement's points (NaN: no points)."""
+        return group_extremes(self.pos, self.t_k, self.rows)
+
+    @cached_property
+    def count(self) -> Ints:
+        """Number of points of each measurement."""
+        return np.bincount(self.pos, minlength=self.rows).astype(np.int64)
 
 
-def _attach_coalescence(m: pd.DataFrame, co: pd.DataFrame) -> pd.DataFrame:
-    """The coalescence row the reported ΔG‡ refers to: the one whose Tc is nearest ΔG‡'s T."""
-    if co.empty:
-        for name in _COALESCENCE_COLUMNS:
-            if name != "id":
-                m[name] = np.nan
-        m["co_count"] = 0
-        return m
-    co = co.merge(m[["id", "dg_t_k"]], on="id", how="inner")
-    tc = pd.to_numeric(co["tc_k"], errors="coerce")
-    dgt = pd.to_numeric(co["dg_t_k"], errors="coerce")
-    co["_dist"] = (tc - dgt).abs().fillna(0.0)
-    counts = co.groupby("id").size().rename("co_count")
-    chosen = co.sort_values(["id", "_dist", "co_id"]).drop_duplicates("id")
-    chosen = chosen.drop(columns=["_dist", "dg_t_k"])
-    m = m.merge(chosen, on="id", how="left").merge(counts, on="id", how="left")
-    m["co_count"] = m["co_count"].fillna(0).astype(np.int64)
-    return m
+@dataclass
+class CheckData:
+    """Every checked measurement as one row; numeric columns float64 (NaN = missing), the
+    others object arrays (None = missing). Columns are read-only."""
+
+    ids: Ints
+    columns: dict[str, NDArray[Any]]
+    rates: RatePoints
+    #: the measurements a repeat could be compared with (same compounds, live), sorted by id:
+    #: :data:`PEER_COLUMNS`; for a whole-registry check these are the checked rows themselves
+    peers: dict[str, NDArray[Any]]
+    _hash_cache: dict[int, str] = field(default_factory=dict, repr=False)
+
+    def __len__(self) -> int:
+        return int(self.ids.size)
+
+    def col(self, name: str) -> Floats:
+        """A numeric column as floats (NaN for missing)."""
+        values = self.columns[name]
+        return values if values.dtype == np.float64 else _as_floats(values)
+
+    def text(self, name: str) -> NDArray[np.object_]:
+        """A column as objects (None for missing)."""
+        return self.columns[name]
+
+    def positions(self, ids: Sequence[int] | Ints) -> Ints:
+        """Row of each measurement id (-1 where it is not among the checked)."""
+        return positions_in(self.ids, np.asarray(ids, dtype=np.int64))
+
+    def digests(
+        self, positions: Sequence[int], variant: frozenset[str] = frozenset()
+    ) -> dict[int, str]:
+        """A digest of everything the rules read about each measurement at ``positions``.
+
+        ``variant`` names legacy forms of the digest (see :data:`LEGACY_VARIANTS`); the
+        default is the form every check computes now.
+        """
+        if variant:
+            return dict(zip(positions, _row_digests(self, list(positions), variant), strict=True))
+        todo = sorted({int(p) for p in positions} - self._hash_cache.keys())
+        if todo:
+            self._hash_cache.update(zip(todo, _row_digests(self, todo, variant), strict=True))
+        return {int(p): self._hash_cache[int(p)] for p in positions}
 
 
-def _attach_rate_summary(m: pd.DataFrame, rates: pd.DataFrame) -> pd.DataFrame:
-    """Per-measurement sums of the rate points (for the inputs hash)."""
-    if rates.empty:
-        for name in ("rate_count", "rate_sum_t", "rate_sum_lnk", "rate_sum_err"):
-            m[name] = 0.0
-        return m
-    r = rates.assign(
-        lnk=np.log(pd.to_numeric(rates["k_per_s"], errors="coerce")),
-        err=pd.to_numeric(rates["k_err_per_s"], errors="coerce").fillna(0.0),
+def _as_floats(values: NDArray[Any]) -> Floats:
+    return to_floats(values.tolist())
+
+
+#: Digests older checks stored for some rows, which the current form does not reproduce.
+#: The checker used to build a data frame per run, whose column types depended on the batch:
+#: when no checked row had coalescence data, Tc's text column held NaN floats instead of
+#: missing texts ("tc-text-float"); when every checked row had rate points, their count was an
+#: integer column instead of floats ("rate-count-int"). A one-row check of a measurement
+#: without coalescence data (what ``add`` did) therefore stored another digest than a check of
+#: the whole registry. A stored finding whose digest matches a legacy form of the current
+#: inputs is the same finding: :func:`registry.validation.store.reconcile` keeps it.
+LEGACY_VARIANTS: tuple[frozenset[str], ...] = (
+    frozenset({"tc-text-float"}),
+    frozenset({"rate-count-int"}),
+    frozenset({"tc-text-float", "rate-count-int"}),
+)
+
+
+def _row_digests(data: CheckData, rows: list[int], variant: frozenset[str]) -> list[str]:
+    """The digests of ``rows``: every hashed column hashed at once by kind (one pass over all
+    texts, one over all floats), then folded per row in column order."""
+    at = np.asarray(rows, dtype=np.int64)
+    n = at.size
+    names = list(HASHED_COLUMNS)
+    kinds = dict(HASHED_COLUMNS)
+    if "rate-count-int" in variant:
+        kinds["rate_count"] = "integer"
+    by_kind: dict[str, list[str]] = {}
+    for name in names:
+        by_kind.setdefault(kinds[name], []).append(name)
+    hashed: dict[str, digest.U64] = {}
+    floats = by_kind.get("float", [])
+    if floats:
+        block = digest.hash_floats(np.concatenate([data.columns[c][at] for c in floats]))
+        hashed.update((c, block[k * n : (k + 1) * n]) for k, c in enumerate(floats))
+    texts = by_kind.get("text", [])
+    if texts:
+        values = [v for c in texts for v in data.columns[c][at].tolist()]
+        block = digest.hash_texts(values)
+        hashed.update((c, block[k * n : (k + 1) * n]) for k, c in enumerate(texts))
+        if "tc-text-float" in variant:
+            tc = data.columns["tc_text"][at].tolist()
+            missing = np.array([digest.is_missing(v) for v in tc], dtype=bool)
+            hashed["tc_text"] = np.where(
+                missing, digest.hash_floats(np.full(n, np.nan)), hashed["tc_text"]
+            )
+    for c in by_kind.get("integer", []):
+        hashed[c] = digest.hash_integers(data.columns[c][at].astype(np.int64))
+    for c in by_kind.get("flag", []):
+        hashed[c] = digest.hash_flags(data.columns[c][at].tolist())
+    return [f"{h:016x}" for h in digest.combine([hashed[c] for c in names], n).tolist()]
+
+
+# ---------------------------------------------------------------- loading
+
+
+def _fetch(
+    conn: Connection, sql: str, keys: Sequence[int] | None, key_column: str
+) -> list[tuple[Any, ...]]:
+    """All rows of ``sql`` (a query ending in WHERE …), only those with ``key_column`` in
+    ``keys`` when given."""
+    if keys is None:
+        return conn.rows(sql)
+    return conn.rows_where_in(sql, key_column, keys)
+
+
+def load_check_data(conn: Connection, ids: Sequence[int] | None = None) -> CheckData:
+    """Read the measurements (all live ones, or those of ``ids``) with their coalescence data,
+    rate points and possible repeats."""
+    wanted = None if ids is None else sorted({int(i) for i in ids})
+    m = columns_of(
+        _fetch(conn, _MEASUREMENT_SQL, wanted, "m.id"), list(_MEASUREMENT_COLUMNS), _FLOAT_COLUMNS
     )
-    agg = r.groupby("id").agg(
-        rate_count=("t_k", "size"),
-        rate_sum_t=("t_k", "sum"),
-        rate_sum_lnk=("lnk", "sum"),
-        rate_sum_err=("err", "sum"),
+    measurement_ids = m["id"].astype(np.int64)
+    order = np.argsort(measurement_ids, kind="stable")
+    m = take(m, order)
+    measurement_ids = measurement_ids[order]
+    co = columns_of(
+        _fetch(conn, _COALESCENCE_SQL, wanted, "co.measurement_id"),
+        list(_COALESCENCE_COLUMNS),
+        _FLOAT_COLUMNS,
     )
-    m = m.merge(agg, on="id", how="left")
-    for name in ("rate_count", "rate_sum_t", "rate_sum_lnk", "rate_sum_err"):
-        m[name] = m[name].fillna(0.0)
-    return m
+    _attach_coalescence(m, measurement_ids, co)
+    rates = _rate_points(
+        columns_of(_fetch(conn, _RATE_SQL, wanted, "measurement_id"), _RATE_COLUMNS,
+                   _FLOAT_COLUMNS),
+        measurement_ids,
+    )  # fmt: skip
+    _attach_rate_summary(m, rates)
+    if wanted is None:
+        peers = {name: m[name] for name in PEER_COLUMNS}
+    else:
+        peers = _load_peers(conn, m["compound_id"])
+    for values in m.values():
+        values.flags.writeable = False
+    return CheckData(ids=measurement_ids, columns=m, rates=rates, peers=peers)
 
 
-# --- the units values were reported in -------------------------------------------------------
+def _load_peers(conn: Connection, compound_ids: NDArray[Any]) -> dict[str, NDArray[Any]]:
+    """The live measurements of these compounds that could be a repeat (their compound has
+    another live measurement), by id."""
+    wanted = sorted({int(c) for c in compound_ids.tolist() if c is not None})
+    floats = {"dg_kj_mol", "dg_err_kj_mol", "dg_t_k"}
+    peers = columns_of(_fetch(conn, _PEER_SQL, wanted, "m.compound_id"), PEER_COLUMNS, floats)
+    return take(peers, np.argsort(peers["id"].astype(np.int64), kind="stable"))
 
 
-def unit_part(texts: pd.Series) -> pd.Series:
-    """What follows the number (and its uncertainty) in each text; NaN where there is no text."""
-    cleaned = texts.astype(object).where(texts.notna(), None)
-    s = pd.Series(cleaned, dtype="object")
-    return s.str.replace(_NUMBER_PREFIX, "", regex=True).str.strip()
-
-
-_KNOWN_LABELS = {
-    "energy": (("kJ/mol", "kJ/mol"), ("kcal/mol", "kcal/mol")),
-    "entropy": (("J/(mol*K)", "J/(mol·K)"), ("cal/(mol*K)", "cal/(mol·K)")),
-}
-
-
-@lru_cache(maxsize=256)
-def _unit_label(unit_text: str, quantity: str) -> tuple[str, float] | None:
-    """A display label and the factor from the canonical unit for a written unit, or None."""
-    try:
-        units.unit_of(unit_text, quantity)
-        factor = units.convert(1.0, units.CANONICAL[quantity], unit_text)
-    except Exception:
-        return None
-    for pint_unit, label in _KNOWN_LABELS.get(quantity, ()):
-        if abs(factor - units.convert(1.0, units.CANONICAL[quantity], pint_unit)) < 1e-9:
-            return label, factor
-    return unit_text, factor
-
-
-@lru_cache(maxsize=1)
-def kcal_per_kj() -> float:
-    """kcal/mol per kJ/mol (thermochemical calorie, via the unit registry)."""
-    return units.convert(1.0, "kJ/mol", "kcal/mol")
-
-
-def energy_units(texts: pd.Series, values_kj: pd.Series) -> tuple[NDArray, NDArray]:
-    """Display label and factor (display = kJ/mol × factor) of each reported energy."""
-    return value_units(texts, values_kj, "energy")
-
-
-def value_units(texts: pd.Series, values: pd.Series, quantity: str) -> tuple[NDArray, NDArray]:
-    """Display label and factor (display = canonical × factor) of each reported value.
-
-    A text without a unit (the unit came from a spreadsheet header) is matched by the ratio of
-    its number to the stored canonical value (kJ/mol or kcal/mol; J or cal per mol·K).
-    """
-    n = len(texts)
-    known = _KNOWN_LABELS[quantity]
-    labels = np.full(n, known[0][1], dtype=object)
-    factors = np.ones(n)
-    if n == 0:
-        return labels, factors
-    texts = texts.reset_index(drop=True)
-    parts = unit_part(texts)
-    for unit_text in parts.dropna().unique():
-        if not unit_text:
+def _attach_coalescence(m: dict[str, Any], ids: Ints, co: dict[str, Any]) -> None:
+    """The coalescence row the reported ΔG‡ refers to: the one whose Tc is nearest ΔG‡'s T
+    (ties: the first stored); and how many coalescence rows each measurement has."""
+    n = ids.size
+    pos = positions_in(ids, co["id"].astype(np.int64))
+    mine = np.flatnonzero(pos >= 0)
+    pos = pos[mine]
+    with np.errstate(invalid="ignore"):
+        distance = np.abs(co["tc_k"][mine] - m["dg_t_k"][pos])
+    distance = np.where(np.isnan(distance), 0.0, distance)
+    co_id = co["co_id"][mine].astype(np.int64)
+    order = np.lexsort((co_id, distance, pos))
+    first = order[np.r_[True, pos[order][1:] != pos[order][:-1]]] if order.size else order
+    chosen_rows, chosen_pos = mine[first], pos[first]
+    for name in _COALESCENCE_COLUMNS:
+        if name in ("id", "co_id"):
             continue
-        found = _unit_label(str(unit_text), quantity)
-        if found is None:
-            continue
-        mask = (parts == unit_text).to_numpy()
-        labels[mask] = found[0]
-        factors[mask] = found[1]
-    bare = (parts == "").to_numpy()
-    if bare.any():
-        numbers = pd.to_numeric(
-            texts[bare].astype(str).str.extract(_NUMBER)[0].str.replace(",", "."),
-            errors="coerce",
-        ).to_numpy(dtype=float)
-        stored = np.asarray(values, dtype=float)[bare]
-        alt = units.convert(1.0, units.CANONICAL[quantity], known[1][0])
-        with np.errstate(invalid="ignore", divide="ignore"):
-            is_alt = np.abs(numbers / stored - alt) < 1e-3
-        idx = np.flatnonzero(bare)[is_alt]
-        labels[idx] = known[1][1]
-        factors[idx] = alt
-    return labels, factors
+        values = co[name]
+        out = np.full(n, np.nan if values.dtype == np.float64 else None, dtype=values.dtype)
+        out[chosen_pos] = values[chosen_rows]
+        m[name] = out
+    m["co_count"] = np.bincount(pos, minlength=n).astype(np.int64)
 
 
-@lru_cache(maxsize=64)
-def _temperature_map(unit_text: str) -> tuple[str, float, float] | None:
-    """(label, offset, scale) so that display = offset + scale·K for a written temperature unit."""
-    try:
-        normal = units.unit_of(unit_text, "temperature")
-        zero = units.convert(0.0, "K", normal)
-        one = units.convert(1.0, "K", normal)
-    except Exception:
-        return None
-    label = {"degC": "°C", "degF": "°F"}.get(normal, "K")
-    return label, zero, one - zero
+def _rate_points(r: dict[str, Any], ids: Ints) -> RatePoints:
+    """Rate points of the checked measurements, by measurement and then in stored order."""
+    pos = positions_in(ids, r["id"].astype(np.int64))
+    keep = np.flatnonzero(pos >= 0)
+    point_id = r["point_id"][keep].astype(np.int64)
+    order = keep[np.lexsort((point_id, pos[keep]))]
+    return RatePoints(
+        pos=pos[order],
+        t_k=r["t_k"][order],
+        k_per_s=r["k_per_s"][order],
+        k_err_per_s=r["k_err_per_s"][order],
+        rows=ids.size,
+    )
 
 
-def temperature_units(texts: pd.Series) -> tuple[NDArray, NDArray, NDArray]:
-    """Display label, offset and scale (display = offset + scale·K) of each reported temperature."""
-    n = len(texts)
-    labels = np.full(n, "K", dtype=object)
-    offset = np.zeros(n)
-    scale = np.ones(n)
-    if n == 0:
-        return labels, offset, scale
-    parts = unit_part(texts.reset_index(drop=True))
-    for unit_text in parts.dropna().unique():
-        if not unit_text:
-            continue
-        found = _temperature_map(str(unit_text))
-        if found is None or found[0] == "K":
-            continue
-        mask = (parts == unit_text).to_numpy()
-        labels[mask] = found[0]
-        offset[mask] = found[1]
-        scale[mask] = found[2]
-    return labels, offset, scale
-
-
-def as_temperature(value_k: float, label: str) -> str:
-    """A temperature for a message: '333.2 K' or '60.0 °C (333.2 K)'."""
-    if label == "K" or value_k != value_k:
-        return f"{value_k:.1f} K"
-    shown = units.convert(value_k, "K", {"°C": "degC", "°F": "degF"}[label])
-    return f"{shown:.1f} {label} ({value_k:.1f} K)"
+def _attach_rate_summary(m: dict[str, Any], rates: RatePoints) -> None:
+    """Per-measurement count and sums of the rate points (for the inputs hash)."""
+    m["rate_count"] = rates.count.astype(np.float64)
+    m["rate_sum_t"] = rates.t_sum_count[0]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        lnk = np.log(rates.k_per_s)
+    m["rate_sum_lnk"] = group_sums(rates.pos, lnk, rates.rows)[0]
+    err = np.where(np.isnan(rates.k_err_per_s), 0.0, rates.k_err_per_s)
+    m["rate_sum_err"] = group_sums(rates.pos, err, rates.rows)[0]

@@ -9,15 +9,11 @@ Kinetics, 3rd ed. (1987), §4.5 — from memory).
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from registry.kinetics.constants import R_KJ_MOL_K, STANDARD_TEMPERATURE_K
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
-from registry.validation.data import CheckData, energy_units, kcal_per_kj
-
-
-def _sub(series: pd.Series, positions: np.ndarray) -> pd.Series:
-    return series.iloc[positions].reset_index(drop=True)
+from registry.validation.data import CheckData
+from registry.validation.reported import energy_units, kcal_per_kj
 
 
 class FreeEnergyFromEnthalpyEntropy(Rule):
@@ -49,7 +45,7 @@ class FreeEnergyFromEnthalpyEntropy(Rule):
         if not bad.any():
             return []
         pos = rows[bad]
-        labels, factors = energy_units(_sub(data.m["dg_text"], pos), _sub(data.m["dg_kj_mol"], pos))
+        labels, factors = energy_units(data.text("dg_text")[pos], data.col("dg_kj_mol")[pos])
         dg, dh, ds, t, tol, recomputed = (a[bad] for a in (dg, dh, ds, t, tol, recomputed))
         cal = 1.0 / kcal_per_kj()  # J per cal (thermochemical), via the unit registry
         at_standard = (
@@ -93,16 +89,18 @@ def mean_temperature(data: CheckData) -> tuple[np.ndarray, np.ndarray, np.ndarra
     Rate points first, then the stated range, then ΔG‡'s temperature, then 298.15 K.
     Source codes: 0 rate points, 1 range, 2 ΔG‡ temperature, 3 assumed.
     """
-    n = len(data.m)
+    n = len(data)
     t = np.full(n, np.nan)
     half = np.zeros(n)
     src = np.full(n, 3)
-    if not data.rates.empty:
-        g = data.rates.groupby("id")["t_k"].agg(["mean", "min", "max"])
-        pos = pd.Index(data.m["id"]).get_indexer(g.index)
-        t[pos] = g["mean"].to_numpy()
-        half[pos] = (g["max"] - g["min"]).to_numpy() / 2.0
-        src[pos] = 0
+    has = data.rates.count > 0
+    if has.any():
+        sums, counts = data.rates.t_sum_count
+        low, high = data.rates.t_extremes
+        with np.errstate(invalid="ignore", divide="ignore"):
+            t[has] = sums[has] / counts[has]  # the compensated sum, as stored digests used
+        half[has] = (high[has] - low[has]) / 2.0
+        src[has] = 0
     lo, hi = data.col("t_min_k"), data.col("t_max_k")
     use = ~np.isfinite(t) & np.isfinite(lo) & np.isfinite(hi)
     t = np.where(use, (lo + hi) / 2.0, t)
@@ -145,7 +143,7 @@ class ArrheniusEnergyFromEnthalpy(Rule):
         if not bad.any():
             return []
         pos = rows[bad]
-        labels, factors = energy_units(_sub(data.m["ea_text"], pos), _sub(data.m["ea_kj_mol"], pos))
+        labels, factors = energy_units(data.text("ea_text")[pos], data.col("ea_kj_mol")[pos])
         where = ("mean of the rate points", "middle of the stated range", "ΔG‡'s temperature",
                  "assumed; no temperature stored")  # fmt: skip
         ea_b, dh_b = ea[pos], dh[pos]

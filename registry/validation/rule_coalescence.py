@@ -7,14 +7,16 @@ import numpy as np
 from registry.validation import slips
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.coalescence_model import CoalescenceInputs, recompute, uncertainty
-from registry.validation.data import CheckData, as_temperature, energy_units, temperature_units
+from registry.validation.columns import present
+from registry.validation.data import CheckData
+from registry.validation.reported import as_temperature, energy_units, temperature_units
 
 
 def coalescence_inputs(data: CheckData, rows: np.ndarray) -> CoalescenceInputs:
-    """The coalescence columns of ``rows`` (positions in ``data.m``)."""
+    """The coalescence columns of ``rows`` (row positions in ``data``)."""
     field = data.col("co_field_mhz")[rows]
     field = np.where(np.isfinite(field), field, data.col("field_mhz")[rows])
-    stated = data.m["dg_t_text"].notna().to_numpy()[rows]
+    stated = present(data.text("dg_t_text")[rows])
     return CoalescenceInputs(
         tc_k=data.col("tc_k")[rows],
         dnu_hz=data.col("dnu_hz")[rows],
@@ -70,12 +72,9 @@ class CoalescenceBarrier(Rule):
         positions = rows[bad]
         diagnosis = slips.diagnose(sub, rec.take(bad), tol[bad], config.standard_fields_mhz)
         labels, factors = energy_units(
-            data.m["dg_text"].iloc[positions].reset_index(drop=True),
-            data.m["dg_kj_mol"].iloc[positions].reset_index(drop=True),
+            data.text("dg_text")[positions], data.col("dg_kj_mol")[positions]
         )
-        tc_labels, _, _ = temperature_units(
-            data.m["tc_text"].iloc[positions].reset_index(drop=True)
-        )
+        tc_labels, _, _ = temperature_units(data.text("tc_text")[positions])
         k1 = rec.k1_per_s[bad].tolist()
         k2 = rec.k2_per_s[bad].tolist()
         rec_bad, tol_bad, first_bad = recomputed[bad].tolist(), tol[bad].tolist(), first[bad]

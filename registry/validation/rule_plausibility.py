@@ -5,13 +5,11 @@ stated field and nucleus.
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from registry.record.nuclei import FREQUENCY_RATIO_TO_1H
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
-from registry.validation.data import CheckData, energy_units, unit_part
-
-_LEADING_NUMBER = r"^\s*([-+]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][-+]?\d+)?)"
+from registry.validation.data import CheckData
+from registry.validation.reported import energy_units, leading_number, unit_part
 
 #: methods that watch exchange on the NMR time scale (dynamic NMR)
 DYNAMIC_NMR_METHODS = ("coalescence", "lineshape", "2d-exchange", "saturation-transfer")
@@ -19,6 +17,11 @@ DYNAMIC_NMR_METHODS = ("coalescence", "lineshape", "2d-exchange", "saturation-tr
 
 #: spectrometer (1H) frequencies outside this range are not NMR magnets (common practice, no source)
 FIELD_MIN_MHZ, FIELD_MAX_MHZ = 40.0, 1300.0
+
+
+def _nuclei(data: CheckData) -> list[str]:
+    """The observed nucleus of each row ('' where none is stored)."""
+    return ["" if x is None else str(x) for x in data.text("nucleus").tolist()]
 
 
 class BarrierInMethodRange(Rule):
@@ -36,16 +39,13 @@ class BarrierInMethodRange(Rule):
 
     def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
         dg = data.col("dg_kj_mol")
-        nmr = data.m["method"].isin(DYNAMIC_NMR_METHODS).to_numpy()
+        nmr = np.array([m in DYNAMIC_NMR_METHODS for m in data.text("method").tolist()], dtype=bool)
         lo, hi = config.nmr_barrier_min_kj_mol, config.nmr_barrier_max_kj_mol
         with np.errstate(invalid="ignore"):
             rows = np.flatnonzero(nmr & np.isfinite(dg) & ((dg < lo) | (dg > hi)))
         if rows.size == 0:
             return []
-        labels, factors = energy_units(
-            data.m["dg_text"].iloc[rows].reset_index(drop=True),
-            data.m["dg_kj_mol"].iloc[rows].reset_index(drop=True),
-        )
+        labels, factors = energy_units(data.text("dg_text")[rows], data.col("dg_kj_mol")[rows])
         method = data.text("method")
         out = []
         for i, p in enumerate(rows):
@@ -94,9 +94,9 @@ class ShiftMatchesField(Rule):
                     context="field",
                 )
             )
-        nucleus = data.m["nucleus"].fillna("").astype(str).to_numpy()
-        ratio = np.array([FREQUENCY_RATIO_TO_1H.get(x, np.nan) for x in nucleus])
-        limit = np.array([config.max_shift_ppm.get(x, np.nan) for x in nucleus])
+        nucleus = _nuclei(data)
+        ratio = np.array([FREQUENCY_RATIO_TO_1H.get(x, np.nan) for x in nucleus], dtype=float)
+        limit = np.array([config.max_shift_ppm.get(x, np.nan) for x in nucleus], dtype=float)
         dnu = data.col("dnu_hz")
         with np.errstate(invalid="ignore", divide="ignore"):
             observe = field * ratio
@@ -130,19 +130,17 @@ class PpmConvertedAtObserveFrequency(Rule):
     title = "Δν in ppm converted at the observed nucleus' frequency"
 
     def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
-        parts = unit_part(data.m["dnu_text"])
-        in_ppm = (parts.str.lower() == "ppm").fillna(False).to_numpy(dtype=bool)
-        nucleus = data.m["nucleus"].fillna("").astype(str).to_numpy()
-        ratio = np.array([FREQUENCY_RATIO_TO_1H.get(x, np.nan) for x in nucleus])
-        rows = np.flatnonzero(in_ppm & np.isfinite(ratio) & (ratio < 0.999))
+        nucleus = _nuclei(data)
+        ratio = np.array([FREQUENCY_RATIO_TO_1H.get(x, np.nan) for x in nucleus], dtype=float)
+        other = np.flatnonzero(np.isfinite(ratio) & (ratio < 0.999))
+        texts = data.text("dnu_text")[other].tolist()
+        in_ppm = np.array([(unit_part(t) or "").lower() == "ppm" for t in texts], dtype=bool)
+        rows = other[in_ppm]
         if rows.size == 0:
             return []
         field = data.col("co_field_mhz")[rows]
         field = np.where(np.isfinite(field), field, data.col("field_mhz")[rows])
-        ppm = pd.to_numeric(
-            data.m["dnu_text"].iloc[rows].astype(str).str.extract(_LEADING_NUMBER)[0]
-            .str.replace(",", "."), errors="coerce",
-        ).to_numpy(dtype=float)  # fmt: skip
+        ppm = np.array([leading_number(t) for t in data.text("dnu_text")[rows].tolist()])
         dnu = data.col("dnu_hz")[rows]
         with np.errstate(invalid="ignore", divide="ignore"):
             at_proton = np.abs(dnu - ppm * field) <= 1e-6 * np.maximum(np.abs(dnu), 1.0)

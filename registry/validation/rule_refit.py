@@ -13,12 +13,12 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import pandas as pd
 from numpy.typing import NDArray
 
 from registry.kinetics.constants import LN_KB_OVER_H, R_J_MOL_K, R_KJ_MOL_K
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
-from registry.validation.data import CheckData, energy_units, value_units
+from registry.validation.data import CheckData
+from registry.validation.reported import energy_units, value_units
 
 Array = NDArray[np.float64]
 
@@ -94,20 +94,13 @@ def grouped_eyring_fit(
 
 
 def fit_rate_points(data: CheckData) -> GroupedEyringFit | None:
-    """One Eyring fit per measurement of ``data`` (row order of ``data.m``)."""
+    """One Eyring fit per measurement of ``data`` (its row order)."""
     r = data.rates
-    if r.empty:
+    if len(r) == 0:
         return None
-    ok = (r["t_k"] > 0) & (r["k_per_s"] > 0)
-    r = r[ok]
-    pos = pd.Index(data.m["id"]).get_indexer(r["id"])
-    return grouped_eyring_fit(
-        pos.astype(np.int64),
-        len(data.m),
-        r["t_k"].to_numpy(dtype=float),
-        r["k_per_s"].to_numpy(dtype=float),
-        r["k_err_per_s"].to_numpy(dtype=float, na_value=np.nan),
-    )
+    with np.errstate(invalid="ignore"):
+        ok = (r.t_k > 0) & (r.k_per_s > 0)
+    return grouped_eyring_fit(r.pos[ok], len(data), r.t_k[ok], r.k_per_s[ok], r.k_err_per_s[ok])
 
 
 class ActivationRefit(Rule):
@@ -165,9 +158,9 @@ class ActivationRefit(Rule):
         pos = np.flatnonzero(bad)
         if pos.size == 0:
             return []
-        texts = data.m[f"{key}_text"].iloc[pos].reset_index(drop=True)
+        texts = data.text(f"{key}_text")[pos]
         column = f"{key}_kj_mol" if quantity == "energy" else f"{key}_j_mol_k"
-        values = data.m[column].iloc[pos].reset_index(drop=True)
+        values = data.col(column)[pos]
         if quantity == "energy":
             labels, factors = energy_units(texts, values)
         else:

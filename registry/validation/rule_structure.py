@@ -2,12 +2,15 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 import numpy as np
-import pandas as pd
+from numpy.typing import NDArray
 
 from registry.record import vocab
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
-from registry.validation.data import CheckData, energy_units
+from registry.validation.data import CheckData
+from registry.validation.reported import energy_units
 
 
 class StructureParses(Rule):
@@ -19,8 +22,7 @@ class StructureParses(Rule):
     title = "SMILES parses"
 
     def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
-        ok = data.m["structure_ok"]
-        rows = np.flatnonzero((ok.notna() & ~ok.fillna(True).astype(bool)).to_numpy())
+        rows = np.flatnonzero([v is not None and not v for v in data.text("structure_ok").tolist()])
         problem = data.text("structure_problem")
         label = data.text("compound_label")
         out = []
@@ -34,27 +36,6 @@ class StructureParses(Rule):
                 )
             )
         return out
-
-
-def _match_key(frame: pd.DataFrame) -> pd.DataFrame:
-    """compound, process, method and solvent (table id, else the spelling key) of each row."""
-    in_table = frame["solvent_id"].notna().to_numpy()
-    key = np.empty(len(frame), dtype=object)
-    key[in_table] = [f"id:{int(v)}" for v in frame["solvent_id"].to_numpy()[in_table].tolist()]
-    others = frame["solvent_text"].to_numpy(dtype=object)[~in_table]
-    key[~in_table] = ["text:" + vocab.solvent_key(str(t or "")) for t in others]
-    return pd.DataFrame(
-        {
-            "id": frame["id"].to_numpy(),
-            "k_compound": frame["compound_id"].to_numpy(),
-            "k_process": frame["process_id"].fillna(-1).astype(np.int64).to_numpy(),
-            "k_method": frame["method"].astype(str).to_numpy(),
-            "k_solvent": key,
-            "dg": frame["dg_kj_mol"].to_numpy(dtype=float),
-            "err": np.nan_to_num(frame["dg_err_kj_mol"].to_numpy(dtype=float), nan=0.0),
-            "t": frame["dg_t_k"].to_numpy(dtype=float),
-        }
-    )
 
 
 class RepeatsAgree(Rule):
@@ -72,50 +53,114 @@ class RepeatsAgree(Rule):
     uses = ("dg_tolerance_kj_mol", "coverage", "duplicate_max_dt_k")
 
     def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
-        if data.peers is None or data.peers.empty:
+        pairs = _disagreeing_pairs(data, config)
+        if pairs is None:
             return []
-        mine = _match_key(data.m)
-        mine = mine[np.isfinite(mine["dg"])]
-        peers = _match_key(data.peers)
-        peers = peers[np.isfinite(peers["dg"])]
-        keys = ["k_compound", "k_process", "k_method", "k_solvent"]
-        pairs = mine.merge(peers, on=keys, suffixes=("", "_o"))
-        pairs = pairs[pairs["id"] != pairs["id_o"]]
-        if pairs.empty:
-            return []
-        dt = (pairs["t"] - pairs["t_o"]).abs()
-        close_t = dt.isna() | (dt <= config.duplicate_max_dt_k)
-        tol = config.dg_tolerance_kj_mol + config.coverage * np.sqrt(
-            pairs["err"] ** 2 + pairs["err_o"] ** 2
-        )
-        excess = (pairs["dg"] - pairs["dg_o"]).abs() - tol
-        pairs = pairs.assign(tol=tol, excess=excess)[close_t & (excess > 0)]
-        if pairs.empty:
-            return []
-        worst = pairs.sort_values(["id", "excess"], ascending=[True, False]).drop_duplicates("id")
-        pos = pd.Index(data.m["id"]).get_indexer(worst["id"])
-        labels, factors = energy_units(
-            data.m["dg_text"].iloc[pos].reset_index(drop=True),
-            data.m["dg_kj_mol"].iloc[pos].reset_index(drop=True),
-        )
-        others = (pairs.groupby("id").size()).to_dict()
+        mine, other, tol, excess = pairs
+        # per checked row the worst disagreement (ties: the repeat stored first), and how many
+        order = np.lexsort((other, -excess, mine))
+        mine, other, tol = mine[order], other[order], tol[order]
+        first = np.r_[True, mine[1:] != mine[:-1]]
+        disagreeing = np.diff(np.r_[np.flatnonzero(first), mine.size])
+        rows, peers, tol = mine[first], other[first], tol[first]
+        dg, dg_o = data.col("dg_kj_mol")[rows], data.peers["dg_kj_mol"][peers]
+        err_o = np.nan_to_num(data.peers["dg_err_kj_mol"][peers], nan=0.0)
+        t_o = data.peers["dg_t_k"][peers]
+        peer_ids = data.peers["id"][peers]
+        labels, factors = energy_units(data.text("dg_text")[rows], data.col("dg_kj_mol")[rows])
         out = []
-        for i, row in enumerate(worst.itertuples(index=False)):
+        for i, p in enumerate(rows.tolist()):
             u, f = labels[i], float(factors[i])
-            more = others[row.id] - 1
+            mine_dg, their_dg, their_id = float(dg[i]), float(dg_o[i]), int(peer_ids[i])
+            more = int(disagreeing[i]) - 1
             extra = f" (and {more} other repeat(s) disagree too)" if more else ""
             out.append(
                 self.finding(
-                    int(row.id),
-                    f"ΔG‡ {fnum(row.dg * f, 2)} {u} disagrees with measurement {row.id_o} of the "
-                    f"same compound, process, solvent and method ({fnum(row.dg_o * f, 2)} {u}): "
-                    f"they differ by {fnum((row.dg - row.dg_o) * f, 2)} {u}, more than their "
-                    f"combined uncertainty allows (±{row.tol * f:.2f} {u}){extra}",
-                    reported=opt(row.dg * f),
-                    recomputed=opt(row.dg_o * f),
-                    difference=opt((row.dg - row.dg_o) * f),
+                    int(data.ids[p]),
+                    f"ΔG‡ {fnum(mine_dg * f, 2)} {u} disagrees with measurement {their_id} of "
+                    f"the same compound, process, solvent and method ({fnum(their_dg * f, 2)} "
+                    f"{u}): they differ by {fnum((mine_dg - their_dg) * f, 2)} {u}, more than "
+                    f"their combined uncertainty allows (±{float(tol[i]) * f:.2f} {u}){extra}",
+                    reported=opt(mine_dg * f),
+                    recomputed=opt(their_dg * f),
+                    difference=opt((mine_dg - their_dg) * f),
                     unit=u,
-                    context=f"{row.id_o}:{row.dg_o!r}:{row.err_o!r}:{row.t_o!r}:{more}",
+                    context=f"{their_id}:{their_dg!r}:{float(err_o[i])!r}:{float(t_o[i])!r}:{more}",
                 )
             )
         return out
+
+
+def _integers(values: NDArray[Any], missing: int = -1) -> NDArray[np.int64]:
+    """An object column of integer ids as int64 (``missing`` where None)."""
+    items = values.tolist()
+    try:
+        return np.array(items, dtype=np.int64)
+    except TypeError:  # some are None
+        return np.array([missing if v is None else v for v in items], dtype=np.int64)
+
+
+def _match_keys(columns: dict[str, NDArray[Any]], methods: dict[str, int]) -> NDArray[np.int64]:
+    """(compound, process, method, solvent) of each row as four integers: the solvent is its
+    table id, else (negative) the code of its spelling's key; -1 for no process."""
+    method = [methods.setdefault(str(m), len(methods)) for m in columns["method"].tolist()]
+    solvent = _integers(columns["solvent_id"], missing=-1)
+    for row in np.flatnonzero(solvent < 0).tolist():
+        text = columns["solvent_text"][row]
+        key = "text:" + vocab.solvent_key(str(text or ""))
+        solvent[row] = -1 - methods.setdefault(key, len(methods))
+    return np.column_stack(
+        [_integers(columns["compound_id"]), _integers(columns["process_id"]), method, solvent]
+    )
+
+
+def _match_codes(data: CheckData) -> tuple[NDArray[np.int64], NDArray[np.int64]]:
+    """One code per checked row and per peer: equal codes mean the same compound, process,
+    method and solvent (for a whole-registry check the peers are the checked rows)."""
+    names: dict[str, int] = {}
+    mine = _match_keys(data.columns, names)
+    if data.peers["id"] is data.columns["id"]:
+        keys = mine
+    else:
+        keys = np.concatenate([mine, _match_keys(data.peers, names)])
+    _, codes = np.unique(keys, axis=0, return_inverse=True)
+    codes = codes.reshape(-1)
+    return codes[: len(data)], codes[len(data) :] if keys is not mine else codes
+
+
+def _disagreeing_pairs(
+    data: CheckData, config: CheckConfig
+) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.float64], NDArray[np.float64]] | None:
+    """(checked row, peer row, tolerance, excess) of every repeat pair that disagrees."""
+    peers = data.peers
+    if len(data) == 0 or peers["id"].size == 0:
+        return None
+    mine_code, peer_code = _match_codes(data)
+    mine_rows = np.flatnonzero(np.isfinite(data.col("dg_kj_mol")))
+    peer_rows = np.flatnonzero(np.isfinite(peers["dg_kj_mol"]))
+    # peers grouped by code (by id inside a group), each checked row paired with its group
+    peer_rows = peer_rows[np.lexsort((peer_rows, peer_code[peer_rows]))]
+    sorted_codes = peer_code[peer_rows]
+    start = np.searchsorted(sorted_codes, mine_code[mine_rows], side="left")
+    stop = np.searchsorted(sorted_codes, mine_code[mine_rows], side="right")
+    sizes = stop - start
+    mine = np.repeat(mine_rows, sizes)
+    offsets = np.arange(int(sizes.sum())) - np.repeat(np.cumsum(sizes) - sizes, sizes)
+    other = peer_rows[np.repeat(start, sizes) + offsets]
+    peer_ids = peers["id"].astype(np.int64)
+    keep = data.ids[mine] != peer_ids[other]
+    mine, other = mine[keep], other[keep]
+    if mine.size == 0:
+        return None
+    dg, dg_o = data.col("dg_kj_mol")[mine], peers["dg_kj_mol"][other]
+    err = np.nan_to_num(data.col("dg_err_kj_mol")[mine], nan=0.0)
+    err_o = np.nan_to_num(peers["dg_err_kj_mol"][other], nan=0.0)
+    dt = np.abs(data.col("dg_t_k")[mine] - peers["dg_t_k"][other])
+    with np.errstate(invalid="ignore"):
+        close_t = np.isnan(dt) | (dt <= config.duplicate_max_dt_k)
+    tol = config.dg_tolerance_kj_mol + config.coverage * np.sqrt(err**2 + err_o**2)
+    excess = np.abs(dg - dg_o) - tol
+    bad = close_t & (excess > 0)
+    if not bad.any():
+        return None
+    return mine[bad], other[bad], tol[bad], excess[bad]

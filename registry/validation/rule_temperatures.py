@@ -8,11 +8,11 @@ pressure-rated sealed tube and defers to the facility's safety rules and local r
 from __future__ import annotations
 
 import numpy as np
-import pandas as pd
 
 from registry.kinetics.safety import DEFER
 from registry.validation.base import CheckConfig, Finding, Rule, opt
-from registry.validation.data import CheckData, temperature_units
+from registry.validation.data import CheckData
+from registry.validation.reported import temperature_units
 
 #: the temperatures a measurement states, with what a user calls each and its text column
 _NAMED = (("tc_k", "Tc", "tc_text"), ("t_min_k", "T_min", "t_min_text"),
@@ -23,7 +23,7 @@ class _Shown:
     """Temperatures of flagged rows in the unit each was written in (one pass over the texts)."""
 
     def __init__(self, texts: list[object]) -> None:
-        self.labels, self.offset, self.scale = temperature_units(pd.Series(texts, dtype=object))
+        self.labels, self.offset, self.scale = temperature_units(texts)
 
     def value(self, i: int, value_k: float) -> float:
         return float(self.offset[i] + self.scale[i] * value_k)
@@ -32,17 +32,6 @@ class _Shown:
         label = self.labels[i]
         shown = self.value(i, value_k)
         return f"{shown:.1f} {label}" if label == "K" else f"{shown:.1f} {label} ({value_k:.1f} K)"
-
-
-def _rate_extremes(data: CheckData) -> tuple[np.ndarray, np.ndarray]:
-    n = len(data.m)
-    lo, hi = np.full(n, np.nan), np.full(n, np.nan)
-    if not data.rates.empty:
-        g = data.rates.groupby("id")["t_k"].agg(["min", "max"])
-        pos = pd.Index(data.m["id"]).get_indexer(g.index)
-        lo[pos] = g["min"].to_numpy()
-        hi[pos] = g["max"].to_numpy()
-    return lo, hi
 
 
 class TemperatureAboveZero(Rule):
@@ -67,9 +56,11 @@ class TemperatureAboveZero(Rule):
                         context=col,
                     )
                 )
-        if not data.rates.empty:
-            bad = data.rates[data.rates["t_k"] <= 0]
-            for mid, t in zip(bad["id"].tolist(), bad["t_k"].tolist(), strict=True):
+        r = data.rates
+        if len(r):
+            with np.errstate(invalid="ignore"):
+                bad = r.t_k <= 0
+            for mid, t in zip(data.ids[r.pos[bad]].tolist(), r.t_k[bad].tolist(), strict=True):
                 out.append(
                     self.finding(
                         int(mid),
@@ -165,7 +156,7 @@ class SolventLiquidRange(Rule):
         mp, bp = data.col("mp_k"), data.col("bp_k")
         if not (np.isfinite(mp).any() or np.isfinite(bp).any()):
             return []
-        r_lo, r_hi = _rate_extremes(data)
+        r_lo, r_hi = data.rates.t_extremes
         names = ["Tc", "T_min", "T_max", "a rate point", "a rate point"]
         texts = ["tc_text", "t_min_text", "t_max_text", None, None]
         stack = np.vstack([data.col("tc_k"), data.col("t_min_k"), data.col("t_max_k"), r_lo, r_hi])

@@ -12,18 +12,33 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from numpy.typing import NDArray
 
-from registry.record import units
-from registry.validation.coalescence_model import CoalescenceInputs, Recomputed, recompute
+from registry.validation.coalescence_model import (
+    CoalescenceInputs,
+    Recomputed,
+    recompute,
+    stack,
+)
 
 Array = NDArray[np.float64]
 
-#: 0 °C in kelvin, through the unit registry (not an inline constant)
-ZERO_CELSIUS_K = units.convert(0.0, "degC", "K")
-_KJ_PER_KCAL = units.convert(1.0, "kcal/mol", "kJ/mol")
+
+@lru_cache(maxsize=1)
+def _constants() -> tuple[float, float, float]:
+    """0 °C in kelvin, kJ per kcal, and 25 °C in kelvin (the temperature a barrier is wrongly
+    evaluated at in one slip), through the unit registry, not inline; loaded when a barrier is
+    first diagnosed, so a check that flags nothing does not load the unit registry."""
+    from registry.record import units
+
+    return (
+        units.convert(0.0, "degC", "K"),
+        units.convert(1.0, "kcal/mol", "kJ/mol"),
+        units.convert(25.0, "degC", "K"),
+    )
 
 
 @dataclass(frozen=True)
@@ -62,6 +77,21 @@ def _nearest(inp: CoalescenceInputs, **kwargs: object) -> Array:
     return recompute(inp, **kwargs).nearest(inp.reported_kj_mol)[0]  # type: ignore[arg-type]
 
 
+def _same_rates(correct: Recomputed) -> tuple[Array, Array]:
+    """The correct rates, for a slip that changes only the temperature or the k_c factor."""
+    return correct.k1_per_s, correct.k2_per_s
+
+
+def _nearest_of_each(
+    versions: list[CoalescenceInputs], t_eyring_k: list[Array] | None = None, **kwargs: object
+) -> list[Array]:
+    """:func:`_nearest` of several versions of the rows, recomputed in one pass."""
+    n = versions[0].tc_k.size
+    t = None if t_eyring_k is None else np.concatenate(t_eyring_k)
+    values = _nearest(stack(versions), t_eyring_k=t, **kwargs)
+    return [values[i * n : (i + 1) * n] for i in range(len(versions))]
+
+
 def _scaled(inp: CoalescenceInputs, correct: Recomputed, factor: float) -> Array:
     """Both directions' barriers times ``factor``, whichever is nearer the reported value."""
     scaled = Recomputed(correct.k1_per_s, correct.k2_per_s, correct.dg1_kj_mol * factor,
@@ -70,21 +100,21 @@ def _scaled(inp: CoalescenceInputs, correct: Recomputed, factor: float) -> Array
 
 
 def _kcal_as_kj(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
-    values = _scaled(inp, correct, 1.0 / _KJ_PER_KCAL)
+    values = _scaled(inp, correct, 1.0 / _constants()[1])
     return Candidate(values, ["a kcal/mol value labelled kJ/mol"] * values.size)
 
 
 def _kj_as_kcal(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
-    values = _scaled(inp, correct, _KJ_PER_KCAL)
+    values = _scaled(inp, correct, _constants()[1])
     return Candidate(values, ["a kJ/mol value labelled kcal/mol"] * values.size)
 
 
 def _tc_celsius_as_kelvin(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
-    t = inp.tc_k - ZERO_CELSIUS_K
+    t = inp.tc_k - _constants()[0]
     t = np.where(t > 0, t, np.nan)
-    values = _nearest(inp, t_eyring_k=t)
+    values = _nearest(inp, t_eyring_k=t, rates_per_s=_same_rates(correct))
     detail = [
         f"Tc in °C put into the Eyring equation as kelvin (T = {x:.1f} 'K')" for x in t.tolist()
     ]
@@ -94,7 +124,7 @@ def _tc_celsius_as_kelvin(
 def _tc_celsius_labelled_kelvin(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
-    t = inp.tc_k + ZERO_CELSIUS_K
+    t = inp.tc_k + _constants()[0]
     values = _nearest(inp.with_(tc_k=t), t_eyring_k=t)
     detail = [
         f"Tc written in K but really in °C (the barrier fits Tc = {x:.1f} K)" for x in t.tolist()
@@ -113,13 +143,15 @@ def _dnu_ppm_as_hz(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float,
 def _dnu_other_field(
     inp: CoalescenceInputs, correct: Recomputed, fields: tuple[float, ...]
 ) -> Candidate:
-    options = []
+    versions = []
     for f in fields:
         with np.errstate(invalid="ignore", divide="ignore"):
             scale = np.where(
                 (inp.field_mhz > 0) & (np.abs(inp.field_mhz - f) > 1.0), f / inp.field_mhz, np.nan
             )
-        vals = _nearest(inp.with_(dnu_hz=inp.dnu_hz * scale))
+        versions.append(inp.with_(dnu_hz=inp.dnu_hz * scale))
+    options = []
+    for f, vals in zip(fields, _nearest_of_each(versions), strict=True):
         texts = [
             f"Δν in Hz read at {f:g} MHz, not at the stated {fm:g} MHz"
             for fm in inp.field_mhz.tolist()
@@ -132,7 +164,9 @@ def _coupled_as_uncoupled(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     coupled = inp.coupled
-    values = np.where(coupled, _nearest(inp.with_(j_hz=np.zeros_like(inp.j_hz))), np.nan)
+    values = np.full(coupled.size, np.nan)
+    if coupled.any():
+        values = np.where(coupled, _nearest(inp.with_(j_hz=np.zeros_like(inp.j_hz))), np.nan)
     detail = [
         f"the coupled AB pair (J = {j:.1f} Hz) treated with the uncoupled k_c = πΔν/√2"
         for j in inp.j_hz.tolist()
@@ -144,7 +178,9 @@ def _populations_ignored(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     unequal = inp.unequal
-    values = np.where(unequal, _nearest(inp.with_(ratio=np.ones_like(inp.ratio))), np.nan)
+    values = np.full(unequal.size, np.nan)
+    if unequal.any():
+        values = np.where(unequal, _nearest(inp.with_(ratio=np.ones_like(inp.ratio))), np.nan)
     detail = [
         f"the unequal populations ({r:.2f}:1) treated with the equal-population formula"
         for r in inp.ratio.tolist()
@@ -153,17 +189,17 @@ def _populations_ignored(
 
 
 def _kc_pi(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
-    values = _nearest(inp, kc_scale=float(np.sqrt(2.0)))
+    values = _nearest(inp, kc_scale=float(np.sqrt(2.0)), rates_per_s=_same_rates(correct))
     return Candidate(values, ["k_c taken as πΔν instead of πΔν/√2"] * values.size)
 
 
 def _kc_2pi(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
-    values = _nearest(inp, kc_scale=float(2.0 * np.sqrt(2.0)))
+    values = _nearest(inp, kc_scale=float(2.0 * np.sqrt(2.0)), rates_per_s=_same_rates(correct))
     return Candidate(values, ["k_c taken as 2πΔν instead of πΔν/√2"] * values.size)
 
 
 def _log10(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
-    values = _nearest(inp, log10=True)
+    values = _nearest(inp, log10=True, rates_per_s=_same_rates(correct))
     return Candidate(values, ["log10 used where ln belongs in the Eyring equation"] * values.size)
 
 
@@ -171,11 +207,15 @@ def _other_temperature(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
     options = []
-    standard = units.convert(25.0, "degC", "K")
-    t_std = np.where(np.abs(inp.tc_k - standard) > 2.0, standard, np.nan)
-    t_stated = np.where(np.abs(inp.dg_t_k - inp.tc_k) > 2.0, inp.dg_t_k, np.nan)
-    for t in (t_std, t_stated):
-        vals = _nearest(inp, t_eyring_k=t)
+    standard = _constants()[2]
+    with np.errstate(invalid="ignore"):
+        t_std = np.where(np.abs(inp.tc_k - standard) > 2.0, standard, np.nan)
+        t_stated = np.where(np.abs(inp.dg_t_k - inp.tc_k) > 2.0, inp.dg_t_k, np.nan)
+    k1, k2 = _same_rates(correct)
+    both = _nearest_of_each(
+        [inp, inp], [t_std, t_stated], rates_per_s=(np.r_[k1, k1], np.r_[k2, k2])
+    )
+    for t, vals in zip((t_std, t_stated), both, strict=True):
         texts = [
             f"ΔG‡ evaluated at {x:.1f} K with the rate at Tc ({tc:.1f} K)"
             for x, tc in zip(t.tolist(), inp.tc_k.tolist(), strict=True)

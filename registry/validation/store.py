@@ -9,7 +9,7 @@ stays as it was, with its first date and its acceptance. Writes use executemany.
 from __future__ import annotations
 
 import re
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from datetime import UTC, datetime
 from typing import Any
 
@@ -27,12 +27,9 @@ def _key(mid: int, rule: str, version: int, inputs_hash: str | None) -> Key:
     return (int(mid), rule, int(version), inputs_hash)
 
 
-def _select_stored(
-    conn: Connection, measurement_ids: Sequence[int] | None, columns: str = "*"
-) -> list[dict[str, Any]]:
-    """Stored findings (all columns, or ``columns``) of ``measurement_ids`` (None: all), in
-    (measurement, id) order."""
-    sql = f"SELECT {columns} FROM validation_finding WHERE 1 = 1"
+def _select_stored(conn: Connection, measurement_ids: Sequence[int] | None) -> list[dict[str, Any]]:
+    """Stored findings of ``measurement_ids`` (None: all), in (measurement, id) order."""
+    sql = "SELECT * FROM validation_finding WHERE 1 = 1"
     if measurement_ids is None:
         rows = conn.records(sql)
     else:
@@ -70,59 +67,104 @@ def reconcile(
     measurement_ids: Sequence[int] | None,
     findings: Sequence[Finding],
     now: datetime,
+    legacy_hashes: Callable[[Finding], list[str]] | None = None,
 ) -> tuple[list[Finding], int, int]:
-    """Store this run's findings for ``measurement_ids`` (None: all); return them, #new, #removed."""
+    """Store this run's findings for ``measurement_ids`` (None: all); return them, #new, #removed.
+
+    ``legacy_hashes`` gives, for a finding, the hashes older versions of the checker stored
+    for the same inputs; a stored finding with one of them is kept (date and acceptance) and
+    its hash brought up to date.
+    """
+    stored = {row["id"]: row for row in _select_stored(conn, measurement_ids)}
     existing: dict[Key, int] = {}
     stale: list[int] = []
-    keys = "id, measurement_id, rule_id, rule_version, inputs_hash"
-    for row in _select_stored(conn, measurement_ids, keys):
-        fid, mid, rule, version, h = (row[c] for c in ("id", "measurement_id", "rule_id",
-                                                        "rule_version", "inputs_hash"))  # fmt: skip
-        key = _key(mid, rule, version, h)
+    for fid, row in stored.items():
+        key = _key(row["measurement_id"], row["rule_id"], row["rule_version"], row["inputs_hash"])
         if key in existing:
             stale.append(fid)  # a duplicate left by an interrupted run
         else:
             existing[key] = fid
     produced: set[Key] = set()
-    rows = []
+    fresh: list[Finding] = []
     for f in findings:
         key = _key(f.measurement_id, f.rule_id, f.rule_version, f.inputs_hash)
         if key in produced:
             continue
         produced.add(key)
-        if key in existing:
-            continue
-        rows.append(
-            {
-                "measurement_id": f.measurement_id,
-                "rule_id": f.rule_id,
-                "rule_version": f.rule_version,
-                "severity": f.severity,
-                "message": f.message,
-                "reported": f.reported,
-                "recomputed": f.recomputed,
-                "difference": f.difference,
-                "unit": f.unit,
-                "likely_cause": f.likely_cause,
-                "inputs_hash": f.inputs_hash,
-                "found_at": now,
-            }
-        )
+        if key not in existing:
+            fresh.append(f)
+    if fresh and legacy_hashes is not None:
+        fresh = _keep_legacy(conn, stored, existing, produced, fresh, legacy_hashes)
+    rows = [_row(f, now) for f in fresh]
     stale += [fid for key, fid in existing.items() if key not in produced]
     if stale:
         conn.execute_many(
             "DELETE FROM validation_finding WHERE id = :fid", [{"fid": i} for i in stale]
         )
-    conn.insert_many("validation_finding", rows)
-    inserted = {
-        _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"]) for r in rows
-    }
-    result = []
-    for r in _select_stored(conn, measurement_ids):
-        key = _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"])
-        result.append(finding_from_row(r, new=key in inserted))
+    new_ids = conn.insert_many("validation_finding", rows, new_ids=True)
+    for fid in stale:
+        del stored[fid]
+    unset = {"accepted_by": None, "accepted_at": None, "accept_reason": None}
+    stored.update((fid, {**r, **unset, "id": fid}) for fid, r in zip(new_ids, rows, strict=True))
+    added = set(new_ids)
+    result = [finding_from_row(r, new=fid in added) for fid, r in stored.items()]
     result.sort(key=lambda f: (f.measurement_id, SEVERITY_RANK.get(f.severity, 9), f.rule_id))
     return result, len(rows), len(stale)
+
+
+def _row(f: Finding, now: datetime) -> dict[str, Any]:
+    return {
+        "measurement_id": f.measurement_id,
+        "rule_id": f.rule_id,
+        "rule_version": f.rule_version,
+        "severity": f.severity,
+        "message": f.message,
+        "reported": f.reported,
+        "recomputed": f.recomputed,
+        "difference": f.difference,
+        "unit": f.unit,
+        "likely_cause": f.likely_cause,
+        "inputs_hash": f.inputs_hash,
+        "found_at": now,
+    }
+
+
+def _keep_legacy(
+    conn: Connection,
+    stored: dict[int, dict[str, Any]],
+    existing: dict[Key, int],
+    produced: set[Key],
+    fresh: list[Finding],
+    legacy_hashes: Callable[[Finding], list[str]],
+) -> list[Finding]:
+    """Stored findings whose hash is a legacy form of a new finding's: re-stamp, keep them.
+
+    Only stored findings this run does not produce are candidates, and only for the same
+    measurement, rule and rule version; each is claimed once. Returns the findings still new.
+    """
+    unmatched = {key[:3] for key in existing if key not in produced}
+    still_new: list[Finding] = []
+    updates: list[dict[str, Any]] = []
+    for f in fresh:
+        if (f.measurement_id, f.rule_id, f.rule_version) not in unmatched:
+            still_new.append(f)
+            continue
+        for old_hash in legacy_hashes(f):
+            old_key = _key(f.measurement_id, f.rule_id, f.rule_version, old_hash)
+            if old_key in existing and old_key not in produced:
+                fid = existing.pop(old_key)
+                new_key = _key(f.measurement_id, f.rule_id, f.rule_version, f.inputs_hash)
+                existing[new_key] = fid
+                updates.append({"fid": fid, "inputs_hash": f.inputs_hash})
+                stored[fid]["inputs_hash"] = f.inputs_hash
+                break
+        else:
+            still_new.append(f)
+    if updates:
+        conn.execute_many(
+            "UPDATE validation_finding SET inputs_hash = :inputs_hash WHERE id = :fid", updates
+        )
+    return still_new
 
 
 def accept(conn: Connection, finding_id: int, reason: str, actor: str) -> Finding:
