@@ -77,7 +77,7 @@ def test_bad_options(cli) -> None:  # type: ignore[no-untyped-def]
     assert result.exit_code == 2
     assert result.stderr.startswith("error: --severity 'fatal': use one of error, warning, note")
     result = cli("check", "--tolerance", "1 Hz")
-    assert result.exit_code == 1 and result.stderr.startswith("error: --tolerance")
+    assert result.exit_code == 1 and result.stderr.startswith("error: tolerance: cannot read")
 
 
 def test_tolerance_option(cli) -> None:  # type: ignore[no-untyped-def]
