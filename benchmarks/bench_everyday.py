@@ -167,7 +167,7 @@ def library_adds(db: Path, n: int = 300) -> float:
 
 def _add_entry(i: int) -> dict[str, object]:
     return {
-        "method": "coalescence", "compound": f"LIB-{i}", "smiles": "CN(C)C(=O)c1ccc(Cl)cc1",
+        "method": "coalescence", "compound": "LIB-AMIDE", "smiles": "CN(C)C(=O)c1ccc(Cl)cc1",
         "solvent": "CDCl3", "field": "400 MHz", "tc": f"{250 + i % 40} K", "dnu": "18 Hz",
         "dg": "14.2 kcal/mol",
     }  # fmt: skip
