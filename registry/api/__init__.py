@@ -16,6 +16,9 @@ Grouped by what they act on:
 * ``admin``     — :func:`backup`, :func:`restore`, :func:`verify`, :func:`schema_state`,
   :func:`upgrade_schema`
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
+* ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
+  :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
+* ``server``    — :func:`migrate_to`, :func:`server_search_status`, :func:`enable_server_search`
 """
 
 from __future__ import annotations
@@ -34,6 +37,17 @@ from registry.api.records import (
     summarize_change,
 )
 from registry.api.registry import actor_name, init_registry, open_registry, registry_info
+from registry.api.search import (
+    add_motif,
+    add_motifs_from_file,
+    find,
+    get_motif,
+    list_motifs,
+    motif_database,
+    motif_matches,
+    remove_motif,
+)
+from registry.api.server import enable_server_search, migrate_to, server_search_status
 from registry.api.values import canonical_unit, convert, read_value
 from registry.record.fields import TABLE_COLUMNS
 from registry.storage.database import Database, take_warnings
@@ -44,6 +58,8 @@ __all__ = [
     "accept_finding",
     "actor_name",
     "add_measurement",
+    "add_motif",
+    "add_motifs_from_file",
     "add_rate_points",
     "backup",
     "canonical_unit",
@@ -51,16 +67,25 @@ __all__ = [
     "convert",
     "deferred_checks",
     "edit_measurement",
+    "enable_server_search",
+    "find",
     "get_measurement",
+    "get_motif",
     "history",
     "init_registry",
     "list_measurements",
+    "list_motifs",
+    "migrate_to",
+    "motif_database",
+    "motif_matches",
     "open_registry",
     "read_value",
     "registry_info",
+    "remove_motif",
     "restore",
     "retract_measurement",
     "schema_state",
+    "server_search_status",
     "summarize_change",
     "take_warnings",
     "upgrade_schema",
