@@ -15,11 +15,20 @@ from search_data import KNOWN, generated_smiles, write_registry
 
 from registry import api
 from registry.errors import UsageError
-from registry.search import brute_force, build_query, find, get_motif, make_filters, motif_matches
-from registry.search import cachefile, matching, similarity
+from registry.search import (
+    brute_force,
+    build_query,
+    cachefile,
+    find,
+    get_motif,
+    make_filters,
+    matching,
+    motif_matches,
+    similarity,
+)
 from registry.search import index as index_module
-from registry.search.result import SORT_KEYS
 from registry.search.motifs import BUILTIN
+from registry.search.result import SORT_KEYS
 
 _BUILT: dict[str, Path] = {}
 
@@ -304,6 +313,7 @@ def test_a_deleted_compound_leaves_the_index(small) -> None:  # type: ignore[no-
     query = build_query(motif=get_motif("urea"))
     hits = _compound_ids(find(small, query=query))
     victim = hits[-1]
+
     def delete(conn) -> None:  # type: ignore[no-untyped-def]
         of = {"c": victim}
         measured = "SELECT id FROM measurement WHERE compound_id = :c"

@@ -91,9 +91,7 @@ def test_user_motif_add_list_remove_with_history(database) -> None:  # type: ign
     assert removed.smarts == ("O=C1CCCN1",)
     assert "lactam-5" not in [m.name for m in lib.list_motifs(database)]
     with database.read() as conn:
-        actions = conn.rows(
-            "SELECT action, actor FROM revision WHERE entity = 'motif' ORDER BY id"
-        )
+        actions = conn.rows("SELECT action, actor FROM revision WHERE entity = 'motif' ORDER BY id")
     assert [tuple(a) for a in actions] == [("add", "ann"), ("remove", "ann")]
 
 
