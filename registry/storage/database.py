@@ -188,7 +188,10 @@ class Database:
             return
         if not self.is_sqlite:
             with self.sqlalchemy_engine().connect() as sa, sa.begin():
-                yield self._hold(ServerConnection(sa, self.key))
+                try:
+                    yield self._hold(ServerConnection(sa, self.key))
+                finally:
+                    self._local.current = None
             return
         with self._sqlite() as raw:
             delay = 0.01
