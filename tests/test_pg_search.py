@@ -292,3 +292,41 @@ def test_filters_give_the_same_rows_on_sqlite_and_postgresql(
     finally:
         lite.close()
         pg.close()
+
+
+@pytest.mark.postgres
+def test_plain_sql_edits_on_postgresql_reach_the_client_caches(
+    pg_url: str, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """The statement-level triggers of migration 0003 count plain-SQL edits on the server too:
+    a screening index cached in the user cache directory is rebuilt for them, in this process
+    and in a new one."""
+    from registry.record.chem import read_structure
+    from registry.search import build_query, cachefile, find
+
+    monkeypatch.setenv("FLUXLEDGER_CACHE_DIR", str(tmp_path / "cache"))
+    monkeypatch.setenv("FLUXLEDGER_SERVER_SCREEN", "off")  # the client's cached screen
+    _fill(pg_url)
+    query = build_query(smarts="C=S")
+    database = api.open_registry(pg_url)
+    try:
+        before = {r["compound"] for r in find(database, query=query).rows}
+        assert before == {"thio-DMA"}
+        assert list((tmp_path / "cache").glob("*.fpindex"))
+        thio = read_structure("CN(C)C(C)=S")  # DMA's O becomes S: every length stays the same
+        database.write(
+            lambda conn: conn.execute(
+                "UPDATE compound SET smiles_canonical = :s, mol_binary = :b, pattern_fp = :f "
+                "WHERE label = 'DMA'",
+                {"s": thio.smiles_canonical, "b": thio.mol_binary, "f": thio.pattern_fp},
+            )
+        )
+        assert {r["compound"] for r in find(database, query=query).rows} == {"thio-DMA", "DMA"}
+        database.write(lambda conn: conn.execute("DELETE FROM measurement WHERE id = 1"))
+        cachefile.forget()  # as a new process
+        assert {r["compound"] for r in find(database, query=query).rows} == {"thio-DMA", "DMA"}
+        with database.read() as conn:
+            counters = dict(conn.rows("SELECT name, n FROM change_counter"))
+        assert counters["structure"] >= 1 and counters["listing"] >= 2
+    finally:
+        database.close()
