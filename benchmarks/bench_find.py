@@ -128,7 +128,8 @@ print(*rss())
 
 
 def measure_caches(database, db: Path, exe: Path, env: dict, repeats: int, cold: int) -> None:  # type: ignore[no-untyped-def]
-    """What each cache saves on this registry (see the module docstring)."""
+    """What each cache saves on this registry (see the module docstring); long: one line of
+    figures per cache, in the order they are printed."""
     from registry import api
     from registry.search import cachefile, engine
     from registry.search.index import load_index
@@ -219,6 +220,7 @@ def measure_caches(database, db: Path, exe: Path, env: dict, repeats: int, cold:
 
 
 def main() -> None:
+    # long: one benchmark's steps in the order they run, printed as they go
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("n", nargs="?", type=int, default=100_000)
     parser.add_argument("--repeats", type=int, default=5)

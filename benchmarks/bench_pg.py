@@ -82,6 +82,7 @@ def source_copy(n: int) -> Path:
 
 
 def main() -> None:
+    # long: one benchmark's steps in the order they run, printed as they go
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("n", nargs="?", type=int, default=100_000)
     parser.add_argument("--repeats", type=int, default=3)

@@ -19,10 +19,16 @@ registry was created. Everything else runs through :class:`~registry.storage.con
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, TypeVar
 
 from registry.storage.connection import Connection, ServerConnection
+
+if TYPE_CHECKING:  # what Alembic hands migration 0002
+    from sqlalchemy.engine import Connection as AlembicConnection
+
+T = TypeVar("T")
 
 #: the extra column, indexes, trigger and function that the cartridge setup creates
 MOL_COLUMN = "mol"
@@ -107,7 +113,7 @@ class CartridgeStatus:
         }
 
 
-def _conn(conn: Connection | Any) -> Connection:
+def _conn(conn: Connection | AlembicConnection) -> Connection:
     """A :class:`Connection` (Alembic's migration 0002 hands over its SQLAlchemy connection)."""
     return conn if isinstance(conn, Connection) else ServerConnection(conn)
 
@@ -147,7 +153,7 @@ def has_server_search(conn: Connection) -> bool:
     return _is_postgresql(conn) and extension_installed(conn) and mol_column_exists(conn)
 
 
-def _guarded(conn: Connection, name: str, statements: Any) -> Any:
+def _guarded(conn: Connection, name: str, statements: Callable[[Connection], T]) -> T | None:
     """Run ``statements(conn)`` inside a savepoint: a server error rolls back to it (the
     transaction goes on) and gives None."""
     conn.execute(f"SAVEPOINT {name}")
@@ -160,7 +166,7 @@ def _guarded(conn: Connection, name: str, statements: Any) -> Any:
     return result
 
 
-def try_create_extension(conn: Connection | Any) -> bool:
+def try_create_extension(conn: Connection | AlembicConnection) -> bool:
     """``CREATE EXTENSION rdkit`` if the server has it and we may; False (no error) otherwise.
 
     Creating this extension usually needs a superuser; a department server's administrator
@@ -177,7 +183,7 @@ def try_create_extension(conn: Connection | Any) -> bool:
     return done is not None
 
 
-def install_mol_column(conn: Connection | Any) -> bool:
+def install_mol_column(conn: Connection | AlembicConnection) -> bool:
     """Add the ``mol`` column, its trigger and GiST index (idempotent); False when impossible."""
     conn = _conn(conn)
     if not _is_postgresql(conn) or not try_create_extension(conn):
@@ -187,7 +193,7 @@ def install_mol_column(conn: Connection | Any) -> bool:
     return True
 
 
-def remove_mol_column(conn: Connection | Any) -> None:
+def remove_mol_column(conn: Connection | AlembicConnection) -> None:
     """Undo :func:`install_mol_column` (leaves the extension itself alone: others may use it)."""
     conn = _conn(conn)
     if not _is_postgresql(conn):

@@ -22,7 +22,7 @@ from registry.errors import UsageError
 from registry.record.fields import LISTING_SELECT
 from registry.search.filters import Filters, Where, conditions
 from registry.search.index import ScreenIndex, load_index
-from registry.search.listing import load_listing
+from registry.search.listing import Listing, load_listing
 from registry.search.matching import SearchStats, match_atoms, search_positions
 from registry.search.patterns import Query
 from registry.search.result import (
@@ -94,6 +94,7 @@ def find(
     ``output="csv"`` is for a caller that will only call :meth:`FindResult.write_csv`: on a
     SQLite registry the rows then stay ready CSV lines of the measurement listing.
     """
+    # ~85 lines: the steps share one read snapshot, from the first cache check to the last row
     _check(query, similar, min_similarity, limit)
     if output not in ("rows", "csv"):
         raise ValueError(f"output={output!r}: 'rows' or 'csv'")
@@ -135,17 +136,10 @@ def find(
         hit_ids = index.ids[hit_positions]
         if listing is not None:
             picked = listing.pick(hit_ids, allowed_ids, filters.include_retracted)
-            stats.with_rows = int(unique(listing.compound_ids[picked]).size)
-            picked = listing.order(picked, column, descending)
-            total = int(picked.size)
-            picked = picked if limit is None else picked[:limit]
-            returned = int(picked.size)
-            csv_body, table, columns = None, [], ROW_COLUMNS
-            if output == "csv" and not atoms:
-                csv_body = listing.lines(picked)
-            else:
-                table = listing.table(picked, conn)
-            counts = first_seen_counts(listing.compound_ids[picked])
+            table, columns, total, counts, returned, csv_body = _picked(
+                listing, conn, picked, (column, descending), limit, output == "csv" and not atoms,
+                stats,
+            )  # fmt: skip
         else:
             table, columns = rows_for(conn, where, hit_ids.tolist()), ROW_COLUMNS
             table, columns, total, counts, returned = _arrange(
@@ -209,6 +203,27 @@ def _similar(
     stats.screened = stats.matched = int(hits.size)
     stats.seconds["similarity"] = time.perf_counter() - t0
     return hits, similarity
+
+
+def _picked(
+    listing: Listing,
+    conn: Connection,
+    picked: np.ndarray,
+    order: tuple[str, bool],
+    limit: int | None,
+    as_lines: bool,
+    stats: SearchStats,
+) -> tuple[list[tuple[Any, ...]], tuple[str, ...], int, list[tuple[int, int]], int, bytes | None]:
+    """The listing's positions sorted and cut to ``limit``, as rows read by id or as ready CSV
+    lines; (rows, columns, total, rows per compound in first-seen order, returned, lines)."""
+    stats.with_rows = int(unique(listing.compound_ids[picked]).size)
+    picked = listing.order(picked, *order)
+    total = int(picked.size)
+    picked = picked if limit is None else picked[:limit]
+    counts = first_seen_counts(listing.compound_ids[picked])
+    if as_lines:
+        return [], ROW_COLUMNS, total, counts, int(picked.size), listing.lines(picked)
+    return listing.table(picked, conn), ROW_COLUMNS, total, counts, int(picked.size), None
 
 
 def _arrange(

@@ -211,7 +211,7 @@ BUILTIN: tuple[Motif, ...] = (
         ("C=C-[#6]1-[#6]-[#6]-1-C=C",),
         "1,2-divinylcyclopropane unit (Cope shift through a boat transition state). The [3,3] "
         "shift needs the cis isomer: in cages (homotropilidene, barbaralane, bullvalene) it is "
-        "cis by constraint; a stereo-aware search (--stereo) asks for the cis configuration "
+        "cis by constraint; a stereo-aware search asks for the cis configuration "
         "on molecules whose stereocentres are specified",
         "degenerate-rearrangement",
         stereo_smarts=("C=C[C@H]1C[C@H]1C=C",),
