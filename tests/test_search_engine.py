@@ -368,3 +368,52 @@ def test_server_databases_cache_in_the_user_cache_dir(monkeypatch, tmp_path: Pat
     assert path is not None and path.parent == tmp_path and path.suffix == ".fpindex"
     other = Database(url="postgresql+psycopg://ann@db.example/other", backend="postgresql")
     assert cachefile.path_for(other, index_module.SUFFIX) != path
+
+
+# ---------------------------------------------------------------- the library surface
+
+
+def test_api_find_takes_texts_and_speaks_of_fields(small) -> None:  # type: ignore[no-untyped-def]
+    from registry.errors import UnitError
+
+    result = api.find(small, motif="amide", barrier=">= 20 kcal/mol", sort="-barrier")
+    # 20 kcal/mol = 83.68 kJ/mol (thermochemical calorie, NIST SP 811 (2008) B.8)
+    assert result.rows and all(r["dg_kj_mol"] >= 83.68 - 1e-9 for r in result.rows)
+    assert _compound_ids(result) == sorted(
+        {r["compound_id"] for r in find(small, query=build_query(motif=get_motif("amide")),
+                                        filters=make_filters(barrier=">= 20 kcal/mol")).rows}
+    )  # fmt: skip
+    with pytest.raises(UsageError) as err:
+        api.find(small, smarts="C", sort="size")
+    assert str(err.value).startswith("sort 'size': choose one of id, barrier, -barrier")
+    with pytest.raises(UnitError) as bad:
+        api.find(small, smarts="C", barrier="90 kJ/mol")
+    assert str(bad.value).startswith("barrier: cannot read '90 kJ/mol'")
+    with pytest.raises(UsageError, match="give exactly one of smarts, smiles, motif, similar"):
+        api.find(small, smarts="C", motif="amide")
+    with pytest.raises(UsageError, match=r"^stereo applies to substructure searches"):
+        api.find(small, similar="CC", stereo=True)
+    assert "--" not in str(err.value) + str(bad.value)
+
+
+def test_results_convert_to_a_data_frame(small) -> None:  # type: ignore[no-untyped-def]
+    result = api.find(small, motif="urea", sort="-barrier")
+    frame = result.to_frame()
+    assert list(frame.columns) == list(result.columns)
+    assert frame["id"].tolist() == [r["id"] for r in result.rows]
+    assert frame["dg_kj_mol"].tolist() == pytest.approx([r["dg_kj_mol"] for r in result.rows])
+    lines = api.find(small, motif="urea", sort="-barrier", output="csv")
+    assert lines.csv_body is not None and lines.table == []
+    from_lines = lines.to_frame()  # from the ready CSV lines: the CSV columns
+    assert from_lines["id"].tolist() == frame["id"].tolist()
+    assert list(from_lines.columns) == list(lines.csv_columns())
+
+
+def test_motif_library_through_the_api(small) -> None:  # type: ignore[no-untyped-def]
+    added = api.add_motif(small, "dimethylamide", "CC(=O)N(C)C", description="DMA unit")
+    assert added.source == "registry"
+    assert api.get_motif("dimethylamide", small).smarts == ("CC(=O)N(C)C",)
+    groups = api.motif_matches(small, ["dimethylamide", "urea"])
+    assert groups["dimethylamide"] == brute_force(small, build_query(smarts="CC(=O)N(C)C"))
+    assert api.remove_motif(small, "dimethylamide", reason="demo").name == "dimethylamide"
+    assert "dimethylamide" not in [m.name for m in api.list_motifs(small)]
