@@ -77,11 +77,12 @@ def source_copy(n: int) -> Path:
         shutil.copyfile(original, copy)
     database = open_database(str(copy))
     migrate.upgrade(database)
-    database.dispose()
+    database.close()
     return copy
 
 
 def main() -> None:
+    # long: one benchmark's steps in the order they run, printed as they go
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("n", nargs="?", type=int, default=100_000)
     parser.add_argument("--repeats", type=int, default=3)
@@ -93,36 +94,36 @@ def main() -> None:
     os.environ.setdefault("FLUXLEDGER_CACHE_DIR", str(OUT / "cache"))
 
     from registry import api
-    from registry.pg import cartridge
-    from registry.pg.copy import migrate_to
     from registry.pg.screen import server_positions
     from registry.search import build_query, get_motif
-    from registry.search.engine import confirm, default_threads
     from registry.search.index import load_index
+    from registry.search.matching import confirm, default_threads
 
     source = api.open_registry(str(source_copy(args.n)))
     url = fresh_database(base)
-    report = migrate_to(source, url)
+    report = api.migrate_to(source, url)
     rows = {t.table: t.target_rows for t in report.tables}
     print(
         f"migrate-to: {rows['compound']:,} compounds + {rows['measurement']:,} measurements "
         f"copied and checked in {report.seconds:.1f} s (ok={report.ok})"
     )
     pg = api.open_registry(url)
+    info = api.server_search_status(pg)
     with pg.read() as conn:
-        info = cartridge.status(conn)
-        server_rdkit = conn.exec_driver_sql("SELECT rdkit_toolkit_version()").scalar()
+        server_rdkit = conn.scalar("SELECT rdkit_toolkit_version()")
     from rdkit import rdBase
 
     print(
-        f"server: RDKit cartridge {info.cartridge_version} (toolkit {server_rdkit}); "
-        f"{info.molecules_indexed:,} molecules, {info.molecules_unreadable} unreadable there; "
-        f"client RDKit {rdBase.rdkitVersion}"
+        f"server: RDKit cartridge {info['cartridge_version']} (toolkit {server_rdkit}); "
+        f"{info['molecules_indexed']:,} molecules, {info['molecules_unreadable_on_server']} "
+        f"unreadable there; client RDKit {rdBase.rdkitVersion}"
     )
     threads = default_threads()
     t0 = time.perf_counter()
-    sqlite_index = load_index(source)
-    pg_index = load_index(pg)
+    with source.read() as conn:
+        sqlite_index = load_index(source, conn)
+    with pg.read() as conn:
+        pg_index = load_index(pg, conn)
     print(
         f"client indexes ready in {time.perf_counter() - t0:.1f} s "
         f"({len(sqlite_index):,} / {len(pg_index):,} compounds); {threads} thread(s)\n"
@@ -182,8 +183,8 @@ def main() -> None:
         f"(best {min(ratios):.2f}, worst {max(ratios):.2f}); "
         "'fp screen' / 'server' = candidates each screen hands to the RDKit confirmation"
     )
-    pg.dispose()
-    source.dispose()
+    pg.close()
+    source.close()
 
 
 if __name__ == "__main__":

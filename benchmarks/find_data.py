@@ -8,7 +8,8 @@ random barrier, method and solvent) so that ``find`` has rows to return; these v
 data, not chemistry.
 
 The registry is written with :func:`registry.record.chem.read_structure` (in a process pool) and
-SQLAlchemy Core ``executemany``, and kept under ``benchmarks/out/`` (git-ignored).
+one bulk insert per table through :class:`registry.storage.connection.Connection`, and kept under
+``benchmarks/out/`` (git-ignored).
 """
 
 from __future__ import annotations
@@ -79,10 +80,7 @@ def _structures(chunk: list[str]) -> list[tuple]:
 
 def build_registry(path: Path, n: int, workers: int = 2) -> None:
     """Write ``n`` molsets compounds (+ one invented measurement each) into a new registry."""
-    from sqlalchemy import insert
-
     from registry import api
-    from registry.storage.models import Compound, Measurement
 
     t0 = time.perf_counter()
     smiles = molsets_smiles(n)
@@ -134,10 +132,10 @@ def build_registry(path: Path, n: int, workers: int = 2) -> None:
         from registry.storage.writer import solvent_index
 
         solvent_ids = solvent_index(conn)
-        conn.execute(insert(Compound), compounds)
-        ids = [r[0] for r in conn.exec_driver_sql("SELECT id FROM compound ORDER BY id")]
-        conn.execute(
-            insert(Measurement),
+        conn.insert_many("compound", compounds)
+        ids = conn.column("SELECT id FROM compound ORDER BY id")
+        conn.insert_many(
+            "measurement",
             [
                 {
                     "compound_id": cid,
@@ -157,7 +155,7 @@ def build_registry(path: Path, n: int, workers: int = 2) -> None:
         )
 
     database.write(work)
-    database.dispose()
+    database.close()
     os.replace(tmp, path)
     print(f"  built {path.name}: {len(compounds)} compounds in {time.perf_counter() - t0:.1f} s")
 
@@ -177,7 +175,7 @@ def registry_path(n: int) -> Path:
         if migrate.current_revision(database) != migrate.head_revision():
             migrate.upgrade(database)  # a cached registry from an older schema
     finally:
-        database.dispose()
+        database.close()
     return path
 
 

@@ -112,7 +112,7 @@ def test_invalid_smarts_shows_position_and_exits_2(filled) -> None:  # type: ign
     result = filled("find", "--smarts", "C(=O")
     assert result.exit_code == 2
     assert result.stderr == (
-        "error: --smarts: 'C(=O' is not a valid SMARTS at position 2: extra open parentheses\n"
+        "error: smarts: 'C(=O' is not a valid SMARTS at position 2: extra open parentheses\n"
         "  C(=O\n"
         "   ^\n"
     )
@@ -122,7 +122,7 @@ def test_invalid_smarts_shows_position_and_exits_2(filled) -> None:  # type: ign
 def test_invalid_smiles_query(filled) -> None:  # type: ignore[no-untyped-def]
     result = filled("find", "--smiles", "C1CC")
     assert result.exit_code == 2
-    assert result.stderr == "error: --smiles: 'C1CC' is not a valid SMILES: unclosed ring\n"
+    assert result.stderr == "error: smiles: 'C1CC' is not a valid SMILES: unclosed ring\n"
 
 
 def test_broad_pattern_warns_on_stderr(cli, db_path: Path) -> None:  # type: ignore[no-untyped-def]
@@ -151,7 +151,7 @@ def test_broad_pattern_warns_on_stderr(cli, db_path: Path) -> None:  # type: ign
         ((), "give exactly one of --smarts, --smiles, --motif, --similar"),
         (("--smarts", "C", "--motif", "amide"), "give exactly one of"),
         (("--smarts", "C", "--json", "--csv"), "choose one of --json and --csv"),
-        (("--smarts", "C", "--sort", "size"), "--sort 'size': choose one of"),
+        (("--smarts", "C", "--sort", "size"), "error: sort 'size': choose one of"),
         (("--similar", "CC", "--stereo"), "--stereo applies to substructure searches"),
     ],
 )
@@ -165,7 +165,7 @@ def test_usage_errors(filled, args, message) -> None:  # type: ignore[no-untyped
 def test_bad_barrier_and_unknown_motif_are_data_errors(filled) -> None:  # type: ignore[no-untyped-def]
     result = filled("find", "--motif", "amide", "--barrier", "90 kJ/mol")
     assert result.exit_code == 1
-    assert result.stderr.startswith("error: --barrier: cannot read '90 kJ/mol': write a comparison")
+    assert result.stderr.startswith("error: barrier: cannot read '90 kJ/mol': write a comparison")
     result = filled("find", "--motif", "amid")
     assert result.exit_code == 1
     assert result.stderr.startswith("error: no motif named 'amid'; known motifs: biaryl-ortho, ")
@@ -213,24 +213,45 @@ def test_help_does_not_import_rdkit() -> None:
         "import sys; from registry.cli.main import app; "
         "print('rdkit' in sys.modules, 'registry.search' in sys.modules)"
     )
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True, timeout=120
+    )
     assert out.stdout.split() == ["False", "False"]
 
 
 def test_real_process_uses_the_cache_file(filled, db_path: Path) -> None:  # type: ignore[no-untyped-def]
     exe = Path(sys.executable).with_name("fluxledger")
     run = [str(exe), "--db", str(db_path), "find", "--motif", "amide", "--csv"]
-    first = subprocess.run(run, capture_output=True, text=True, check=True)
+    first = subprocess.run(run, capture_output=True, text=True, check=True, timeout=120)
     cache = Path(f"{db_path}.fpindex")
     assert cache.exists()
     stamp = cache.stat().st_mtime_ns
-    second = subprocess.run(run, capture_output=True, text=True, check=True)
+    second = subprocess.run(run, capture_output=True, text=True, check=True, timeout=120)
     assert second.stdout == first.stdout
     assert cache.stat().st_mtime_ns == stamp  # reused, not rewritten
 
 
+def test_cli_find_on_sqlite_does_not_load_sqlalchemy(filled, db_path: Path) -> None:  # type: ignore[no-untyped-def]
+    """A SQLite file is searched through Python's sqlite3 alone (SQLAlchemy costs ~0.4 s)."""
+    code = (
+        "import sys\n"
+        "from registry.cli.main import run\n"
+        f"sys.argv = ['fluxledger', '--db', {str(db_path)!r}, 'find', '--motif', 'amide',"
+        " '--csv', '--barrier', '>= 60 kJ/mol', '--solvent', 'nonpolar']\n"
+        "try:\n    run()\nexcept SystemExit as exc:\n    assert not exc.code, exc.code\n"
+        "loaded = sorted(m for m in ('sqlalchemy', 'registry.storage.models', 'pandas')"
+        " if m in sys.modules)\n"
+        "print('LOADED', loaded, file=sys.stderr)\n"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True, timeout=120
+    )
+    assert "LOADED []" in out.stderr
+    assert out.stdout.splitlines()[1:] and out.stdout.startswith("id,compound_id,compound,")
+
+
 def test_csv_writes_non_finite_numbers_empty() -> None:
-    from registry.search.listing import csv_lines
+    from registry.search.result import csv_lines
 
     lines = csv_lines([(1, "a", 2.5, None), (2, "b", float("inf"), 3), (3, "c", float("nan"), 4)])
     assert "".join(lines) == "1,a,2.5,\n2,b,,3\n3,c,,4\n"

@@ -71,14 +71,14 @@ def test_migrations_run_both_ways_on_postgresql(pg_url: str) -> None:
         migrate.check(database)  # models and migrations agree (the cartridge column is excluded)
         migrate.downgrade(database, "base")
         assert migrate.current_revision(database) is None
-        with database.engine.connect() as conn:
+        with database.sqlalchemy_engine().connect() as conn:  # the schema as Alembic sees it
             assert set(inspect(conn).get_table_names()) <= {"alembic_version"}
         migrate.upgrade(database)
         with database.read() as conn:
-            solvents = conn.exec_driver_sql("SELECT count(*) FROM solvent").scalar()
+            solvents = conn.scalar("SELECT count(*) FROM solvent")
         assert solvents and solvents >= 15
     finally:
-        database.dispose()
+        database.close()
 
 
 @pytest.mark.postgres
@@ -121,13 +121,13 @@ def test_history_chain_detects_an_edit_on_postgresql(pg_url: str) -> None:
         with database.read() as conn:
             assert audit.verify_chain(conn) == []
         database.write(
-            lambda conn: conn.exec_driver_sql("UPDATE revision SET actor = 'someone' WHERE id = 2")
+            lambda conn: conn.execute("UPDATE revision SET actor = 'someone' WHERE id = 2")
         )
         with database.read() as conn:
             problems = audit.verify_chain(conn)
         assert problems and problems[0].startswith("revision 2: content does not match")
     finally:
-        database.dispose()
+        database.close()
 
 
 @pytest.mark.postgres
@@ -155,7 +155,7 @@ def test_concurrent_writers_queue_and_keep_the_chain(pg_url: str) -> None:
         except BaseException as exc:  # collected and re-raised in the main thread
             errors.append(exc)
         finally:
-            database.dispose()
+            database.close()
 
     threads = [threading.Thread(target=writer, args=(n,)) for n in range(4)]
     for t in threads:
@@ -172,4 +172,4 @@ def test_concurrent_writers_queue_and_keep_the_chain(pg_url: str) -> None:
         with database.read() as conn:
             assert audit.verify_chain(conn) == []
     finally:
-        database.dispose()
+        database.close()

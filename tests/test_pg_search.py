@@ -76,7 +76,7 @@ def _fill(db: str) -> None:
                 actor="tester",
             )
     finally:
-        database.dispose()
+        database.close()
 
 
 def _client_hits(db: str, smarts: str) -> list[int]:
@@ -87,9 +87,9 @@ def _client_hits(db: str, smarts: str) -> list[int]:
     database = open_database(db)
     try:
         with database.read() as conn:
-            rows = conn.exec_driver_sql("SELECT id, mol_binary FROM compound ORDER BY id").all()
+            rows = conn.rows("SELECT id, mol_binary FROM compound ORDER BY id")
     finally:
-        database.dispose()
+        database.close()
     return [cid for cid, blob in rows if blob and Chem.Mol(bytes(blob)).HasSubstructMatch(query)]
 
 
@@ -99,10 +99,10 @@ def test_no_server_screen_on_sqlite(db_path: Path) -> None:
         with database.read() as conn:
             assert cartridge.server_screen(conn, "C(=O)N") is None
             assert cartridge.status(conn).active is False
-            columns = {r[1] for r in conn.exec_driver_sql("PRAGMA table_info(compound)")}
+            columns = {r[1] for r in conn.rows("PRAGMA table_info(compound)")}
         assert "mol" not in columns  # migration 0002 leaves SQLite alone
     finally:
-        database.dispose()
+        database.close()
 
 
 @pytest.mark.postgres
@@ -113,12 +113,10 @@ def test_server_screen_agrees_with_client_rdkit(pg_cartridge: str, tmp_path: Pat
     database = open_database(pg_cartridge)
     try:
         with database.read() as conn:
-            unreadable = {
-                r[0] for r in conn.exec_driver_sql("SELECT id FROM compound WHERE mol IS NULL")
-            }
+            unreadable = set(conn.column("SELECT id FROM compound WHERE mol IS NULL"))
             screens = {smarts: cartridge.server_screen(conn, smarts) for smarts in MOTIFS}
     finally:
-        database.dispose()
+        database.close()
     pentavalent = list(STRUCTURES).index("pentavalent") + 1
     assert unreadable == {pentavalent}
     for smarts, candidates in screens.items():
@@ -137,18 +135,16 @@ def test_trigger_fills_and_refreshes_the_molecule(pg_cartridge: str) -> None:
     database = open_database(pg_cartridge)
     try:
         database.write(
-            lambda conn: conn.exec_driver_sql(
+            lambda conn: conn.execute(
                 "UPDATE compound SET smiles_canonical = 'ClC1CCCCC1' WHERE label = 'cyclohexane'"
             )
         )
         with database.read() as conn:
             hits = cartridge.server_screen(conn, "[Cl]")
-            cid = conn.exec_driver_sql(
-                "SELECT id FROM compound WHERE label = 'cyclohexane'"
-            ).scalar()
+            cid = conn.scalar("SELECT id FROM compound WHERE label = 'cyclohexane'")
             assert cartridge.server_screen(conn, "C(=O") is None  # unreadable SMARTS: fall back
     finally:
-        database.dispose()
+        database.close()
     assert hits is not None and cid in hits
 
 
@@ -165,7 +161,7 @@ def test_server_search_command_reports_and_enables(pg_cartridge: str) -> None:
     database.write(cartridge.remove_mol_column)
     with database.read() as conn:
         assert cartridge.server_screen(conn, "C(=O)N") is None
-    database.dispose()
+    database.close()
     off = runner.invoke(app, ["--db", pg_cartridge, "server-search"])
     assert off.stdout.splitlines()[0] == "motif search screens in the client"
     on = runner.invoke(app, ["--db", pg_cartridge, "server-search", "--enable", "--json"])
@@ -201,10 +197,10 @@ def test_server_setting_for_chiral_matching_cannot_drop_hits(pg_cartridge: str) 
             ),
         )
         with database.read() as conn:
-            assert conn.exec_driver_sql("SHOW rdkit.do_chiral_sss").scalar() == "on"
+            assert conn.scalar("SHOW rdkit.do_chiral_sss") == "on"
             hits = cartridge.server_screen(conn, "C[C@@H](N)C(=O)O")
     finally:
-        database.dispose()
+        database.close()
     assert hits == [1]
 
 
@@ -213,7 +209,6 @@ def test_find_gives_the_same_rows_on_sqlite_and_postgresql(
     pg_cartridge: str, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
     """``find`` end to end: server-screened on PostgreSQL, client-screened on SQLite."""
-    from registry.pg import screen
     from registry.search import build_query, find
 
     monkeypatch.setenv("FLUXLEDGER_CACHE_DIR", str(tmp_path / "cache"))
@@ -221,14 +216,14 @@ def test_find_gives_the_same_rows_on_sqlite_and_postgresql(
     _fill(sqlite_db)
     _fill(pg_cartridge)
     calls: list[str] = []
-    real = screen.server_screen
+    real = cartridge.server_screen
 
     def counting(conn, pattern, *, smiles=False):  # type: ignore[no-untyped-def]
         found = real(conn, pattern, smiles=smiles)
         calls.append(pattern if found is not None else f"fallback:{pattern}")
         return found
 
-    monkeypatch.setattr(screen, "server_screen", counting)
+    monkeypatch.setattr(cartridge, "server_screen", counting)
     lite, pg = api.open_registry(sqlite_db), api.open_registry(pg_cartridge)
     try:
         for query in [build_query(smarts=s) for s in MOTIFS] + [build_query(smiles="CN(C)C=O")]:
@@ -237,8 +232,8 @@ def test_find_gives_the_same_rows_on_sqlite_and_postgresql(
             assert on_pg.rows == on_sqlite.rows, query.text
             assert on_pg.stats.matched == on_sqlite.stats.matched, query.text
     finally:
-        lite.dispose()
-        pg.dispose()
+        lite.close()
+        pg.close()
     assert calls == [*MOTIFS, "CN(C)C=O"]  # every pattern went to the server, none fell back
 
 
@@ -278,7 +273,7 @@ def test_filters_give_the_same_rows_on_sqlite_and_postgresql(
                     actor="tester",
                 )
         finally:
-            database.dispose()
+            database.close()
     specs = [
         {"reference": "TEXTBOOK"},
         {"solvent": ["nonpolar", "chloroform"]},
@@ -295,5 +290,43 @@ def test_filters_give_the_same_rows_on_sqlite_and_postgresql(
             assert on_sqlite.rows, spec
             assert on_pg.rows == on_sqlite.rows, spec
     finally:
-        lite.dispose()
-        pg.dispose()
+        lite.close()
+        pg.close()
+
+
+@pytest.mark.postgres
+def test_plain_sql_edits_on_postgresql_reach_the_client_caches(
+    pg_url: str, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """The statement-level triggers of migration 0003 count plain-SQL edits on the server too:
+    a screening index cached in the user cache directory is rebuilt for them, in this process
+    and in a new one."""
+    from registry.record.chem import read_structure
+    from registry.search import build_query, cachefile, find
+
+    monkeypatch.setenv("FLUXLEDGER_CACHE_DIR", str(tmp_path / "cache"))
+    monkeypatch.setenv("FLUXLEDGER_SERVER_SCREEN", "off")  # the client's cached screen
+    _fill(pg_url)
+    query = build_query(smarts="C=S")
+    database = api.open_registry(pg_url)
+    try:
+        before = {r["compound"] for r in find(database, query=query).rows}
+        assert before == {"thio-DMA"}
+        assert list((tmp_path / "cache").glob("*.fpindex"))
+        thio = read_structure("CN(C)C(C)=S")  # DMA's O becomes S: every length stays the same
+        database.write(
+            lambda conn: conn.execute(
+                "UPDATE compound SET smiles_canonical = :s, mol_binary = :b, pattern_fp = :f "
+                "WHERE label = 'DMA'",
+                {"s": thio.smiles_canonical, "b": thio.mol_binary, "f": thio.pattern_fp},
+            )
+        )
+        assert {r["compound"] for r in find(database, query=query).rows} == {"thio-DMA", "DMA"}
+        database.write(lambda conn: conn.execute("DELETE FROM measurement WHERE id = 1"))
+        cachefile.forget()  # as a new process
+        assert {r["compound"] for r in find(database, query=query).rows} == {"thio-DMA", "DMA"}
+        with database.read() as conn:
+            counters = dict(conn.rows("SELECT name, n FROM change_counter"))
+        assert counters["structure"] >= 1 and counters["listing"] >= 2
+    finally:
+        database.close()

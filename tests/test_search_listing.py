@@ -2,7 +2,8 @@
 kept in step with every kind of change, rebuilt when damaged, and exact CSV lines.
 
 The reference throughout is the plain SQL path (the one server databases use), reached by
-switching the listing off.
+switching the listing off. Whether the file is current is decided by the change counters the
+schema's triggers keep (plain SQL included) and the measurement table's size.
 """
 
 from __future__ import annotations
@@ -25,10 +26,12 @@ from search_data import registry_copy
 from registry import api
 from registry.admin import edits
 from registry.record.entry import EntryInput
-from registry.search import build_query, find, get_motif, make_filters
+from registry.search import build_query, cachefile, find, get_motif, make_filters
 from registry.search import engine as engine_module
 from registry.search import listing as listing_module
-from registry.search.listing import CSV_COLUMNS, ROW_COLUMNS, csv_lines, from_rows
+from registry.search import result as result_module
+from registry.search.listing import from_rows
+from registry.search.result import CSV_COLUMNS, ROW_COLUMNS, csv_lines
 
 
 @pytest.fixture
@@ -51,13 +54,19 @@ def registry_file(tmp_path: Path, tmp_path_factory: pytest.TempPathFactory) -> P
 def database(registry_file: Path):  # type: ignore[no-untyped-def]
     handle = api.open_registry(str(registry_file))
     yield handle
-    handle.dispose()
+    handle.close()
 
 
 def _through_sql(database: Any, monkeypatch: pytest.MonkeyPatch, **kwargs: Any) -> Any:
     with monkeypatch.context() as patch:
-        patch.setattr(engine_module, "_listing_for", lambda *_args: None)
+        patch.setattr(engine_module, "load_listing", lambda *_args, **_kw: None)
         return find(database, **kwargs)
+
+
+def _listing_path(database: Any) -> Path:
+    path = cachefile.path_for(database, listing_module.SUFFIX)
+    assert path is not None
+    return path
 
 
 def _csv(result: Any) -> bytes:
@@ -84,13 +93,12 @@ def test_listing_gives_what_sql_gives(database, monkeypatch, filters, sort) -> N
     query = build_query(motif=get_motif("amide"))
     chosen = make_filters(**FILTERS[filters])
     listed = find(database, query=query, filters=chosen, sort=sort)
-    assert listing_module.listing_path(database).exists()  # the rows came from the listing
+    assert _listing_path(database).exists()  # the rows came from the listing
     plain = _through_sql(database, monkeypatch, query=query, filters=chosen, sort=sort)
     assert listed.rows and listed.as_dict() == plain.as_dict()
     assert listed.stats.with_rows == plain.stats.with_rows
-    listing_module._LOADED.clear()  # a new process that searches once: rows read by id
-    once = find(database, query=query, filters=chosen, sort=sort, keep_rows=False)
-    assert listing_module._LOADED[str(listing_module.listing_path(database))][1].rows is None
+    cachefile.forget()  # a new process: the listing is mapped from its file
+    once = find(database, query=query, filters=chosen, sort=sort)
     assert once.as_dict() == plain.as_dict()
     as_csv = find(database, query=query, filters=chosen, sort=sort, output="csv", limit=9)
     assert as_csv.table == [] and as_csv.csv_body is not None
@@ -107,28 +115,18 @@ def test_matched_atoms_and_limits_through_the_listing(database, monkeypatch) -> 
     assert listed.as_dict() == _through_sql(database, monkeypatch, **kwargs).as_dict()
 
 
-def test_large_registries_keep_no_rows_in_memory(database, monkeypatch) -> None:  # type: ignore[no-untyped-def]
-    query = build_query(motif=get_motif("amide"))
-    expected = _through_sql(database, monkeypatch, query=query, sort="-barrier").as_dict()
-    monkeypatch.setattr(listing_module, "KEEP_ROWS_MAX", 5)
-    for rebuild in (True, False):
-        result = find(database, query=query, sort="-barrier", rebuild_index=rebuild)
-        assert result.as_dict() == expected
-        assert listing_module._LOADED[str(listing_module.listing_path(database))][1].rows is None
-
-
 def test_listing_file_is_written_and_reused(database, registry_file: Path, monkeypatch) -> None:  # type: ignore[no-untyped-def]
     query = build_query(motif=get_motif("urea"))
     first = find(database, query=query, output="csv")
     path = Path(f"{registry_file}.listing")
     assert path.read_bytes().startswith(listing_module.MAGIC)
     stamp = path.stat().st_mtime_ns
-    listing_module._LOADED.clear()  # as in a new process
+    cachefile.forget()  # as in a new process
 
-    def no_query(*_args: Any) -> None:
-        raise AssertionError("signature queried although the registry file is unchanged")
+    def no_build(*_args: Any) -> None:
+        raise AssertionError("listing rebuilt although nothing changed")
 
-    monkeypatch.setattr(listing_module, "signature", no_query)
+    monkeypatch.setattr(listing_module, "from_rows", no_build)
     again = find(database, query=query, output="csv")
     assert _csv(again) == _csv(first) and path.stat().st_mtime_ns == stamp
 
@@ -156,16 +154,27 @@ def test_library_edits_retractions_and_adds_are_seen(database) -> None:  # type:
     del added
 
 
-def test_plain_sql_edits_that_change_content_are_seen(database, registry_file: Path) -> None:  # type: ignore[no-untyped-def]
-    """No revision is recorded behind fluxledger's back; the content sums still move."""
+@pytest.mark.parametrize("new_process", [False, True], ids=["same-process", "new-process"])
+def test_plain_sql_edits_are_seen(database, registry_file: Path, new_process) -> None:  # type: ignore[no-untyped-def]
+    """No revision is recorded behind fluxledger's back, and these edits keep every length
+    (a label of the same length, a value swapped for another); the triggers still count them."""
     rows = _amide_rows(database)
-    target = max(rows)
+    target = max(i for i, r in rows.items() if r["compound"] and r["dg_kj_mol"] is not None)
+    label = rows[target]["compound"]
+    renamed = "Z" * len(label)
     with sqlite3.connect(registry_file) as conn:
-        conn.execute("UPDATE measurement SET dg_kj_mol = 123.25 WHERE id = ?", (target,))
-        conn.execute("UPDATE compound SET label = 'RENAMED' WHERE id = ?",
-                     (rows[target]["compound_id"],))  # fmt: skip
+        conn.execute("UPDATE measurement SET dg_kj_mol = dg_kj_mol + 1 WHERE id = ?", (target,))
+        conn.execute("UPDATE compound SET label = ? WHERE id = ?",
+                     (renamed, rows[target]["compound_id"]))  # fmt: skip
+        conn.execute("UPDATE process SET nucleus = '13C' WHERE id = (SELECT process_id "
+                     "FROM measurement WHERE id = ?)", (target,))  # fmt: skip
+    if new_process:
+        cachefile.forget()
     after = _amide_rows(database)[target]
-    assert after["dg_kj_mol"] == 123.25 and after["compound"] == "RENAMED"
+    assert after["dg_kj_mol"] == pytest.approx(rows[target]["dg_kj_mol"] + 1)
+    assert after["compound"] == renamed and after["nucleus"] == "13C"
+    csv_text = _csv(find(database, query=build_query(motif=get_motif("amide")), output="csv"))
+    assert f"{target},{rows[target]['compound_id']},{renamed}," in csv_text.decode("utf-8")
 
 
 def test_rebuild_option_and_damaged_file(database, registry_file: Path, monkeypatch) -> None:  # type: ignore[no-untyped-def]
@@ -173,7 +182,7 @@ def test_rebuild_option_and_damaged_file(database, registry_file: Path, monkeypa
     expected = _csv(find(database, query=query, output="csv"))
     path = Path(f"{registry_file}.listing")
     path.write_bytes(b"FLXLIST1 but nothing after it")
-    listing_module._LOADED.clear()
+    cachefile.forget()
     assert _csv(find(database, query=query, output="csv")) == expected
     assert listing_module.read_listing(path) is not None
     built = []
@@ -184,22 +193,15 @@ def test_rebuild_option_and_damaged_file(database, registry_file: Path, monkeypa
 
 
 def test_unwritable_listing_still_answers(database, monkeypatch) -> None:  # type: ignore[no-untyped-def]
-    def refuse(_listing: Any, _path: Path) -> None:
+    def refuse(_listing: Any, _path: Path, _state: Any) -> None:
         raise PermissionError(13, "Permission denied")
 
     monkeypatch.setattr(listing_module, "save_listing", refuse)
-    listing_module._LOADED.clear()
+    cachefile.forget()
     query = build_query(motif=get_motif("urea"))
     result = find(database, query=query, rebuild_index=True)
     assert result.rows == _through_sql(database, monkeypatch, query=query).rows
     assert any("could not write the listing cache" in w for w in result.warnings)
-
-
-def test_server_databases_have_no_listing() -> None:
-    from registry.storage.database import Database
-
-    fake = Database(url="postgresql://ann@db.example/registry", engine=None, is_sqlite=False)  # type: ignore[arg-type]
-    assert listing_module.listing_path(fake) is None
 
 
 def test_non_ascii_and_quoted_text_keep_their_line(database, registry_file: Path) -> None:  # type: ignore[no-untyped-def]
@@ -230,7 +232,7 @@ def test_cli_csv_from_the_listing_equals_the_sql_path(registry_file: Path) -> No
         "from registry.cli.main import run\n"
         "from registry.search import engine\n"
         "if sys.argv[1] == 'sql':\n"
-        "    engine._listing_for = lambda *a: None\n"
+        "    engine.load_listing = lambda *a, **k: None\n"
         f"sys.argv = ['fluxledger', '--db', {str(registry_file)!r}, 'find', '--motif', 'amide',"
         " '--csv', '--sort', '-barrier']\n"
         "run()\n"
@@ -238,7 +240,7 @@ def test_cli_csv_from_the_listing_equals_the_sql_path(registry_file: Path) -> No
 
     def run(mode: str) -> str:
         done = subprocess.run([sys.executable, "-c", code, mode], capture_output=True,
-                              text=True, check=False)  # fmt: skip
+                              text=True, check=False, timeout=120)  # fmt: skip
         assert done.returncode == 0, done.stderr
         return done.stdout
 
@@ -276,17 +278,17 @@ def _tables(draw: Any) -> list[tuple[Any, ...]]:
 
 
 @settings(max_examples=150, deadline=None)
-@given(table=_tables(), key=st.sampled_from(sorted(engine_module.SORT_KEYS)), data=st.data())
+@given(table=_tables(), key=st.sampled_from(sorted(result_module.SORT_KEYS)), data=st.data())
 def test_listing_order_and_lines_match_sorting_tuples(table, key, data) -> None:  # type: ignore[no-untyped-def]
-    listing = from_rows(table, {})
+    listing = from_rows(table)
     n = len(table)
     chosen = sorted(data.draw(st.sets(st.integers(min_value=0, max_value=max(n - 1, 0)))))
     positions = np.asarray([p for p in chosen if p < n], dtype=np.int64)
-    column, descending = engine_module.SORT_KEYS[key]
+    column, descending = result_module.SORT_KEYS[key]
     expected = [table[p] for p in positions.tolist()]
-    engine_module._sort(expected, tuple(ROW_COLUMNS), column, descending)
+    result_module.sort_rows(expected, ROW_COLUMNS, column, descending)
     ordered = listing.order(positions, column, descending)
-    assert listing.table(ordered) == expected
+    assert [table[p] for p in ordered.tolist()] == expected
     picked = [tuple(r[list(ROW_COLUMNS).index(c)] for c in CSV_COLUMNS) for r in expected]
     assert listing.lines(ordered).decode("utf-8") == "".join(csv_lines(picked))
 
@@ -294,5 +296,5 @@ def test_listing_order_and_lines_match_sorting_tuples(table, key, data) -> None:
 @settings(max_examples=150, deadline=None)
 @given(st.lists(st.integers(min_value=1, max_value=9), max_size=40))
 def test_first_seen_counts_match_a_counter(values) -> None:  # type: ignore[no-untyped-def]
-    counted = engine_module._first_seen_counts(np.asarray(values, dtype=np.int64))
+    counted = result_module.first_seen_counts(np.asarray(values, dtype=np.int64))
     assert counted == list(Counter(values).items())

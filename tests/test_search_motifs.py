@@ -77,10 +77,6 @@ def test_get_motif_names_the_known_ones_when_unknown() -> None:
 
 
 def test_user_motif_add_list_remove_with_history(database) -> None:  # type: ignore[no-untyped-def]
-    from sqlalchemy import select
-
-    from registry.storage.models import Revision
-
     added = lib.add_motif(
         database, "lactam-5", "O=C1CCCN1", description="pyrrolidinone", actor="ann"
     )
@@ -95,9 +91,7 @@ def test_user_motif_add_list_remove_with_history(database) -> None:  # type: ign
     assert removed.smarts == ("O=C1CCCN1",)
     assert "lactam-5" not in [m.name for m in lib.list_motifs(database)]
     with database.read() as conn:
-        actions = conn.execute(
-            select(Revision.action, Revision.actor).where(Revision.entity == "motif")
-        ).all()
+        actions = conn.rows("SELECT action, actor FROM revision WHERE entity = 'motif' ORDER BY id")
     assert [tuple(a) for a in actions] == [("add", "ann"), ("remove", "ann")]
 
 

@@ -22,6 +22,9 @@ Grouped by what they act on:
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
   :func:`calc_halflife`, :func:`calc_plan` (kinetics at the bench, no database)
 * ``files``     — :func:`import_table`, :func:`export_measurements`
+* ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
+  :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
+* ``server``    — :func:`migrate_to`, :func:`server_search_status`, :func:`enable_server_search`
 """
 
 from __future__ import annotations
@@ -44,6 +47,17 @@ from registry.api.records import (
     summarize_change,
 )
 from registry.api.registry import actor_name, init_registry, open_registry, registry_info
+from registry.api.search import (
+    add_motif,
+    add_motifs_from_file,
+    find,
+    get_motif,
+    list_motifs,
+    motif_database,
+    motif_matches,
+    remove_motif,
+)
+from registry.api.server import enable_server_search, migrate_to, server_search_status
 from registry.api.values import canonical_unit, convert, read_value
 from registry.record.fields import TABLE_COLUMNS
 from registry.storage.database import Database, take_warnings
@@ -54,6 +68,8 @@ __all__ = [
     "accept_finding",
     "actor_name",
     "add_measurement",
+    "add_motif",
+    "add_motifs_from_file",
     "add_rate_points",
     "backup",
     "build_report",
@@ -67,22 +83,31 @@ __all__ = [
     "convert",
     "deferred_checks",
     "edit_measurement",
+    "enable_server_search",
     "export_measurements",
+    "find",
     "fit_lineshapes",
     "get_measurement",
+    "get_motif",
     "history",
     "import_table",
     "init_registry",
     "list_measurements",
+    "list_motifs",
+    "migrate_to",
+    "motif_database",
+    "motif_matches",
     "open_registry",
     "plot_coalescence",
     "plot_eyring",
     "plot_overview",
     "read_value",
     "registry_info",
+    "remove_motif",
     "restore",
     "retract_measurement",
     "schema_state",
+    "server_search_status",
     "simulate_lineshape",
     "summarize_change",
     "take_warnings",

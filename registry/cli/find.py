@@ -1,7 +1,7 @@
 """``fluxledger find`` (structure search with filters) and ``fluxledger motifs`` (the motif library).
 
-Parsing and rendering only; the work is :func:`registry.search.find` and the motif functions in
-:mod:`registry.search.motifs`. RDKit is imported inside the command bodies, never at import.
+Parsing and rendering only; the work is :func:`registry.api.find` and the motif functions of
+:mod:`registry.api.search`. Nothing heavy is imported here.
 """
 
 from __future__ import annotations
@@ -10,22 +10,10 @@ from typing import Any
 
 import typer
 
+from registry import api
 from registry.cli.context import state
 from registry.cli.output import print_json, render_rows
 from registry.errors import UsageError
-
-FIND_COLUMNS = [
-    "id",
-    "compound",
-    "process",
-    "nucleus",
-    "method",
-    "solvent",
-    "dg_kj_mol",
-    "dg_t_k",
-    "status",
-    "reference",
-]
 
 motifs_app = typer.Typer(
     help="The motif library: built-in motifs and the registry's own (list, show, add, remove).",
@@ -114,9 +102,7 @@ def find(
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
 ) -> None:
     """Every barrier measured on compounds with a substructure or motif, with filters."""
-    from registry import search
-    from registry.search.sqlite_read import SQLiteReader, open_for_search
-
+    # long only by its option declarations: the body parses, calls api.find and renders
     chosen = [x for x in (smarts, smiles, motif, similar) if x is not None]
     if len(chosen) != 1:
         raise UsageError("give exactly one of --smarts, --smiles, --motif, --similar")
@@ -124,33 +110,21 @@ def find(
         raise UsageError("choose one of --json and --csv")
     if threads is not None and threads < 1:
         raise UsageError(f"--threads {threads}: give a positive whole number")
-    filters = search.make_filters(
-        barrier=barrier, temperature=temperature, solvent=solvent, method=method,
-        process=process, nucleus=nucleus, status=status, reference=reference,
-        include_retracted=include_retracted,
-    )  # fmt: skip
-    # a SQLite file is searched through sqlite3 alone: no SQLAlchemy or ORM to import
-    database = open_for_search(state(ctx).db)
+    if stereo and similar is not None:
+        raise UsageError("--stereo applies to substructure searches, not --similar")
+    database = api.open_registry(state(ctx).db)
     try:
-        query = None
-        if similar is None:
-            found_motif = search.get_motif(motif, database, motif_file) if motif else None
-            query = search.build_query(
-                smarts=smarts, smiles=smiles, motif=found_motif, stereo=stereo
-            )
-        elif stereo:
-            raise UsageError("--stereo applies to substructure searches, not --similar")
-        result = search.find(
-            database, query=query, similar=similar, min_similarity=min_similarity,
-            filters=filters, sort=sort, limit=None if compounds else limit,
+        result = api.find(
+            database, smarts=smarts, smiles=smiles, motif=motif, similar=similar,
+            min_similarity=min_similarity, motif_files=motif_file or (), stereo=stereo,
+            barrier=barrier, temperature=temperature, solvent=solvent, method=method,
+            process=process, nucleus=nucleus, status=status, reference=reference,
+            include_retracted=include_retracted, sort=sort, limit=None if compounds else limit,
             atoms=as_json and not no_atoms, threads=threads, rebuild_index=rebuild_index,
-            output="csv" if as_csv and not compounds else "rows", keep_rows=False,
+            output="csv" if as_csv and not compounds else "rows",
         )  # fmt: skip
     finally:
-        if isinstance(database, SQLiteReader):  # (the full API's warnings print at the boundary)
-            for warning in database.warnings:
-                typer.echo(f"warning: {warning}", err=True)
-            database.dispose()
+        database.close()
     for warning in result.warnings:
         typer.echo(f"warning: {warning}", err=True)
     if compounds:
@@ -162,7 +136,7 @@ def find(
     if as_csv:
         _write_bytes(result.write_csv)
     else:  # a compound without a label is shown by its name
-        columns = FIND_COLUMNS
+        columns = list(api.TABLE_COLUMNS["find"])
         if similar is not None:
             columns = [*columns[:2], "similarity", *columns[2:]]
         rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in result.rows]
@@ -262,10 +236,12 @@ def motifs_list(
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
 ) -> None:
     """Built-in motifs, the registry's own motifs, and those of --file."""
-    from registry.search import list_motifs
-
-    database = _open_if_exists(state(ctx).db)
-    motifs = list_motifs(database, motif_file)
+    database = api.motif_database(state(ctx).db)
+    try:
+        motifs = api.list_motifs(database, motif_file or ())
+    finally:
+        if database is not None:
+            database.close()
     rows = [m.as_dict() for m in motifs]
     if as_json:
         print_json(rows)
@@ -283,17 +259,6 @@ def motifs_list(
     render_rows(table, as_csv=as_csv)
 
 
-def _open_if_exists(db: str) -> Any:
-    """The registry (read-only handle) when there is one; listing built-in motifs needs none."""
-    from pathlib import Path
-
-    from registry.search.sqlite_read import open_for_search
-
-    if "://" not in db and not Path(db).expanduser().exists():
-        return None
-    return open_for_search(db)
-
-
 @motifs_app.command("show")
 def motifs_show(
     ctx: typer.Context,
@@ -302,9 +267,12 @@ def motifs_show(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """One motif: its SMARTS, what it is for, and (built-in ones) its test examples."""
-    from registry.search import get_motif
-
-    motif = get_motif(name, _open_if_exists(state(ctx).db), motif_file)
+    database = api.motif_database(state(ctx).db)
+    try:
+        motif = api.get_motif(name, database, motif_file or ())
+    finally:
+        if database is not None:
+            database.close()
     record = {
         **motif.as_dict(),
         "positives": list(motif.positives),
@@ -341,27 +309,19 @@ def motifs_add(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Store a motif of your own in the registry (recorded in the history)."""
-    from registry import api
-    from registry.search import add_motif, load_motif_file
-
     st = state(ctx)
-    if motif_file:
-        if name or smarts:
-            raise UsageError("give either NAME SMARTS or --file, not both")
-        wanted = load_motif_file(motif_file)
-    elif name and smarts:
-        wanted = None
-    else:
+    if motif_file and (name or smarts):
+        raise UsageError("give either NAME SMARTS or --file, not both")
+    if not motif_file and not (name and smarts):
         raise UsageError("give NAME and SMARTS (or --file motifs.toml)")
     database = api.open_registry(st.db)
-    added = []
-    if wanted is None:
-        added.append(add_motif(database, name, smarts, description=description, actor=st.actor))
-    else:
-        for m in wanted:
-            added.append(
-                add_motif(database, m.name, m.smarts, description=m.description, actor=st.actor)
-            )
+    try:
+        if motif_file:
+            added = api.add_motifs_from_file(database, motif_file, actor=st.actor)
+        else:
+            added = [api.add_motif(database, name, smarts, description=description, actor=st.actor)]
+    finally:
+        database.close()
     if as_json:
         print_json([m.as_dict() for m in added])
         return
@@ -377,11 +337,12 @@ def motifs_remove(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Remove a motif of your own (built-in motifs stay)."""
-    from registry import api
-    from registry.search import remove_motif
-
     st = state(ctx)
-    removed = remove_motif(api.open_registry(st.db), name, actor=st.actor, reason=reason)
+    database = api.open_registry(st.db)
+    try:
+        removed = api.remove_motif(database, name, actor=st.actor, reason=reason)
+    finally:
+        database.close()
     if as_json:
         print_json(removed.as_dict())
         return

@@ -5,8 +5,10 @@ from __future__ import annotations
 
 import typer
 
+from registry import api
 from registry.cli.context import state
 from registry.cli.output import print_json, render_rows
+from registry.errors import DatabaseError, UsageError
 
 
 def register(app: typer.Typer) -> None:
@@ -26,15 +28,13 @@ def migrate_to(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Copy the whole registry (--db) into another database, keeping every id, then check it."""
-    from registry import api
-    from registry.errors import DatabaseError
-    from registry.pg.copy import migrate_to as copy_registry
-
+    if chunk_rows < 1:
+        raise UsageError(f"--chunk-rows {chunk_rows}: give at least 1")
     source = api.open_registry(state(ctx).db)
     try:
-        report = copy_registry(source, target, chunk_rows=chunk_rows)
+        report = api.migrate_to(source, target, chunk_rows=chunk_rows)
     finally:
-        source.dispose()
+        source.close()
     if as_json:
         print_json(report.as_dict())
     else:
@@ -71,26 +71,14 @@ def server_search(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Show whether motif search is screened on the server (PostgreSQL + RDKit cartridge)."""
-    from registry import api
-    from registry.errors import DatabaseError, UsageError
-    from registry.pg import cartridge
-
     database = api.open_registry(state(ctx).db)
     try:
         if enable:
-            if database.is_sqlite:
-                raise UsageError("server-side search needs a PostgreSQL registry; this is SQLite")
-            installed = database.write(cartridge.install_mol_column)
-            if not installed:
-                raise DatabaseError(
-                    "the server has no usable RDKit cartridge: install the server package "
-                    "(Debian: postgresql-15-rdkit) and have an administrator run "
-                    "'CREATE EXTENSION rdkit' in this database, then try again"
-                )
-        with database.read() as conn:
-            result = cartridge.status(conn).as_dict()
+            result = api.enable_server_search(database)
+        else:
+            result = api.server_search_status(database)
     finally:
-        database.dispose()
+        database.close()
     if as_json:
         print_json(result)
         return

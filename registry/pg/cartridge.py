@@ -11,17 +11,24 @@ versions. The server's answer is therefore used only as a *screen*: compounds th
 not read (``mol`` is NULL) are always returned as candidates, and callers confirm each candidate
 with the client's RDKit, so results on PostgreSQL equal those on SQLite.
 
-The column is not part of :mod:`registry.storage.models` (SQLite has no such type); migration 0002 adds
-it on PostgreSQL when the extension is available, and ``fluxledger server-search --enable`` adds
-it later if the cartridge is installed after the registry was created.
+The column is not part of :mod:`registry.storage.models` (SQLite has no such type); migration
+0002 adds it on PostgreSQL when the extension is available (that DDL runs on Alembic's
+connection), and enabling server search adds it later if the cartridge is installed after the
+registry was created. Everything else runs through :class:`~registry.storage.connection.Connection`.
 """
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, TypeVar
 
-from sqlalchemy import Connection, text
-from sqlalchemy.exc import DBAPIError
+from registry.storage.connection import Connection, ServerConnection
+
+if TYPE_CHECKING:  # what Alembic hands migration 0002
+    from sqlalchemy.engine import Connection as AlembicConnection
+
+T = TypeVar("T")
 
 #: the extra column, indexes, trigger and function that the cartridge setup creates
 MOL_COLUMN = "mol"
@@ -106,23 +113,26 @@ class CartridgeStatus:
         }
 
 
+def _conn(conn: Connection | AlembicConnection) -> Connection:
+    """A :class:`Connection` (Alembic's migration 0002 hands over its SQLAlchemy connection)."""
+    return conn if isinstance(conn, Connection) else ServerConnection(conn)
+
+
 def _is_postgresql(conn: Connection) -> bool:
-    return conn.dialect.name == "postgresql"
+    return conn.dialect == "postgresql"
 
 
 def extension_installed(conn: Connection) -> bool:
     if not _is_postgresql(conn):
         return False
-    return bool(conn.exec_driver_sql("SELECT 1 FROM pg_extension WHERE extname = 'rdkit'").scalar())
+    return bool(conn.scalar("SELECT 1 FROM pg_extension WHERE extname = 'rdkit'"))
 
 
 def extension_available(conn: Connection) -> bool:
     """The cartridge's files are on the server (it may still need ``CREATE EXTENSION``)."""
     if not _is_postgresql(conn):
         return False
-    return bool(
-        conn.exec_driver_sql("SELECT 1 FROM pg_available_extensions WHERE name = 'rdkit'").scalar()
-    )
+    return bool(conn.scalar("SELECT 1 FROM pg_available_extensions WHERE name = 'rdkit'"))
 
 
 def mol_column_exists(conn: Connection) -> bool:
@@ -130,13 +140,11 @@ def mol_column_exists(conn: Connection) -> bool:
     if not _is_postgresql(conn):
         return False
     return bool(
-        conn.execute(
-            text(
-                "SELECT 1 FROM information_schema.columns WHERE table_schema = current_schema() "
-                "AND table_name = 'compound' AND column_name = :col"
-            ),
+        conn.scalar(
+            "SELECT 1 FROM information_schema.columns WHERE table_schema = current_schema() "
+            "AND table_name = 'compound' AND column_name = :col",
             {"col": MOL_COLUMN},
-        ).scalar()
+        )
     )
 
 
@@ -145,58 +153,70 @@ def has_server_search(conn: Connection) -> bool:
     return _is_postgresql(conn) and extension_installed(conn) and mol_column_exists(conn)
 
 
-def try_create_extension(conn: Connection) -> bool:
+def _guarded(conn: Connection, name: str, statements: Callable[[Connection], T]) -> T | None:
+    """Run ``statements(conn)`` inside a savepoint: a server error rolls back to it (the
+    transaction goes on) and gives None."""
+    conn.execute(f"SAVEPOINT {name}")
+    try:
+        result = statements(conn)
+    except Exception:  # the server refused (no right, a pattern its RDKit cannot read …)
+        conn.execute(f"ROLLBACK TO SAVEPOINT {name}")
+        return None
+    conn.execute(f"RELEASE SAVEPOINT {name}")
+    return result
+
+
+def try_create_extension(conn: Connection | AlembicConnection) -> bool:
     """``CREATE EXTENSION rdkit`` if the server has it and we may; False (no error) otherwise.
 
     Creating this extension usually needs a superuser; a department server's administrator
-    may have done it already, or may do it later (then run ``fluxledger server-search --enable``).
+    may have done it already, or may do it later (then enable server search).
     """
+    conn = _conn(conn)
     if extension_installed(conn):
         return True
     if not extension_available(conn):
         return False
-    try:
-        with conn.begin_nested():
-            conn.exec_driver_sql("CREATE EXTENSION IF NOT EXISTS rdkit")
-    except DBAPIError:
-        return False
-    return True
+    done = _guarded(
+        conn, "flx_extension", lambda c: c.execute("CREATE EXTENSION IF NOT EXISTS rdkit")
+    )
+    return done is not None
 
 
-def install_mol_column(conn: Connection) -> bool:
+def install_mol_column(conn: Connection | AlembicConnection) -> bool:
     """Add the ``mol`` column, its trigger and GiST index (idempotent); False when impossible."""
+    conn = _conn(conn)
     if not _is_postgresql(conn) or not try_create_extension(conn):
         return False
     for statement in _SETUP_SQL:
-        conn.exec_driver_sql(statement)
+        conn.execute(statement)
     return True
 
 
-def remove_mol_column(conn: Connection) -> None:
+def remove_mol_column(conn: Connection | AlembicConnection) -> None:
     """Undo :func:`install_mol_column` (leaves the extension itself alone: others may use it)."""
+    conn = _conn(conn)
     if not _is_postgresql(conn):
         return
     for statement in _TEARDOWN_SQL:
-        conn.exec_driver_sql(statement)
+        conn.execute(statement)
 
 
 def status(conn: Connection) -> CartridgeStatus:
     """What the connected database offers for server-side motif search."""
     if not _is_postgresql(conn):
-        return CartridgeStatus(conn.dialect.name, False, False, None, False, None, None)
+        return CartridgeStatus(conn.dialect, False, False, None, False, None, None)
     installed = extension_installed(conn)
     version = None
     if installed:
-        version = conn.exec_driver_sql(
-            "SELECT extversion FROM pg_extension WHERE extname = 'rdkit'"
-        ).scalar()
+        version = conn.scalar("SELECT extversion FROM pg_extension WHERE extname = 'rdkit'")
     column = mol_column_exists(conn)
     indexed = unreadable = None
     if column:
-        indexed, unreadable = conn.exec_driver_sql(
+        indexed, unreadable = conn.first(
             f"SELECT count({MOL_COLUMN}), count(*) - count({MOL_COLUMN}) FROM compound "
             "WHERE smiles_canonical IS NOT NULL"
-        ).one()
+        ) or (0, 0)
     return CartridgeStatus(
         backend="postgresql",
         extension_available=extension_available(conn),
@@ -215,31 +235,27 @@ def server_screen(conn: Connection, smarts: str, *, smiles: bool = False) -> lis
     compound the server could not read (``mol`` NULL: unsanitizable structures, missing SMILES),
     sorted by id. ``None`` means "no server-side screen here": SQLite, no cartridge, no ``mol``
     column, or a pattern the server's (older) RDKit cannot read or match. With ``smiles=True``
-    the text is a SMILES read as a substructure query (as the client reads ``find --smiles``).
+    the text is a SMILES read as a substructure query (as the client reads a SMILES query).
     Callers must confirm the candidates with the client's RDKit (see the module docstring).
     """
     if not has_server_search(conn):
         return None
     reader = "mol_from_smiles" if smiles else "qmol_from_smarts"
     pattern = f"{reader}(CAST(:pattern AS cstring))"
-    try:
-        with conn.begin_nested():
-            readable = conn.execute(
-                text(f"SELECT {pattern} IS NOT NULL"), {"pattern": smarts}
-            ).scalar()
-            if not readable:
-                return None
-            # the client ignores stereo unless asked and then checks it itself: a server set to
-            # match chirality could drop true hits, so the screen never does
-            conn.exec_driver_sql("SET LOCAL rdkit.do_chiral_sss = off")
-            rows = conn.execute(
-                text(
-                    f"SELECT id FROM compound WHERE {MOL_COLUMN} @> {pattern} "
-                    f"UNION SELECT id FROM compound WHERE {MOL_COLUMN} IS NULL "
-                    "ORDER BY id"
-                ),
+
+    def screen(c: Connection) -> list[int] | None:
+        if not c.scalar(f"SELECT {pattern} IS NOT NULL", {"pattern": smarts}):
+            return None
+        # the client ignores stereo unless asked and then checks it itself: a server set to
+        # match chirality could drop true hits, so the screen never does
+        c.execute("SET LOCAL rdkit.do_chiral_sss = off")
+        return [
+            int(i)
+            for i in c.column(
+                f"SELECT id FROM compound WHERE {MOL_COLUMN} @> {pattern} "
+                f"UNION SELECT id FROM compound WHERE {MOL_COLUMN} IS NULL ORDER BY id",
                 {"pattern": smarts},
             )
-            return [r[0] for r in rows]
-    except DBAPIError:
-        return None
+        ]
+
+    return _guarded(conn, "flx_screen", screen)

@@ -1,11 +1,17 @@
 """Copy a whole registry from one database to another (SQLite → PostgreSQL, or back).
 
 Why a copy and not a dump: the two engines disagree on types (timestamps with time zone,
-booleans, blobs) and on how ids are handed out. Going through the SQLAlchemy models converts the
-types, and copying table by table in dependency order with Core ``executemany`` in chunks keeps
-every id, so revisions, findings and links still point at the same rows. Afterwards PostgreSQL's
-id sequences are moved past the copied ids, and the copy is checked: row counts and a content
-digest per table, and the revision hash chain (the last hash must be the same on both sides).
+booleans, blobs) and on how ids are handed out. Rows go through
+:class:`~registry.storage.connection.Connection` on both sides, which reads and writes the same
+Python values on either database (aware UTC datetimes, bools, bytes); copying table by table in
+dependency order, in id-ordered chunks, keeps every id, so revisions, findings and links still
+point at the same rows. Afterwards PostgreSQL's id sequences are moved past the copied ids, and
+the copy is checked: row counts and a content digest per table, and the revision hash chain
+(the last hash must be the same on both sides).
+
+``change_counter`` is not copied: its counts say how often *this* database changed, for the
+caches of *this* database (which start empty on the target anyway); the target keeps the
+counters its own schema started with.
 """
 
 from __future__ import annotations
@@ -13,26 +19,33 @@ from __future__ import annotations
 import hashlib
 import time
 from collections.abc import Callable, Iterator
-from contextlib import contextmanager
 from dataclasses import dataclass, field
-from datetime import UTC, datetime
+from datetime import datetime
 from typing import Any
-
-from sqlalchemy import Connection, Table, func, insert, select
-from sqlalchemy.exc import OperationalError
 
 from registry.errors import DatabaseError, UsageError
 from registry.pg import cartridge
 from registry.storage import audit, migrate
-from registry.storage.database import Database, open_database, redacted_url, to_url
-from registry.storage.models import Base
+from registry.storage.connection import Connection, utc
+from registry.storage.database import Database, head_revision, open_database, to_url
 
 CHUNK_ROWS = 5000
 
 #: tables the first migration fills with reference data; the copy replaces them with the source's
 REFERENCE_TABLES = ("process_kind", "solvent")
+#: tables of the database itself, not of the registry (see the module docstring)
+NOT_COPIED = ("change_counter",)
 
 Progress = Callable[[str, int], None]
+
+
+@dataclass(frozen=True)
+class TableSpec:
+    """A table to copy: its name, columns and the key its rows are read in order of."""
+
+    name: str
+    columns: tuple[str, ...]
+    key: str
 
 
 @dataclass
@@ -51,7 +64,7 @@ class TableCheck:
 
 @dataclass
 class CopyReport:
-    """What ``migrate-to`` did and what the checks found."""
+    """What ``migrate_to`` did and what the checks found."""
 
     source: str
     target: str
@@ -94,47 +107,46 @@ class CopyReport:
         }
 
 
-def copy_order() -> list[Table]:
-    """Every model table, parents before children (foreign keys resolve as rows arrive)."""
-    return list(Base.metadata.sorted_tables)
+def copy_order() -> list[TableSpec]:
+    """Every registry table, parents before children (foreign keys resolve as rows arrive).
+
+    The order and columns come from the schema's models (the copy runs migrations on the target
+    anyway, so SQLAlchemy is loaded); the rows themselves go through :class:`Connection`.
+    """
+    from registry.storage.models import Base
+
+    out = []
+    for table in Base.metadata.sorted_tables:
+        if table.name in NOT_COPIED:
+            continue
+        key = "id" if "id" in table.columns else next(iter(table.primary_key.columns)).name
+        out.append(TableSpec(table.name, tuple(c.name for c in table.columns), key))
+    return out
 
 
-def _as_utc(value: Any) -> Any:
-    """Timestamps are UTC: SQLite keeps them naive, PostgreSQL aware; make both aware UTC."""
-    if isinstance(value, datetime):
-        return value.replace(tzinfo=UTC) if value.tzinfo is None else value.astimezone(UTC)
-    return value
-
-
-def _normalized(row: Any, datetime_columns: set[str]) -> dict[str, Any]:
-    data = dict(row._mapping)
-    for name in datetime_columns:
-        data[name] = _as_utc(data[name])
-    return data
-
-
-def _datetime_columns(table: Table) -> set[str]:
-    return {c.name for c in table.columns if c.type.python_type is datetime}
-
-
-def _ordered(table: Table) -> Any:
-    return select(table).order_by(*table.primary_key.columns)
-
-
-@contextmanager
-def snapshot(database: Database) -> Iterator[Connection]:
-    """A read transaction that sees one consistent state for the whole copy."""
-    with database.engine.connect() as conn:
-        if not database.is_sqlite:
-            conn = conn.execution_options(isolation_level="REPEATABLE READ")
-        with conn.begin():
-            yield conn
+def _chunks(conn: Connection, spec: TableSpec, chunk_rows: int) -> Iterator[list[tuple]]:
+    """The table's rows in key order, ``chunk_rows`` at a time (keyset pages: no OFFSET scans)."""
+    names = ", ".join(spec.columns)
+    if spec.key != "id":  # the small reference table keyed by name: one page
+        yield conn.rows(f"SELECT {names} FROM {spec.name} ORDER BY {spec.key}")
+        return
+    after = None
+    while True:
+        where = "" if after is None else "WHERE id > :after "
+        rows = conn.rows(
+            f"SELECT {names} FROM {spec.name} {where}ORDER BY id LIMIT :n",
+            {"after": after, "n": chunk_rows},
+        )
+        if not rows:
+            return
+        yield rows
+        after = rows[-1][spec.columns.index("id")]
 
 
 def user_rows(conn: Connection) -> int:
     """Rows outside the reference tables: anything here means the target is not empty."""
     return sum(
-        conn.execute(select(func.count()).select_from(t)).scalar_one()
+        int(conn.scalar(f"SELECT count(*) FROM {t.name}"))
         for t in copy_order()
         if t.name not in REFERENCE_TABLES
     )
@@ -147,80 +159,84 @@ def copy_tables(
     chunk_rows: int = CHUNK_ROWS,
     progress: Progress | None = None,
 ) -> dict[str, int]:
-    """Copy every table (ids included) inside the caller's transactions; returns rows per table."""
+    """Copy every table (ids included) inside the callers' transactions; rows per table."""
     tables = copy_order()
-    for table in reversed(tables):
-        if table.name in REFERENCE_TABLES:
-            target.execute(table.delete())
+    for spec in reversed(tables):
+        if spec.name in REFERENCE_TABLES:
+            target.execute(f"DELETE FROM {spec.name}")
     # one bulk build of the cartridge's GiST index beats 100k single inserts into it
-    rebuild_index = target.dialect.name == "postgresql" and cartridge.mol_column_exists(target)
+    rebuild_index = target.dialect == "postgresql" and cartridge.mol_column_exists(target)
     if rebuild_index:
-        target.exec_driver_sql(f"DROP INDEX IF EXISTS {cartridge.MOL_INDEX}")
+        target.execute(f"DROP INDEX IF EXISTS {cartridge.MOL_INDEX}")
     copied: dict[str, int] = {}
-    for table in tables:
-        stamps = _datetime_columns(table)
-        result = source.execute(_ordered(table))
+    for spec in tables:
         done = 0
-        while chunk := result.fetchmany(chunk_rows):
-            target.execute(insert(table), [_normalized(r, stamps) for r in chunk])
+        for chunk in _chunks(source, spec, chunk_rows):
+            target.insert_many(spec.name, [dict(zip(spec.columns, r, strict=True)) for r in chunk])
             done += len(chunk)
             if progress:
-                progress(table.name, done)
-        copied[table.name] = done
+                progress(spec.name, done)
+        copied[spec.name] = done
     if rebuild_index:
-        target.exec_driver_sql(
+        target.execute(
             f"CREATE INDEX IF NOT EXISTS {cartridge.MOL_INDEX} ON compound "
             f"USING gist ({cartridge.MOL_COLUMN})"
         )
-    if target.dialect.name == "postgresql":
+    if target.dialect == "postgresql":
         reset_sequences(target)
     return copied
 
 
 def reset_sequences(conn: Connection) -> None:
     """Move each PostgreSQL id sequence past the largest copied id (explicit ids skip it)."""
-    for table in copy_order():
-        if "id" not in table.primary_key.columns:
-            continue
-        conn.exec_driver_sql(
-            f"SELECT setval(pg_get_serial_sequence('{table.name}', 'id'), "
-            f"(SELECT COALESCE(MAX(id), 0) + 1 FROM {table.name}), false)"
-        )
+    for spec in copy_order():
+        if spec.key == "id":
+            conn.scalar(
+                f"SELECT setval(pg_get_serial_sequence(:table, 'id'), "
+                f"(SELECT COALESCE(MAX(id), 0) + 1 FROM {spec.name}), false)",
+                {"table": spec.name},
+            )
 
 
-def table_digest(conn: Connection, table: Table) -> tuple[int, str]:
-    """Row count and sha256 over every row in id order, in an engine-neutral spelling.
+def _spelled(value: Any) -> Any:
+    """One spelling per value whichever database it came from (timestamps as UTC ISO text,
+    blobs as bytes)."""
+    if isinstance(value, datetime):
+        stamp = utc(value)
+        return stamp.isoformat(timespec="microseconds") if stamp else None
+    if isinstance(value, memoryview):
+        return bytes(value)
+    return value
 
-    Timestamps are spelled as UTC ISO text and blobs as bytes, so a row reads the same from
-    SQLite and PostgreSQL; everything else is compared by its Python ``repr``.
-    """
-    stamps = [i for i, c in enumerate(table.columns) if c.type.python_type is datetime]
+
+def table_digest(conn: Connection, spec: TableSpec) -> tuple[int, str]:
+    """Row count and sha256 over every row in key order, in an engine-neutral spelling."""
     digest = hashlib.sha256()
     count = 0
-    result = conn.execute(_ordered(table))
-    while chunk := result.fetchmany(CHUNK_ROWS):
+    for chunk in _chunks(conn, spec, CHUNK_ROWS):
         for row in chunk:
-            values = [bytes(v) if isinstance(v, memoryview) else v for v in row]
-            for i in stamps:
-                if values[i] is not None:
-                    values[i] = _as_utc(values[i]).isoformat(timespec="microseconds")
-            digest.update(repr(values).encode())
+            digest.update(repr([_spelled(v) for v in row]).encode())
         count += len(chunk)
     return count, digest.hexdigest()
 
 
+def _repeatable(conn: Connection) -> Connection:
+    """One snapshot for every statement of this read (PostgreSQL's default reads each
+    statement afresh; SQLite's read transaction is one snapshot already)."""
+    if conn.dialect == "postgresql":
+        conn.execute("SET TRANSACTION ISOLATION LEVEL REPEATABLE READ")
+    return conn
+
+
 def check_copy(source: Database, target: Database) -> CopyReport:
     """Compare two registries table by table and check both hash chains."""
-    report = CopyReport(
-        source=redacted_url(source),
-        target=redacted_url(target),
-        target_backend="sqlite" if target.is_sqlite else target.engine.dialect.name,
-    )
-    with snapshot(source) as src, snapshot(target) as dst:
-        for table in copy_order():
-            n_src, d_src = table_digest(src, table)
-            n_dst, d_dst = table_digest(dst, table)
-            report.tables.append(TableCheck(table.name, n_src, n_dst, d_src == d_dst))
+    report = CopyReport(source=source.name, target=target.name, target_backend=target.backend)
+    with source.read() as src_conn, target.read() as dst_conn:
+        src, dst = _repeatable(src_conn), _repeatable(dst_conn)
+        for spec in copy_order():
+            n_src, d_src = table_digest(src, spec)
+            n_dst, d_dst = table_digest(dst, spec)
+            report.tables.append(TableCheck(spec.name, n_src, n_dst, d_src == d_dst))
         report.source_chain_problems = audit.verify_chain(src)
         report.target_chain_problems = audit.verify_chain(dst)
         report.source_last_hash = audit.last_hash(src)
@@ -242,29 +258,30 @@ def migrate_to(
     transaction: if anything fails nothing is left behind but the empty schema.
     """
     if chunk_rows < 1:
-        raise UsageError("--chunk-rows must be at least 1")
+        raise UsageError(f"chunk_rows {chunk_rows}: give at least 1")
     if to_url(target_db) == source.url:
         raise UsageError("the target is the registry itself; name another database")
-    head = migrate.head_revision()
+    head = head_revision()
     if migrate.current_revision(source) != head:
-        raise DatabaseError(
-            f"{redacted_url(source)} is not at schema {head}; run 'fluxledger db upgrade' first"
-        )
+        raise DatabaseError(f"{source.name} is not at schema {head}; upgrade it first")
     started = time.perf_counter()
     target = open_database(target_db, must_exist=False)
     try:
         try:
             migrate.upgrade(target)
-        except OperationalError as exc:
-            reason = str(exc.orig or exc).strip().splitlines()[0]
-            raise DatabaseError(f"cannot open {redacted_url(target)}: {reason}") from exc
-        with snapshot(source) as src:
+        except DatabaseError:
+            raise
+        except Exception as exc:  # server unreachable, database missing, no permission
+            reason = str(getattr(exc, "orig", None) or exc).strip().splitlines()[0]
+            raise DatabaseError(f"cannot open {target.name}: {reason}") from exc
+        with source.read() as src_conn:
+            src = _repeatable(src_conn)
 
             def work(dst: Connection) -> None:
                 existing = user_rows(dst)
                 if existing:
                     raise DatabaseError(
-                        f"{redacted_url(target)} already holds {existing} registry rows; "
+                        f"{target.name} already holds {existing} registry rows; "
                         "migrate-to copies only into a new or empty registry"
                     )
                 copy_tables(src, dst, chunk_rows=chunk_rows, progress=progress)
@@ -272,6 +289,6 @@ def migrate_to(
             target.write(work)
         report = check_copy(source, target)
     finally:
-        target.dispose()
+        target.close()
     report.seconds = time.perf_counter() - started
     return report

@@ -1,4 +1,4 @@
-"""The bridge between the server screen and the client search (:mod:`registry.search.engine`).
+"""The bridge between the server screen and the client search (:mod:`registry.search.matching`).
 
 ``find`` screens each pattern with :func:`server_positions` first; on PostgreSQL with the RDKit
 cartridge the server's candidates replace the client's fingerprint screen, and the client's
@@ -9,11 +9,11 @@ this returns None at the cost of one dialect check, and the client screen runs a
 from __future__ import annotations
 
 import os
-from typing import Any
 
 import numpy as np
 
-from registry.pg.cartridge import server_screen
+from registry.pg import cartridge
+from registry.storage.connection import Connection
 
 
 def server_screen_wanted() -> bool:
@@ -27,7 +27,7 @@ def server_screen_wanted() -> bool:
 
 
 def server_positions(
-    conn: Any, ids: np.ndarray, rows: np.ndarray | None, pattern: str, kind: str
+    conn: Connection, ids: np.ndarray, rows: np.ndarray | None, pattern: str, kind: str
 ) -> np.ndarray | None:
     """Positions (into the ascending compound ``ids`` of the client's index) that the server
     kept for ``pattern``, limited to ``rows`` when given; None when there is no server screen.
@@ -35,11 +35,9 @@ def server_positions(
     ``kind`` is the query kind of :class:`registry.search.patterns.Query`: SMILES queries are
     sent as molecules, SMARTS and motif patterns as query molecules.
     """
-    if conn is None or getattr(conn, "dialect", None) is None:
+    if conn.dialect != "postgresql" or not server_screen_wanted():
         return None
-    if conn.dialect.name != "postgresql" or not server_screen_wanted():
-        return None
-    found = server_screen(conn, pattern, smiles=kind == "smiles")
+    found = cartridge.server_screen(conn, pattern, smiles=kind == "smiles")
     if found is None:
         return None
     candidates = np.asarray(found, dtype=np.int64)

@@ -7,21 +7,24 @@ Map of the package (data flows top to bottom):
 - :mod:`.patterns` — SMARTS / SMILES / motif → RDKit query molecules and their pattern
   fingerprints; parse errors with their position.
 - :mod:`.filters` — barrier/temperature ranges in any unit, solvent classes, vocabulary filters
-  → SQL conditions.
-- :mod:`.index` — the screening index (fingerprints + RDKit binaries of every compound) cached
-  beside the registry and kept in step with it.
-- :mod:`.elements` — the element screen: elements per compound (in the index) and per query atom.
-- :mod:`.listing` — every measurement's search row (ids, sort keys, a ready CSV line) kept
-  beside a SQLite registry, so that a search picks its rows with numpy.
-- :mod:`.cachefile` — the two cache files' I/O (mapped numpy arrays) and file-state notes.
-- :mod:`.engine` — :func:`find`: SQL filters, fingerprint screen, RDKit confirmation, rows.
+  → SQL conditions (also used by ``list``).
+- :mod:`.cachefile` — the one cache-file format (mapped numpy arrays) and its exact validity:
+  the registry state (change counters kept by triggers, table sizes) each file was built for.
+- :mod:`.index` — the screening index (fingerprints, element bits, RDKit forms of every
+  compound) in ``<db>.fpindex``; :mod:`.elements` — the element screen.
+- :mod:`.matching` — screens and RDKit confirmation: which compounds match.
+- :mod:`.similarity` — Morgan fingerprints (``<db>.simindex``) and Tanimoto ranking.
+- :mod:`.listing` — every measurement's sort keys and CSV line in ``<db>.listing`` (SQLite).
+- :mod:`.result` — :class:`FindResult`, sorting, CSV lines.
+- :mod:`.engine` — :func:`find`: filters, matching, rows — on one read snapshot.
 
-RDKit is imported lazily inside these modules, so importing the package stays cheap.
+The library surface is :mod:`registry.api.search`. RDKit is imported lazily inside these
+modules, so importing the package stays cheap.
 """
 
 from __future__ import annotations
 
-from registry.search.engine import FindResult, brute_force, find, motif_matches
+from registry.search.engine import brute_force, find, motif_matches
 from registry.search.filters import Filters, make_filters, parse_range
 from registry.search.motifs import (
     Motif,
@@ -32,6 +35,7 @@ from registry.search.motifs import (
     remove_motif,
 )
 from registry.search.patterns import PatternError, Query, build_query
+from registry.search.result import FindResult
 
 __all__ = [
     "Filters",

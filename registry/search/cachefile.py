@@ -1,25 +1,54 @@
-"""Cache files beside a registry: named numpy arrays in one memory-mapped file, and a note of
-the registry file's state at which a cache was last found current.
+"""The search's cache files: named numpy arrays in one memory-mapped file, valid for one state.
 
-The search keeps two such caches (the screening index, :mod:`.index`, and the measurement
-listing, :mod:`.listing`) so that a fresh ``fluxledger find`` process maps them instead of
-rebuilding them. Both are written atomically (temporary file + rename: a reader never sees half
-a file) and both skip their signature query when the SQLite file and its WAL look exactly as
-they did when the cache was last checked.
+The search keeps what is costly to rebuild in files beside a SQLite registry (``<db>.fpindex``,
+``<db>.simindex``, ``<db>.listing``; for a server registry in the user cache directory, keyed by
+its URL), so that a fresh ``fluxledger find`` process maps them instead of rebuilding them. Each
+file records the registry :class:`~registry.storage.changes.State` it was built from: the
+change counters that the schema's triggers keep (every update and delete, plain SQL included)
+and the row count and largest id of each table it reads (new rows). A cache is used only when
+the state it records equals the state read in the search's own transaction — exact, whoever
+wrote. Files are written atomically (temporary file + rename), so a reader never sees half of
+one; one a process has mapped is held (:func:`held`) while the state stays the same.
 """
 
 from __future__ import annotations
 
+import hashlib
 import json
 import mmap
 import os
 import tempfile
+from collections.abc import Callable
 from pathlib import Path
-from typing import Any
+from typing import Any, TypeVar
 
 import numpy as np
 
+from registry.storage import changes
+from registry.storage.connection import Connection
+from registry.storage.database import Database
+
+T = TypeVar("T")
+
 _ALIGN = 64
+
+
+def path_for(database: Database, suffix: str) -> Path | None:
+    """``<db><suffix>`` beside a SQLite file; the user cache directory for a server registry;
+    None for an in-memory registry (its caches live only in the process)."""
+    if database.is_sqlite:
+        return None if database.path is None else Path(f"{database.path}{suffix}")
+    base = os.environ.get("FLUXLEDGER_CACHE_DIR") or os.environ.get("XDG_CACHE_HOME")
+    root = Path(base) if base else Path.home() / ".cache"
+    if not os.environ.get("FLUXLEDGER_CACHE_DIR"):
+        root = root / "fluxledger"
+    key = hashlib.sha256(database.url.encode("utf-8")).hexdigest()[:24]
+    return root / f"{key}{suffix}"
+
+
+def state_of(conn: Connection, counters: tuple[str, ...], tables: tuple[str, ...]) -> dict:
+    """The registry state a cache depends on, as the JSON its file header keeps."""
+    return changes.state(conn, counters, tables).as_json()
 
 
 def save_arrays(
@@ -90,75 +119,44 @@ def read_arrays(
     return header, arrays, mapped
 
 
-# ---------------------------------------------------------------- registry file state
-
-
-def file_state(database: Any) -> tuple[int, ...] | None:
-    """Size and mtime of a SQLite registry and its WAL: any commit changes one of them.
-
-    Lets a search skip a cache's signature query while nothing was written; None for server
-    databases (always checked).
-    """
-    if not database.is_sqlite or database.path is None or str(database.path) == ":memory:":
-        return None
-    state: list[int] = []
-    for suffix in ("", "-wal"):
-        try:
-            st = os.stat(f"{database.path}{suffix}")
-        except OSError:
-            st = None
-        if st is None or (suffix and st.st_size == 0):
-            # an empty WAL holds nothing: every opening connection creates one afresh (new
-            # inode and time) and the last one to close deletes it, so counting it would make
-            # each new process re-check the signature; emptying a WAL that held commits means
-            # a checkpoint wrote them into the main file, whose size or time then changed
-            state += [-1, -1, -1]
-        else:
-            state += [st.st_size, st.st_mtime_ns, st.st_ino]
-    return tuple(state)
-
-
-def state_with_cache(database: Any, path: Path) -> tuple[int, ...] | None:
-    """:func:`file_state` plus the cache file's own size, time and inode."""
-    state = file_state(database)
-    if state is None:
-        return None
+def write_or_note(save: Callable[[], None], path: Path, what: str, notes: list[str]) -> bool:
+    """Run ``save()``; a cache that cannot be written (a read-only folder) is no error, only a
+    note that the search shows. True when written."""
     try:
-        st = path.stat()
-        return (*state, st.st_size, st.st_mtime_ns, st.st_ino)
-    except OSError:
-        return (*state, -1, -1, -1)
-
-
-def _state_path(path: Path) -> Path:
-    return Path(f"{path}.state")
-
-
-def state_matches(path: Path, state: tuple[int, ...], signature: dict[str, Any]) -> bool:
-    """Was the cache last found current while the registry file looked exactly like now?"""
-    try:
-        seen = json.loads(_state_path(path).read_text(encoding="utf-8"))
-    except (OSError, ValueError):
+        save()
+    except OSError as exc:
+        notes.append(f"could not write the {what} {path}: {exc.strerror or exc}")
         return False
-    return seen.get("file_state") == list(state) and seen.get("signature") == signature
+    return True
 
 
-def remember_state(path: Path, state: tuple[int, ...] | None, signature: dict[str, Any]) -> None:
-    """Note the registry file state at which the signature was last checked (best effort)."""
-    if state is None:
-        return
-    target = _state_path(path)
-    try:
-        tmp = target.with_name(target.name + f".{os.getpid()}.tmp")
-        tmp.write_text(json.dumps({"file_state": list(state), "signature": signature}))
-        os.replace(tmp, target)
-    except OSError:
-        pass
-
-
-def drop(path: Path) -> bool:
-    """Delete a cache file and its state note; True if there was a cache file."""
+def drop(path: Path | None) -> bool:
+    """Delete a cache file; True if there was one."""
+    if path is None:
+        return False
     existed = path.exists()
     path.unlink(missing_ok=True)
-    _state_path(path).unlink(missing_ok=True)
     return existed
+
+
+# ---------------------------------------------------------------- held in this process
+
+#: caches this process has loaded: (registry key, kind) → (the state they are valid for, cache)
+_HELD: dict[tuple[str, str], tuple[dict, Any]] = {}
+
+
+def held(key: tuple[str, str], state: dict) -> Any:
+    """The cache this process holds under ``key`` if it was valid for exactly ``state``."""
+    found = _HELD.get(key)
+    return found[1] if found is not None and found[0] == state else None
+
+
+def hold(key: tuple[str, str], state: dict, cache: T) -> T:
+    """Keep ``cache`` in this process for ``state`` (replacing what was held under ``key``)."""
+    _HELD[key] = (state, cache)
+    return cache
+
+
+def forget() -> None:
+    """Drop everything held in this process (as in a new process; tests use it)."""
+    _HELD.clear()

@@ -1,18 +1,18 @@
-"""The screening index: every compound's pattern fingerprint and RDKit binary, cached on disk.
+"""The screening index: every compound's pattern fingerprint, element bits and RDKit forms.
 
 Substructure search screens first and confirms second (the fingerprint screen of Willett,
 Barnard & Downs, J. Chem. Inf. Comput. Sci. 1998; RDKit's pattern fingerprint): a molecule can
 contain the query only if it has every fingerprint bit of the query, so ``query ⊆ molecule`` on
 packed 64-bit words throws most molecules out with a few numpy operations; RDKit then confirms
-the rest on molecules rebuilt from their binary form (about 3× faster than parsing SMILES).
+the rest (from RDKit's canonical SMILES parsed as trusted, or the stored binary form).
 
-So that a fresh ``fluxledger find`` process does not rebuild anything, the index lives in a file
-beside a SQLite registry (``<db>.fpindex``; for server databases in the user cache directory,
-keyed by URL). It is memory-mapped on load. Its *signature* (compound count, highest id, total
-length of the stored binaries and fingerprints, last audited compound revision) is compared with
-the database on every use: new compounds extend the file, anything else rebuilds it. An edit
-that keeps every length the same and bypasses the history would go unseen; ``find
---rebuild-index`` (or :func:`load_index` with ``rebuild=True``) starts afresh.
+Building the index reads every compound's binary and fingerprint and works out its elements
+(seconds at 100,000 compounds); mapping it from ``<db>.fpindex`` (:mod:`.cachefile`) takes
+milliseconds, so the file stays. It records the registry state it was built from: the
+``structure`` change counter (any update of a structure or delete of a compound, plain SQL
+included) and the compound table's row count and largest id. New compounds only (count and
+largest id grew by the same rows, counter unchanged) extend the file; any other difference
+rebuilds it.
 
 The stored fingerprints were computed by whatever RDKit wrote the compound; the pattern
 fingerprint has changed between RDKit releases, and a stale one could screen out a true hit. At
@@ -22,21 +22,24 @@ index recomputes all of them.
 
 from __future__ import annotations
 
-import hashlib
-import os
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Any
 
 import numpy as np
 
 from registry.search import cachefile
-from registry.search.cachefile import file_state
 from registry.search.patterns import FP_BITS, FP_WORDS
+from registry.storage import changes
+from registry.storage.connection import Connection
+from registry.storage.database import Database
 
 MAGIC = b"FLXSCRN1"
-FORMAT_VERSION = 4  # 4: element bits per compound (see .elements)
+FORMAT_VERSION = 5  # 5: valid for a change-counter state
+SUFFIX = ".fpindex"
 _SAMPLE = 48  # stored fingerprints re-checked against the running RDKit at build time
+#: what the index depends on (see the module docstring)
+COUNTERS = ("structure",)
+TABLES = ("compound",)
 
 
 @dataclass
@@ -49,12 +52,11 @@ class ScreenIndex:
     fps: np.ndarray
     offsets: np.ndarray
     blob: np.ndarray
-    signature: dict[str, Any]
-    rdkit_version: str
-    smiles_offsets: np.ndarray | None = None
-    smiles_blob: np.ndarray | None = None
-    elements: np.ndarray | None = None  # 2 × N uint64: the elements each compound contains
-    path: Path | None = None
+    smiles_offsets: np.ndarray
+    smiles_blob: np.ndarray
+    elements: np.ndarray  # 2 × N uint64: the elements each compound contains
+    recomputed_fps: bool = False
+    rdkit: str = ""
     notes: list[str] = field(default_factory=list)
     _keep: Any = None  # the mmap the arrays view, kept open while the index lives
     _smiles_text: str | None = None
@@ -63,17 +65,17 @@ class ScreenIndex:
     def __len__(self) -> int:
         return int(self.ids.shape[0])
 
+    def take_notes(self) -> list[str]:
+        """What the search should tell the user about this index, once."""
+        notes, self.notes = self.notes, []
+        return notes
+
     def mol_binary(self, position: int) -> bytes:
         return self.blob[self.offsets[position] : self.offsets[position + 1]].tobytes()
 
-    def trusted_smiles(self, position: int) -> str:
-        """RDKit's own canonical SMILES of a sanitized structure ('' when there is none)."""
-        return self.trusted_smiles_many([position])[0]
-
     def trusted_smiles_many(self, positions: Any) -> list[str]:
-        """Canonical SMILES of many positions at once (the text is decoded once per process)."""
-        if self.smiles_offsets is None or self.smiles_blob is None:
-            return ["" for _ in positions]
+        """RDKit's canonical SMILES of these positions ('' where the structure was kept
+        unsanitized); the text is decoded once per process."""
         if self._smiles_text is None:
             raw = self.smiles_blob.tobytes()
             text = raw.decode("utf-8")
@@ -105,13 +107,23 @@ class ScreenIndex:
 
     def screen_elements(self, masks: list[np.ndarray], rows: np.ndarray) -> np.ndarray:
         """Those of ``rows`` whose compound has at least one element of every mask."""
-        if not masks or self.elements is None or rows.size == 0:
+        if not masks or rows.size == 0:
             return rows
         low, high = self.elements[0][rows], self.elements[1][rows]
         keep = np.ones(rows.size, dtype=bool)
         for words in masks:
             keep &= ((low & words[0]) | (high & words[1])) != 0
         return rows[keep]
+
+    def positions_of(self, compound_ids: np.ndarray) -> np.ndarray:
+        """Index positions of those compound ids the index holds (compounds with a structure)."""
+        if compound_ids.size == 0 or len(self) == 0:
+            return np.empty(0, dtype=np.int64)
+        ids = np.sort(compound_ids)
+        positions = np.searchsorted(self.ids, ids)
+        inside = positions < len(self)
+        positions, ids = positions[inside], ids[inside]
+        return positions[self.ids[positions] == ids].astype(np.int64)
 
 
 def rdkit_version() -> str:
@@ -120,52 +132,14 @@ def rdkit_version() -> str:
     return str(rdBase.rdkitVersion)
 
 
-def index_path_for(database: Any, suffix: str = ".fpindex") -> Path:
-    """``<db>.fpindex`` beside a SQLite file; the user cache directory for other databases."""
-    if database.is_sqlite and database.path is not None and str(database.path) != ":memory:":
-        return Path(f"{database.path}{suffix}")
-    base = os.environ.get("FLUXLEDGER_CACHE_DIR") or os.environ.get("XDG_CACHE_HOME")
-    root = Path(base) if base else Path.home() / ".cache"
-    if not os.environ.get("FLUXLEDGER_CACHE_DIR"):
-        root = root / "fluxledger"
-    key = hashlib.sha256(database.url.encode("utf-8")).hexdigest()[:24]
-    return root / f"{key}{suffix}"
-
-
-def database_signature(conn: Any, upto_id: int | None = None) -> dict[str, Any]:
-    """What the index must agree with: count, highest id, blob lengths, last compound revision."""
-    from registry.search.sqlite_read import dialect_name, fetch
-
-    where = "mol_binary IS NOT NULL" + ("" if upto_id is None else " AND id <= :upto")
-    total = "total" if dialect_name(conn) == "sqlite" else "sum"
-    row = fetch(
-        conn,
-        f"SELECT count(*), coalesce(max(id), 0), coalesce({total}(length(mol_binary)), 0), "
-        f"coalesce({total}(length(pattern_fp)), 0) FROM compound WHERE {where}",
-        {} if upto_id is None else {"upto": upto_id},
-    )[0]
-    last = "SELECT coalesce(max(id), 0) FROM revision WHERE entity = 'compound'"
-    revision = fetch(conn, last)[0][0]
-    return {
-        "count": int(row[0]),
-        "max_id": int(row[1]),
-        "mol_bytes": int(row[2]),
-        "fp_bytes": int(row[3]),
-        "compound_revision": int(revision),
-    }
-
-
 # ---------------------------------------------------------------- building from the database
 
 
 Row = tuple[int, bytes, bytes | None, str]
 
 
-def _fetch(conn: Any, after_id: int) -> list[Row]:
-    from registry.search.sqlite_read import fetch
-
-    result = fetch(
-        conn,
+def _fetch(conn: Connection, after_id: int) -> list[Row]:
+    result = conn.rows(
         "SELECT id, mol_binary, pattern_fp, smiles_canonical, structure_ok FROM compound "
         "WHERE mol_binary IS NOT NULL AND id > :after ORDER BY id",
         {"after": after_id},
@@ -195,11 +169,11 @@ def _fresh_fp(binary: bytes) -> np.ndarray:
 
 
 def _arrays(rows: list[Row], recompute: bool) -> dict[str, np.ndarray]:
+    from registry.search.elements import compound_mask
+
     n = len(rows)
     ids = np.fromiter((r[0] for r in rows), dtype=np.int64, count=n)
     fps = np.empty((n, FP_WORDS), dtype=np.uint64)
-    from registry.search.elements import compound_mask
-
     elements = np.empty((n, 2), dtype=np.uint64)
     raw, smiles = bytearray(), bytearray()
     offsets = np.zeros(n + 1, dtype=np.int64)
@@ -237,164 +211,129 @@ def _stored_fps_current(rows: list[Row]) -> bool:
     return True
 
 
-def build_index(database: Any) -> ScreenIndex:
-    """Read every compound's binary and fingerprint from the database (one snapshot)."""
-    with database.read() as conn:
-        signature = database_signature(conn)
-        rows = _fetch(conn, 0)
-    notes = []
+def build_index(conn: Connection) -> ScreenIndex:
+    """Read every compound's binary and fingerprint in this transaction."""
+    rows = _fetch(conn, 0)
     recompute = not _stored_fps_current(rows)
+    notes = []
     if recompute:
         notes.append(
             "stored pattern fingerprints differ from this RDKit's; the index uses recomputed ones"
         )
-    signature["recomputed_fps"] = recompute
-    return ScreenIndex(**_arrays(rows, recompute), signature=signature,
-                       rdkit_version=rdkit_version(), notes=notes)  # fmt: skip
-
-
-def _extend(index: ScreenIndex, rows: list[Row], sig: dict) -> ScreenIndex:
-    new = _arrays(rows, bool(index.signature.get("recomputed_fps")))
-    sig["recomputed_fps"] = bool(index.signature.get("recomputed_fps"))
-    assert index.smiles_offsets is not None and index.smiles_blob is not None
     return ScreenIndex(
-        ids=np.concatenate([index.ids, new["ids"]]),
-        fps=np.concatenate([index.fps, new["fps"]], axis=1),
-        offsets=np.concatenate([index.offsets, new["offsets"][1:] + int(index.offsets[-1])]),
-        blob=np.concatenate([index.blob, new["blob"]]),
-        smiles_offsets=np.concatenate(
-            [index.smiles_offsets, new["smiles_offsets"][1:] + int(index.smiles_offsets[-1])]
-        ),
-        smiles_blob=np.concatenate([index.smiles_blob, new["smiles_blob"]]),
-        elements=None
-        if index.elements is None
-        else np.concatenate([index.elements, new["elements"]], axis=1),
-        signature=sig,
-        rdkit_version=index.rdkit_version,
-        notes=["index extended with new compounds"],
+        **_arrays(rows, recompute), recomputed_fps=recompute, rdkit=rdkit_version(), notes=notes
+    )
+
+
+def _extend(index: ScreenIndex, rows: list[Row]) -> ScreenIndex:
+    new = _arrays(rows, index.recomputed_fps)
+
+    def joined(name: str, offsets: bool = False) -> np.ndarray:
+        old, more = getattr(index, name), new[name]
+        if offsets:
+            return np.concatenate([old, more[1:] + int(old[-1])])
+        return np.concatenate([old, more], axis=1 if old.ndim == 2 else 0)
+
+    return ScreenIndex(
+        ids=joined("ids"),
+        fps=joined("fps"),
+        offsets=joined("offsets", True),
+        blob=joined("blob"),
+        smiles_offsets=joined("smiles_offsets", True),
+        smiles_blob=joined("smiles_blob"),
+        elements=joined("elements"),
+        recomputed_fps=index.recomputed_fps,
+        rdkit=index.rdkit,
     )
 
 
 # ---------------------------------------------------------------- the cache file
 
+_ARRAYS = ("ids", "fps", "offsets", "blob", "smiles_offsets", "smiles_blob", "elements")
 
-def save_index(index: ScreenIndex, path: Path) -> None:
-    """Write atomically (temporary file + rename), so readers never see half a file."""
-    arrays = {
-        name: getattr(index, name)
-        for name in ("ids", "fps", "offsets", "blob", "smiles_offsets", "smiles_blob", "elements")
-        if getattr(index, name) is not None
+
+def save_index(index: ScreenIndex, path: Any, state: dict) -> None:
+    header = {
+        "format": FORMAT_VERSION,
+        "state": state,
+        "rdkit": index.rdkit,
+        "recomputed_fps": index.recomputed_fps,
     }
-    header = {"format": FORMAT_VERSION, "signature": index.signature, "rdkit": index.rdkit_version}
-    cachefile.save_arrays(path, MAGIC, header, arrays)
+    cachefile.save_arrays(path, MAGIC, header, {n: getattr(index, n) for n in _ARRAYS})
 
 
-def read_index(path: Path) -> ScreenIndex | None:
-    """Map a cache file; None when it is missing, damaged or of another format."""
+def read_index(path: Any) -> tuple[ScreenIndex, dict] | None:
+    """Map a cache file: (the index, the state it was built for); None when it is missing,
+    damaged or of another format."""
     found = cachefile.read_arrays(path, MAGIC, FORMAT_VERSION)
     if found is None:
         return None
     header, arrays, mapped = found
-    if not {"ids", "fps", "offsets", "blob"} <= set(arrays):
+    if set(arrays) != set(_ARRAYS) or "state" not in header:
         return None
-    try:
-        signature, version = header["signature"], header["rdkit"]
-    except KeyError:
-        return None
-    return ScreenIndex(
-        **arrays, signature=signature, rdkit_version=version, path=path, _keep=mapped
+    index = ScreenIndex(
+        **arrays,
+        recomputed_fps=bool(header.get("recomputed_fps")),
+        rdkit=str(header.get("rdkit", "")),
+        _keep=mapped,
     )
+    return index, header["state"]
 
 
-#: indexes already checked in this process, with the registry file state they were checked at
-_CHECKED: dict[str, tuple[tuple[int, ...], ScreenIndex]] = {}
-
-
-def load_index(database: Any, *, rebuild: bool = False, persist: bool = True) -> ScreenIndex:
-    """The up-to-date index (see :func:`_load`), remembered in-process while the file is unchanged."""
-    path = index_path_for(database)
-    key = str(path)
-    state = cachefile.state_with_cache(database, path)
-    if not rebuild and state is not None and key in _CHECKED and _CHECKED[key][0] == state:
-        return _CHECKED[key][1]
-    before = file_state(database)
-    index = _load(database, rebuild=rebuild, persist=persist)
-    after = cachefile.state_with_cache(database, path)
-    if before is not None and after is not None and after[: len(before)] == before:
-        _CHECKED[key] = (after, index)  # nothing was written meanwhile
-    return index
-
-
-def _core(signature: dict[str, Any]) -> dict[str, Any]:
-    return {k: v for k, v in signature.items() if k != "recomputed_fps"}
-
-
-def _load(database: Any, *, rebuild: bool = False, persist: bool = True) -> ScreenIndex:
-    """The up-to-date index: the cache file when it agrees with the database, else rebuilt.
-
-    New compounds (ids above the cached highest id, everything below unchanged) extend the file;
-    any other difference rebuilds it. A cache that cannot be written (read-only folder) is not an
-    error: the index is then rebuilt in memory on each use, and a note says so. When the SQLite
-    file (and its WAL) has not changed at all since the signature was last checked, the check
-    itself is skipped (the state is taken *before* each check, so a concurrent write only makes
-    the next check happen).
-    """
-    path = index_path_for(database)
-    cached = None if rebuild else read_index(path)
-    state = file_state(database)
-    current_rdkit = rdkit_version()
-    if (
-        cached is not None
-        and state is not None
-        and cached.rdkit_version == current_rdkit
-        and cachefile.state_matches(path, state, _core(cached.signature))
-    ):
-        return cached
-    with database.read() as conn:
-        current = database_signature(conn)
-        if cached is not None and cached.rdkit_version == current_rdkit:
-            old = _core(cached.signature)
-            if old == current:
-                cachefile.remember_state(path, state, _core(current))
-                return cached
-            same_prefix = (
-                current["compound_revision"] == old["compound_revision"]
-                and current["max_id"] > old["max_id"]
-                and database_signature(conn, upto_id=old["max_id"]) == old
-            )
-            if same_prefix:
-                rows = _fetch(conn, old["max_id"])
-                index = _extend(cached, rows, dict(current))
-                index.path = path
-                if not persist:
-                    return index
-                index = _persist(index, path)
-                cachefile.remember_state(path, state, _core(index.signature))
-                return index
-    index = build_index(database)
-    index.path = path
-    if not persist:
-        return index
-    index = _persist(index, path)
-    # safe even if the file could not be written: the state also names the signature, which
-    # an older file on disk would not have
-    cachefile.remember_state(path, state, _core(index.signature))
-    return index
-
-
-def _persist(index: ScreenIndex, path: Path) -> ScreenIndex:
+def _appended(conn: Connection, before: dict, now: dict) -> bool:
+    """Only new compounds since ``before``: same counters, rows and largest id grown alike."""
+    if before.get("counters") != now["counters"]:
+        return False
     try:
-        save_index(index, path)
-    except OSError as exc:
-        index.notes.append(f"could not write the screening cache {path}: {exc.strerror or exc}")
-        return index
-    reread = read_index(path)
-    if reread is None:  # pragma: no cover - we just wrote it
-        return index
-    reread.notes = index.notes
-    return reread
+        old = changes.TableState(*before["tables"]["compound"])
+    except (KeyError, TypeError):
+        return False
+    current = changes.TableState(*now["tables"]["compound"])
+    if current.max_id <= old.max_id:
+        return False
+    newer = int(conn.scalar("SELECT count(*) FROM compound WHERE id > :m", {"m": old.max_id}))
+    return changes.only_appended(old, current, newer)
 
 
-def drop_index(database: Any) -> bool:
+def index_state(conn: Connection) -> dict:
+    """The registry state the screening index (and the similarity index) depend on."""
+    return cachefile.state_of(conn, COUNTERS, TABLES)
+
+
+def load_index(database: Database, conn: Connection, *, rebuild: bool = False) -> ScreenIndex:
+    """The index valid for ``conn``'s snapshot: held in this process, mapped from its file,
+    extended by new compounds, or rebuilt (and written back; a file that cannot be written is
+    no error, the search notes it)."""
+    now = index_state(conn)
+    key = (database.key, "index")
+    current = rdkit_version()
+    if not rebuild:
+        index = cachefile.held(key, now)
+        if index is not None:
+            return index
+    path = cachefile.path_for(database, SUFFIX)
+    found = None if rebuild or path is None else read_index(path)
+    if found is not None and found[0].rdkit == current and found[1] == now:
+        return cachefile.hold(key, now, found[0])
+    if found is not None and found[0].rdkit == current and _appended(conn, found[1], now):
+        old_max = int(found[0].ids[-1]) if len(found[0]) else 0
+        old_max = max(old_max, int(found[1]["tables"]["compound"][1]))
+        index = _extend(found[0], _fetch(conn, old_max))
+    else:
+        index = build_index(conn)
+    if path is not None:
+        done = cachefile.write_or_note(
+            lambda: save_index(index, path, now), path, "screening cache", index.notes
+        )
+        if done:
+            reread = read_index(path)
+            if reread is not None:  # the mapped form: file-backed pages, not private memory
+                reread[0].notes = index.notes
+                index = reread[0]
+    return cachefile.hold(key, now, index)
+
+
+def drop_index(database: Database) -> bool:
     """Delete the cache file (the next search rebuilds it); True if there was one."""
-    return cachefile.drop(index_path_for(database))
+    cachefile.forget()
+    return cachefile.drop(cachefile.path_for(database, SUFFIX))

@@ -1,137 +1,44 @@
 """The measurement listing: every measurement's search row, kept beside a SQLite registry.
 
 A motif search ends by listing the measurements of the compounds it matched; for a common
-motif that is tens of thousands of rows. Reading them through SQL costs more than the search
-itself (SQLite joins three tables and Python builds a tuple of ~20 values per row, 4–7 µs a
-row), and writing them as CSV costs as much again. So the listing is kept ready:
+motif that is tens of thousands of rows. Reading them through SQL and writing them as CSV
+costs about 0.4 s per 100,000 rows here, so the listing keeps them ready in ``<db>.listing``
+(:mod:`.cachefile`), memory-mapped: measurement ids (ascending), their compound ids, a
+retracted flag, the sort keys (ΔG‡, its temperature, and the rank of the compound label,
+solvent and method in case-insensitive order) and each measurement's CSV line
+(:data:`.result.CSV_COLUMNS`). A search picks its rows with numpy; a ``find --csv`` writes the
+picked lines as they are; a search that needs the rows as values reads just those by id.
 
-- ``<db>.listing``, memory-mapped: measurement ids (ascending), their compound ids, a
-  retracted flag, the sort keys (ΔG‡, its temperature, and the rank of the compound label,
-  solvent and method in case-insensitive order) and each measurement's CSV line
-  (:data:`CSV_COLUMNS`). A search picks its rows with numpy and a cold ``fluxledger find
-  --csv`` writes the picked lines as they are.
-- in the searching process, the rows themselves as tuples (:data:`ROW_COLUMNS`), read once
-  and kept while the registry file is unchanged, so that repeated library calls
-  (:func:`registry.search.find` in a notebook or a service) pick tuples instead of reading SQL.
-  This costs memory, about 1 KB per measurement.
-
-The file is rebuilt when its *signature* differs from the database's: the newest revision id
-(every change made through fluxledger records one) and id-weighted sums over the values and
-text lengths the listing shows. A change made behind fluxledger's back (plain SQL) that keeps
-every value and every text length would go unseen until ``find --rebuild-index``. When the SQLite file and its WAL look exactly as when the signature
-was last checked, the check is skipped (:mod:`.cachefile`). Server databases have no listing:
-their rows are read through SQL on every search.
+The file records the state it was built from: the ``listing`` change counter (every update or
+delete of a measurement, compound or process row, plain SQL included) and the measurement
+table's row count and largest id. Any difference rebuilds it (about a second per 100,000
+measurements, once after a write). Server registries have no listing: their rows are read
+through SQL on every search.
 """
 
 from __future__ import annotations
 
-import csv
-import math
-from collections.abc import Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
+from registry.record.fields import LISTING_SELECT
 from registry.search import cachefile
+from registry.search.result import CSV_COLUMNS, ROW_COLUMNS, csv_lines
+from registry.storage.connection import Connection
+from registry.storage.database import Database
 
 MAGIC = b"FLXLIST1"
-FORMAT_VERSION = 1
-
-#: the measurement listing columns (as ``registry.api.LIST_COLUMNS``, which a test compares)
-#: plus what search filters and highlights need; m = measurement, c = compound, p = process
-ROW_COLUMNS: dict[str, str] = {
-    "id": "m.id",
-    "label": "m.label",
-    "compound": "c.label",
-    "compound_name": "c.name",
-    "smiles": "c.smiles_canonical",
-    "process": "p.kind",
-    "nucleus": "p.nucleus",
-    "method": "m.method",
-    "solvent": "m.solvent_text",
-    "field_mhz": "m.field_mhz",
-    "dg_kj_mol": "m.dg_kj_mol",
-    "dg_err_kj_mol": "m.dg_err_kj_mol",
-    "dg_t_k": "m.dg_t_k",
-    "dh_kj_mol": "m.dh_kj_mol",
-    "ds_j_mol_k": "m.ds_j_mol_k",
-    "status": "m.status",
-    "reference": "m.reference",
-    "compound_id": "m.compound_id",
-    "t_min_k": "m.t_min_k",
-    "t_max_k": "m.t_max_k",
-}
-ROWS_SQL = (
-    f"SELECT {', '.join(ROW_COLUMNS.values())} FROM measurement m "
-    "JOIN compound c ON c.id = m.compound_id LEFT OUTER JOIN process p ON p.id = m.process_id"
-)
-
-#: the columns of ``fluxledger find --csv`` (a similarity search adds ``similarity`` third)
-CSV_COLUMNS: tuple[str, ...] = (
-    "id",
-    "compound_id",
-    "compound",
-    "process",
-    "nucleus",
-    "method",
-    "solvent",
-    "dg_kj_mol",
-    "dg_t_k",
-    "status",
-    "reference",
-    "smiles",
-    "dg_err_kj_mol",
-)
+FORMAT_VERSION = 2  # 2: valid for a change-counter state
+SUFFIX = ".listing"
+COUNTERS = ("listing",)
+TABLES = ("measurement",)
 #: text sort keys: column → rank array name in the file
 TEXT_KEYS = ("compound", "solvent", "method")
 #: numeric sort keys
 NUMBER_KEYS = ("dg_kj_mol", "dg_t_k")
-
-
-# ---------------------------------------------------------------- CSV lines
-
-
-def csv_lines(table: Sequence[Sequence[Any]]) -> list[str]:
-    """One CSV line per row (``\\n`` ended), as Python's csv module writes them; a value that is
-    not a finite number is written empty (checked per column first, which is cheap)."""
-    if not _all_finite(table):
-        table = [tuple(_plain(v) for v in t) for t in table]
-    lines: list[str] = []
-    sink = _Sink(lines.append)
-    csv.writer(sink, lineterminator="\n").writerows(table)  # one write() per row
-    return lines
-
-
-@dataclass
-class _Sink:
-    write: Any
-
-
-def _plain(value: Any) -> Any:
-    return None if isinstance(value, float) and not math.isfinite(value) else value
-
-
-def _all_finite(table: Sequence[Sequence[Any]]) -> bool:
-    """No NaN or infinity in any numeric column (an exact sum of a column is finite then)."""
-    for column in zip(*table, strict=True):
-        try:
-            total = math.fsum([v for v in column if v is not None])
-        except TypeError:  # a column of text: nothing to check
-            continue
-        except OverflowError:
-            return False
-        if not math.isfinite(total):
-            return False
-    return True
-
-
-def header_line(columns: Sequence[str]) -> str:
-    return ",".join(columns) + "\n"
-
-
-# ---------------------------------------------------------------- the listing
 
 
 @dataclass
@@ -145,13 +52,15 @@ class Listing:
     ranks: dict[str, np.ndarray]  # TEXT_KEYS → int32 rank (missing values rank last)
     line_offsets: np.ndarray  # int64, len n + 1 (byte offsets into line_blob)
     line_blob: np.ndarray  # uint8: the CSV lines, UTF-8
-    signature: dict[str, Any]
-    rows: list[tuple[Any, ...]] | None = None  # ROW_COLUMNS tuples, when read in this process
     notes: list[str] = field(default_factory=list)
     _keep: Any = None  # the mmap the arrays view
 
     def __len__(self) -> int:
         return int(self.ids.shape[0])
+
+    def take_notes(self) -> list[str]:
+        notes, self.notes = self.notes, []
+        return notes
 
     def pick(
         self, compound_ids: np.ndarray, allowed_ids: np.ndarray | None, include_retracted: bool
@@ -170,7 +79,7 @@ class Listing:
 
     def order(self, positions: np.ndarray, column: str, descending: bool) -> np.ndarray:
         """``positions`` sorted by a sort key; ties keep measurement-id order and rows without
-        the value go last (as :func:`registry.search.engine._sort` sorts tuples)."""
+        the value go last (as :func:`.result.sort_rows` sorts tuples)."""
         if column in self.numbers:
             values = self.numbers[column][positions]
             present = ~np.isnan(values)
@@ -199,12 +108,8 @@ class Listing:
         view = memoryview(self.line_blob)
         return b"".join([view[a:b] for a, b in zip(starts, ends, strict=True)])
 
-    def table(self, positions: np.ndarray, conn: Any = None) -> list[tuple[Any, ...]]:
-        """The ROW_COLUMNS tuples of these positions, in this order: picked from :attr:`rows`
-        when they are kept, else read by measurement id through ``conn``."""
-        if self.rows is not None:
-            rows = self.rows
-            return [rows[p] for p in positions.tolist()]
+    def table(self, positions: np.ndarray, conn: Connection) -> list[tuple[Any, ...]]:
+        """The row tuples of these positions, in this order, read by measurement id."""
         if positions.size == 0:
             return []
         return rows_by_id(conn, self.ids[positions].tolist())
@@ -219,52 +124,16 @@ def _member(values: np.ndarray, sorted_set: np.ndarray) -> np.ndarray:
     return sorted_set[at] == values
 
 
-#: id-weighted sums over what the listing shows, one scan per table (~0.1 s per 100k rows, and
-#: only after the registry file changed): an edit made behind fluxledger's back that changes a
-#: value or a text's length moves them even without a revision
-_CONTENT_SQL = (
-    "SELECT count(*), coalesce(max(id), 0), total(id * (length(coalesce(label, '')) "
-    "+ 3 * length(coalesce(method, '')) + 5 * length(coalesce(solvent_text, '')) "
-    "+ 7 * length(coalesce(status, '')) + 11 * length(coalesce(reference, '')))), "
-    "total(id * dg_kj_mol), total(id * dg_err_kj_mol), total(id * dg_t_k), total(id * dh_kj_mol), "
-    "total(id * ds_j_mol_k), total(id * field_mhz), total(id * t_min_k), total(id * t_max_k), "
-    "total(id * compound_id), total(id * process_id) FROM measurement",
-    "SELECT count(*), total(id * (length(coalesce(label, '')) + 3 * length(coalesce(name, '')) "
-    "+ 5 * length(coalesce(smiles_canonical, '')))) FROM compound",
-    "SELECT count(*), total(id * (length(coalesce(kind, '')) "
-    "+ 3 * length(coalesce(nucleus, '')))) FROM process",
-)
-
-
-def signature(conn: Any) -> dict[str, Any]:
-    """What the listing must agree with: the newest revision (every change made through
-    fluxledger records one) and content sums of the three tables it reads."""
-    from registry.search.sqlite_read import fetch
-
-    revision = fetch(conn, "SELECT coalesce(max(id), 0) FROM revision")[0][0]
-    sums = [[float(v) for v in fetch(conn, sql)[0]] for sql in _CONTENT_SQL]
-    return {"revision": int(revision), "measurement": sums[0], "compound": sums[1],
-            "process": sums[2]}  # fmt: skip
-
-
-def read_rows(conn: Any) -> list[tuple[Any, ...]]:
-    """Every measurement's ROW_COLUMNS tuple, in id order."""
-    from registry.search.sqlite_read import fetch
-
-    return [tuple(r) for r in fetch(conn, f"{ROWS_SQL} ORDER BY m.id")]
-
-
-def rows_by_id(conn: Any, ids: list[int]) -> list[tuple[Any, ...]]:
-    """The ROW_COLUMNS tuples of these measurement ids, in this order."""
-    from registry.search.sqlite_read import fetch_with_ids
-
-    at = list(ROW_COLUMNS).index("id")
-    by_id = {r[at]: tuple(r) for r in fetch_with_ids(conn, f"{ROWS_SQL} WHERE 1 = 1", "m.id", ids)}
+def rows_by_id(conn: Connection, ids: list[int]) -> list[tuple[Any, ...]]:
+    """The row tuples of these measurement ids, in this order."""
+    at = ROW_COLUMNS.index("id")
+    found = conn.rows_where_in(f"{LISTING_SELECT} WHERE 1 = 1", "m.id", ids)
+    by_id = {r[at]: r for r in found}
     return [by_id[i] for i in ids]
 
 
-def from_rows(rows: list[tuple[Any, ...]], sig: dict[str, Any]) -> Listing:
-    """Build the listing from every measurement's tuple (id order)."""
+def from_rows(rows: list[tuple[Any, ...]]) -> Listing:
+    """Build the listing from every measurement's row tuple (id order)."""
     at = {name: i for i, name in enumerate(ROW_COLUMNS)}
     n = len(rows)
     columns: list[tuple[Any, ...]] = list(zip(*rows, strict=True)) if rows else []
@@ -299,22 +168,13 @@ def from_rows(rows: list[tuple[Any, ...]], sig: dict[str, Any]) -> Listing:
         ranks=ranks,
         line_offsets=offsets,
         line_blob=np.frombuffer(blob, dtype=np.uint8),
-        signature=sig,
-        rows=rows,
     )
 
 
 # ---------------------------------------------------------------- the cache file
 
 
-def listing_path(database: Any) -> Path | None:
-    """``<db>.listing`` beside a SQLite file; None for other databases (no listing)."""
-    if not database.is_sqlite or database.path is None or str(database.path) == ":memory:":
-        return None
-    return Path(f"{database.path}.listing")
-
-
-def save_listing(listing: Listing, path: Path) -> None:
+def save_listing(listing: Listing, path: Path, state: dict) -> None:
     arrays = {
         "ids": listing.ids,
         "compound_ids": listing.compound_ids,
@@ -324,12 +184,13 @@ def save_listing(listing: Listing, path: Path) -> None:
         "line_offsets": listing.line_offsets,
         "line_blob": listing.line_blob,
     }
-    header = {"format": FORMAT_VERSION, "signature": listing.signature}
+    header = {"format": FORMAT_VERSION, "state": state}
     cachefile.save_arrays(path, MAGIC, header, arrays)
 
 
-def read_listing(path: Path) -> Listing | None:
-    """Map a listing file; None when it is missing, damaged or of another format."""
+def read_listing(path: Path) -> tuple[Listing, dict] | None:
+    """Map a listing file: (the listing, the state it was built for); None when it is missing,
+    damaged or of another format."""
     found = cachefile.read_arrays(path, MAGIC, FORMAT_VERSION)
     if found is None:
         return None
@@ -344,9 +205,9 @@ def read_listing(path: Path) -> Listing | None:
             ranks={k: arrays[f"rank_{k}"] for k in TEXT_KEYS},
             line_offsets=arrays["line_offsets"],
             line_blob=arrays["line_blob"],
-            signature=header["signature"],
             _keep=mapped,
         )
+        state = header["state"]
     except KeyError:
         return None
     sizes = [listing.compound_ids, listing.retracted, *listing.numbers.values()]
@@ -355,76 +216,32 @@ def read_listing(path: Path) -> Listing | None:
         return None
     if n and int(listing.line_offsets[-1]) != listing.line_blob.shape[0]:
         return None
-    return listing
+    return listing, state
 
 
-#: above this many measurements the rows are not kept in memory (~1.2 KB each), only read by id
-KEEP_ROWS_MAX = 500_000
-
-#: listings already checked in this process, with the registry file state they were checked at
-_LOADED: dict[str, tuple[tuple[int, ...], Listing]] = {}
-
-
-def load_listing(
-    database: Any,
-    conn: Any,
-    state: tuple[int, ...] | None,
-    *,
-    keep_rows: bool,
-    rebuild: bool = False,
-) -> Listing | None:
-    """The current listing of a SQLite registry (None for server databases).
-
-    ``conn`` is the search's read transaction: a listing that must be checked or rebuilt is
-    checked against, or read from, that snapshot. ``state`` is :func:`.cachefile.file_state`
-    taken *before* that transaction began, so that a write racing the search only makes the
-    next search check again (never marks an old listing current for a newer file). With
-    ``keep_rows`` every measurement's tuple is read too and kept with the listing while the file
-    is unchanged (for a process that searches again; a one-off search reads only its rows), up
-    to :data:`KEEP_ROWS_MAX` measurements. A listing that cannot be written (a
-    read-only folder) still serves this search; a note says so.
-    """
-    path = listing_path(database)
-    if path is None:
+def load_listing(database: Database, conn: Connection, *, rebuild: bool = False) -> Listing | None:
+    """The listing valid for ``conn``'s snapshot (None for server and in-memory registries):
+    held in this process, mapped from its file, or rebuilt from this snapshot and written back
+    (a file that cannot be written still serves this search; a note says so)."""
+    path = cachefile.path_for(database, SUFFIX)
+    if path is None or not database.is_sqlite:
         return None
-    key = str(path)
-    if state is None:  # pragma: no cover - listing_path already refused
-        return None
-    known = _LOADED.get(key)
-    if not rebuild and known is not None and known[0] == state:
-        listing = known[1]
-        if not keep_rows or listing.rows is not None:
+    now = cachefile.state_of(conn, COUNTERS, TABLES)
+    key = (database.key, "listing")
+    if not rebuild:
+        listing = cachefile.held(key, now)
+        if listing is not None:
             return listing
-    else:
-        listing = None if rebuild else read_listing(path)
-        if listing is not None and not cachefile.state_matches(path, state, listing.signature):
-            current = signature(conn)
-            if current == listing.signature:
-                cachefile.remember_state(path, state, current)
-            else:
-                listing = None
-    keep_rows = keep_rows and (listing is None or len(listing) <= KEEP_ROWS_MAX)
-    if listing is not None and keep_rows and listing.rows is None:
-        rows = read_rows(conn)
-        at = list(ROW_COLUMNS).index("id")
-        ids = np.fromiter((r[at] for r in rows), dtype=np.int64, count=len(rows))
-        if np.array_equal(ids, listing.ids):
-            listing.rows = rows
-        else:  # written meanwhile: rebuild from the rows just read
-            listing = _build(path, from_rows(rows, signature(conn)), state)
-    if listing is None:
-        listing = _build(path, from_rows(read_rows(conn), signature(conn)), state)
-        if not keep_rows or len(listing) > KEEP_ROWS_MAX:
-            listing.rows = None  # read for the build; kept only where asked and small enough
-    _LOADED[key] = (state, listing)
-    return listing
-
-
-def _build(path: Path, listing: Listing, state: tuple[int, ...]) -> Listing:
-    try:
-        save_listing(listing, path)
-    except OSError as exc:
-        listing.notes.append(f"could not write the listing cache {path}: {exc.strerror or exc}")
-        return listing
-    cachefile.remember_state(path, state, listing.signature)
-    return listing
+        found = read_listing(path)
+        if found is not None and found[1] == now:
+            return cachefile.hold(key, now, found[0])
+    listing = from_rows(conn.rows(f"{LISTING_SELECT} ORDER BY m.id"))
+    done = cachefile.write_or_note(
+        lambda: save_listing(listing, path, now), path, "listing cache", listing.notes
+    )
+    if done:
+        reread = read_listing(path)
+        if reread is not None:  # the mapped form: file-backed pages, not private memory
+            reread[0].notes = listing.notes
+            listing = reread[0]
+    return cachefile.hold(key, now, listing)

@@ -25,9 +25,13 @@ import tomllib
 from dataclasses import dataclass
 from datetime import UTC, datetime
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from registry.errors import FileFormatError, NotFoundError, UsageError
+
+if TYPE_CHECKING:
+    from registry.storage.connection import Connection
+    from registry.storage.database import Database
 
 #: d- and f-block metals plus the main-group metals that carry σ-cyclopentadienyls
 _METALS = (
@@ -207,7 +211,7 @@ BUILTIN: tuple[Motif, ...] = (
         ("C=C-[#6]1-[#6]-[#6]-1-C=C",),
         "1,2-divinylcyclopropane unit (Cope shift through a boat transition state). The [3,3] "
         "shift needs the cis isomer: in cages (homotropilidene, barbaralane, bullvalene) it is "
-        "cis by constraint; a stereo-aware search (--stereo) asks for the cis configuration "
+        "cis by constraint; a stereo-aware search asks for the cis configuration "
         "on molecules whose stereocentres are specified",
         "degenerate-rearrangement",
         stereo_smarts=("C=C[C@H]1C[C@H]1C=C",),
@@ -320,19 +324,17 @@ def _split(stored: str) -> tuple[str, ...]:
     return tuple(line.strip() for line in stored.splitlines() if line.strip())
 
 
-def registry_motifs(database: Any) -> list[Motif]:
+def registry_motifs(database: Database) -> list[Motif]:
     """User motifs kept in the registry's ``motif`` table."""
-    from registry.search.sqlite_read import fetch
-
     with database.read() as conn:
-        rows = fetch(conn, "SELECT name, smarts, description, created_by FROM motif ORDER BY name")
+        rows = conn.rows("SELECT name, smarts, description, created_by FROM motif ORDER BY name")
     return [
         Motif(name, _split(smarts), description or "", source="registry", created_by=who)
         for name, smarts, description, who in rows
     ]
 
 
-def list_motifs(database: Any | None = None, files: list[str] | None = None) -> list[Motif]:
+def list_motifs(database: Database | None = None, files: list[str] | None = None) -> list[Motif]:
     """Built-in motifs, then the registry's, then those of the given TOML files."""
     out = list(BUILTIN)
     if database is not None:
@@ -342,7 +344,7 @@ def list_motifs(database: Any | None = None, files: list[str] | None = None) -> 
     return out
 
 
-def get_motif(name: str, database: Any | None = None, files: list[str] | None = None) -> Motif:
+def get_motif(name: str, database: Database | None = None, files: list[str] | None = None) -> Motif:
     """The motif of that name; an unknown name lists the known ones."""
     wanted = (name or "").strip().lower()
     motifs = list_motifs(database, files)
@@ -354,7 +356,7 @@ def get_motif(name: str, database: Any | None = None, files: list[str] | None = 
 
 
 def add_motif(
-    database: Any,
+    database: Database,
     name: str,
     smarts: str | list[str] | tuple[str, ...],
     *,
@@ -362,12 +364,9 @@ def add_motif(
     actor: str | None = None,
 ) -> Motif:
     """Store a user motif (SMARTS checked first) and record it in the history."""
-    from sqlalchemy import insert, select
-
     from registry.search.patterns import compile_smarts
     from registry.storage import audit
     from registry.storage.database import current_user
-    from registry.storage.models import Motif as MotifRow
 
     clean = check_name(name)
     alternatives = (smarts,) if isinstance(smarts, str) else tuple(smarts)
@@ -378,8 +377,8 @@ def add_motif(
         compile_smarts(text, field=f"motif {clean!r}")
     who = actor or current_user()
 
-    def work(conn: Any) -> int:
-        if conn.execute(select(MotifRow.id).where(MotifRow.name == clean)).scalar() is not None:
+    def work(conn: Connection) -> int:
+        if conn.scalar("SELECT id FROM motif WHERE name = :name", {"name": clean}) is not None:
             raise UsageError(f"a motif named {clean!r} exists already; remove it first")
         row = {
             "name": clean,
@@ -388,7 +387,7 @@ def add_motif(
             "created_by": who,
             "created_at": datetime.now(UTC),
         }
-        motif_id = conn.execute(insert(MotifRow).returning(MotifRow.id), row).scalar_one()
+        motif_id = int(conn.insert("motif", row, returning="id"))
         audit.record(
             conn,
             entity="motif",
@@ -405,39 +404,35 @@ def add_motif(
 
 
 def remove_motif(
-    database: Any, name: str, *, actor: str | None = None, reason: str | None = None
+    database: Database, name: str, *, actor: str | None = None, reason: str | None = None
 ) -> Motif:
     """Delete a user motif (built-in ones cannot be removed); the history keeps what it was."""
-    from sqlalchemy import delete, select
-
     from registry.storage import audit
     from registry.storage.database import current_user
-    from registry.storage.models import Motif as MotifRow
 
     wanted = (name or "").strip().lower()
     if wanted in builtin_motifs():
         raise UsageError(f"{wanted!r} is a built-in motif and cannot be removed")
     who = actor or current_user()
 
-    def work(conn: Any) -> Motif:
-        row = conn.execute(
-            select(MotifRow.id, MotifRow.smarts, MotifRow.description).where(
-                MotifRow.name == wanted
-            )
-        ).first()
+    def work(conn: Connection) -> Motif:
+        row = conn.first(
+            "SELECT id, smarts, description FROM motif WHERE name = :name", {"name": wanted}
+        )
         if row is None:
             raise NotFoundError(f"no user motif named {name!r} in this registry")
-        conn.execute(delete(MotifRow).where(MotifRow.id == row.id))
+        motif_id, smarts, description = row
+        conn.execute("DELETE FROM motif WHERE id = :id", {"id": motif_id})
         audit.record(
             conn,
             entity="motif",
-            entity_id=row.id,
+            entity_id=motif_id,
             action="remove",
             actor=who,
-            before={"name": wanted, "smarts": row.smarts, "description": row.description},
+            before={"name": wanted, "smarts": smarts, "description": description},
             after=None,
             reason=reason,
         )
-        return Motif(wanted, _split(row.smarts), row.description or "", source="registry")
+        return Motif(wanted, _split(smarts), description or "", source="registry")
 
     return database.write(work)

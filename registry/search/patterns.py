@@ -81,7 +81,7 @@ def _error_from_log(field: str, text: str, log: str, kind: str) -> PatternError:
     return PatternError(field, text, why, int(position.group(1)) if position else None, kind)
 
 
-def compile_smarts(text: str, field: str = "--smarts") -> Any:
+def compile_smarts(text: str, field: str = "smarts") -> Any:
     """An RDKit query molecule from SMARTS; :class:`PatternError` with the position if invalid."""
     Chem = _rdkit()
     clean = (text or "").strip()
@@ -97,7 +97,7 @@ def compile_smarts(text: str, field: str = "--smarts") -> Any:
     return mol
 
 
-def compile_smiles(text: str, field: str = "--smiles") -> Any:
+def compile_smiles(text: str, field: str = "smiles") -> Any:
     """A SMILES read as a substructure query: atoms and bonds as written, hydrogens free."""
     Chem = _rdkit()
     clean = (text or "").strip()
@@ -160,7 +160,7 @@ def build_query(
     """Compile exactly one of SMARTS, SMILES or a :class:`~registry.search.motifs.Motif`."""
     given = [x for x in (smarts, smiles, motif) if x is not None]
     if len(given) != 1:
-        raise UsageError("give exactly one of --smarts, --smiles, --motif (or --similar)")
+        raise UsageError("give exactly one of smarts, smiles, motif (or similar)")
     if smarts is not None:
         mols: tuple[Any, ...] = (compile_smarts(smarts),)
         kind, text, texts = "smarts", smarts.strip(), (smarts.strip(),)

@@ -45,7 +45,11 @@ def state(conn: Connection, counters: tuple[str, ...], tables: tuple[str, ...]) 
     found = dict(conn.rows("SELECT name, n FROM change_counter"))
     sizes = []
     for table in tables:
-        rows, max_id = conn.first(f"SELECT count(*), coalesce(max(id), 0) FROM {table}") or (0, 0)
+        # two subqueries: together in one SELECT, SQLite can use neither its count(*) nor its
+        # max(id) shortcut and scans the table (17 ms at 100k rows instead of 0.02 ms)
+        rows, max_id = conn.first(
+            f"SELECT (SELECT count(*) FROM {table}), (SELECT coalesce(max(id), 0) FROM {table})"
+        ) or (0, 0)
         sizes.append((table, TableState(int(rows), int(max_id))))
     return State(tuple((c, int(found.get(c, -1))) for c in counters), tuple(sizes))
 
