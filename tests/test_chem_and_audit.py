@@ -54,9 +54,7 @@ def test_history_chain_detects_an_edit(database) -> None:  # type: ignore[no-unt
         )
     with database.read() as conn:
         assert audit.verify_chain(conn) == []
-    database.write(
-        lambda conn: conn.execute("UPDATE revision SET actor = 'mallory' WHERE id = 2")
-    )
+    database.write(lambda conn: conn.execute("UPDATE revision SET actor = 'mallory' WHERE id = 2"))
     with database.read() as conn:
         problems = audit.verify_chain(conn)
     assert problems and problems[0].startswith("revision 2: content does not match its hash")
