@@ -280,7 +280,8 @@ def test_writers_killed_at_random_moments_leave_whole_batches(db_path: Path) -> 
     size, trials = 150, 24
     mid_transaction = 0
     for trial in range(trials):
-        inside = FORK.Value("i", 0)
+        # no lock: a child killed while holding it would block every later read of the value
+        inside = FORK.Value("i", 0, lock=False)
         _nothing_open(db_path)
         proc = FORK.Process(
             target=_endless_batches_marked, args=(str(db_path), trial, size, inside)
