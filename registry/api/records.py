@@ -9,7 +9,6 @@ from typing import TYPE_CHECKING, Any
 
 from registry.api.registry import actor_name
 from registry.errors import NotFoundError, UnitError
-from registry.record.fields import LISTING_COLUMNS, LISTING_SELECT
 from registry.storage.connection import Connection, utc
 from registry.storage.database import Database
 
@@ -117,6 +116,19 @@ def _normalized(entry: EntryInput, kinds: tuple[str, ...]) -> NormalizedEntry:
 # ---------------------------------------------------------------- reading
 
 
+class Rows(list):  # type: ignore[type-arg]
+    """Listing rows (one dict per measurement) that also convert to a pandas DataFrame."""
+
+    def to_frame(self) -> Any:
+        """The rows as a DataFrame, one column per listing column (pandas loads here)."""
+        import pandas as pd
+
+        from registry.record.fields import LISTING_COLUMNS
+
+        columns = list(self[0]) if self else list(LISTING_COLUMNS)
+        return pd.DataFrame.from_records(list(self), columns=columns)
+
+
 def list_measurements(
     database: Database,
     *,
@@ -131,12 +143,13 @@ def list_measurements(
     include_retracted: bool = False,
     ids: Sequence[int] | None = None,
     limit: int | None = None,
-) -> list[dict[str, Any]]:
+) -> Rows:
     """Measurements with their compound, filtered; retracted ones only when asked for.
 
     ``barrier`` is a range as chemists write it (``'>= 22 kcal/mol'``, ``'80-100 kJ/mol'``);
     ``barrier_min``/``barrier_max`` are single bounds, texts with a unit or floats in kJ/mol.
     ``solvent`` is a name, an alias, a class (``chlorinated`` …) or a part of the text.
+    The result is a list of dicts; ``.to_frame()`` gives a pandas DataFrame.
     """
     from registry.search.filters import make_filters, with_bounds
 
@@ -152,21 +165,11 @@ def list_measurements(
 
 def _listing(
     database: Database, filters: Any, ids: Sequence[int] | None, limit: int | None
-) -> list[dict[str, Any]]:
-    from registry.search.filters import conditions
+) -> Rows:
+    from registry.search.filters import listing_rows
 
-    names = list(LISTING_COLUMNS)
     with database.read() as conn:
-        where = conditions(conn, filters)
-        sql = f"{LISTING_SELECT} WHERE {where.sql()}"
-        if ids is not None:
-            rows = conn.rows_where_in(sql, "m.id", ids, where.params)
-            rows.sort(key=lambda r: r[0])
-            rows = rows[:limit] if limit else rows
-        else:
-            sql += " ORDER BY m.id" + (f" LIMIT {int(limit)}" if limit else "")
-            rows = conn.rows(sql, where.params)
-    return [dict(zip(names, r, strict=True)) for r in rows]
+        return Rows(listing_rows(conn, filters, ids=ids, limit=limit))
 
 
 def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from registry.errors import NotFoundError, UsageError
-from registry.record.fields import LISTING_COLUMNS, LISTING_FROM
+from registry.record.fields import LISTING_COLUMNS
 from registry.storage.connection import Connection
 from registry.storage.database import Database
 
@@ -231,23 +231,13 @@ def measurement_rows(
     them every measurement (retracted ones only with ``include_retracted``). ``ids`` narrows
     to those measurements.
     """
-    columns = {**LISTING_COLUMNS, **_DETAIL_COLUMNS}
-    sql = f"SELECT {', '.join(columns.values())} FROM {LISTING_FROM} WHERE "
-    with database.read() as conn:
-        if filters is not None:
-            from registry.search.filters import conditions
+    from registry.search import filters as filtering
 
-            where = conditions(conn, filters)
-            sql, params = sql + where.sql(), where.params
-        else:
-            sql += "1 = 1" if include_retracted else "m.status != 'retracted'"
-            params = {}
-        if ids is not None:
-            rows = sorted(conn.rows_where_in(sql, "m.id", ids, params), key=lambda r: r[0])
-        else:
-            rows = conn.rows(f"{sql} ORDER BY m.id", params)
-    names = list(columns)
-    return [dict(zip(names, r, strict=True)) for r in rows]
+    chosen = filters or filtering.Filters(include_retracted=include_retracted)
+    with database.read() as conn:
+        return filtering.listing_rows(
+            conn, chosen, ids=ids, columns={**LISTING_COLUMNS, **_DETAIL_COLUMNS}
+        )
 
 
 def measurements_for_report(

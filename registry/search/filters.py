@@ -338,3 +338,32 @@ def conditions(conn: Connection, filters: Filters) -> Where:
         )
         out.needs_compound = True
     return out
+
+
+def listing_rows(
+    conn: Connection,
+    filters: Filters,
+    *,
+    ids: Any = None,
+    limit: int | None = None,
+    columns: dict[str, str] | None = None,
+) -> list[dict[str, Any]]:
+    """The measurements passing ``filters`` as listing rows (dicts), in id order.
+
+    The one listing query: ``list``, exports and reports read through it. ``columns`` (name →
+    SQL over ``measurement m``, ``compound c``, ``process p``) default to
+    :data:`registry.record.fields.LISTING_COLUMNS`; ``ids`` narrows to those measurements.
+    """
+    from registry.record.fields import LISTING_COLUMNS, LISTING_FROM
+
+    chosen = columns or LISTING_COLUMNS
+    where = conditions(conn, filters)
+    sql = f"SELECT {', '.join(chosen.values())} FROM {LISTING_FROM} WHERE {where.sql()}"
+    if ids is not None:
+        rows = sorted(conn.rows_where_in(sql, "m.id", ids, where.params), key=lambda r: r[0])
+        rows = rows[:limit] if limit else rows
+    else:
+        sql += " ORDER BY m.id" + (f" LIMIT {int(limit)}" if limit else "")
+        rows = conn.rows(sql, where.params)
+    names = list(chosen)
+    return [dict(zip(names, r, strict=True)) for r in rows]
