@@ -13,13 +13,15 @@ Which fields can be edited, and where each is stored, is :mod:`registry.record.f
 from __future__ import annotations
 
 from collections.abc import Mapping
+from dataclasses import dataclass
+from dataclasses import field as dc_field
 from datetime import UTC, datetime
 from typing import Any
 
 from registry.admin.reread import reread, same_value, shift_mhz
 from registry.errors import NotFoundError, UnitError, UsageError
 from registry.record import fields, vocab
-from registry.record.entry import EntryError, EntryInput, normalize_entry
+from registry.record.entry import EntryError, EntryInput, NormalizedEntry, normalize_entry
 from registry.storage import audit
 from registry.storage.connection import Connection
 from registry.storage.database import Database, current_user
@@ -113,6 +115,25 @@ def _process_body(row: dict[str, Any] | None) -> dict[str, Any] | None:
     return None if row is None else {k: row[k] for k in ("kind", "sites", "nucleus")}
 
 
+@dataclass
+class _Stored:
+    """One measurement as it is stored: its row, compound, process and coalescence rows."""
+
+    m: dict[str, Any]
+    compound: dict[str, Any]
+    process: dict[str, Any] | None
+    coalescence: list[dict[str, Any]]
+
+
+@dataclass
+class _Change:
+    """What an edit writes: measurement columns, and before/after for the history."""
+
+    updates: dict[str, Any] = dc_field(default_factory=dict)
+    before: dict[str, Any] = dc_field(default_factory=dict)
+    after: dict[str, Any] = dc_field(default_factory=dict)
+
+
 def edit_measurement(
     database: Database,
     measurement_id: int,
@@ -123,9 +144,9 @@ def edit_measurement(
 ) -> dict[str, Any]:
     """Change fields of one measurement (texts in any notation); returns what changed.
 
-    ``changes`` maps entry fields (see :data:`EDITABLE`) to new texts; ``None`` clears a field.
-    Raises :class:`UnitError`/:class:`EntryError` when the edited entry does not normalize, in
-    which case nothing is written.
+    ``changes`` maps editable fields (:data:`registry.record.fields.EDITABLE`) to new texts;
+    ``None`` clears a field. Raises :class:`UnitError`/:class:`EntryError` when the edited
+    entry does not normalize, in which case nothing is written.
     """
     wanted = {canonical_field(k): v for k, v in changes.items()}
     if not wanted:
@@ -133,111 +154,126 @@ def edit_measurement(
     status = wanted.get("status")
     if "status" in wanted and (status is None or vocab.status_name(status) == "retracted"):
         raise UsageError(
-            "status: a measurement is retracted, with a reason the history keeps, not edited to 'retracted'"
+            "status: a measurement is retracted, with a reason the history keeps, "
+            "not edited to 'retracted'"
         )
     who = actor or current_user()
 
     def work(conn: Connection) -> dict[str, Any]:
-        of = {"id": measurement_id}
-        m = conn.record("SELECT * FROM measurement WHERE id = :id", of)
-        if m is None:
-            raise NotFoundError(f"no measurement with id {measurement_id}")
-        compound = conn.record(
-            "SELECT label, name FROM compound WHERE id = :id", {"id": m["compound_id"]}
-        )
-        process = None
-        if m["process_id"]:
-            process = conn.record(
-                "SELECT id, kind, sites, nucleus FROM process WHERE id = :id",
-                {"id": m["process_id"]},
-            )
-        coal_rows = conn.records(
-            "SELECT * FROM coalescence WHERE measurement_id = :id ORDER BY id", of
-        )
-        if len(coal_rows) > 1 and any(f in wanted for f in _COALESCENCE_FIELDS):
-            raise UsageError(
-                f"measurement {measurement_id} has {len(coal_rows)} coalescence observations; "
-                "Tc, Δν, J and populations can only be edited where there is one"
-            )
-        coal = coal_rows[0] if len(coal_rows) == 1 else None
-        inp = _stored_input(m, compound or {}, process, coal)
-        for name, text in wanted.items():
-            setattr(inp, name, text)
-            inp.units.pop(name, None)
-        if "field" in wanted:
-            inp.units["field"] = "MHz"  # as in 'add': a bare spectrometer frequency is in MHz
-        normalized, problems = normalize_entry(inp, known_process_kinds(conn))
-        if normalized is None:
-            if len(problems) == 1:
-                raise UnitError(problems[0].field, problems[0].text, problems[0].reason)
-            raise EntryError(problems)
-
-        before: dict[str, Any] = {}
-        after: dict[str, Any] = {}
-        updates: dict[str, Any] = {}
-        for column, new in normalized.measurement.items():
-            if _differs(m[column], new):
-                updates[column] = new
-                before[column], after[column] = m[column], new
-        if "solvent_text" in updates:
-            updates["solvent_id"] = (
-                solvent_index(conn).get(normalized.solvent_key) if normalized.solvent_key else None
-            )
-        if any(f in wanted for f in _PROCESS_FIELDS):
-            new_pid = resolve_processes(conn, [normalized], [m["compound_id"]])[0]
-            if new_pid != m["process_id"]:
-                updates["process_id"] = new_pid
-                before["process"] = _process_body(process)
-                after["process"] = normalized.process
-        if len(coal_rows) <= 1:
-            old_c = _coalescence_body(coal)
-            new_c = normalized.coalescence
-            if (old_c is None) != (new_c is None) or (
-                old_c is not None
-                and new_c is not None
-                and any(_differs(old_c.get(k), v) for k, v in new_c.items())
-            ):
-                if coal is not None and new_c is not None:
-                    conn.update("coalescence", new_c, id=coal["id"])
-                elif new_c is not None:
-                    conn.insert("coalescence", {**new_c, "measurement_id": m["id"]})
-                elif coal is not None:
-                    conn.execute("DELETE FROM coalescence WHERE id = :id", {"id": coal["id"]})
-                if old_c is not None and new_c is not None:
-                    moved = [k for k, v in new_c.items() if _differs(old_c.get(k), v)]
-                    old_c = {k: old_c.get(k) for k in moved}
-                    new_c = {k: new_c[k] for k in moved}
-                before["coalescence"], after["coalescence"] = old_c, new_c
-        if not after and not before:
+        stored = _load(conn, measurement_id, wanted)
+        normalized = _renormalized(conn, stored, wanted)
+        change = _measurement_change(conn, stored, normalized, wanted)
+        if len(stored.coalescence) <= 1:
+            _coalescence_change(conn, stored, normalized.coalescence, change)
+        if not change.after and not change.before:
             return {"id": measurement_id, "changed": False, "before": {}, "after": {}}
-        now = datetime.now(UTC)
-        updates["updated_at"] = now
-        conn.update("measurement", updates, id=measurement_id)
-        action = "status" if set(after) == {"status"} else "edit"
+        change.updates["updated_at"] = datetime.now(UTC)
+        conn.update("measurement", change.updates, id=measurement_id)
+        action = "status" if set(change.after) == {"status"} else "edit"
         audit.record(
-            conn,
-            entity="measurement",
-            entity_id=measurement_id,
-            action=action,
-            actor=who,
-            before=before,
-            after=after,
-            reason=reason,
-        )
-        revision = conn.scalar("SELECT max(id) FROM revision")
+            conn, entity="measurement", entity_id=measurement_id, action=action, actor=who,
+            before=change.before, after=change.after, reason=reason,
+        )  # fmt: skip
         return {
             "id": measurement_id,
             "changed": True,
             "action": action,
-            "revision": revision,
-            "before": before,
-            "after": after,
+            "revision": conn.scalar("SELECT max(id) FROM revision"),
+            "before": change.before,
+            "after": change.after,
         }
 
     result = database.write(work)
     if result["changed"]:
         result["findings"] = revalidate(database, measurement_id)
     return result
+
+
+def _load(conn: Connection, measurement_id: int, wanted: Mapping[str, Any]) -> _Stored:
+    of = {"id": measurement_id}
+    m = conn.record("SELECT * FROM measurement WHERE id = :id", of)
+    if m is None:
+        raise NotFoundError(f"no measurement with id {measurement_id}")
+    compound = conn.record(
+        "SELECT label, name FROM compound WHERE id = :id", {"id": m["compound_id"]}
+    )
+    process = None
+    if m["process_id"]:
+        process = conn.record(
+            "SELECT id, kind, sites, nucleus FROM process WHERE id = :id", {"id": m["process_id"]}
+        )
+    coalescence = conn.records(
+        "SELECT * FROM coalescence WHERE measurement_id = :id ORDER BY id", of
+    )
+    if len(coalescence) > 1 and any(f in wanted for f in _COALESCENCE_FIELDS):
+        raise UsageError(
+            f"measurement {measurement_id} has {len(coalescence)} coalescence observations; "
+            "Tc, Δν, J and populations can only be edited where there is one"
+        )
+    return _Stored(m, compound or {}, process, coalescence)
+
+
+def _renormalized(
+    conn: Connection, stored: _Stored, wanted: Mapping[str, str | None]
+) -> NormalizedEntry:
+    """The stored entry with the changes applied, normalized again as ``add`` would."""
+    single = stored.coalescence[0] if len(stored.coalescence) == 1 else None
+    inp = _stored_input(stored.m, stored.compound, stored.process, single)
+    for name, text in wanted.items():
+        setattr(inp, name, text)
+        inp.units.pop(name, None)
+    if "field" in wanted:
+        inp.units["field"] = "MHz"  # as in 'add': a bare spectrometer frequency is in MHz
+    normalized, problems = normalize_entry(inp, known_process_kinds(conn))
+    if normalized is None:
+        if len(problems) == 1:
+            raise UnitError(problems[0].field, problems[0].text, problems[0].reason)
+        raise EntryError(problems)
+    return normalized
+
+
+def _measurement_change(
+    conn: Connection, stored: _Stored, normalized: NormalizedEntry, wanted: Mapping[str, Any]
+) -> _Change:
+    """The measurement columns (and process) that differ after the edit."""
+    m, change = stored.m, _Change()
+    for column, new in normalized.measurement.items():
+        if _differs(m[column], new):
+            change.updates[column] = new
+            change.before[column], change.after[column] = m[column], new
+    if "solvent_text" in change.updates:
+        key = normalized.solvent_key
+        change.updates["solvent_id"] = solvent_index(conn).get(key) if key else None
+    if any(f in wanted for f in _PROCESS_FIELDS):
+        new_pid = resolve_processes(conn, [normalized], [m["compound_id"]])[0]
+        if new_pid != m["process_id"]:
+            change.updates["process_id"] = new_pid
+            change.before["process"] = _process_body(stored.process)
+            change.after["process"] = normalized.process
+    return change
+
+
+def _coalescence_change(
+    conn: Connection, stored: _Stored, new_c: dict[str, Any] | None, change: _Change
+) -> None:
+    """Write the coalescence row as the edit leaves it; note what moved in ``change``."""
+    coal = stored.coalescence[0] if stored.coalescence else None
+    old_c = _coalescence_body(coal)
+    moved = old_c is not None and new_c is not None
+    if (old_c is None) == (new_c is None) and not (
+        moved and any(_differs(old_c.get(k), v) for k, v in new_c.items())  # type: ignore[union-attr]
+    ):
+        return
+    if coal is not None and new_c is not None:
+        conn.update("coalescence", new_c, id=coal["id"])
+    elif new_c is not None:
+        conn.insert("coalescence", {**new_c, "measurement_id": stored.m["id"]})
+    elif coal is not None:
+        conn.execute("DELETE FROM coalescence WHERE id = :id", {"id": coal["id"]})
+    if old_c is not None and new_c is not None:
+        keys = [k for k, v in new_c.items() if _differs(old_c.get(k), v)]
+        old_c, new_c = {k: old_c.get(k) for k in keys}, {k: new_c[k] for k in keys}
+    change.before["coalescence"], change.after["coalescence"] = old_c, new_c
 
 
 def retract_measurement(

@@ -59,20 +59,13 @@ def export_measurements(
     out: str | Path,
     *,
     format: str | None = None,
-    compound: str | None = None,
-    method: str | None = None,
-    solvent: str | None = None,
-    process: str | None = None,
-    status: str | None = None,
-    barrier: str | None = None,
-    barrier_min: str | float | None = None,
-    barrier_max: str | float | None = None,
-    include_retracted: bool = False,
     ids: Sequence[int] | None = None,
     energy_unit: str = "kJ/mol",
     uncertainty: str = "paren",
+    **filters: Any,
 ) -> dict[str, Any]:
-    """Write the measurements the filters select (those of :func:`list_measurements`) to ``out``.
+    """Write the measurements the filters select (the keywords of :func:`list_measurements`)
+    to ``out``.
 
     ``format`` is csv, xlsx or json (reported texts, normalized values, findings, rate points;
     text cells a spreadsheet would evaluate get a leading apostrophe, which the importer strips
@@ -82,12 +75,9 @@ def export_measurements(
     Returns what was written: file, format and counts.
     """
     from registry.api.records import list_measurements
+    from registry.search.filters import listing_filters
 
-    filters: dict[str, Any] = dict(
-        compound=compound, method=method, solvent=solvent, process=process, status=status,
-        barrier=barrier, barrier_min=barrier_min, barrier_max=barrier_max,
-        include_retracted=include_retracted, ids=ids,
-    )  # fmt: skip
+    listing_filters(**filters)  # read and check the filters before anything is written
     kind = (format or Path(out).suffix.lstrip(".")).lower()
     if kind not in DATA_FORMATS + TABLE_FORMATS:
         raise UsageError(
@@ -98,9 +88,10 @@ def export_measurements(
         from registry.reports.tables import export_table
 
         return export_table(
-            database, out, format, energy_unit=energy_unit, uncertainty=uncertainty, **filters
-        )
+            database, out, format, energy_unit=energy_unit, uncertainty=uncertainty, ids=ids,
+            **filters,
+        )  # fmt: skip
     from registry.io.export import write_export
 
-    chosen = [r["id"] for r in list_measurements(database, **filters)]
+    chosen = [r["id"] for r in list_measurements(database, ids=ids, **filters)]
     return write_export(database, chosen, out, format)

@@ -132,35 +132,22 @@ class Rows(list):  # type: ignore[type-arg]
 def list_measurements(
     database: Database,
     *,
-    compound: str | None = None,
-    method: str | None = None,
-    solvent: str | None = None,
-    process: str | None = None,
-    status: str | None = None,
-    barrier: str | None = None,
-    barrier_min: str | float | None = None,
-    barrier_max: str | float | None = None,
-    include_retracted: bool = False,
     ids: Sequence[int] | None = None,
     limit: int | None = None,
+    **filters: Any,
 ) -> Rows:
     """Measurements with their compound, filtered; retracted ones only when asked for.
 
-    ``barrier`` is a range as chemists write it (``'>= 22 kcal/mol'``, ``'80-100 kJ/mol'``);
-    ``barrier_min``/``barrier_max`` are single bounds, texts with a unit or floats in kJ/mol.
-    ``solvent`` is a name, an alias, a class (``chlorinated`` …) or a part of the text.
+    The filters are keywords: ``compound`` (label or name contains), ``method``, ``solvent`` (a
+    name, an alias, a class such as ``chlorinated``, or a part of the text), ``process``,
+    ``status``, ``barrier`` (a range as chemists write it: ``'>= 22 kcal/mol'``,
+    ``'80-100 kJ/mol'``), ``barrier_min``/``barrier_max`` (texts with a unit, or floats in
+    kJ/mol) and ``include_retracted`` (see :func:`registry.search.filters.listing_filters`).
     The result is a list of dicts; ``.to_frame()`` gives a pandas DataFrame.
     """
-    from registry.search.filters import make_filters, with_bounds
+    from registry.search.filters import listing_filters
 
-    filters = with_bounds(
-        make_filters(
-            barrier=barrier, solvent=solvent, method=method, process=process, status=status,
-            compound=compound, include_retracted=include_retracted,
-        ),
-        barrier_min, barrier_max,
-    )  # fmt: skip
-    return _listing(database, filters, ids, limit)
+    return _listing(database, listing_filters(**filters), ids, limit)
 
 
 def _listing(

@@ -102,7 +102,7 @@ def find(
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
 ) -> None:
     """Every barrier measured on compounds with a substructure or motif, with filters."""
-    # long only by its option declarations: the body parses, calls api.find and renders
+    # long: only by its option declarations; the body parses, calls api.find and renders
     chosen = [x for x in (smarts, smiles, motif, similar) if x is not None]
     if len(chosen) != 1:
         raise UsageError("give exactly one of --smarts, --smiles, --motif, --similar")

@@ -18,10 +18,8 @@ from registry.record import fields, vocab
 from registry.record.nuclei import observe_frequency_mhz
 from registry.record.units import ParsedValue, parse_value
 
-#: value fields read on their own (the frequency first, Δν at it, log10 A without a unit)
-_PLAIN_VALUES = tuple(
-    f.name for f in fields.VALUE_FIELDS if f.name not in ("field", "dnu", "log10_a")
-)
+#: value fields read on their own (the frequency is read first and Δν at it)
+_PLAIN_VALUES = tuple(f.name for f in fields.VALUE_FIELDS if f.name not in ("field", "dnu"))
 
 
 @dataclass
@@ -153,7 +151,47 @@ def normalize_entry(
 ) -> tuple[NormalizedEntry | None, list[Problem]]:
     """Check and convert one entry; returns the entry (or None) and every problem found."""
     problems: list[Problem] = []
-    method = None
+    method, kind, status = _vocabulary(inp, known_kinds, problems)
+    values = _values(inp, problems)
+    ratio = _population(inp, problems)
+    rates = _rates(inp, problems)
+    if problems:
+        return None, problems
+    measurement = _measurement_columns(values)
+    tc, dg_t = values.get("tc"), values.get("dg_t")
+    if dg_t is None and tc is not None and values.get("dg") is not None:
+        measurement["dg_t_k"] = tc.value  # ΔG‡ reported at Tc
+    measurement.update(
+        label=text_of(inp.label),
+        method=method,
+        solvent_text=text_of(inp.solvent),
+        reference=text_of(inp.reference),
+        status=status,
+    )
+    compound = {
+        "label": text_of(inp.compound),
+        "name": text_of(inp.name),
+        "smiles_input": text_of(inp.smiles),
+    }
+    solvent = measurement["solvent_text"]
+    return (
+        NormalizedEntry(
+            compound,
+            _process(inp, kind),
+            measurement,
+            _coalescence(inp, values, ratio),
+            rates,
+            vocab.solvent_key(solvent) if solvent else None,
+        ),
+        [],
+    )
+
+
+def _vocabulary(
+    inp: EntryInput, known_kinds: tuple[str, ...], problems: list[Problem]
+) -> tuple[str | None, str | None, str]:
+    """Method, process kind and status in the registry's own words (problems collected)."""
+    method = kind = None
     if blank(inp.method):
         problems.append(Problem("method", "", f"required; one of {', '.join(vocab.METHODS)}"))
     else:
@@ -163,7 +201,6 @@ def normalize_entry(
             problems.append(Problem("method", str(inp.method), exc.reason))
     if blank(inp.smiles) and blank(inp.compound) and blank(inp.name):
         problems.append(Problem("compound", "", "give a SMILES, a compound label or a name"))
-    kind = None
     if not blank(inp.process):
         try:
             kind = vocab.process_kind_name(str(inp.process), known_kinds)
@@ -175,39 +212,51 @@ def normalize_entry(
             status = vocab.status_name(str(inp.status))
         except UnitError as exc:
             problems.append(Problem("status", str(inp.status), exc.reason))
+    return method, kind, status
 
+
+def _values(inp: EntryInput, problems: list[Problem]) -> dict[str, ParsedValue]:
+    """Every value field read in its canonical unit: the frequency first, Δν (in ppm) at the
+    observed nucleus' frequency; coalescence data checked for completeness."""
+    values: dict[str, ParsedValue] = {}
     field_v = _parse(inp, "field", problems)
-    mhz = field_v.value if field_v else None
-    values = {n: _parse(inp, n, problems) for n in _PLAIN_VALUES}
-    nucleus = normalize_nucleus(inp.nucleus)
+    if field_v is not None:
+        values["field"] = field_v
+        if field_v.value <= 0:
+            problems.append(
+                Problem("field", field_v.text, "the spectrometer frequency must be positive")
+            )
+    for name in _PLAIN_VALUES:
+        parsed = _parse(inp, name, problems)
+        if parsed is not None:
+            values[name] = parsed
     before = len(problems)
-    observe_mhz = _observe_mhz(mhz, nucleus, inp, problems)
+    mhz = field_v.value if field_v else None
+    observe_mhz = _observe_mhz(mhz, normalize_nucleus(inp.nucleus), inp, problems)
     dnu_refused = len(problems) > before
     dnu = None if dnu_refused else _parse(inp, "dnu", problems, mhz=observe_mhz)
-    log10_a = None
-    if not blank(inp.log10_a):
-        try:
-            log10_a = parse_value(inp.log10_a, "dimensionless", field="log10_a")
-        except UnitError as exc:
-            problems.append(Problem("log10_a", str(inp.log10_a), exc.reason))
-    ratio = None
-    if not blank(inp.population):
-        try:
-            ratio = parse_population_ratio(str(inp.population))
-        except UnitError as exc:
-            problems.append(Problem("population", str(inp.population), exc.reason))
-
-    tc = values["tc"]
-    if (tc is None) != (dnu is None) and not dnu_refused:
+    if dnu is not None:
+        values["dnu"] = dnu
+        if dnu.value <= 0:
+            problems.append(Problem("dnu", dnu.text, "Δν must be positive"))
+    if ("tc" in values) != (dnu is not None) and not dnu_refused:
         missing = "dnu" if dnu is None else "tc"
         problems.append(Problem(missing, "", "missing: coalescence data needs both Tc and Δν"))
-    if dnu is not None and dnu.value <= 0:
-        problems.append(Problem("dnu", dnu.text, "Δν must be positive"))
-    if field_v is not None and field_v.value <= 0:
-        problems.append(
-            Problem("field", field_v.text, "the spectrometer frequency must be positive")
-        )
+    return values
 
+
+def _population(inp: EntryInput, problems: list[Problem]) -> float | None:
+    if blank(inp.population):
+        return None
+    try:
+        return parse_population_ratio(str(inp.population))
+    except UnitError as exc:
+        problems.append(Problem("population", str(inp.population), exc.reason))
+        return None
+
+
+def _rates(inp: EntryInput, problems: list[Problem]) -> list[dict[str, Any]]:
+    """The rate points (T, k) of the entry, each read with its unit."""
     rates = []
     for i, (t_text, k_text) in enumerate(inp.rates, start=1):
         try:
@@ -217,98 +266,67 @@ def normalize_entry(
             k = parse_value(k_text, "rate", field=f"rate {i} k", default_unit=inp.units.get("k"))
             if k.value <= 0:
                 raise UnitError(f"rate {i} k", k_text, "a rate constant must be positive")
-            rates.append(
-                {
-                    "t_k": t.value,
-                    "t_err_k": t.error,
-                    "t_text": t.text,
-                    "k_per_s": k.value,
-                    "k_err_per_s": k.error,
-                    "k_text": k.text,
-                }
-            )
         except UnitError as exc:
             problems.append(Problem(exc.field, exc.text, exc.reason))
+            continue
+        rates.append(
+            {
+                "t_k": t.value,
+                "t_err_k": t.error,
+                "t_text": t.text,
+                "k_per_s": k.value,
+                "k_err_per_s": k.error,
+                "k_text": k.text,
+            }
+        )
+    return rates
 
-    if problems:
-        return None, problems
 
-    def v(name: str, attr: str = "value") -> Any:
-        pv = values[name]
-        return getattr(pv, attr) if pv is not None else None
-
-    dg_t_k = v("dg_t")
-    if dg_t_k is None and tc is not None and values["dg"] is not None:
-        dg_t_k = tc.value
-    measurement = {
-        "label": text_of(inp.label),
-        "method": method,
-        "solvent_text": text_of(inp.solvent),
-        "field_mhz": mhz,
-        "field_text": field_v.text if field_v else None,
-        "t_min_k": v("t_min"),
-        "t_min_text": v("t_min", "text"),
-        "t_max_k": v("t_max"),
-        "t_max_text": v("t_max", "text"),
-        "dg_kj_mol": v("dg"),
-        "dg_err_kj_mol": v("dg", "error"),
-        "dg_text": v("dg", "text"),
-        "dg_t_k": dg_t_k,
-        "dg_t_text": v("dg_t", "text"),
-        "dh_kj_mol": v("dh"),
-        "dh_err_kj_mol": v("dh", "error"),
-        "dh_text": v("dh", "text"),
-        "ds_j_mol_k": v("ds"),
-        "ds_err_j_mol_k": v("ds", "error"),
-        "ds_text": v("ds", "text"),
-        "ea_kj_mol": v("ea"),
-        "ea_err_kj_mol": v("ea", "error"),
-        "ea_text": v("ea", "text"),
-        "log10_a": log10_a.value if log10_a else None,
-        "log10_a_err": log10_a.error if log10_a else None,
-        "log10_a_text": log10_a.text if log10_a else None,
-        "reference": text_of(inp.reference),
-        "status": status,
+def _stored(f: fields.Field, parsed: ParsedValue | None) -> dict[str, Any]:
+    """The columns one value field fills (text, canonical value, uncertainty)."""
+    out: dict[str, Any] = {
+        f.text_column: parsed.text if parsed else None,
+        f.value_column: parsed.value if parsed else None,
     }
-    coalescence = None
-    if tc is not None and dnu is not None:
-        jv = values["j"]
-        coalescence = {
-            "tc_k": tc.value,
-            "tc_err_k": tc.error,
-            "tc_text": tc.text,
-            "dnu_hz": dnu.value,
-            "dnu_err_hz": dnu.error,
-            "dnu_text": dnu.text,
-            "j_hz": jv.value if jv else None,
-            "j_text": jv.text if jv else None,
-            "population_ratio": ratio,
-            "population_text": text_of(inp.population),
-            "field_mhz": mhz,
-            "field_text": field_v.text if field_v else None,
-        }
-    compound = {
-        "label": text_of(inp.compound),
-        "name": text_of(inp.name),
-        "smiles_input": text_of(inp.smiles),
-    }
-    process = None
-    if kind is not None:
-        process = {
-            "kind": kind,
-            "sites": text_of(inp.sites) or "",
-            "nucleus": normalize_nucleus(inp.nucleus),
-        }
-    elif not blank(inp.sites) or not blank(inp.nucleus):
-        process = {
-            "kind": "other",
-            "sites": text_of(inp.sites) or "",
-            "nucleus": normalize_nucleus(inp.nucleus),
-        }
-    solvent_key = (
-        vocab.solvent_key(measurement["solvent_text"]) if measurement["solvent_text"] else None
+    if f.error_column:
+        out[f.error_column] = parsed.error if parsed else None
+    return out
+
+
+def _measurement_columns(values: dict[str, ParsedValue]) -> dict[str, Any]:
+    columns: dict[str, Any] = {}
+    for f in fields.stored_values("measurement"):
+        columns.update(_stored(f, values.get(f.name)))
+    return columns
+
+
+def _coalescence(
+    inp: EntryInput, values: dict[str, ParsedValue], ratio: float | None
+) -> dict[str, Any] | None:
+    if "tc" not in values or "dnu" not in values:
+        return None
+    row: dict[str, Any] = {}
+    for f in fields.stored_values("coalescence"):
+        row.update(_stored(f, values.get(f.name)))
+    field_v = values.get("field")
+    row.update(
+        population_ratio=ratio,
+        population_text=text_of(inp.population),
+        field_mhz=field_v.value if field_v else None,
+        field_text=field_v.text if field_v else None,
     )
-    return NormalizedEntry(compound, process, measurement, coalescence, rates, solvent_key), []
+    return row
+
+
+def _process(inp: EntryInput, kind: str | None) -> dict[str, Any] | None:
+    """What moves: the kind given, or ``other`` when only sites or a nucleus are given."""
+    if kind is None and blank(inp.sites) and blank(inp.nucleus):
+        return None
+    return {
+        "kind": kind or "other",
+        "sites": text_of(inp.sites) or "",
+        "nucleus": normalize_nucleus(inp.nucleus),
+    }
 
 
 def _observe_mhz(

@@ -92,31 +92,16 @@ def _canonical_energy(text: str) -> str:
 def table_rows(
     database: Database,
     *,
-    compound: str | None = None,
-    method: str | None = None,
-    solvent: str | None = None,
-    process: str | None = None,
-    status: str | None = None,
-    barrier: str | None = None,
-    barrier_min: str | float | None = None,
-    barrier_max: str | float | None = None,
-    include_retracted: bool = False,
     ids: Sequence[int] | None = None,
     limit: int | None = None,
+    **filters: Any,
 ) -> list[dict[str, Any]]:
-    """The rows a table needs: the measurements a listing with these filters selects (same
-    filters, same meaning as ``registry.api.list_measurements``), with ΔH‡/ΔS‡ errors."""
+    """The rows a table needs: the measurements a listing with these filters selects (the
+    keywords of :func:`registry.search.filters.listing_filters`), with ΔH‡/ΔS‡ errors."""
     from registry.reports.gather import measurement_rows
-    from registry.search.filters import make_filters, with_bounds
+    from registry.search.filters import listing_filters
 
-    filters = with_bounds(
-        make_filters(
-            barrier=barrier, solvent=solvent, method=method, process=process, status=status,
-            compound=compound, include_retracted=include_retracted,
-        ),
-        barrier_min, barrier_max,
-    )  # fmt: skip
-    rows = measurement_rows(database, filters, ids=ids)
+    rows = measurement_rows(database, listing_filters(**filters), ids=ids)
     return rows[:limit] if limit else rows
 
 

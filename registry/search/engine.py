@@ -94,7 +94,7 @@ def find(
     ``output="csv"`` is for a caller that will only call :meth:`FindResult.write_csv`: on a
     SQLite registry the rows then stay ready CSV lines of the measurement listing.
     """
-    # ~85 lines: the steps share one read snapshot, from the first cache check to the last row
+    # long: the steps share one read snapshot, from the first cache check to the last row
     _check(query, similar, min_similarity, limit)
     if output not in ("rows", "csv"):
         raise ValueError(f"output={output!r}: 'rows' or 'csv'")

@@ -340,6 +340,31 @@ def conditions(conn: Connection, filters: Filters) -> Where:
     return out
 
 
+def listing_filters(
+    *,
+    compound: str | None = None,
+    method: str | None = None,
+    solvent: str | list[str] | None = None,
+    process: str | None = None,
+    status: str | None = None,
+    barrier: str | None = None,
+    barrier_min: str | float | None = None,
+    barrier_max: str | float | None = None,
+    include_retracted: bool = False,
+) -> Filters:
+    """The filters a listing takes (``list``, exports, paper tables), read and checked.
+
+    ``barrier`` is a range as chemists write it (``'>= 22 kcal/mol'``, ``'80-100 kJ/mol'``);
+    ``barrier_min``/``barrier_max`` are single bounds, texts with a unit or floats in kJ/mol;
+    ``solvent`` a name, an alias, a class (``chlorinated`` …) or a part of the text.
+    """
+    found = make_filters(
+        barrier=barrier, solvent=solvent, method=method, process=process, status=status,
+        compound=compound, include_retracted=include_retracted,
+    )  # fmt: skip
+    return with_bounds(found, barrier_min, barrier_max)
+
+
 def listing_rows(
     conn: Connection,
     filters: Filters,

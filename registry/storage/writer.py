@@ -113,13 +113,10 @@ def _compound_row(
     return row
 
 
-def resolve_compounds(
-    conn: Connection,
-    entries: Sequence[NormalizedEntry],
-    structures: Sequence[Structure | None],
-    now: datetime,
-) -> tuple[list[int], int]:
-    """Compound id for each entry, inserting the ones not yet registered (matched by InChIKey, then label)."""
+def _registered(
+    conn: Connection, entries: Sequence[NormalizedEntry], structures: Sequence[Structure | None]
+) -> tuple[dict[str, tuple[int, str | None]], dict[str, tuple[int, str | None]], dict[str, int]]:
+    """Compounds already registered, by InChIKey, by label and (no structure, no label) by name."""
     keys = {s.inchikey for s in structures if s is not None and s.inchikey}
     labels = {e.compound.get("label") for e in entries if e.compound.get("label")}
     by_key: dict[str, tuple[int, str | None]] = {}
@@ -144,6 +141,17 @@ def resolve_compounds(
         )
     ):
         by_name.setdefault(name, cid)
+    return by_key, by_label, by_name
+
+
+def resolve_compounds(
+    conn: Connection,
+    entries: Sequence[NormalizedEntry],
+    structures: Sequence[Structure | None],
+    now: datetime,
+) -> tuple[list[int], int]:
+    """Compound id for each entry, inserting the ones not yet registered (matched by InChIKey, then label)."""
+    by_key, by_label, by_name = _registered(conn, entries, structures)
     new_rows: list[dict[str, Any]] = []
     pending: dict[str, int] = {}  # key (inchikey or label or name) → index in new_rows
     slots: list[tuple[str, int]] = []  # ("id", id) or ("new", index)
