@@ -148,7 +148,7 @@ def test_backup_then_restore_into_a_new_file(cli, filled: Path, tmp_path: Path) 
     again = cli("backup", str(dest))
     assert (again.exit_code, again.stderr) == (
         2,
-        f"error: {dest} exists; choose another name or add --force to replace it\n",
+        f"error: {dest} exists; choose another name, or allow replacing it (overwrite)\n",
     )
     assert cli("backup", str(dest), "--force").exit_code == 0
     target = tmp_path / "restored.sqlite"
@@ -189,7 +189,7 @@ def test_restore_over_a_registry_needs_force_and_keeps_a_safety_copy(
     refused = cli("restore", str(dest))
     assert refused.exit_code == 2
     assert refused.stderr == (
-        f"error: {filled} exists; add --force to replace its content "
+        f"error: {filled} exists; allow replacing its content (force) "
         "(a safety backup of the current content is taken first)\n"
     )
     done = cli("restore", str(dest), "--force")

@@ -311,7 +311,7 @@ def test_opening_refuses_with_messages_that_say_what_to_do(tmp_path: Path) -> No
     with pytest.raises(DatabaseError) as info:
         store.open_registry(str(missing))
     assert str(info.value) == (
-        f"no registry at {missing}; create one with 'fluxledger init' or choose one with --db"
+        f"no registry at {missing}; create one with 'fluxledger init' or give an existing one"
     )
     junk = tmp_path / "junk.sqlite"
     junk.write_bytes(b"this is not a database file" * 100)

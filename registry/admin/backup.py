@@ -110,7 +110,7 @@ def backup(database: Database, dest: str | Path, *, overwrite: bool = False) -> 
     if not target.parent.is_dir():
         raise UsageError(f"folder {target.parent} does not exist")
     if target.exists() and not overwrite:
-        raise UsageError(f"{target} exists; choose another name or add --force to replace it")
+        raise UsageError(f"{target} exists; choose another name, or allow replacing it (overwrite)")
     started = time.perf_counter()
     source = _connect(path)
     try:
@@ -170,7 +170,7 @@ def restore(db: str, source: str | Path, *, force: bool = False) -> dict[str, An
         exists = target.exists() and target.stat().st_size > 0
         if exists and not force:
             raise UsageError(
-                f"{target} exists; add --force to replace its content "
+                f"{target} exists; allow replacing its content (force) "
                 "(a safety backup of the current content is taken first)"
             )
         with _temporary(target) as tmp:

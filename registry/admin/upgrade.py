@@ -62,8 +62,8 @@ def upgrade(
         if not no_backup:
             if not database.is_sqlite:
                 raise UsageError(
-                    "back the server database up with its own tools (pg_dump) first, then run "
-                    "'fluxledger db upgrade --no-backup'"
+                    "back the server database up with its own tools (pg_dump) first, then "
+                    "upgrade without a backup of ours (no_backup)"
                 )
             path = sqlite_file(database, "backup")
             folder = Path(backup_dir).expanduser() if backup_dir else path.parent

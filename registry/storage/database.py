@@ -368,7 +368,7 @@ def open_database(db: str, *, must_exist: bool = True) -> Database:
     if path is not None:
         if must_exist and not path.exists():
             raise DatabaseError(
-                f"no registry at {path}; create one with 'fluxledger init' or choose one with --db"
+                f"no registry at {path}; create one with 'fluxledger init' or give an existing one"
             )
         if not path.parent.exists():
             raise DatabaseError(f"folder {path.parent} does not exist")
