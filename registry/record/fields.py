@@ -171,9 +171,15 @@ def field(name: str) -> Field:
     return BY_NAME[name]
 
 
+_STORED: dict[str, tuple[Field, ...]] = {}
+for _f in FIELDS:
+    if _f.is_value:
+        _STORED[_f.table] = (*_STORED.get(_f.table, ()), _f)
+
+
 def stored_values(table: str) -> tuple[Field, ...]:
     """The value fields stored in one table (``measurement``, ``coalescence``, ``rate_point``)."""
-    return tuple(f for f in FIELDS if f.is_value and f.table == table)
+    return _STORED.get(table, ())
 
 
 def quantity_of(name: str) -> str:
