@@ -177,15 +177,19 @@ class Connection:
         if missing:
             rows = [{**r, **missing} for r in rows]
             shape += list(missing)
-        ids: list[int] = []
-        if new_ids:
-            ids = self._new_ids(table, len(rows))
+        ids = self._new_ids(table, len(rows)) if new_ids else []
+        self._insert_rows(table, shape, rows, ids)
+        return ids
+
+    def _insert_rows(
+        self, table: str, shape: list[str], rows: Sequence[Mapping[str, Any]], ids: list[int]
+    ) -> None:
+        if ids:
             rows = [{"id": i, **r} for i, r in zip(ids, rows, strict=True)]
             shape = ["id", *shape]
         names = ", ".join(shape)
         marks = ", ".join(f":{c}" for c in shape)
         self.execute_many(f"INSERT INTO {table} ({names}) VALUES ({marks})", rows)
-        return ids
 
     def update(self, table: str, values: Mapping[str, Any], *, id: int) -> int:
         """Set columns of the row with this id; the number of rows changed (0 or 1)."""
@@ -229,6 +233,30 @@ class SQLiteConnection(Connection):
     def execute_many(self, sql: str, rows: Sequence[Mapping[str, Any]]) -> None:
         if rows:
             self.raw.executemany(sql, _with_datetime_texts(rows)).close()
+
+    def _insert_rows(
+        self, table: str, shape: list[str], rows: Sequence[Mapping[str, Any]], ids: list[int]
+    ) -> None:
+        # positional parameters: SQLite then needs no name lookup per value of a large batch
+        columns = ["id", *shape] if ids else shape
+        marks = ", ".join("?" * len(columns))
+        sql = f"INSERT INTO {table} ({', '.join(columns)}) VALUES ({marks})"
+        stamped = [i for i, k in enumerate(shape) if isinstance(rows[0].get(k), datetime)]
+        seen: dict[datetime, str] = {}
+
+        def values(row: Mapping[str, Any]) -> list[Any]:
+            out = [row[k] for k in shape]
+            for i in stamped:  # a batch shares its timestamps: each converted once
+                v = out[i]
+                if isinstance(v, datetime):
+                    text = seen.get(v)
+                    out[i] = text if text is not None else seen.setdefault(v, _datetime_text(v))
+            return out
+
+        params: Any = map(values, rows)
+        if ids:
+            params = ([i, *p] for i, p in zip(ids, params, strict=True))
+        self.raw.executemany(sql, params).close()
 
     def _new_ids(self, table: str, count: int) -> list[int]:
         # what SQLite itself would hand out (no AUTOINCREMENT tables): the write lock is ours
