@@ -16,6 +16,7 @@ import random
 import signal
 import sqlite3
 import subprocess
+import sys
 import time
 from dataclasses import replace
 from pathlib import Path
@@ -32,7 +33,7 @@ from registry.storage.connection import Connection
 from registry.storage.writer import write_entries
 
 FORK = multiprocessing.get_context("fork")
-FLUXLEDGER = Path(__file__).resolve().parent.parent / ".venv" / "bin" / "fluxledger"
+FLUXLEDGER = Path(sys.executable).with_name("fluxledger")  # the command installed beside this Python
 
 #: real structures, shared by all writers so that they race to register the same compounds
 SMILES = ["CC(=O)N(C)C", "CN(C)C=O", "CN(C)C(=O)c1ccccc1", "C1CCCCC1", "Cc1ccccc1-c1ccccc1C"]
