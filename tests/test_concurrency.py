@@ -33,7 +33,8 @@ from registry.storage.connection import Connection
 from registry.storage.writer import write_entries
 
 FORK = multiprocessing.get_context("fork")
-FLUXLEDGER = Path(sys.executable).with_name("fluxledger")  # the command installed beside this Python
+#: the command installed beside the Python that runs the tests
+FLUXLEDGER = Path(sys.executable).with_name("fluxledger")
 
 #: real structures, shared by all writers so that they race to register the same compounds
 SMILES = ["CC(=O)N(C)C", "CN(C)C=O", "CN(C)C(=O)c1ccccc1", "C1CCCCC1", "Cc1ccccc1-c1ccccc1C"]
