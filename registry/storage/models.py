@@ -121,8 +121,11 @@ class Measurement(Base):
     __table_args__ = (
         Index("ix_measurement_dg_kj_mol", "dg_kj_mol"),
         Index("ix_measurement_match_key", "compound_id", "process_id", "method", "solvent_text"),
+        Index("ix_measurement_uid", "uid", unique=True),
     )
     id: Mapped[int] = mapped_column(Integer, primary_key=True)
+    #: a random identifier that travels with the measurement through exports and registries
+    uid: Mapped[str | None] = mapped_column(String(32))
     compound_id: Mapped[int] = mapped_column(ForeignKey("compound.id"), index=True)
     process_id: Mapped[int | None] = mapped_column(ForeignKey("process.id"))
     label: Mapped[str | None] = mapped_column(String(128))
@@ -269,3 +272,28 @@ class ChangeCounter(Base):
     __tablename__ = "change_counter"
     name: Mapped[str] = mapped_column(String(32), primary_key=True)
     n: Mapped[int] = mapped_column(BigInteger)
+
+
+class ImportSnapshot(Base):
+    """What one import's file said about one measurement (texts per field), for later imports
+    of the same sheet to tell the file's changes from the registry's."""
+
+    __tablename__ = "import_snapshot"
+    id: Mapped[int] = mapped_column(Integer, primary_key=True)
+    measurement_id: Mapped[int] = mapped_column(ForeignKey("measurement.id"), index=True)
+    batch_id: Mapped[int] = mapped_column(ForeignKey("import_batch.id"))
+    source_row: Mapped[int | None] = mapped_column(Integer)
+    fields_json: Mapped[str] = mapped_column(Text)
+
+
+class VocabAlias(Base):
+    """A spelling a group added for a method, process kind, solvent or nucleus."""
+
+    __tablename__ = "vocab_alias"
+    __table_args__ = (UniqueConstraint("kind", "alias"),)
+    id: Mapped[int] = mapped_column(Integer, primary_key=True)
+    kind: Mapped[str] = mapped_column(String(16))
+    alias: Mapped[str] = mapped_column(String(128))
+    target: Mapped[str] = mapped_column(String(128))
+    created_by: Mapped[str] = mapped_column(String(128))
+    created_at: Mapped[datetime] = mapped_column(DateTime(timezone=True))

@@ -8,6 +8,7 @@ write transaction: a failure anywhere leaves nothing behind.
 from __future__ import annotations
 
 import json
+import uuid
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import UTC, datetime
@@ -268,6 +269,7 @@ def write_entries(
             compound_id=cid,
             process_id=pid,
             solvent_id=solvents.get(entry.solvent_key) if entry.solvent_key else None,
+            uid=uuid.uuid4().hex,
             entered_by=actor,
             entered_at=now,
             updated_at=None,
