@@ -59,12 +59,16 @@ def filled(cli, db_path: Path) -> Path:  # type: ignore[no-untyped-def]
 def test_verify_a_clean_registry(cli, filled: Path) -> None:  # type: ignore[no-untyped-def]
     result = cli("verify")
     assert result.exit_code == 0, result.stdout
+    head = api.history_anchor(str(filled))
+    assert head is not None and head.startswith("3:") and len(head) == 2 + 16
     assert result.stdout.splitlines() == [
         f"verify sqlite:///{filled}",
         "  ok      integrity",
         "  ok      foreign keys",
         "  ok      schema  (at head " + migrate.head_revision() + "; tables match the models)",
-        "  ok      history  (3 revisions, hash chain)",
+        f"  ok      history  (3 revisions, hash chain, head {head})",
+        "  ok      accounted  (measurements and acceptances)",
+        "  ok      numbers  (every stored number finite)",
         "  ok      values  (12 reported values read again)",
         "all checks passed",
     ]
@@ -75,6 +79,8 @@ def test_verify_a_clean_registry(cli, filled: Path) -> None:  # type: ignore[no-
         "foreign keys",
         "schema",
         "history",
+        "accounted",
+        "numbers",
         "values",
     ]
 
@@ -105,7 +111,8 @@ def test_verify_finds_an_edited_revision_and_a_broken_link(cli, filled: Path) ->
     assert _failed(_verify(filled)) == {
         "history": [
             "revision 3: previous-hash link broken (a revision before it was changed or removed)"
-        ]
+        ],
+        "accounted": ["measurement 2 has no revision that created it (inserted by hand?)"],
     }
     assert cli("verify").exit_code == 1
 

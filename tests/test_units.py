@@ -176,3 +176,23 @@ def test_repeated_values_read_once_and_errors_name_their_own_field() -> None:
         with pytest.raises(UnitError) as caught:
             parse_value("20", "frequency", field=field)
         assert caught.value.field == field
+
+
+@pytest.mark.parametrize(
+    ("text", "quantity"),
+    [
+        ("1e308 kcal/mol", "energy"),  # finite as written, infinite in kJ/mol (× 4.184)
+        ("1e300 ± 1e308 kcal/mol", "energy"),
+        ("2e15 K", "temperature"),
+        ("1e16 s-1", "rate"),
+    ],
+)
+def test_values_that_would_not_be_finite_or_plausible_are_refused(text: str, quantity: str) -> None:
+    with pytest.raises(UnitError) as info:
+        parse_value(text, quantity, field="dg")
+    assert info.value.field == "dg" and info.value.text == text
+
+
+def test_the_largest_rates_the_trade_meets_are_kept() -> None:
+    # k_B·T/h at 1000 K is ~2.1e13 s⁻¹ (CODATA constants), well inside what is stored
+    assert parse_value("2e13 s-1", "rate").value == 2e13

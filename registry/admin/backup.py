@@ -136,11 +136,13 @@ def _fsync_dir(folder: Path) -> None:
 
 
 def _counts(path: Path) -> dict[str, Any]:
+    """Schema, counts and the history's head (``REVISION:HASH``) of a registry file."""
     conn = _connect(path, readonly=True)
     try:
         schema = conn.execute("SELECT version_num FROM alembic_version").fetchone()
         measurements = conn.execute("SELECT count(*) FROM measurement").fetchone()[0]
         revisions = conn.execute("SELECT count(*) FROM revision").fetchone()[0]
+        head = conn.execute("SELECT id, hash FROM revision ORDER BY id DESC LIMIT 1").fetchone()
     except sqlite3.DatabaseError as exc:
         raise DatabaseError(f"{path} is not a fluxledger registry: {exc}") from exc
     finally:
@@ -149,6 +151,7 @@ def _counts(path: Path) -> dict[str, Any]:
         "schema_version": schema[0] if schema else None,
         "measurements": measurements,
         "revisions": revisions,
+        "anchor": f"{head[0]}:{head[1][:16]}" if head else None,
     }
 
 

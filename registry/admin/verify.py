@@ -7,6 +7,7 @@ import math
 from pathlib import Path
 from typing import Any
 
+from registry.admin import tamper
 from registry.admin.reread import reread_value, same_value, shift_mhz
 from registry.errors import UnitError
 from registry.record import fields
@@ -19,11 +20,13 @@ from registry.storage.database import Database, head_revision, open_database
 MAX_LISTED = 50
 
 
-def verify_file(path: Path, *, allow_older_schema: bool = False) -> dict[str, Any]:
+def verify_file(
+    path: Path, *, allow_older_schema: bool = False, anchor: str | None = None
+) -> dict[str, Any]:
     """:func:`verify` on a registry file that is opened for this check only."""
     database = open_database(str(path), must_exist=True)
     try:
-        return verify(database, allow_older_schema=allow_older_schema)
+        return verify(database, allow_older_schema=allow_older_schema, anchor=anchor)
     finally:
         database.close()
 
@@ -38,12 +41,16 @@ def _check(name: str, problems: list[str], detail: str = "") -> dict[str, Any]:
     }
 
 
-def verify(database: Database, *, allow_older_schema: bool = False) -> dict[str, Any]:
+def verify(
+    database: Database, *, allow_older_schema: bool = False, anchor: str | None = None
+) -> dict[str, Any]:
     """Every check a shared registry should pass; ``ok`` is False when any finds a problem.
 
     integrity (SQLite ``PRAGMA integrity_check``), foreign keys (``PRAGMA foreign_key_check``),
     schema (at the migration head, tables as the models say), history (the revision hash chain
-    is intact) and values (each ``*_text`` read again gives the stored canonical float).
+    is intact and, given the ``anchor`` a user kept, still reaches it), accounted (the history
+    accounts for every measurement and acceptance), numbers (every stored number is finite)
+    and values (each ``*_text`` read again gives the stored canonical float).
     """
     checks: list[dict[str, Any]] = []
     if database.is_sqlite:
@@ -66,7 +73,14 @@ def verify(database: Database, *, allow_older_schema: bool = False) -> dict[str,
     with database.read() as conn:
         chain = audit.verify_chain(conn)
         revisions = conn.scalar("SELECT count(*) FROM revision")
-    checks.append(_check("history", chain, f"{revisions} revisions, hash chain"))
+        head = tamper.anchor(conn)
+        detail = f"{revisions} revisions, hash chain, head {head or '(none)'}"
+        if anchor is not None:
+            chain += tamper.anchor_problems(conn, anchor)
+            detail += f", reaches the kept anchor {anchor}"
+        checks.append(_check("history", chain, detail))
+        checks.append(_check("accounted", tamper.unaccounted(conn), "measurements and acceptances"))
+        checks.append(_check("numbers", tamper.non_finite(conn), "every stored number finite"))
     problems, count = value_problems(database)
     checks.append(_check("values", problems, f"{count} reported values read again"))
     return _report(database, checks)

@@ -29,7 +29,14 @@ Grouped by what they act on:
 
 from __future__ import annotations
 
-from registry.api.admin import backup, restore, schema_state, upgrade_schema, verify
+from registry.api.admin import (
+    backup,
+    history_anchor,
+    restore,
+    schema_state,
+    upgrade_schema,
+    verify,
+)
 from registry.api.calc import calc_coalescence, calc_eyring, calc_halflife, calc_plan, calc_rate
 from registry.api.checks import accept_finding, check
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
@@ -90,6 +97,7 @@ __all__ = [
     "get_measurement",
     "get_motif",
     "history",
+    "history_anchor",
     "import_table",
     "init_registry",
     "list_measurements",

@@ -53,12 +53,26 @@ def restore(db: str, source: str | Path, *, force: bool = False) -> dict[str, An
     return run(db, source, force=force)
 
 
-def verify(registry: Database | str) -> dict[str, Any]:
-    """Integrity, foreign keys, schema, history chain, and every value against its text;
-    ``ok`` is False when any check finds a problem."""
+def verify(registry: Database | str, *, anchor: str | None = None) -> dict[str, Any]:
+    """Integrity, foreign keys, schema, history chain (reaching ``anchor``, the
+    ``REVISION:HASH`` a user kept from :func:`history_anchor` when given), the history
+    accounting for every row, finite numbers, and every value against its text; ``ok`` is
+    False when any check finds a problem."""
     from registry.admin.verify import verify as run
 
-    return _on(registry, run)
+    return _on(registry, lambda database: run(database, anchor=anchor))
+
+
+def history_anchor(registry: Database | str) -> str | None:
+    """The head of the history as ``REVISION:HASH``: keep it somewhere safe, and give it to
+    :func:`verify` later to prove no revision was removed since (None for an empty history)."""
+    from registry.admin.tamper import anchor
+
+    def read(database: Database) -> str | None:
+        with database.read() as conn:
+            return anchor(conn)
+
+    return _on(registry, read)
 
 
 def schema_state(db: str) -> dict[str, Any]:

@@ -67,6 +67,11 @@ def history(
         typer.echo("(no revisions)")
         return
     typer.echo(_table(rows))
+    head = api.history_anchor(database)
+    if head:
+        typer.echo(
+            f"history anchor {head} (keep it: 'fluxledger verify --anchor {head}')", err=True
+        )
 
 
 def _table(rows: list[dict[str, Any]]) -> str:

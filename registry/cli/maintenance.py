@@ -42,6 +42,11 @@ def backup(
         f"{result['revisions']} revisions, schema {result['schema_version']}, "
         f"{result['bytes'] / 1e6:.1f} MB)"
     )
+    if result["anchor"]:
+        typer.echo(
+            f"history anchor {result['anchor']}: keep it; 'fluxledger verify --anchor "
+            f"{result['anchor']}' later shows whether any revision was removed since"
+        )
 
 
 def restore(
@@ -76,6 +81,12 @@ def restore(
 
 def verify(
     ctx: typer.Context,
+    anchor: str = typer.Option(
+        None,
+        "--anchor",
+        help="A history anchor REVISION:HASH kept from 'backup' or 'history': check that the "
+        "history still reaches it (no revision removed or rewritten since).",
+    ),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Check the registry: integrity, foreign keys, schema, history chain, values vs their texts.
@@ -84,7 +95,7 @@ def verify(
     """
     from registry import api
 
-    report = api.verify(state(ctx).db)
+    report = api.verify(state(ctx).db, anchor=anchor)
     if as_json:
         print_json(report)
     else:

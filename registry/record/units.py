@@ -73,6 +73,10 @@ _DIMENSION = {
     "temperature_difference": "[temperature]",
 }
 
+#: no value of any quantity we store comes near this in its canonical unit (the fastest rate,
+#: k_B·T/h at 1000 K, is ~2e13 s⁻¹); larger numbers are slips that would overflow computations
+MAX_MAGNITUDE = 1e15
+
 _MINUS = str.maketrans({"−": "-", "–": "-", "‒": "-", "—": "-", "﹣": "-", "－": "-"})
 _SUPERSCRIPT = str.maketrans({"⁻": "-", "¹": "1", "²": "2", "³": "3", "⁰": "0", "⁺": ""})
 _NUMBER = r"[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?"
@@ -303,6 +307,8 @@ def _parse(
         raise UnitError(field, raw, str(exc)) from exc
     if not math.isfinite(number) or (error is not None and not math.isfinite(error)):
         raise UnitError(field, raw, "number is not finite")
+    if abs(number) > MAX_MAGNITUDE or (error is not None and error > MAX_MAGNITUDE):
+        raise UnitError(field, raw, f"implausibly large (more than {MAX_MAGNITUDE:.0e})")
     if error is not None and error < 0:
         raise UnitError(field, raw, "an uncertainty cannot be negative")
     unit_written = match["unit"].strip()
@@ -378,7 +384,7 @@ def _convert(
             raise UnitError(field, raw, "a value in ppm needs the spectrometer frequency (MHz)")
         hz = ppm_to_hz(number, spectrometer_mhz)
         err = ppm_to_hz(error, spectrometer_mhz) if error is not None else None
-        return ParsedValue(hz, err, raw, unit_text)
+        return _finite(ParsedValue(hz, err, raw, unit_text), quantity, field)
     mapping = _linear_map(unit_text, quantity)
     if mapping.problem:
         raise UnitError(field, raw, mapping.problem)
@@ -386,7 +392,20 @@ def _convert(
     if quantity == "temperature" and value < 0:
         raise UnitError(field, raw, "below absolute zero")
     err = None if error is None else abs(mapping.scale) * error
-    return ParsedValue(float(value), err, raw, unit_text)
+    return _finite(ParsedValue(float(value), err, raw, unit_text), quantity, field)
+
+
+def _finite(parsed: ParsedValue, quantity: str, field: str) -> ParsedValue:
+    """Refuse a value that is no longer a plausible finite number once converted (1e308 kcal/mol
+    overflows to infinity in kJ/mol): nothing but finite numbers is ever stored."""
+    values = (parsed.value,) if parsed.error is None else (parsed.value, parsed.error)
+    if not all(math.isfinite(v) and abs(v) <= MAX_MAGNITUDE for v in values):
+        raise UnitError(
+            field,
+            parsed.text,
+            f"not a plausible finite value once converted to {CANONICAL_LABEL[quantity]}",
+        )
+    return parsed
 
 
 def _delta(amount: float, unit: pint.Unit) -> float:
