@@ -17,9 +17,9 @@ import zipfile
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
-from xml.etree import ElementTree
 
 from registry.errors import FileFormatError
+from registry.io import workbook_xml
 
 SUPPORTED = (".xlsx", ".xlsm", ".ods", ".csv", ".tsv", ".txt")
 
@@ -51,16 +51,6 @@ def column_letter(index0: int) -> str:
         n, rem = divmod(n - 1, 26)
         name = chr(65 + rem) + name
     return name
-
-
-def _cell_ref(ref: str) -> tuple[int, int]:
-    m = re.fullmatch(r"([A-Z]+)(\d+)", ref)
-    if not m:
-        raise ValueError(ref)
-    col = 0
-    for ch in m[1]:
-        col = col * 26 + ord(ch) - 64
-    return int(m[2]) - 1, col - 1
 
 
 def read_file(path: Path, sheet: str | None = None) -> RawFile:
@@ -159,7 +149,7 @@ def _read_workbook(path: Path, data: bytes, sheet: str | None, suffix: str) -> l
             str(path), f"no sheet named {sheet!r}; the sheets are {', '.join(names)}", sheet
         )
     wanted = [sheet] if sheet is not None else names
-    formulas = _ods_formulas(data, wanted) if suffix == ".ods" else _xlsx_formulas(data, wanted)
+    formulas = _workbook_formulas(path, data, wanted, suffix)  # also checks the sizes first
     out = []
     for name in wanted:
         try:
@@ -177,107 +167,32 @@ def _read_workbook(path: Path, data: bytes, sheet: str | None, suffix: str) -> l
     return out
 
 
-def _xlsx_formulas(data: bytes, sheets: list[str]) -> dict[str, dict[tuple[int, int], str]]:
-    """Cells holding formulas, per sheet, read from the workbook XML (calamine hides them)."""
-    out: dict[str, dict[tuple[int, int], str]] = {}
+_FORMULA_ELEMENT = re.compile(rb"<(?:[\w.-]+:)?f\b")
+
+
+def _workbook_formulas(
+    path: Path, data: bytes, sheets: list[str], suffix: str
+) -> dict[str, dict[tuple[int, int], str]]:
+    """Formula cells per sheet, from the workbook's XML (calamine hides them); before that,
+    the workbook's inflated size and each sheet's cell span are checked."""
     try:
         with zipfile.ZipFile(io.BytesIO(data)) as zf:
-            book = zf.read("xl/workbook.xml").decode("utf-8", "replace")
-            rels = zf.read("xl/_rels/workbook.xml.rels").decode("utf-8", "replace")
-            targets = {
-                m["id"]: m["target"]
-                for m in re.finditer(
-                    r'<Relationship\b[^>]*?Id="(?P<id>[^"]+)"[^>]*?Target="(?P<target>[^"]+)"',
-                    rels,
-                )
-            }
-            targets.update(
-                {
-                    m["id"]: m["target"]
-                    for m in re.finditer(
-                        r'<Relationship\b[^>]*?Target="(?P<target>[^"]+)"[^>]*?Id="(?P<id>[^"]+)"',
-                        rels,
-                    )
-                }
-            )
-            for m in re.finditer(r"<(?:\w+:)?sheet\b([^>]*)/?>", book):
-                attrs = m[1]
-                name_m = re.search(r'\bname="([^"]*)"', attrs)
-                rid_m = re.search(r'\br:id="([^"]*)"|\bid="([^"]*)"', attrs)
-                if not name_m or not rid_m:
+            workbook_xml.check_size(path, zf)
+            if suffix == ".ods":
+                content = zf.read("content.xml")
+                if b"formula" not in content:
+                    return {}
+                return workbook_xml.ods_formulas(path, content, sheets)
+            parts = workbook_xml.xlsx_sheet_parts(path, zf)
+            out: dict[str, dict[tuple[int, int], str]] = {}
+            for name in sheets:
+                member = parts.get(name)
+                if member is None or member not in zf.namelist():
                     continue
-                name = _xml_unescape(name_m[1])
-                if name not in sheets:
-                    continue
-                target = targets.get(rid_m[1] or rid_m[2] or "", "")
-                member = target.lstrip("/") if target.startswith("/") else f"xl/{target}"
-                if member not in zf.namelist():
-                    continue
-                xml = zf.read(member).decode("utf-8", "replace")
-                cells: dict[tuple[int, int], str] = {}
-                if "<f>" not in xml and "<f " not in xml and "<f/>" not in xml:
-                    out[name] = cells  # no formula anywhere: skip the cell-by-cell scan
-                    continue
-                for cm in re.finditer(r'<c\b[^>]*?\br="([A-Z]+\d+)"[^>]*>(.*?)</c>', xml, re.S):
-                    fm = re.search(r"<f\b[^>]*?(?:/>|>(.*?)</f>)", cm[2], re.S)
-                    if fm is not None:
-                        cells[_cell_ref(cm[1])] = "=" + _xml_unescape(fm[1] or "(shared formula)")
-                out[name] = cells
-    except (KeyError, zipfile.BadZipFile, ValueError):
-        return out
-    return out
-
-
-_ODS_TABLE = "{urn:oasis:names:tc:opendocument:xmlns:table:1.0}"
-
-
-def _ods_formulas(data: bytes, sheets: list[str]) -> dict[str, dict[tuple[int, int], str]]:
-    """Cells holding formulas, per sheet, from an .ods file's ``content.xml`` (calamine hides them).
-
-    Rows and cells repeat with ``number-rows-repeated`` / ``number-columns-repeated``; covered
-    (merged) cells take their column too, so positions are those of the sheet's grid.
-    """
-    out: dict[str, dict[tuple[int, int], str]] = {}
-    t = _ODS_TABLE
-    try:
-        with zipfile.ZipFile(io.BytesIO(data)) as zf:
-            content = zf.read("content.xml")
-    except (KeyError, zipfile.BadZipFile):
-        return out
-    if b"table:formula=" not in content:
-        return {name: {} for name in sheets}
-    cells: dict[tuple[int, int], str] | None = None
-    row, col = -1, 0
-    try:
-        for event, el in ElementTree.iterparse(io.BytesIO(content), events=("start", "end")):
-            tag = el.tag
-            if event == "start":
-                if tag == f"{t}table":
-                    name = el.get(f"{t}name", "")
-                    cells = out.setdefault(name, {}) if name in sheets else None
-                    row = -1
-                elif tag == f"{t}table-row":
-                    row, col = row + 1, 0
-                continue
-            if tag == f"{t}table-row":
-                row += int(el.get(f"{t}number-rows-repeated", "1")) - 1
-                el.clear()
-            elif tag in (f"{t}table-cell", f"{t}covered-table-cell"):
-                formula = el.get(f"{t}formula")
-                if formula is not None and cells is not None:
-                    text = formula.split(":", 1)[1] if formula.startswith("of:") else formula
-                    cells[(row, col)] = text if text.startswith("=") else "=" + text
-                col += int(el.get(f"{t}number-columns-repeated", "1"))
-    except ElementTree.ParseError:
-        return out
-    return out
-
-
-def _xml_unescape(text: str) -> str:
-    return (
-        text.replace("&lt;", "<")
-        .replace("&gt;", ">")
-        .replace("&quot;", '"')
-        .replace("&apos;", "'")
-        .replace("&amp;", "&")
-    )
+                xml = zf.read(member)
+                workbook_xml.check_span(path, name, xml)
+                if _FORMULA_ELEMENT.search(xml):
+                    out[name] = workbook_xml.xlsx_formulas(path, name, xml)
+            return out
+    except (KeyError, zipfile.BadZipFile) as exc:
+        raise FileFormatError(str(path), f"not a readable {suffix} workbook: {exc}") from exc
