@@ -48,7 +48,7 @@ class UnitError(ValueError, FluxledgerError):
     def __str__(self) -> str:
         if self.text in (None, ""):
             return f"{self.field}: {self.reason}"
-        return f"{self.field}: cannot read {self.text!r}: {self.reason}"
+        return f"{self.field}: cannot read {shorten(str(self.text))!r}: {self.reason}"
 
 
 class StructureError(ValueError, FluxledgerError):
@@ -63,6 +63,17 @@ class StructureError(ValueError, FluxledgerError):
 
     def __str__(self) -> str:
         return f"SMILES {self.smiles!r}: {self.reason}"
+
+
+#: how much of a user's text a message quotes
+QUOTED_CHARACTERS = 120
+
+
+def shorten(text: str | None, limit: int = QUOTED_CHARACTERS) -> str | None:
+    """A text as a message quotes it: cut to ``limit`` characters with an ellipsis."""
+    if text is None or len(text) <= limit:
+        return text
+    return text[: limit - 1] + "…"
 
 
 @dataclass(frozen=True)
@@ -85,7 +96,7 @@ class RowProblem:
         if self.column:
             parts.append(f"column {self.column!r}")
         where = ", ".join(parts)
-        text = f" {self.text!r}:" if self.text not in (None, "") else ""
+        text = f" {shorten(self.text)!r}:" if self.text not in (None, "") else ""
         return f"{where}:{text} {self.reason}"
 
 

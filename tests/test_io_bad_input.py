@@ -337,3 +337,16 @@ def test_formula_cells_in_an_ods_file_are_refused(database: Database, tmp_path: 
     )
     assert "formula" in info.value.problems[0].reason
     assert measurements(database) == 0
+
+
+def test_a_giant_molecule_is_a_row_problem_quoted_short(database: Database, tmp_path: Path) -> None:
+    giant = "C" * 20_000  # a slip (a pasted polymer): RDKit's writer can crash on such input
+    path = write_csv(tmp_path / "giant.csv", ["compound", "SMILES", "method", "ΔG‡ (kJ/mol)"],
+                     [["OK1", "CCO", "computed", 50], ["BIG", giant, "computed", 50]])  # fmt: skip
+    with pytest.raises(ImportRowError) as info:
+        import_table(database, path)
+    problem = info.value.problems[0]
+    assert (problem.row, problem.column) == (3, "SMILES")
+    assert "20,000 characters" in problem.reason or "atoms; at most 1,000" in problem.reason
+    assert len(str(problem)) < 400  # the message quotes the start, not 20,000 characters
+    assert measurements(database) == 0

@@ -199,3 +199,21 @@ def test_bad_files_name_file_and_line(case: str) -> None:
         parse_jcamp(text, "t.dx")
     assert str(info.value).startswith(message)
     assert info.value.file == "t.dx"
+
+
+def test_a_huge_repeat_count_is_refused_before_it_takes_memory() -> None:
+    # DUP "V" is the leading digit 4 of the repeat count (McDonald & Wilks 1988): 4,999,999,999
+    with pytest.raises(FileFormatError) as info:
+        decode_asdf_line("0 1 2 V999999999", "t.dx", 12)
+    assert str(info.value) == (
+        "t.dx: line 12: a run of 4,999,999,999 repeats at 'V999999999' gives more points than a "
+        "spectrum holds (at most 4,194,304)"
+    )
+
+
+def test_a_huge_point_count_is_refused() -> None:
+    header = HEADER.replace("##NPOINTS= 10", "##NPOINTS= 1e12")
+    with pytest.raises(
+        FileFormatError, match=r"##NPOINTS= must be a whole number from 2 to 4,194,304"
+    ):
+        parse_jcamp(_file(FORMS["affn"], header), "t.dx")

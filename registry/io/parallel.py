@@ -15,6 +15,7 @@ import os
 import signal
 from collections.abc import Callable, Iterable, Sequence
 from concurrent.futures import Future, ProcessPoolExecutor
+from concurrent.futures.process import BrokenProcessPool
 from types import TracebackType
 from typing import Any
 
@@ -36,9 +37,45 @@ def default_workers() -> int:
     return max(1, min(2, os.cpu_count() or 1))
 
 
-def _ignore_interrupts() -> None:
-    """Workers leave Ctrl-C to the parent, which cancels the pool and rolls back (no tracebacks)."""
+#: what a row says when reading its structure crashed the process that read it
+CRASHED = "reading this structure crashed RDKit (a giant or damaged structure?); check it"
+
+
+def _worker_setup(parent: int) -> None:
+    """Workers leave Ctrl-C to the parent, which cancels the pool and rolls back (no
+    tracebacks), and end when the parent dies (a killed import must not leave them running)."""
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    try:  # Linux: the kernel sends SIGTERM to this process when its parent ends
+        import ctypes
+
+        libc = ctypes.CDLL(None, use_errno=True)
+        libc.prctl(1, signal.SIGTERM)  # PR_SET_PDEATHSIG
+    except (OSError, AttributeError):  # pragma: no cover - not Linux
+        pass
+    if os.getppid() != parent:  # the parent died before the line above took effect
+        os._exit(1)
+
+
+def _in_fresh_process(smiles: list[str]) -> list[StructureResult] | None:
+    """:func:`_structure_chunk` in a process of its own; None when that process crashed."""
+    with ProcessPoolExecutor(1, initializer=_worker_setup, initargs=(os.getpid(),)) as one:
+        try:
+            return one.submit(_structure_chunk, smiles).result()
+        except BrokenProcessPool:
+            return None
+
+
+def isolate_crash(smiles: list[str]) -> list[StructureResult]:
+    """Read a chunk whose process crashed again, so that the crash is pinned on its SMILES:
+    the chunk in a fresh process, and if that crashes too, each SMILES in one of its own."""
+    whole = _in_fresh_process(smiles)
+    if whole is not None:
+        return whole
+    out: list[StructureResult] = []
+    for text in smiles:
+        alone = _in_fresh_process([text])
+        out.extend(alone if alone is not None else [(None, CRASHED)])
+    return out
 
 
 def _normalize_chunk(
@@ -101,7 +138,7 @@ class Workers:
             return None
         if self._pool is None:
             self._pool = ProcessPoolExecutor(
-                max_workers=self.workers, initializer=_ignore_interrupts
+                max_workers=self.workers, initializer=_worker_setup, initargs=(os.getpid(),)
             )
         return self._pool
 
@@ -137,7 +174,11 @@ class Workers:
         self.submit_structures(smiles)
         ticked = 0
         for chunk, future in self._pending:
-            self._done.update(zip(chunk, future.result(), strict=True))
+            try:
+                results = future.result()
+            except BrokenProcessPool:  # a worker crashed: find the SMILES that did it
+                results = isolate_crash(chunk)
+            self._done.update(zip(chunk, results, strict=True))
             ticked += len(chunk)
             if progress and ticked >= 200:
                 progress(ticked)

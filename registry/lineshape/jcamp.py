@@ -36,6 +36,9 @@ _SQZ = {c: (i, 1) for i, c in enumerate("@ABCDEFGHI")} | {
 _DIF = {"%": (0, 1)} | {c: (i + 1, 1) for i, c in enumerate("JKLMNOPQR")}
 _DIF |= {c: (i + 1, -1) for i, c in enumerate("jklmnopqr")}
 _DUP = {c: i + 1 for i, c in enumerate("STUVWXYZs")}
+#: most points one spectrum may hold (a 1D NMR spectrum has at most a few hundred thousand);
+#: a repeat count or ##NPOINTS beyond it is refused before any memory is taken for it
+MAX_POINTS = 1 << 22
 _COMPRESSED = set(_SQZ) | set(_DIF) | set(_DUP)
 _AFFN_RE = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?")
 _PLAIN_RE = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)")  # no exponent: E is SQZ in ASDF lines
@@ -195,9 +198,13 @@ def _read_xydata(
     firstx = _float_label(recs, "FIRSTX", source)
     lastx = _float_label(recs, "LASTX", source)
     npoints_f = _float_label(recs, "NPOINTS", source)
+    if not 2 <= npoints_f <= MAX_POINTS or npoints_f != int(npoints_f):
+        raise FileFormatError(
+            source,
+            f"line {recs['NPOINTS'].line}: ##NPOINTS= must be a whole number from 2 to "
+            f"{MAX_POINTS:,}",
+        )
     npoints = int(npoints_f)
-    if npoints != npoints_f or npoints < 2:
-        raise FileFormatError(source, f"line {recs['NPOINTS'].line}: ##NPOINTS= must be ≥ 2")
     if not rec.data:
         raise FileFormatError(source, f"line {rec.line}: ##XYDATA= has no data lines")
     deltax = (lastx - firstx) / (npoints - 1)
@@ -286,6 +293,12 @@ def decode_asdf_line(line: str, source: str, lineno: int) -> tuple[list[float], 
             count = int(f"{_DUP[ch]}{digits}") if digits.isdigit() or not digits else 0
             if not values or count < 1:
                 raise FileFormatError(source, f"line {lineno}: bad DUP count at {line[pos:end]!r}")
+            if len(values) + count > MAX_POINTS:
+                raise FileFormatError(
+                    source,
+                    f"line {lineno}: a run of {count:,} repeats at {line[pos:end]!r} gives more "
+                    f"points than a spectrum holds (at most {MAX_POINTS:,})",
+                )
             for _ in range(count - 1):
                 values.append(values[-1] + last_delta if last_kind == "dif" else values[-1])
         elif ch in "+-" or ch.isdigit() or ch == ".":

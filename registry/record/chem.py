@@ -53,6 +53,12 @@ def pattern_fingerprint_bytes(mol: Any) -> bytes:
     return DataStructs.BitVectToBinaryText(fp)
 
 
+#: the largest molecules kept (heavy atoms, and characters of SMILES): cages, rotaxanes and
+#: foldamers fit; far larger inputs are slips, and RDKit's writers can crash on them
+MAX_ATOMS = 1000
+MAX_SMILES_CHARACTERS = 10_000
+
+
 def read_structure(smiles: str, *, with_fingerprint: bool = True) -> Structure:
     """Parse, canonicalize and identify one SMILES; raise :class:`StructureError` if unreadable.
 
@@ -67,12 +73,26 @@ def _read_structure_cached(smiles: str, with_fingerprint: bool) -> Structure:
     text = (smiles or "").strip()
     if not text:
         raise StructureError(smiles, "empty SMILES")
+    if len(text) > MAX_SMILES_CHARACTERS:
+        raise StructureError(
+            text[:40] + "…",
+            f"{len(text):,} characters; a molecule of this registry is written in at most "
+            f"{MAX_SMILES_CHARACTERS:,}",
+        )
     mol = Chem.MolFromSmiles(text)
+    if mol is not None and mol.GetNumAtoms() > MAX_ATOMS:
+        raise StructureError(
+            text[:40] + "…", f"{mol.GetNumAtoms():,} atoms; at most {MAX_ATOMS:,} are kept"
+        )
     if mol is not None:
         return _describe(text, mol, ok=True, problem=None, with_fingerprint=with_fingerprint)
     raw = Chem.MolFromSmiles(text, sanitize=False)
     if raw is None:
         raise StructureError(smiles, "not a readable SMILES (syntax error)")
+    if raw.GetNumAtoms() > MAX_ATOMS:
+        raise StructureError(
+            text[:40] + "…", f"{raw.GetNumAtoms():,} atoms; at most {MAX_ATOMS:,} are kept"
+        )
     problem = _sanitize_problem(raw)
     raw.UpdatePropertyCache(strict=False)
     with contextlib.suppress(Exception):  # partial sanitization is best effort only
