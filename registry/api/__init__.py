@@ -65,7 +65,7 @@ from registry.api.search import (
     remove_motif,
 )
 from registry.api.server import enable_server_search, migrate_to, server_search_status
-from registry.api.values import canonical_unit, convert, read_value
+from registry.api.values import canonical_unit, convert, read_value, spreadsheet_safe
 from registry.record.fields import TABLE_COLUMNS
 from registry.storage.database import Database, take_warnings
 
@@ -117,6 +117,7 @@ __all__ = [
     "schema_state",
     "server_search_status",
     "simulate_lineshape",
+    "spreadsheet_safe",
     "summarize_change",
     "take_warnings",
     "upgrade_schema",

@@ -56,3 +56,14 @@ def canonical_unit(quantity: str) -> str:
     from registry.record.units import CANONICAL_LABEL
 
     return CANONICAL_LABEL[quantity]
+
+
+def spreadsheet_safe(value: object) -> object:
+    """A cell value as it may leave for a spreadsheet: text that a spreadsheet would evaluate
+    as a formula gets a guarding apostrophe (which the importer takes off again); numbers and
+    empty values pass as they are."""
+    if not isinstance(value, str):
+        return value
+    from registry.io.cells import neutralise
+
+    return neutralise(value)

@@ -7,7 +7,7 @@ from typing import Any
 
 import typer
 
-from registry.cli.context import state
+from registry.cli.context import read_id, state
 from registry.cli.output import render_record, render_rows
 from registry.errors import UsageError
 
@@ -129,14 +129,6 @@ def add(
                 typer.echo(f"    likely cause: {finding['likely_cause']}")
 
 
-def _id(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError as exc:
-        raise UsageError(f"{text!r} is not a measurement id (a whole number)") from exc
-    if value <= 0:
-        raise UsageError(f"{text!r} is not a measurement id (a whole number)")
-    return value
 
 
 def show(
@@ -148,7 +140,7 @@ def show(
     from registry import api
 
     database = api.open_registry(state(ctx).db)
-    record = api.get_measurement(database, _id(measurement_id))
+    record = api.get_measurement(database, read_id(measurement_id))
     if as_json:
         render_record(record, as_json=True)
         return

@@ -9,7 +9,7 @@ from typing import Any
 import typer
 from typer.core import TyperGroup
 
-from registry.errors import FluxledgerError
+from registry.errors import FluxledgerError, UsageError
 
 DEFAULT_DB = "fluxledger.sqlite"
 
@@ -50,3 +50,18 @@ class ErrorBoundaryGroup(TyperGroup):
         except KeyboardInterrupt:
             typer.echo("interrupted; nothing half-written was kept", err=True)
             ctx.exit(130)
+
+
+#: the largest id a registry can hold (SQLite's and PostgreSQL's 64-bit integers)
+MAX_ID = 2**63 - 1
+
+
+def read_id(text: str) -> int:
+    """A measurement id as typed: a whole number from 1 up, or a usage error."""
+    try:
+        value = int(text)
+    except ValueError:
+        value = 0
+    if not 0 < value <= MAX_ID:
+        raise UsageError(f"{text!r} is not a measurement id (a whole number)")
+    return value

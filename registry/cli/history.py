@@ -6,7 +6,7 @@ from typing import Any
 
 import typer
 
-from registry.cli.context import state
+from registry.cli.context import read_id, state
 from registry.cli.output import print_json
 from registry.errors import UsageError
 
@@ -19,14 +19,6 @@ def register(app: typer.Typer) -> None:
     app.command("retract")(retract)
 
 
-def _id(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError:
-        value = 0
-    if value <= 0:
-        raise UsageError(f"{text!r} is not a measurement id (a whole number)")
-    return value
 
 
 def history(
@@ -45,7 +37,7 @@ def history(
     if limit < 0:
         raise UsageError("--limit must be 0 (all) or more")
     database = api.open_registry(state(ctx).db)
-    mid = _id(measurement_id) if measurement_id is not None else None
+    mid = read_id(measurement_id) if measurement_id is not None else None
     entries = api.history(database, mid, limit=limit or None)
     if as_json:
         print_json(entries)
@@ -104,7 +96,7 @@ def edit(
     if not assignments:
         raise UsageError("nothing to change; give at least one --set FIELD=VALUE")
     st = state(ctx)
-    mid = _id(measurement_id)
+    mid = read_id(measurement_id)
     database = api.open_registry(st.db)
     result = api.edit_measurement(database, mid, assignments, actor=st.actor, reason=reason)
     if as_json:
@@ -130,7 +122,7 @@ def retract(
     from registry import api
 
     st = state(ctx)
-    mid = _id(measurement_id)
+    mid = read_id(measurement_id)
     database = api.open_registry(st.db)
     result = api.retract_measurement(database, mid, reason, actor=st.actor)
     if as_json:

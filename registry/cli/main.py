@@ -18,12 +18,31 @@ from registry.cli.context import DEFAULT_DB, AppState, ErrorBoundaryGroup
 class BoundaryGroup(ErrorBoundaryGroup):
     """The main app's boundary: user errors as ``error: …``, plus database warnings once."""
 
+    def main(self, args: Any = None, *rest: Any, **kwargs: Any) -> Any:
+        """Refuse arguments that are not text before anything reads them (a byte sequence that
+        is not UTF-8 reaches Python as lone surrogates, which no file or database can take)."""
+        given = list(sys.argv[1:] if args is None else args)
+        bad = next((a for a in given if isinstance(a, str) and _undecodable(a)), None)
+        if bad is not None:
+            shown = bad.encode("utf-8", "surrogateescape").decode("utf-8", "replace")
+            typer.echo(
+                f"error: argument {shown!r} is not valid UTF-8 text; set the terminal (or the "
+                "script) to UTF-8, or retype the characters shown as �",
+                err=True,
+            )
+            sys.exit(2)
+        return super().main(args, *rest, **kwargs)
+
     def invoke(self, ctx: typer.Context) -> Any:
         _print_database_warnings(discard=True)  # left over from an earlier in-process call
         try:
             return super().invoke(ctx)
         finally:
             _print_database_warnings()
+
+
+def _undecodable(text: str) -> bool:
+    return any("\udc80" <= ch <= "\udcff" for ch in text)
 
 
 def _print_database_warnings(discard: bool = False) -> None:

@@ -72,14 +72,28 @@ def table_text(rows: Sequence[Mapping[str, Any]], columns: Sequence[str] | None 
 
 
 def csv_text(rows: Iterable[Mapping[str, Any]], columns: Sequence[str] | None = None) -> str:
+    """CSV for a spreadsheet: texts a spreadsheet would evaluate get a guarding apostrophe,
+    and every text is quoted (so a reader splitting on ';' or tabs cannot cut a formula out
+    of one)."""
+    from registry import api
+
     rows = list(rows)
     out = io.StringIO()
     cols = list(columns or (rows[0].keys() if rows else []))
-    writer = csv.DictWriter(out, fieldnames=cols, extrasaction="ignore", lineterminator="\n")
-    writer.writeheader()
+    writer = csv.writer(out, lineterminator="\n", quoting=csv.QUOTE_NONNUMERIC)
+    writer.writerow(cols)
     for r in rows:
-        writer.writerow({c: _jsonable(r.get(c)) for c in cols})
+        writer.writerow([_csv_cell(api.spreadsheet_safe(_jsonable(r.get(c)))) for c in cols])
     return out.getvalue()
+
+
+def _csv_cell(value: Any) -> Any:
+    """Numbers stay numbers; anything else (None included) is written as quoted text."""
+    if value is None:
+        return ""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return str(value)
+    return value
 
 
 def render_rows(

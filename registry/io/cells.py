@@ -33,18 +33,23 @@ _NUMBER_PREFIX = re.compile(r"^\s*([+\-−–]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE
 _TRIGGER_CHARS = "=+-@\t\r"
 
 
+#: where a spreadsheet may start a cell: the start of the text, and after a separator that a
+#: reader in another locale splits on (';', ',' or a tab inside the text)
+_TO_GUARD = re.compile(r"(^|[;,\t])('*[=+\-@\t\r])")
+_GUARDED = re.compile(r"(^|[;,\t])'('*[=+\-@\t\r])")
+
+
 def neutralise(text: str) -> str:
-    """Prefix a text cell that a spreadsheet would evaluate with an apostrophe."""
-    if text and text.startswith(FORMULA_TRIGGERS):
-        return "'" + text
-    return text
+    """Guard every place a spreadsheet could start a formula with an apostrophe: the start of
+    the text, and a trigger right after ';', ',' or a tab (a reader splitting on them would
+    start a cell there). Apostrophes the user typed before a trigger get one more, so
+    :func:`unneutralise` gives back exactly the text."""
+    return _TO_GUARD.sub(r"\1'\2", text) if text else text
 
 
 def unneutralise(text: str) -> str:
-    """Undo :func:`neutralise`: drop a leading apostrophe that guards a formula trigger."""
-    if len(text) > 1 and text[0] == "'" and text[1] in _TRIGGER_CHARS:
-        return text[1:]
-    return text
+    """Undo :func:`neutralise`: drop the one apostrophe that guards each formula trigger."""
+    return _GUARDED.sub(r"\1\2", text) if text else text
 
 
 def cell_text(value: Any) -> str | None:

@@ -128,20 +128,23 @@ class Database:
             target, uri = ":memory:", False
         else:
             target, uri = f"file:{_uri_path(self.path)}?mode=rwc", True
-        raw = sqlite3.connect(
-            target,
-            uri=uri,
-            timeout=BUSY_TIMEOUT_MS / 1000,
-            isolation_level=None,  # BEGIN is ours
-            check_same_thread=False,
-            detect_types=sqlite3.PARSE_DECLTYPES,
-        )
-        raw.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_MS}")
-        raw.execute("PRAGMA foreign_keys = ON")
-        if self.path is not None:
-            raw.execute("PRAGMA journal_mode = WAL").fetchall()
-            raw.execute(f"PRAGMA mmap_size = {MMAP_BYTES}").fetchall()
-        raw.execute("PRAGMA synchronous = NORMAL")
+        try:
+            raw = sqlite3.connect(
+                target,
+                uri=uri,
+                timeout=BUSY_TIMEOUT_MS / 1000,
+                isolation_level=None,  # BEGIN is ours
+                check_same_thread=False,
+                detect_types=sqlite3.PARSE_DECLTYPES,
+            )
+            raw.execute(f"PRAGMA busy_timeout = {BUSY_TIMEOUT_MS}")
+            raw.execute("PRAGMA foreign_keys = ON")
+            if self.path is not None:
+                raw.execute("PRAGMA journal_mode = WAL").fetchall()
+                raw.execute(f"PRAGMA mmap_size = {MMAP_BYTES}").fetchall()
+            raw.execute("PRAGMA synchronous = NORMAL")
+        except sqlite3.DatabaseError as exc:  # a file that cannot be opened, said plainly
+            raise self._unreadable(exc) from exc
         return raw
 
     @contextmanager
@@ -200,7 +203,7 @@ class Database:
                     raw.execute("BEGIN")
                     raw.execute("SELECT count(*) FROM sqlite_master").fetchall()
                     break
-                except sqlite3.OperationalError as exc:
+                except sqlite3.DatabaseError as exc:
                     if raw.in_transaction:
                         raw.execute("ROLLBACK")
                     if not _is_lock_error(exc) or attempt == READ_RETRIES - 1:
@@ -219,12 +222,42 @@ class Database:
         return conn
 
     def _unreadable(self, exc: Exception) -> DatabaseError:
-        reason = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         if _is_lock_error(exc):
             return DatabaseError(
                 f"{self.name} stayed locked for too long ({READ_RETRIES} attempts); try again"
             )
+        explained = self.situation(exc)
+        if explained is not None:
+            return explained
+        reason = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         return DatabaseError(f"{self.name} is not a readable registry: {reason}")
+
+    def situation(self, exc: BaseException) -> DatabaseError | None:
+        """A user's situation behind a SQLite error (permissions, a full disk), said plainly;
+        None for anything else (which is then a bug, and shows as one)."""
+        message = str(exc).lower()
+        path, folder = self.path, self.path.parent if self.path else None
+        if path is None or not isinstance(exc, sqlite3.DatabaseError):
+            return None
+        if "readonly" in message or "read-only" in message:
+            return DatabaseError(
+                f"cannot write {path}: the file (or its folder) is read-only; ask for write "
+                "access, or work on a copy"
+            )
+        if "disk is full" in message or "disk i/o error" in message:
+            return DatabaseError(
+                f"cannot write {path}: the disk is full or failing ({exc}); nothing was written"
+            )
+        if "unable to open database file" in message:
+            if folder is not None and not os.access(folder, os.W_OK):
+                return DatabaseError(
+                    f"cannot open {path}: its folder {folder} is not writable (SQLite keeps "
+                    f"{path.name}-wal and {path.name}-shm beside the file); ask for write "
+                    "access, or copy the registry somewhere writable"
+                )
+            if path.exists() and not os.access(path, os.R_OK | os.W_OK):
+                return DatabaseError(f"cannot open {path}: permission denied")
+        return None
 
     # -- writes
 
@@ -246,6 +279,9 @@ class Database:
                 return self._write_once(work)
             except Exception as exc:
                 if not _is_lock_error(exc):
+                    explained = self.situation(exc)
+                    if explained is not None:
+                        raise explained from exc
                     raise
                 if attempt == WRITE_RETRIES - 1:
                     raise DatabaseError(
@@ -435,12 +471,36 @@ def open_registry(db: str) -> Database:
     return database
 
 
+def _refuse_foreign(database: Database) -> None:
+    """``init`` on a database that holds another program's tables adds nothing to it."""
+    if database.path is not None and not (database.path.exists() and database.path.stat().st_size):
+        return
+    with database.read() as conn:
+        if conn.dialect == "sqlite":
+            tables = conn.column(
+                "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'"
+            )
+        else:
+            tables = conn.column(
+                "SELECT table_name FROM information_schema.tables "
+                "WHERE table_schema = current_schema() AND table_type = 'BASE TABLE'"
+            )
+        revision = stamped_revision(conn)
+    if tables and revision is None:
+        shown = ", ".join(sorted(tables)[:5]) + (" …" if len(tables) > 5 else "")
+        raise DatabaseError(
+            f"{database.name} holds tables of another program ({shown}); a registry needs a "
+            "new file or an empty database"
+        )
+
+
 def create_registry(db: str) -> Database:
     """Create a registry (or bring an existing one to the current schema); returns it open."""
     from registry.storage import migrate
 
     database = open_database(db, must_exist=False)
     try:
+        _refuse_foreign(database)
         migrate.upgrade(database)
     except DatabaseError:
         database.close()
