@@ -129,8 +129,6 @@ def add(
                 typer.echo(f"    likely cause: {finding['likely_cause']}")
 
 
-
-
 def show(
     ctx: typer.Context,
     measurement_id: str = typer.Argument(..., help="Measurement id."),

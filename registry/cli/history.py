@@ -19,8 +19,6 @@ def register(app: typer.Typer) -> None:
     app.command("retract")(retract)
 
 
-
-
 def history(
     ctx: typer.Context,
     measurement_id: str = typer.Argument(
