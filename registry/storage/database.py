@@ -18,6 +18,7 @@ imported for a server URL and for schema migrations (:meth:`Database.sqlalchemy_
 
 from __future__ import annotations
 
+import contextlib
 import os
 import random
 import sqlite3
@@ -472,26 +473,34 @@ def open_registry(db: str) -> Database:
 
 
 def _refuse_foreign(database: Database) -> None:
-    """``init`` on a database that holds another program's tables adds nothing to it."""
-    if database.path is not None and not (database.path.exists() and database.path.stat().st_size):
-        return
-    with database.read() as conn:
-        if conn.dialect == "sqlite":
-            tables = conn.column(
-                "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'"
-            )
-        else:
+    """``init`` on a database that holds another program's tables changes nothing in it (a
+    SQLite file is looked at read-only: opening it as a registry would switch it to WAL)."""
+    if database.is_sqlite:
+        path = database.path
+        if path is None or not path.exists() or not path.stat().st_size:
+            return
+        try:
+            with contextlib.closing(
+                sqlite3.connect(f"file:{_uri_path(path)}?mode=ro", uri=True)
+            ) as raw:
+                tables = [r[0] for r in raw.execute(_SQLITE_TABLES)]
+        except sqlite3.DatabaseError as exc:
+            raise database._unreadable(exc) from exc
+    else:
+        with database.read() as conn:
             tables = conn.column(
                 "SELECT table_name FROM information_schema.tables "
                 "WHERE table_schema = current_schema() AND table_type = 'BASE TABLE'"
             )
-        revision = stamped_revision(conn)
-    if tables and revision is None:
+    if tables and "alembic_version" not in tables:
         shown = ", ".join(sorted(tables)[:5]) + (" …" if len(tables) > 5 else "")
         raise DatabaseError(
             f"{database.name} holds tables of another program ({shown}); a registry needs a "
             "new file or an empty database"
         )
+
+
+_SQLITE_TABLES = "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'"
 
 
 def create_registry(db: str) -> Database:
