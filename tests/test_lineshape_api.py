@@ -121,8 +121,15 @@ def test_simulate_bad_input_names_the_argument(
 
 def test_simulate_unwritable_file(tmp_path: Path) -> None:
     target = tmp_path / "no" / "such" / "dir.csv"
-    with pytest.raises(UsageError, match=r"^cannot write .*dir\.csv: "):
+    with pytest.raises(UsageError, match=r"^out .*dir\.csv: folder .* does not exist$"):
         api.simulate_lineshape("-60,60 Hz", 100, points=64, out=target)
+
+
+def test_simulate_never_overwrites_a_registry(tmp_path: Path, db_path: Path) -> None:
+    before = db_path.read_bytes()
+    with pytest.raises(UsageError, match=r"is a SQLite database; choose another file"):
+        api.simulate_lineshape("-60,60 Hz", 100, points=64, out=db_path)
+    assert db_path.read_bytes() == before
 
 
 # ------------------------------------------------------------------------------ fit

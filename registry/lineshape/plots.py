@@ -16,6 +16,7 @@ import numpy as np
 
 from registry.errors import UsageError
 from registry.lineshape.store_link import value_with_error_text
+from registry.outputs import write_file
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
@@ -64,7 +65,7 @@ def plot_fit(fit: LineShapeFit, path: str | Path, *, observe_mhz: float | None =
     )
     top.legend(loc="upper right", fontsize=8, frameon=False)
     out = Path(path)
-    fig.savefig(out)
+    write_file(out, fig.savefig)  # whole or not at all
     return out
 
 
@@ -95,7 +96,7 @@ def plot_eyring(
     ax.set_xlabel("1000 K / T")
     ax.set_ylabel("ln(k / T)   (k in s⁻¹, T in K)")
     out = Path(path)
-    fig.savefig(out)
+    write_file(out, fig.savefig)  # whole or not at all
     return out
 
 

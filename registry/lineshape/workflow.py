@@ -23,6 +23,7 @@ from registry.lineshape.results import LineShapeAnalysis, SimulatedSpectrum
 from registry.lineshape.simulate import ExchangeModel
 from registry.lineshape.spectrum import Spectrum, csv_text, read_spectrum
 from registry.lineshape.store_link import rate_points
+from registry.outputs import check_target, write_atomically
 from registry.record.units import ParsedValue
 
 if TYPE_CHECKING:  # the fit modules load scipy.optimize: only the fit workflow pays for it
@@ -56,6 +57,7 @@ def simulate(
     Without a window the spectrum spans the sites with a margin of the larger of their span,
     25 widths and 20 Hz. With ``out`` it is written as CSV, abscissa in ``x_unit``.
     """
+    target = None if out is None else check_target(out, what="out")
     sites_hz = list(model.shifts_hz)
     if window_hz is None:
         margin = max(model.span_hz, 25.0 * width_hz, 20.0)
@@ -79,7 +81,8 @@ def simulate(
             comments["temperature"] = f"{temperature.value:.2f} K"
         if mhz:
             comments["observe frequency"] = f"{mhz:g} MHz"
-        _write(Path(out), csv_text(x, intensity, x_unit, comments))
+        with write_atomically(target) as handle:  # type: ignore[arg-type]
+            handle.write(csv_text(x, intensity, x_unit, comments))
     return SimulatedSpectrum(
         file=None if out is None else str(out),
         points=points,
@@ -97,13 +100,6 @@ def simulate(
         x=x,
         intensity=intensity,
     )
-
-
-def _write(path: Path, text: str) -> None:
-    try:
-        path.write_text(text, encoding="utf-8")
-    except OSError as exc:
-        raise UsageError(f"cannot write {path}: {exc.strerror}") from exc
 
 
 # ---------------------------------------------------------------------------------- fit
