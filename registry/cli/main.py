@@ -89,6 +89,7 @@ _GROUPS: tuple[str, ...] = (
     "plot",
     "report",
     "pg",
+    "vocabulary",
 )
 
 _mount()
