@@ -117,8 +117,8 @@ def test_the_hint_is_a_note_of_the_sheet_plan() -> None:
     plan, problems = _plan(["compound", "method", "ΔG‡ (kJ/mol)", "Coal. temp (°C)"])
     assert problems == []
     assert plan.notes == [  # type: ignore[attr-defined]
-        "column D 'Coal. temp (°C)' looks like a quantity but was not recognised: probably Tc "
-        "(tc); kept as an extra attribute — rename the header or map it in a mapping file "
+        "column D 'Coal. temp (°C)' looks like a quantity but was not recognised: probably Tc; "
+        "kept as an extra attribute — rename the header or map it in a mapping file "
         '([columns] "Coal. temp (°C)" = "tc")'
     ]
 

@@ -284,6 +284,12 @@ def plan_sheet(
     return plan
 
 
+def _titled(name: str) -> str:
+    """``ΔG‡ (dg)``; ``Tc``, ``k (rate point)`` where the title already says the name."""
+    title = field_table.BY_NAME[name].title
+    return title if fold(title).startswith(fold(name)) else f"{title} ({name})"
+
+
 def _hints(columns: list[Column]) -> list[str]:
     """Notes on unrecognised headers that look like a quantity: the field each probably is."""
     out = []
@@ -295,7 +301,7 @@ def _hints(columns: list[Column]) -> list[str]:
         likely = quantity_hint(col.header)
         if not likely:
             continue
-        named = [f"{field_table.BY_NAME[f].title} ({f})" for f in likely]
+        named = [_titled(f) for f in likely]
         which = named[0] if len(named) == 1 else "one of " + ", ".join(named)
         out.append(
             f"column {col.letter} {col.header!r} looks like a quantity but was not recognised: "

@@ -36,16 +36,16 @@ class SolventInTable(Rule):
         for p in rows:
             text = str(texts[p]).strip()
             near = vocab.solvent_suggestions(text, spellings)
-            guess = f"did you mean {' or '.join(near)}? " if near else ""
+            guess = f" — did you mean {' or '.join(near)}?" if near else "."
             out.append(
                 self.finding(
                     int(data.ids[p]),
-                    f"solvent {text!r} is not in the registry's solvent table, so its liquid "
-                    "range is unknown and no temperature is checked against its melting and "
-                    f"boiling points; {guess}Store the spelling as an alias of a known solvent, "
-                    "or add the solvent with its melting and boiling points and their source. "
-                    "Above a solvent's boiling point only a pressure-rated sealed NMR tube may "
-                    f"be used. {DEFER}",
+                    f"solvent {text!r} is not in the registry's solvent table{guess} Its liquid "
+                    "range is unknown, so no temperature is checked against its melting and "
+                    "boiling points; store the spelling as an alias of a known solvent, or add "
+                    "the solvent with its melting and boiling points and their source. Above a "
+                    "solvent's boiling point only a pressure-rated sealed NMR tube may be used. "
+                    f"{DEFER}",
                     likely_cause=f"a misspelt solvent: {', '.join(near)}" if near else None,
                     context="near:" + "|".join(near),
                 )
