@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass
-from functools import cached_property
+from functools import cached_property, lru_cache
 
 from registry.errors import UnitError
 from registry.record import spelling
@@ -199,12 +199,16 @@ def _refusal(what: str, reading: Reading, known: Iterable[str]) -> str:
     return f"{head} (known: {_listed(known)})"
 
 
+# An import reads the same few texts on every row: each reading is kept (texts and vocabularies
+# are hashable, readings immutable).
+@lru_cache(maxsize=4096)
 def read_method(text: str, vocabulary: Vocabulary | None = None) -> Reading:
     """How ``text`` reads as a method (see :mod:`.spelling`)."""
     aliases = vocabulary.aliases_of("method") if vocabulary else None
     return spelling.read(METHOD_LEXICON, text, aliases=aliases)
 
 
+@lru_cache(maxsize=4096)
 def read_process_kind(text: str, vocabulary: Vocabulary | None = None) -> Reading:
     """How ``text`` reads as a process kind (see :mod:`.spelling`)."""
     voc = vocabulary or Vocabulary()
@@ -233,6 +237,7 @@ def process_kind_name(
     return reading.name
 
 
+@lru_cache(maxsize=1024)
 def read_nucleus(text: str, vocabulary: Vocabulary | None = None) -> Reading:
     """How ``text`` reads as an observed nucleus (``1H``, ``13C`` …)."""
     aliases = vocabulary.aliases_of("nucleus") if vocabulary else {}
