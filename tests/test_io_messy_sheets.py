@@ -161,6 +161,18 @@ def test_adding_the_solvents_links_the_rows_and_their_liquid_range_is_checked(
         f"add-alias: solvent 'CDC13' → chloroform-d; linked measurement(s) {ids['S3']}"
     )
     assert [u["text"] for u in api.unlinked_solvents(database)] == ["decalin"]
+    assert "solvent-in-table" not in {
+        f["rule_id"] for f in api.get_measurement(database, ids["S3"])["findings"]
+    }
+    # removing the alias unlinks the row again, and the warning comes back
+    done = api.remove_alias(database, "solvent", "cdc-13", actor="ben")
+    assert done["measurements_unlinked"] == [ids["S3"]]
+    again = api.get_measurement(database, ids["S3"])
+    assert again["solvent"] is None
+    assert "solvent-in-table" in {f["rule_id"] for f in again["findings"]}
+    assert api.history(database, limit=1)[0]["summary"] == (
+        f"remove-alias: solvent 'CDC13' → chloroform-d; unlinked measurement(s) {ids['S3']}"
+    )
 
 
 def test_a_row_without_tc_and_dnu_still_needs_a_method(database: Database, tmp_path: Path) -> None:
