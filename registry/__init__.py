@@ -6,13 +6,15 @@ Data flows spreadsheet → ``io`` → ``record`` → ``storage`` → ``validatio
 * ``api``         the library: one function per user action; the CLI and notebooks call it
 * ``cli``         typer commands that parse options, call ``api`` and render (tables, --json)
 * ``record``      the record model: ``fields`` (the table of fields), ``units`` (the one pint
-                  registry), ``vocab``, ``chem`` (every RDKit call), ``nuclei``, ``entry``
-                  (one measurement as reported → normalized)
+                  registry), ``vocab`` and ``spelling`` (names and how texts read as them),
+                  ``chem`` (every RDKit call), ``nuclei``, ``entry`` (one measurement as
+                  reported → normalized)
 * ``storage``     the one data layer: ``database`` (open, read snapshots, write transactions),
                   ``connection`` (SQL text on SQLite or PostgreSQL), ``writer``, ``audit`` (the
                   hash-chained history), ``changes`` (counters for caches), ``models`` and
                   ``migrate`` (Alembic)
-* ``admin``       edits and retractions, the history's summaries, verify, backup, upgrade
+* ``admin``       edits and retractions, the history's summaries, verify, backup, upgrade,
+                  a group's stored aliases and solvents
 * ``io``          spreadsheet import (header recognition, atomic batches) and export
 * ``validation``  rules that recompute barriers from raw data and diagnose the likely slip
 * ``kinetics``    Eyring, coalescence formulas, Eyring/Arrhenius fits, planning (no database)

@@ -51,6 +51,22 @@ class UnitError(ValueError, FluxledgerError):
         return f"{self.field}: cannot read {shorten(str(self.text))!r}: {self.reason}"
 
 
+class VocabularyError(FluxledgerError):
+    """A spelling or solvent that cannot be stored or removed: an unknown target, a duplicate,
+    a spelling that already means something else. Nothing was written."""
+
+    exit_code = 1
+
+    def __init__(self, kind: str, text: str, reason: str) -> None:
+        super().__init__(kind, text, reason)
+        self.kind = kind
+        self.text = text
+        self.reason = reason
+
+    def __str__(self) -> str:
+        return f"{self.kind} {self.text!r}: {self.reason}"
+
+
 class StructureError(ValueError, FluxledgerError):
     """A SMILES that cannot be read at all (not even unsanitized)."""
 

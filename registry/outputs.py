@@ -79,7 +79,11 @@ def _is_sqlite(path: Path) -> bool:
 
 @contextlib.contextmanager
 def write_atomically(
-    target: str | Path, mode: str = "w", *, encoding: str | None = "utf-8", newline: str | None = None
+    target: str | Path,
+    mode: str = "w",
+    *,
+    encoding: str | None = "utf-8",
+    newline: str | None = None,
 ) -> Iterator[IO[Any]]:
     """An open temporary file beside ``target``, renamed onto it when the block ends normally.
 

@@ -13,6 +13,7 @@ from registry.record.entry import (
     normalize_nucleus,
     parse_population_ratio,
 )
+from registry.record.vocab import Vocabulary
 
 
 def _entry(**kw: str) -> EntryInput:
@@ -50,10 +51,42 @@ def test_hz_of_any_nucleus_is_kept() -> None:
 
 @pytest.mark.parametrize(
     ("text", "expected"),
-    [("1H", "1H"), ("H-1", "1H"), ("¹³C", "13C"), ("19f", "19F"), ("P31", "31P")],
+    [
+        ("1H", "1H"),
+        ("H-1", "1H"),
+        ("¹³C", "13C"),
+        ("19f", "19F"),
+        ("P31", "31P"),
+        ("proton", "1H"),
+        ("not a nucleus", "not a nucleus"),
+    ],  # filters keep what they cannot read
 )
 def test_nucleus_spellings(text: str, expected: str) -> None:
     assert normalize_nucleus(text) == expected
+
+
+def test_an_entry_is_read_with_the_registry_vocabulary() -> None:
+    voc = Vocabulary(
+        ("helix-inversion",),
+        (("method", "VT protocol B", "coalescence"), ("nucleus", "obs. proton", "1H")),
+    )
+    entry, problems = normalize_entry(
+        _entry(method="vt-protocol b", process="helix inversion", nucleus="Obs. proton",
+               dnu="0.5 ppm"),
+        voc,
+    )  # fmt: skip
+    assert problems == []
+    assert entry is not None and entry.process is not None and entry.coalescence is not None
+    assert (entry.measurement["method"], entry.process["kind"], entry.process["nucleus"]) == (
+        "coalescence", "helix-inversion", "1H",
+    )  # fmt: skip
+    assert entry.coalescence["dnu_hz"] == pytest.approx(200.0)  # 0.5 ppm × 400 MHz (¹H)
+    # the same texts without the registry's words: every one is a problem, with its field
+    _, problems = normalize_entry(
+        _entry(method="vt-protocol b", process="helix inversion", nucleus="Obs. proton",
+               dnu="20 Hz")
+    )  # fmt: skip
+    assert sorted(p.field for p in problems) == ["method", "nucleus", "process"]
 
 
 @pytest.mark.parametrize(

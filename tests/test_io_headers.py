@@ -19,7 +19,7 @@ from registry.io.cells import (
     unneutralise,
     with_unit,
 )
-from registry.io.headers import concept_key, guess_header, split_header
+from registry.io.headers import concept_key, guess_header, quantity_hint, split_header
 from registry.io.mapping import MappingFile, load_mapping, plan_sheet
 
 
@@ -56,6 +56,15 @@ from registry.io.mapping import MappingFile, load_mapping, plan_sheet
         ("dg_kcal_mol", "dg", "kcal/mol"),
         ("Tc, K", "tc", "K"),
         ("ΔG‡ in kJ/mol", "dg", "kJ/mol"),
+        # issue 16: spellings from a group's own workbook
+        ("Δδ (ppm)", "dnu", "ppm"),
+        ("Freq / MHz", "field", "MHz"),
+        ("Nucl.", "nucleus", None),
+        ("T for dG (K)", "dg_t", "K"),
+        ("temperature of ΔG‡ (K)", "dg_t", "K"),
+        ("E:Z", "population", None),
+        ("E/Z", "population", None),
+        ("ratio", "population", None),
     ],
 )
 def test_usual_spellings_are_recognised(header: str, field: str, unit: str | None) -> None:
@@ -78,6 +87,40 @@ def test_usual_spellings_are_recognised(header: str, field: str, unit: str | Non
 def test_uncertainty_columns(header: str, field: str) -> None:
     guess = guess_header(header)
     assert (guess.field, guess.role) == (field, "error")
+
+
+def test_a_slash_inside_a_text_header_is_not_a_unit() -> None:
+    guess = guess_header("Lit / DOI")
+    assert (guess.field, guess.role) == ("reference", "value")
+    plan, problems = _plan(["compound", "method", "Lit / DOI"])
+    assert problems == [] and plan.value_columns()["reference"].unit is None  # type: ignore[attr-defined]
+
+
+@pytest.mark.parametrize(
+    ("header", "likely"),
+    [
+        ("Exch. rate (s-1)", ["k"]),
+        ("Coal. temp (°C)", ["tc"]),
+        ("Obs freq (MHz)", ["field"]),
+        ("ΔGcalc", ["dg"]),
+        ("Value (kJ/mol)", ["dg", "dh", "ea"]),  # an energy, nothing says which
+        ("notebook page", []),
+        ("Yield (%)", []),
+    ],
+)
+def test_headers_that_look_like_a_quantity_get_a_hint(header: str, likely: list[str]) -> None:
+    assert guess_header(header).role == "extra"
+    assert quantity_hint(header) == likely
+
+
+def test_the_hint_is_a_note_of_the_sheet_plan() -> None:
+    plan, problems = _plan(["compound", "method", "ΔG‡ (kJ/mol)", "Coal. temp (°C)"])
+    assert problems == []
+    assert plan.notes == [  # type: ignore[attr-defined]
+        "column D 'Coal. temp (°C)' looks like a quantity but was not recognised: probably Tc; "
+        "kept as an extra attribute — rename the header or map it in a mapping file "
+        '([columns] "Coal. temp (°C)" = "tc")'
+    ]
 
 
 def test_unknown_headers_are_kept_as_extra_and_derived_ones_skipped() -> None:
@@ -144,6 +187,8 @@ def test_mapping_file_overrides_the_guess(tmp_path: Path) -> None:
     assert (v["tc"].unit, v["dg"].unit, v["tc"].source) == ("°C", "kcal/mol", "mapping file")
     assert [c.header for c in plan.extra_columns()] == ["ref"]  # type: ignore[attr-defined]
     assert plan.defaults == {"method": "coalescence"}  # type: ignore[attr-defined]
+    rates, _ = _plan(["label", "T (K)", "k (s-1)"], mapping)
+    assert (rates.kind, rates.defaults) == ("rates", {})  # type: ignore[attr-defined]
 
 
 def test_mapping_file_errors_name_the_key(tmp_path: Path) -> None:

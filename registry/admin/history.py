@@ -66,6 +66,8 @@ def _short(value: Any) -> str:
 
 def summarize(action: str, before: Any, after: Any) -> str:
     """One line saying what a revision changed: texts as reported, values only when no text moved."""
+    if action in _VOCABULARY_ACTIONS:
+        return _vocabulary_change(action, before, after)
     if before is None and isinstance(after, dict):
         compound = after.get("compound") or {}
         who = compound.get("label") or compound.get("name") or compound.get("smiles_input") or ""
@@ -103,3 +105,25 @@ def _flatten(body: dict[str, Any]) -> dict[str, Any]:
         else:
             flat[key] = value
     return flat
+
+
+_VOCABULARY_ACTIONS = ("add-alias", "remove-alias", "add-solvent")
+
+
+def _vocabulary_change(action: str, before: Any, after: Any) -> str:
+    """``add-alias: method 'VT-NMR (Tc)' → coalescence``; ``add-solvent: decalin (mp …)``."""
+    body = before if action == "remove-alias" else after
+    if not isinstance(body, dict):
+        return action
+    if action == "add-solvent":
+        line = (
+            f"{action}: {body.get('name')} (mp {_short(body.get('mp_k'))} K, "
+            f"bp {_short(body.get('bp_k'))} K; source: {body.get('source')})"
+        )
+    else:
+        line = f"{action}: {body.get('kind')} {body.get('alias')!r} → {body.get('target')}"
+    moved = (after or {}).get("measurements_linked") or (after or {}).get("measurements_unlinked")
+    if moved:
+        verb = "unlinked" if action == "remove-alias" else "linked"
+        line += f"; {verb} measurement(s) {', '.join(str(i) for i in moved)}"
+    return line

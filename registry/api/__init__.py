@@ -25,6 +25,8 @@ Grouped by what they act on:
 * ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
   :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
 * ``server``    — :func:`migrate_to`, :func:`server_search_status`, :func:`enable_server_search`
+* ``vocabulary`` — :func:`read_term`, :func:`list_aliases`, :func:`add_alias`,
+  :func:`remove_alias`, :func:`add_solvent`, :func:`list_solvents`, :func:`unlinked_solvents`
 """
 
 from __future__ import annotations
@@ -66,6 +68,15 @@ from registry.api.search import (
 )
 from registry.api.server import enable_server_search, migrate_to, server_search_status
 from registry.api.values import canonical_unit, convert, read_value, spreadsheet_safe
+from registry.api.vocabulary import (
+    add_alias,
+    add_solvent,
+    list_aliases,
+    list_solvents,
+    read_term,
+    remove_alias,
+    unlinked_solvents,
+)
 from registry.record.fields import TABLE_COLUMNS
 from registry.storage.database import Database, take_warnings
 
@@ -74,10 +85,12 @@ __all__ = [
     "Database",
     "accept_finding",
     "actor_name",
+    "add_alias",
     "add_measurement",
     "add_motif",
     "add_motifs_from_file",
     "add_rate_points",
+    "add_solvent",
     "backup",
     "build_report",
     "calc_coalescence",
@@ -100,8 +113,10 @@ __all__ = [
     "history_anchor",
     "import_table",
     "init_registry",
+    "list_aliases",
     "list_measurements",
     "list_motifs",
+    "list_solvents",
     "migrate_to",
     "motif_database",
     "motif_matches",
@@ -109,8 +124,10 @@ __all__ = [
     "plot_coalescence",
     "plot_eyring",
     "plot_overview",
+    "read_term",
     "read_value",
     "registry_info",
+    "remove_alias",
     "remove_motif",
     "restore",
     "retract_measurement",
@@ -120,6 +137,7 @@ __all__ = [
     "spreadsheet_safe",
     "summarize_change",
     "take_warnings",
+    "unlinked_solvents",
     "upgrade_schema",
     "value_with_error_text",
     "verify",

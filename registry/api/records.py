@@ -8,7 +8,7 @@ from contextlib import contextmanager
 from typing import TYPE_CHECKING, Any
 
 from registry.api.registry import actor_name
-from registry.errors import NotFoundError, UnitError
+from registry.errors import FluxledgerError, NotFoundError, UnitError
 from registry.storage.connection import Connection, utc
 from registry.storage.database import Database
 
@@ -46,10 +46,16 @@ def add_measurement(
 
     entry = _entry(entry)
     kinds = cached_process_kinds(database.key)
-    if kinds is None:
+    normalized = None
+    if kinds is not None:
+        try:
+            normalized = _normalized(entry, kinds)
+        except FluxledgerError:  # perhaps a spelling someone stored since: read the registry's
+            normalized = None
+    if normalized is None:
         with database.read() as conn:
             kinds = known_process_kinds(conn)
-    normalized = _normalized(entry, kinds)
+        normalized = _normalized(entry, kinds)
     structure = structure_for(normalized.compound.get("smiles_input"))
     who = actor_name(actor)
 

@@ -108,6 +108,7 @@ _GROUPS: tuple[str, ...] = (
     "plot",
     "report",
     "pg",
+    "vocabulary",
 )
 
 _mount()

@@ -3,9 +3,12 @@
 Cells are read column by column (one pass per used column, a 100,000-row sheet in well under a
 second), then each non-blank row becomes an entry: text fields as written, value fields with the
 header's unit appended to bare numbers and a separate uncertainty column folded in, unknown
-columns as extra attributes, embedded or per-row rate points. Nothing is converted here; the
-unit layer reads the texts in the next stage. Problems found on the way (formulas, text in a
-number column, an unreadable rate list) are collected with their sheet, row, column and text.
+columns as extra attributes, embedded or per-row rate points. A mapping file's
+``[spellings]`` translate method, process, solvent and nucleus texts here, and a sheet that gives
+Tc and Δν but no method has its rows that carry both read as coalescence data (said in a note).
+Nothing is converted here; the unit layer reads the texts in the next stage. Problems found on
+the way (formulas, text in a number column, an unreadable rate list) are collected with their
+sheet, row, column and text.
 """
 
 from __future__ import annotations
@@ -32,6 +35,7 @@ from registry.io.readers import RawSheet
 from registry.io.results import ReadResult, RowSource
 from registry.record import fields
 from registry.record.entry import EntryInput
+from registry.record.spelling import fold
 
 #: fields of one entry whose cells are kept as text (log10 A too: a bare number, read later)
 ENTRY_TEXT_FIELDS = tuple(n for n in TEXT_FIELDS if fields.BY_NAME[n].entry)
@@ -90,7 +94,8 @@ class _Columns:
     """An entries sheet's column plan resolved to cell texts, once per sheet."""
 
     texts: dict[int, list[str | None]]  # every mapped column's cell texts, by column index
-    text_fields: list[tuple[str, int]]
+    #: each text field and its cell texts (translated by the mapping file's spellings)
+    text_fields: list[tuple[str, list[str | None]]]
     text_defaults: dict[str, str]
     #: (field, column or None, header unit, uncertainty column index, mapping default)
     value_fields: list[tuple[str, Column | None, str | None, int | None, str | None]]
@@ -99,6 +104,8 @@ class _Columns:
     rates: Column | None
     k: Column | None
     k_error: Column | None
+    implied_method: str | None = None
+    implied_rows: int = 0  # rows given the implied method
 
 
 def read_entries(
@@ -139,6 +146,13 @@ def read_entries(
         result.problems.extend(problems)
         result.inputs.append(entry)
         result.sources.append(RowSource(rs.name, row_no, plan, texts, i, rate_rows))
+    if cols.implied_rows:
+        where = f"sheet {rs.name!r}" if rs.name else result.file
+        result.notes.append(
+            f"{where} has Tc and Δν columns but no method column: {cols.implied_rows} row(s) "
+            f"giving both were read as {cols.implied_method} data (a method column or a "
+            "mapping-file default says otherwise)"
+        )
 
 
 def _sheet_texts(plan: SheetPlan, body: Any) -> dict[int, list[str | None]]:
@@ -234,15 +248,32 @@ def _columns(plan: SheetPlan, texts: dict[int, list[str | None]]) -> _Columns:
         extras.append((key, col.index))
     return _Columns(
         texts=texts,
-        text_fields=[(n, values[n].index) for n in ENTRY_TEXT_FIELDS if n in values],
-        text_defaults={n: plan.defaults[n] for n in ENTRY_TEXT_FIELDS if n in plan.defaults},
+        text_fields=[
+            (n, _translated(texts[values[n].index], plan.spellings.get(n)))
+            for n in ENTRY_TEXT_FIELDS
+            if n in values
+        ],
+        text_defaults={
+            n: plan.spellings.get(n, {}).get(fold(plan.defaults[n]), plan.defaults[n])
+            for n in ENTRY_TEXT_FIELDS
+            if n in plan.defaults
+        },
         value_fields=value_fields,
         extras=extras,
         units=units,
         rates=values.get("rates"),
         k=values.get("k"),
         k_error=errors.get("k"),
+        implied_method=plan.implied_method,
     )
+
+
+def _translated(texts: list[str | None], spellings: dict[str, str] | None) -> list[str | None]:
+    """A column's cell texts with the mapping file's spellings applied (the same list when none
+    apply; the sheet's own texts stay as read, for the rejected-rows file)."""
+    if not spellings:
+        return texts
+    return [spellings.get(fold(t), t) if t is not None else None for t in texts]
 
 
 def _build_entry(
@@ -256,8 +287,8 @@ def _build_entry(
     """Row ``i`` as an entry, and the (sheet, row) each of its rate points came from."""
     texts = cols.texts
     kw: dict[str, Any] = dict(cols.text_defaults)
-    for name, j in cols.text_fields:
-        t = texts[j][i]
+    for name, column in cols.text_fields:
+        t = column[i]
         if t is not None:
             kw[name] = t
     for name, col, unit, err_j, default in cols.value_fields:
@@ -276,6 +307,9 @@ def _build_entry(
         if err is not None and err.lower() in EMPTY_MARKERS:
             err = None
         kw[name] = with_unit(combine_error(t, err), unit)
+    if cols.implied_method and "method" not in kw and kw.get("tc") and kw.get("dnu"):
+        kw["method"] = cols.implied_method
+        cols.implied_rows += 1
     entry = EntryInput(**kw, units=dict(cols.units))
     for key, j in cols.extras:
         t = texts[j][i]

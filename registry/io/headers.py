@@ -13,9 +13,11 @@ for a separate uncertainty column, and the roles ``extra`` and ``ignore``.
 
 from __future__ import annotations
 
+import difflib
 import re
 from dataclasses import dataclass
 
+from registry.errors import UnitError
 from registry.record import fields
 
 #: fields whose cells are physical values, and the quantity kind each is read as
@@ -76,6 +78,8 @@ _GREEK = {
     "Ω": "omega",
 }
 _DAGGERS = ("‡", "≠", "#", "†", "^", "*")
+#: words that join a concept without naming it ("T for ΔG‡", "temperature of coalescence")
+_FILLERS = re.compile(r"\b(?:for|of|at|the|a|an)\b", re.I)
 _UNIT_BRACKETS = re.compile(r"^(?P<name>.*?)\s*[(\[{](?P<unit>[^()\[\]{}]*)[)\]}]\s*$")
 
 
@@ -132,10 +136,14 @@ def _snake_unit(name: str) -> tuple[str, str | None]:
 
 
 def _lookup(concept: str) -> tuple[str | None, bool]:
-    """(field, is_error_column) for a concept part."""
+    """(field, is_error_column) for a concept part (filler words such as "for" dropped when the
+    whole concept is not known: ``T for dG`` is ``T dG``)."""
     key = concept_key(concept)
     if key in CONCEPTS:
         return CONCEPTS[key], False
+    plain = concept_key(_FILLERS.sub(" ", concept))
+    if plain and plain in CONCEPTS:
+        return CONCEPTS[plain], False
     if key in ("", "pm", "plusminus") or concept.strip() in ("±", "+/-", "+-"):
         return None, True  # a bare "±" column: the error of the column before it
     for word in _ERROR_WORDS:
@@ -174,8 +182,66 @@ def guess_header(header: str) -> HeaderGuess:
                 return HeaderGuess(raw, field2, m["unit"], "value")
     if is_error:
         return HeaderGuess(raw, field, unit, "error")
+    if field is None and "/" in raw:  # "E/Z", "Ref/DOI": a slash inside the name, not a unit
+        whole = concept_key(raw)
+        if whole in CONCEPTS:
+            return HeaderGuess(raw, CONCEPTS[whole], None, "value")
     if field is None:
         return HeaderGuess(raw, None, None, "extra")
     if field == "field" and unit is None and concept_key(concept) == "mhz":
         unit = "MHz"
     return HeaderGuess(raw, field, unit, "value")
+
+
+# ---------------------------------------------------------------- hints for unknown headers
+
+#: fields a hint may name: the value fields of an entry, and a rate constant
+_HINT_FIELDS = tuple(
+    f.name for f in fields.FIELDS if f.name in VALUE_QUANTITY and (f.entry or f.name == "k")
+)
+
+
+def quantity_hint(header: str) -> list[str]:
+    """The fields an unrecognised header probably names, best first (empty: no quantity).
+
+    A header looks like a quantity when its unit part is a unit (``Freq / MHz``: a frequency)
+    or its name begins with a field's symbol (``ΔG‡ calc``). Among the fields of that
+    quantity, the one whose header spellings are nearest the name is named alone when it is
+    clearly nearest; otherwise all of them are.
+    """
+    concept, unit = split_header(header)
+    key = concept_key(concept)
+    if unit:
+        fits = [f for f in _HINT_FIELDS if _unit_fits(unit, VALUE_QUANTITY[f])]
+    else:
+        fits = [f for f in _HINT_FIELDS if any(_begins(key, h) for h in fields.BY_NAME[f].headers)]
+    if len(fits) <= 1 or not key:
+        return fits
+    score = {f: _likeness(key, f) for f in fits}
+    best = max(fits, key=lambda f: score[f])
+    return [best] if score[best] >= 0.5 else fits
+
+
+def _begins(key: str, spelling: str) -> bool:
+    """``dgcalc`` begins with the symbol ``dg`` (symbols: spellings of two to three characters)."""
+    return 2 <= len(spelling) <= 3 and key.startswith(spelling) and key != spelling
+
+
+def _likeness(key: str, name: str) -> float:
+    """How near ``key`` is to the field's header spellings (1: begins with its symbol)."""
+    spellings = fields.BY_NAME[name].headers
+    if any(_begins(key, h) for h in spellings):
+        return 1.0
+    return max((difflib.SequenceMatcher(None, key, h).ratio() for h in spellings), default=0.0)
+
+
+def _unit_fits(unit: str, quantity: str) -> bool:
+    from registry.record.units import unit_of  # pint: loaded by the import anyway
+
+    try:
+        unit_of(unit, quantity)
+    except UnitError:
+        return False
+    except Exception:  # pint's parser raises assorted errors on odd text
+        return False
+    return True

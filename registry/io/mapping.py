@@ -14,12 +14,22 @@ The guess (:mod:`registry.io.headers`) is overridden by a mapping file (TOML)::
     [units]                  # field → unit for cells that carry none
     tc = "°C"
 
-    [defaults]               # field → text used for every row where the cell is empty
-    method = "coalescence"
+    [defaults]               # field → text used for every row where the cell is empty,
+    method = "coalescence"   # in the entries sheets only (never in a rates sheet)
     solvent = "CDCl3"
 
+    [defaults."Lit data"]    # defaults of one sheet (over those above)
+    method = "lineshape"
+
+    [spellings.method]       # cell texts this file uses → what they mean (method, process,
+    "VT-NMR (Tc)" = "coalescence"          # solvent, nucleus); compared folded (case,
+    [spellings.solvent]                    # spaces and punctuation do not matter)
+    "CDCl3/CS2" = "chloroform-d"
+
 Header units are checked once here (a temperature unit over an energy column is an error in the
-header, not a hundred errors in the rows).
+header, not a hundred errors in the rows). A sheet with Tc and Δν columns but no method column
+and no method default is read as coalescence data (:attr:`SheetPlan.implied_method`); a header
+that looks like a quantity but is not recognised gets a note naming the field it probably is.
 """
 
 from __future__ import annotations
@@ -30,11 +40,26 @@ from pathlib import Path
 from typing import Any
 
 from registry.errors import FileFormatError, RowProblem, UnitError, UsageError
-from registry.io.headers import FIELDS, VALUE_QUANTITY, HeaderGuess, guess_header
+from registry.io.headers import (
+    EXTRA_PREFIX,
+    FIELDS,
+    VALUE_QUANTITY,
+    HeaderGuess,
+    guess_header,
+    quantity_hint,
+)
 from registry.io.readers import column_letter
+from registry.record import fields as field_table
+from registry.record import vocab
+from registry.record.spelling import fold
 from registry.record.units import unit_of
 
 ROLES = ("extra", "ignore")
+
+#: fields whose cell texts a mapping file may translate (``[spellings.<field>]``)
+SPELLING_FIELDS = ("method", "process", "solvent", "nucleus")
+#: what a sheet with Tc and Δν but no method is read as
+IMPLIED_METHOD = "coalescence"
 
 #: fields that make a sheet an entries sheet
 _ENTRY_FIELDS = {
@@ -64,6 +89,10 @@ class MappingFile:
     units: dict[str, str] = field(default_factory=dict)
     defaults: dict[str, str] = field(default_factory=dict)
     sheets: dict[str, str] = field(default_factory=dict)
+    #: defaults of one sheet (sheet name → field → text), over ``defaults``
+    sheet_defaults: dict[str, dict[str, str]] = field(default_factory=dict)
+    #: field → folded cell text → the text it means
+    spellings: dict[str, dict[str, str]] = field(default_factory=dict)
 
 
 @dataclass
@@ -92,6 +121,10 @@ class SheetPlan:
     columns: list[Column]
     defaults: dict[str, str] = field(default_factory=dict)
     notes: list[str] = field(default_factory=list)
+    #: field → folded cell text → the text it means (the mapping file's ``[spellings]``)
+    spellings: dict[str, dict[str, str]] = field(default_factory=dict)
+    #: the method of rows that give Tc and Δν, when the sheet names none
+    implied_method: str | None = None
 
     def value_columns(self) -> dict[str, Column]:
         return {c.field: c for c in self.columns if c.role == "value" and c.field}
@@ -143,19 +176,62 @@ def load_mapping(path: str | Path | None) -> MappingFile:
                 f"use one of {', '.join(sorted(allowed))}"
             )
         out.columns[str(header).strip()] = (target, unit)
-    for key, section in (("units", out.units), ("defaults", out.defaults)):
-        for name, value in (data.get(key) or {}).items():
-            if name not in FIELDS:
-                raise UsageError(f"mapping file {p}: [{key}] {name!r} is not a field")
-            section[name] = str(value)
+    for name, value in (data.get("units") or {}).items():
+        if name not in FIELDS:
+            raise UsageError(f"mapping file {p}: [units] {name!r} is not a field")
+        out.units[name] = str(value)
+    _load_defaults(p, data.get("defaults") or {}, out)
+    _load_spellings(p, data.get("spellings") or {}, out)
     for kind, name in (data.get("sheets") or {}).items():
         if kind not in ("entries", "rates"):
             raise UsageError(f"mapping file {p}: [sheets] keys are 'entries' and 'rates'")
         out.sheets[kind] = str(name)
-    unknown = set(data) - {"columns", "units", "defaults", "sheets"}
+    unknown = set(data) - {"columns", "units", "defaults", "sheets", "spellings"}
     if unknown:
         raise UsageError(f"mapping file {p}: unknown section(s) {', '.join(sorted(unknown))}")
     return out
+
+
+def _load_defaults(p: Path, section: dict[str, Any], out: MappingFile) -> None:
+    """``[defaults]``: field = text, or a table of one sheet's defaults."""
+    for name, value in section.items():
+        table = value if isinstance(value, dict) else {name: value}
+        for field_name, text in table.items():
+            if field_name not in FIELDS:
+                where = f"[defaults.{name!r}]" if isinstance(value, dict) else "[defaults]"
+                raise UsageError(f"mapping file {p}: {where} {field_name!r} is not a field")
+            if isinstance(value, dict):
+                out.sheet_defaults.setdefault(str(name), {})[field_name] = str(text)
+            else:
+                out.defaults[field_name] = str(text)
+
+
+def _load_spellings(p: Path, section: dict[str, Any], out: MappingFile) -> None:
+    """``[spellings.<field>]``: cell text = what it means; methods and nuclei checked here."""
+    for name, table in section.items():
+        if name not in SPELLING_FIELDS:
+            raise UsageError(
+                f"mapping file {p}: [spellings.{name}]: spellings are for "
+                f"{', '.join(SPELLING_FIELDS)}"
+            )
+        if not isinstance(table, dict):
+            raise UsageError(
+                f"mapping file {p}: [spellings.{name}] is a table of cell text = meaning, "
+                f'e.g. "VT-NMR (Tc)" = "coalescence"'
+            )
+        for spelled, target in table.items():
+            key = fold(str(spelled))
+            where = f"mapping file {p}: [spellings.{name}] {spelled!r} → {target!r}"
+            if not key or not isinstance(target, str) or not target.strip():
+                raise UsageError(f"{where}: give a cell text and a non-empty meaning")
+            try:
+                if name == "method":
+                    target = vocab.method_name(target)
+                elif name == "nucleus":
+                    target = vocab.nucleus_name(target)
+            except UnitError as exc:
+                raise UsageError(f"{where}: {exc.reason}") from exc
+            out.spellings.setdefault(name, {})[key] = target.strip()
 
 
 def plan_sheet(
@@ -198,7 +274,41 @@ def plan_sheet(
             _check_header_unit(file, sheet, header_row, col, problems, notes)
         elif col.role == "value" and col.field not in VALUE_QUANTITY and col.unit:
             col.unit = None  # "Solvent (deuterated)": a remark, not a unit
-    return SheetPlan(sheet, kind, header_row, columns, dict(mapping.defaults), notes)
+    notes.extend(_hints(columns))
+    plan = SheetPlan(sheet, kind, header_row, columns, notes=notes, spellings=mapping.spellings)
+    if kind == "entries":  # defaults belong to entry rows: a rates sheet never gets them
+        plan.defaults = {**mapping.defaults, **mapping.sheet_defaults.get(sheet or "", {})}
+        have = {c.field for c in columns if c.role == "value"}
+        if "method" not in have and "method" not in plan.defaults and {"tc", "dnu"} <= have:
+            plan.implied_method = IMPLIED_METHOD
+    return plan
+
+
+def _titled(name: str) -> str:
+    """``ΔG‡ (dg)``; ``Tc``, ``k (rate point)`` where the title already says the name."""
+    title = field_table.BY_NAME[name].title
+    return title if fold(title).startswith(fold(name)) else f"{title} ({name})"
+
+
+def _hints(columns: list[Column]) -> list[str]:
+    """Notes on unrecognised headers that look like a quantity: the field each probably is."""
+    out = []
+    for col in columns:
+        if col.role != "extra" or col.source != "guess":
+            continue
+        if col.header.lower().startswith(EXTRA_PREFIX):
+            continue
+        likely = quantity_hint(col.header)
+        if not likely:
+            continue
+        named = [_titled(f) for f in likely]
+        which = named[0] if len(named) == 1 else "one of " + ", ".join(named)
+        out.append(
+            f"column {col.letter} {col.header!r} looks like a quantity but was not recognised: "
+            f"probably {which}; kept as an extra attribute — rename the header or map it in a "
+            f'mapping file ([columns] "{col.header}" = "{likely[0]}")'
+        )
+    return out
 
 
 def _column(index: int, header: str, mapping: MappingFile, previous: Column | None) -> Column:
@@ -244,7 +354,7 @@ def _sheet_kind(sheet: str | None, columns: list[Column], mapping: MappingFile) 
     """entries, rates or skip; a bare T is ΔG‡'s temperature in entries, the rate's in rates."""
     value_fields = {c.field for c in columns if c.role == "value"}
     kind = "skip"
-    if value_fields & _ENTRY_FIELDS or "method" in mapping.defaults:
+    if value_fields & _ENTRY_FIELDS:
         kind = "entries"
     elif "k" in value_fields and ({"t", "dg_t"} & value_fields) and "label" in value_fields:
         kind = "rates"

@@ -91,10 +91,15 @@ def _plan_sheets(
                 f"sheet {rs.name!r}: no recognised entry or rate columns "
                 f"(headers: {', '.join(c.header for c in plan.columns) or 'none'}); skipped"
             )
+            result.notes.extend(plan.notes)  # hints on headers that look like quantities
             continue
         result.notes.extend(plan.notes)
         result.plans.append(plan)
         planned.append((rs, plan, head))
+    named = {rs.name for rs in sheets}
+    for name in mapping.sheet_defaults:
+        if name not in named:
+            result.notes.append(f"mapping file: [defaults.{name!r}] names no sheet of this file")
     if not planned and not result.problems:
         where = f"sheet {wanted!r}" if wanted else "the file"
         raise FileFormatError(

@@ -8,7 +8,6 @@ of an entry are collected (not just the first), each naming the field and the te
 from __future__ import annotations
 
 import math
-import re
 from dataclasses import dataclass
 from dataclasses import field as dc_field
 from typing import Any
@@ -16,6 +15,7 @@ from typing import Any
 from registry.errors import FluxledgerError, UnitError
 from registry.record import fields, vocab
 from registry.record.nuclei import observe_frequency_mhz
+from registry.record.spelling import read_nucleus
 from registry.record.units import ParsedValue, parse_value
 
 #: value fields read on their own (the frequency is read first and Δν at it)
@@ -147,12 +147,16 @@ def _parse(
 
 
 def normalize_entry(
-    inp: EntryInput, known_kinds: tuple[str, ...] = ()
+    inp: EntryInput, known_kinds: vocab.Vocabulary | tuple[str, ...] = ()
 ) -> tuple[NormalizedEntry | None, list[Problem]]:
-    """Check and convert one entry; returns the entry (or None) and every problem found."""
+    """Check and convert one entry; returns the entry (or None) and every problem found.
+
+    ``known_kinds`` is the registry's :class:`~registry.record.vocab.Vocabulary` (its process
+    kinds and stored aliases), or just its process kinds.
+    """
     problems: list[Problem] = []
-    method, kind, status = _vocabulary(inp, known_kinds, problems)
-    values = _values(inp, problems)
+    method, kind, status, nucleus = _vocabulary(inp, vocab.Vocabulary.of(known_kinds), problems)
+    values = _values(inp, nucleus, problems)
     ratio = _population(inp, problems)
     rates = _rates(inp, problems)
     if problems:
@@ -177,7 +181,7 @@ def normalize_entry(
     return (
         NormalizedEntry(
             compound,
-            _process(inp, kind),
+            _process(inp, kind, nucleus),
             measurement,
             _coalescence(inp, values, ratio),
             rates,
@@ -188,22 +192,29 @@ def normalize_entry(
 
 
 def _vocabulary(
-    inp: EntryInput, known_kinds: tuple[str, ...], problems: list[Problem]
-) -> tuple[str | None, str | None, str]:
-    """Method, process kind and status in the registry's own words (problems collected)."""
+    inp: EntryInput, vocabulary: vocab.Vocabulary, problems: list[Problem]
+) -> tuple[str | None, str | None, str, str]:
+    """Method, process kind, status and nucleus in the registry's own words (problems
+    collected)."""
     method = kind = None
+    nucleus = ""
     if blank(inp.method):
         problems.append(Problem("method", "", f"required; one of {', '.join(vocab.METHODS)}"))
     else:
         try:
-            method = vocab.method_name(str(inp.method))
+            method = vocab.method_name(str(inp.method), vocabulary=vocabulary)
         except UnitError as exc:
             problems.append(Problem("method", str(inp.method), exc.reason))
+    if not blank(inp.nucleus):
+        try:
+            nucleus = vocab.nucleus_name(str(text_of(inp.nucleus)), vocabulary)
+        except UnitError as exc:
+            problems.append(Problem("nucleus", str(inp.nucleus), exc.reason))
     if blank(inp.smiles) and blank(inp.compound) and blank(inp.name):
         problems.append(Problem("compound", "", "give a SMILES, a compound label or a name"))
     if not blank(inp.process):
         try:
-            kind = vocab.process_kind_name(str(inp.process), known_kinds)
+            kind = vocab.process_kind_name(str(inp.process), vocabulary)
         except UnitError as exc:
             problems.append(Problem("process", str(inp.process), exc.reason))
     status = "draft"
@@ -212,10 +223,10 @@ def _vocabulary(
             status = vocab.status_name(str(inp.status))
         except UnitError as exc:
             problems.append(Problem("status", str(inp.status), exc.reason))
-    return method, kind, status
+    return method, kind, status, nucleus
 
 
-def _values(inp: EntryInput, problems: list[Problem]) -> dict[str, ParsedValue]:
+def _values(inp: EntryInput, nucleus: str, problems: list[Problem]) -> dict[str, ParsedValue]:
     """Every value field read in its canonical unit: the frequency first, Δν (in ppm) at the
     observed nucleus' frequency; coalescence data checked for completeness."""
     values: dict[str, ParsedValue] = {}
@@ -232,7 +243,7 @@ def _values(inp: EntryInput, problems: list[Problem]) -> dict[str, ParsedValue]:
             values[name] = parsed
     before = len(problems)
     mhz = field_v.value if field_v else None
-    observe_mhz = _observe_mhz(mhz, normalize_nucleus(inp.nucleus), inp, problems)
+    observe_mhz = _observe_mhz(mhz, nucleus, inp, problems)
     dnu_refused = len(problems) > before
     dnu = None if dnu_refused else _parse(inp, "dnu", problems, mhz=observe_mhz)
     if dnu is not None:
@@ -318,14 +329,14 @@ def _coalescence(
     return row
 
 
-def _process(inp: EntryInput, kind: str | None) -> dict[str, Any] | None:
+def _process(inp: EntryInput, kind: str | None, nucleus: str) -> dict[str, Any] | None:
     """What moves: the kind given, or ``other`` when only sites or a nucleus are given."""
     if kind is None and blank(inp.sites) and blank(inp.nucleus):
         return None
     return {
         "kind": kind or "other",
         "sites": text_of(inp.sites) or "",
-        "nucleus": normalize_nucleus(inp.nucleus),
+        "nucleus": nucleus,
     }
 
 
@@ -352,15 +363,9 @@ def _observe_mhz(
 
 
 def normalize_nucleus(text: object) -> str:
-    """'1H', 'H-1', '¹H', '13C' … → '1H', '13C'."""
+    """'1H', 'H-1', '¹H', '13C', 'proton' … → '1H', '13C'; a text that is no nucleus comes back
+    as written (for filters; entries refuse it, see :func:`registry.record.vocab.nucleus_name`)."""
     t = text_of(text)
     if not t:
         return ""
-    sup = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹", "0123456789")
-    t = t.translate(sup).replace(" ", "")
-    m = re.fullmatch(r"(\d+)([A-Za-z]{1,2})", t) or re.fullmatch(r"([A-Za-z]{1,2})-?(\d+)", t)
-    if not m:
-        return t
-    a, b = m.groups()
-    mass, sym = (a, b) if a.isdigit() else (b, a)
-    return f"{mass}{sym[0].upper()}{sym[1:].lower()}"
+    return read_nucleus(t) or t

@@ -100,7 +100,8 @@ FIELDS: tuple[Field, ...] = (
     _text("sites", "exchanging sites", "process", "sites", headers=(
         "sites", "exchangingsites", "signals", "groups", "probe", "probesignal")),
     _text("nucleus", "observed nucleus", "process", "nucleus", headers=(
-        "nucleus", "nuc", "observednucleus", "isotope", "nuclide")),
+        "nucleus", "nuc", "nucl", "nuclei", "observednucleus", "obsnucleus", "isotope",
+        "nuclide")),
     _text("method", "method", "measurement", "method", headers=(
         "method", "technique", "methodology", "approach", "nmrmethod")),
     _text("solvent", "solvent", "measurement", "solvent_text", headers=(
@@ -108,7 +109,7 @@ FIELDS: tuple[Field, ...] = (
     _value("field", "spectrometer frequency", "field", "measurement", "field_mhz", error=False,
            headers=("field", "spectrometer", "spectrometerfrequency", "frequency", "nmrfield",
                     "b0", "observefrequency", "sf", "instrument", "magnet", "nmrfrequency",
-                    "mhz")),
+                    "mhz", "freq", "specfreq", "spectrometerfreq", "nmrfreq", "fieldstrength")),
     _value("t_min", "lowest temperature", "temperature", "measurement", "t_min_k", error=False,
            headers=("tmin", "tlow", "lowestt", "tstart")),
     _value("t_max", "highest temperature", "temperature", "measurement", "t_max_k", error=False,
@@ -134,13 +135,17 @@ FIELDS: tuple[Field, ...] = (
         "coalescencet", "tcoalesc")),
     _value("dnu", "Δν", "shift", "coalescence", "dnu_hz", headers=(
         "dnu", "dv", "dnu0", "dv0", "dd", "dnuab", "dvab", "shiftdifference", "dshift",
-        "separation", "peakseparation", "signalseparation", "splitting", "frequencydifference")),
+        "separation", "peakseparation", "signalseparation", "splitting", "frequencydifference",
+        "ddelta", "shiftdiff", "chemicalshiftdifference")),
     _value("j", "J", "frequency", "coalescence", "j_hz", error=False, headers=(
         "j", "jab", "jhh", "coupling", "couplingconstant", "jcoupling", "2j")),
     _text("population", "population ratio", "coalescence", "population_text", headers=(
-        "population", "populations", "popratio", "papb", "ratio", "majorminor")),
+        "population", "populations", "popratio", "papb", "ratio", "majorminor", "pop",
+        "populationratio", "ez", "ze", "ezratio", "isomerratio", "rotamerratio",
+        "conformerratio")),
     _text("reference", "reference", "measurement", "reference", headers=(
-        "ref", "reference", "references", "doi", "citation", "source", "literature")),
+        "ref", "reference", "references", "doi", "citation", "source", "literature", "lit",
+        "litref")),
     _text("status", "status", "measurement", "status", headers=("status",)),
     # the columns of a rates sheet: one rate constant at one temperature
     _value("t", "T (rate point)", "temperature", "rate_point", "t_k", editable=False,

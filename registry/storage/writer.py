@@ -43,43 +43,71 @@ _REFERENCE_CACHE: dict[str, dict[str, Any]] = {}
 
 
 def _reference_cache(conn: Connection) -> dict[str, Any]:
-    """The small reference tables (solvent spellings, process kinds), read again when they change.
+    """The small reference tables (solvent spellings, process kinds, stored aliases), read again
+    when they change.
 
     Every single ``add`` needs them; building the spelling index each time cost a quarter of a
-    write. Kept per process, keyed on what the two tables hold (sizes and largest id).
+    write. Kept per process, keyed on the ``vocabulary`` change counter (it moves on every
+    insert, update and delete of ``solvent``, ``process_kind`` and ``vocab_alias``) and on the
+    sizes of those tables (a file restored from a backup may carry another count).
     """
     stamp = conn.first(
-        "SELECT (SELECT count(*) FROM solvent), (SELECT max(id) FROM solvent), "
-        "(SELECT count(*) FROM process_kind), "
-        "(SELECT coalesce(sum(length(aliases)), 0) FROM solvent)"
+        "SELECT (SELECT n FROM change_counter WHERE name = 'vocabulary'), "
+        "(SELECT count(*) FROM solvent), (SELECT max(id) FROM solvent), "
+        "(SELECT count(*) FROM process_kind), (SELECT count(*) FROM vocab_alias), "
+        "(SELECT max(id) FROM vocab_alias)"
     )
     cache = _REFERENCE_CACHE.get(conn.source)
     if cache is None or cache.get("stamp") != stamp:
-        index: dict[str, int] = {}
-        for sid, name, formula, aliases in conn.rows(
-            "SELECT id, name, formula, aliases FROM solvent ORDER BY id"
-        ):
-            for spelling in (name, formula, *(aliases or "").split("|")):
-                if spelling:
-                    index.setdefault(vocab.solvent_key(spelling), sid)
-        kinds = tuple(conn.column("SELECT name FROM process_kind ORDER BY name"))
-        cache = _REFERENCE_CACHE[conn.source] = {"stamp": stamp, "solvents": index, "kinds": kinds}
+        index, vocabulary = read_reference_tables(conn)
+        cache = _REFERENCE_CACHE[conn.source] = {
+            "stamp": stamp,
+            "solvents": index,
+            "vocabulary": vocabulary,
+        }
     return cache
 
 
+def read_reference_tables(conn: Connection) -> tuple[dict[str, int], vocab.Vocabulary]:
+    """Every spelling key of every solvent (stored aliases too) → its id, and the registry's
+    vocabulary, read now without the cache (what a transaction that changes them must see)."""
+    index: dict[str, int] = {}
+    by_name: dict[str, int] = {}
+    for sid, name, formula, aliases in conn.rows(
+        "SELECT id, name, formula, aliases FROM solvent ORDER BY id"
+    ):
+        by_name[name] = sid
+        for spelling in (name, formula, *(aliases or "").split("|")):
+            if spelling:
+                index.setdefault(vocab.solvent_key(spelling), sid)
+    stored = tuple(
+        (str(kind), str(alias), str(target))
+        for kind, alias, target in conn.rows(
+            "SELECT kind, alias, target FROM vocab_alias ORDER BY id"
+        )
+    )
+    for kind, alias, target in stored:  # a group's own spellings of its solvents
+        if kind == "solvent" and target in by_name:
+            index.setdefault(vocab.solvent_key(alias), by_name[target])
+    kinds = tuple(conn.column("SELECT name FROM process_kind ORDER BY name"))
+    return index, vocab.Vocabulary(kinds, stored)
+
+
 def solvent_index(conn: Connection) -> dict[str, int]:
-    """Every spelling key of every solvent → its id."""
+    """Every spelling key of every solvent (stored aliases too) → its id."""
     return _reference_cache(conn)["solvents"]
 
 
-def cached_process_kinds(key: str) -> tuple[str, ...] | None:
-    """The process kinds last read from the registry ``key`` in this process (no query)."""
+def cached_process_kinds(key: str) -> vocab.Vocabulary | None:
+    """The vocabulary last read from the registry ``key`` in this process (no query)."""
     cache = _REFERENCE_CACHE.get(key)
-    return cache["kinds"] if cache else None
+    return cache["vocabulary"] if cache else None
 
 
-def known_process_kinds(conn: Connection) -> tuple[str, ...]:
-    return _reference_cache(conn)["kinds"]
+def known_process_kinds(conn: Connection) -> vocab.Vocabulary:
+    """The registry's :class:`~registry.record.vocab.Vocabulary`: its process kinds and the
+    aliases its users stored (what :func:`registry.record.entry.normalize_entry` reads with)."""
+    return _reference_cache(conn)["vocabulary"]
 
 
 def _compound_row(

@@ -32,6 +32,7 @@ from registry.validation.rule_temperatures import (
     TemperatureAboveZero,
     TemperatureRangeOrder,
 )
+from registry.validation.rule_vocabulary import SolventInTable
 
 #: every rule, in the order findings are listed
 RULES: tuple[Rule, ...] = (
@@ -43,6 +44,7 @@ RULES: tuple[Rule, ...] = (
     TemperatureRangeOrder(),
     CoalescenceInMeasuredRange(),
     SolventLiquidRange(),
+    SolventInTable(),
     BarrierInMethodRange(),
     ShiftMatchesField(),
     PpmConvertedAtObserveFrequency(),
