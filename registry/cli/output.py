@@ -80,8 +80,8 @@ def csv_text(rows: Iterable[Mapping[str, Any]], columns: Sequence[str] | None = 
     rows = list(rows)
     out = io.StringIO()
     cols = list(columns or (rows[0].keys() if rows else []))
+    csv.writer(out, lineterminator="\n").writerow(cols)  # plain column names
     writer = csv.writer(out, lineterminator="\n", quoting=csv.QUOTE_NONNUMERIC)
-    writer.writerow(cols)
     for r in rows:
         writer.writerow([_csv_cell(api.spreadsheet_safe(_jsonable(r.get(c)))) for c in cols])
     return out.getvalue()

@@ -18,7 +18,6 @@ imported for a server URL and for schema migrations (:meth:`Database.sqlalchemy_
 
 from __future__ import annotations
 
-import contextlib
 import os
 import random
 import sqlite3
@@ -128,7 +127,7 @@ class Database:
         if self.path is None:
             target, uri = ":memory:", False
         else:
-            target, uri = f"file:{_uri_path(self.path)}?mode=rwc", True
+            target, uri = f"file:{uri_path(self.path)}?mode=rwc", True
         try:
             raw = sqlite3.connect(
                 target,
@@ -234,31 +233,10 @@ class Database:
         return DatabaseError(f"{self.name} is not a readable registry: {reason}")
 
     def situation(self, exc: BaseException) -> DatabaseError | None:
-        """A user's situation behind a SQLite error (permissions, a full disk), said plainly;
-        None for anything else (which is then a bug, and shows as one)."""
-        message = str(exc).lower()
-        path, folder = self.path, self.path.parent if self.path else None
-        if path is None or not isinstance(exc, sqlite3.DatabaseError):
-            return None
-        if "readonly" in message or "read-only" in message:
-            return DatabaseError(
-                f"cannot write {path}: the file (or its folder) is read-only; ask for write "
-                "access, or work on a copy"
-            )
-        if "disk is full" in message or "disk i/o error" in message:
-            return DatabaseError(
-                f"cannot write {path}: the disk is full or failing ({exc}); nothing was written"
-            )
-        if "unable to open database file" in message:
-            if folder is not None and not os.access(folder, os.W_OK):
-                return DatabaseError(
-                    f"cannot open {path}: its folder {folder} is not writable (SQLite keeps "
-                    f"{path.name}-wal and {path.name}-shm beside the file); ask for write "
-                    "access, or copy the registry somewhere writable"
-                )
-            if path.exists() and not os.access(path, os.R_OK | os.W_OK):
-                return DatabaseError(f"cannot open {path}: permission denied")
-        return None
+        """A user's situation behind a SQLite error said plainly (see :mod:`.situations`)."""
+        from registry.storage.situations import explain
+
+        return explain(self.path, exc)
 
     # -- writes
 
@@ -330,7 +308,7 @@ class Database:
     dispose = close
 
 
-def _uri_path(path: Path) -> str:
+def uri_path(path: Path) -> str:
     """A file path quoted for an SQLite URI (``?`` and ``#`` would end the path)."""
     return str(path).replace("%", "%25").replace("?", "%3f").replace("#", "%23")
 
@@ -472,44 +450,15 @@ def open_registry(db: str) -> Database:
     return database
 
 
-def _refuse_foreign(database: Database) -> None:
-    """``init`` on a database that holds another program's tables changes nothing in it (a
-    SQLite file is looked at read-only: opening it as a registry would switch it to WAL)."""
-    if database.is_sqlite:
-        path = database.path
-        if path is None or not path.exists() or not path.stat().st_size:
-            return
-        try:
-            with contextlib.closing(
-                sqlite3.connect(f"file:{_uri_path(path)}?mode=ro", uri=True)
-            ) as raw:
-                tables = [r[0] for r in raw.execute(_SQLITE_TABLES)]
-        except sqlite3.DatabaseError as exc:
-            raise database._unreadable(exc) from exc
-    else:
-        with database.read() as conn:
-            tables = conn.column(
-                "SELECT table_name FROM information_schema.tables "
-                "WHERE table_schema = current_schema() AND table_type = 'BASE TABLE'"
-            )
-    if tables and "alembic_version" not in tables:
-        shown = ", ".join(sorted(tables)[:5]) + (" …" if len(tables) > 5 else "")
-        raise DatabaseError(
-            f"{database.name} holds tables of another program ({shown}); a registry needs a "
-            "new file or an empty database"
-        )
-
-
-_SQLITE_TABLES = "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'"
-
-
 def create_registry(db: str) -> Database:
     """Create a registry (or bring an existing one to the current schema); returns it open."""
     from registry.storage import migrate
 
     database = open_database(db, must_exist=False)
     try:
-        _refuse_foreign(database)
+        from registry.storage.situations import refuse_foreign
+
+        refuse_foreign(database)
         migrate.upgrade(database)
     except DatabaseError:
         database.close()
