@@ -50,6 +50,8 @@ def _failed(report: dict) -> dict[str, list[str]]:
 
 @pytest.fixture
 def filled(cli, db_path: Path) -> Path:  # type: ignore[no-untyped-def]
+    """Two measurements whose ΔG‡ disagree with their Tc and Δν (coalescence-barrier errors),
+    so the check after each add flags them: 5 revisions (add, flag, add, flag, edit)."""
     assert cli(*ADD).exit_code == 0
     assert cli(*ADD[:-4], "--dg", "59 kJ/mol").exit_code == 0
     assert cli("edit", "2", "--set", "tc=-10 °C").exit_code == 0
@@ -64,7 +66,7 @@ def test_verify_a_clean_registry(cli, filled: Path) -> None:  # type: ignore[no-
         "  ok      integrity",
         "  ok      foreign keys",
         "  ok      schema  (at head " + migrate.head_revision() + "; tables match the models)",
-        "  ok      history  (3 revisions, hash chain)",
+        "  ok      history  (5 revisions, hash chain)",
         "  ok      values  (12 reported values read again)",
         "all checks passed",
     ]
@@ -142,7 +144,7 @@ def test_backup_then_restore_into_a_new_file(cli, filled: Path, tmp_path: Path) 
     dest = tmp_path / "copy.sqlite"
     result = cli("backup", str(dest))
     assert result.exit_code == 0, result.stderr
-    assert result.stdout.startswith(f"backup written: {dest} (2 measurements, 3 revisions, schema ")
+    assert result.stdout.startswith(f"backup written: {dest} (2 measurements, 5 revisions, schema ")
     assert not Path(f"{dest}-wal").exists()  # a single self-contained file
     assert _verify(dest)["ok"]
     again = cli("backup", str(dest))
@@ -159,7 +161,7 @@ def test_backup_then_restore_into_a_new_file(cli, filled: Path, tmp_path: Path) 
     restored = CliRunner().invoke(app, ["--db", str(target), "restore", str(dest)])
     assert restored.exit_code == 0, restored.stderr
     assert restored.stdout == (
-        f"restored {target} from {dest} (2 measurements, 3 revisions, schema "
+        f"restored {target} from {dest} (2 measurements, 5 revisions, schema "
         f"{migrate.head_revision()})\n"
     )
     assert _verify(target)["ok"]
@@ -199,7 +201,7 @@ def test_restore_over_a_registry_needs_force_and_keeps_a_safety_copy(
     safety = Path(first.split(" to ", 1)[1])
     database = api.open_registry(str(filled))
     try:  # back to the state of the backup: the retraction is gone
-        assert api.get_measurement(database, 1)["status"] == "draft"
+        assert api.get_measurement(database, 1)["status"] == "flagged"
     finally:
         database.close()
     conn = sqlite3.connect(safety)
