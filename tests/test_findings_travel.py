@@ -156,7 +156,7 @@ def test_find_marks_selects_and_keeps_flagged_values_out_of_ranges(cli, filled) 
     assert {int(line.split()[0]): "yes" in line.split() for line in body} == {
         ids["a1"]: False, ids["a2"]: True, ids["b"]: False,
     }  # fmt: skip
-    assert "(1 shown flagged)" in table.stderr
+    assert table.stderr.endswith("; 1 of the rows shown flagged (an error finding is open)\n")
     as_json = json.loads(cli("find", "--smarts", amides, "--json").stdout)
     assert {r["id"]: r["flagged"] for r in as_json["measurements"]} == {
         ids["a1"]: 0, ids["a2"]: 1, ids["b"]: 0,
@@ -236,9 +236,8 @@ def test_show_marks_a_flagged_measurement(cli, filled) -> None:  # type: ignore[
     lines = shown.stdout.splitlines()
     assert lines[0].startswith(f"measurement {ids['a2']}  [flagged]")
     assert lines[1] == (
-        f"  FLAGGED      finding {finding['id']}: an error finding is open (not resolved, not "
-        "accepted); the value is left out of barrier ranges, overview plots and paper tables "
-        "unless asked for"
+        f"  FLAGGED      error finding {finding['id']} open: left out of barrier ranges, overview"
+        " plots and paper tables unless asked for, until the finding is resolved or accepted"
     )
     assert "FLAGGED" not in cli("show", str(ids["a1"])).stdout
     assert json.loads(cli("show", str(ids["a2"]), "--json").stdout)["flagged"] is True
@@ -405,6 +404,27 @@ def test_an_edit_cannot_contradict_an_open_finding(cli, filled) -> None:  # type
     assert api.get_measurement(database, a2) == before
     with pytest.raises(UsageError, match="'flagged' is set by the checks"):
         api.add_measurement(database, dataclasses.replace(ENTRIES["b"], status="flagged"))
+    # correcting the value resolves the finding: the edit says the status went back
+    fixed = cli("edit", str(a2), "--set", f"dg={A1_DG:.2f} kJ/mol")
+    assert fixed.exit_code == 0, fixed.stderr
+    assert fixed.stdout.splitlines()[-1] == "  status: flagged → draft (set by the check)"
+    assert cli("edit", str(a2), "--set", "status=reviewed").exit_code == 0
+
+
+def test_add_says_when_the_new_measurement_is_flagged(cli) -> None:  # type: ignore[no-untyped-def]
+    entry = ENTRIES["c"]
+    added = cli(
+        "add", "--method", "coalescence", "--compound", "FT-C", "--smiles", "C1CCCCC1",
+        "--process", "ring-inversion", "--solvent", "CD2Cl2", "--mhz", "400", "--tc", entry.tc,
+        "--dnu", entry.dnu, "--dg", entry.dg,
+    )  # fmt: skip
+    assert added.exit_code == 0, added.stderr
+    lines = added.stdout.splitlines()
+    assert lines[1].startswith("  error: ΔG‡ ")
+    assert lines[-1] == (
+        "  status flagged: left out of barrier ranges, overview plots and paper tables unless "
+        "asked for, until the finding is resolved or accepted"
+    )
 
 
 def test_accepting_returns_the_status_and_survives_rechecks(filled) -> None:  # type: ignore[no-untyped-def]

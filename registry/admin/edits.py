@@ -189,7 +189,13 @@ def edit_measurement(
 
     result = database.write(work)
     if result["changed"]:
-        result["findings"] = revalidate(database, measurement_id, actor=who)
+        checked: dict[str, Any] = {}
+        result["findings"] = revalidate(database, measurement_id, actor=who, report=checked)
+        # the status the check set (flagged, or back): {"before", "after"}, or None
+        changes = checked.get("status_changes") or ()
+        result["status_change"] = (
+            {"before": changes[0]["before"], "after": changes[0]["after"]} if changes else None
+        )
     return result
 
 
@@ -353,12 +359,17 @@ def retract_measurement(
 
 
 def revalidate(
-    database: Database, measurement_id: int, *, actor: str | None = None
+    database: Database,
+    measurement_id: int,
+    *,
+    actor: str | None = None,
+    report: dict[str, Any] | None = None,
 ) -> list[dict[str, Any]] | None:
     """Re-run the validation rules for one edited measurement; its open findings (None: no rules).
 
-    A status the check changes (flagged, or back) is recorded under ``actor``, the editor.
-    Looked up at run time so that an edit still works in a build without the validation package.
+    A status the check changes (flagged, or back) is recorded under ``actor``, the editor, and
+    put in ``report["status_changes"]`` when ``report`` is given. Looked up at run time so that
+    an edit still works in a build without the validation package.
     """
     try:
         from registry import validation
@@ -367,8 +378,10 @@ def revalidate(
     check = getattr(validation, "check_measurements", None)
     if check is None:
         return None
-    report = check(database, [measurement_id], actor=actor)
-    findings = getattr(report, "findings", report) or []
+    checked = check(database, [measurement_id], actor=actor)
+    if report is not None:
+        report["status_changes"] = list(getattr(checked, "status_changes", ()))
+    findings = getattr(checked, "findings", checked) or []
     out = []
     for f in findings:
         body = f.as_dict() if hasattr(f, "as_dict") else dict(f)

@@ -169,8 +169,8 @@ def _fmt(value: Any, err: Any, unit: str, text: Any) -> str:
 
 #: what a flagged measurement's mark says (add, show)
 _FLAGGED_NOTE = (
-    "an error finding is open (not resolved, not accepted); the value is left out of barrier "
-    "ranges, overview plots and paper tables unless asked for"
+    "left out of barrier ranges, overview plots and paper tables unless asked for, until the "
+    "finding is resolved or accepted"
 )
 
 
@@ -187,7 +187,7 @@ def _show_text(r: dict[str, Any]) -> str:
             for f in r["findings"]
             if f["severity"] == "error" and not f.get("accepted_by")
         )
-        lines.insert(1, f"  FLAGGED      finding {open_ids}: {_FLAGGED_NOTE}")
+        lines.insert(1, f"  FLAGGED      error finding {open_ids} open: {_FLAGGED_NOTE}")
     if c.get("inchikey"):
         lines.append(f"  InChIKey     {c['inchikey']}")
     if c and not c.get("structure_ok", True):

@@ -175,16 +175,19 @@ def _summary(result: Any) -> str:
         else f"{result.total_rows:,} measurement(s)"
     )
     flagged = sum(1 for r in result.rows if r.get("flagged"))
-    marked = f" ({flagged:,} shown flagged)" if flagged else ""
+    marked = (
+        f"; {flagged:,} of the rows shown flagged (an error finding is open)" if flagged else ""
+    )
     return (
-        f"{shown}{marked} on {s.with_rows:,} compound(s); {s.matched:,} of {s.searched:,} "
-        f"compound(s) searched match ({s.screened:,} passed the fingerprint and element screens)"
+        f"{shown} on {s.with_rows:,} compound(s); {s.matched:,} of {s.searched:,} compound(s) "
+        f"searched match ({s.screened:,} passed the fingerprint and element screens){marked}"
     )
 
 
 def _render_compounds(result: Any, limit: int | None, as_json: bool, as_csv: bool) -> None:
     rows = result.compound_table()
     total = len(rows)
+    left_out = sum(r["flagged"] for r in rows)
     if limit is not None:
         rows = rows[:limit]
     if as_json:
@@ -211,7 +214,6 @@ def _render_compounds(result: Any, limit: int | None, as_json: bool, as_csv: boo
     render_rows(rows, as_csv=as_csv, columns=columns)
     more = f" (showing {len(rows):,})" if len(rows) < total else ""
     typer.echo(f"{total:,} matching compound(s) with measurements{more}", err=True)
-    left_out = sum(r["flagged"] for r in rows)
     if left_out and not result.include_flagged:
         typer.echo(
             f"{left_out:,} flagged measurement(s) not counted in the ranges (--include-flagged "

@@ -141,8 +141,16 @@ def _mark_observed(ax: Axes, observed: Sequence[Mapping[str, Any]]) -> None:
     if not points:
         return
     for flagged, style, label in (
-        (False, {"marker": "D", "color": theme.DATA}, "observed in the registry"),
-        (True, {"marker": "X", "color": theme.WARN}, "observed, flagged: an error finding is open"),
+        (
+            False,
+            {"marker": "D", "color": theme.DATA, "markersize": 6.5},
+            "observed in the registry",
+        ),
+        (
+            True,
+            {"marker": "X", "color": theme.WARN, "markersize": 9.0},
+            "observed, flagged: an error finding is open",
+        ),
     ):
         chosen = [o for o in points if bool(o.get("flagged")) == flagged]
         if not chosen:
@@ -151,7 +159,6 @@ def _mark_observed(ax: Axes, observed: Sequence[Mapping[str, Any]]) -> None:
             [o["field_mhz"] for o in chosen],
             [o["tc_k"] for o in chosen],
             linestyle="none",
-            markersize=6.5,
             markeredgecolor=theme.PAPER,
             label=label,
             zorder=3,
