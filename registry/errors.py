@@ -146,3 +146,31 @@ class FileFormatError(FluxledgerError):
     def __str__(self) -> str:
         where = f"{self.file}, sheet {self.sheet!r}" if self.sheet else self.file
         return f"{where}: {self.reason}"
+
+
+class OpenFindingError(FluxledgerError):
+    """A status change that an open error finding forbids (a flagged value marked reviewed).
+
+    ``findings`` are (finding id, rule id, message) of the open error findings.
+    """
+
+    exit_code = 1
+
+    def __init__(
+        self, measurement_id: int, status: str, findings: list[tuple[int, str, str]]
+    ) -> None:
+        super().__init__(measurement_id, status, findings)
+        self.measurement_id = measurement_id
+        self.status = status
+        self.findings = findings
+
+    def __str__(self) -> str:
+        named = "; ".join(
+            f"finding {fid} [{rule}]: {message}" for fid, rule, message in self.findings
+        )
+        return (
+            f"status: measurement {self.measurement_id} stays 'flagged' while an error finding is"
+            f" open, so it cannot become {self.status!r} — {named}. Correct the values so that"
+            " the check passes, or accept the finding with a reason; the status then returns by"
+            " itself"
+        )

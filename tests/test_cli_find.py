@@ -39,7 +39,7 @@ def test_find_motif_with_barrier_in_kcal(filled) -> None:  # type: ignore[no-unt
     lines = result.stdout.splitlines()
     assert lines[0].split() == [
         "id", "compound", "process", "nucleus", "method", "solvent", "dg_kj_mol", "dg_t_k",
-        "status", "reference",
+        "status", "flagged", "reference",
     ]  # fmt: skip
     labels = [line.split()[1] for line in lines[2:]]
     # 20 kcal/mol = 83.68 kJ/mol (NIST SP 811 B.8): DMF (87.9) and the iminol NMA (88) stay

@@ -268,6 +268,7 @@ def test_coalescence_from_a_measurement(database, tmp_path: Path) -> None:  # ty
             "field_mhz": 400.0,
             "tc_k": pytest.approx(318.15),
             "dnu_ppm": pytest.approx(0.2),
+            "flagged": False,  # added unchecked: no finding
         },
     )
     assert f"#{mid}" in (tmp_path / "m.svg").read_text(encoding="utf-8")
@@ -326,9 +327,10 @@ def test_overview(database, tmp_path: Path) -> None:  # type: ignore[no-untyped-
     drawn = api.plot_overview(database, out=tmp_path / "o.svg", by="kind")
     assert drawn.grouped_by == "process kind"
     assert drawn.groups == (
-        {"group": "bond-rotation", "n": 1, "min_kj_mol": 66.4, "max_kj_mol": 66.4},
-        {"group": "ring-inversion", "n": 1, "min_kj_mol": 43.0, "max_kj_mol": 43.0},
+        {"group": "bond-rotation", "n": 1, "min_kj_mol": 66.4, "max_kj_mol": 66.4, "flagged": 0},
+        {"group": "ring-inversion", "n": 1, "min_kj_mol": 43.0, "max_kj_mol": 43.0, "flagged": 0},
     )
+    assert (drawn.include_flagged, drawn.left_out_flagged) == (False, 0)
     api.retract_measurement(database, second, "demo: retracted")
     shown = api.plot_overview(database, out=tmp_path / "o.svg", by="kind")
     assert [g["group"] for g in shown.groups] == ["bond-rotation"]

@@ -66,8 +66,16 @@ def test_figures_on_postgresql(pg_registry, tmp_path: Path) -> None:  # type: ig
     assert own.solvent is not None and own.solvent["name"] == "chloroform-d"
     overview = api.plot_overview(database, out=tmp_path / "o.svg", by="kind")
     assert overview.groups == (
-        {"group": "bond-rotation", "n": 2, "min_kj_mol": 60.0, "max_kj_mol": 66.0},
+        {"group": "bond-rotation", "n": 2, "min_kj_mol": 60.0, "max_kj_mol": 66.0, "flagged": 0},
     )
+    # once checked, 66.0 kJ/mol is flagged: Tc 318.15 K and Δν 0.2 ppm × 400 MHz = 80 Hz give
+    # 64.39 kJ/mol (Gutowsky–Holm k_c = πΔν/√2, Eyring, CODATA; computed beside the test)
+    api.check(database)
+    checked = api.plot_overview(database, out=tmp_path / "o.svg", by="kind")
+    assert checked.groups == (
+        {"group": "bond-rotation", "n": 1, "min_kj_mol": 60.0, "max_kj_mol": 60.0, "flagged": 0},
+    )
+    assert checked.left_out_flagged == 1
 
 
 def test_report_and_tables_on_postgresql(pg_registry, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]

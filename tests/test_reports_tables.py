@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import re
 
 import pytest
@@ -164,6 +165,10 @@ def test_table_rows_from_the_registry(database) -> None:  # type: ignore[no-unty
 
 
 def test_export_command_writes_paper_tables(cli, tmp_path) -> None:  # type: ignore[no-untyped-def]
+    # 20.9 kcal/mol = 87.4 kJ/mol is not what Tc = 393.15 K and Δν = 25 Hz give: 84.06 kJ/mol
+    # (Gutowsky–Holm k_c = πΔν/√2 with the Eyring equation, CODATA constants via
+    # scipy.constants; computed beside this test), so the value is flagged: a paper table
+    # leaves it out unless asked for, and then footnotes it
     added = cli(
         "add", "--method", "coalescence", "--compound", "DEMO-T2", "--smiles", "CN(C)C=O",
         "--process", "bond-rotation", "--solvent", "CDCl3", "--mhz", "400",
@@ -171,17 +176,28 @@ def test_export_command_writes_paper_tables(cli, tmp_path) -> None:  # type: ign
     )  # fmt: skip
     assert added.exit_code == 0, added.stderr
     out = tmp_path / "t.tex"
-    result = cli("export", "-o", str(out), "--energy-unit", "kcal/mol")
+    refused = cli("export", "-o", str(out), "--energy-unit", "kcal/mol")
+    assert (refused.exit_code, refused.stderr) == (
+        2,
+        "error: no measurements to put in a table: the 1 selected are flagged (an error finding"
+        " is open); include flagged values to show them with a footnote\n",
+    )
+    assert not out.exists()
+    result = cli("export", "-o", str(out), "--energy-unit", "kcal/mol", "--include-flagged")
     assert result.exit_code == 0, result.stderr
     assert result.stdout == f"exported 1 measurement(s) to {out} as a latex table (kcal/mol)\n"
     text = out.read_text(encoding="utf-8")
-    assert r"DEMO-T2 & bond-rotation & $20.9(2)$\textsuperscript{a} & $393.15$ \\" in text
-    md = cli("export", "-o", str(tmp_path / "t.txt"), "--format", "markdown", "--json")
+    assert r"DEMO-T2 & bond-rotation & $20.9(2)$\textsuperscript{a,\dag} & $393.15$ \\" in text
+    assert r"\textsuperscript{\dag}\,Flagged in the registry: an error-level check" in text
+    md = cli(
+        "export", "-o", str(tmp_path / "t.txt"), "--format", "markdown", "--json",
+        "--include-flagged",
+    )  # fmt: skip
     assert md.exit_code == 0, md.stderr
-    assert '"format": "markdown"' in md.stdout
-    assert "| DEMO-T2 | bond-rotation | 87.4(8) ᵃ | 393.15 |" in (tmp_path / "t.txt").read_text(
-        encoding="utf-8"
-    )
+    assert json.loads(md.stdout)["flagged_included"] == 1
+    written = (tmp_path / "t.txt").read_text(encoding="utf-8")
+    assert "| DEMO-T2 | bond-rotation | 87.4(8) ᵃ † | 393.15 |" in written
+    assert "† Flagged in the registry: an error-level check of this entry is open" in written
     bad = cli("export", "-o", str(tmp_path / "t.md"), "--energy-unit", "eV")
     assert bad.exit_code == 2
     assert bad.stderr == "error: energy_unit 'eV': use kJ/mol or kcal/mol\n"
@@ -213,6 +229,8 @@ def test_export_table_files(database, tmp_path) -> None:  # type: ignore[no-unty
         "measurements": 1,
         "energy_unit": "kcal/mol",
         "uncertainty": "paren",
+        "flagged_included": 0,
+        "flagged_left_out": 0,
     }
     assert r"DEMO-T3 & bond-rotation & $18.1(2)$\textsuperscript{a} & $343.15$ \\" in (
         tmp_path / "t.tex"

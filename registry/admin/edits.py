@@ -8,6 +8,13 @@ refers to when none was given). Every change appends a revision with the columns
 after (:mod:`registry.storage.audit`); the read, the check and the write happen in one write
 transaction, so two people editing the same measurement at once cannot lose each other's change.
 Which fields can be edited, and where each is stored, is :mod:`registry.record.fields`.
+
+The status follows the findings (:mod:`registry.validation.store`): ``flagged`` is set and
+cleared by the checks, so an edit cannot set it, and cannot change the status of a measurement
+while one of its error findings is open — the error names the finding. (A retracted one can be
+restored to draft or reviewed; the check that follows every edit flags it again if need be.)
+An edit that changes values is checked again at once, which may flag the measurement or
+return it to its status.
 """
 
 from __future__ import annotations
@@ -19,7 +26,7 @@ from datetime import UTC, datetime
 from typing import Any
 
 from registry.admin.reread import reread, same_value, shift_mhz
-from registry.errors import NotFoundError, UnitError, UsageError
+from registry.errors import NotFoundError, OpenFindingError, UnitError, UsageError
 from registry.record import fields, vocab
 from registry.record.entry import EntryError, EntryInput, NormalizedEntry, normalize_entry
 from registry.storage import audit
@@ -151,16 +158,13 @@ def edit_measurement(
     wanted = {canonical_field(k): v for k, v in changes.items()}
     if not wanted:
         raise UsageError("nothing to change; give at least one FIELD=VALUE")
-    status = wanted.get("status")
-    if "status" in wanted and (status is None or vocab.status_name(status) == "retracted"):
-        raise UsageError(
-            "status: a measurement is retracted, with a reason the history keeps, "
-            "not edited to 'retracted'"
-        )
+    status = _wanted_status(wanted)
     who = actor or current_user()
 
     def work(conn: Connection) -> dict[str, Any]:
         stored = _load(conn, measurement_id, wanted)
+        if status is not None and stored.m["status"] not in (status, "retracted"):
+            _refuse_while_open(conn, measurement_id, status)  # (the check follows a restore)
         normalized = _renormalized(conn, stored, wanted)
         change = _measurement_change(conn, stored, normalized, wanted)
         if len(stored.coalescence) <= 1:
@@ -185,8 +189,44 @@ def edit_measurement(
 
     result = database.write(work)
     if result["changed"]:
-        result["findings"] = revalidate(database, measurement_id)
+        checked: dict[str, Any] = {}
+        result["findings"] = revalidate(database, measurement_id, actor=who, report=checked)
+        # the status the check set (flagged, or back): {"before", "after"}, or None
+        changes = checked.get("status_changes") or ()
+        result["status_change"] = (
+            {"before": changes[0]["before"], "after": changes[0]["after"]} if changes else None
+        )
     return result
+
+
+def _wanted_status(wanted: Mapping[str, str | None]) -> str | None:
+    """The status an edit asks for (None: it does not touch the status), checked."""
+    if "status" not in wanted:
+        return None
+    text = wanted["status"]
+    status = None if text is None else vocab.status_name(text)
+    if status is None or status == "retracted":
+        raise UsageError(
+            "status: a measurement is retracted, with a reason the history keeps, "
+            "not edited to 'retracted'"
+        )
+    if status == "flagged":
+        raise UsageError(
+            "status: 'flagged' is set by the checks while an error finding is open, and "
+            "cleared when none is; edit the status to draft or reviewed"
+        )
+    return status
+
+
+def _refuse_while_open(conn: Connection, measurement_id: int, status: str) -> None:
+    """An open error finding keeps the status at ``flagged``: name it and refuse the edit."""
+    found = conn.rows(
+        "SELECT id, rule_id, message FROM validation_finding WHERE measurement_id = :id "
+        "AND severity = 'error' AND accepted_by IS NULL ORDER BY id",
+        {"id": measurement_id},
+    )
+    if found:
+        raise OpenFindingError(measurement_id, status, [(int(i), r, m) for i, r, m in found])
 
 
 def _load(conn: Connection, measurement_id: int, wanted: Mapping[str, Any]) -> _Stored:
@@ -318,10 +358,18 @@ def retract_measurement(
     return database.write(work)
 
 
-def revalidate(database: Database, measurement_id: int) -> list[dict[str, Any]] | None:
+def revalidate(
+    database: Database,
+    measurement_id: int,
+    *,
+    actor: str | None = None,
+    report: dict[str, Any] | None = None,
+) -> list[dict[str, Any]] | None:
     """Re-run the validation rules for one edited measurement; its open findings (None: no rules).
 
-    Looked up at run time so that an edit still works in a build without the validation package.
+    A status the check changes (flagged, or back) is recorded under ``actor``, the editor, and
+    put in ``report["status_changes"]`` when ``report`` is given. Looked up at run time so that
+    an edit still works in a build without the validation package.
     """
     try:
         from registry import validation
@@ -330,8 +378,10 @@ def revalidate(database: Database, measurement_id: int) -> list[dict[str, Any]] 
     check = getattr(validation, "check_measurements", None)
     if check is None:
         return None
-    report = check(database, [measurement_id])
-    findings = getattr(report, "findings", report) or []
+    checked = check(database, [measurement_id], actor=actor)
+    if report is not None:
+        report["status_changes"] = list(getattr(checked, "status_changes", ()))
+    findings = getattr(checked, "findings", checked) or []
     out = []
     for f in findings:
         body = f.as_dict() if hasattr(f, "as_dict") else dict(f)

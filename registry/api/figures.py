@@ -10,6 +10,10 @@ registry, so a plot of stored data in kJ/mol never builds it.
 
 Nothing here writes to the registry. Tables for papers are written by
 :func:`registry.reports.tables.export_table` (through ``export_measurements``).
+
+A flagged measurement (an error finding nobody accepted) is marked wherever it is drawn: its
+Eyring plot and Tc points say so, and the overview leaves its ΔG‡ out unless
+``include_flagged`` (then it is drawn as a cross).
 """
 
 from __future__ import annotations
@@ -50,15 +54,35 @@ class EyringPlot:
     energy_unit: str
     summary: EyringSummary
     lines: tuple[str, ...]
+    #: the measurement's open error findings, (finding id, rule id): it is flagged if any
+    open_errors: tuple[tuple[int, str], ...] = ()
+
+    @property
+    def flagged(self) -> bool:
+        return bool(self.open_errors)
 
     @property
     def notes(self) -> tuple[str, ...]:
-        """The fit's warnings (few points, narrow range, extrapolated ΔG‡ …)."""
-        return self.summary.warnings
+        """The fit's warnings (few points, narrow range, extrapolated ΔG‡ …), and whether the
+        measurement is flagged."""
+        return self.summary.warnings + _flag_notes(self.source, self.open_errors)
 
     def as_dict(self) -> dict[str, Any]:
         head = {k: getattr(self, k) for k in ("file", "source", "title", "energy_unit")}
-        return {**head, **self.summary.as_dict(), "lines": list(self.lines)}
+        return {
+            **head,
+            **self.summary.as_dict(),
+            "lines": list(self.lines),
+            "flagged": self.flagged,
+            "open_errors": [{"finding": f, "rule": r} for f, r in self.open_errors],
+        }
+
+
+def _flag_notes(what: str, open_errors: Sequence[tuple[int, str]]) -> tuple[str, ...]:
+    if not open_errors:
+        return ()
+    named = ", ".join(f"finding {f} [{r}]" for f, r in open_errors)
+    return (f"{what} is flagged: error {named} is open (not resolved, not accepted)",)
 
 
 def plot_eyring(
@@ -96,13 +120,15 @@ def plot_eyring(
 
     fit = fit_eyring(series.t_k, series.k_per_s, series.k_err_per_s, t_ref_k=t_ref_k)
     shown = series.title if title is None else title
+    drawn_title = f"{shown} — flagged: an error finding is open" if series.open_errors else shown
     fig, summary = plots.eyring_figure(
-        fit, title=shown, energy_unit=unit, t_ref_k=t_ref_k, k_err_per_s=series.k_err_per_s
+        fit, title=drawn_title, energy_unit=unit, t_ref_k=t_ref_k, k_err_per_s=series.k_err_per_s
     )
     written = canvas.save_figure(fig, out)
     return EyringPlot(
-        str(written), source, shown, unit, summary, tuple(plots.eyring_text(summary, unit))
-    )
+        str(written), source, shown, unit, summary, tuple(plots.eyring_text(summary, unit)),
+        series.open_errors,
+    )  # fmt: skip
 
 
 def _rate_series(
@@ -251,7 +277,7 @@ def plot_coalescence(
     dg, dg_err, dnu_ppm, j_hz = _barrier_and_shift(own, barrier, dnu, dnu_field, j)
     solvent = solvent or own.get("solvent_text")
     solvent_info = gather.solvent_range(database, solvent) if database and solvent else None
-    notes = []
+    notes = _flagged_points(observed, own)
     if solvent and solvent_info is None:
         notes.append(f"solvent {solvent!r} is not in the solvent table; no liquid range drawn")
     prediction = coalescence_plot.predict_coalescence(
@@ -279,6 +305,7 @@ def plot_coalescence(
         ),
         observed=tuple(
             {k: o.get(k) for k in ("measurement_id", "compound", "field_mhz", "tc_k", "dnu_ppm")}
+            | {"flagged": bool(o.get("flagged"))}
             for o in observed
         ),
         solvent=solvent_info,
@@ -300,6 +327,16 @@ def _observed(
         )
     own = next((o for o in observed if o["measurement_id"] == measurement_id), {})
     return observed, own
+
+
+def _flagged_points(observed: Sequence[Mapping[str, Any]], own: Mapping[str, Any]) -> list[str]:
+    """A note per flagged observed point (an error finding is open), saying how it is drawn."""
+    return [
+        f"measurement {o['measurement_id']} is flagged (an error finding is open): its point"
+        " is drawn as a cross" + ("; the prediction uses its ΔG‡ as stored" if o is own else "")
+        for o in observed
+        if o.get("flagged")
+    ]
 
 
 def _barrier_and_shift(
@@ -369,14 +406,23 @@ def _dnu_ppm(dnu: float | str, dnu_field: float | str | None) -> float:
 
 @dataclass(frozen=True)
 class OverviewPlot:
-    """What :func:`plot_overview` drew: the grouping and each group's size and range (kJ/mol)."""
+    """What :func:`plot_overview` drew: the grouping and each group's size, range (kJ/mol) and
+    flagged values drawn; ``left_out_flagged`` flagged values were not drawn."""
 
     file: str
     grouped_by: str
     groups: tuple[dict[str, Any], ...]
+    include_flagged: bool = False
+    left_out_flagged: int = 0
 
     def as_dict(self) -> dict[str, Any]:
-        return {"file": self.file, "grouped_by": self.grouped_by, "groups": list(self.groups)}
+        return {
+            "file": self.file,
+            "grouped_by": self.grouped_by,
+            "groups": list(self.groups),
+            "include_flagged": self.include_flagged,
+            "left_out_flagged": self.left_out_flagged,
+        }
 
 
 def plot_overview(
@@ -385,13 +431,15 @@ def plot_overview(
     out: str | Path,
     by: str = "auto",
     include_retracted: bool = False,
+    include_flagged: bool = False,
     title: str | None = None,
     energy_unit: str = "kJ/mol",
 ) -> OverviewPlot:
     """ΔG‡ of every measurement, grouped, as boxes (≥ 3 values) and points.
 
     ``by``: ``'kind'`` (process kind), ``'motif'`` (structural motif; needs motif matching),
-    or ``'auto'`` (motif when available, else kind).
+    or ``'auto'`` (motif when available, else kind). Flagged values (an error finding nobody
+    accepted) are left out unless ``include_flagged``; then they are drawn as crosses.
     """
     from registry.reports import canvas, gather, plots
     from registry.reports.tables import energy_unit_name
@@ -402,21 +450,26 @@ def plot_overview(
         raise UsageError(f"by {by!r}: use kind, motif or auto")
     groups = None
     grouping = "process kind"
+    chosen = {"include_retracted": include_retracted, "include_flagged": include_flagged}
     if by in ("auto", "motif"):
-        groups = gather.barriers_by_motif(database, include_retracted=include_retracted)
+        groups = gather.barriers_by_motif(database, **chosen)
         if groups is None and by == "motif":
             raise UsageError("by 'motif': motif matching is not available here; use kind")
         if groups is not None:
             grouping = "structural motif"
     if groups is None:
-        groups = gather.barriers_by_kind(database, include_retracted=include_retracted)
-    fig = plots.overview_figure(groups, energy_unit=unit, group_title=grouping, title=title)
+        groups = gather.barriers_by_kind(database, **chosen)
+    fig = plots.overview_figure(
+        groups.values, flagged=groups.flagged, energy_unit=unit, group_title=grouping,
+        title=title,
+    )  # fmt: skip
     written = canvas.save_figure(fig, out)
     rows = tuple(
-        {"group": g, "n": len(v), "min_kj_mol": min(v), "max_kj_mol": max(v)}
-        for g, v in groups.items()
-    )
-    return OverviewPlot(str(written), grouping, rows)
+        {"group": g, "n": len(v), "min_kj_mol": min(v), "max_kj_mol": max(v),
+         "flagged": sum(groups.flagged[g])}
+        for g, v in groups.values.items()
+    )  # fmt: skip
+    return OverviewPlot(str(written), grouping, rows, include_flagged, groups.left_out)
 
 
 # ---------------------------------------------------------------- the HTML report
@@ -428,11 +481,17 @@ def build_report(
     *,
     title: str = "Barrier registry",
     include_retracted: bool = False,
+    include_flagged: bool = False,
     plots: bool = True,
 ) -> ReportResult:
     """Write the static HTML report: a filterable, sortable index, a page per compound with its
     structure, measurements, findings and Eyring plots, and a ΔG‡ overview. ``plots=False``
-    skips the figures (much faster on big registries). Only our own files are ever replaced."""
+    skips the figures (much faster on big registries). Only our own files are ever replaced.
+    Flagged measurements are listed and marked; their ΔG‡ is left out of the overview and the
+    per-compound ranges unless ``include_flagged``."""
     from registry.reports.site import build_report as write
 
-    return write(database, out_dir, title=title, include_retracted=include_retracted, plots=plots)
+    return write(
+        database, out_dir, title=title, include_retracted=include_retracted,
+        include_flagged=include_flagged, plots=plots,
+    )  # fmt: skip

@@ -62,6 +62,7 @@ def export_measurements(
     ids: Sequence[int] | None = None,
     energy_unit: str = "kJ/mol",
     uncertainty: str = "paren",
+    include_flagged: bool = False,
     **filters: Any,
 ) -> dict[str, Any]:
     """Write the measurements the filters select (the keywords of :func:`list_measurements`)
@@ -72,7 +73,10 @@ def export_measurements(
     again), or latex/markdown for a table in a paper (ΔG‡, ΔH‡, ΔS‡ in ``energy_unit``,
     uncertainties as ``62.3(4)`` with ``uncertainty='paren'`` or ``62.3 ± 0.4`` with
     ``'pm'``). Without ``format`` the file's suffix decides (.csv, .xlsx, .json, .tex, .md).
-    Returns what was written: file, format and counts.
+    A table leaves flagged measurements (an error finding nobody accepted) out unless
+    ``include_flagged``, and footnotes them when included; a data file holds every selected
+    row (``flagged=False`` selects the clean ones). Returns what was written: file, format
+    and counts.
     """
     from registry.api.records import list_measurements
     from registry.search.filters import listing_filters
@@ -89,7 +93,7 @@ def export_measurements(
 
         return export_table(
             database, out, format, energy_unit=energy_unit, uncertainty=uncertainty, ids=ids,
-            **filters,
+            include_flagged=include_flagged, **filters,
         )  # fmt: skip
     from registry.io.export import write_export
 

@@ -8,7 +8,7 @@ from contextlib import contextmanager
 from typing import TYPE_CHECKING, Any
 
 from registry.api.registry import actor_name
-from registry.errors import FluxledgerError, NotFoundError, UnitError
+from registry.errors import FluxledgerError, NotFoundError, UnitError, UsageError
 from registry.storage.connection import Connection, utc
 from registry.storage.database import Database
 
@@ -39,7 +39,8 @@ def add_measurement(
     in any usual notation). The write is one transaction of its own. The validation rules then
     run on the new row, so its findings are stored (``get_measurement(...)["findings"]``) — at
     once, or, inside :func:`deferred_checks`, once for all the rows added there when the block
-    ends. ``check=False`` skips the check.
+    ends. ``check=False`` skips the check. The status is ``draft`` or ``reviewed``; the check
+    sets ``flagged`` itself when it leaves an error finding open, so an entry cannot ask for it.
     """
     from registry.record.chem import structure_for
     from registry.storage.writer import cached_process_kinds, known_process_kinds, write_entries
@@ -56,6 +57,11 @@ def add_measurement(
         with database.read() as conn:
             kinds = known_process_kinds(conn)
         normalized = _normalized(entry, kinds)
+    if normalized.measurement.get("status") == "flagged":
+        raise UsageError(
+            "status: 'flagged' is set by the checks while an error finding is open; "
+            "add the measurement as draft or reviewed"
+        )
     structure = structure_for(normalized.compound.get("smiles_input"))
     who = actor_name(actor)
 
@@ -148,7 +154,9 @@ def list_measurements(
     name, an alias, a class such as ``chlorinated``, or a part of the text), ``process``,
     ``status``, ``barrier`` (a range as chemists write it: ``'>= 22 kcal/mol'``,
     ``'80-100 kJ/mol'``), ``barrier_min``/``barrier_max`` (texts with a unit, or floats in
-    kJ/mol) and ``include_retracted`` (see :func:`registry.search.filters.listing_filters`).
+    kJ/mol), ``include_retracted`` and ``flagged`` (True: only measurements with an error
+    finding nobody accepted; False: only clean ones; see
+    :func:`registry.search.filters.listing_filters`). Every row has ``flagged`` (1 or 0).
     The result is a list of dicts; ``.to_frame()`` gives a pandas DataFrame.
     """
     from registry.search.filters import listing_filters
@@ -166,7 +174,10 @@ def _listing(
 
 
 def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
-    """Everything stored about one measurement: values, compound, process, data, findings."""
+    """Everything stored about one measurement: values, compound, process, data, findings,
+    and ``flagged`` (True while an error finding is open: not resolved, not accepted)."""
+    from registry.record.fields import LISTING_COLUMNS
+
     with database.read() as conn:
         m = conn.record("SELECT * FROM measurement WHERE id = :id", {"id": measurement_id})
         if m is None:
@@ -198,6 +209,9 @@ def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
         revisions = conn.scalar(
             "SELECT count(*) FROM revision WHERE entity = 'measurement' AND entity_id = :id", of
         )
+        flagged = conn.scalar(
+            f"SELECT {LISTING_COLUMNS['flagged']} FROM measurement m WHERE m.id = :id", of
+        )
     for key in ("entered_at", "updated_at"):
         m[key] = utc(m[key])
     for f in findings:
@@ -214,6 +228,7 @@ def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
         "coalescence": coalescence,
         "rate_points": rates,
         "findings": findings,
+        "flagged": bool(flagged),
         "revision_count": int(revisions),
     }
 

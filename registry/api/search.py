@@ -36,6 +36,8 @@ def find(
     reference: str | None = None,
     compound: str | None = None,
     include_retracted: bool = False,
+    flagged: bool | None = None,
+    include_flagged: bool = False,
     sort: str | None = None,
     limit: int | None = None,
     atoms: bool = False,
@@ -54,6 +56,10 @@ def find(
     matched atom indices per compound. The result's ``rows`` are dicts; ``to_frame()`` gives a
     pandas DataFrame; ``write_csv(binary_stream)`` writes CSV (with ``output="csv"`` straight
     from ready lines on a SQLite registry).
+
+    Every row says whether it is ``flagged`` (1: an error finding nobody accepted). ``flagged``
+    True keeps only those rows, False only clean ones. ``compound_table()`` gives each
+    compound's barrier range from its clean values only, unless ``include_flagged``.
     """
     from registry import search
 
@@ -66,7 +72,7 @@ def find(
         barrier=barrier, temperature=temperature,
         solvent=[solvent] if isinstance(solvent, str) else list(solvent or []),
         method=method, process=process, nucleus=nucleus, status=status, reference=reference,
-        compound=compound, include_retracted=include_retracted,
+        compound=compound, include_retracted=include_retracted, flagged=flagged,
     )  # fmt: skip
     query = None
     if similar is None:
@@ -77,7 +83,7 @@ def find(
     return search.find(
         database, query=query, similar=similar, min_similarity=min_similarity,
         filters=filters, sort=sort, limit=limit, atoms=atoms, threads=threads,
-        rebuild_index=rebuild_index, output=output,
+        rebuild_index=rebuild_index, output=output, include_flagged=include_flagged,
     )  # fmt: skip
 
 

@@ -7,6 +7,7 @@ from typing import Any
 
 import typer
 
+from registry.cli import flags
 from registry.cli.context import read_id, state
 from registry.cli.output import render_record, render_rows
 from registry.errors import UsageError
@@ -94,7 +95,9 @@ def add(
     ),
     reference: str = typer.Option(None, help="DOI, citation or notebook page."),
     label: str = typer.Option(None, help="Label of this measurement (e.g. a notebook code)."),
-    status: str = typer.Option(None, help="draft (default), reviewed, flagged."),
+    status: str = typer.Option(
+        None, help="draft (default) or reviewed; the checks set 'flagged' themselves."
+    ),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Add one measurement; values take units in any usual notation."""
@@ -127,6 +130,8 @@ def add(
             typer.echo(f"  {finding['severity']}: {finding['message']}")
             if finding.get("likely_cause"):
                 typer.echo(f"    likely cause: {finding['likely_cause']}")
+        if record["flagged"]:
+            typer.echo(f"  status flagged: {_FLAGGED_NOTE}")
 
 
 def show(
@@ -152,6 +157,13 @@ def _fmt(value: Any, err: Any, unit: str, text: Any) -> str:
     return f"{core}   (reported: {text})" if text else core
 
 
+#: what a flagged measurement's mark says (add, show)
+_FLAGGED_NOTE = (
+    "left out of barrier ranges, overview plots and paper tables unless asked for, until the "
+    "finding is resolved or accepted"
+)
+
+
 def _show_text(r: dict[str, Any]) -> str:
     c, p = r["compound"], r["process"] or {}
     lines = [
@@ -159,6 +171,13 @@ def _show_text(r: dict[str, Any]) -> str:
         f"  compound     {c.get('label') or ''} {c.get('name') or ''}".rstrip(),
         f"  SMILES       {c.get('smiles_canonical') or c.get('smiles_input') or '—'}",
     ]
+    if r["flagged"]:
+        open_ids = ", ".join(
+            str(f["id"])
+            for f in r["findings"]
+            if f["severity"] == "error" and not f.get("accepted_by")
+        )
+        lines.insert(1, f"  FLAGGED      error finding {open_ids} open: {_FLAGGED_NOTE}")
     if c.get("inchikey"):
         lines.append(f"  InChIKey     {c['inchikey']}")
     if c and not c.get("structure_ok", True):
@@ -233,18 +252,23 @@ def list_cmd(
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Show retracted measurements too."
     ),
+    flagged: bool = flags.FLAGGED,
+    clean: bool = flags.CLEAN,
     limit: int = typer.Option(None, help="At most this many rows."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON (one object per measurement)."),
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
 ) -> None:
-    """List measurements with basic filters."""
+    """List measurements with basic filters (flagged ones are marked)."""
     from registry import api
 
+    only = flags.choice(flagged, clean)
     database = api.open_registry(state(ctx).db)
     rows = api.list_measurements(
         database, compound=compound, method=method, solvent=solvent, process=process,
         status=status, barrier_min=barrier_min, barrier_max=barrier_max,
-        include_retracted=include_retracted, limit=limit,
+        include_retracted=include_retracted, flagged=only, limit=limit,
     )  # fmt: skip
-    columns = None if (as_json or as_csv) else list(api.TABLE_COLUMNS["list"])
-    render_rows(rows, as_json=as_json, as_csv=as_csv, columns=columns)
+    if as_json or as_csv:
+        render_rows(rows, as_json=as_json, as_csv=as_csv)
+        return
+    render_rows(flags.marked(rows), columns=list(api.TABLE_COLUMNS["list"]))

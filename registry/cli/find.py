@@ -11,6 +11,7 @@ from typing import Any
 import typer
 
 from registry import api
+from registry.cli import flags
 from registry.cli.context import state
 from registry.cli.output import print_json, render_rows
 from registry.errors import UsageError
@@ -75,6 +76,9 @@ def find(
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Also retracted measurements."
     ),
+    flagged: bool = flags.FLAGGED,
+    clean: bool = flags.CLEAN,
+    include_flagged: bool = flags.include_option("the barrier ranges of --compounds"),
     sort: str = typer.Option(
         None,
         "--sort",
@@ -112,6 +116,7 @@ def find(
         raise UsageError(f"--threads {threads}: give a positive whole number")
     if stereo and similar is not None:
         raise UsageError("--stereo applies to substructure searches, not --similar")
+    only = flags.choice(flagged, clean)
     database = api.open_registry(state(ctx).db)
     try:
         result = api.find(
@@ -119,8 +124,9 @@ def find(
             min_similarity=min_similarity, motif_files=motif_file or (), stereo=stereo,
             barrier=barrier, temperature=temperature, solvent=solvent, method=method,
             process=process, nucleus=nucleus, status=status, reference=reference,
-            include_retracted=include_retracted, sort=sort, limit=None if compounds else limit,
-            atoms=as_json and not no_atoms, threads=threads, rebuild_index=rebuild_index,
+            include_retracted=include_retracted, flagged=only, include_flagged=include_flagged,
+            sort=sort, limit=None if compounds else limit, atoms=as_json and not no_atoms,
+            threads=threads, rebuild_index=rebuild_index,
             output="csv" if as_csv and not compounds else "rows",
         )  # fmt: skip
     finally:
@@ -140,7 +146,7 @@ def find(
         if similar is not None:
             columns = [*columns[:2], "similarity", *columns[2:]]
         rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in result.rows]
-        render_rows(rows, columns=columns)
+        render_rows(flags.marked(rows), columns=columns)
     typer.echo(_summary(result), err=True)
 
 
@@ -168,53 +174,38 @@ def _summary(result: Any) -> str:
         if result.returned < result.total_rows
         else f"{result.total_rows:,} measurement(s)"
     )
+    flagged = sum(1 for r in result.rows if r.get("flagged"))
+    marked = (
+        f"; {flagged:,} of the rows shown flagged (an error finding is open)" if flagged else ""
+    )
     return (
         f"{shown} on {s.with_rows:,} compound(s); {s.matched:,} of {s.searched:,} compound(s) "
-        f"searched match ({s.screened:,} passed the fingerprint and element screens)"
+        f"searched match ({s.screened:,} passed the fingerprint and element screens){marked}"
     )
 
 
 def _render_compounds(result: Any, limit: int | None, as_json: bool, as_csv: bool) -> None:
-    by_id: dict[int, dict[str, Any]] = {}
-    for row in result.rows:
-        entry = by_id.setdefault(
-            row["compound_id"],
-            {
-                "compound_id": row["compound_id"],
-                "compound": row["compound"],
-                "smiles": row["smiles"],
-                "measurements": 0,
-                "dg_min_kj_mol": None,
-                "dg_max_kj_mol": None,
-            },
-        )
-        entry["measurements"] += 1
-        dg = row.get("dg_kj_mol")
-        if dg is not None:
-            entry["dg_min_kj_mol"] = (
-                dg if entry["dg_min_kj_mol"] is None else min(entry["dg_min_kj_mol"], dg)
-            )
-            entry["dg_max_kj_mol"] = (
-                dg if entry["dg_max_kj_mol"] is None else max(entry["dg_max_kj_mol"], dg)
-            )
-        if "similarity" in row:
-            entry["similarity"] = row["similarity"]
-    extra = {c["compound_id"]: c for c in result.compounds}
-    rows = list(by_id.values())
-    for row in rows:
-        if "atoms" in extra.get(row["compound_id"], {}):
-            row["match_atoms"] = extra[row["compound_id"]]["atoms"]
+    rows = result.compound_table()
     total = len(rows)
+    left_out = sum(r["flagged"] for r in rows)
     if limit is not None:
         rows = rows[:limit]
     if as_json:
-        print_json({"query": result.query, "compounds_matched": total, "compounds": rows})
+        print_json(
+            {
+                "query": result.query,
+                "include_flagged": result.include_flagged,
+                "compounds_matched": total,
+                "compounds": rows,
+            }
+        )
         return
     columns = [
         "compound_id",
         "compound",
         "smiles",
         "measurements",
+        "flagged",
         "dg_min_kj_mol",
         "dg_max_kj_mol",
     ]
@@ -223,6 +214,12 @@ def _render_compounds(result: Any, limit: int | None, as_json: bool, as_csv: boo
     render_rows(rows, as_csv=as_csv, columns=columns)
     more = f" (showing {len(rows):,})" if len(rows) < total else ""
     typer.echo(f"{total:,} matching compound(s) with measurements{more}", err=True)
+    if left_out and not result.include_flagged:
+        typer.echo(
+            f"{left_out:,} flagged measurement(s) not counted in the ranges (--include-flagged "
+            "counts them)",
+            err=True,
+        )
 
 
 # ---------------------------------------------------------------- motifs

@@ -108,6 +108,9 @@ def edit(
     typer.echo("  " + summary.replace("; ", "\n  "))
     for finding in result.get("findings") or []:
         typer.echo(f"  {finding.get('severity', 'note')}: {finding.get('message', '')}")
+    moved = result.get("status_change")
+    if moved:  # the status follows the findings (the check that ran after the edit)
+        typer.echo(f"  status: {moved['before']} → {moved['after']} (set by the check)")
 
 
 def retract(

@@ -8,6 +8,7 @@ from typing import Any
 
 import typer
 
+from registry.cli import flags
 from registry.cli.context import state
 from registry.cli.output import print_json, table_text
 
@@ -212,6 +213,9 @@ def export_cmd(
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Export retracted measurements too."
     ),
+    flagged: bool = flags.FLAGGED,
+    clean: bool = flags.CLEAN,
+    include_flagged: bool = flags.include_option("a latex/markdown table, footnoted"),
     energy_unit: str = typer.Option(
         "kJ/mol", "--energy-unit", help="latex/markdown: kJ/mol or kcal/mol."
     ),
@@ -235,6 +239,8 @@ def export_cmd(
         barrier_min=barrier_min,
         barrier_max=barrier_max,
         include_retracted=include_retracted,
+        flagged=flags.choice(flagged, clean),
+        include_flagged=include_flagged,
         energy_unit=energy_unit,
         uncertainty=uncertainty,
     )
@@ -245,6 +251,11 @@ def export_cmd(
             f"exported {result['measurements']} measurement(s) to {result['file']} as a "
             f"{result['format']} table ({result['energy_unit']})"
         )
+        if result["flagged_left_out"]:
+            typer.echo(
+                f"note: {result['flagged_left_out']} flagged measurement(s) left out (an error "
+                "finding is open); --include-flagged adds them with a footnote"
+            )
     else:
         typer.echo(
             f"exported {result['measurements']} measurement(s), {result['rate_points']} rate "

@@ -11,6 +11,7 @@ from pathlib import Path
 
 import typer
 
+from registry.cli import flags
 from registry.cli.context import state
 from registry.cli.output import print_json, table_text
 from registry.errors import NotFoundError, UsageError
@@ -163,11 +164,13 @@ def overview(
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Plot retracted measurements too."
     ),
+    include_flagged: bool = flags.include_option("the plot, drawn as crosses"),
     title: str = typer.Option(None, "--title", help="Figure title."),
     energy_unit: str = _UNIT,
     as_json: bool = _JSON,
 ) -> None:
-    """ΔG‡ of every measurement, grouped, as boxes (≥ 3 values) and points."""
+    """ΔG‡ of every measurement, grouped, as boxes (≥ 3 values) and points; flagged values
+    are left out unless asked for."""
     from registry import api
 
     database = api.open_registry(state(ctx).db)
@@ -176,6 +179,7 @@ def overview(
         out=out,
         by=by,
         include_retracted=include_retracted,
+        include_flagged=include_flagged,
         title=title,
         energy_unit=energy_unit,
     )
@@ -184,4 +188,12 @@ def overview(
         return
     total = sum(g["n"] for g in drawn.groups)
     typer.echo(f"wrote {drawn.file}: ΔG‡ by {drawn.grouped_by}, {total} value(s)")
-    typer.echo(table_text(list(drawn.groups), ["group", "n", "min_kj_mol", "max_kj_mol"]))
+    columns = ["group", "n", "min_kj_mol", "max_kj_mol"]
+    typer.echo(
+        table_text(list(drawn.groups), [*columns, "flagged"] if include_flagged else columns)
+    )
+    if drawn.left_out_flagged:
+        typer.echo(
+            f"note: {drawn.left_out_flagged} flagged value(s) left out (an error finding is "
+            "open); --include-flagged draws them as crosses"
+        )

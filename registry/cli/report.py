@@ -9,6 +9,7 @@ from pathlib import Path
 
 import typer
 
+from registry.cli import flags
 from registry.cli.context import state
 from registry.cli.output import print_json
 
@@ -24,6 +25,7 @@ def report(
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Show retracted measurements too."
     ),
+    include_flagged: bool = flags.include_option("the overview and the compounds' ΔG‡ ranges"),
     no_plots: bool = typer.Option(
         False, "--no-plots", help="Skip the Eyring and overview plots (faster for big registries)."
     ),
@@ -35,14 +37,16 @@ def report(
 
     database = api.open_registry(state(ctx).db)
     result = api.build_report(
-        database, out, title=title, include_retracted=include_retracted, plots=not no_plots
-    )
+        database, out, title=title, include_retracted=include_retracted,
+        include_flagged=include_flagged, plots=not no_plots,
+    )  # fmt: skip
     if as_json:
         print_json(result.as_dict())
         return
     typer.echo(
         f"wrote {result.index}: {result.measurements} measurement(s), "
         f"{result.compound_pages} compound page(s), {result.eyring_plots} Eyring plot(s)"
+        + (f"; {result.flagged} flagged (marked)" if result.flagged else "")
     )
     for note in result.notes:
         typer.echo(f"note: {note}")

@@ -208,6 +208,15 @@ def value_columns_of_text() -> dict[str, tuple[str, ...]]:
 
 # ---------------------------------------------------------------- the rows of a listing
 
+#: SQL over ``measurement m``: true while the measurement has an error-level validation finding
+#: nobody has accepted. Such a measurement is *flagged*: marked wherever it is listed, and left
+#: out of aggregates (barrier ranges, overview plots, paper tables) unless asked for. The one
+#: definition: the listing column, the filter and the status rule all use this text.
+OPEN_ERROR_SQL = (
+    "EXISTS (SELECT 1 FROM validation_finding vf WHERE vf.measurement_id = m.id "
+    "AND vf.severity = 'error' AND vf.accepted_by IS NULL)"
+)
+
 #: the columns a measurement listing carries (``list``, ``find``, exports of hits), as SQL over
 #: ``measurement m JOIN compound c LEFT JOIN process p``; ``list`` and ``find`` print subsets
 LISTING_COLUMNS: dict[str, str] = {
@@ -231,6 +240,9 @@ LISTING_COLUMNS: dict[str, str] = {
     "compound_id": "m.compound_id",
     "t_min_k": "m.t_min_k",
     "t_max_k": "m.t_max_k",
+    # 1 while an error finding is open (OPEN_ERROR_SQL), else 0: the same integer on SQLite
+    # and PostgreSQL (a bare EXISTS would be an integer on one and a boolean on the other)
+    "flagged": f"CASE WHEN {OPEN_ERROR_SQL} THEN 1 ELSE 0 END",
 }
 LISTING_FROM = (
     "measurement m JOIN compound c ON c.id = m.compound_id "
@@ -240,7 +252,17 @@ LISTING_SELECT = f"SELECT {', '.join(LISTING_COLUMNS.values())} FROM {LISTING_FR
 
 #: what a printed table shows of a listing, per command
 TABLE_COLUMNS: dict[str, tuple[str, ...]] = {
-    "list": ("id", "compound", "process", "method", "solvent", "dg_kj_mol", "dg_t_k", "status"),
+    "list": (
+        "id",
+        "compound",
+        "process",
+        "method",
+        "solvent",
+        "dg_kj_mol",
+        "dg_t_k",
+        "status",
+        "flagged",
+    ),
     "find": (
         "id",
         "compound",
@@ -251,6 +273,7 @@ TABLE_COLUMNS: dict[str, tuple[str, ...]] = {
         "dg_kj_mol",
         "dg_t_k",
         "status",
+        "flagged",
         "reference",
     ),
     "find_csv": (
@@ -267,5 +290,6 @@ TABLE_COLUMNS: dict[str, tuple[str, ...]] = {
         "reference",
         "smiles",
         "dg_err_kj_mol",
+        "flagged",
     ),
 }

@@ -54,6 +54,8 @@ table.grid tbody tr:hover { background: #f4efe3; }
   border: 1px solid var(--rule); background: #f6f2e8; }
 .badge.reviewed { background: #e1efe9; border-color: #a9cdbf; }
 .badge.flagged { background: #f8e3d6; border-color: #e3b191; }
+table.grid tbody tr.flagged td:first-child { box-shadow: inset 3px 0 0 var(--warn); }
+.flag-note { color: var(--warn); }
 .badge.retracted { background: #ececec; border-color: #c8c8c8; text-decoration: line-through; }
 .badge.error { background: #f6dcd7; border-color: #d59a90; color: var(--warn); }
 .badge.warning { background: #f8ecd2; border-color: #e2c27e; }

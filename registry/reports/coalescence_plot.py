@@ -91,7 +91,7 @@ def coalescence_figure(
 ) -> Figure:
     """Predicted Tc against field, observed (field, Tc) points, and the solvent's liquid range.
 
-    ``observed``: mappings with ``field_mhz``, ``tc_k`` and ``label``. ``solvent``: ``name``,
+    ``observed``: mappings with ``field_mhz``, ``tc_k``, ``label`` and ``flagged``. ``solvent``: ``name``,
     ``mp_k``, ``bp_k`` (either may be None); temperatures outside the liquid range are shaded.
     """
     p = prediction
@@ -135,20 +135,35 @@ def coalescence_figure(
 
 
 def _mark_observed(ax: Axes, observed: Sequence[Mapping[str, Any]]) -> None:
-    """Observed (field, Tc) points, each labelled (``#id``)."""
+    """Observed (field, Tc) points, each labelled (``#id``); flagged ones (an open error
+    finding) as crosses in the warning colour."""
     points = [o for o in observed if o.get("field_mhz") and o.get("tc_k")]
     if not points:
         return
-    ax.plot(
-        [o["field_mhz"] for o in points],
-        [o["tc_k"] for o in points],
-        "D",
-        color=theme.DATA,
-        markersize=6.5,
-        markeredgecolor=theme.PAPER,
-        label="observed in the registry",
-        zorder=3,
-    )
+    for flagged, style, label in (
+        (
+            False,
+            {"marker": "D", "color": theme.DATA, "markersize": 6.5},
+            "observed in the registry",
+        ),
+        (
+            True,
+            {"marker": "X", "color": theme.WARN, "markersize": 9.0},
+            "observed, flagged: an error finding is open",
+        ),
+    ):
+        chosen = [o for o in points if bool(o.get("flagged")) == flagged]
+        if not chosen:
+            continue
+        ax.plot(
+            [o["field_mhz"] for o in chosen],
+            [o["tc_k"] for o in chosen],
+            linestyle="none",
+            markeredgecolor=theme.PAPER,
+            label=label,
+            zorder=3,
+            **style,
+        )
     for o in points:
         ax.annotate(
             str(o.get("label") or ""),

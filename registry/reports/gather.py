@@ -3,7 +3,10 @@
 Reads only; every function takes an open :class:`registry.storage.database.Database` and asks it
 for SQL text through one :class:`~registry.storage.connection.Connection` snapshot (the same SQL
 on SQLite and PostgreSQL; rows by many ids through ``rows_where_in``). Retracted measurements
-are left out of overviews, tables and pages unless asked for, as in listings.
+are left out of overviews, tables and pages unless asked for, as in listings. Every row says
+whether the measurement is flagged (an open error finding,
+:data:`registry.record.fields.OPEN_ERROR_SQL`); overviews leave flagged values out unless
+asked for.
 
 numpy is imported on first use (a rate series is its arrays), so importing this module costs
 nothing beyond the storage layer.
@@ -41,6 +44,8 @@ class RateSeries:
     k_per_s: NDArray[np.float64]
     k_err_per_s: NDArray[np.float64] | None
     title: str
+    #: open error findings of the measurement the points belong to: (finding id, rule id)
+    open_errors: tuple[tuple[int, str], ...] = ()
 
 
 def series_from_points(
@@ -70,17 +75,29 @@ def rate_series(database: Database, measurement_id: int) -> RateSeries:
             "WHERE measurement_id = :id ORDER BY t_k, id",
             of,
         )
+        errors = open_errors(conn, measurement_id)
     if len(points) < 2:
         raise UsageError(
             f"measurement {measurement_id} has {len(points)} rate point(s); an Eyring plot needs"
             " at least 2"
         )
-    return series_from_points(
+    series = series_from_points(
         [p[0] for p in points],
         [p[1] for p in points],
         [p[2] for p in points],
         measurement_title(measurement_id, *head),
     )
+    return RateSeries(series.t_k, series.k_per_s, series.k_err_per_s, series.title, errors)
+
+
+def open_errors(conn: Connection, measurement_id: int) -> tuple[tuple[int, str], ...]:
+    """(finding id, rule id) of a measurement's open error findings (it is flagged if any)."""
+    rows = conn.rows(
+        "SELECT id, rule_id FROM validation_finding WHERE measurement_id = :id "
+        "AND severity = 'error' AND accepted_by IS NULL ORDER BY id",
+        {"id": measurement_id},
+    )
+    return tuple((int(i), str(r)) for i, r in rows)
 
 
 def measurement_title(
@@ -96,7 +113,8 @@ def measurement_title(
 _OBSERVED = (
     "SELECT m.id AS measurement_id, c.label AS compound, c.name AS compound_name, "
     "o.tc_k, o.dnu_hz, o.j_hz, coalesce(o.field_mhz, m.field_mhz) AS field_mhz, "
-    "m.dg_kj_mol, m.dg_err_kj_mol, m.solvent_text "
+    "m.dg_kj_mol, m.dg_err_kj_mol, m.solvent_text, "
+    f"{LISTING_COLUMNS['flagged']} AS flagged "
     "FROM coalescence o JOIN measurement m ON m.id = o.measurement_id "
     "JOIN compound c ON c.id = m.compound_id "
     "WHERE m.status != :retracted"
@@ -149,36 +167,67 @@ def solvent_range(database: Database, text: str) -> dict[str, Any] | None:
     return None
 
 
-def _sorted_groups(groups: Mapping[str, list[float]]) -> dict[str, list[float]]:
+@dataclass(frozen=True)
+class BarrierGroups:
+    """ΔG‡ values (kJ/mol) per group, largest group first, with which of them are flagged.
+
+    Flagged values are in ``values`` only when they were asked for; ``left_out`` counts the
+    flagged values that were not.
+    """
+
+    values: dict[str, list[float]]
+    flagged: dict[str, list[bool]]
+    left_out: int = 0
+
+
+def _groups(pairs: Mapping[str, list[tuple[float, bool]]], left_out: int) -> BarrierGroups:
     """Largest group first, then by name (a stable order: the same data give the same figure)."""
-    kept = {k: v for k, v in groups.items() if v}
-    return dict(sorted(kept.items(), key=lambda kv: (-len(kv[1]), kv[0])))
+    kept = sorted(((k, v) for k, v in pairs.items() if v), key=lambda kv: (-len(kv[1]), kv[0]))
+    return BarrierGroups(
+        {k: [value for value, _ in v] for k, v in kept},
+        {k: [flag for _, flag in v] for k, v in kept},
+        left_out,
+    )
 
 
-def barriers_by_kind(
-    database: Database, *, include_retracted: bool = False
-) -> dict[str, list[float]]:
-    """ΔG‡ (kJ/mol) of every measurement that has one, grouped by process kind."""
+def _barriers(
+    conn: Connection, key: str, include_retracted: bool, include_flagged: bool
+) -> tuple[list[tuple[Any, float, bool]], int]:
+    """(key, ΔG‡, flagged) in id order, and how many flagged values were left out."""
     sql = (
-        "SELECT p.kind, m.dg_kj_mol FROM measurement m "
+        f"SELECT {key}, m.dg_kj_mol, {LISTING_COLUMNS['flagged']} FROM measurement m "
         "LEFT OUTER JOIN process p ON p.id = m.process_id WHERE m.dg_kj_mol IS NOT NULL"
     )
     if not include_retracted:
         sql += " AND m.status != 'retracted'"
-    groups: dict[str, list[float]] = defaultdict(list)
+    rows = [(k, float(dg), bool(flag)) for k, dg, flag in conn.rows(sql + " ORDER BY m.id")]
+    if include_flagged:
+        return rows, 0
+    kept = [r for r in rows if not r[2]]
+    return kept, len(rows) - len(kept)
+
+
+def barriers_by_kind(
+    database: Database, *, include_retracted: bool = False, include_flagged: bool = False
+) -> BarrierGroups:
+    """ΔG‡ (kJ/mol) of every measurement that has one, grouped by process kind; flagged
+    values only with ``include_flagged``."""
+    groups: dict[str, list[tuple[float, bool]]] = defaultdict(list)
     with database.read() as conn:
-        for kind, dg in conn.rows(sql + " ORDER BY m.id"):
-            groups[kind or NO_KIND].append(float(dg))
-    return _sorted_groups(groups)
+        rows, left_out = _barriers(conn, "p.kind", include_retracted, include_flagged)
+    for kind, dg, flag in rows:
+        groups[kind or NO_KIND].append((dg, flag))
+    return _groups(groups, left_out)
 
 
 def barriers_by_motif(
-    database: Database, *, include_retracted: bool = False
-) -> dict[str, list[float]] | None:
+    database: Database, *, include_retracted: bool = False, include_flagged: bool = False
+) -> BarrierGroups | None:
     """ΔG‡ grouped by structural motif when :mod:`registry.search` offers motif matching.
 
     Returns None when it does not (the caller falls back to process kinds). A compound that
     matches several motifs counts in each of them; one that matches none is in ``(no motif)``.
+    Flagged values only with ``include_flagged``.
     """
     try:
         from registry import search
@@ -188,20 +237,20 @@ def barriers_by_motif(
     if matcher is None:
         return None
     matches: dict[str, list[int]] = matcher(database)  # {motif name: [compound ids]}
-    sql = "SELECT m.compound_id, m.dg_kj_mol FROM measurement m WHERE m.dg_kj_mol IS NOT NULL"
-    if not include_retracted:
-        sql += " AND m.status != 'retracted'"
-    by_compound: dict[int, list[float]] = defaultdict(list)
+    by_compound: dict[int, list[tuple[float, bool]]] = defaultdict(list)
     with database.read() as conn:
-        for cid, dg in conn.rows(sql + " ORDER BY m.id"):
-            by_compound[int(cid)].append(float(dg))
+        rows, left_out = _barriers(conn, "m.compound_id", include_retracted, include_flagged)
+    for cid, dg, flag in rows:
+        by_compound[int(cid)].append((dg, flag))
     groups = {
-        motif: [dg for cid in ids for dg in by_compound.get(int(cid), [])]
+        motif: [pair for cid in ids for pair in by_compound.get(int(cid), [])]
         for motif, ids in matches.items()
     }
     matched = {int(cid) for ids in matches.values() for cid in ids}
-    groups[NO_MOTIF] = [dg for cid, dgs in by_compound.items() if cid not in matched for dg in dgs]
-    return _sorted_groups(groups)
+    groups[NO_MOTIF] = [
+        p for cid, pairs in by_compound.items() if cid not in matched for p in pairs
+    ]
+    return _groups(groups, left_out)
 
 
 # --- rows of measurements: tables and the HTML report ----------------------------------------

@@ -4,6 +4,10 @@ compound (structure, identity, measurements with their values, rate points, find
 Pure functions from rows to HTML; :mod:`.site` writes them into a folder. All CSS and JavaScript
 is inline (:mod:`.assets`), nothing is fetched from a network, and every piece of user text goes
 through :func:`html.escape`.
+
+A flagged measurement (``flagged``: an error finding nobody accepted) carries a ``flagged``
+badge on the index and on its compound page, and its ΔG‡ stays out of the compound's range
+unless the report was asked to include flagged values.
 """
 
 from __future__ import annotations
@@ -76,6 +80,19 @@ def _compound_href(cid: Any, prefix: str = "compounds/") -> str:
     return f"{prefix}c{int(cid)}.html"
 
 
+#: what the flagged badge says when pointed at
+FLAG_TITLE = (
+    "an error finding is open (not resolved, not accepted): left out of ranges, overview "
+    "plots and paper tables unless asked for"
+)
+
+
+def _flag_badge(m: Mapping[str, Any]) -> str:
+    if not m.get("flagged"):
+        return ""
+    return f'<span class="badge flagged" title="{escaped(FLAG_TITLE)}">flagged</span>'
+
+
 # --- index -----------------------------------------------------------------------------------
 
 _INDEX_COLUMNS: list[tuple[str, str, str]] = [
@@ -110,7 +127,7 @@ def _index_row(m: Mapping[str, Any]) -> str:
             "status",
             "reference",
         )
-    ).lower()
+    ).lower() + (" flagged" if m.get("flagged") else "")
     compound_text = m.get("compound") or m.get("compound_name") or f"compound {m['compound_id']}"
     cells = [
         f'<td class="num" data-v="{int(m["id"])}">{int(m["id"])}</td>',
@@ -124,6 +141,7 @@ def _index_row(m: Mapping[str, Any]) -> str:
         f'<td class="num" data-v="{_num(m.get("dg_t_k"), 3)}">{_kelvin(m.get("dg_t_k"))}</td>',
         f"<td>{_status(m.get('status'))}</td>",
         f'<td class="num" data-v="{len(open_findings)}">'
+        + (f"{_flag_badge(m)} " if m.get("flagged") else "")
         + (f"{len(open_findings)}" if open_findings else "")
         + (
             f' <span class="muted small">(+{len(findings) - len(open_findings)} accepted)</span>'
@@ -132,7 +150,8 @@ def _index_row(m: Mapping[str, Any]) -> str:
         )
         + "</td>",
     ]
-    return f'<tr data-search="{escaped(search)}">' + "".join(cells) + "</tr>"
+    flagged = ' class="flagged"' if m.get("flagged") else ""
+    return f'<tr{flagged} data-search="{escaped(search)}">' + "".join(cells) + "</tr>"
 
 
 def render_index(
@@ -142,8 +161,10 @@ def render_index(
     subtitle: str,
     counts: Mapping[str, int],
     overview: str | None,
+    overview_note: str = "",
 ) -> str:
-    """The index page: counts, the filter box, the sortable table, the overview plot."""
+    """The index page: counts, the filter box, the sortable table, the overview plot (with
+    ``overview_note`` under it: which values it leaves out)."""
     head = "".join(
         f'<th scope="col" class="{"num" if kind == "num" else ""}" data-type="{kind}">'
         f'<button type="button">{escaped(label)}</button></th>'
@@ -154,7 +175,7 @@ def render_index(
     plot = (
         f'<section class="card"><h2>Barriers by process kind</h2><figure class="plot">'
         f'<img src="{escaped(overview)}" alt="ΔG‡ of every measurement grouped by process kind">'
-        f"</figure></section>"
+        f'</figure><p class="muted small">{escaped(overview_note)}</p></section>'
         if overview
         else ""
     )
@@ -173,7 +194,7 @@ def render_index(
 </table>
 <p class="muted small">Click a column header to sort; click again to reverse. Every word typed in
 the filter must appear somewhere in a row (compound, name, SMILES, process, method, solvent,
-status, reference).</p>
+status, reference; type <b>flagged</b> for the rows with an open error finding).</p>
 {plot}
 <script>{assets.TABLE_JS}</script>"""
     return _page(title, body, subtitle=subtitle)
@@ -334,9 +355,15 @@ def _measurement_card(m: Mapping[str, Any], plot: str | None, plot_note: str | N
         )
     elif plot_note:
         plot_html = f'<p class="muted small">{escaped(plot_note)}</p>'
+    flag_note = (
+        f'<p class="small flag-note">Flagged: {escaped(FLAG_TITLE)}.</p>'
+        if m.get("flagged")
+        else ""
+    )
     return f"""<section class="card" id="m{int(m["id"])}">
-<h2>Measurement {int(m["id"])}{label} {_status(m.get("status"))}</h2>
+<h2>Measurement {int(m["id"])}{label} {_status(m.get("status"))} {_flag_badge(m)}</h2>
 <p class="muted small">{" · ".join(escaped(b) for b in bits)}</p>
+{flag_note}
 {_values_table(m)}
 {_rates_table(m.get("rate_points") or [])}
 {findings_html}
@@ -352,8 +379,10 @@ def render_compound(
     plots: Mapping[int, str],
     plot_notes: Mapping[int, str],
     subtitle: str,
+    include_flagged: bool = False,
 ) -> str:
-    """One compound: structure (or a placeholder saying why not), identity, measurements."""
+    """One compound: structure (or a placeholder saying why not), identity, its ΔG‡ range
+    (flagged values only with ``include_flagged``), measurements."""
     name = compound.get("label") or compound.get("name") or f"compound {compound['id']}"
     if structure:
         figure = structure
@@ -387,7 +416,33 @@ def render_compound(
     body = f"""<div class="compound-head">
 <figure class="structure" id="structure" aria-label="structure of {escaped(name)}">{figure}</figure>
 <section><dl class="facts">{dl}</dl>
-<p class="small muted">{len(measurements)} measurement(s) on this page.</p></section>
+<p class="small muted">{len(measurements)} measurement(s) on this page.</p>
+{barrier_range(measurements, include_flagged)}</section>
 </div>
 {cards}"""
     return _page(str(name), body, subtitle=subtitle, home="../index.html")
+
+
+def barrier_range(measurements: Sequence[Mapping[str, Any]], include_flagged: bool) -> str:
+    """The compound's ΔG‡ range as a sentence: flagged values left out (and said so) unless
+    ``include_flagged``."""
+    values = [
+        float(m["dg_kj_mol"])
+        for m in measurements
+        if m.get("dg_kj_mol") is not None and (include_flagged or not m.get("flagged"))
+    ]
+    flagged = sum(1 for m in measurements if m.get("flagged") and m.get("dg_kj_mol") is not None)
+    if include_flagged:
+        note = f" ({flagged} of them flagged)" if flagged else ""
+    else:
+        note = f"; {flagged} flagged value(s) left out" if flagged else ""
+    if not values:
+        text = "No ΔG‡ to sum up" + note + "."
+    elif len(values) == 1:
+        text = f"ΔG‡ {_num(values[0], 1)} kJ/mol from 1 value{note}."
+    else:
+        text = (
+            f"ΔG‡ from {_num(min(values), 1)} to {_num(max(values), 1)} kJ/mol over "
+            f"{len(values)} values{note}."
+        )
+    return f'<p class="small" id="barrier-range">{escaped(text)}</p>'

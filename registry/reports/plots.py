@@ -202,6 +202,7 @@ def eyring_text(s: EyringSummary, energy_unit: str) -> list[str]:
 def overview_figure(
     groups: Mapping[str, Sequence[float]],
     *,
+    flagged: Mapping[str, Sequence[bool]] | None = None,
     energy_unit: str = "kJ/mol",
     group_title: str = "process kind",
     title: str | None = None,
@@ -209,12 +210,19 @@ def overview_figure(
     height: float = 4.6,
 ) -> Figure:
     """Barriers (kJ/mol in, shown in ``energy_unit``) per group: a box per group with ≥ 3 values
-    and every value as a point (jittered deterministically so the same data give the same file)."""
+    and every value as a point (jittered deterministically so the same data give the same file).
+
+    ``flagged`` (per group, parallel to its values) marks values with an open error finding:
+    they are drawn as crosses in the warning colour, with a legend entry saying why.
+    """
     names = [g for g in groups if len(groups[g])]
     if not names:
         raise UsageError("no barriers (ΔG‡) to plot")
     rng = np.random.default_rng(20)
     values = [np.array([convert(v, "kJ/mol", energy_unit) for v in groups[g]]) for g in names]
+    marks = [
+        np.array((flagged or {}).get(g) or [False] * len(groups[g]), dtype=bool) for g in names
+    ]
     with styled():
         fig = new_figure(width or max(5.0, 1.1 * len(names) + 2.4), height)
         ax = fig.add_subplot()
@@ -232,17 +240,34 @@ def overview_figure(
                 whiskerprops={"color": theme.MUTED},
                 capprops={"color": theme.MUTED},
             )
+        labelled = False
         for i, v in enumerate(values):
             jitter = rng.uniform(-0.16, 0.16, v.size)
+            clean = ~marks[i]
             ax.scatter(
-                positions[i] + jitter,
-                v,
+                positions[i] + jitter[clean],
+                v[clean],
                 s=26,
                 color=theme.GROUPS[i % len(theme.GROUPS)],
                 edgecolors=theme.PAPER,
                 linewidths=0.6,
                 zorder=3,
             )
+            if marks[i].any():
+                ax.scatter(
+                    positions[i] + jitter[marks[i]],
+                    v[marks[i]],
+                    s=46,
+                    marker="X",
+                    color=theme.WARN,
+                    edgecolors=theme.PAPER,
+                    linewidths=0.6,
+                    zorder=4,
+                    label=None if labelled else "flagged: an error finding is open",
+                )
+                labelled = True
+        if labelled:
+            ax.legend(loc="best", fontsize=8)
         ax.set_xticks(
             positions, [f"{n}\n(n = {len(v)})" for n, v in zip(names, values, strict=True)]
         )

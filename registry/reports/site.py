@@ -4,7 +4,8 @@
 page per compound (:mod:`.pages`) with its drawn structure (:mod:`.drawing`), its measurements,
 what validation found about them and an Eyring plot for each measurement with at least two rate
 points (``plots/``, SVG). A ``.fluxledger-report`` marker lets a rebuild replace its own files,
-and only those.
+and only those. Flagged measurements (an open error finding) are listed and marked; the
+overview and each compound's ΔG‡ range leave them out unless ``include_flagged``.
 """
 
 from __future__ import annotations
@@ -34,6 +35,7 @@ class ReportResult:
     index: str
     compound_pages: int = 0
     measurements: int = 0
+    flagged: int = 0
     eyring_plots: int = 0
     structures_drawn: int = 0
     structures_missing: int = 0
@@ -120,6 +122,7 @@ def build_report(
     *,
     title: str = "Barrier registry",
     include_retracted: bool = False,
+    include_flagged: bool = False,
     plots: bool = True,
 ) -> ReportResult:
     """Write the report folder (index, a page per compound, plots) and say what went in.
@@ -134,12 +137,15 @@ def build_report(
     _check_folder(out)
     measurements = gather.measurements_for_report(database, include_retracted=include_retracted)
     compounds = gather.compounds(database, include_retracted=include_retracted)
-    groups = gather.barriers_by_kind(database, include_retracted=include_retracted)
+    groups = gather.barriers_by_kind(
+        database, include_retracted=include_retracted, include_flagged=include_flagged
+    )
     _prepare(out)
     when = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
     subtitle = escaped(f"{database.name} · written {when} by fluxledger")
     result = ReportResult(directory=str(out), index=str(out / "index.html"))
     result.measurements = len(measurements)
+    result.flagged = sum(1 for m in measurements if m.get("flagged"))
     by_compound: dict[int, list[Mapping[str, Any]]] = {}
     for m in measurements:
         by_compound.setdefault(int(m["compound_id"]), []).append(m)
@@ -159,29 +165,53 @@ def build_report(
             plots=plot_files,
             plot_notes=plot_notes,
             subtitle=subtitle,
+            include_flagged=include_flagged,
         )
         (out / "compounds" / f"c{int(c['id'])}.html").write_text(page, encoding="utf-8")
         result.compound_pages += 1
     overview = None
-    if plots and groups:
+    if plots and groups.values:
         from registry.reports.canvas import save_figure
         from registry.reports.plots import overview_figure
 
-        save_figure(overview_figure(groups), out / "plots" / "overview.svg")
+        figure = overview_figure(groups.values, flagged=groups.flagged)
+        save_figure(figure, out / "plots" / "overview.svg")
         overview = "plots/overview.svg"
-    counts = {
-        "measurements": len(measurements),
-        "compounds": len(compounds),
-        "with rate points": sum(1 for m in measurements if len(m.get("rate_points") or []) >= 2),
-        "validation findings": sum(len(m.get("findings") or []) for m in measurements),
-    }
     index = render_index(
-        measurements, title=title, subtitle=subtitle, counts=counts, overview=overview
-    )
+        measurements, title=title, subtitle=subtitle, counts=_counts(measurements, compounds),
+        overview=overview,
+        overview_note=_overview_note(groups.left_out, include_flagged),
+    )  # fmt: skip
     (out / "index.html").write_text(index, encoding="utf-8")
+    if groups.left_out:
+        result.notes.append(
+            f"{groups.left_out} flagged value(s) left out of the overview and of the compounds'"
+            " ΔG‡ ranges"
+        )
     if result.structures_missing:
         result.notes.append(
             f"{result.structures_missing} compound(s) shown without a drawing (unsanitized or no"
             " structure)"
         )
     return result
+
+
+def _counts(
+    measurements: Sequence[Mapping[str, Any]], compounds: Sequence[Mapping[str, Any]]
+) -> dict[str, int]:
+    """The figures at the top of the index."""
+    return {
+        "measurements": len(measurements),
+        "flagged (open error finding)": sum(1 for m in measurements if m.get("flagged")),
+        "compounds": len(compounds),
+        "with rate points": sum(1 for m in measurements if len(m.get("rate_points") or []) >= 2),
+        "validation findings": sum(len(m.get("findings") or []) for m in measurements),
+    }
+
+
+def _overview_note(left_out: int, include_flagged: bool) -> str:
+    if include_flagged:
+        return "Flagged values (an error finding is open) are included, drawn as crosses."
+    if left_out:
+        return f"{left_out} flagged value(s) (an error finding is open) are left out of this plot."
+    return "No value is flagged."

@@ -4,7 +4,9 @@ Values are shown in the energy unit the reader asks for, with uncertainties in t
 notation (see :mod:`registry.reports.numbers`). Method and solvent are not columns: each
 distinct (method, solvent) pair becomes a lettered footnote on the ΔG‡ value, the way journals
 lay out such tables; references become numbered notes. Columns with no value in any row are
-left out. All user text is escaped for the target format.
+left out. All user text is escaped for the target format. Flagged measurements (an error
+finding nobody accepted) are left out of a table unless asked for; included, their ΔG‡
+carries a dagger (†) and a note saying so.
 
 Rows are mappings with the keys of a measurement listing
 (:data:`registry.record.fields.LISTING_COLUMNS`) plus optional ``dh_err_kj_mol`` and
@@ -94,15 +96,33 @@ def table_rows(
     *,
     ids: Sequence[int] | None = None,
     limit: int | None = None,
+    include_flagged: bool = False,
     **filters: Any,
 ) -> list[dict[str, Any]]:
     """The rows a table needs: the measurements a listing with these filters selects (the
-    keywords of :func:`registry.search.filters.listing_filters`), with ΔH‡/ΔS‡ errors."""
+    keywords of :func:`registry.search.filters.listing_filters`), with ΔH‡/ΔS‡ errors.
+    Flagged measurements only with ``include_flagged`` (or ``flagged=True``)."""
+    return _selected(database, ids, limit, include_flagged, filters)[0]
+
+
+def _selected(
+    database: Database,
+    ids: Sequence[int] | None,
+    limit: int | None,
+    include_flagged: bool,
+    filters: Mapping[str, Any],
+) -> tuple[list[dict[str, Any]], int]:
+    """(rows, how many flagged rows were left out); asking for flagged rows only
+    (``flagged=True``) includes them."""
     from registry.reports.gather import measurement_rows
     from registry.search.filters import listing_filters
 
     rows = measurement_rows(database, listing_filters(**filters), ids=ids)
-    return rows[:limit] if limit else rows
+    left_out = 0
+    if not (include_flagged or filters.get("flagged") is True):
+        kept = [r for r in rows if not r.get("flagged")]
+        left_out, rows = len(rows) - len(kept), kept
+    return (rows[:limit] if limit else rows), left_out
 
 
 # --- shared layout ---------------------------------------------------------------------------
@@ -115,6 +135,7 @@ class _Cell:
     text: str
     marker: str | None = None
     number: bool = False
+    flagged: bool = False  # a flagged value: the dagger and its note
 
 
 @dataclass(frozen=True)
@@ -123,6 +144,18 @@ class _Layout:
     rows: list[dict[str, _Cell]]
     conditions: list[tuple[str, str | None, str | None]]  # (marker, method, solvent)
     references: list[str]
+
+    @property
+    def any_flagged(self) -> bool:
+        return any(cell.flagged for row in self.rows for cell in row.values())
+
+
+#: the mark of a flagged value and its note (Markdown text; LaTeX writes ``\dag``)
+FLAG_MARK = "†"
+FLAG_NOTE = (
+    "Flagged in the registry: an error-level check of this entry is open (not resolved, not "
+    "accepted); shown on request."
+)
 
 
 def _letters(index: int) -> str:
@@ -176,11 +209,12 @@ def _layout(
             marker = conditions.setdefault(key, _letters(len(conditions)))
         ref = (r.get("reference") or "").strip()
         ref_no = references.setdefault(ref, len(references) + 1) if ref else None
+        dg_text = energy(r.get("dg_kj_mol"), r.get("dg_err_kj_mol"))
         out.append(
             {
                 "compound": _Cell(str(r.get("compound") or r.get("compound_name") or "")),
                 "process": _Cell(str(r.get("process") or "")),
-                "dg": _Cell(energy(r.get("dg_kj_mol"), r.get("dg_err_kj_mol")), marker, True),
+                "dg": _Cell(dg_text, marker, True, bool(r.get("flagged"))),
                 "dg_t": _Cell(_temperature_text(r.get("dg_t_k")), number=True),
                 "dh": _Cell(energy(r.get("dh_kj_mol"), r.get("dh_err_kj_mol")), number=True),
                 "ds": _Cell(entropy(r.get("ds_j_mol_k"), r.get("ds_err_j_mol_k")), number=True),
@@ -282,6 +316,8 @@ def render_markdown(
             text = cell.text if cell.number else _md_escape(cell.text)
             if cell.marker and text:
                 text += " " + _md_marker(cell.marker)
+            if cell.flagged:
+                text += " " + FLAG_MARK
             cells.append(text)
         lines.append("| " + " | ".join(cells) + " |")
     notes = []
@@ -289,6 +325,8 @@ def render_markdown(
         what, solv = _condition_text(method, solvent)
         where = f"; in {_md_formula(_md_escape(solv))}" if solv else ""
         notes.append(f"{_md_marker(marker)} {_md_escape(what)}{where}.")
+    if layout.any_flagged:
+        notes.append(f"{FLAG_MARK} {FLAG_NOTE}")
     for number, ref in enumerate(layout.references, start=1):
         notes.append(f"[{number}] {_md_escape(ref)}")
     if uncertainty == "paren" and _has_paren(layout):
@@ -376,8 +414,10 @@ def render_latex(
         for key, _kind in layout.columns:
             cell = row[key]
             text = _latex_number(cell.text) if cell.number else _latex_escape(cell.text)
-            if cell.marker and text:
-                text += f"\\textsuperscript{{{cell.marker}}}"
+            marks = [m for m in (cell.marker if text else None,
+                                 r"\dag" if cell.flagged else None) if m]  # fmt: skip
+            if marks:
+                text += f"\\textsuperscript{{{','.join(marks)}}}"
             cells.append(text)
         lines.append("    " + " & ".join(cells) + r" \\")
     lines += [r"    \bottomrule", r"  \end{tabular}"]
@@ -386,6 +426,8 @@ def render_latex(
         what, solv = _condition_text(method, solvent)
         where = f"; in {_latex_formula(solv)}" if solv else ""
         notes.append(f"\\textsuperscript{{{marker}}}\\,{_latex_escape(what)}{where}.")
+    if layout.any_flagged:
+        notes.append(f"\\textsuperscript{{\\dag}}\\,{_latex_escape(FLAG_NOTE)}")
     for number, ref in enumerate(layout.references, start=1):
         notes.append(f"[{number}]\\,{_latex_escape(ref)}")
     if uncertainty == "paren" and _has_paren(layout):
@@ -411,6 +453,7 @@ def export_table(
     energy_unit: str = "kJ/mol",
     uncertainty: str = "paren",
     caption: str | None = None,
+    include_flagged: bool = False,
     **filters: Any,
 ) -> dict[str, Any]:
     """Write the measurements ``filters`` select as a LaTeX or Markdown table file.
@@ -418,8 +461,10 @@ def export_table(
     ``fmt`` is latex/tex or markdown/md, or None to take it from the suffix (.tex, .md);
     ``filters`` are the keywords of :func:`table_rows` (those of a measurement listing:
     compound, method, solvent, process, status, barrier, barrier_min, barrier_max,
-    include_retracted, ids, limit). Everything is checked before the file is written, and the
-    text is written in one go, so a bad call leaves no half-written table behind.
+    include_retracted, flagged, ids, limit). Flagged measurements are left out (the result
+    counts them in ``flagged_left_out``) unless ``include_flagged``; included, their ΔG‡
+    carries a † footnote. Everything is checked before the file is written, and the text is
+    written in one go, so a bad call leaves no half-written table behind.
     """
     path = Path(output)
     energy_unit = energy_unit_name(energy_unit)
@@ -430,7 +475,13 @@ def export_table(
         raise UsageError(f"uncertainty {uncertainty!r}: use paren (62.3(4)) or pm (62.3 ± 0.4)")
     if not path.parent.exists():
         raise UsageError(f"{path}: the folder {path.parent} does not exist")
-    rows = table_rows(database, **filters)
+    ids, limit = filters.pop("ids", None), filters.pop("limit", None)
+    rows, left_out = _selected(database, ids, limit, include_flagged, filters)
+    if not rows and left_out:
+        raise UsageError(
+            f"no measurements to put in a table: the {left_out} selected are flagged (an error"
+            " finding is open); include flagged values to show them with a footnote"
+        )
     if name == "latex":
         text = render_latex(rows, energy_unit=energy_unit, uncertainty=uncertainty, caption=caption)
     else:
@@ -442,4 +493,6 @@ def export_table(
         "measurements": len(rows),
         "energy_unit": energy_unit,
         "uncertainty": uncertainty,
+        "flagged_included": sum(1 for r in rows if r.get("flagged")),
+        "flagged_left_out": left_out,
     }

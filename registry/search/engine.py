@@ -86,13 +86,16 @@ def find(
     threads: int | None = None,
     rebuild_index: bool = False,
     output: str = "rows",
+    include_flagged: bool = False,
 ) -> FindResult:
     """Every measurement on a compound that matches ``query`` (or is similar to ``similar``).
 
     Nothing is capped: ``limit`` only shortens the returned rows (``total_rows`` says how many
     there were). ``atoms`` adds the matched atom indices of each compound for highlighting.
     ``output="csv"`` is for a caller that will only call :meth:`FindResult.write_csv`: on a
-    SQLite registry the rows then stay ready CSV lines of the measurement listing.
+    SQLite registry the rows then stay ready CSV lines of the measurement listing. Every row
+    carries ``flagged``; ``include_flagged`` lets flagged values into the result's aggregates
+    (:meth:`FindResult.compound_table`).
     """
     # long: the steps share one read snapshot, from the first cache check to the last row
     _check(query, similar, min_similarity, limit)
@@ -157,8 +160,9 @@ def find(
         columns = (*columns, "match_atoms")
     description["filters"] = filters.describe()
     return FindResult(
-        description, columns, table, compounds, stats, warnings, total, returned, csv_body
-    )
+        description, columns, table, compounds, stats, warnings, total, returned, csv_body,
+        include_flagged=include_flagged,
+    )  # fmt: skip
 
 
 def _broad(stats: SearchStats) -> list[str]:

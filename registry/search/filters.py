@@ -1,5 +1,6 @@
 """Filters on the measurements a search returns: barrier and temperature ranges in any unit,
-solvent (by name, alias or class), method, process kind, nucleus, status and reference.
+solvent (by name, alias or class), method, process kind, nucleus, status, reference, and
+flagged or clean (an open error finding, :data:`registry.record.fields.OPEN_ERROR_SQL`, or none).
 
 Ranges are written as chemists write them: ``">= 22 kcal/mol"``, ``"< 90 kJ/mol"``,
 ``"80-100 kJ/mol"``, ``"80 to 100 kJ/mol"``, ``"-40 to -10 °C"``, ``"95 ± 5 kJ/mol"``. Every bound is
@@ -166,6 +167,8 @@ class Filters:
     reference: str | None = None
     compound: str | None = None  # compound label or name contains this text
     include_retracted: bool = False
+    #: True: only flagged measurements (an open error finding); False: only clean ones
+    flagged: bool | None = None
 
     def active(self) -> bool:
         """Does any filter narrow the measurements beyond 'not retracted'?"""
@@ -184,6 +187,8 @@ class Filters:
             out["solvent"] = list(self.solvents)
         if self.include_retracted:
             out["include_retracted"] = True
+        if self.flagged is not None:
+            out["flagged" if self.flagged else "clean"] = True
         return out
 
 
@@ -199,8 +204,13 @@ def make_filters(
     reference: str | None = None,
     compound: str | None = None,
     include_retracted: bool = False,
+    flagged: bool | None = None,
 ) -> Filters:
-    """Check and normalize filter texts (vocabulary names, units) before any query runs."""
+    """Check and normalize filter texts (vocabulary names, units) before any query runs.
+
+    ``flagged=True`` keeps only flagged measurements (an error finding nobody accepted),
+    ``flagged=False`` only clean ones; None keeps both.
+    """
     from registry.record import vocab
 
     solvents: list[str] = []
@@ -217,7 +227,14 @@ def make_filters(
         reference=reference.strip() if reference else None,
         compound=compound.strip() if compound and compound.strip() else None,
         include_retracted=include_retracted,
+        flagged=_flag_choice(flagged),
     )
+
+
+def _flag_choice(flagged: Any) -> bool | None:
+    if flagged is None or isinstance(flagged, bool):
+        return flagged
+    raise UsageError(f"flagged {flagged!r}: True (only flagged), False (only clean) or None")
 
 
 def with_bounds(filters: Filters, lo: str | float | None, hi: str | float | None) -> Filters:
@@ -331,6 +348,10 @@ def conditions(conn: Connection, filters: Filters) -> Where:
         if not parts:  # pragma: no cover - solvents given but nothing to match
             raise UsageError("solvent: nothing to match")
         out.clauses.append(" OR ".join(parts))
+    if filters.flagged is not None:
+        from registry.record.fields import OPEN_ERROR_SQL
+
+        out.clauses.append(OPEN_ERROR_SQL if filters.flagged else f"NOT {OPEN_ERROR_SQL}")
     if filters.compound:
         params["compound"] = f"%{filters.compound}%"
         out.clauses.append(
@@ -351,16 +372,18 @@ def listing_filters(
     barrier_min: str | float | None = None,
     barrier_max: str | float | None = None,
     include_retracted: bool = False,
+    flagged: bool | None = None,
 ) -> Filters:
     """The filters a listing takes (``list``, exports, paper tables), read and checked.
 
     ``barrier`` is a range as chemists write it (``'>= 22 kcal/mol'``, ``'80-100 kJ/mol'``);
     ``barrier_min``/``barrier_max`` are single bounds, texts with a unit or floats in kJ/mol;
-    ``solvent`` a name, an alias, a class (``chlorinated`` …) or a part of the text.
+    ``solvent`` a name, an alias, a class (``chlorinated`` …) or a part of the text;
+    ``flagged`` True keeps only flagged measurements, False only clean ones.
     """
     found = make_filters(
         barrier=barrier, solvent=solvent, method=method, process=process, status=status,
-        compound=compound, include_retracted=include_retracted,
+        compound=compound, include_retracted=include_retracted, flagged=flagged,
     )  # fmt: skip
     return with_bounds(found, barrier_min, barrier_max)
 

@@ -10,10 +10,12 @@ solvent and method in case-insensitive order) and each measurement's CSV line
 picked lines as they are; a search that needs the rows as values reads just those by id.
 
 The file records the state it was built from: the ``listing`` change counter (every update or
-delete of a measurement, compound or process row, plain SQL included) and the measurement
-table's row count and largest id. Any difference rebuilds it (about a second per 100,000
-measurements, once after a write). Server registries have no listing: their rows are read
-through SQL on every search.
+delete of a measurement, compound or process row, plain SQL included), the measurement
+table's row count and largest id, and a digest of the open error findings (each line carries
+the ``flagged`` column, which a check or an acceptance can change without touching a
+measurement row). Any difference rebuilds it (about a second per 100,000 measurements, once
+after a write). Server registries have no listing: their rows are read through SQL on every
+search.
 """
 
 from __future__ import annotations
@@ -31,7 +33,7 @@ from registry.storage.connection import Connection
 from registry.storage.database import Database
 
 MAGIC = b"FLXLIST1"
-FORMAT_VERSION = 2  # 2: valid for a change-counter state
+FORMAT_VERSION = 3  # 2: valid for a change-counter state; 3: lines carry ``flagged``
 SUFFIX = ".listing"
 COUNTERS = ("listing",)
 TABLES = ("measurement",)
@@ -219,6 +221,23 @@ def read_listing(path: Path) -> tuple[Listing, dict] | None:
     return listing, state
 
 
+def listing_state(conn: Connection) -> dict:
+    """The registry state a listing is valid for (see the module docstring).
+
+    The open error findings are summed as (count, sum of ids, sum of measurement ids), which
+    changes when the set of flagged measurements does. fluxledger moves the ``listing``
+    counter then as well (the status follows the findings); the digest also covers
+    retracted rows, whose status stays, and findings changed in plain SQL.
+    """
+    now = cachefile.state_of(conn, COUNTERS, TABLES)
+    digest = conn.first(
+        "SELECT count(*), coalesce(sum(id), 0), coalesce(sum(measurement_id), 0) "
+        "FROM validation_finding WHERE severity = 'error' AND accepted_by IS NULL"
+    ) or (0, 0, 0)
+    now["open_errors"] = [int(v) for v in digest]
+    return now
+
+
 def load_listing(database: Database, conn: Connection, *, rebuild: bool = False) -> Listing | None:
     """The listing valid for ``conn``'s snapshot (None for server and in-memory registries):
     held in this process, mapped from its file, or rebuilt from this snapshot and written back
@@ -226,7 +245,7 @@ def load_listing(database: Database, conn: Connection, *, rebuild: bool = False)
     path = cachefile.path_for(database, SUFFIX)
     if path is None or not database.is_sqlite:
         return None
-    now = cachefile.state_of(conn, COUNTERS, TABLES)
+    now = listing_state(conn)
     key = (database.key, "listing")
     if not rebuild:
         listing = cachefile.held(key, now)

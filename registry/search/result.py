@@ -51,6 +51,8 @@ class FindResult:
     them as dicts, built on first use, and :meth:`to_frame` as a pandas DataFrame. A search run
     for CSV output (``output="csv"``) may carry its rows as ready CSV lines instead
     (:attr:`csv_body`; ``table`` is then empty and ``returned`` counts the lines).
+    :meth:`compound_table` sums the rows up per compound; flagged values (``flagged`` 1: an
+    open error finding) stay out of its barrier ranges unless ``include_flagged``.
     """
 
     query: dict[str, Any]
@@ -62,6 +64,7 @@ class FindResult:
     total_rows: int  # before ``limit``
     returned: int = -1  # rows after ``limit`` (len(table) unless the rows are CSV lines)
     csv_body: bytes | None = None
+    include_flagged: bool = False  # the default of :meth:`compound_table`
 
     def __post_init__(self) -> None:
         if self.returned < 0:
@@ -112,6 +115,50 @@ class FindResult:
             out.write(self.csv_body)
         else:
             out.write("".join(csv_lines(self.column_values(columns))).encode("utf-8"))
+
+    def compound_table(self, include_flagged: bool | None = None) -> list[dict[str, Any]]:
+        """One row per compound with measurements, in the order the rows first name it:
+        ``compound_id``, ``compound`` (label, else name), ``smiles``, ``measurements``,
+        ``flagged`` (how many of them are flagged), the ΔG‡ range ``dg_min_kj_mol`` …
+        ``dg_max_kj_mol`` and ``values_in_range`` (how many ΔG‡ values it spans), plus
+        ``similarity`` and ``match_atoms`` when the search has them.
+
+        A flagged value (an error finding nobody accepted) does not set a range unless
+        ``include_flagged`` (default: the search's own ``include_flagged``); a compound whose
+        only values are flagged then has no range.
+        """
+        if self.csv_body is not None:
+            raise UsageError("compound_table: run the search with output='rows'")
+        with_flagged = self.include_flagged if include_flagged is None else include_flagged
+        by_id: dict[int, dict[str, Any]] = {}
+        for row in self.rows:
+            entry = by_id.get(row["compound_id"])
+            if entry is None:
+                entry = by_id[row["compound_id"]] = {
+                    "compound_id": row["compound_id"],
+                    "compound": row["compound"] or row.get("compound_name"),
+                    "smiles": row["smiles"],
+                    "measurements": 0,
+                    "flagged": 0,
+                    "dg_min_kj_mol": None,
+                    "dg_max_kj_mol": None,
+                    "values_in_range": 0,
+                }
+            entry["measurements"] += 1
+            flagged = bool(row.get("flagged"))
+            entry["flagged"] += flagged
+            dg = row.get("dg_kj_mol")
+            if dg is not None and math.isfinite(dg) and (with_flagged or not flagged):
+                low, high = entry["dg_min_kj_mol"], entry["dg_max_kj_mol"]
+                entry["dg_min_kj_mol"] = dg if low is None else min(low, dg)
+                entry["dg_max_kj_mol"] = dg if high is None else max(high, dg)
+                entry["values_in_range"] += 1
+            if "similarity" in row:
+                entry["similarity"] = row["similarity"]
+        for c in self.compounds:
+            if "atoms" in c and c["compound_id"] in by_id:
+                by_id[c["compound_id"]]["match_atoms"] = c["atoms"]
+        return list(by_id.values())
 
     def as_dict(self) -> dict[str, Any]:
         return {

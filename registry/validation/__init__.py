@@ -11,7 +11,8 @@ Map (data flows top to bottom):
     slips              the usual slips, each a recomputation with one thing done wrong
     rule_*             one module per family of rules, one class per rule
     engine             RULES, run_rules (+ inputs_hash per finding)
-    store              reconcile a run with the stored findings; accept a finding
+    store              reconcile a run with the stored findings; accept a finding; the status
+                       rule (an open error finding ⇔ status ``flagged``)
 
 :func:`check_measurements` is what ``fluxledger check``, ``add`` and the importer call.
 """
@@ -28,7 +29,14 @@ from registry.validation.base import SEVERITIES, SEVERITY_RANK, CheckConfig, Fin
 from registry.validation.data import load_check_data
 from registry.validation.engine import RULES, legacy_hashes, rule_by_id, run_rules
 from registry.validation.slips import SLIP_IDS
-from registry.validation.store import accept, last_run, reconcile, record_check_run
+from registry.validation.store import (
+    accept,
+    last_run,
+    out_of_step,
+    reconcile,
+    record_check_run,
+    sync_status,
+)
 
 __all__ = [
     "RULES",
@@ -40,7 +48,9 @@ __all__ = [
     "Rule",
     "accept_finding",
     "check_measurements",
+    "out_of_step",
     "rule_by_id",
+    "sync_status",
 ]
 
 
@@ -57,6 +67,8 @@ class CheckReport:
     added: int = 0
     removed: int = 0
     counts: dict[str, int] = field(default_factory=dict)
+    #: statuses the run changed by the status rule: ``{"id", "before", "after"}`` each
+    status_changes: tuple[dict[str, object], ...] = ()
 
     @property
     def has_errors(self) -> bool:
@@ -112,6 +124,10 @@ def check_measurements(
     ``record_run`` (what ``fluxledger check`` does), when it was stored after the previous
     recorded check of the whole registry (e.g. by ``add`` or an import in between); a check of
     the whole registry with ``record_run`` is itself recorded in the history under ``actor``.
+
+    In the same transaction the status follows the findings (:func:`.store.sync_status`): a
+    measurement left with an open error finding becomes ``flagged``, one with none open any
+    more returns to its earlier status; each change is in the history under ``actor``.
     """
     cfg = config or CheckConfig()
     id_list = None if ids is None else sorted({int(i) for i in ids})
@@ -121,11 +137,13 @@ def check_measurements(
     now = datetime.now(UTC)
 
     older = legacy_hashes(data, cfg)
+    who = actor or current_user()
 
-    def work(conn: Connection) -> tuple[list[Finding], int, int]:
+    def work(conn: Connection) -> tuple[list[Finding], int, int, list[dict[str, object]]]:
         stored, added, removed = reconcile(conn, id_list, findings, now, older)
+        changes = sync_status(conn, id_list, who)
         if not record_run:
-            return stored, added, removed
+            return stored, added, removed, changes
         previous = last_run(conn)
         if previous is not None:
             stored = [
@@ -134,10 +152,10 @@ def check_measurements(
         else:
             stored = [f if f.new else _as_new(f) for f in stored]
         if id_list is None:  # a partial run does not move "since the last run" for the rest
-            record_check_run(conn, actor or current_user(), id_list, _counts(stored))
-        return stored, added, removed
+            record_check_run(conn, who, id_list, _counts(stored))
+        return stored, added, removed, changes
 
-    stored, added, removed = database.write(work)
+    stored, added, removed, changes = database.write(work)
     return CheckReport(
         findings=tuple(stored),
         checked=len(data),
@@ -147,6 +165,7 @@ def check_measurements(
         added=added,
         removed=removed,
         counts=_counts(stored),
+        status_changes=tuple(changes),
     )
 
 

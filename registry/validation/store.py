@@ -1,9 +1,19 @@
-"""Findings in the ``validation_finding`` table: reconcile a run with the last one, accept one.
+"""Findings in the ``validation_finding`` table: reconcile a run with the last one, accept one,
+and keep each measurement's status in step with its findings.
 
 A run replaces, for the measurements it checked, every stored finding that is no longer
 produced (resolved, or recomputed because its inputs or the rule version changed) and inserts
 the ones that are new; a finding whose (measurement, rule, version, inputs_hash) is unchanged
 stays as it was, with its first date and its acceptance. Writes use executemany.
+
+**The status rule** (:func:`sync_status`, in the same transaction as the run or the
+acceptance): a measurement with an open error finding — severity ``error``, not accepted,
+:data:`registry.record.fields.OPEN_ERROR_SQL` — has status ``flagged``; when none is open any
+more (resolved by an edit or a re-check, or accepted) it returns to the status it had before
+it was flagged (``draft`` when the history does not say). Each change is a ``flag`` /
+``unflag`` revision in the history whose ``before``/``after`` hold the status. Retracted
+measurements keep their status. An edit cannot set ``flagged``, nor leave it while an error
+finding is open (:mod:`registry.admin.edits`).
 """
 
 from __future__ import annotations
@@ -14,6 +24,7 @@ from datetime import UTC, datetime
 from typing import Any
 
 from registry.errors import NotFoundError, UsageError
+from registry.record.fields import OPEN_ERROR_SQL
 from registry.storage import audit
 from registry.storage.connection import Connection, utc
 from registry.validation.base import SEVERITY_RANK, Finding
@@ -200,6 +211,8 @@ def accept(conn: Connection, finding_id: int, reason: str, actor: str) -> Findin
         },
         reason=reason.strip(),
     )
+    if row["severity"] == "error" and row["accepted_by"] is None:
+        sync_status(conn, [row["measurement_id"]], actor, reason=f"finding {finding_id} accepted")
     fresh = conn.record(select, {"id": finding_id})
     return finding_from_row(fresh)
 
@@ -231,3 +244,98 @@ def record_check_run(
         actor=actor,
         after={"scope": scope, "counts": counts},
     )
+
+
+# ---------------------------------------------------------------- status follows the findings
+
+#: history actions of the status rule
+FLAG_ACTION, UNFLAG_ACTION = "flag", "unflag"
+
+#: non-retracted measurements whose status contradicts their findings (``m``: measurement)
+_OUT_OF_STEP = (
+    "SELECT m.id, m.status FROM measurement m WHERE m.status != 'retracted' AND ("
+    f"(m.status = 'flagged' AND NOT {OPEN_ERROR_SQL}) OR "
+    f"(m.status != 'flagged' AND {OPEN_ERROR_SQL}))"
+)
+
+
+def out_of_step(conn: Connection, measurement_ids: Sequence[int] | None = None) -> list[Any]:
+    """(id, status) of the measurements (None: all) whose status contradicts their findings."""
+    if measurement_ids is None:
+        return conn.rows(_OUT_OF_STEP)
+    return conn.rows_where_in(_OUT_OF_STEP, "m.id", measurement_ids)
+
+
+def sync_status(
+    conn: Connection,
+    measurement_ids: Sequence[int] | None,
+    actor: str,
+    *,
+    reason: str | None = None,
+) -> list[dict[str, Any]]:
+    """Apply the status rule (module docstring) to these measurements (None: all); returns the
+    changes as ``{"id", "before", "after"}``, each also recorded in the history."""
+    wrong = out_of_step(conn, measurement_ids)
+    if not wrong:
+        return []
+    to_flag = [int(mid) for mid, status in wrong if status != "flagged"]
+    to_unflag = [int(mid) for mid, status in wrong if status == "flagged"]
+    open_errors = _open_errors(conn, to_flag)
+    previous = _status_before_flag(conn, to_unflag)
+    now = datetime.now(UTC)
+    changes: list[dict[str, Any]] = []
+    revisions: list[dict[str, Any]] = []
+    for mid, status in wrong:
+        mid = int(mid)
+        if status != "flagged":
+            after = "flagged"
+            named = ", ".join(f"{fid} [{rule}]" for fid, rule in open_errors.get(mid, []))
+            why = reason or f"error finding {named} open"
+            action = FLAG_ACTION
+        else:
+            after = previous.get(mid, "draft")
+            why = reason or "no error finding open any more"
+            action = UNFLAG_ACTION
+        changes.append({"id": mid, "before": status, "after": after})
+        revisions.append({"entity": "measurement", "entity_id": mid, "action": action,
+                          "before": {"status": status}, "after": {"status": after},
+                          "reason": why})  # fmt: skip
+    conn.execute_many(
+        "UPDATE measurement SET status = :status, updated_at = :at WHERE id = :mid",
+        [{"status": c["after"], "at": now, "mid": c["id"]} for c in changes],
+    )
+    audit.record_many(conn, revisions, actor)
+    return changes
+
+
+def _open_errors(conn: Connection, measurement_ids: list[int]) -> dict[int, list[tuple[int, str]]]:
+    """(finding id, rule) of each measurement's open error findings."""
+    out: dict[int, list[tuple[int, str]]] = {}
+    found = conn.rows_where_in(
+        "SELECT measurement_id, id, rule_id FROM validation_finding "
+        "WHERE severity = 'error' AND accepted_by IS NULL",
+        "measurement_id",
+        measurement_ids,
+    )
+    for mid, fid, rule in sorted(found, key=lambda r: (r[0], r[1])):
+        out.setdefault(int(mid), []).append((int(fid), rule))
+    return out
+
+
+def _status_before_flag(conn: Connection, measurement_ids: list[int]) -> dict[int, str]:
+    """The status each measurement had before it was last flagged, from the history."""
+    import json
+
+    out: dict[int, str] = {}
+    found = conn.rows_where_in(
+        "SELECT entity_id, id, before_json FROM revision "
+        "WHERE entity = 'measurement' AND action = :flag",
+        "entity_id",
+        measurement_ids,
+        {"flag": FLAG_ACTION},
+    )
+    for mid, _rid, before in sorted(found, key=lambda r: (r[0], r[1])):  # the last one wins
+        status = (json.loads(before) if before else {}).get("status")
+        if status and status not in ("flagged", "retracted"):
+            out[int(mid)] = status
+    return out
