@@ -124,3 +124,22 @@ def test_checking_one_id_does_not_reset_new(cli) -> None:  # type: ignore[no-unt
     assert json.loads(cli("check", "--json", "--new", "--id", "1").stdout) != []
     assert [f["measurement_id"] for f in json.loads(cli("check", "--json", "--new").stdout)] == [1]
     assert json.loads(cli("check", "--json", "--new").stdout) == []
+
+
+def test_a_check_with_another_tolerance_is_a_view_that_changes_nothing(cli) -> None:  # type: ignore[no-untyped-def]
+    add(cli, "K-1", f"{DG + 2:.2f} kJ/mol")  # 2 kJ/mol off: an error at the 1 kJ/mol default
+    stored = json.loads(cli("check", "--json").stdout)
+    assert [f["severity"] for f in stored] == ["error"]
+    fid = stored[0]["id"]
+    assert cli("accept", str(fid), "--reason", "integration limits checked").exit_code == 0
+    before = cli("show", "1", "--json").stdout
+    strict = cli("check", "--tolerance", "0.5 kcal/mol")  # a view: shows the error again
+    assert "a view with other settings: the stored findings are unchanged" in strict.stdout
+    loose = cli("check", "--tolerance", "900 kJ/mol", "--json")  # a view: shows none
+    assert json.loads(loose.stdout) == []
+    after = json.loads(cli("show", "1", "--json").stdout)
+    assert after["findings"][0]["id"] == fid
+    assert after["findings"][0]["accepted_by"] is not None  # the acceptance survived both
+    assert json.loads(before)["status"] == after["status"]
+    assert cli("check", "--tolerance", "1e308 kcal/mol").exit_code == 1  # refused, not stored
+    assert json.loads(cli("show", "1", "--json").stdout)["findings"] == after["findings"]

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from typing import TYPE_CHECKING
 
@@ -25,7 +26,10 @@ def check(
     """Run every rule on the measurements ``ids`` (None: all) and store the findings.
 
     ``tolerance`` is the base tolerance of a recomputed ΔG‡ (a text with a unit such as
-    ``'0.2 kcal/mol'``, or kJ/mol); a check of the whole registry is recorded in the history.
+    ``'0.2 kcal/mol'``, or kJ/mol). A check with a tolerance other than the registry's is a
+    view: its findings are returned and nothing stored changes (the stored findings, their
+    acceptances and the statuses stay those of the registry's own settings). A check of the
+    whole registry with its own settings is recorded in the history.
     """
     from registry.record.units import parse_value
     from registry.validation import CheckConfig, check_measurements
@@ -36,12 +40,14 @@ def check(
             value = parse_value(tolerance, "energy", field="tolerance").value
         else:
             value = float(tolerance)
-        if not value > 0:
-            raise UsageError(f"tolerance {tolerance!r}: must be positive")
+        if not (value > 0 and math.isfinite(value) and value < 1000):
+            raise UsageError(f"tolerance {tolerance!r}: give a positive energy below 1000 kJ/mol")
         config = CheckConfig(dg_tolerance_kj_mol=value)
+    own = config == CheckConfig()
     return check_measurements(
-        database, ids or None, actor=actor_name(actor), config=config, record_run=True
-    )
+        database, ids or None, actor=actor_name(actor), config=config, record_run=own,
+        store=own,
+    )  # fmt: skip
 
 
 def accept_finding(

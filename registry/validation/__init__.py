@@ -69,6 +69,8 @@ class CheckReport:
     counts: dict[str, int] = field(default_factory=dict)
     #: statuses the run changed by the status rule: ``{"id", "before", "after"}`` each
     status_changes: tuple[dict[str, object], ...] = ()
+    #: False for a view (a check with other settings): nothing was stored or changed
+    stored: bool = True
 
     @property
     def has_errors(self) -> bool:
@@ -90,11 +92,13 @@ class CheckReport:
         def n(count: int, word: str) -> str:
             return f"{count} {word}" + ("" if count == 1 else "s")
 
-        return (
+        found = (
             f"checked {n(self.checked, 'measurement')}: {n(c['error'], 'error')}, "
-            f"{n(c['warning'], 'warning')}, {n(c['note'], 'note')} "
-            f"({c['new']} new since the last run, {c['accepted']} accepted)"
+            f"{n(c['warning'], 'warning')}, {n(c['note'], 'note')}"
         )
+        if not self.stored:
+            return f"{found} (a view with other settings: the stored findings are unchanged)"
+        return f"{found} ({c['new']} new since the last run, {c['accepted']} accepted)"
 
 
 def _counts(findings: Sequence[Finding]) -> dict[str, int]:
@@ -116,8 +120,13 @@ def check_measurements(
     actor: str | None = None,
     config: CheckConfig | None = None,
     record_run: bool = False,
+    store: bool = True,
 ) -> CheckReport:
     """Run every rule on the measurements ``ids`` (None: all), store the findings, return them.
+
+    With ``store=False`` it is a view: the findings are computed and returned, and nothing
+    stored (findings, acceptances, statuses) is touched — what a check with other settings
+    (another tolerance) must do, so that it cannot undo an acceptance or delete findings.
 
     Findings whose inputs and rule version are unchanged keep their date and acceptance; ones
     no longer produced are removed. A finding is ``new`` when this run stored it or, with
@@ -136,6 +145,12 @@ def check_measurements(
     findings = run_rules(data, cfg)
     now = datetime.now(UTC)
 
+    if not store:
+        return CheckReport(
+            findings=tuple(findings), checked=len(data), ran_at=now,
+            measurement_ids=tuple(int(i) for i in data.ids), actor=actor,
+            counts=_counts(findings), stored=False,
+        )  # fmt: skip
     older = legacy_hashes(data, cfg)
     who = actor or current_user()
 
