@@ -57,7 +57,7 @@ def parse_assignments(assignments: list[str]) -> dict[str, str | None]:
     return changes
 
 
-def _stored_input(
+def stored_input(
     m: dict[str, Any],
     compound: dict[str, Any],
     process: dict[str, Any] | None,
@@ -218,7 +218,7 @@ def _renormalized(
 ) -> NormalizedEntry:
     """The stored entry with the changes applied, normalized again as ``add`` would."""
     single = stored.coalescence[0] if len(stored.coalescence) == 1 else None
-    inp = _stored_input(stored.m, stored.compound, stored.process, single)
+    inp = stored_input(stored.m, stored.compound, stored.process, single)
     for name, text in wanted.items():
         setattr(inp, name, text)
         inp.units.pop(name, None)
