@@ -3,8 +3,8 @@
 A later import of the same file and sheet compares against this (see :mod:`.merge`): a field
 whose text is what the file said last time has not been changed in the file, so a different
 text in the registry is a correction made there and is kept. One row per measurement and
-import, with the texts of the fields the file has columns for (``null`` for an empty cell) as
-JSON. A snapshot identical to the newest one of the same file and sheet is not written again,
+import, with the texts of the fields the file has columns for as JSON (an empty cell is left
+out, as it said nothing, unless the import was told that empty cells clear: then ``null``). A snapshot identical to the newest one of the same file and sheet is not written again,
 so re-importing an unchanged sheet adds nothing. No snapshot is written for a measurement held
 back by a conflict (the file's news would otherwise look old next time), nor for rejected rows.
 """

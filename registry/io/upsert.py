@@ -96,7 +96,7 @@ def plan_upsert(conn: Connection, prep: Prepared, options: MergeOptions) -> Upse
     bad = {i for i, _ in found.ambiguous} | {_index_of(prep, p) for p in problems}
     new = [i for i, mid in enumerate(found.ids) if mid is None and i not in bad]
     pairs = [(i, mid) for i, mid in enumerate(found.ids) if mid is not None and i not in bad]
-    presence = Presence(prep)
+    presence = Presence(prep, options.empty_clears)
     plan = UpsertPlan(
         new, dict(pairs), {i: found.how[i] or "" for i, _ in pairs}, [], [], [],
         found.ambiguous, problems, presence,
@@ -179,10 +179,14 @@ def _where(prep: Prepared, index: int) -> str:
 
 
 class Presence:
-    """The fields each entry's sheet speaks for, and the texts it gives them."""
+    """The fields each entry's sheet speaks for, and the texts it gives them.
 
-    def __init__(self, prep: Prepared) -> None:
+    An empty cell says nothing (it is left out) unless ``empty_clears``: then it says "empty".
+    """
+
+    def __init__(self, prep: Prepared, empty_clears: bool = False) -> None:
         self.prep = prep
+        self.empty_clears = empty_clears
         self._by_plan: dict[int, frozenset[str]] = {}
 
     def fields(self, index: int) -> frozenset[str]:
@@ -195,10 +199,14 @@ class Presence:
         return names
 
     def file_texts(self, index: int) -> Texts:
-        """What the file says for the fields it has (None for an empty cell)."""
+        """What the file says for the fields it has (None for an empty cell that clears)."""
         extra = self.prep.read.inputs[self.prep.kept[index]].extra
         texts = fieldtexts.entry_texts(self.prep.entries[index], extra)
-        return {name: texts.get(name) for name in sorted(self.fields(index))}
+        return {
+            name: texts.get(name)
+            for name in sorted(self.fields(index))
+            if self.empty_clears or texts.get(name) is not None
+        }
 
 
 def _same_compound(
