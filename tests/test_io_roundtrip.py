@@ -595,3 +595,36 @@ def test_export_marks_measurements_with_an_open_error_finding(
     assert [r["flagged"] for r in json.loads(js.read_text(encoding="utf-8"))] == [False, False]
     # the derived column is not read back
     assert import_table(database, out)["updated"] == 0
+
+
+# ---------------------------------------------------------------- rate points from a rates sheet
+
+
+def test_rate_points_added_by_hand_survive_an_old_rates_sheet(
+    database: Database, tmp_path: Path
+) -> None:
+    entries = [["label", "compound", "SMILES", "method", "ΔH‡ (kJ/mol)"],
+               ["L1", "B1", "Cc1ccccc1-c1ccccc1C", "DNMR", 70.0]]  # fmt: skip
+    rates = [["label", "T (°C)", "k (s-1)"], ["L1", 80, 25.0], ["L1", 90, 60.0]]
+    import_table(database, write_xlsx(tmp_path / "book.xlsx", {"entries": entries, "rates": rates}))
+    only_rates = write_xlsx(tmp_path / "rates.xlsx", {"rates": rates})
+    assert import_table(database, only_rates)["updated"] == 0
+    # 100 °C = 373.15 K (NIST SP 811 (2008) 4.2.1.1)
+    api.add_rate_points(
+        database, 1, [{"t_k": 373.15, "t_text": "100 °C", "k_per_s": 140.0, "k_text": "140 s-1"}],
+        actor="ingrid",
+    )  # fmt: skip
+    summary = import_table(database, only_rates)
+    assert summary["updated"] == 0 and summary["held"] == []
+    (k,) = summary["kept"]
+    assert (k["field"], k["changed_by"], k["change"]) == ("rates", "ingrid", "rate-points")
+    assert len(api.get_measurement(database, 1)["rate_points"]) == 3
+    changed_rates = write_xlsx(
+        tmp_path / "rates.xlsx", {"rates": [rates[0], rates[1], ["L1", 90, 61.0]]}
+    )
+    assert import_table(database, changed_rates)["held"] == [1]
+    assert len(api.get_measurement(database, 1)["rate_points"]) == 3
+    summary = import_table(database, changed_rates, prefer="file")
+    assert summary["held"] == [] and summary["updated"] == 1
+    points = api.get_measurement(database, 1)["rate_points"]
+    assert [p["k_text"] for p in points] == ["25 s-1", "61 s-1"]

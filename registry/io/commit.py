@@ -22,7 +22,7 @@ from pathlib import Path
 from typing import Any
 
 from registry.errors import ImportRowError, RowProblem
-from registry.io import rates, upsert
+from registry.io import changes, rates, upsert
 from registry.io.merge import MergeOptions
 from registry.io.results import Prepared
 from registry.io.snapshots import write_snapshots
@@ -90,26 +90,32 @@ def write_import(conn: Connection, prep: Prepared, options: ImportOptions) -> Ou
     late = late_problems(prep, plan)
     rate_plan, rate_problems = rates.plan_rate_rows(conn, read)
     late.extend(rate_problems)
+    rate_total = len(rate_plan)
+    rate_plan, rate_merges, rate_snapshots = upsert.merge_rate_plan(
+        conn, prep, rate_plan, options.merge
+    )
+    plan.merges.extend(rate_merges)
     problems = prep.problems()
     if late and not options.skip_bad:
         raise ImportRowError(sorted(problems + late, key=lambda p: (p.sheet or "", p.row or 0)))
     added = _write_new(conn, prep, plan, options.actor, batch_id)
-    upsert.apply_changes(conn, prep, plan.changes, actor=options.actor, batch_id=batch_id)
+    changes.apply_changes(conn, prep, plan.changes, actor=options.actor, batch_id=batch_id)
     late_rows = {(p.sheet, p.row) for p in late}
     skip = {
         i for i in plan.matched if _source_key(prep, i) in late_rows
     }  # rows rejected after matching: no snapshot, so their news is not forgotten
     snapshots = write_snapshots(
-        conn, prep, plan, added.measurement_ids if added else [], batch_id, skip
+        conn, prep, plan, added.measurement_ids if added else [], batch_id, skip, rate_snapshots
     )
     rates_changed = rates.apply_rate_plan(conn, rate_plan, options.actor, batch_id)
     rejected_rows = {(p.sheet, p.row) for p in problems + late}
     held = len(plan.held)
+    rates_held = sum(1 for m in rate_merges if m.held)
     counts = {
         "rows_total": rows_read(prep),
         "rows_added": len(plan.new),
         "rows_updated": len(plan.changes) + rates_changed,
-        "rows_unchanged": len(plan.unchanged) + len(rate_plan) - rates_changed,
+        "rows_unchanged": len(plan.unchanged) + rate_total - rates_changed - rates_held,
         "rows_rejected": len(rejected_rows) + held,  # held back by a conflict: not imported
     }
     status = "partial" if rejected_rows or held else "done"

@@ -73,6 +73,8 @@ def import_table(
         with database.read() as conn:
             plan = upsert.plan_upsert(conn, prep, merge)
             rate_plan, rate_problems = rates.plan_rate_rows(conn, prep.read)
+            rate_plan, rate_merges, _ = upsert.merge_rate_plan(conn, prep, rate_plan, merge)
+            plan.merges.extend(rate_merges)
         late = commit.late_problems(prep, plan) + rate_problems
         return report.dry_run_report(summary, prep, plan, rate_plan, late)
     if problems and (not skip_bad or header_problem):

@@ -90,6 +90,8 @@ class MeasurementMerge:
     matched_by: str  # uid | label | key
     fields: list[FieldMerge] = field(default_factory=list)
     reviewed: bool = False
+    sheet: str | None = None  # where the file gives it (for the report)
+    row: int | None = None
 
     @property
     def held(self) -> bool:

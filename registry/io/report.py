@@ -91,8 +91,7 @@ def merge_report(prep: Prepared, plan: UpsertPlan) -> dict[str, Any]:
     written = {c.measurement_id for c in plan.changes}
     out: dict[str, list[dict[str, Any]]] = {"updates": [], "kept": [], "conflicts": []}
     for mm in plan.merges:
-        src = prep.read.sources[prep.kept[mm.index]]
-        where = {"measurement_id": mm.measurement_id, "sheet": src.sheet, "row": src.row}
+        where = {"measurement_id": mm.measurement_id, "sheet": mm.sheet, "row": mm.row}
         for fm in mm.fields:
             item = {**where, **_field_record(fm)}
             if fm.decision == CONFLICT:

@@ -33,9 +33,12 @@ def write_snapshots(
     added_ids: Sequence[int],
     batch_id: int,
     skip: Collection[int] = (),
+    more: Sequence[dict[str, Any]] = (),
 ) -> int:
     """Snapshots of the entries added (``added_ids`` in the order of ``plan.new``) and matched;
-    ``skip``: entry indexes whose rows were rejected. Returns how many were written."""
+    ``skip``: entry indexes whose rows were rejected; ``more``: snapshots of measurements a
+    rates sheet gave points (see :func:`registry.io.upsert.merge_rate_plan`). Returns how many
+    were written."""
     held = {m.measurement_id for m in plan.held}
     rows: list[dict[str, Any]] = []
 
@@ -57,5 +60,6 @@ def write_snapshots(
     for index, mid in plan.matched.items():
         if mid not in held and index not in skip:
             add(index, mid)
+    rows.extend({**row, "batch_id": batch_id} for row in more)
     conn.insert_many("import_snapshot", rows)
     return len(rows)
