@@ -145,8 +145,11 @@ class ProgressBar:
 
 def render_summary(s: dict[str, Any]) -> str:
     """The import report as text (the --json form carries the same data)."""
-    lines = _dry_run_lines(s) if s["dry_run"] else _written_lines(s)
-    lines.extend(merge_lines(s))
+    if s["dry_run"]:
+        lines = [*_dry_run_lines(s), *merge_lines(s)]
+    else:  # what the import did to the registry first, then the findings on it
+        head, *rest = _written_lines(s)
+        lines = [head, *merge_lines(s), *rest]
     lines.extend(f"note: {note}" for note in s["notes"])
     if s["problems"]:
         lines.append(f"{len(s['problems'])} problem(s):")
@@ -200,6 +203,8 @@ def merge_lines(s: dict[str, Any]) -> list[str]:
     lines = [f"update {u['measurement_id']}: {u['field']} {_t(u['registry'])} → {_t(u['file'])}"
              + (" (your choice: --prefer file)" if u["resolved"] == "file" else "")
              for u in s["updates"]]  # fmt: skip
+    lines += [f"update {u['measurement_id']}: {u['field']} {_t(u['registry'])} → {_t(u['file'])}"
+              " (held back with the conflict below)" for u in s["pending"]]  # fmt: skip
     for k in s["kept"]:
         if k["resolved"] == "registry":
             continue  # listed with the conflicts

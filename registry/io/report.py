@@ -16,7 +16,7 @@ from typing import Any
 from registry.errors import RowProblem
 from registry.io.cells import neutralise
 from registry.io.commit import Outcome, rows_read
-from registry.io.merge import CONFLICT, KEEP, WHY, FieldMerge
+from registry.io.merge import CONFLICT, KEEP, UPDATE, WHY, FieldMerge
 from registry.io.results import Prepared, ReadResult, problem_record
 from registry.io.upsert import UpsertPlan
 from registry.record.chem import Structure
@@ -82,21 +82,26 @@ def _order(p: RowProblem) -> tuple[str, int, str]:
 def merge_report(prep: Prepared, plan: UpsertPlan) -> dict[str, Any]:
     """The three-way merge's outcome, field by field: updates, kept values, conflicts.
 
-    ``updates`` are the file's texts written (``before`` the registry's, ``after`` the file's);
-    ``kept`` the registry's texts left as they are although the file differs; ``conflicts``
-    every field changed on both sides (``resolved``: "file" or "registry" when ``prefer``
-    decided it, else None and the measurement is in ``held``: nothing written for it).
+    ``updates`` are the file's texts written (``registry`` the text before, ``file`` after);
+    ``pending`` the updates of measurements held back by a conflict (written once it is
+    decided); ``kept`` the registry's texts left as they are although the file differs;
+    ``conflicts`` every field changed on both sides (``resolved``: "file" or "registry" when
+    ``prefer`` decided it, else None and the measurement is in ``held``: nothing written).
     ``changed_by``/``changed_at``/``change`` say which revision set the registry's text.
     """
     written = {c.measurement_id for c in plan.changes}
-    out: dict[str, list[dict[str, Any]]] = {"updates": [], "kept": [], "conflicts": []}
+    out: dict[str, list[dict[str, Any]]] = {
+        "updates": [], "pending": [], "kept": [], "conflicts": []
+    }  # fmt: skip
     for mm in plan.merges:
         where = {"measurement_id": mm.measurement_id, "sheet": mm.sheet, "row": mm.row}
         for fm in mm.fields:
             item = {**where, **_field_record(fm)}
             if fm.decision == CONFLICT:
                 out["conflicts"].append(item)
-            if fm.applied and not mm.held and mm.measurement_id in written:
+            if fm.decision == UPDATE and mm.held:
+                out["pending"].append(item)
+            elif fm.applied and not mm.held and mm.measurement_id in written:
                 out["updates"].append(item)
             elif fm.decision == KEEP or fm.resolved == "registry":
                 out["kept"].append(item)
