@@ -237,3 +237,35 @@ def test_registry_edits_are_never_reverted_by_an_older_export(
     finally:
         database.dispose()
         shutil.rmtree(folder, ignore_errors=True)
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(cells=st.lists(st.one_of(st.none(), st.text(max_size=40), st.sampled_from(["f" * 32, "0" * 31])),
+                      min_size=2, max_size=2))  # fmt: skip
+def test_any_text_in_the_uid_column_is_a_clear_problem_or_no_identifier(
+    _template_registry: Path, cells: list[str | None]
+) -> None:
+    """Whatever a uid cell holds, the import either succeeds or names the cell; nothing else."""
+    from registry.errors import FileFormatError, ImportRowError
+
+    database, folder = _fresh(_template_registry)
+    try:
+        rows = [
+            [cell, f"L{i}", "A1", "CN(C)C(=O)c1ccccc1", "lineshape", "14 kcal/mol"]
+            for i, cell in enumerate(cells)
+        ]
+        path = write_csv(folder / "u.csv", ["uid", "label", "compound", "SMILES", "method", "ΔG‡"],
+                         [[neutralise(c) if c else c for c in r] for r in rows])  # fmt: skip
+        try:
+            summary = import_table(database, path)
+        except ImportRowError as exc:
+            assert exc.problems and all(p.file == "u.csv" for p in exc.problems)
+            assert {p.column for p in exc.problems} <= {"uid", None}
+            return
+        except FileFormatError as exc:  # a NUL byte: the whole file is refused, by name
+            assert exc.file.endswith("u.csv")
+            return
+        assert summary["added"] + summary["updated"] + summary["unchanged"] >= 1
+    finally:
+        database.dispose()
+        shutil.rmtree(folder, ignore_errors=True)

@@ -200,6 +200,7 @@ class Presence:
         self.prep = prep
         self.empty_clears = empty_clears
         self._by_plan: dict[int, frozenset[str]] = {}
+        self._texts: dict[int, Texts] = {}  # the plan and the snapshots ask for the same rows
 
     def fields(self, index: int) -> frozenset[str]:
         src = self.prep.read.sources[self.prep.kept[index]]
@@ -212,13 +213,16 @@ class Presence:
 
     def file_texts(self, index: int) -> Texts:
         """What the file says for the fields it has (None for an empty cell that clears)."""
+        if index in self._texts:
+            return self._texts[index]
         extra = self.prep.read.inputs[self.prep.kept[index]].extra
         texts = fieldtexts.entry_texts(self.prep.entries[index], extra)
-        return {
+        said = self._texts[index] = {
             name: texts.get(name)
             for name in sorted(self.fields(index))
             if self.empty_clears or texts.get(name) is not None
         }
+        return said
 
 
 def _same_compound(
