@@ -40,9 +40,11 @@ def register(app: typer.Typer) -> None:
     app.command(
         "export",
         help=(
-            "Export measurements (filters as for 'list') as csv, xlsx or json: reported texts, "
-            "normalized values, findings and references. Text cells that a spreadsheet would "
-            "evaluate get a leading apostrophe; the importer removes it again.\n\n"
+            "Export measurements (filters as for 'list') as csv, xlsx or json: each one's uid "
+            "(first column; importing the file again matches on it), reported texts, normalized "
+            "values, findings, 'flagged' (an open error finding) and references. Text cells that "
+            "a spreadsheet would evaluate get a leading apostrophe; the importer removes it "
+            "again.\n\n"
             "latex (.tex) or markdown (.md) writes a table for a paper instead: ΔG‡ (ΔH‡, ΔS‡) in "
             "--energy-unit with uncertainties as 62.3(4) or 62.3 ± 0.4 (--uncertainty), lettered "
             "notes for methods and solvents, numbered references."
@@ -60,7 +62,10 @@ def import_cmd(
     dry_run: bool = typer.Option(
         False,
         "--dry-run",
-        help="Show the inferred mapping, the first rows as stored, and the problems; write nothing.",
+        help=(
+            "Show the inferred mapping, the first rows as stored, what would change field by "
+            "field (updates, kept values, conflicts) and the problems; write nothing."
+        ),
     ),
     skip_bad: bool = typer.Option(
         False,

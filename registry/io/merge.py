@@ -172,7 +172,9 @@ def _resolved(
     return fm
 
 
-def merged_input(state: dict[str, Any], file_input: EntryInput, merge: MeasurementMerge) -> Any:
+def merged_input(
+    state: dict[str, Any], file_input: EntryInput, merge: MeasurementMerge
+) -> EntryInput:
     """The stored entry with the file's applied fields written over it, ready to normalize.
 
     Starting from the registry's texts (:func:`registry.admin.edits.stored_input`, the same
