@@ -157,17 +157,31 @@ class OpenFindingError(FluxledgerError):
     exit_code = 1
 
     def __init__(
-        self, measurement_id: int, status: str, findings: list[tuple[int, str, str]]
+        self,
+        measurement_id: int,
+        status: str,
+        findings: list[tuple[int | None, str, str]],
+        *,
+        edited: bool = False,
     ) -> None:
         super().__init__(measurement_id, status, findings)
         self.measurement_id = measurement_id
         self.status = status
         self.findings = findings
+        self.edited = edited  # the findings are those of the edited values (nothing written)
 
     def __str__(self) -> str:
         named = "; ".join(
-            f"finding {fid} [{rule}]: {message}" for fid, rule, message in self.findings
+            f"finding {fid} [{rule}]: {message}" if fid is not None else f"[{rule}]: {message}"
+            for fid, rule, message in self.findings
         )
+        if self.edited:
+            return (
+                f"status: measurement {self.measurement_id} cannot become {self.status!r}: with "
+                f"the edited values the check still finds an error — {named}. Nothing was "
+                "written; correct the values so that the check passes, or accept the finding "
+                "with a reason and then set the status"
+            )
         return (
             f"status: measurement {self.measurement_id} stays 'flagged' while an error finding is"
             f" open, so it cannot become {self.status!r} — {named}. Correct the values so that"

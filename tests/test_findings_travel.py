@@ -411,6 +411,31 @@ def test_an_edit_cannot_contradict_an_open_finding(cli, filled) -> None:  # type
     assert cli("edit", str(a2), "--set", "status=reviewed").exit_code == 0
 
 
+def test_correcting_and_reviewing_in_one_edit_is_judged_on_the_corrected_values(
+    cli, filled
+) -> None:  # type: ignore[no-untyped-def]
+    database, ids = filled
+    a2 = ids["a2"]
+    before = api.get_measurement(database, a2)
+    history = len(api.history(database, a2, limit=None))
+    # still 5 kJ/mol off after the "correction": refused, and nothing is written
+    still_wrong = cli("edit", str(a2), "--set", f"dg={A1_DG - 5:.2f} kJ/mol", "--set",
+                      "status=reviewed")  # fmt: skip
+    assert still_wrong.exit_code == 1
+    assert still_wrong.stderr.startswith(
+        f"error: status: measurement {a2} cannot become 'reviewed': with the edited values the "
+        "check still finds an error — [coalescence-barrier]: ΔG‡ "
+    )
+    assert "Nothing was written" in still_wrong.stderr
+    assert api.get_measurement(database, a2) == before
+    assert len(api.history(database, a2, limit=None)) == history
+    # the right value and the status together: both land, and the finding is gone
+    fixed = cli("edit", str(a2), "--set", f"dg={A1_DG:.2f} kJ/mol", "--set", "status=reviewed")
+    assert fixed.exit_code == 0, fixed.stderr
+    record = api.get_measurement(database, a2)
+    assert (record["status"], record["flagged"]) == ("reviewed", False)
+
+
 def test_add_says_when_the_new_measurement_is_flagged(cli) -> None:  # type: ignore[no-untyped-def]
     entry = ENTRIES["c"]
     added = cli(

@@ -56,12 +56,14 @@ _VOLATILE = {"id", "compound_id", "process_id", "solvent_id", "batch_id", "enter
              "created_at", "source_row"}  # fmt: skip
 
 
-def _canonical(database: Database) -> list[dict[str, Any]]:
-    """Everything a registry holds about its measurements, minus ids and timestamps."""
+def _canonical(database: Database, *, uid: bool = True) -> list[dict[str, Any]]:
+    """Everything a registry holds about its measurements, minus ids and timestamps (and minus
+    the uids with ``uid=False``: registries filled from the same sheets give different ones)."""
+    volatile = _VOLATILE if uid else _VOLATILE | {"uid"}
 
     def strip(value: Any) -> Any:
         if isinstance(value, dict):
-            return {k: strip(v) for k, v in value.items() if k not in _VOLATILE}
+            return {k: strip(v) for k, v in value.items() if k not in volatile}
         if isinstance(value, list):
             return [strip(v) for v in value]
         if isinstance(value, bytes):

@@ -12,7 +12,7 @@ from openpyxl import Workbook
 from registry import api
 from registry.api import import_table
 from registry.errors import ImportRowError
-from registry.io import parallel, results, upsert
+from registry.io import changes, parallel, results
 from registry.record.chem import read_structure
 from registry.storage.database import Database
 
@@ -220,7 +220,7 @@ def test_interrupt_during_the_write_leaves_nothing(
     def boom(*args: object, **kwargs: object) -> None:
         raise KeyboardInterrupt
 
-    monkeypatch.setattr(upsert, "apply_changes", boom)
+    monkeypatch.setattr(changes, "apply_changes", boom)
     with pytest.raises(KeyboardInterrupt):
         import_table(database, sample_csv)
     assert count(database, "measurement") == 0

@@ -64,7 +64,7 @@ def parse_assignments(assignments: list[str]) -> dict[str, str | None]:
     return changes
 
 
-def _stored_input(
+def stored_input(
     m: dict[str, Any],
     compound: dict[str, Any],
     process: dict[str, Any] | None,
@@ -163,7 +163,8 @@ def edit_measurement(
 
     def work(conn: Connection) -> dict[str, Any]:
         stored = _load(conn, measurement_id, wanted)
-        if status is not None and stored.m["status"] not in (status, "retracted"):
+        asks_status = status is not None and stored.m["status"] not in (status, "retracted")
+        if asks_status and set(wanted) == {"status"}:
             _refuse_while_open(conn, measurement_id, status)  # (the check follows a restore)
         normalized = _renormalized(conn, stored, wanted)
         change = _measurement_change(conn, stored, normalized, wanted)
@@ -173,6 +174,8 @@ def edit_measurement(
             return {"id": measurement_id, "changed": False, "before": {}, "after": {}}
         change.updates["updated_at"] = datetime.now(UTC)
         conn.update("measurement", change.updates, id=measurement_id)
+        if asks_status and set(wanted) != {"status"}:
+            _refuse_if_edited_values_fail(conn, measurement_id, status)
         action = "status" if set(change.after) == {"status"} else "edit"
         audit.record(
             conn, entity="measurement", entity_id=measurement_id, action=action, actor=who,
@@ -229,6 +232,19 @@ def _refuse_while_open(conn: Connection, measurement_id: int, status: str) -> No
         raise OpenFindingError(measurement_id, status, [(int(i), r, m) for i, r, m in found])
 
 
+def _refuse_if_edited_values_fail(conn: Connection, measurement_id: int, status: str) -> None:
+    """An edit that corrects values and asks for a status in one go is judged on the corrected
+    values: the rules run inside the edit's transaction, and an error they still find refuses
+    the whole edit (nothing is written)."""
+    from registry.validation import errors_left_open
+
+    found = errors_left_open(conn, measurement_id)
+    if found:
+        raise OpenFindingError(
+            measurement_id, status, [(None, f.rule_id, f.message) for f in found], edited=True
+        )
+
+
 def _load(conn: Connection, measurement_id: int, wanted: Mapping[str, Any]) -> _Stored:
     of = {"id": measurement_id}
     m = conn.record("SELECT * FROM measurement WHERE id = :id", of)
@@ -258,7 +274,7 @@ def _renormalized(
 ) -> NormalizedEntry:
     """The stored entry with the changes applied, normalized again as ``add`` would."""
     single = stored.coalescence[0] if len(stored.coalescence) == 1 else None
-    inp = _stored_input(stored.m, stored.compound, stored.process, single)
+    inp = stored_input(stored.m, stored.compound, stored.process, single)
     for name, text in wanted.items():
         setattr(inp, name, text)
         inp.units.pop(name, None)

@@ -27,6 +27,8 @@ def import_table(
     actor: str | None = None,
     progress: Callable[[str, int, int], None] | None = None,
     workers: int | None = None,
+    prefer: str | None = None,
+    empty_clears: bool = False,
 ) -> dict[str, Any]:
     """Import a spreadsheet (.xlsx, .ods, .csv, .tsv) of measurements and/or rate points.
 
@@ -38,19 +40,31 @@ def import_table(
     ``dry_run`` reads and checks everything and writes nothing. ``mapping`` is a TOML mapping
     file (columns, units, defaults, sheets); ``sheet`` picks one sheet of a workbook.
     Importing the same file again adds nothing; a corrected file updates the matching
-    measurements, each change recorded in the history. ``progress(stage, done, total)`` is
-    called as rows are normalized and structures parsed; ``workers`` sets the size of the
-    process pool big files are parsed in (default: up to two).
+    measurements (matched by their ``uid`` column, then compound and label, then compound,
+    process, solvent, method and reference), each change recorded in the history.
 
-    Returns the import report: the mapping of each sheet, notes, problems, and the counts and
-    ids of added, updated and unchanged measurements with the validation findings on them
-    (``would_add`` … and a preview of the first rows for a dry run).
+    A re-import never silently undoes work done in the registry: each field is compared with
+    what the file said when it was last imported. A value changed in the registry since (an
+    edit, a review) and not in the file is kept; one changed in both is a conflict, and nothing
+    is written for that measurement unless ``prefer`` is ``"file"`` or ``"registry"`` (the
+    rest of the file is written). A reviewed measurement is changed only with
+    ``prefer="file"``. A column the file does not have changes nothing; an empty cell changes
+    nothing unless ``empty_clears``. ``progress(stage, done, total)`` is called as rows are
+    normalized and structures parsed; ``workers`` sets the size of the process pool big files
+    are parsed in (default: up to two).
+
+    Returns the import report: the mapping of each sheet, notes, problems, the counts and ids
+    of added, updated, unchanged and held measurements with the validation findings on them
+    (``would_add`` … and a preview of the first rows for a dry run), and the merge field by
+    field: ``updates``, ``kept``, ``conflicts``, ``held`` (see
+    :func:`registry.io.report.merge_report`).
     """
     from registry.io.importer import import_table as run
 
     return run(
         database, path, sheet=sheet, mapping=mapping, dry_run=dry_run, skip_bad=skip_bad,
         rejects=rejects, actor=actor_name(actor), progress=progress, workers=workers,
+        prefer=prefer, empty_clears=empty_clears,
     )  # fmt: skip
 
 

@@ -25,18 +25,27 @@ def register(app: typer.Typer) -> None:
             "('ΔG‡ (kcal/mol)', 'Tc (°C)', 'Δν (Hz)'); a unit written in a cell wins. Unknown "
             "columns are kept as extra attributes. The whole file is one transaction: all rows or "
             "none (with --skip-bad the rejected rows go to a side CSV). Importing the same file "
-            "again adds nothing; a corrected file updates the matching measurements.\n\n"
+            "again adds nothing; a corrected file updates the matching measurements (by uid, "
+            "then label, then compound, process, solvent, method and reference).\n\n"
+            "A re-import never silently undoes work done in the registry: a value changed there "
+            "since the file was last imported is kept (and the summary says so); a value changed "
+            "in both is a conflict, and nothing is written for that measurement unless --prefer "
+            "decides. A reviewed measurement changes only with --prefer file. Columns the file "
+            "does not have change nothing; empty cells change nothing without --empty-clears.\n\n"
             "Exit status: 0 when the import succeeded (also when validation findings were "
             "reported — they are listed in the summary), 1 when the data has problems (nothing "
-            "written), 2 for usage errors."
+            "written) or conflicts held measurements back (the rest was written), 2 for usage "
+            "errors."
         ),
     )(import_cmd)
     app.command(
         "export",
         help=(
-            "Export measurements (filters as for 'list') as csv, xlsx or json: reported texts, "
-            "normalized values, findings and references. Text cells that a spreadsheet would "
-            "evaluate get a leading apostrophe; the importer removes it again.\n\n"
+            "Export measurements (filters as for 'list') as csv, xlsx or json: each one's uid "
+            "(first column; importing the file again matches on it), reported texts, normalized "
+            "values, findings, 'flagged' (an open error finding) and references. Text cells that "
+            "a spreadsheet would evaluate get a leading apostrophe; the importer removes it "
+            "again.\n\n"
             "latex (.tex) or markdown (.md) writes a table for a paper instead: ΔG‡ (ΔH‡, ΔS‡) in "
             "--energy-unit with uncertainties as 62.3(4) or 62.3 ± 0.4 (--uncertainty), lettered "
             "notes for methods and solvents, numbered references."
@@ -54,7 +63,10 @@ def import_cmd(
     dry_run: bool = typer.Option(
         False,
         "--dry-run",
-        help="Show the inferred mapping, the first rows as stored, and the problems; write nothing.",
+        help=(
+            "Show the inferred mapping, the first rows as stored, what would change field by "
+            "field (updates, kept values, conflicts) and the problems; write nothing."
+        ),
     ),
     skip_bad: bool = typer.Option(
         False,
@@ -63,6 +75,20 @@ def import_cmd(
     ),
     rejects: str = typer.Option(
         None, "--rejects", help="Where --skip-bad writes rejected rows (default FILE.rejected.csv)."
+    ),
+    prefer: str = typer.Option(
+        None,
+        "--prefer",
+        help=(
+            "Decide conflicts (a field changed in the file and in the registry since the last "
+            "import; any change to a reviewed measurement): 'file' or 'registry'. Without it "
+            "nothing is written for such a measurement."
+        ),
+    ),
+    empty_clears: bool = typer.Option(
+        False,
+        "--empty-clears",
+        help="An empty cell clears the value (without it, an empty cell changes nothing).",
     ),
     as_json: bool = typer.Option(False, "--json", help="Print the summary as JSON."),
 ) -> None:
@@ -82,6 +108,8 @@ def import_cmd(
             rejects=rejects,
             actor=st.actor,
             progress=bar,
+            prefer=prefer,
+            empty_clears=empty_clears,
         )
     finally:
         if bar is not None:
@@ -90,7 +118,7 @@ def import_cmd(
         print_json(summary)
     else:
         typer.echo(render_summary(summary))
-    if dry_run and summary["problems"] and not skip_bad:
+    if (dry_run and summary["problems"] and not skip_bad) or summary["held"]:
         raise typer.Exit(1)
 
 
@@ -123,7 +151,11 @@ class ProgressBar:
 
 def render_summary(s: dict[str, Any]) -> str:
     """The import report as text (the --json form carries the same data)."""
-    lines = _dry_run_lines(s) if s["dry_run"] else _written_lines(s)
+    if s["dry_run"]:
+        lines = [*_dry_run_lines(s), *merge_lines(s)]
+    else:  # what the import did to the registry first, then the findings on it
+        head, *rest = _written_lines(s)
+        lines = [head, *merge_lines(s), *rest]
     lines.extend(f"note: {note}" for note in s["notes"])
     if s["problems"]:
         lines.append(f"{len(s['problems'])} problem(s):")
@@ -160,17 +192,71 @@ def _dry_run_lines(s: dict[str, Any]) -> list[str]:
     if s.get("preview"):
         lines.append("\nfirst rows as they would be stored")
         lines.append(_indent(table_text(s["preview"], _PREVIEW_COLUMNS)))
+    held = f", hold back {s['would_hold']} (conflicts)" if s["would_hold"] else ""
     lines.append(
         f"\nwould add {s['would_add']}, update {s['would_update']}, leave "
-        f"{s['unchanged']} unchanged; {s['would_reject']} row(s) with problems"
+        f"{s['unchanged']} unchanged{held}; {s['would_reject']} row(s) with problems"
     )
     return lines
+
+
+#: merge lines the text summary shows (--json has them all)
+MERGE_LINES = 200
+
+
+def merge_lines(s: dict[str, Any]) -> list[str]:
+    """The three-way merge, one line per field: updates, kept values, conflicts."""
+    lines = [f"update {u['measurement_id']}: {u['field']} {_t(u['registry'])} → {_t(u['file'])}"
+             + (" (your choice: --prefer file)" if u["resolved"] == "file" else "")
+             for u in s["updates"]]  # fmt: skip
+    lines += [f"update {u['measurement_id']}: {u['field']} {_t(u['registry'])} → {_t(u['file'])}"
+              " (held back with the conflict below)" for u in s["pending"]]  # fmt: skip
+    for k in s["kept"]:
+        if k["resolved"] == "registry":
+            continue  # listed with the conflicts
+        lines.append(
+            f"kept {k['measurement_id']}: {k['field']} {_t(k['registry'])}{_setter(k)}; "
+            f"the file says {_t(k['file'])}: {k['why']}"
+        )
+    for c in s["conflicts"]:
+        outcome = {
+            "file": "decided for the file (--prefer file)",
+            "registry": "decided for the registry (--prefer registry)",
+        }.get(c["resolved"] or "", "nothing written for this measurement")
+        lines.append(
+            f"conflict {c['measurement_id']}: {c['field']}: file {_t(c['file'])}, registry "
+            f"{_t(c['registry'])}{_setter(c)}"
+            + (f", at the last import {_t(c['last_import'])}" if c["last_import"] else "")
+            + f" — {c['why']}; {outcome}"
+        )
+    if len(lines) > MERGE_LINES:
+        more = len(lines) - MERGE_LINES
+        lines = [*lines[:MERGE_LINES], f"… and {more} more (--json lists all)"]
+    if s["held"]:
+        ids = ", ".join(map(str, s["held"][:20])) + (" …" if len(s["held"]) > 20 else "")
+        lines.append(
+            f"{len(s['held'])} measurement(s) held back by conflicts ({ids}): nothing written for "
+            "them; choose with --prefer file or --prefer registry"
+        )
+    return lines
+
+
+def _t(text: str | None) -> str:
+    return "(empty)" if text is None else text
+
+
+def _setter(item: dict[str, Any]) -> str:
+    if not item["changed_by"]:
+        return ""
+    when = (item["changed_at"] or "").replace("T", " ")[:16]
+    return f" ({item['change']} by {item['changed_by']}, {when})"
 
 
 def _written_lines(s: dict[str, Any]) -> list[str]:
     lines = [
         f"imported {s['file']} (batch {s['batch_id']}): {s['added']} added, "
         f"{s['updated']} updated, {s['unchanged']} unchanged, {s['rejected']} rejected"
+        + (f", {len(s['held'])} held back" if s["held"] else "")
     ]
     v = s.get("validation") or {}
     if v.get("available"):

@@ -12,9 +12,16 @@ Map (data flows top to bottom on import; :mod:`.importer` runs the stages in ord
     entries    build stage: one EntryInput per row of an entries sheet
     rates      rates sheets, rate lists in one cell, rate points of stored measurements
     prepare    normalize stage: units and structures (parallel: a process pool for big files)
-    conflicts  compound label/structure conflicts and duplicate rows, before the write
-    upsert     match existing measurements; update them with before/after revisions
-    commit     write stage: one transaction (batch row, new rows, updates, rate points)
+    identity   the uid column an export writes: read back, checked, out of the extras
+    conflicts  compound label/structure conflicts and rows claiming one measurement
+    matching   which stored measurement a row is: uid, then label, then natural key
+    fieldtexts what the file, the registry and a snapshot say, field by field
+    lineage    a measurement's past: the file's last snapshot, the revision history per field
+    merge      three-way merge per field: update, keep, conflict; reviewed; --prefer
+    upsert     plan: match, merge, and the changes each merge leaves (reads only)
+    changes    the stored columns a merged row leaves, and writing them with revisions
+    snapshots  what each import's file said per measurement (import_snapshot)
+    commit     write stage: one transaction (batch row, new rows, updates, snapshots, rates)
     report     the import report, the rejected-rows file, the validation of new rows
     results    what one stage hands to the next
     importer   the orchestrator: read → check everything → one write transaction

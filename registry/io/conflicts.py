@@ -1,8 +1,9 @@
 """Rows the registry would refuse, found before the write: compound conflicts and duplicates.
 
 A compound label names one structure and a structure carries one label, in the file and in the
-registry; two rows of one file that describe the same measurement (same compound, process,
-solvent, method, reference and label — the matching key of :mod:`.upsert`) are one too many.
+registry. Two rows of one file that claim one measurement are one too many: the same ``uid``,
+the same compound and measurement label, or the same natural key (compound, process, solvent,
+method, reference and label — see :mod:`.matching`); the later row's problem names the earlier.
 Each such row becomes a problem naming its sheet, row and column, so that the whole file is
 judged before anything is written.
 """
@@ -13,7 +14,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from registry.errors import RowProblem
-from registry.io.results import ReadResult
+from registry.io.results import ReadResult, RowSource
 from registry.record.chem import Structure
 from registry.record.entry import NormalizedEntry
 from registry.storage.connection import Connection
@@ -45,23 +46,63 @@ def screen_entries(
             )  # fmt: skip
             drop.add(j)
             continue
-        key = match_key(ne, st, solvents)
-        if key in seen:
-            first = read.sources[kept[seen[key]]]
+        uid = read.uids[kept[j]] if read.uids else None
+        claims = _claims(ne, st, uid, solvents)
+        clash = next(((seen[c], why) for c, why in claims if c in seen), None)
+        if clash is not None:
+            first = read.sources[kept[clash[0]]]
             problems.append(
                 RowProblem(
                     read.file, src.sheet, src.row, None, None,
-                    f"duplicate of row {first.row}: same compound, process, solvent, method, "
-                    "reference and label; remove it or give each measurement its own label",
+                    f"duplicate of {row_name(first, src.sheet)}: {clash[1]}",
                 )
             )  # fmt: skip
             drop.add(j)
             continue
-        seen[key] = j
+        for c, _why in claims:
+            seen[c] = j
     if not drop:
         return entries, structures, kept
     keep = [j for j in range(len(entries)) if j not in drop]
     return [entries[j] for j in keep], [structures[j] for j in keep], [kept[j] for j in keep]
+
+
+_SAME_KEY = (
+    "same compound, process, solvent, method, reference and label; remove it or give each "
+    "measurement its own label"
+)
+
+
+def _claims(
+    entry: NormalizedEntry, structure: Structure | None, uid: str | None, solvents: dict[str, int]
+) -> list[tuple[tuple[Any, ...], str]]:
+    """What a row claims to be, most specific first, each with what a second claim is told."""
+    out: list[tuple[tuple[Any, ...], str]] = []
+    if uid:
+        out.append((("uid", uid), f"both rows carry uid {uid}; one measurement, one row"))
+    label = entry.measurement["label"]
+    if label:
+        out.append(
+            (
+                ("label", _identity(entry, structure), label),
+                f"compound {_compound_name(entry)!r} has one measurement labelled {label!r}; "
+                "give each measurement its own label",
+            )
+        )
+    out.append((("key", *match_key(entry, structure, solvents)), _SAME_KEY))
+    return out
+
+
+def row_name(src: RowSource, sheet: str | None) -> str:
+    """``row 3`` (``row 3 of sheet 'entries'`` when it is on another sheet than ``sheet``)."""
+    if src.sheet and src.sheet != sheet:
+        return f"row {src.row} of sheet {src.sheet!r}"
+    return f"row {src.row}"
+
+
+def _compound_name(entry: NormalizedEntry) -> str:
+    c = entry.compound
+    return c.get("label") or c.get("name") or c.get("smiles_input") or "?"
 
 
 def _identity(entry: NormalizedEntry, structure: Structure | None) -> str:

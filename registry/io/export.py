@@ -1,10 +1,13 @@
 """Export measurements as CSV, XLSX or JSON: reported texts, normalized values, findings.
 
-One row per measurement. Columns named after entry fields (``dg``, ``tc``, ``dnu`` …) hold
+One row per measurement. The first column, ``uid``, is the measurement's identifier: an
+import of the file matches on it first (:mod:`.matching`), so a row stays the same measurement
+whatever is corrected in it. Columns named after entry fields (``dg``, ``tc``, ``dnu`` …) hold
 the values *as reported*, so the file imports again unchanged; columns ending in
 ``(normalized)`` hold the canonical floats (their unit is in the name: ``dg_kj_mol``) and
-``(derived)`` columns what the registry computed (InChIKey, findings …) — the importer skips
-both kinds, since it derives them again. Rate points travel in one ``rates`` cell
+``(derived)`` columns what the registry computed (InChIKey, findings, ``flagged``: yes when an
+error finding is open, i.e. not accepted) — the importer skips both kinds, since it derives
+them again. Rate points travel in one ``rates`` cell
 (``k @ T; k @ T``); extra attributes as ``extra: <name>`` columns.
 
 Text cells that a spreadsheet would evaluate (leading ``=``, ``+``, ``-``, ``@``) get a
@@ -21,6 +24,7 @@ from typing import Any
 
 from registry.errors import UsageError
 from registry.io.cells import RATE_COLUMNS, format_rate_list, neutralise
+from registry.io.identity import UID_HEADER
 from registry.record import fields
 from registry.storage.database import Database
 
@@ -46,6 +50,7 @@ NORMALIZED: list[tuple[str, str]] = [
 
 DERIVED: list[tuple[str, str]] = [
     ("m", "id"),
+    ("x", "flagged"),
     ("c", "smiles_canonical"),
     ("c", "inchikey"),
     ("c", "formula"),
@@ -103,11 +108,16 @@ def gather(database: Database, ids: Sequence[int]) -> list[dict[str, Any]]:
     return [records[i] for i in ids if i in records]
 
 
+def flagged(rec: dict[str, Any]) -> bool:
+    """Whether a measurement has an error finding nobody has accepted."""
+    return any(f["severity"] == "error" and not f.get("accepted_by") for f in rec["findings"])
+
+
 def flat_row(rec: dict[str, Any]) -> dict[str, Any]:
     """One record as an export row (header → cell)."""
     co = rec["co"][0] if rec["co"] else {}
     parts = {"m": rec["m"], "c": rec["c"], "p": rec["p"], "co": co}
-    row: dict[str, Any] = {}
+    row: dict[str, Any] = {UID_HEADER: rec["m"].get("uid")}
     for header, part, column in REPORTED:
         row[header] = parts[part].get(column)
     row["rates"] = (
@@ -122,8 +132,10 @@ def flat_row(rec: dict[str, Any]) -> dict[str, Any]:
         row[f"{column} (normalized)"] = parts[part].get(column)
     findings = [f for f in rec["findings"] if not f.get("accepted_by")]
     for part, column in DERIVED:
-        if column == "findings":
-            value: Any = "; ".join(
+        if column == "flagged":
+            value: Any = "yes" if flagged(rec) else "no"
+        elif column == "findings":
+            value = "; ".join(
                 f"{f['severity']} [{f['rule_id']}] {f['message']}" for f in rec["findings"]
             )
         elif column == "finding_count":
@@ -142,6 +154,7 @@ def json_record(rec: dict[str, Any]) -> dict[str, Any]:
     m, c, p = rec["m"], rec["c"], rec["p"]
     return {
         "id": m["id"],
+        "uid": m.get("uid"),
         "label": m["label"],
         "compound": {
             k: c.get(k)
@@ -178,6 +191,7 @@ def json_record(rec: dict[str, Any]) -> dict[str, Any]:
             }
             for f in rec["findings"]
         ],
+        "flagged": flagged(rec),
         "reference": m["reference"],
         "status": m["status"],
         "entered_by": m["entered_by"],
@@ -186,7 +200,7 @@ def json_record(rec: dict[str, Any]) -> dict[str, Any]:
 
 
 def _columns(rows: Sequence[dict[str, Any]]) -> list[str]:
-    cols = [h for h, _, _ in REPORTED] + ["rates"]
+    cols = [UID_HEADER] + [h for h, _, _ in REPORTED] + ["rates"]
     extras = sorted({k for r in rows for k in r if k.startswith("extra: ")})
     cols += extras
     cols += [f"{c} (normalized)" for _, c in NORMALIZED]

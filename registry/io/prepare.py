@@ -15,7 +15,7 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 
 from registry.errors import RowProblem
-from registry.io import parallel, results
+from registry.io import identity, parallel, results
 from registry.io.conflicts import screen_entries
 from registry.io.headers import FIELD_TITLES
 from registry.io.mapping import Column
@@ -49,6 +49,7 @@ def prepare(
             path, sheet=sheet, mapping=mapping, stop_early=stop_early,
             on_smiles=pool.submit_structures,
         )  # fmt: skip
+        identity.take_uids(read)
         big = len(read.inputs) >= results.EARLY_STOP_MIN_ROWS  # small: every problem at once
         if read.problems and ((stop_early and big) or (not read.inputs and not read.rate_rows)):
             return Prepared(read, [], [], [], by_row(read.problems))

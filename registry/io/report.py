@@ -8,7 +8,7 @@ row's original cells, neutralised against formula evaluation like an export.
 from __future__ import annotations
 
 import csv
-from collections import defaultdict
+from collections import Counter, defaultdict
 from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
@@ -16,6 +16,7 @@ from typing import Any
 from registry.errors import RowProblem
 from registry.io.cells import neutralise
 from registry.io.commit import Outcome, rows_read
+from registry.io.merge import CONFLICT, KEEP, UPDATE, WHY, FieldMerge
 from registry.io.results import Prepared, ReadResult, problem_record
 from registry.io.upsert import UpsertPlan
 from registry.record.chem import Structure
@@ -50,43 +51,106 @@ def dry_run_report(
     prep: Prepared,
     plan: UpsertPlan,
     rate_plan: dict[int, list[dict[str, Any]]],
-    rate_problems: list[RowProblem],
+    late_problems: list[RowProblem],
 ) -> dict[str, Any]:
-    """What an import would do: counts, the first rows as stored, the first changes."""
-    problems = prep.problems() + rate_problems
+    """What an import would do: counts, the first rows as stored, every change, kept value and
+    conflict."""
+    problems = prep.problems() + late_problems
     previews = zip(prep.entries[:PREVIEW_ROWS], prep.structures[:PREVIEW_ROWS], strict=True)
     report.update(
         would_add=len(plan.new),
         would_update=len(plan.changes),
         unchanged=len(plan.unchanged),
+        would_hold=len(plan.held),
         would_reject=len({(p.sheet, p.row) for p in problems}),
         rate_points_for_existing=sum(len(v) for v in rate_plan.values()),
         preview=[_preview(e, s) for e, s in previews],
         changes=[
             {"measurement_id": c.measurement_id, "before": c.before, "after": c.after}
-            for c in plan.changes[:PREVIEW_ROWS]
+            for c in plan.changes
         ],
-        problems=[problem_record(p) for p in problems],
+        **merge_report(prep, plan),
+        problems=[problem_record(p) for p in sorted(problems, key=_order)],
     )
     return report
 
 
+def _order(p: RowProblem) -> tuple[str, int, str]:
+    return (p.sheet or "", p.row or 0, p.column or "")
+
+
+def merge_report(prep: Prepared, plan: UpsertPlan) -> dict[str, Any]:
+    """The three-way merge's outcome, field by field: updates, kept values, conflicts.
+
+    ``updates`` are the file's texts written (``registry`` the text before, ``file`` after);
+    ``pending`` the updates of measurements held back by a conflict (written once it is
+    decided); ``kept`` the registry's texts left as they are although the file differs;
+    ``conflicts`` every field changed on both sides (``resolved``: "file" or "registry" when
+    ``prefer`` decided it, else None and the measurement is in ``held``: nothing written).
+    ``changed_by``/``changed_at``/``change`` say which revision set the registry's text.
+    """
+    written = {c.measurement_id for c in plan.changes}
+    out: dict[str, list[dict[str, Any]]] = {
+        "updates": [], "pending": [], "kept": [], "conflicts": []
+    }  # fmt: skip
+    for mm in plan.merges:
+        where = {"measurement_id": mm.measurement_id, "sheet": mm.sheet, "row": mm.row}
+        for fm in mm.fields:
+            item = {**where, **_field_record(fm)}
+            if fm.decision == CONFLICT:
+                out["conflicts"].append(item)
+            if fm.decision == UPDATE and mm.held:
+                out["pending"].append(item)
+            elif fm.applied and not mm.held and mm.measurement_id in written:
+                out["updates"].append(item)
+            elif fm.decision == KEEP or fm.resolved == "registry":
+                out["kept"].append(item)
+    counts = Counter(plan.matched_by.values())
+    return {
+        **out,
+        "held": [mm.measurement_id for mm in plan.held],
+        "matched_by": {how: counts[how] for how in ("uid", "label", "key") if counts[how]},
+    }
+
+
+def _field_record(fm: FieldMerge) -> dict[str, Any]:
+    setter = fm.setter
+    return {
+        "field": fm.field,
+        "registry": fm.registry,
+        "file": fm.file,
+        "last_import": fm.base,
+        "decision": fm.decision,
+        "why": WHY[fm.why],
+        "resolved": fm.resolved,
+        "changed_by": setter.actor if setter else None,
+        "changed_at": setter.at.isoformat(timespec="seconds") if setter and setter.at else None,
+        "change": setter.action if setter else None,
+    }
+
+
 def written_report(report: dict[str, Any], prep: Prepared, outcome: Outcome) -> dict[str, Any]:
-    """What an import did: the batch, counts and the ids of added/updated/unchanged rows."""
+    """What an import did: the batch, counts, the ids of added/updated/unchanged/held rows and
+    the merge's details (see :func:`merge_report`)."""
     counts = outcome.counts
     report.update(
         batch_id=outcome.batch_id,
         added=counts["rows_added"],
         updated=counts["rows_updated"],
         unchanged=counts["rows_unchanged"],
-        rejected=counts["rows_rejected"],
+        rejected=counts["rows_rejected"] - len(outcome.plan.held),
         compounds_added=outcome.compounds_added,
+        snapshots=outcome.snapshots,
         measurement_ids={
             "added": outcome.added_ids,
             "updated": outcome.updated_ids,
             "unchanged": outcome.unchanged_ids,
+            "held": [mm.measurement_id for mm in outcome.plan.held],
         },
-        problems=[problem_record(p) for p in prep.problems() + outcome.late_problems],
+        **merge_report(prep, outcome.plan),
+        problems=[
+            problem_record(p) for p in sorted(prep.problems() + outcome.late_problems, key=_order)
+        ],
     )
     return report
 

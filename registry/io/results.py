@@ -74,6 +74,7 @@ class ReadResult:
     notes: list[str]
     blank_markers: int = 0
     stop_early: bool = False
+    uids: list[str | None] = field(default_factory=list)  # per input: its ``uid`` cell (.identity)
 
 
 @dataclass
@@ -85,6 +86,13 @@ class Prepared:
     structures: list[Structure | None]
     kept: list[int]  # index into read.inputs of each prepared entry
     rejected: dict[tuple[str | None, int], list[RowProblem]]
+
+    @property
+    def uids(self) -> list[str | None]:
+        """The identifier each prepared entry's row gives (None: no uid column or an empty cell)."""
+        if not self.read.uids:
+            return [None] * len(self.kept)
+        return [self.read.uids[i] for i in self.kept]
 
     def problems(self) -> list[RowProblem]:
         """Every problem, ordered by sheet, row and column."""

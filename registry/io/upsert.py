@@ -1,198 +1,260 @@
-"""Insert-or-update next to :func:`registry.storage.writer.write_entries`, for repeated imports.
+"""Insert-or-update for repeated imports: match each row, merge it three ways, plan the writes.
 
-A measurement is "the same" when compound, process, solvent, method, reference and label
-match. Importing a file twice therefore adds nothing, and importing a corrected version
-updates the matching measurements in place, each change recorded in the revision history with
-its before and after. :func:`find_matches` only reads, so a dry run can show what would happen.
-
-What a file decides for a matched measurement: every value column and the coalescence data;
-the extra attributes when the sheet has extra columns; the rate points when the file gives
-rate points for it (a sheet without rates never deletes rates added later); the status only
-when the sheet has a status column (a re-import does not undo a review).
+:func:`plan_upsert` only reads (a dry run shows its plan; the real import plans again under the
+write lock): it matches the rows (:mod:`.matching`), compares what the file says with what the
+registry holds and what the file said before (:mod:`.merge`, :mod:`.lineage`), and has
+:mod:`.changes` work out the stored columns each merge leaves. :func:`merge_rate_plan` does the
+same for rate points a rates sheet gives measurements already stored. Two rows of one file that
+match one stored measurement are a problem of the later row.
 """
 
 from __future__ import annotations
 
-import json
 from collections import defaultdict
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from datetime import UTC, datetime
 from typing import Any
 
+from registry.errors import RowProblem
+from registry.io import fieldtexts, lineage, matching, merge
 from registry.io.cells import RATE_COLUMNS
-from registry.record import vocab
-from registry.record.chem import Structure
-from registry.record.entry import NormalizedEntry
-from registry.storage import audit
+from registry.io.changes import Change, build_change
+from registry.io.conflicts import row_name
+from registry.io.fieldtexts import RATES, Texts
+from registry.io.merge import MeasurementMerge, MergeOptions
+from registry.io.results import Prepared
 from registry.storage.connection import Connection
-from registry.storage.writer import solvent_index
-
-MatchKey = tuple[Any, ...]
-
-
-@dataclass
-class Change:
-    """What an import would change in one existing measurement."""
-
-    index: int  # position of the entry in the import
-    measurement_id: int
-    before: dict[str, Any]
-    after: dict[str, Any]
-    measurement_values: dict[str, Any] = field(default_factory=dict)
-    coalescence: dict[str, Any] | None = None
-    replace_coalescence: bool = False
-    rates: list[dict[str, Any]] | None = None
-    extra_json: str | None = None
-    replace_extra: bool = False
+from registry.storage.writer import known_process_kinds
 
 
 @dataclass
 class UpsertPlan:
+    """What an import would do with each of its entries."""
+
     new: list[int]  # indexes of entries to insert
+    matched: dict[int, int]  # entry index → measurement id
+    matched_by: dict[int, str]  # entry index → uid | label | key
+    merges: list[MeasurementMerge]  # matched measurements where file and registry differ
     changes: list[Change]
-    unchanged: list[tuple[int, int]]  # (index, measurement id)
+    unchanged: list[tuple[int, int]]  # (index, measurement id): nothing to write
     ambiguous: list[tuple[int, list[int]]]  # (index, candidate ids)
+    problems: list[RowProblem]  # two rows claiming one measurement; merges that do not add up
+    presence: Presence  # the fields each entry's sheet has, and their texts
+    own_snapshots: dict[int, str] = field(default_factory=dict)  # id → its file's last snapshot
+
+    @property
+    def held(self) -> list[MeasurementMerge]:
+        """Measurements with an unresolved conflict: nothing is written for them."""
+        return [m for m in self.merges if m.held]
 
 
-def _solvent_part(solvent_id: int | None, text: str | None) -> Any:
-    if solvent_id is not None:
-        return ("id", solvent_id)
-    return ("text", vocab.solvent_key(text) if text else "")
-
-
-def extra_text(extra: dict[str, Any] | None) -> str | None:
-    """The stored form of extra attributes (same as the writer's)."""
-    return json.dumps(extra, ensure_ascii=False, default=str) if extra else None
-
-
-def find_matches(
-    conn: Connection,
-    entries: Sequence[NormalizedEntry],
-    structures: Sequence[Structure | None],
-) -> tuple[list[int | None], list[tuple[int, list[int]]]]:
-    """The existing measurement id each entry matches (None when new), and ambiguous entries."""
-    compound_ids = _compound_ids(conn, entries, structures)
-    known = {c for c in compound_ids if c is not None}
-    processes: dict[tuple[int, str, str, str], int] = {}
-    for pid, cid, kind, sites, nucleus in conn.rows_where_in(
-        "SELECT id, compound_id, kind, sites, nucleus FROM process WHERE 1 = 1",
-        "compound_id",
-        known,
-    ):
-        processes[(cid, kind, sites, nucleus)] = pid
-    existing: dict[MatchKey, list[int]] = defaultdict(list)
-    for mid, cid, pid, method, solvent_id, solvent_text, reference, label in conn.rows_where_in(
-        "SELECT id, compound_id, process_id, method, solvent_id, solvent_text, reference, label "
-        "FROM measurement WHERE 1 = 1",
-        "compound_id",
-        known,
-    ):
-        key = (
-            cid, pid, method, _solvent_part(solvent_id, solvent_text), reference or "", label or ""
-        )  # fmt: skip
-        existing[key].append(mid)
-    solvents = solvent_index(conn)
-    matches: list[int | None] = []
-    ambiguous: list[tuple[int, list[int]]] = []
-    for i, (e, cid) in enumerate(zip(entries, compound_ids, strict=True)):
-        pid = None
-        if cid is not None and e.process is not None:
-            pid = processes.get((cid, e.process["kind"], e.process["sites"], e.process["nucleus"]))
-        if cid is None or (e.process is not None and pid is None):
-            matches.append(None)
+def plan_upsert(conn: Connection, prep: Prepared, options: MergeOptions) -> UpsertPlan:
+    """Sort entries into new, changed, unchanged and held, reading only."""
+    found = matching.find_matches(conn, prep.entries, prep.structures, prep.uids)
+    problems = _claimed_twice(prep, found)
+    bad = {i for i, _ in found.ambiguous} | {_index_of(prep, p) for p in problems}
+    new = [i for i, mid in enumerate(found.ids) if mid is None and i not in bad]
+    pairs = [(i, mid) for i, mid in enumerate(found.ids) if mid is not None and i not in bad]
+    presence = Presence(prep, options.empty_clears)
+    plan = UpsertPlan(
+        new, dict(pairs), {i: found.how[i] or "" for i, _ in pairs}, [], [], [],
+        found.ambiguous, problems, presence,
+    )  # fmt: skip
+    states = stored_state(conn, [mid for _, mid in pairs])
+    sheets = {mid: prep.read.sources[prep.kept[i]].sheet for i, mid in pairs}
+    snaps = lineage.newest_snapshots(conn, sheets, prep.read.file)
+    texts = {i: presence.file_texts(i) for i, _ in pairs}
+    same = {i: _same_compound(prep, found, i, states[mid]) for i, mid in pairs}
+    differing = [(i, mid) for i, mid in pairs if _differs(texts[i], states[mid], same[i], options)]
+    logs = lineage.field_logs(conn, [mid for _, mid in differing])
+    kinds = known_process_kinds(conn)
+    for i, mid in pairs:
+        snap = snaps.get(mid)
+        if snap is not None and _own(snap, prep.read.file, sheets[mid]):
+            plan.own_snapshots[mid] = snap.fields_json
+        if mid not in logs:
+            plan.unchanged.append((i, mid))
             continue
-        m = e.measurement
-        sid = solvents.get(e.solvent_key) if e.solvent_key else None
-        key = (
-            cid, pid, m["method"], _solvent_part(sid, m["solvent_text"]), m["reference"] or "",
-            m["label"] or "",
+        mm = merge.decide(
+            i, mid, plan.matched_by[i], file=texts[i],
+            registry=fieldtexts.stored_texts(states[mid]),
+            base=snap.texts() if snap is not None else None, log=logs[mid],
+            same_compound=same[i], options=options,
         )  # fmt: skip
-        ids = existing.get(key, [])
-        if len(ids) > 1:
-            ambiguous.append((i, sorted(ids)))
-            matches.append(None)
-        else:
-            matches.append(ids[0] if ids else None)
-    return matches, ambiguous
+        src = prep.read.sources[prep.kept[i]]
+        mm.sheet, mm.row = src.sheet, src.row
+        if mm.fields:
+            plan.merges.append(mm)
+        change = None
+        if mm.applied():
+            change = build_change(conn, prep, mm, states[mid], same=same[i], kinds=kinds)
+        if isinstance(change, list):
+            plan.problems.extend(change)
+        elif change is not None:
+            change.where = _where(prep, i)
+            plan.changes.append(change)
+        elif not mm.held:
+            plan.unchanged.append((i, mid))
+    return plan
 
 
-def _compound_ids(
+def merge_rate_plan(
     conn: Connection,
-    entries: Sequence[NormalizedEntry],
-    structures: Sequence[Structure | None],
-) -> list[int | None]:
-    """The registered compound of each entry (by InChIKey, then label, then a bare name)."""
-    keys = {s.inchikey for s in structures if s is not None and s.inchikey}
-    labels = {e.compound["label"] for e in entries if e.compound.get("label")}
-    names = {
-        e.compound["name"]
-        for e, s in zip(entries, structures, strict=True)
-        if e.compound.get("name") and not e.compound.get("label") and s is None
-    }
-    select = "SELECT id, {0} FROM compound WHERE 1 = 1"
-    by_key = {
-        key: cid for cid, key in conn.rows_where_in(select.format("inchikey"), "inchikey", keys)
-    }
-    by_label = {
-        lab: cid for cid, lab in conn.rows_where_in(select.format("label"), "label", labels)
-    }
-    by_name: dict[str, int] = {}
-    for cid, name in sorted(
-        conn.rows_where_in(
-            "SELECT id, name FROM compound WHERE label IS NULL AND inchikey IS NULL", "name", names
-        )
-    ):
-        by_name.setdefault(name, cid)
-    out: list[int | None] = []
-    for e, s in zip(entries, structures, strict=True):
-        cid = None
-        if s is not None and s.inchikey:
-            cid = by_key.get(s.inchikey)
-        if cid is None and e.compound.get("label"):
-            cid = by_label.get(e.compound["label"])
-        if cid is None and e.compound.get("name") and not e.compound.get("label") and s is None:
-            cid = by_name.get(e.compound["name"])
-        out.append(cid)
+    prep: Prepared,
+    rate_plan: dict[int, list[dict[str, Any]]],
+    options: MergeOptions,
+) -> tuple[dict[int, list[dict[str, Any]]], list[MeasurementMerge], list[dict[str, Any]]]:
+    """Rate points a rates sheet gives measurements already stored, merged three ways as the
+    field ``rates`` (so that points added by hand are not replaced by an old sheet).
+
+    Returns the points to write (``rate_plan`` without the kept and held ones), the merges for
+    the report, and the snapshots to keep (``measurement_id``, ``source_row``, ``fields_json``).
+    """
+    from registry.io.snapshots import to_json
+
+    if not rate_plan:
+        return rate_plan, [], []
+    source = {id(rr.parsed): rr for rr in prep.read.rate_rows}
+    first = {mid: source[id(points[0])] for mid, points in rate_plan.items()}
+    states = stored_state(conn, list(rate_plan))
+    snaps = lineage.newest_snapshots(conn, {m: rr.sheet for m, rr in first.items()}, prep.read.file)
+    said = {mid: {RATES: fieldtexts.rate_text(points)} for mid, points in rate_plan.items()}
+    differing = [m for m in rate_plan if said[m][RATES] != fieldtexts.rate_text(states[m]["rates"])]
+    logs = lineage.field_logs(conn, differing)
+    out, merges, snapshots = {}, [], []
+    for mid, points in rate_plan.items():
+        snap = snaps.get(mid)
+        own = snap.fields_json if snap and _own(snap, prep.read.file, first[mid].sheet) else None
+        mm = MeasurementMerge(-1, mid, "label")
+        if mid in logs:
+            mm = merge.decide(
+                -1, mid, "label", file=said[mid], registry=fieldtexts.stored_texts(states[mid]),
+                base=snap.texts() if snap is not None else None, log=logs[mid],
+                same_compound=True, options=options,
+            )  # fmt: skip
+            mm.sheet, mm.row = first[mid].sheet, first[mid].row
+            merges += [mm] if mm.fields else []
+        if mm.held:
+            continue
+        if mid not in logs or mm.applied():
+            out[mid] = points
+        if to_json(said[mid]) != own:
+            snapshots.append(
+                {
+                    "measurement_id": mid,
+                    "source_row": first[mid].row,
+                    "fields_json": to_json(said[mid]),
+                }
+            )
+    return out, merges, snapshots
+
+
+def _index_of(prep: Prepared, problem: RowProblem) -> int:
+    for i, k in enumerate(prep.kept):
+        src = prep.read.sources[k]
+        if (src.sheet, src.row) == (problem.sheet, problem.row):
+            return i
+    return -1
+
+
+def _claimed_twice(prep: Prepared, found: matching.Matches) -> list[RowProblem]:
+    """Later rows that match a stored measurement an earlier row of the file matched already."""
+    first: dict[int, int] = {}
+    out = []
+    for i, mid in enumerate(found.ids):
+        if mid is None:
+            continue
+        if mid not in first:
+            first[mid] = i
+            continue
+        src = prep.read.sources[prep.kept[i]]
+        earlier = prep.read.sources[prep.kept[first[mid]]]
+        out.append(
+            RowProblem(
+                prep.read.file, src.sheet, src.row, None, None,
+                f"duplicate of {row_name(earlier, src.sheet)}: both rows are measurement {mid} "
+                f"(matched by {found.how[first[mid]]} and by {found.how[i]}); one measurement, "
+                "one row",
+            )
+        )  # fmt: skip
     return out
 
 
-def plan_upsert(
-    conn: Connection,
-    entries: Sequence[NormalizedEntry],
-    structures: Sequence[Structure | None],
-    extras: Sequence[dict[str, Any] | None],
-    *,
-    compare_status: bool,
-    compare_extra: bool,
-) -> UpsertPlan:
-    """Sort entries into new, changed and unchanged, reading only."""
-    matches, ambiguous = find_matches(conn, entries, structures)
-    ambiguous_idx = {i for i, _ in ambiguous}
-    matched = [(i, mid) for i, mid in enumerate(matches) if mid is not None]
-    new = [i for i, mid in enumerate(matches) if mid is None and i not in ambiguous_idx]
-    stored = _stored_state(conn, [mid for _, mid in matched])
-    changes: list[Change] = []
-    unchanged: list[tuple[int, int]] = []
-    for i, mid in matched:
-        change = _compare(
-            i,
-            mid,
-            entries[i],
-            extras[i],
-            stored[mid],
-            compare_status=compare_status,
-            compare_extra=compare_extra,
-        )
-        if change is None:
-            unchanged.append((i, mid))
-        else:
-            changes.append(change)
-    return UpsertPlan(new, changes, unchanged, ambiguous)
+def _own(snap: lineage.Snapshot, file_name: str, sheet: str | None) -> bool:
+    return snap.file_name == file_name and (sheet in snap.sheets if sheet else not snap.sheets)
 
 
-def _stored_state(conn: Connection, ids: Sequence[int]) -> dict[int, dict[str, Any]]:
-    """Each measurement's row with its coalescence rows and rate points (in insertion order)."""
+def _where(prep: Prepared, index: int) -> str:
+    src = prep.read.sources[prep.kept[index]]
+    sheet = f", sheet {src.sheet!r}" if src.sheet else ""
+    return f"{prep.read.file}{sheet}, row {src.row}"
+
+
+class Presence:
+    """The fields each entry's sheet speaks for, and the texts it gives them.
+
+    An empty cell says nothing (it is left out) unless ``empty_clears``: then it says "empty".
+    """
+
+    def __init__(self, prep: Prepared, empty_clears: bool = False) -> None:
+        self.prep = prep
+        self.empty_clears = empty_clears
+        self._by_plan: dict[int, frozenset[str]] = {}
+        self._texts: dict[int, Texts] = {}  # the plan and the snapshots ask for the same rows
+
+    def fields(self, index: int) -> frozenset[str]:
+        src = self.prep.read.sources[self.prep.kept[index]]
+        names = self._by_plan.get(id(src.plan))
+        if names is None:
+            names = self._by_plan[id(src.plan)] = fieldtexts.present_fields(src.plan)
+        if self.prep.entries[index].rates and RATES not in names:
+            names = names | {RATES}  # rate points from a rates sheet of the same file
+        return names
+
+    def file_texts(self, index: int) -> Texts:
+        """What the file says for the fields it has (None for an empty cell that clears)."""
+        if index in self._texts:
+            return self._texts[index]
+        extra = self.prep.read.inputs[self.prep.kept[index]].extra
+        texts = fieldtexts.entry_texts(self.prep.entries[index], extra)
+        said = self._texts[index] = {
+            name: texts.get(name)
+            for name in sorted(self.fields(index))
+            if self.empty_clears or texts.get(name) is not None
+        }
+        return said
+
+
+def _same_compound(
+    prep: Prepared, found: matching.Matches, index: int, state: dict[str, Any]
+) -> bool:
+    """Whether the file's row names the compound the measurement is stored under."""
+    if found.compound_ids[index] == state["measurement"]["compound_id"]:
+        return True
+    entry, stored = prep.entries[index].compound, state["compound"] or {}
+    name_only = not entry.get("label") and prep.structures[index] is None
+    return (
+        found.compound_ids[index] is None
+        and name_only
+        and not stored.get("label")
+        and not stored.get("smiles_input")
+    )
+
+
+def _differs(file: Texts, state: dict[str, Any], same: bool, options: MergeOptions) -> bool:
+    """A cheap first look: does the file say anything the registry does not hold?"""
+    if not same:
+        return True
+    registry = fieldtexts.stored_texts(state)
+    return any(
+        text != registry.get(name)
+        for name, text in file.items()
+        if (text is not None or options.empty_clears) and name not in ("compound", "smiles")
+    )
+
+
+def stored_state(conn: Connection, ids: Sequence[int]) -> dict[int, dict[str, Any]]:
+    """Each measurement's row with its compound, process, coalescence rows and rate points."""
     state: dict[int, dict[str, Any]] = {}
     for row in conn.records_where_in("SELECT * FROM measurement WHERE 1 = 1", "id", ids):
         state[row["id"]] = {"measurement": row, "coalescence": [], "rates": []}
@@ -200,104 +262,26 @@ def _stored_state(conn: Connection, ids: Sequence[int]) -> dict[int, dict[str, A
         rows = conn.records_where_in(f"SELECT * FROM {table} WHERE 1 = 1", "measurement_id", state)
         for row in sorted(rows, key=lambda r: r["id"]):
             state[row["measurement_id"]][key].append(row)
+    compounds = {
+        r["id"]: r
+        for r in conn.records_where_in(
+            "SELECT id, label, name, smiles_input, inchikey FROM compound WHERE 1 = 1",
+            "id",
+            {s["measurement"]["compound_id"] for s in state.values()},
+        )
+    }
+    processes = {
+        r["id"]: r
+        for r in conn.records_where_in(
+            "SELECT id, kind, sites, nucleus FROM process WHERE 1 = 1",
+            "id",
+            {s["measurement"]["process_id"] for s in state.values()},
+        )
+    }
+    for s in state.values():
+        s["compound"] = compounds.get(s["measurement"]["compound_id"])
+        s["process"] = processes.get(s["measurement"]["process_id"])
     return state
-
-
-def _compare(
-    index: int,
-    mid: int,
-    entry: NormalizedEntry,
-    extra: dict[str, Any] | None,
-    stored: dict[str, Any],
-    *,
-    compare_status: bool,
-    compare_extra: bool,
-) -> Change | None:
-    before: dict[str, Any] = {}
-    after: dict[str, Any] = {}
-    values: dict[str, Any] = {}
-    old = stored["measurement"]
-    for key, value in entry.measurement.items():
-        if key == "status" and not compare_status:
-            continue
-        if old.get(key) != value:
-            before[key], after[key] = old.get(key), value
-            values[key] = value
-    change = Change(index, mid, before, after, values)
-    old_co = [
-        {k: v for k, v in row.items() if k not in ("id", "measurement_id")}
-        for row in stored["coalescence"]
-    ]
-    new_co = [entry.coalescence] if entry.coalescence else []
-    if old_co != new_co:
-        before["coalescence"] = old_co
-        after["coalescence"] = new_co
-        change.replace_coalescence = True
-        change.coalescence = entry.coalescence
-    if entry.rates:
-        old_rates = [{k: r[k] for k in RATE_COLUMNS} for r in stored["rates"]]
-        new_rates = [{k: r.get(k) for k in RATE_COLUMNS} for r in entry.rates]
-        if old_rates != new_rates:
-            before["rates"] = [[r["t_text"], r["k_text"]] for r in old_rates]
-            after["rates"] = [[r["t_text"], r["k_text"]] for r in new_rates]
-            change.rates = entry.rates
-    if compare_extra:
-        new_extra = extra_text(extra)
-        old_extra_obj = json.loads(old["extra_json"]) if old.get("extra_json") else None
-        if (old_extra_obj or None) != (extra or None):
-            before["extra"] = old_extra_obj
-            after["extra"] = extra or None
-            change.extra_json = new_extra
-            change.replace_extra = True
-    if not before:
-        return None
-    return change
-
-
-def apply_changes(
-    conn: Connection,
-    changes: Sequence[Change],
-    *,
-    actor: str,
-    batch_id: int | None,
-    solvent_ids: dict[str, int],
-    entries: Sequence[NormalizedEntry],
-) -> None:
-    """Write the planned changes and one revision (before/after) per measurement."""
-    now = datetime.now(UTC)
-    for ch in changes:
-        values = dict(ch.measurement_values)
-        if "solvent_text" in values:
-            key = entries[ch.index].solvent_key
-            values["solvent_id"] = solvent_ids.get(key) if key else None
-        if ch.replace_extra:
-            values["extra_json"] = ch.extra_json
-        values["updated_at"] = now
-        conn.update("measurement", values, id=ch.measurement_id)
-        if ch.replace_coalescence:
-            conn.execute(
-                "DELETE FROM coalescence WHERE measurement_id = :id", {"id": ch.measurement_id}
-            )
-            if ch.coalescence:
-                conn.insert("coalescence", {**ch.coalescence, "measurement_id": ch.measurement_id})
-        if ch.rates is not None:
-            replace_rate_points(conn, ch.measurement_id, ch.rates)
-    audit.record_many(
-        conn,
-        (
-            {
-                "entity": "measurement",
-                "entity_id": ch.measurement_id,
-                "action": "import-update",
-                "before": ch.before,
-                "after": ch.after,
-                "reason": "corrected values in a re-imported file",
-                "batch_id": batch_id,
-            }
-            for ch in changes
-        ),
-        actor,
-    )
 
 
 def replace_rate_points(

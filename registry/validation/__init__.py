@@ -32,6 +32,7 @@ from registry.validation.slips import SLIP_IDS
 from registry.validation.store import (
     accept,
     last_run,
+    open_after_edit,
     out_of_step,
     reconcile,
     record_check_run,
@@ -48,6 +49,7 @@ __all__ = [
     "Rule",
     "accept_finding",
     "check_measurements",
+    "errors_left_open",
     "out_of_step",
     "rule_by_id",
     "sync_status",
@@ -198,3 +200,11 @@ def accept_finding(
     """Accept one finding (it stays accepted while its inputs are unchanged); recorded by name."""
     who = actor or current_user()
     return database.write(lambda conn: accept(conn, int(finding_id), reason, who))
+
+
+def errors_left_open(conn: Connection, measurement_id: int) -> list[Finding]:
+    """The error findings the default check would leave open on ``measurement_id`` as ``conn``
+    sees it now (inside an edit's transaction): an edit that asks for a status refuses on them
+    before anything is committed."""
+    findings = run_rules(load_check_data(conn, [measurement_id]), CheckConfig())
+    return open_after_edit(conn, measurement_id, findings)

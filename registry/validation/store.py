@@ -308,6 +308,25 @@ def sync_status(
     return changes
 
 
+def open_after_edit(
+    conn: Connection, measurement_id: int, findings: Sequence[Finding]
+) -> list[Finding]:
+    """The error ``findings`` (a run of the rules on what ``conn`` sees, an uncommitted edit
+    included) that no stored acceptance covers: they would keep the measurement flagged."""
+    accepted = {
+        _key(r["measurement_id"], r["rule_id"], r["rule_version"], r["inputs_hash"])
+        for r in _select_stored(conn, [measurement_id])
+        if r["accepted_by"]
+    }
+    return [
+        f
+        for f in findings
+        if f.severity == "error"
+        and f.measurement_id == measurement_id
+        and _key(f.measurement_id, f.rule_id, f.rule_version, f.inputs_hash) not in accepted
+    ]
+
+
 def _open_errors(conn: Connection, measurement_ids: list[int]) -> dict[int, list[tuple[int, str]]]:
     """(finding id, rule) of each measurement's open error findings."""
     out: dict[int, list[tuple[int, str]]] = {}
