@@ -186,6 +186,21 @@ def test_a_row_without_tc_and_dnu_still_needs_a_method(database: Database, tmp_p
     assert problem.reason.startswith("required; one of coalescence, lineshape")
 
 
+def test_a_rates_sheet_naming_compounds_instead_of_labels_is_told_what_it_needs(
+    database: Database, tmp_path: Path
+) -> None:
+    path = write_xlsx(
+        tmp_path / "rates.xlsx",
+        {"rates": [["Compound", "T (K)", "k (s-1)"], ["OK-1", 300, 1.2], ["OK-1", 310, 3.1]]},
+    )
+    with pytest.raises(ImportRowError) as err:
+        import_table(database, path)
+    (problem,) = err.value.problems  # one sheet-level problem, not "method required" per row
+    assert (problem.sheet, problem.row, problem.column) == ("rates", 1, None)
+    assert "T and k columns but no label column" in problem.reason
+    assert len(api.list_measurements(database)) == 0
+
+
 # ---------------------------------------------------------------- mapping files
 
 

@@ -265,6 +265,7 @@ def plan_sheet(
                 f"a rates sheet needs label, T and k columns; this one has no {', '.join(missing)}"
             )
             problems.append(RowProblem(file, sheet, header_row, None, None, reason))
+    _rates_without_label(file, sheet, header_row, columns, kind, problems)
     for field_name, unit in mapping.units.items():
         for col in columns:
             if col.field == field_name and col.role in ("value", "error") and not col.unit:
@@ -282,6 +283,29 @@ def plan_sheet(
         if "method" not in have and "method" not in plan.defaults and {"tc", "dnu"} <= have:
             plan.implied_method = IMPLIED_METHOD
     return plan
+
+
+def _rates_without_label(
+    file: str,
+    sheet: str | None,
+    header_row: int,
+    columns: list[Column],
+    kind: str,
+    problems: list[RowProblem],
+) -> None:
+    """A sheet of rate constants that names compounds instead of labels reads as entries and
+    would fail every row for want of a method: say once what a rates sheet needs instead."""
+    have = {c.field for c in columns if c.role == "value"}
+    if kind != "entries" or "label" in have or "k" not in have or not have & {"t", "dg_t"}:
+        return
+    if have & (_ENTRY_FIELDS - {"compound", "name"}):
+        return
+    reason = (
+        "this sheet has T and k columns but no label column: a rates sheet gives each rate "
+        "constant the label of its measurement (the entries sheet's label column); name that "
+        "column 'label' (or map it in a mapping file)"
+    )
+    problems.append(RowProblem(file, sheet, header_row, None, None, reason))
 
 
 def _titled(name: str) -> str:
