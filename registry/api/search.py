@@ -44,6 +44,7 @@ def find(
     threads: int | None = None,
     rebuild_index: bool = False,
     output: str = "rows",
+    time_limit: float | None = None,
 ) -> FindResult:
     """Every measurement on a compound that contains ``smarts``/``smiles``/``motif`` (or is at
     least ``min_similarity`` similar to the SMILES ``similar``), filtered.
@@ -60,6 +61,8 @@ def find(
     Every row says whether it is ``flagged`` (1: an error finding nobody accepted). ``flagged``
     True keeps only those rows, False only clean ones. ``compound_table()`` gives each
     compound's barrier range from its clean values only, unless ``include_flagged``.
+    ``time_limit`` (seconds) stops a search whose pattern confirms slowly with a clear error
+    instead of running on; a Ctrl-C ends a search with no partial result.
     """
     from registry import search
 
@@ -80,11 +83,14 @@ def find(
         query = search.build_query(smarts=smarts, smiles=smiles, motif=found, stereo=stereo)
     elif stereo:
         raise UsageError("stereo applies to substructure searches, not to similar")
-    return search.find(
-        database, query=query, similar=similar, min_similarity=min_similarity,
-        filters=filters, sort=sort, limit=limit, atoms=atoms, threads=threads,
-        rebuild_index=rebuild_index, output=output, include_flagged=include_flagged,
-    )  # fmt: skip
+    from registry.search.interrupts import time_limit as limited
+
+    with limited(time_limit):
+        return search.find(
+            database, query=query, similar=similar, min_similarity=min_similarity,
+            filters=filters, sort=sort, limit=limit, atoms=atoms, threads=threads,
+            rebuild_index=rebuild_index, output=output, include_flagged=include_flagged,
+        )  # fmt: skip
 
 
 def motif_matches(

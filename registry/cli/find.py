@@ -97,6 +97,11 @@ def find(
     rebuild_index: bool = typer.Option(
         False, "--rebuild-index", help="Rebuild the screening cache file first."
     ),
+    time_limit: float = typer.Option(
+        None,
+        "--time-limit",
+        help="Stop with an error after this many seconds (for a pattern that confirms slowly).",
+    ),
     as_json: bool = typer.Option(
         False, "--json", help="Print JSON (with matched atom indices per compound)."
     ),
@@ -126,7 +131,7 @@ def find(
             process=process, nucleus=nucleus, status=status, reference=reference,
             include_retracted=include_retracted, flagged=only, include_flagged=include_flagged,
             sort=sort, limit=None if compounds else limit, atoms=as_json and not no_atoms,
-            threads=threads, rebuild_index=rebuild_index,
+            threads=threads, rebuild_index=rebuild_index, time_limit=time_limit,
             output="csv" if as_csv and not compounds else "rows",
         )  # fmt: skip
     finally:

@@ -116,4 +116,8 @@ _mount()
 
 def run() -> None:
     """Console-script entry point."""
+    # One BLAS thread: OpenBLAS's extra threads only busy-wait in our fits (half the CPU for
+    # the same wall time, benchmarks/bench_lineshape.py), and a thread that does not block
+    # SIGINT can hand a Ctrl-C to RDKit's own handler (see registry.search.interrupts)
+    os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
     sys.exit(app(prog_name="fluxledger"))

@@ -19,6 +19,7 @@ import numpy as np
 
 from registry.search.elements import query_masks
 from registry.search.index import ScreenIndex
+from registry.search.interrupts import check_deadline, rdkit_matching
 from registry.search.patterns import Query, needs_ring_info
 from registry.storage.connection import Connection
 
@@ -69,11 +70,12 @@ def confirm(
         return positions
     threads = threads or default_threads()
     if positions.size <= _SMALL or threads == 1:
-        keep = [
-            p
-            for p in positions.tolist()
-            if Chem.Mol(index.mol_binary(p)).HasSubstructMatch(query_mol, useChirality=stereo)
-        ]
+        keep = []
+        for i, p in enumerate(positions.tolist()):
+            if i % 1000 == 999:
+                check_deadline()
+            if Chem.Mol(index.mol_binary(p)).HasSubstructMatch(query_mol, useChirality=stereo):
+                keep.append(p)
         return np.asarray(keep, dtype=np.int64)
     if needs_ring_info(query_mol):
         # ring queries: loading the binaries (ring info included) beat parsing SMILES and
@@ -122,15 +124,22 @@ def _library_matches(
         for p in positions.tolist():
             holder.AddBinary(index.mol_binary(p))
     library = rdSubstructLibrary.SubstructLibrary(holder)
-    found = library.GetMatches(
-        query_mol,
-        recursionPossible=True,
-        useChirality=stereo,
-        useQueryQueryMatches=False,
-        numThreads=threads,
-        maxResults=int(positions.size),  # never fewer than could match
-    )
-    return positions[np.asarray(list(found), dtype=np.int64)]
+    found: list[int] = []
+    n = int(positions.size)
+    for start in range(0, n, CONFIRM_CHUNK):
+        check_deadline()
+        end = min(n, start + CONFIRM_CHUNK)
+        with rdkit_matching():  # a Ctrl-C meanwhile ends the search, never thins it
+            found += library.GetMatches(
+                query_mol, start, end,
+                recursionPossible=True, useChirality=stereo, useQueryQueryMatches=False,
+                numThreads=threads, maxResults=end - start,  # never fewer than could match
+            )  # fmt: skip
+    return positions[np.asarray(found, dtype=np.int64)]
+
+
+#: molecules confirmed per call into RDKit: between calls a Ctrl-C or the time limit is seen
+CONFIRM_CHUNK = 20_000
 
 
 def search_positions(
