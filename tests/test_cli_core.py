@@ -128,7 +128,7 @@ def test_show_unknown_and_malformed_ids(cli) -> None:  # type: ignore[no-untyped
     bad = cli("show", "abc")
     assert (bad.exit_code, bad.stderr) == (
         2,
-        "error: 'abc' is not a measurement id (a whole number)\n",
+        "error: 'abc' is not a measurement id (a whole number from 1)\n",
     )
 
 

@@ -132,7 +132,7 @@ def test_edit_with_the_same_value_writes_nothing(cli, db_path: Path) -> None:  #
         (["edit", "1", "--set", "tc="], 1, "error: tc: missing: coalescence data needs both Tc and Δν\n"),
         (["edit", "1", "--set", "status=retracted"], 2, "error: status: a measurement is retracted, with a reason the history keeps, not edited to 'retracted'\n"),
         (["edit", "7", "--set", "dg=60 kJ/mol"], 1, "error: no measurement with id 7\n"),
-        (["edit", "x", "--set", "dg=60 kJ/mol"], 2, "error: 'x' is not a measurement id (a whole number)\n"),
+        (["edit", "x", "--set", "dg=60 kJ/mol"], 2, "error: 'x' is not a measurement id (a whole number from 1)\n"),
     ],
 )  # fmt: skip
 def test_bad_edits_name_the_problem_and_change_nothing(

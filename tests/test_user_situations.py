@@ -12,10 +12,13 @@ import sqlite3
 from pathlib import Path
 
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 
 from registry import api
-from registry.errors import DatabaseError
+from registry.errors import DatabaseError, UsageError
 from registry.storage import database as store
+from registry.storage.database import Database
 
 ADD = ["add", "--method", "computed", "--compound", "S-1", "--dg", "60 kJ/mol"]
 
@@ -101,4 +104,39 @@ def test_ids_out_of_range_are_not_ids(cli, text: str) -> None:  # type: ignore[n
     for command in (["show", text], ["history", text], ["retract", text, "--reason", "x"]):
         result = cli(*command)
         assert result.exit_code == 2, command
-        assert result.stderr == f"error: {text!r} is not a measurement id (a whole number)\n"
+        assert result.stderr == f"error: {text!r} is not a measurement id (a whole number from 1)\n"
+
+
+# ---------------------------------------------------------------- ids given to the library
+
+
+@pytest.mark.parametrize(
+    "bad", [2**63, 2**70, 0, -5, True, 2.0, "x", "1e3", "", None, [1]], ids=repr
+)
+def test_the_library_refuses_what_is_not_an_id(database: Database, bad: object) -> None:
+    calls = (
+        lambda: api.get_measurement(database, bad),  # type: ignore[arg-type]
+        lambda: api.history(database, bad),  # type: ignore[arg-type]
+        lambda: api.edit_measurement(database, bad, {"dg": "60 kJ/mol"}),  # type: ignore[arg-type]
+        lambda: api.retract_measurement(database, bad, "x"),  # type: ignore[arg-type]
+        lambda: api.list_measurements(database, ids=[bad]),
+        lambda: api.accept_finding(database, bad, "x"),  # type: ignore[arg-type]
+    )
+    for call in calls:
+        if bad is None and call is calls[1]:
+            continue  # history(None) is the whole history
+        with pytest.raises(UsageError, match=r"is not a (measurement|finding) id"):
+            call()
+
+
+@given(st.integers(min_value=1, max_value=2**63 - 1))
+def test_every_64_bit_id_is_an_id_as_number_and_as_text(number: int) -> None:
+    assert api.as_id(number) == api.as_id(str(number)) == api.as_id(f" +{number} ") == number
+
+
+@given(st.integers().filter(lambda n: not 1 <= n <= 2**63 - 1))
+def test_no_other_integer_is_an_id(number: int) -> None:
+    with pytest.raises(UsageError):
+        api.as_id(number)
+    with pytest.raises(UsageError):
+        api.as_id(str(number))

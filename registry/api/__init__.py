@@ -78,6 +78,7 @@ from registry.api.vocabulary import (
     unlinked_solvents,
 )
 from registry.record.fields import TABLE_COLUMNS
+from registry.record.ids import as_id
 from registry.storage.database import Database, take_warnings
 
 __all__ = [
@@ -91,6 +92,7 @@ __all__ = [
     "add_motifs_from_file",
     "add_rate_points",
     "add_solvent",
+    "as_id",
     "backup",
     "build_report",
     "calc_coalescence",

@@ -8,6 +8,7 @@ from typing import TYPE_CHECKING
 
 from registry.api.registry import actor_name
 from registry.errors import UsageError
+from registry.record.ids import as_id, as_ids
 from registry.storage.database import Database
 
 if TYPE_CHECKING:
@@ -45,7 +46,7 @@ def check(
         config = CheckConfig(dg_tolerance_kj_mol=value)
     own = config == CheckConfig()
     return check_measurements(
-        database, ids or None, actor=actor_name(actor), config=config, record_run=own,
+        database, (as_ids(ids) or None) if ids else None, actor=actor_name(actor), config=config, record_run=own,
         store=own,
     )  # fmt: skip
 
@@ -56,4 +57,4 @@ def accept_finding(
     """Accept one finding with a reason; it stays accepted while its inputs are unchanged."""
     from registry.validation import accept_finding as accept
 
-    return accept(database, finding_id, reason, actor=actor_name(actor))
+    return accept(database, as_id(finding_id, "finding"), reason, actor=actor_name(actor))

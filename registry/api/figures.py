@@ -153,7 +153,10 @@ def _rate_series(
     if measurement_id is not None:
         if database is None:
             raise UsageError(f"measurement_id {measurement_id}: needs an open registry (database)")
-        return gather.rate_series(database, int(measurement_id)), f"measurement {measurement_id}"
+        from registry.record.ids import as_id
+
+        number = as_id(measurement_id)
+        return gather.rate_series(database, number), f"measurement {number}"
     if file is not None:
         from registry.kinetics.rate_table import read_rate_table
 

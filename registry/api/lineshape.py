@@ -134,7 +134,10 @@ def fit_lineshapes(
 
 
 def _require_measurement(database: Database | None, measurement_id: int) -> None:
+    from registry.record.ids import as_id
+
     assert database is not None
+    measurement_id = as_id(measurement_id)
     with database.read() as conn:
         found = conn.scalar("SELECT id FROM measurement WHERE id = :id", {"id": measurement_id})
     if found is None:

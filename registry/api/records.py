@@ -9,6 +9,7 @@ from typing import TYPE_CHECKING, Any
 
 from registry.api.registry import actor_name
 from registry.errors import FluxledgerError, NotFoundError, UnitError, UsageError
+from registry.record.ids import as_id, as_ids
 from registry.storage.connection import Connection, utc
 from registry.storage.database import Database
 
@@ -161,7 +162,9 @@ def list_measurements(
     """
     from registry.search.filters import listing_filters
 
-    return _listing(database, listing_filters(**filters), ids, limit)
+    return _listing(
+        database, listing_filters(**filters), None if ids is None else as_ids(ids), limit
+    )
 
 
 def _listing(
@@ -178,6 +181,7 @@ def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
     and ``flagged`` (True while an error finding is open: not resolved, not accepted)."""
     from registry.record.fields import LISTING_COLUMNS
 
+    measurement_id = as_id(measurement_id)
     with database.read() as conn:
         m = conn.record("SELECT * FROM measurement WHERE id = :id", {"id": measurement_id})
         if m is None:
@@ -245,6 +249,7 @@ def add_rate_points(
     replace: bool = False,
 ) -> int:
     """Attach rate points (t_k, t_text, k_per_s, k_text, optional errors) to a measurement."""
+    measurement_id = as_id(measurement_id)
     if not points:
         return 0
     rows = []
@@ -309,6 +314,7 @@ def edit_measurement(
     """
     from registry.admin import edits
 
+    measurement_id = as_id(measurement_id)
     if not isinstance(changes, Mapping):
         changes = edits.parse_assignments(list(changes))
     return edits.edit_measurement(
@@ -322,7 +328,9 @@ def retract_measurement(
     """Hide a measurement from default listings; it stays stored, with who, when and why."""
     from registry.admin import edits
 
-    return edits.retract_measurement(database, measurement_id, reason, actor=actor_name(actor))
+    return edits.retract_measurement(
+        database, as_id(measurement_id), reason, actor=actor_name(actor)
+    )
 
 
 def history(
@@ -331,7 +339,9 @@ def history(
     """Revisions, oldest first: all of one measurement's (its findings' too), or the latest."""
     from registry.admin.history import history as revisions
 
-    return revisions(database, measurement_id, limit=limit)
+    return revisions(
+        database, None if measurement_id is None else as_id(measurement_id), limit=limit
+    )
 
 
 def summarize_change(action: str, before: Any, after: Any) -> str:

@@ -9,7 +9,8 @@ from typing import Any
 import typer
 from typer.core import TyperGroup
 
-from registry.errors import FluxledgerError, UsageError
+from registry import api
+from registry.errors import FluxledgerError
 
 DEFAULT_DB = "fluxledger.sqlite"
 
@@ -52,16 +53,6 @@ class ErrorBoundaryGroup(TyperGroup):
             ctx.exit(130)
 
 
-#: the largest id a registry can hold (SQLite's and PostgreSQL's 64-bit integers)
-MAX_ID = 2**63 - 1
-
-
-def read_id(text: str) -> int:
-    """A measurement id as typed: a whole number from 1 up, or a usage error."""
-    try:
-        value = int(text)
-    except ValueError:
-        value = 0
-    if not 0 < value <= MAX_ID:
-        raise UsageError(f"{text!r} is not a measurement id (a whole number)")
-    return value
+def read_id(text: str, what: str = "measurement") -> int:
+    """An id as typed: a whole number from 1 up (:func:`registry.api.as_id`), or a usage error."""
+    return api.as_id(text, what)
