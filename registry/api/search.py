@@ -38,6 +38,7 @@ def find(
     include_retracted: bool = False,
     flagged: bool | None = None,
     include_flagged: bool = False,
+    at: str | float | None = None,
     sort: str | None = None,
     limit: int | None = None,
     atoms: bool = False,
@@ -63,6 +64,11 @@ def find(
     compound's barrier range from its clean values only, unless ``include_flagged``.
     ``time_limit`` (seconds) stops a search whose pattern confirms slowly with a clear error
     instead of running on; a Ctrl-C ends a search with no partial result.
+
+    ``at`` (a temperature, e.g. ``'298.15 K'``) gives every row ΔG‡ at that temperature —
+    ΔH‡ − TΔS‡ where both are stored, marked ``extrapolated`` outside the measured range; the
+    reported ΔG‡ where it was quoted there — and makes ``barrier`` and the ``barrier`` sort use
+    it (:mod:`registry.search.at_temperature`).
     """
     from registry import search
 
@@ -75,7 +81,7 @@ def find(
         barrier=barrier, temperature=temperature,
         solvent=[solvent] if isinstance(solvent, str) else list(solvent or []),
         method=method, process=process, nucleus=nucleus, status=status, reference=reference,
-        compound=compound, include_retracted=include_retracted, flagged=flagged,
+        compound=compound, include_retracted=include_retracted, flagged=flagged, at=at,
     )  # fmt: skip
     query = None
     if similar is None:

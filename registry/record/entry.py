@@ -8,12 +8,13 @@ of an entry are collected (not just the first), each naming the field and the te
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from dataclasses import field as dc_field
 from typing import Any
 
 from registry.errors import FluxledgerError, UnitError
-from registry.record import fields, vocab
+from registry.record import conventions, fields, vocab
 from registry.record.nuclei import observe_frequency_mhz
 from registry.record.spelling import read_nucleus
 from registry.record.units import ParsedValue, parse_value
@@ -48,6 +49,14 @@ class EntryInput:
     dnu: str | None = None
     j: str | None = None
     population: str | None = None
+    direction: str | None = None  # which direction an unequal-population barrier refers to
+    convention: str | None = None  # which rate constant k and ΔG‡ refer to
+    degeneracy: str | None = None  # path degeneracy (statistical factor σ)
+    kappa: str | None = None  # transmission coefficient κ
+    order: str | None = None  # reaction order: 1, or 2 for bimolecular exchange
+    concentration: str | None = None  # of the exchange partner, for order 2
+    calibration: str | None = None  # how the probe temperature was calibrated (± σ)
+    dh_ds_corr: str | None = None  # correlation of ΔH‡ and ΔS‡ from their fit
     reference: str | None = None
     status: str | None = None
     extra: dict[str, Any] = dc_field(default_factory=dict)
@@ -111,23 +120,94 @@ def text_of(value: object) -> str | None:
     return str(value).strip()
 
 
-def parse_population_ratio(text: str, field_name: str = "population") -> float:
-    """``60:40``, ``1.5`` (major/minor) or ``0.6`` (one site's fraction) → ratio major/minor ≥ 1."""
-    t = text.strip().replace("/", ":")
+_PERCENT = re.compile(r"^(?P<num>\d+(?:[.,]\d*)?|[.,]\d+)\s*%$")
+_FRACTION = re.compile(
+    r"^(?:p|pa|pb|p_?[ab12]|x|x_?[ab12]|fraction|molefraction|frac)\s*[=:]?\s*"
+    r"(?P<num>\d*[.,]\d+|[01])$",
+    re.I,
+)
+#: how a bare number in a population column is meant, when the column's header says
+_POPULATION_UNITS = {"%": "percent", "percent": "percent", "fraction": "fraction",
+                     "molefraction": "fraction", "ratio": "ratio", "majorminor": "ratio"}  # fmt: skip
+
+POPULATION_HELP = (
+    "write a ratio of the two sites ('60:40', '3:1'), the major/minor ratio ('1.5'), one "
+    "site's percentage ('25%') or one site's fraction ('p = 0.25')"
+)
+
+
+def population_unit(text: str | None) -> str | None:
+    """How a population column's header unit reads bare numbers (percent, fraction, ratio)."""
+    if not text:
+        return None
+    return _POPULATION_UNITS.get(re.sub(r"[^a-z%]", "", text.lower()))
+
+
+def parse_population_ratio(
+    text: str, field_name: str = "population", unit: str | None = None
+) -> float:
+    """Populations as written → the ratio major/minor (≥ 1).
+
+    ``60:40``, ``3:1``, ``1:3`` and ``60/40`` give the two sites; a bare number ≥ 1 is the
+    major/minor ratio; ``25%`` is one site's percentage and ``p = 0.25`` one site's fraction.
+    A bare number below 1 could be a fraction of one site (0.25 → 3:1) or a minor/major ratio
+    (0.25 → 4:1), so it is refused unless the column says which (``unit``: ``fraction``,
+    ``percent`` or ``ratio``, from a header such as ``p_A (fraction)`` or ``population (%)``).
+    """
+    t = str(text).strip().replace("∶", ":")
+    how = population_unit(unit)
     try:
-        if ":" in t:
-            a, b = (float(x) for x in t.split(":", 1))
+        if ":" in t or ("/" in t and not t.startswith("/")):
+            a, b = (_number(x) for x in re.split(r"[:/]", t, maxsplit=1))
             if a <= 0 or b <= 0:
-                raise ValueError
+                raise UnitError(field_name, text, "both sites need a population above zero")
             return max(a, b) / min(a, b)
-        x = float(t)
+        percent = _PERCENT.match(t)
+        if percent or how == "percent":
+            share = _number(percent["num"] if percent else t) / 100.0
+            return _from_share(share, field_name, text)
+        fraction = _FRACTION.match(t)
+        if fraction or how == "fraction":
+            return _from_share(_number(fraction["num"] if fraction else t), field_name, text)
+        x = _number(t)
     except ValueError as exc:
-        raise UnitError(field_name, text, "expected a ratio such as '60:40' or '1.5'") from exc
-    if x <= 0 or not math.isfinite(x):
+        raise UnitError(field_name, text, POPULATION_HELP) from exc
+    if not (x > 0 and math.isfinite(x)):
         raise UnitError(field_name, text, "a population ratio must be positive")
-    if x < 1:  # a fraction of one site: the ratio is the same whichever site it names
+    if x < 1 and how != "ratio":
+        raise UnitError(
+            field_name,
+            text,
+            f"ambiguous: {t} could be one site's fraction ({max(x, 1 - x) / min(x, 1 - x):.3g}:1) "
+            f"or the minor/major ratio ({1 / x:.3g}:1); {POPULATION_HELP}",
+        )
+    return max(x, 1.0 / x)
+
+
+def _number(text: str) -> float:
+    value = float(text.strip().replace(",", "."))
+    if not math.isfinite(value):
+        raise ValueError(text)
+    return value
+
+
+def _from_share(share: float, field_name: str, text: str) -> float:
+    """One site's fraction (0 < p < 1) → the ratio of the larger to the smaller population."""
+    if not 0.0 < share < 1.0:
+        raise UnitError(field_name, text, "one site's share must lie strictly between 0 and 100%")
+    return max(share, 1 - share) / min(share, 1 - share)
+
+
+def legacy_population_ratio(text: str) -> float | None:
+    """How entries stored before this reader read a bare number below 1: a site's fraction.
+    (Used to keep such stored texts readable; new entries must say what they mean.)"""
+    try:
+        x = _number(str(text))
+    except ValueError:
+        return None
+    if 0.0 < x < 1.0:
         return max(x, 1 - x) / min(x, 1 - x)
-    return x
+    return None
 
 
 def _parse(
@@ -158,10 +238,12 @@ def normalize_entry(
     method, kind, status, nucleus = _vocabulary(inp, vocab.Vocabulary.of(known_kinds), problems)
     values = _values(inp, nucleus, problems)
     ratio = _population(inp, problems)
+    recorded = _recorded(inp, values, problems)
     rates = _rates(inp, problems)
     if problems:
         return None, problems
     measurement = _measurement_columns(values)
+    measurement.update(recorded)
     tc, dg_t = values.get("tc"), values.get("dg_t")
     if dg_t is None and tc is not None and values.get("dg") is not None:
         measurement["dg_t_k"] = tc.value  # ΔG‡ reported at Tc
@@ -260,10 +342,70 @@ def _population(inp: EntryInput, problems: list[Problem]) -> float | None:
     if blank(inp.population):
         return None
     try:
-        return parse_population_ratio(str(inp.population))
+        return parse_population_ratio(str(text_of(inp.population)), unit=inp.units.get("population"))
     except UnitError as exc:
         problems.append(Problem("population", str(inp.population), exc.reason))
         return None
+
+
+#: the measurement columns :func:`_recorded` fills (always all of them, None when not given)
+RECORDED_COLUMNS = ("k_convention", "path_degeneracy", "reaction_order", "dg_direction",
+                    "t_calibration_text", "t_calibration", "t_calibration_err_k")  # fmt: skip
+
+
+def _recorded(
+    inp: EntryInput, values: dict[str, ParsedValue], problems: list[Problem]
+) -> dict[str, Any]:
+    """What the entry records about its rate constant and its temperatures (see
+    :mod:`registry.record.conventions`), checked: the readers' words, κ > 0, −1 ≤ r ≤ 1, and
+    a concentration for a bimolecular exchange."""
+    out: dict[str, Any] = dict.fromkeys(RECORDED_COLUMNS)
+    readers = (
+        ("convention", "k_convention", conventions.read_convention),
+        ("degeneracy", "path_degeneracy", conventions.read_degeneracy),
+        ("order", "reaction_order", conventions.read_order),
+        ("direction", "dg_direction", conventions.read_direction),
+    )
+    for name, column, read in readers:
+        raw = text_of(getattr(inp, name))
+        if raw is None:
+            continue
+        try:
+            out[column] = read(raw, name)
+        except UnitError as exc:
+            problems.append(Problem(name, raw, exc.reason))
+    calibration = text_of(inp.calibration)
+    if calibration is not None:
+        try:
+            cal = conventions.read_calibration(calibration)
+        except UnitError as exc:
+            problems.append(Problem("calibration", calibration, exc.reason))
+        else:
+            out.update(t_calibration_text=cal.text, t_calibration=cal.name,
+                       t_calibration_err_k=cal.sigma_k)  # fmt: skip
+    _check_ranges(values, out, problems)
+    return out
+
+
+def _check_ranges(
+    values: dict[str, ParsedValue], recorded: dict[str, Any], problems: list[Problem]
+) -> None:
+    kappa, corr, conc = values.get("kappa"), values.get("dh_ds_corr"), values.get("concentration")
+    if kappa is not None and not 0.0 < kappa.value <= 100.0:
+        problems.append(Problem("kappa", kappa.text, "the transmission coefficient κ must be > 0"))
+    if corr is not None and not -1.0 <= corr.value <= 1.0:
+        problems.append(Problem("dh_ds_corr", corr.text, "a correlation lies between −1 and 1"))
+    if conc is not None and conc.value <= 0:
+        problems.append(Problem("concentration", conc.text, "a concentration must be positive"))
+    if recorded.get("reaction_order") == 2 and conc is None:
+        problems.append(
+            Problem(
+                "concentration",
+                "",
+                "a bimolecular exchange (order 2) needs the concentration of its partner: "
+                "k₂ = k/[X], and its ΔG‡ refers to the 1 M standard state",
+            )
+        )
 
 
 def _rates(inp: EntryInput, problems: list[Problem]) -> list[dict[str, Any]]:

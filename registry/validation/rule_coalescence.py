@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 
 from registry.validation import slips
+from registry.validation.conventions import rate_basis
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.coalescence_model import CoalescenceInputs, recompute, uncertainty
 from registry.validation.columns import present
@@ -17,6 +18,7 @@ def coalescence_inputs(data: CheckData, rows: np.ndarray) -> CoalescenceInputs:
     field = data.col("co_field_mhz")[rows]
     field = np.where(np.isfinite(field), field, data.col("field_mhz")[rows])
     stated = present(data.text("dg_t_text")[rows])
+    basis = rate_basis(data, rows)
     return CoalescenceInputs(
         tc_k=data.col("tc_k")[rows],
         dnu_hz=data.col("dnu_hz")[rows],
@@ -25,6 +27,11 @@ def coalescence_inputs(data: CheckData, rows: np.ndarray) -> CoalescenceInputs:
         field_mhz=field,
         dg_t_k=np.where(stated, data.col("dg_t_k")[rows], np.nan),
         reported_kj_mol=data.col("dg_kj_mol")[rows],
+        summed=basis.summed,
+        divisor=basis.divisor,
+        direction=basis.direction,
+        convention=np.array(basis.convention, dtype=object),
+        degeneracy=basis.degeneracy,
     )
 
 
