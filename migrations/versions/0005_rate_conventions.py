@@ -94,15 +94,15 @@ def _relink_water(bind: sa.engine.Connection) -> None:
     d2o, water = ids.get("deuterium oxide"), ids.get("water")
     if d2o is None or water is None:
         return
-    kept = bind.execute(
-        sa.text("SELECT alias FROM vocab_alias WHERE kind = 'solvent'")
-    ).scalars()
+    kept = bind.execute(sa.text("SELECT alias FROM vocab_alias WHERE kind = 'solvent'")).scalars()
     if any(fold(a) in ("water", "h2o") for a in kept):
         return  # the group said what 'water' means in its registry
     rows = bind.execute(
         sa.text("SELECT id, solvent_text FROM measurement WHERE solvent_id = :d2o"), {"d2o": d2o}
     ).all()
-    moved = [{"id": mid, "water": water} for mid, text in rows if fold(text or "") in ("water", "h2o")]
+    moved = [
+        {"id": mid, "water": water} for mid, text in rows if fold(text or "") in ("water", "h2o")
+    ]
     if moved:
         bind.execute(sa.text("UPDATE measurement SET solvent_id = :water WHERE id = :id"), moved)
 

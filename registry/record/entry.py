@@ -342,7 +342,9 @@ def _population(inp: EntryInput, problems: list[Problem]) -> float | None:
     if blank(inp.population):
         return None
     try:
-        return parse_population_ratio(str(text_of(inp.population)), unit=inp.units.get("population"))
+        return parse_population_ratio(
+            str(text_of(inp.population)), unit=inp.units.get("population")
+        )
     except UnitError as exc:
         problems.append(Problem("population", str(inp.population), exc.reason))
         return None

@@ -305,8 +305,9 @@ _H2O = (
     "bp 99.97 °C at 1 atm, ITS-90); from memory"
 )
 _DMSO_D6 = (
-    "deuterated-solvent supplier data sheet (DMSO-d6: mp 20.2 °C, bp 189 °C), not the parent "
-    "DMSO's 18.5 °C; from memory"
+    "deuterated-solvent supplier data sheet (DMSO-d6: mp 20.2 °C, bp 189 °C; from memory, not "
+    "found in a handbook we could search), not the parent DMSO's 18.5 °C (Dictionary of Organic "
+    "Compounds, as quoted at www.chm.bris.ac.uk/webprojects2006/Moss/properties.htm)"
 )
 #: solvent rows as an older seed wrote them, which migration 0005 brings up to date:
 #: name → (old mp °C, old bp °C, old aliases)

@@ -135,3 +135,26 @@ def factor_options(convention: str | None, degeneracy: float) -> list[tuple[str,
                         f"k divided by a statistical factor {n} the measurement does not record "
                         f"(record degeneracy={n} if it applies)"))  # fmt: skip
     return out
+
+
+# ---------------------------------------------------------------- temperature calibration
+
+
+def calibration_notes(data: CheckData, rows: NDArray[np.int64]) -> list[str]:
+    """For a finding's message: how the temperature of each row was calibrated (and σ(T))."""
+    names = data.text("t_calibration")[rows].tolist()
+    sigmas = data.col("t_calibration_err_k")[rows].tolist()
+    out = []
+    for name, sigma in zip(names, sigmas, strict=True):
+        if name is None:
+            out.append("; the temperature calibration is not recorded")
+        elif name == "none":
+            out.append(f"; the temperature was not calibrated (σ(T) {sigma:g} K assumed)")
+        else:
+            out.append(f"; temperature calibrated by {name} (σ(T) {sigma:g} K)")
+    return out
+
+
+def default_t_sigma(data: CheckData, rows: NDArray[np.int64], stated: Array) -> Array:
+    """σ(T) of ``rows``: as stated, else the recorded calibration's (NaN: neither)."""
+    return np.where(np.isfinite(stated), stated, data.col("t_calibration_err_k")[rows])

@@ -5,10 +5,15 @@ from __future__ import annotations
 import numpy as np
 
 from registry.validation import slips
-from registry.validation.conventions import rate_basis
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.coalescence_model import CoalescenceInputs, recompute, uncertainty
 from registry.validation.columns import present
+from registry.validation.conventions import (
+    basis_note,
+    calibration_notes,
+    default_t_sigma,
+    rate_basis,
+)
 from registry.validation.data import CheckData
 from registry.validation.reported import as_temperature, energy_units, temperature_units
 
@@ -45,7 +50,7 @@ class CoalescenceBarrier(Rule):
     """
 
     id = "coalescence-barrier"
-    version = 1
+    version = 2
     severity = "error"
     title = "ΔG‡ against the coalescence data"
     uses = ("dg_tolerance_kj_mol", "coverage", "ds_allowance_j_mol_k", "standard_fields_mhz")
@@ -61,7 +66,9 @@ class CoalescenceBarrier(Rule):
         inp = coalescence_inputs(data, rows)
         rec = recompute(inp)
         recomputed, first = rec.nearest(inp.reported_kj_mol)
-        e1, e2 = uncertainty(inp, data.col("tc_err_k")[rows], data.col("dnu_err_hz")[rows])
+        # σ(Tc) as stated, else the one the recorded temperature calibration gives
+        tc_err = default_t_sigma(data, rows, data.col("tc_err_k")[rows])
+        e1, e2 = uncertainty(inp, tc_err, data.col("dnu_err_hz")[rows])
         rec_err = np.where(first, e1, e2)
         rep_err = np.nan_to_num(data.col("dg_err_kj_mol")[rows], nan=0.0)
         away = np.nan_to_num(np.abs(inp.dg_t_k - inp.tc_k), nan=0.0)
@@ -87,6 +94,7 @@ class CoalescenceBarrier(Rule):
         rec_bad, tol_bad, first_bad = recomputed[bad].tolist(), tol[bad].tolist(), first[bad]
         kinds = np.where(sub.unequal, 2, np.where(sub.coupled, 1, 0)).tolist()
         ids = data.ids[positions]
+        calibrated = calibration_notes(data, positions)
         out: list[Finding] = []
         for i in range(positions.size):
             unit, f = labels[i], float(factors[i])
@@ -103,7 +111,7 @@ class CoalescenceBarrier(Rule):
                 f"ΔG‡ {fnum(rep_u, 2)} {unit} does not match {fnum(rec_u, 2)} {unit} recomputed "
                 f"from Tc {as_temperature(float(sub.tc_k[i]), tc_labels[i])} and Δν "
                 f"{sub.dnu_hz[i]:.4g} Hz ({formula}): off by {rep_u - rec_u:+.2f} {unit}, "
-                f"tolerance ±{tol_u:.2f} {unit}{where}"
+                f"tolerance ±{tol_u:.2f} {unit}{where}{_basis(sub, i)}{calibrated[i]}"
             )
             cause = None
             if diagnosis.slips[i]:
@@ -146,3 +154,12 @@ def _formula_text(
     if kind == 1:
         return f"coupled AB, J = {inp.j_hz[i]:.3g} Hz, k_c = π√(Δν²+6J²)/√2 = {k1:.4g} s⁻¹"
     return f"Gutowsky–Holm, k_c = πΔν/√2 = {k1:.4g} s⁻¹"
+
+
+def _basis(inp: CoalescenceInputs, i: int) -> str:
+    """'; k as exchange …' for a message: which rate constant the barrier was recomputed for."""
+    from registry.validation.conventions import RateBasis
+
+    basis = RateBasis(inp.summed, inp.divisor, inp.direction, list(inp.convention),
+                      inp.degeneracy)  # fmt: skip
+    return "; " + basis_note(basis, i)

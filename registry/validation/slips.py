@@ -284,8 +284,10 @@ SLIPS: tuple[Slip, ...] = (
     Slip("kc-pi-dnu", False, _kc_pi),
     Slip("kc-2pi-dnu", False, _kc_2pi),
     Slip("log10-for-ln", False, _log10),
-    *(Slip(slip_id, slip_id == conventions.STATISTICAL_FACTOR, _factor_slip(slip_id))
-      for slip_id in conventions.FACTOR_SLIP_IDS),
+    *(
+        Slip(slip_id, slip_id == conventions.STATISTICAL_FACTOR, _factor_slip(slip_id))
+        for slip_id in conventions.FACTOR_SLIP_IDS
+    ),
     Slip("dnu-other-field", True, _dnu_other_field),
     Slip("dg-other-temperature", True, _other_temperature),
 )
