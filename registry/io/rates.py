@@ -186,8 +186,8 @@ def plan_rate_rows(
             now = stated[found[0]] or "no convention (unspecified)"
             reason = (
                 f"the column holds {rr.convention} rate constants, but measurement {found[0]} "
-                f"records {now}; record its convention first "
-                f"(fluxledger edit {found[0]} convention={rr.convention}) or fix the header"
+                f"records {now}; record its convention first (edit measurement {found[0]}: "
+                f"convention={rr.convention}) or fix the header"
             )
             problems.append(
                 RowProblem(read.file, rr.sheet, rr.row, rr.k_header, rr.convention, reason)

@@ -279,6 +279,8 @@ LISTING_COLUMNS: dict[str, str] = {
     "compound_id": "m.compound_id",
     "t_min_k": "m.t_min_k",
     "t_max_k": "m.t_max_k",
+    # which rate constant ΔG‡ refers to (migration 0005; None: unspecified)
+    "k_convention": "m.k_convention",
     # 1 while an error finding is open (OPEN_ERROR_SQL), else 0: the same integer on SQLite
     # and PostgreSQL (a bare EXISTS would be an integer on one and a boolean on the other)
     "flagged": f"CASE WHEN {OPEN_ERROR_SQL} THEN 1 ELSE 0 END",
@@ -299,6 +301,7 @@ TABLE_COLUMNS: dict[str, tuple[str, ...]] = {
         "solvent",
         "dg_kj_mol",
         "dg_t_k",
+        "k_convention",
         "status",
         "flagged",
     ),

@@ -7,7 +7,7 @@ from __future__ import annotations
 import numpy as np
 
 from registry.record.nuclei import FREQUENCY_RATIO_TO_1H
-from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
+from registry.validation.base import CheckConfig, Finding, Rule, opt
 from registry.validation.data import CheckData
 from registry.validation.reported import leading_number, unit_part
 

@@ -56,6 +56,37 @@ def _temperature(data: CheckData) -> np.ndarray:
     return np.where(np.isfinite(t), t, data.col("tc_k"))
 
 
+def _measured_rates(data: CheckData) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Per row, a temperature and k where the method actually measured, and which rows have
+    one: the rate points (their slowest and fastest k) first; else ΔG‡ at its temperature when
+    that lies inside the measured range (or no range is stored); else ΔH‡ − T·ΔS‡ at the middle
+    of the range. A ΔG‡ quoted outside the range (extrapolated to 298 K, say) says nothing of
+    what the method saw."""
+    n = len(data)
+    k_lo, k_hi = np.full(n, np.inf), np.full(n, -np.inf)
+    r = data.rates
+    if len(r):
+        with np.errstate(invalid="ignore"):
+            ok = (r.k_per_s > 0) & (r.t_k > 0)
+        np.minimum.at(k_lo, r.pos[ok], r.k_per_s[ok])
+        np.maximum.at(k_hi, r.pos[ok], r.k_per_s[ok])
+    has_points = np.isfinite(k_lo)
+    dg, t = data.col("dg_kj_mol"), _temperature(data)
+    lo, hi = data.col("t_min_k"), data.col("t_max_k")
+    ranged = np.isfinite(lo) & np.isfinite(hi)
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        inside = np.isfinite(t) & (t > 0) & (~ranged | ((t >= lo - 1.0) & (t <= hi + 1.0)))
+        k_dg = eyring_k(dg, np.where(inside, t, np.nan))
+        mid = (lo + hi) / 2.0
+        dg_mid = data.col("dh_kj_mol") - mid * data.col("ds_j_mol_k") / 1000.0
+        k_mid = eyring_k(dg_mid, mid)
+    use_dg = ~has_points & inside & np.isfinite(k_dg)
+    use_mid = ~has_points & ~use_dg & ranged & np.isfinite(k_mid)
+    k_lo = np.where(use_dg, k_dg, np.where(use_mid, k_mid, k_lo))
+    k_hi = np.where(use_dg, k_dg, np.where(use_mid, k_mid, k_hi))
+    return k_lo, k_hi, has_points | use_dg | use_mid
+
+
 class BarrierInMethodRange(Rule):
     """ΔG‡ at its temperature must mean a rate constant the method can measure.
 
@@ -75,12 +106,12 @@ class BarrierInMethodRange(Rule):
         lo = np.array([METHOD_RATE_WINDOWS.get(m, (np.nan, np.nan))[0] for m in methods])
         hi = np.array([METHOD_RATE_WINDOWS.get(m, (np.nan, np.nan))[1] for m in methods])
         nmr = np.array([m in DYNAMIC_NMR_METHODS for m in methods], dtype=bool)
+        k_slow, k_fast, has_k = _measured_rates(data)
         with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
-            has_t = np.isfinite(t) & (t > 0)
-            k = eyring_k(dg, np.where(has_t, t, np.nan))
-            by_rate = has_t & np.isfinite(dg) & np.isfinite(lo) & ((k < lo) | (k > hi))
+            k = eyring_k(dg, np.where(np.isfinite(t) & (t > 0), t, np.nan))
+            by_rate = has_k & np.isfinite(lo) & ((k_fast < lo) | (k_slow > hi))
             e_lo, e_hi = config.nmr_barrier_min_kj_mol, config.nmr_barrier_max_kj_mol
-            by_energy = ~has_t & nmr & np.isfinite(dg) & ((dg < e_lo) | (dg > e_hi))
+            by_energy = ~has_k & nmr & np.isfinite(dg) & ((dg < e_lo) | (dg > e_hi))
         rows = np.flatnonzero(by_rate | by_energy)
         if rows.size == 0:
             return []
@@ -90,14 +121,23 @@ class BarrierInMethodRange(Rule):
         for i, p in enumerate(rows.tolist()):
             u, f = labels[i], float(factors[i])
             if by_rate[p]:
-                slow = k[p] < lo[p]
-                edge = eyring_dg(lo[p] if slow else hi[p], float(t[p]))
+                slow = k_fast[p] < lo[p]
+                seen = k_fast[p] if slow else k_slow[p]
+                at_t = np.isfinite(k[p]) and abs(k[p] - seen) <= 1e-9 * seen
+                edge = eyring_dg(lo[p] if slow else hi[p], float(t[p])) if at_t else np.nan
+                what = (
+                    f"ΔG‡ {fnum(dg[p] * f, 2)} {u} at {t[p]:.1f} K means k ≈ {seen:.2g} s⁻¹"
+                    if at_t
+                    else f"the measured rates reach k ≈ {seen:.2g} s⁻¹ at most"
+                    if slow
+                    else f"the measured rates are k ≈ {seen:.2g} s⁻¹ or more"
+                )
+                there = f", i.e. ΔG‡ {'at most' if slow else 'at least'} " if at_t else ""
+                there += f"{fnum(edge * f, 1)} {u} there" if at_t else ""
                 text = (
-                    f"ΔG‡ {fnum(dg[p] * f, 2)} {u} at {t[p]:.1f} K means k ≈ {k[p]:.2g} s⁻¹, "
-                    f"{'slower' if slow else 'faster'} than {methods[p]} can measure (about "
-                    f"{lo[p]:g}–{hi[p]:g} s⁻¹ at its temperature, i.e. ΔG‡ "
-                    f"{'at most' if slow else 'at least'} {fnum(edge * f, 1)} {u} there): check "
-                    f"the value, its unit, its temperature or the method{notes[i]}"
+                    f"{what}, {'slower' if slow else 'faster'} than {methods[p]} can measure "
+                    f"(about {lo[p]:g}–{hi[p]:g} s⁻¹ at its temperature{there}): check the "
+                    f"value, its unit, its temperature or the method{notes[i]}"
                 )
             else:
                 edge = e_lo if dg[p] < e_lo else e_hi
