@@ -66,7 +66,8 @@ class RepeatsAgree(Rule):
         first = np.r_[True, mine[1:] != mine[:-1]]
         disagreeing = np.diff(np.r_[np.flatnonzero(first), mine.size])
         rows, peers, tol, shift = mine[first], other[first], tol[first], shift[first]
-        dg, dg_o = data.col("dg_kj_mol")[rows] + shift, data.peers["dg_kj_mol"][peers]
+        # the peer's ΔG‡ at this row's temperature (moved with ΔS‡ where it was; see the class)
+        dg, dg_o = data.col("dg_kj_mol")[rows], data.peers["dg_kj_mol"][peers] - shift
         t_mine = data.col("dg_t_k")[rows]
         err_o = np.nan_to_num(data.peers["dg_err_kj_mol"][peers], nan=0.0)
         t_o = data.peers["dg_t_k"][peers]
@@ -78,18 +79,19 @@ class RepeatsAgree(Rule):
             mine_dg, their_dg, their_id = float(dg[i]), float(dg_o[i]), int(peer_ids[i])
             more = int(disagreeing[i]) - 1
             extra = f" (and {more} other repeat(s) disagree too)" if more else ""
+            theirs = f"{fnum(their_dg * f, 2)} {u}"
             if shift[i] != 0.0:
-                extra = (
-                    f" (ΔG‡ moved from {t_mine[i]:.1f} K to the other's {t_o[i]:.1f} K with "
-                    f"ΔS‡: ΔG‡(T₂) = ΔG‡(T₁) − (T₂ − T₁)·ΔS‡){extra}"
+                theirs = (
+                    f"{fnum((their_dg + shift[i]) * f, 2)} {u} at {t_o[i]:.1f} K, i.e. {theirs} "
+                    f"at {t_mine[i]:.1f} K with ΔS‡: ΔG‡(T₁) = ΔG‡(T₂) − (T₁ − T₂)·ΔS‡"
                 )
             out.append(
                 self.finding(
                     int(data.ids[p]),
                     f"ΔG‡ {fnum(mine_dg * f, 2)} {u} disagrees with measurement {their_id} of "
-                    f"the same compound, process, solvent and method ({fnum(their_dg * f, 2)} "
-                    f"{u}): they differ by {fnum((mine_dg - their_dg) * f, 2)} {u}, more than "
-                    f"their combined uncertainty allows (±{float(tol[i]) * f:.2f} {u}){extra}",
+                    f"the same compound, process, solvent and method ({theirs}): they differ "
+                    f"by {fnum((mine_dg - their_dg) * f, 2)} {u}, more than their combined "
+                    f"uncertainty allows (±{float(tol[i]) * f:.2f} {u}){extra}",
                     reported=opt(mine_dg * f),
                     recomputed=opt(their_dg * f),
                     difference=opt((mine_dg - their_dg) * f),
