@@ -24,7 +24,8 @@ from registry import api
 from registry.errors import FluxledgerError, ImportRowError, UnitError
 from registry.io.headers import guess_header
 from registry.record.conventions import read_calibration, read_convention
-from registry.record.entry import EntryInput, parse_population_ratio
+from registry.record.entry import EntryInput
+from registry.record.populations import parse_population_ratio
 from registry.record.units import parse_value
 from registry.storage.database import Database
 from registry.validation import check_measurements
@@ -159,9 +160,13 @@ def test_calibration_sets_the_default_sigma_of_tc(database: Database) -> None:
     dg = eyring_dg(gh_rate(25.0), 340.0) + 1.2
     bare = add(database, tc="340 K", dnu="25 Hz", dg=f"{dg:.2f} kJ/mol")
     (f,) = coalescence(database, bare)
-    assert "calibration is not recorded" in f.message
+    assert "calibrat" not in f.message  # nothing recorded: the message as it always was
     loose = add(database, tc="340 K", dnu="25 Hz", dg=f"{dg:.2f} kJ/mol", calibration="none")
     assert coalescence(database, loose) == []
+    tight = add(database, tc="340 K", dnu="25 Hz", dg=f"{dg:.2f} kJ/mol",
+                calibration="methanol ± 0.1 K")  # fmt: skip
+    (f,) = coalescence(database, tight)
+    assert "temperature calibrated by methanol (σ(T) 0.1 K)" in f.message
 
 
 # ---------------------------------------------------------------- conventions in the check
@@ -438,3 +443,20 @@ def test_rate_point_above_kbt_over_h_is_an_error(database: Database) -> None:
     (f,) = found
     assert f.recomputed == pytest.approx(limit, rel=1e-9)
     assert f.severity == "error"
+
+
+def test_find_at_a_common_temperature(database: Database) -> None:
+    low = add(database, method="lineshape", smiles="CN(C)C(=O)c1ccccc1", dh="62 kJ/mol",
+              ds="-10 J/(mol K)", t_min="280 K", t_max="320 K")  # fmt: skip
+    high = add(database, method="lineshape", smiles="CCN(CC)C(=O)c1ccccc1", dh="75 kJ/mol",
+               ds="10 J/(mol K)", t_min="340 K", t_max="380 K")  # fmt: skip
+    result = api.find(database, smarts="C(=O)N", at="298.15 K", barrier=">= 65 kJ/mol",
+                      sort="-barrier")  # fmt: skip
+    assert [r["id"] for r in result.rows] == [high]
+    row = result.rows[0]
+    assert row["dg_at_kj_mol"] == pytest.approx(75.0 - 298.15 * 10.0 / 1000.0)
+    assert row["extrapolated"] == "yes"
+    every = api.find(database, smarts="C(=O)N", at="25 °C", sort="barrier")
+    assert [r["id"] for r in every.rows] == [low, high]
+    with pytest.raises(FluxledgerError):
+        api.find(database, smarts="C(=O)N", at="-5 K")

@@ -11,8 +11,8 @@ from registry.record.entry import (
     EntryInput,
     normalize_entry,
     normalize_nucleus,
-    parse_population_ratio,
 )
+from registry.record.populations import parse_population_ratio
 from registry.record.vocab import Vocabulary
 
 

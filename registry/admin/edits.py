@@ -114,7 +114,7 @@ def _legacy_fraction(coalescence: dict[str, Any]) -> bool:
     text = coalescence.get("population_text")
     if text is None:
         return False
-    from registry.record.entry import legacy_population_ratio
+    from registry.record.populations import legacy_population_ratio
 
     old = legacy_population_ratio(text)
     return old is not None and same_value(old, coalescence.get("population_ratio"))

@@ -12,7 +12,7 @@ from registry.admin.reread import reread_value, same_value, shift_mhz
 from registry.errors import UnitError
 from registry.record import fields
 from registry.record.conventions import read_calibration
-from registry.record.entry import legacy_population_ratio, parse_population_ratio
+from registry.record.populations import legacy_population_ratio, parse_population_ratio
 from registry.storage import audit, migrate
 from registry.storage.connection import Connection
 from registry.storage.database import Database, head_revision, open_database

@@ -51,7 +51,7 @@ from registry.io.headers import (
 from registry.io.readers import column_letter
 from registry.record import fields as field_table
 from registry.record import vocab
-from registry.record.entry import population_unit
+from registry.record.populations import population_unit
 from registry.record.spelling import fold
 from registry.record.units import unit_of
 

@@ -77,10 +77,12 @@ def rate_basis(data: CheckData, rows: NDArray[np.int64]) -> RateBasis:
 
 
 def basis_note(basis: RateBasis, i: int) -> str:
-    """A few words on a row's basis for a message ('' for a plain per-site first-order k)."""
+    """A few words on a row's basis for a message ('' when the row records nothing: the message
+    of such a row stays as it always was)."""
     parts = []
     conv = basis.convention[i]
-    parts.append(f"k as {conv}" if conv else "k read as per-site (no convention recorded)")
+    if conv:
+        parts.append(f"k as {conv}")
     sigma = basis.degeneracy[i]
     if np.isfinite(sigma) and sigma != 1:
         parts.append(f"path degeneracy {int(sigma)}")
@@ -147,7 +149,7 @@ def calibration_notes(data: CheckData, rows: NDArray[np.int64]) -> list[str]:
     out = []
     for name, sigma in zip(names, sigmas, strict=True):
         if name is None:
-            out.append("; the temperature calibration is not recorded")
+            out.append("")  # nothing recorded: the message stays as it always was
         elif name == "none":
             out.append(f"; the temperature was not calibrated (σ(T) {sigma:g} K assumed)")
         else:

@@ -162,4 +162,5 @@ def _basis(inp: CoalescenceInputs, i: int) -> str:
 
     basis = RateBasis(inp.summed, inp.divisor, inp.direction, list(inp.convention),
                       inp.degeneracy)  # fmt: skip
-    return "; " + basis_note(basis, i)
+    note = basis_note(basis, i)
+    return f"; {note}" if note else ""

@@ -8,9 +8,9 @@ recur in the dynamic-NMR literature (common practice, no source): unit mix-ups, 
 for kelvin, ppm taken for Hz, the wrong k_c expression, log10 for ln, the wrong temperature,
 and a factor in k — k_ex for k_AB, k_rac for k_enant, a statistical factor
 (:mod:`.conventions`; which of them can apply depends on the convention the entry records).
-A slip that reproduces the number clearly worse than the best one
-(:data:`NAMING_MARGIN_KJ_MOL`) is not named: an RT·ln 2 difference is a factor 2 in k, not
-k_c = πΔν and 2πΔν at once, which sit RT·ln√2 on either side of it.
+Where a factor slip reproduces the number, k_c = πΔν and 2πΔν — which sit RT·ln√2 on either
+side of a factor 2 — are named only if they do so as well (:data:`NAMING_MARGIN_KJ_MOL`): an
+RT·ln 2 difference is a factor 2 in k, not both k_c forms at once.
 """
 
 from __future__ import annotations
@@ -300,6 +300,8 @@ SLIP_IDS = tuple(s.id for s in SLIPS)
 #: 170 K), what separates k_c = πΔν (×√2) and 2πΔν (×2√2) from a factor 2 in k
 #: (common practice, no source)
 NAMING_MARGIN_KJ_MOL = 0.25
+#: the k_c slips that sit RT·ln√2 on either side of a factor 2 in k
+_KC_FORMS = ("kc-pi-dnu", "kc-2pi-dnu")
 
 
 @dataclass(frozen=True)
@@ -336,9 +338,19 @@ def diagnose(
             )
     slips, details, values = [], [], []
     for hits in found:
-        if hits:  # a slip that reproduces the number clearly worse than another is not named
+        # a statistical factor the entry does not record is a guess: named only when nothing
+        # else explains the number
+        if any(h[2] != conventions.STATISTICAL_FACTOR for h in hits):
+            hits = [h for h in hits if h[2] != conventions.STATISTICAL_FACTOR]
+        if hits:  # a factor in k named only if as good as the best other explanation
             best = min(h[1] for h in hits)
-            hits = [h for h in hits if h[1] <= best + NAMING_MARGIN_KJ_MOL]
+            hits = [h for h in hits if h[2] not in conventions.FACTOR_SLIP_IDS
+                    or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
+        factors = [h[1] for h in hits if h[2] in conventions.FACTOR_SLIP_IDS]
+        if factors:  # a factor in k explains it: k_c = πΔν or 2πΔν only if as good
+            best = min(factors)
+            hits = [h for h in hits
+                    if h[2] not in _KC_FORMS or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
         hits.sort(key=lambda h: (h[0], h[1]))
         slips.append(tuple(h[2] for h in hits))
         details.append(tuple(h[3] for h in hits))
