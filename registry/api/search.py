@@ -47,7 +47,8 @@ def find(
     output: str = "rows",
     time_limit: float | None = None,
 ) -> FindResult:
-    """Every measurement on a compound that contains ``smarts``/``smiles``/``motif`` (or is at
+    """
+    # long: the keyword arguments of every filter and their docstring; the body only forwardsEvery measurement on a compound that contains ``smarts``/``smiles``/``motif`` (or is at
     least ``min_similarity`` similar to the SMILES ``similar``), filtered.
 
     Give exactly one of ``smarts``, ``smiles``, ``motif``, ``similar``. Filters are texts as

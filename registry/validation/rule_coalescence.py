@@ -66,17 +66,7 @@ class CoalescenceBarrier(Rule):
         inp = coalescence_inputs(data, rows)
         rec = recompute(inp)
         recomputed, first = rec.nearest(inp.reported_kj_mol)
-        # σ(Tc) as stated, else the one the recorded temperature calibration gives
-        tc_err = default_t_sigma(data, rows, data.col("tc_err_k")[rows])
-        e1, e2 = uncertainty(inp, tc_err, data.col("dnu_err_hz")[rows])
-        rec_err = np.where(first, e1, e2)
-        rep_err = np.nan_to_num(data.col("dg_err_kj_mol")[rows], nan=0.0)
-        away = np.nan_to_num(np.abs(inp.dg_t_k - inp.tc_k), nan=0.0)
-        tol = (
-            config.dg_tolerance_kj_mol
-            + config.coverage * np.sqrt(rec_err**2 + rep_err**2)
-            + away * config.ds_allowance_j_mol_k / 1000.0
-        )
+        tol = _tolerance(data, rows, inp, first, config)
         diff = inp.reported_kj_mol - recomputed
         with np.errstate(invalid="ignore"):
             bad = np.isfinite(recomputed) & ~(np.abs(diff) <= tol)
@@ -138,6 +128,24 @@ class CoalescenceBarrier(Rule):
                 )
             )
         return out
+
+
+def _tolerance(
+    data: CheckData, rows: np.ndarray, inp: CoalescenceInputs, first: np.ndarray,
+    config: CheckConfig,
+) -> np.ndarray:  # fmt: skip
+    """Base tolerance + coverage·√(σ_recomputed² + σ_reported²) + |T − Tc|·ΔS‡ allowance, with
+    σ(Tc) as stated, else the one the recorded temperature calibration gives."""
+    tc_err = default_t_sigma(data, rows, data.col("tc_err_k")[rows])
+    e1, e2 = uncertainty(inp, tc_err, data.col("dnu_err_hz")[rows])
+    rec_err = np.where(first, e1, e2)
+    rep_err = np.nan_to_num(data.col("dg_err_kj_mol")[rows], nan=0.0)
+    away = np.nan_to_num(np.abs(inp.dg_t_k - inp.tc_k), nan=0.0)
+    return (
+        config.dg_tolerance_kj_mol
+        + config.coverage * np.sqrt(rec_err**2 + rep_err**2)
+        + away * config.ds_allowance_j_mol_k / 1000.0
+    )
 
 
 def _formula_text(
