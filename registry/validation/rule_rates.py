@@ -58,8 +58,7 @@ def _temperature(data: CheckData) -> np.ndarray:
 
 def _measured_rates(data: CheckData) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Per row, a temperature and k where the method actually measured, and which rows have
-    one: the rate points (their slowest and fastest k) first; else k_c = πΔν/√2 of stored
-    coalescence data; else ΔG‡ at its temperature when
+    one: the rate points (their slowest and fastest k) first; else ΔG‡ at its temperature when
     that lies inside the measured range (or no range is stored); else ΔH‡ − T·ΔS‡ at the middle
     of the range. A ΔG‡ quoted outside the range (extrapolated to 298 K, say) says nothing of
     what the method saw."""
@@ -81,15 +80,10 @@ def _measured_rates(data: CheckData) -> tuple[np.ndarray, np.ndarray, np.ndarray
         mid = (lo + hi) / 2.0
         dg_mid = data.col("dh_kj_mol") - mid * data.col("ds_j_mol_k") / 1000.0
         k_mid = eyring_k(dg_mid, mid)
-        # coalescence data: the rate the spectra showed is k_c = πΔν/√2 at Tc (a wrong ΔG‡
-        # beside them is the coalescence rule's to find)
-        dnu, tc = data.col("dnu_hz"), data.col("tc_k")
-        k_c = np.where((dnu > 0) & (tc > 0), np.pi * dnu / np.sqrt(2.0), np.nan)
-    use_kc = ~has_points & np.isfinite(k_c)
-    use_dg = ~has_points & ~use_kc & inside & np.isfinite(k_dg)
-    use_mid = ~has_points & ~use_kc & ~use_dg & ranged & np.isfinite(k_mid)
-    single = np.where(use_kc, k_c, np.where(use_dg, k_dg, k_mid))
-    chosen = use_kc | use_dg | use_mid
+    use_dg = ~has_points & inside & np.isfinite(k_dg)
+    use_mid = ~has_points & ~use_dg & ranged & np.isfinite(k_mid)
+    single = np.where(use_dg, k_dg, k_mid)
+    chosen = use_dg | use_mid
     k_lo = np.where(chosen, single, k_lo)
     k_hi = np.where(chosen, single, k_hi)
     return k_lo, k_hi, has_points | chosen
