@@ -299,23 +299,35 @@ def _csv_cell(value: Any) -> Any:
     return value
 
 
-#: what the workbook format cannot hold as is: characters XML 1.0 forbids, and a literal
-#: ``_xHHHH_`` (which a reader would take for an escape)
-_OOXML_ESCAPE = re.compile(r"(_x[0-9A-Fa-f]{4}_)|[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff]")
+#: what the workbook format cannot hold as is: characters XML 1.0 forbids, a carriage return
+#: (an XML reader turns it into a line feed) and a literal ``_xHHHH_`` (a reader would take it
+#: for an escape)
+_OOXML_ESCAPE = re.compile(r"_(?=x[0-9A-Fa-f]{4}_)|[\x00-\x08\x0b-\x1f\ufffe\uffff]")
 
 
 def _ooxml_escape(match: re.Match[str]) -> str:
-    if match.group(1):  # a literal '_x0041_': its underscore escaped, as the format asks
-        return "_x005F" + match.group(1)
-    return f"_x{ord(match.group()):04X}_"
+    char = match.group()
+    if char == "_":  # starts a literal '_x0041_' (overlapping ones too): escaped itself
+        return "_x005F_"
+    if char in "\ufffe\uffff":  # noncharacters no workbook holds, escaped or not
+        return "\ufffd"
+    return f"_x{ord(char):04X}_"
+
+
+def workbook_text(text: str) -> str:
+    """``text`` as a workbook cell holds it: escaped the format's own way (ECMA-376
+    ST_Xstring: ``\\x01`` → ``_x0001_``, a literal ``_x0041_`` → ``_x005F_x0041_``), which
+    Excel and the importer read back as the original text. The noncharacters U+FFFE and
+    U+FFFF, which no workbook can hold, become U+FFFD."""
+    return _OOXML_ESCAPE.sub(_ooxml_escape, text)
 
 
 def _xlsx_cell(value: Any) -> Any:
-    """A cell a workbook can hold: texts escaped the workbook format's way (ECMA-376
-    ST_Xstring: ``\\x01`` → ``_x0001_``), a non-finite number as its text."""
+    """A cell a workbook can hold: a guarded text escaped (:func:`workbook_text`), a
+    non-finite number as its text."""
     value = _safe(value)
     if isinstance(value, str):
-        return _OOXML_ESCAPE.sub(_ooxml_escape, value)
+        return workbook_text(value)
     if not_finite(value):
         return repr(value)
     return value
@@ -326,7 +338,7 @@ def _write_xlsx(path: Path, rows: Sequence[dict[str, Any]], columns: list[str]) 
 
     book = Workbook(write_only=True)
     sheet = book.create_sheet("entries")
-    sheet.append([_OOXML_ESCAPE.sub(_ooxml_escape, c) for c in columns])
+    sheet.append([workbook_text(c) for c in columns])
     for row in rows:
         sheet.append([_xlsx_cell(row.get(c)) for c in columns])
     book.save(path)

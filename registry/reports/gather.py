@@ -20,7 +20,8 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
-from registry.errors import NotFoundError, UsageError
+from registry.errors import DatabaseError, NotFoundError, UsageError
+from registry.outputs import not_finite
 from registry.record.fields import LISTING_COLUMNS
 from registry.storage.connection import Connection
 from registry.storage.database import Database
@@ -60,6 +61,18 @@ def series_from_points(
     return RateSeries(np.array(t_k, dtype=float), np.array(k_per_s, dtype=float), err, title)
 
 
+def not_finite_points(points: Sequence[Sequence[Any]]) -> str | None:
+    """What is wrong when rate points (T, k, σk …) hold a number that is not finite — inf or
+    nan, written into the registry behind fluxledger's back — else None."""
+    odd = [str(i) for i, p in enumerate(points, start=1) if any(map(not_finite, p))]
+    if not odd:
+        return None
+    return (
+        f"rate point(s) {', '.join(odd)} (by temperature) hold a number that is not finite (inf "
+        "or nan); no Eyring fit is drawn. 'fluxledger verify' lists such values"
+    )
+
+
 def rate_series(database: Database, measurement_id: int) -> RateSeries:
     """The stored rate points of a measurement, ordered by temperature."""
     of = {"id": measurement_id}
@@ -82,6 +95,9 @@ def rate_series(database: Database, measurement_id: int) -> RateSeries:
             f"measurement {measurement_id} has {len(points)} rate point(s); an Eyring plot needs"
             " at least 2"
         )
+    odd = not_finite_points(points)
+    if odd:
+        raise DatabaseError(f"measurement {measurement_id}: {odd}")
     series = series_from_points(
         [p[0] for p in points],
         [p[1] for p in points],

@@ -141,12 +141,15 @@ def _eyring_plot(m: Mapping[str, Any], out: Path) -> tuple[str | None, str | Non
     """Draw the Eyring plot of one measurement; (file name, None) or (None, why not)."""
     from registry.kinetics import KineticsInputError, fit_eyring
     from registry.reports.canvas import save_figure
-    from registry.reports.gather import series_from_points
+    from registry.reports.gather import not_finite_points, series_from_points
     from registry.reports.plots import eyring_figure
 
     points = m.get("rate_points") or []
     if len(points) < 2:
         return None, None
+    odd = not_finite_points([(p["t_k"], p["k_per_s"], p.get("k_err_per_s")) for p in points])
+    if odd:
+        return None, f"No Eyring plot: {odd}"
     title = f"measurement {int(m['id'])}: {m.get('compound') or m.get('compound_name') or ''}"
     series = series_from_points(
         [p["t_k"] for p in points],
