@@ -158,7 +158,7 @@ def test_backup_then_restore_into_a_new_file(cli, filled: Path, tmp_path: Path) 
     again = cli("backup", str(dest))
     assert (again.exit_code, again.stderr) == (
         2,
-        f"error: {dest} exists; choose another name, or allow replacing it (overwrite)\n",
+        f"error: backup {dest}: exists; choose another name, or allow replacing it (overwrite)\n",
     )
     assert cli("backup", str(dest), "--force").exit_code == 0
     target = tmp_path / "restored.sqlite"

@@ -89,21 +89,27 @@ def export_measurements(
     ``'pm'``). Without ``format`` the file's suffix decides (.csv, .xlsx, .json, .tex, .md).
     A table leaves flagged measurements (an error finding nobody accepted) out unless
     ``include_flagged``, and footnotes them when included; a data file holds every selected
-    row (``flagged=False`` selects the clean ones). Returns what was written: file, format
-    and counts.
+    row (``flagged=False`` selects the clean ones). Returns what was written: file, format,
+    counts and ``notes`` (stored values the file could not show as they are).
+
+    ``out`` is checked first (:func:`registry.outputs.check_target`): the registry, a SQLite
+    file, a folder, a symlink or a missing folder is refused before anything is read, and the
+    file is written whole or not at all.
     """
     from registry.api.records import list_measurements
+    from registry.outputs import check_target
     from registry.search.filters import listing_filters
 
-    listing_filters(**filters)  # read and check the filters before anything is written
-    kind = (format or Path(out).suffix.lstrip(".")).lower()
+    listing_filters(**filters)  # read and check the filters and the file before any work
+    target = check_target(out, what="export", protect=database.path)
+    kind = (format or target.suffix.lstrip(".")).lower()
     if kind not in DATA_FORMATS + TABLE_FORMATS:
         raise UsageError(
             f"format must be one of csv, xlsx, json, latex, markdown (got {kind or 'none'!r}); "
             "name it, or end the file name in .csv, .xlsx, .json, .tex or .md"
         )
     if kind in TABLE_FORMATS:
-        from registry.reports.tables import export_table
+        from registry.reports.table_file import export_table
 
         return export_table(
             database, out, format, energy_unit=energy_unit, uncertainty=uncertainty, ids=ids,
