@@ -112,7 +112,7 @@ def test_verify_finds_a_value_that_does_not_match_its_text(cli, filled: Path) ->
             "measurement 1: dg_text '13.3 ± 0.3 kcal/mol' reads as 55.6472, stored 61.0",
             "measurement 2 coalescence 2: tc_text '-10 °C' reads as 263.15, stored 262.15",
             "measurement 1 rate point 1: k_text '12.5 s-1' reads as 12.5, stored 125.0",
-        ]
+        ],
     }
     assert "  PROBLEM values  3 problem(s)  (12 reported values read again)" in result.stdout
     assert result.stdout.endswith("the registry has problems (exit 1)\n")

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import json
 import sqlite3
-from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -19,7 +18,6 @@ from test_io_import import write_csv
 
 from registry import api
 from registry.record.entry import EntryInput
-from registry.storage import migrate
 from registry.storage.database import Database
 
 pytest_plugins = ("conftest_pg",)
@@ -352,4 +350,197 @@ def test_without_a_recorded_check_statuses_out_of_step_are_a_note(three: Path) -
     assert findings["notes"][0].startswith(
         "1 measurement(s) whose status does not follow the findings (the first: measurement 1, "
         "draft with error finding "
+    )
+
+
+# ---------------------------------------------------------------- no false alarms
+
+
+HEADERS = ["label", "compound", "SMILES", "method", "solvent", "field (MHz)", "Tc (°C)",
+           "Δν (Hz)", "ΔG‡ (kcal/mol)", "ref"]  # fmt: skip
+ROWS = [
+    ["m1", "HG-A1", "CN(C)C(=O)c1ccccc1", "coalescence", "CDC13", 400, 12, 38.5, 6.3, "r1"],
+    ["m2", "HG-A2", "CC(=O)N1CCCCC1", "coalescence", "CDCl3", 400, -20, 48, 4.2, "r2"],
+    ["m3", "HG-A3", "CC(C)N(C(C)C)C(=O)C", "coalescence", "tol-d8", 400, 95, 62, 18.1, "r3"],
+]  # fmt: skip
+
+
+def _every_command(database: Database, tmp_path: Path) -> None:
+    """A registry written through every command that changes one (invented demo data)."""
+    who = {"actor": "ingrid"}
+    api.add_measurement(database, EntryInput(
+        method="coalescence", compound="AM-1", smiles="CN(C)C(=O)c1ccc(Cl)cc1",
+        process="bond-rotation", nucleus="1H", solvent="CDCl3", field="400 MHz", tc="-12 °C",
+        dnu="0.045 ppm", dg="14.2 ± 0.3 kcal/mol"), **who)  # fmt: skip
+    api.add_measurement(database, EntryInput(
+        method="lineshape", compound="AM-3", name="a biaryl", dh="70 kJ/mol", solvent="TCE",
+        rates=[("250 K", "12.5 s-1"), ("260 K", "30 s-1")], status="reviewed"), **who)  # fmt: skip
+    sheet = tmp_path / "group.csv"
+    write_csv(sheet, HEADERS, ROWS)
+    first = api.import_table(database, sheet, actor="kofi")
+    m1, m2, m3 = first["measurement_ids"]["added"]
+    api.edit_measurement(database, m1, {"dg": "6.5 kcal/mol", "tc": "13 °C"}, **who)
+    write_csv(sheet, HEADERS, [[*r[:8], 4.4 if r[0] == "m2" else r[8], r[9]] for r in ROWS])
+    assert api.import_table(database, sheet, actor="kofi")["updated"] == 1  # import-update
+    write_csv(sheet, HEADERS, [[*r[:8], 6.6 if r[0] == "m1" else r[8], r[9] + "+"] for r in ROWS])
+    assert api.import_table(database, sheet, actor="kofi", prefer="file")["updated"] == 3
+    rates = tmp_path / "rates.csv"
+    write_csv(rates, ["label", "T (°C)", "k (s-1)"], [["m3", 90, 60.0], ["m3", 100, 140.0]])
+    assert api.import_table(database, rates, actor="kofi")["updated"] == 1  # import-rates
+    api.add_rate_points(database, m3, [{"t_k": 383.15, "t_text": "110 °C", "k_per_s": 300.0,
+                                        "k_text": "300 s-1"}], **who)  # fmt: skip
+    api.add_rate_points(database, 2, [{"t_k": 270.0, "k_per_s": 70.0}], replace=True, **who)
+    write_csv(rates, ["label", "T (°C)", "k (s-1)"], [["m3", 90, 61.0], ["m3", 100, 140.0]])
+    assert api.import_table(database, rates, actor="kofi", prefer="file")["updated"] == 1
+    api.edit_measurement(database, 1, {"reference": "notebook 7", "field": "500 MHz"}, **who)
+    api.edit_measurement(database, m2, {"process": "ring inversion", "nucleus": "1H"}, **who)
+    api.edit_measurement(database, m3, {"tc": None, "dnu": None}, **who)  # the row goes
+    api.edit_measurement(database, m3, {"tc": "95 °C", "dnu": "62 Hz"}, **who)  # and comes back
+    api.retract_measurement(database, m2, "wrong compound", **who)
+    api.edit_measurement(database, m2, {"status": "draft"}, reason="restored", **who)
+    api.add_alias(database, "solvent", "CDC13", "chloroform-d", **who)  # links m1
+    api.add_solvent(database, "sulfolane-d8", mp="27.5 °C", bp="285 °C", spellings=["TMS-d8"],
+                    source="invented for this test", **who)  # fmt: skip
+    report = api.check(database, actor="ingrid")  # the whole registry: records its rules
+    error = next(f for f in report.findings if f.severity == "error" and not f.accepted)
+    api.accept_finding(database, error.id, "checked the spectra", actor="curator")
+    api.add_measurement(
+        database,
+        EntryInput(
+            method="coalescence",
+            compound="AM-1",
+            solvent="TMS-d8",
+            field="400 MHz",
+            tc="-10 °C",
+            dnu="0.045 ppm",
+            dg="13.4 kcal/mol",
+        ),
+        **who,
+    )  # fmt: skip (a repeat, after the check)
+
+
+def _all_ok(report: dict[str, Any]) -> None:
+    failed = {c["check"]: c["problems"] for c in report["checks"] if not c["ok"]}
+    assert failed == {} and report["ok"]
+    assert not [c for c in report["checks"] if c.get("notes")]
+
+
+def _state_and_findings(report: dict[str, Any]) -> tuple[str, str]:
+    checks = {c["check"]: c for c in report["checks"]}
+    return checks["state"]["detail"], checks["findings"]["detail"]
+
+
+def test_a_registry_made_through_every_command_verifies(database: Database, tmp_path: Path) -> None:
+    _every_command(database, tmp_path)
+    report = api.verify(database)
+    _all_ok(report)
+    state, findings = _state_and_findings(report)
+    assert state == "6 measurements replayed from their history"
+    assert findings.startswith("statuses follow the findings; findings of ")
+    api.check(database)  # everything unchanged since: every measurement's findings compared
+    report = api.verify(database)
+    _all_ok(report)
+    assert _state_and_findings(report)[1].startswith(
+        "statuses follow the findings; findings of 6 measurements derived again"
+    )
+
+
+@pytest.mark.postgres
+def test_a_server_registry_made_through_every_command_verifies(pg_url: str, tmp_path: Path) -> None:
+    api.init_registry(pg_url)
+    database = api.open_registry(pg_url)
+    try:
+        _every_command(database, tmp_path)
+        _all_ok(api.verify(database))
+        api.check(database)
+        report = api.verify(database)
+        _all_ok(report)
+        assert "findings of 6 measurements derived again" in _state_and_findings(report)[1]
+
+        def hand(conn):  # type: ignore[no-untyped-def]
+            conn.execute("UPDATE measurement SET dg_text = '20 kcal/mol', dg_kj_mol = 83.68 "
+                         "WHERE id = 1")  # fmt: skip
+
+        database.write(hand)
+        state = {c["check"]: c for c in api.verify(database)["checks"]}["state"]
+        assert state["problems"][0].startswith(
+            "measurement 1: dg_text is '20 kcal/mol' but its history ends at '14.2 ± 0.3 kcal/mol'"
+        )
+    finally:
+        database.close()
+
+
+SEED = Path(__file__).resolve().parent.parent / "seed_demo"
+
+
+def test_the_demo_registry_verifies(cli, db_path: Path) -> None:  # type: ignore[no-untyped-def]
+    """The steps of seed_demo/run_demo.sh that write to the registry (invented demo data)."""
+    for name in ("halvorsen_barriers.xlsx", "literature_barriers.csv", "halvorsen_barriers.xlsx"):
+        assert cli("import", str(SEED / name)).exit_code in (0, 1)
+    assert cli(
+        "add", "--method", "coalescence", "--compound", "DEMO-ADD-1", "--name",
+        "N,N-dimethylacetamide", "--smiles", "CC(=O)N(C)C", "--process", "bond-rotation",
+        "--nucleus", "1H", "--solvent", "toluene-d8", "--mhz", "400", "--tc", "70 ± 1 °C",
+        "--dnu", "0.12 ppm", "--dg", "17.0 kcal/mol", "--reference", "demo: invented value",
+    ).exit_code == 0  # fmt: skip
+    errors = [f for f in _findings(cli) if f["severity"] == "error"]
+    assert errors, "the demo plants slips"
+    assert cli("accept", str(errors[0]["id"]), "--reason", "demo: confirmed").exit_code == 0
+    assert cli("--as", "demo-reviewer", "edit", "41", "--set", "status=reviewed").exit_code == 0
+    verified = cli("verify")
+    assert verified.exit_code == 0, verified.stdout
+    assert "  ok      state  (41 measurements replayed from their history)" in verified.stdout
+
+
+def _load_dump(path: Path, target: Path) -> None:
+    conn = sqlite3.connect(target)
+    try:
+        conn.executescript(path.read_text(encoding="utf-8"))
+        conn.commit()
+    finally:
+        conn.close()
+
+
+def test_an_older_registry_upgraded_shows_exactly_its_changes_by_hand(tmp_path: Path) -> None:
+    """tests/data/validation_legacy_registry.sql: schema 0003, written by an older fluxledger,
+    then changed by SQL as tests/test_validation_paths.py build_varied says (twice, tags A and
+    B). verify names those changes and nothing else; the older checker's statuses (it did not
+    keep them in step with the findings) are a note, not a problem."""
+    db = tmp_path / "legacy.sqlite"
+    _load_dump(Path(__file__).parent / "data" / "validation_legacy_registry.sql", db)
+    api.upgrade_schema(str(db), no_backup=True)
+
+    def ids(label: str) -> int:
+        return int(_scalar(db, "SELECT m.id FROM measurement m JOIN compound c ON "
+                               f"c.id = m.compound_id WHERE c.label = '{label}' ORDER BY m.id"))  # fmt: skip
+
+    def added(mid: int) -> int:
+        return _revision(db, mid, "add")
+
+    # 1.5 ppm of 13C at 400 MHz: 1.5 × 400 × 0.25145020 Hz (IUPAC Ξ(13C) = 25.145020 %,
+    # Harris et al., Pure Appl. Chem. 73, 1795 (2001))
+    dnu_13c = 1.5 * 400 * 0.25145020
+    expected = []
+    for tag in ("A", "B"):
+        gh, kcal, c13, gone = (ids(f"{tag}-{n}") for n in ("GH", "KCAL", "C13", "GONE"))
+        dg_text = _scalar(db, f"SELECT after_json FROM revision WHERE id = {added(kcal)}")
+        was = json.loads(dg_text)["dg_text"]
+        expected += [
+            f"measurement {gh}: 2 coalescence rows, but its history ends with 1 coalescence "
+            f"row (revision {added(gh)}): added without a revision",
+            f"measurement {gh}: 2 rate points, but its history ends with no rate points "
+            f"(revision {added(gh)}): added without a revision",
+            f"measurement {kcal}: dg_text is '14.76' but its history ends at {was!r} "
+            f"(revision {added(kcal)}): changed without a revision",
+            f"measurement {c13}: coalescence dnu_hz is 600 but its history ends at "
+            f"{dnu_13c:.10g} (revision {added(c13)}): changed without a revision",
+            f"measurement {gone}: status is 'retracted' but its history ends at 'draft' "
+            f"(revision {added(gone)}): changed without a revision",
+        ]
+    report = api.verify(str(db))
+    checks = {c["check"]: c for c in report["checks"]}
+    assert checks["state"]["problems"] == expected
+    assert checks["findings"]["ok"] and checks["accounted"]["ok"]
+    assert checks["findings"]["notes"][0].startswith(
+        "13 measurement(s) whose status does not follow the findings"
     )

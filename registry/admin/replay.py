@@ -152,9 +152,7 @@ def read_history(conn: Connection) -> History:
     return history
 
 
-def _fold(
-    history: History, rid: int, mid: int, action: str, before: Any, after: Any
-) -> None:
+def _fold(history: History, rid: int, mid: int, action: str, before: Any, after: Any) -> None:
     state = history.measurements.get(mid)
     if action in CREATING:
         history.measurements[mid] = _created(rid, after)
@@ -173,7 +171,7 @@ def _fold(
 
 
 def _created(rid: int, after: Any) -> Replayed:
-    if isinstance(after, dict) and _WHOLE_ENTRY <= after.keys():
+    if isinstance(after, dict) and after.keys() >= _WHOLE_ENTRY:
         return Replayed(rid, after, None)
     body = after if isinstance(after, dict) else {}
     known = {k for k in body if k in _PLAIN or k == "coalescence"}
@@ -247,16 +245,17 @@ def state_problems(conn: Connection, history: History) -> list[str]:
     if not states:
         return []
     processes = {r[0]: r[1:] for r in conn.rows("SELECT id, kind, sites, nucleus FROM process")}
+    picked = ", ".join(COALESCENCE_COLUMNS)
     coalescence = _by_measurement(
-        conn.rows(f"SELECT measurement_id, {', '.join(COALESCENCE_COLUMNS)} FROM coalescence "
-                  "ORDER BY id")  # fmt: skip
+        conn.rows(f"SELECT measurement_id, {picked} FROM coalescence ORDER BY id")
     )
     rates = _by_measurement(
         conn.rows("SELECT measurement_id, t_text, k_text FROM rate_point ORDER BY id")
     )
     problems: list[str] = []
     picked = ", ".join(COLUMNS)
-    for mid, pid, *row in conn.rows(f"SELECT id, process_id, {picked} FROM measurement ORDER BY id"):
+    sql = f"SELECT id, process_id, {picked} FROM measurement ORDER BY id"
+    for mid, pid, *row in conn.rows(sql):
         state = states.get(mid)
         if state is None:
             continue  # no revision names it: reported as not created by the history

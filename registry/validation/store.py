@@ -247,9 +247,7 @@ def record_check_run(
     after: dict[str, Any] = {"scope": scope, "counts": counts}
     if rules is not None:
         after["rules"] = rules
-    audit.record(
-        conn, entity=RUN_ENTITY, entity_id=0, action=RUN_ACTION, actor=actor, after=after
-    )
+    audit.record(conn, entity=RUN_ENTITY, entity_id=0, action=RUN_ACTION, actor=actor, after=after)
 
 
 # ---------------------------------------------------------------- status follows the findings
