@@ -71,7 +71,7 @@ def test_verify_a_clean_registry(cli, filled: Path) -> None:  # type: ignore[no-
         "  ok      schema  (at head " + migrate.head_revision() + "; tables match the models)",
         f"  ok      history  (3 revisions, hash chain, head {head})",
         "  ok      accounted  (measurements and acceptances)",
-        "  ok      state  (2 measurements replayed from their history)",
+        "  ok      state  (2 measurements replayed from the history)",
         "  ok      findings  (statuses follow the findings; stored findings not derived again: "
         "no check of the whole registry has recorded its rules yet)",
         "  ok      numbers  (every stored number finite)",

@@ -101,7 +101,7 @@ def test_a_value_rewritten_consistently_is_seen(cli, three: Path) -> None:  # ty
     assert _problems(three) == {"state": expected}
     result = cli("verify")
     assert result.exit_code == 1
-    assert "  PROBLEM state  2 problem(s)  (3 measurements replayed from their history)" in (
+    assert "  PROBLEM state  2 problem(s)  (3 measurements replayed from the history)" in (
         result.stdout
     )
     assert f"          {expected[0]}" in result.stdout.splitlines()
@@ -435,7 +435,7 @@ def test_a_registry_made_through_every_command_verifies(database: Database, tmp_
     report = api.verify(database)
     _all_ok(report)
     state, findings = _state_and_findings(report)
-    assert state == "6 measurements replayed from their history"
+    assert state == "6 measurements replayed from the history"
     assert findings.startswith("statuses follow the findings; findings of ")
     api.check(database)  # everything unchanged since: every measurement's findings compared
     report = api.verify(database)
@@ -489,7 +489,7 @@ def test_the_demo_registry_verifies(cli, db_path: Path) -> None:  # type: ignore
     assert cli("--as", "demo-reviewer", "edit", "41", "--set", "status=reviewed").exit_code == 0
     verified = cli("verify")
     assert verified.exit_code == 0, verified.stdout
-    assert "  ok      state  (41 measurements replayed from their history)" in verified.stdout
+    assert "  ok      state  (41 measurements replayed from the history)" in verified.stdout
 
 
 def _load_dump(path: Path, target: Path) -> None:

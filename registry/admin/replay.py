@@ -29,6 +29,7 @@ from __future__ import annotations
 import json
 from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field
+from functools import lru_cache
 from typing import Any
 
 from registry.admin.reread import same_value
@@ -129,36 +130,51 @@ def read_history(conn: Connection) -> History:
         "FROM revision ORDER BY id"
     )
     history.revisions = len(rows)
+    states, touched = history.measurements, history.touched
     for rid, entity, entity_id, action, actor, before_json, after_json, reason in rows:
-        after = json.loads(after_json) if after_json else None
         if entity != "measurement":
-            if entity == "validation" and action == "check" and isinstance(after, dict):
-                history.check_runs.append((rid, after))
-            elif entity in ("solvent", "vocab_alias"):
-                history.widening.append(rid)
+            _other(history, rid, entity, action, after_json)
             continue
         mid = int(entity_id)
+        if action in CREATING:
+            states[mid] = _created(rid, json.loads(after_json) if after_json else None)
+            touched[mid] = rid
+            continue
+        after = _parsed(after_json)
         if action == "accept-finding":
-            history.measurements.setdefault(mid, Replayed(None, {}, set()))
+            states.setdefault(mid, Replayed(None, {}, set()))
             if isinstance(after, dict) and after.get("finding") is not None:
                 history.acceptances[int(after["finding"])] = (rid, actor, mid, after, reason)
-        else:
-            before = json.loads(before_json) if before_json else None
-            _fold(history, rid, mid, action, before, after)
+            continue
+        state = states.get(mid)
+        if state is None:
+            state = states[mid] = Replayed(None, {}, set())
+        _fold(history, rid, mid, state, _parsed(before_json), after)
         if action not in _FINDINGS_KEPT:
-            history.touched[mid] = rid
-        if isinstance(after, dict) and "compound" in after and action not in CREATING:
-            history.widening.append(rid)  # a moved measurement leaves its old compound's group
+            touched[mid] = rid
+            if isinstance(after, dict) and "compound" in after:
+                history.widening.append(rid)  # a moved measurement leaves its compound's group
     return history
 
 
-def _fold(history: History, rid: int, mid: int, action: str, before: Any, after: Any) -> None:
-    state = history.measurements.get(mid)
-    if action in CREATING:
-        history.measurements[mid] = _created(rid, after)
-        return
-    if state is None:
-        state = history.measurements[mid] = Replayed(None, {}, set())
+@lru_cache(maxsize=4096)
+def _parsed(text: str | None) -> Any:
+    """A revision's small ``before``/``after`` (many are alike: ``{"status": "flagged"}``);
+    read only, never changed in place, so one parse serves them all."""
+    return json.loads(text) if text else None
+
+
+def _other(history: History, rid: int, entity: str, action: str, after_json: str | None) -> None:
+    """Revisions of other things that matter here: check runs, vocabulary changes."""
+    if entity == "validation" and action == "check" and after_json:
+        after = json.loads(after_json)
+        if isinstance(after, dict):
+            history.check_runs.append((rid, after))
+    elif entity in ("solvent", "vocab_alias"):
+        history.widening.append(rid)
+
+
+def _fold(history: History, rid: int, mid: int, state: Replayed, before: Any, after: Any) -> None:
     if isinstance(before, dict):
         history.problems += _before_problems(mid, rid, state, before)
     if not isinstance(after, dict):
@@ -292,6 +308,8 @@ def _column_problems(mid: int, state: Replayed, row: Sequence[Any]) -> Iterator[
 def _coalescence_problems(mid: int, state: Replayed, rows: list[tuple[Any, ...]]) -> list[str]:
     then = state.values.get("coalescence")
     want = 0 if then is None else 1
+    if want == len(rows) == 1 and rows[0] == tuple(then.get(c) for c in COALESCENCE_COLUMNS):
+        return []  # the common case, decided in one comparison
     if len(rows) != want:
         how = "added" if len(rows) > want else "removed"
         return [

@@ -51,7 +51,7 @@ def _state_check(conn: Connection, past: replay.History) -> dict[str, Any]:
     """Each measurement against the state its replayed history leaves (:mod:`.replay`)."""
     problems = past.problems + replay.state_problems(conn, past)
     replayed = sum(1 for s in past.measurements.values() if s.created is not None)
-    detail = f"{replay.plural(replayed, 'measurement')} replayed from their history"
+    detail = f"{replay.plural(replayed, 'measurement')} replayed from the history"
     summaries = sorted(mid for mid, s in past.measurements.items() if s.summary)
     notes = []
     if summaries:
