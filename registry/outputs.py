@@ -62,7 +62,10 @@ def check_target(
         raise UsageError(f"{what}: give a file name")
     path = Path(text).expanduser()
     if path.is_symlink():
-        raise UsageError(f"{what} {path}: is a symbolic link; name the file itself")
+        raise UsageError(
+            f"{what} {path}: is a symbolic link (fluxledger never writes through a link); "
+            "remove the link or choose another name"
+        )
     if path.is_dir():
         raise UsageError(f"{what} {path}: is a folder; name a file in it")
     if protect is not None:

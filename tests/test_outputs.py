@@ -100,10 +100,10 @@ def test_check_target_refuses_each_bad_place(tmp_path: Path, db_path: Path) -> N
         "  ": "out: give a file name",
         str(tmp_path): f"out {tmp_path}: is a folder; name a file in it",
         str(tmp_path / "linked.csv"): (
-            f"out {tmp_path / 'linked.csv'}: is a symbolic link; name the file itself"
+            f"out {tmp_path / 'linked.csv'}: is a symbolic link (fluxledger never writes through a link); remove the link or choose another name"
         ),
         str(tmp_path / "dangling.csv"): (
-            f"out {tmp_path / 'dangling.csv'}: is a symbolic link; name the file itself"
+            f"out {tmp_path / 'dangling.csv'}: is a symbolic link (fluxledger never writes through a link); remove the link or choose another name"
         ),
         str(db_path): f"out {db_path}: is the registry itself; choose another file",
         f"{db_path}-wal": (
@@ -278,7 +278,7 @@ def test_bad_export_paths_get_a_message_and_exit_2(cli, filled: Path, tmp_path: 
         ".": "error: export .: is a folder; name a file in it\n",
         "": "error: export: give a file name\n",
         str(tmp_path / "dangling.csv"): (
-            f"error: export {tmp_path / 'dangling.csv'}: is a symbolic link; name the file itself\n"
+            f"error: export {tmp_path / 'dangling.csv'}: is a symbolic link (fluxledger never writes through a link); remove the link or choose another name\n"
         ),
         str(tmp_path / "no" / "x.csv"): (
             f"error: export {tmp_path / 'no' / 'x.csv'}: folder {tmp_path / 'no'} does not exist\n"
@@ -405,7 +405,7 @@ def test_a_symlinked_report_page_or_folder_is_refused_never_followed(
     result = cli("report", "-o", str(site), "--no-plots")
     assert (result.exit_code, result.stderr) == (
         2,
-        f"error: report page {site / 'index.html'}: is a symbolic link; name the file itself\n",
+        f"error: report page {site / 'index.html'}: is a symbolic link (fluxledger never writes through a link); remove the link or choose another name\n",
     )
     assert victim.read_text() == "keep"
     (site / "index.html").unlink()
