@@ -65,7 +65,9 @@ def coalescence(
     dnu: str = typer.Option(
         ..., "--dnu", help="Shift difference at slow exchange: '27 Hz', or '0.045 ppm' with --mhz."
     ),
-    mhz: str = typer.Option(None, "--mhz", help="Spectrometer frequency (¹H, MHz) for Δν in ppm."),
+    mhz: str = typer.Option(
+        None, "--mhz", "--field", help="Spectrometer frequency (¹H, MHz) for Δν in ppm."
+    ),
     nucleus: str = _NUCLEUS,
     tc_err: str = typer.Option(
         None, "--tc-err", help="Uncertainty of Tc, e.g. '1 K' (default ±2 K if none is written)."
@@ -274,7 +276,10 @@ def plan(
         ..., "--dnu", help="Shift difference: '0.15 ppm' (for each --mhz) or '9 Hz' (one field)."
     ),
     mhz: list[str] = typer.Option(
-        None, "--mhz", help="Spectrometer frequency (MHz). Repeatable; default 60–800 for ppm."
+        None,
+        "--mhz",
+        "--field",
+        help="Spectrometer frequency (MHz). Repeatable; default 60–800 for ppm.",
     ),
     dg: str = _DG,
     dh: str = _DH,

@@ -67,7 +67,9 @@ def exsy(
         "row = site observed, column = site of origin). Repeatable, in --mixing order.",
     ),
     populations: str = typer.Option(
-        None, "--populations", help="Equilibrium populations, e.g. '0.7,0.3' (else column sums)."
+        None,
+        "--populations",
+        help="Equilibrium populations: '0.7,0.3', '70,30' or a ratio '7:3' (else column sums).",
     ),
     volume_err: str = typer.Option(
         None, "--volume-err", help="σ of every volume (in the volumes' units), propagated to k."

@@ -160,6 +160,18 @@ def parse_numbers(text: QuantityInput | Sequence[float], field: str) -> list[flo
     return [read_quantity(v, "dimensionless", field)[0] for v in text]
 
 
+def parse_populations(text: QuantityInput | Sequence[float]) -> list[float]:
+    """``'0.7,0.3'`` or ``'70,30'`` (checked to sum to 1 or 100 later) or a ratio ``'7:3'``
+    (any positive scale, normalised here)."""
+    if isinstance(text, str) and ":" in text:
+        nums = parse_numbers(text, "populations")
+        if all(v > 0 for v in nums):
+            total = sum(nums)
+            return [v / total for v in nums]
+        raise UnitError("populations", text, "every part of the ratio must be > 0")
+    return parse_numbers(text, "populations")
+
+
 def _as_list(value: Any) -> list[Any]:
     return [value] if isinstance(value, (str, int, float)) else list(value)
 
@@ -213,7 +225,7 @@ def calc_exsy(
     from registry.kinetics.exsy_fit import fit_exsy
 
     pairs = _read_pairs(mixing, volumes)
-    pops = None if populations is None else parse_numbers(populations, "populations")
+    pops = None if populations is None else parse_populations(populations)
     err = None
     if volume_err is not None:
         err = read_quantity(volume_err, "dimensionless", "volume_err")[0]

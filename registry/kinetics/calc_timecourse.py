@@ -121,7 +121,14 @@ def calc_timecourse(
 ) -> TimeCourseCalc:
     """Fit ee(t) or x(t) from ``file``; ``quantity`` ('ee' or 'fraction') picks the column when
     the table has both; ``x_eq`` fixes the equilibrium fraction (else it is fitted)."""
-    from registry.kinetics.series_table import TIME_NAMES, raise_problems, read_column, read_series
+    from registry.kinetics.series_table import (
+        TIME_NAMES,
+        raise_problems,
+        read_column,
+        read_series,
+        read_times,
+        require_times,
+    )
     from registry.kinetics.timecourse import fit_equilibration, fit_racemization
 
     if quantity not in (None, "ee", "fraction"):
@@ -137,9 +144,11 @@ def calc_timecourse(
     if quantity == "ee" and x_eq is not None:
         raise UsageError("x_eq belongs to a fraction time course; ee always relaxes to 0")
     problems: list[RowProblem] = []
-    secs = read_column(table, time, "time", problems)
+    secs = read_times(table, time, problems)
     ys = read_column(table, value, "fraction", problems)
+    _check_range(table, value, ys, quantity, problems)
     raise_problems(problems)
+    require_times(table, secs, 3, "a first-order fit (amplitude and k)")
     if quantity == "ee":
         res = fit_racemization(secs, ys)
         meaning = "k_enant: one molecule inverting to its enantiomer (k_rac = 2·k_enant)"
@@ -188,3 +197,19 @@ def _value_column(table: Any, quantity: str | None, file: str) -> tuple[Any, str
         file,
         f"no ee or fraction column ({table.headers_text()}); name one e.g. 'ee (%)' or 'fraction'",
     )
+
+
+def _check_range(
+    table: Any, column: Any, ys: Any, quantity: str, problems: list[RowProblem]
+) -> None:
+    """An ee outside −1…1 or a fraction outside 0…1 is a problem of its row (most often a
+    percentage under a header without '%')."""
+    import numpy as np
+
+    lo = -1.0 if quantity == "ee" else 0.0
+    hint = "" if column.unit else "; if these are percentages, write '%' in the header"
+    index = table.columns.index(column)
+    for row in np.flatnonzero((ys < lo) | (ys > 1.0)):
+        text = table.cells[row][index]
+        reason = f"outside {lo:g}…1 (as a fraction){hint}"
+        problems.append(table.problem(column, int(row), text, reason))

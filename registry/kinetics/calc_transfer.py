@@ -202,7 +202,14 @@ def _inversion(
     t: tuple[float, float | None] | None,
     kappa: float,
 ) -> InversionCalc:
-    from registry.kinetics.series_table import TIME_NAMES, raise_problems, read_column, read_series
+    from registry.kinetics.series_table import (
+        TIME_NAMES,
+        raise_problems,
+        read_column,
+        read_series,
+        read_times,
+        require_times,
+    )
     from registry.kinetics.transfer import fit_inversion_transfer
 
     table = read_series(file, sheet=sheet)
@@ -224,10 +231,11 @@ def _inversion(
             f"site, then partner); found {len(others)} intensity column(s) ({table.headers_text()})",
         )
     problems: list[RowProblem] = []
-    secs = read_column(table, time, "time", problems)
+    secs = read_times(table, time, problems)
     ma = read_column(table, others[0], "dimensionless", problems)
     mb = read_column(table, others[1], "dimensionless", problems)
     raise_problems(problems)
+    require_times(table, secs, 4, "an inversion-transfer fit (7 parameters, two signals)")
     err = (
         None
         if intensity_err is None

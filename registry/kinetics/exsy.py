@@ -112,6 +112,13 @@ def volume_matrix(volumes: ArrayLike, field: str = "volumes") -> FloatArray:
     out = np.array(rows)
     if not np.isfinite(out).all():
         raise KineticsInputError(field, "every volume must be a finite number")
+    if (out < 0).any():
+        i, j = (int(v) for v in np.argwhere(out < 0)[0])
+        raise KineticsInputError(
+            field,
+            f"volume in row {i + 1}, column {j + 1} is {out[i, j]:g}: a peak volume cannot be "
+            "negative (a cross peak lost in the noise is entered as 0)",
+        )
     diag = np.diag(out)
     if (diag <= 0).any():
         i = int(np.flatnonzero(diag <= 0)[0])
@@ -131,14 +138,31 @@ def site_names(sites: Sequence[str] | None, n: int) -> tuple[str, ...]:
     return names
 
 
+#: how far fractions may miss 1 (or percentages 100) through rounding: 0.7,0.3 or 33,33,33
+POPULATION_SUM_TOLERANCE = 0.015
+
+
 def normalised_populations(populations: ArrayLike, n: int) -> FloatArray:
-    """Populations as fractions summing to 1 (any positive scale accepted: 70,30 or 0.7,0.3)."""
+    """Populations as fractions summing to 1: fractions (0.7,0.3) or percentages (70,30).
+
+    Why the sum is checked: a list that sums to neither 1 nor 100 (0.7,0.2) is a typo or a
+    missing site more often than a ratio, and normalising it silently moves every k. A ratio
+    (7:3) is read by :func:`registry.kinetics.calc_exsy.parse_populations`.
+    """
     p = np.asarray(populations, dtype=float).ravel()
     if p.size != n:
         raise KineticsInputError("populations", f"give {n} populations, one per site; got {p.size}")
     if not (np.isfinite(p).all() and (p > 0).all()):
         raise KineticsInputError("populations", "every population must be > 0", value=p.tolist())
-    return p / p.sum()
+    total = float(p.sum())
+    if not any(abs(total / scale - 1.0) <= POPULATION_SUM_TOLERANCE for scale in (1.0, 100.0)):
+        raise KineticsInputError(
+            "populations",
+            f"the populations sum to {total:g}: give fractions summing to 1 (0.7,0.3), "
+            "percentages summing to 100 (70,30) or a ratio (7:3)",
+            value=p.tolist(),
+        )
+    return p / total
 
 
 def _m0(

@@ -147,6 +147,29 @@ def read_column(
     return out * scale
 
 
+def read_times(table: SeriesTable, column: SeriesColumn, problems: list[RowProblem]) -> FloatArray:
+    """The time column in s; a negative time is a problem of its row (times count from the
+    start of the experiment, so one below 0 is a slip in the file)."""
+    secs = read_column(table, column, "time", problems)
+    index = table.columns.index(column)
+    for row in np.flatnonzero(secs < 0):
+        text = table.cells[row][index]
+        problems.append(table.problem(column, int(row), text, "a time cannot be negative"))
+    return secs
+
+
+def require_times(table: SeriesTable, secs: FloatArray, minimum: int, what: str) -> None:
+    """Refuse a table with fewer than ``minimum`` different times, naming the file."""
+    distinct = int(np.unique(secs).size)
+    if distinct < minimum:
+        raise FileFormatError(
+            table.source,
+            f"{distinct} different time(s) in {len(secs)} data row(s): {what} needs at least "
+            f"{minimum}",
+            table.sheet,
+        )
+
+
 def raise_problems(problems: list[RowProblem]) -> None:
     """Every bad cell at once (nothing is fitted while one is wrong)."""
     if problems:
