@@ -62,7 +62,7 @@ def test_racemization_from_ee_percent(tmp_path: Path) -> None:
     assert data["ee0"] == pytest.approx(0.97, rel=1e-7)
     assert data["T_K"] == pytest.approx(333.15)
     # the barrier belongs to one molecule's k (k_enant); k_rac would lower it by RT·ln 2
-    assert data["dG_kj_mol"] == pytest.approx(eyring_dg_kj(K_RAC / 2, 333.15), rel=1e-7)
+    assert data["dg_kj_mol"] == pytest.approx(eyring_dg_kj(K_RAC / 2, 333.15), rel=1e-7)
     assert eyring_dg_kj(K_RAC / 2, 333.15) - eyring_dg_kj(K_RAC, 333.15) == pytest.approx(
         codata.R * 333.15 * math.log(2) / 1000
     )
@@ -119,6 +119,17 @@ def test_unequal_isomers_fraction(tmp_path: Path) -> None:
     assert diff == pytest.approx(codata.R * 298.15 * math.log(k_r / k_f) / 1000, rel=1e-6)
     fixed = api.calc_timecourse(str(path), x_eq="25 %")
     assert fixed.k_per_s == pytest.approx(k_f, rel=1e-7) and not fixed.equilibrium_fitted
+
+
+def test_fraction_column_may_name_its_isomer(tmp_path: Path) -> None:
+    t_h = np.array([0, 1, 2, 4, 8, 16])
+    x = 0.3 + 0.7 * np.exp(-1e-4 * t_h * 3600)  # x_eq 0.3, k_obs 1e-4 s⁻¹
+    path = write(
+        tmp_path / "eq.csv", "time (h),fraction E (%)", list(zip(t_h, 100 * x, strict=True))
+    )
+    res = api.calc_timecourse(str(path))
+    assert res.columns == ("time (h)", "fraction E (%)")
+    assert res.k_per_s == pytest.approx(0.7e-4, rel=1e-6)  # k(E→Z) = (1 − x_eq)·k_obs
 
 
 def test_kappa_enters_the_barrier(tmp_path: Path) -> None:

@@ -11,9 +11,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from typer.testing import CliRunner
-
 from scipy import constants as codata
+from typer.testing import CliRunner
 
 from registry.cli.calc import app as calc_app
 

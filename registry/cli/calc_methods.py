@@ -17,6 +17,7 @@ from registry.cli.calc_text import (
     duration_text,
     energy_text,
     figures,
+    plus_minus,
     print_lines,
     temperature_text,
 )
@@ -99,6 +100,8 @@ def exsy(
     pairs = [("mixing time(s)", taus), ("populations", f"{pops}  ({res.populations_from})")]
     if len(res.sites) == 2:
         pairs += _two_site_pairs(res)
+    elif res.t is not None:
+        pairs.append(("T (for ΔG‡)", temperature_text(res.t)))
     if res.r1_per_s is not None:
         errs = res.r1_err_per_s or (None,) * len(res.sites)
         r1 = ", ".join(
@@ -139,7 +142,7 @@ def _rate_row(r: Any) -> dict[str, str]:
         "σk (s⁻¹)": "" if r.k_err_per_s is None else figures(r.k_err_per_s, 2),
     }
     if r.dg is not None:
-        row["ΔG‡ (kJ/mol)"] = f"{r.dg.kj_mol:.2f}"
+        row["ΔG‡ (kJ/mol)"] = plus_minus(r.dg.kj_mol, r.dg.err_kj_mol, 2)
     return row
 
 

@@ -38,6 +38,8 @@ EE_NAMES = frozenset({"ee", "ees", "enantiomericexcess", "eevalue"})
 FRACTION_NAMES = frozenset(
     {"fraction", "x", "xp", "xa", "molefraction", "isomerfraction", "fractionp", "fractiona"}
 )
+#: a fraction column may name its isomer: 'fraction E (%)', 'fraction of cis', 'x(anti)'
+FRACTION_PREFIXES = ("fraction", "molefraction", "isomerfraction")
 
 ENANTIOMERIZATION = "enantiomerization"
 PER_SITE = "per-site"
@@ -99,10 +101,10 @@ class TimeCourseCalc:
             "x_eq_err": None if ee else self.equilibrium_err,
             "x_eq_fitted": None if ee else self.equilibrium_fitted,
             "T_K": None if self.t is None else self.t.k,
-            "dG_kj_mol": kj_mol(self.dg),
-            "dG_err_kj_mol": kj_mol_err(self.dg),
-            "dG_reverse_kj_mol": None if ee else kj_mol(self.dg_reverse),
-            "dG_reverse_err_kj_mol": None if ee else kj_mol_err(self.dg_reverse),
+            "dg_kj_mol": kj_mol(self.dg),
+            "dg_err_kj_mol": kj_mol_err(self.dg),
+            "dg_reverse_kj_mol": None if ee else kj_mol(self.dg_reverse),
+            "dg_reverse_err_kj_mol": None if ee else kj_mol_err(self.dg_reverse),
             "kappa": self.kappa,
             "rms_residual": self.rms_residual,
             "points": [{"t_s": t, "value": v, "fitted": f} for t, v, f in self.points],
@@ -178,7 +180,9 @@ def calc_timecourse(
 def _value_column(table: Any, quantity: str | None, file: str) -> tuple[Any, str]:
     """The ee or fraction column the table has (``quantity`` decides when it has both)."""
     ee = table.find(EE_NAMES)
-    fraction = table.find(FRACTION_NAMES)
+    fraction = table.find(FRACTION_NAMES) or next(
+        (c for c in table.columns if c.concept.startswith(FRACTION_PREFIXES)), None
+    )
     if quantity == "ee" or (quantity is None and ee is not None and fraction is None):
         if ee is None:
             raise FileFormatError(

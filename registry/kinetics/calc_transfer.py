@@ -60,8 +60,8 @@ class SaturationCalc:
             "t1_apparent_s": self.t1_apparent_s,
             "t1_intrinsic_s": self.t1_intrinsic_s,
             "T_K": None if self.t is None else self.t.k,
-            "dG_kj_mol": kj_mol(self.dg),
-            "dG_err_kj_mol": kj_mol_err(self.dg),
+            "dg_kj_mol": kj_mol(self.dg),
+            "dg_err_kj_mol": kj_mol_err(self.dg),
             "kappa": self.kappa,
             "notes": list(self.notes),
         }
@@ -120,8 +120,8 @@ class InversionCalc:
                 for p in self.points
             ],
             "T_K": None if self.t is None else self.t.k,
-            "dG_kj_mol": kj_mol(self.dg),
-            "dG_err_kj_mol": kj_mol_err(self.dg),
+            "dg_kj_mol": kj_mol(self.dg),
+            "dg_err_kj_mol": kj_mol_err(self.dg),
             "kappa": self.kappa,
             "notes": list(self.notes),
         }
