@@ -109,14 +109,14 @@ def main() -> None:
 
 
 def _exsy_data(n: int, taus: list[float]) -> tuple[list[list[list[float]]], list[float]]:
-    """Volumes of n sites (invented: populations 1..n normalised, k(i→j) 0.2–1.5 s⁻¹ obeying
-    detailed balance, R1 0.8 s⁻¹) at each mixing time, with 0.3 % noise; forward model
-    I = expm(−R·τm)·diag(M0) by scipy."""
+    """Volumes of n sites at each mixing time, invented: populations from 1 to 2 (normalised),
+    k(i→j) 0.2–1.5 s⁻¹ obeying detailed balance, R1 0.8 s⁻¹, total volume 1000, noise σ = 0.3
+    (the σ the calls are given); forward model I = expm(−R·τm)·diag(M0) by scipy."""
     import numpy as np
     from scipy.linalg import expm
 
     rng = np.random.default_rng(n)
-    p = np.arange(1, n + 1, dtype=float)
+    p = np.linspace(1.0, 2.0, n)
     p /= p.sum()
     k = np.zeros((n, n))
     for i in range(n):
@@ -127,8 +127,8 @@ def _exsy_data(n: int, taus: list[float]) -> tuple[list[list[list[float]]], list
     np.fill_diagonal(r, 0.8 + k.sum(axis=1))
     mats = []
     for tau in taus:
-        vol = expm(-r * tau) @ np.diag(100.0 * p)
-        mats.append((vol + rng.normal(0.0, 0.003 * vol.max(), vol.shape)).clip(0).tolist())
+        vol = expm(-r * tau) @ np.diag(1000.0 * p)
+        mats.append((vol + rng.normal(0.0, 0.3, vol.shape)).clip(0).tolist())
     return mats, taus
 
 
