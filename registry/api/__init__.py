@@ -20,7 +20,8 @@ Grouped by what they act on:
 * ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
   :func:`build_report`
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
-  :func:`calc_halflife`, :func:`calc_plan` (kinetics at the bench, no database)
+  :func:`calc_halflife`, :func:`calc_plan`, :func:`calc_exsy`, :func:`calc_transfer`,
+  :func:`calc_timecourse` (kinetics at the bench, no database)
 * ``files``     — :func:`import_table`, :func:`export_measurements`
 * ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
   :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
@@ -39,7 +40,16 @@ from registry.api.admin import (
     upgrade_schema,
     verify,
 )
-from registry.api.calc import calc_coalescence, calc_eyring, calc_halflife, calc_plan, calc_rate
+from registry.api.calc import (
+    calc_coalescence,
+    calc_exsy,
+    calc_eyring,
+    calc_halflife,
+    calc_plan,
+    calc_rate,
+    calc_timecourse,
+    calc_transfer,
+)
 from registry.api.checks import accept_finding, check
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.files import export_measurements, import_table
@@ -96,10 +106,13 @@ __all__ = [
     "backup",
     "build_report",
     "calc_coalescence",
+    "calc_exsy",
     "calc_eyring",
     "calc_halflife",
     "calc_plan",
     "calc_rate",
+    "calc_timecourse",
+    "calc_transfer",
     "canonical_unit",
     "check",
     "convert",
