@@ -286,3 +286,29 @@ def test_a_structure_with_dative_bonds_is_drawn() -> None:
 
     # RDKit marks each drawn bond with a class bond-N: all four bonds, the dative ones too
     assert set(re.findall(r"bond-(\d+)", svg)) == {"0", "1", "2", "3"}
+
+
+def test_one_quantity_in_different_units_across_records(database: Database, tmp_path: Path) -> None:
+    """Records gathered from two sources: ΔG‡ in kcal/mol in one, kJ/mol in the other."""
+    block = Chem.MolToMolBlock(Chem.MolFromSmiles("CC(=O)N(C)C"))
+    other = Chem.MolToMolBlock(Chem.MolFromSmiles("CC(=S)N(C)C"))
+    path = tmp_path / "mixed.sdf"
+    path.write_text(
+        _sd_record(block, {"compound": "A", "method": "computed", "ΔG‡ (kcal/mol)": "18.0"})
+        + _sd_record(other, {"compound": "B", "method": "computed", "ΔG‡ (kJ/mol)": "75.0"}),
+        encoding="utf-8",
+    )
+    api.import_table(database, str(path))
+    got = {r["compound"]: r["dg_kj_mol"] for r in api.list_measurements(database)}
+    assert got == pytest.approx({"A": 18.0 * 4.184, "B": 75.0})  # thermochemical calorie
+    # both units in one record: nothing is guessed, the second column stays an extra attribute
+    path.write_text(
+        _sd_record(
+            Chem.MolToMolBlock(Chem.MolFromSmiles("CC(=O)N(CC)CC")),
+            {"compound": "C", "method": "computed", "ΔG‡ (kcal/mol)": "18", "ΔG‡ (kJ/mol)": "80"},
+        ),
+        encoding="utf-8",
+    )
+    api.import_table(database, str(path))
+    c = next(r for r in api.list_measurements(database) if r["compound"] == "C")
+    assert c["dg_kj_mol"] == pytest.approx(18 * 4.184)

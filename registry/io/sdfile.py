@@ -48,6 +48,9 @@ def read_sd(path: Path, text: str) -> tuple[list[list[str | None]], list[str]]:
     others = [n for n in names if n not in (smiles_item, name_item)]
     named = title_names or name_item is not None
     columns = [STRUCTURE_COLUMN, *([TITLE_COLUMN] if named else []), *others]
+    merged = _same_field_items(records, others)
+    if merged:
+        columns = [c for c in columns if c not in merged or merged[c][0] == c]
     rows: list[list[str | None]] = [list(columns)]
     problems: list[str] = []
     ignored_smiles = 0
@@ -66,7 +69,7 @@ def read_sd(path: Path, text: str) -> tuple[list[list[str | None]], list[str]]:
         if not name and title_names:
             name = title
         head = [smiles or None, *([name or None] if named else [])]
-        rows.append(head + [items.get(n) for n in others])
+        rows.append(head + [_cell(items, n, merged) for n in columns[len(head) :]])
     if problems:
         shown = "\n  ".join(problems[:_SHOWN])
         more = f"\n  … and {len(problems) - _SHOWN} more" if len(problems) > _SHOWN else ""
@@ -98,6 +101,43 @@ def _structure_and_title(names: dict[str, None]) -> tuple[str | None, str | None
     smiles_item = next((n for n, f in fields.items() if f == "smiles"), None)
     name_item = next((n for n, f in fields.items() if f == "name"), None)
     return smiles_item, name_item, "compound" not in fields.values()
+
+
+def _same_field_items(
+    records: list[tuple[str, str, dict[str, str]]], names: list[str]
+) -> dict[str, tuple[str, str | None]]:
+    """Data items that give one quantity in different units (``ΔG‡ (kcal/mol)`` in some
+    records, ``ΔG‡ (kJ/mol)`` in others — records gathered from several sources do this) and
+    never both in one record: item → (the first item of its group, its unit). Their values
+    are read as one column with the unit written in each cell. Items that share a record stay
+    apart, and the importer then asks for a mapping, as for such a sheet."""
+    from registry.io.headers import guess_header
+
+    groups: dict[str, list[tuple[str, str | None]]] = {}
+    for name in names:
+        guess = guess_header(name)
+        if guess.role == "value" and guess.field is not None:
+            groups.setdefault(guess.field, []).append((name, guess.unit))
+    merged: dict[str, tuple[str, str | None]] = {}
+    for group in groups.values():
+        if len(group) < 2:
+            continue
+        if any(sum(1 for n, _ in group if items.get(n)) > 1 for _, _, items in records):
+            continue
+        merged.update({name: (group[0][0], unit) for name, unit in group})
+    return merged
+
+
+def _cell(items: dict[str, str], column: str, merged: dict[str, tuple[str, str | None]]) -> Any:
+    """A record's value for ``column``: for a merged quantity, whichever item it has, its
+    unit written after the number (a unit in the cell wins over the header's)."""
+    if column not in merged:
+        return items.get(column)
+    for name, (first, unit) in merged.items():
+        if first == column and items.get(name):
+            value = items[name]
+            return f"{value} {unit}" if unit else value
+    return None
 
 
 def _structure(block: str, source: str) -> str:
