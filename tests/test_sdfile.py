@@ -312,3 +312,22 @@ def test_one_quantity_in_different_units_across_records(database: Database, tmp_
     api.import_table(database, str(path))
     c = next(r for r in api.list_measurements(database) if r["compound"] == "C")
     assert c["dg_kj_mol"] == pytest.approx(18 * 4.184)
+
+
+def test_the_title_line_is_the_name_unless_it_is_only_the_label(
+    database: Database, tmp_path: Path
+) -> None:
+    def titled(smiles: str, title: str) -> str:
+        block = Chem.MolToMolBlock(Chem.MolFromSmiles(smiles))
+        return title + block[block.index("\n") :]
+
+    path = tmp_path / "titles.sdf"
+    path.write_text(
+        _sd_record(titled("CC(=O)N(C)C", "N,N-dimethylacetamide"), {"compound": "AM-1",
+                   "method": "computed"})
+        + _sd_record(titled("CC(=S)N(C)C", "AM-2"), {"compound": "AM-2", "method": "computed"}),
+        encoding="utf-8",
+    )  # fmt: skip
+    api.import_table(database, str(path))
+    names = {r["compound"]: r["compound_name"] for r in api.list_measurements(database)}
+    assert names == {"AM-1": "N,N-dimethylacetamide", "AM-2": None}

@@ -289,11 +289,10 @@ def _sd_text(value: Any) -> Any:
 
 
 def _title(rec: dict[str, Any]) -> str:
-    """The Molfile's name line: the compound's label and name, as the listings show them."""
+    """The Molfile's name line: the compound's name, else its label (the import reads a title
+    that is not the label as the name)."""
     c = rec["c"]
-    return (
-        " ".join(t for t in (c.get("label"), c.get("name")) if t) or f"measurement {rec['m']['id']}"
-    )
+    return c.get("name") or c.get("label") or f"measurement {rec['m']['id']}"
 
 
 def _finite(value: Any) -> Any:

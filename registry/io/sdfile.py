@@ -3,8 +3,8 @@
 An SD file (MDL/BIOVIA's open "structure-data" format) is how structure editors and other
 cheminformatics tools hand over many molecules with properties. On import each record becomes
 one row of a sheet: a ``smiles`` column from the record's Molfile
-(:func:`registry.record.chem.smiles_from_molfile`), a ``name`` column from its title line (unless
-a data item names or labels the compound), and one column per data item, so data items are mapped exactly
+(:func:`registry.record.chem.smiles_from_molfile`), a ``name`` column from its name item or else
+its title line (unless the title is only the record's label), and one column per data item, so data items are mapped exactly
 like spreadsheet headers (``dG (kJ/mol)``, ``Tc (°C)``, a mapping file). On export the same
 columns as a CSV export are written as data items beside a Molfile of the stored structure,
 so an exported file imports again as the same measurements (matched by their uid).
@@ -19,6 +19,7 @@ from typing import Any
 
 from registry.errors import FileFormatError, MolfileError
 from registry.io import workbook_xml
+from registry.io.cells import unneutralise
 from registry.outputs import write_atomically
 
 SUFFIXES = (".sdf", ".sd")
@@ -44,10 +45,9 @@ def read_sd(path: Path, text: str) -> tuple[list[list[str | None]], list[str]]:
         names.update(dict.fromkeys(items))
     if len(records) * (len(names) + 2) > workbook_xml.MAX_SHEET_CELLS:
         raise FileFormatError(str(path), f"{len(records):,} records are more than one import takes")
-    smiles_item, name_item, title_names = _structure_and_title(names)
+    smiles_item, name_item, label_item = _structure_and_title(names)
     others = [n for n in names if n not in (smiles_item, name_item)]
-    named = title_names or name_item is not None
-    columns = [STRUCTURE_COLUMN, *([TITLE_COLUMN] if named else []), *others]
+    columns = [STRUCTURE_COLUMN, TITLE_COLUMN, *others]
     merged = _same_field_items(records, others)
     if merged:
         columns = [c for c in columns if c not in merged or merged[c][0] == c]
@@ -66,9 +66,10 @@ def read_sd(path: Path, text: str) -> tuple[list[list[str | None]], list[str]]:
             else:
                 smiles = items[smiles_item]
         name = items.get(name_item) if name_item is not None else None
-        if not name and title_names:
+        label = items.get(label_item) if label_item is not None else None
+        if not name and title != (unneutralise(label) if label else None):
             name = title
-        head = [smiles or None, *([name or None] if named else [])]
+        head = [smiles or None, name or None]
         rows.append(head + [_cell(items, n, merged) for n in columns[len(head) :]])
     if problems:
         shown = "\n  ".join(problems[:_SHOWN])
@@ -90,17 +91,19 @@ def read_sd(path: Path, text: str) -> tuple[list[list[str | None]], list[str]]:
     return rows, notes
 
 
-def _structure_and_title(names: dict[str, None]) -> tuple[str | None, str | None, bool]:
-    """The data items that hold a SMILES and a compound name (if any), and whether the title
-    line names the compound: not when a data item labels the compound (an exported file
-    carries labels and names, and its title is their summary); otherwise it is the name of
-    each record that has no name item."""
+def _structure_and_title(names: dict[str, None]) -> tuple[str | None, str | None, str | None]:
+    """The data items that hold a SMILES, the compound's name and its label (each or None).
+
+    A record's title line is the compound's name when it has no name item and the title is
+    not just its label (an exported record's title is its name, else its label)."""
     from registry.io.headers import guess_header
 
     fields = {n: guess_header(n).field for n in names}
-    smiles_item = next((n for n, f in fields.items() if f == "smiles"), None)
-    name_item = next((n for n, f in fields.items() if f == "name"), None)
-    return smiles_item, name_item, "compound" not in fields.values()
+
+    def first(wanted: str) -> str | None:
+        return next((n for n, f in fields.items() if f == wanted), None)
+
+    return first("smiles"), first("name"), first("compound")
 
 
 def _same_field_items(
