@@ -22,7 +22,8 @@ Grouped by what they act on:
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
   :func:`calc_halflife`, :func:`calc_plan`, :func:`calc_exsy`, :func:`calc_transfer`,
   :func:`calc_timecourse` (kinetics at the bench, no database)
-* ``files``     — :func:`import_table`, :func:`export_measurements`
+* ``files``     — :func:`import_table`, :func:`export_measurements` (csv, xlsx, ods, SD files)
+* ``structures`` — :func:`smiles_from_molfile` (a Molfile read into the SMILES ``add`` takes)
 * ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
   :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
 * ``server``    — :func:`migrate_to`, :func:`server_search_status`, :func:`enable_server_search`
@@ -77,6 +78,7 @@ from registry.api.search import (
     remove_motif,
 )
 from registry.api.server import enable_server_search, migrate_to, server_search_status
+from registry.api.structures import smiles_from_molfile
 from registry.api.values import canonical_unit, convert, read_value, spreadsheet_safe
 from registry.api.vocabulary import (
     add_alias,
@@ -149,6 +151,7 @@ __all__ = [
     "schema_state",
     "server_search_status",
     "simulate_lineshape",
+    "smiles_from_molfile",
     "spreadsheet_safe",
     "summarize_change",
     "take_warnings",
