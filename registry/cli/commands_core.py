@@ -58,6 +58,17 @@ def info(
         typer.echo(f"{name:<{width}}{value}")
 
 
+def _smiles_or_molfile(smiles: str | None, molfile: str | None) -> str | None:
+    """The structure ``add`` was given: a SMILES, or the SMILES a Molfile stands for."""
+    from registry import api
+
+    if molfile is None:
+        return smiles
+    if smiles is not None:
+        raise UsageError("give the structure once: --smiles or --molfile, not both")
+    return api.smiles_from_molfile(molfile)
+
+
 def add(
     ctx: typer.Context,
     method: str = typer.Option(
@@ -112,10 +123,7 @@ def add(
             raise UsageError(f"--rate {text!r}: write 'T, k', e.g. '298 K, 12.5 s-1'")
         t_text, k_text = (part.strip() for part in text.split(",", 1))
         rates.append((t_text, k_text))
-    if molfile is not None:
-        if smiles is not None:
-            raise UsageError("give the structure once: --smiles or --molfile, not both")
-        smiles = api.smiles_from_molfile(molfile)
+    smiles = _smiles_or_molfile(smiles, molfile)
     entry = dict(
         method=method, smiles=smiles, compound=compound, name=name, process=process, sites=sites,
         nucleus=nucleus, solvent=solvent, field=field, dg=dg, dg_t=dg_t, dh=dh, ds=ds, ea=ea,
