@@ -77,7 +77,7 @@ def test_bad_options(cli) -> None:  # type: ignore[no-untyped-def]
     assert result.exit_code == 2
     assert result.stderr.startswith("error: --severity 'fatal': use one of error, warning, note")
     result = cli("check", "--tolerance", "1 Hz")
-    assert result.exit_code == 1 and result.stderr.startswith("error: tolerance: cannot read")
+    assert result.exit_code == 2 and result.stderr.startswith("error: tolerance: cannot read")
 
 
 def test_tolerance_option(cli) -> None:  # type: ignore[no-untyped-def]
@@ -141,5 +141,5 @@ def test_a_check_with_another_tolerance_is_a_view_that_changes_nothing(cli) -> N
     assert after["findings"][0]["id"] == fid
     assert after["findings"][0]["accepted_by"] is not None  # the acceptance survived both
     assert json.loads(before)["status"] == after["status"]
-    assert cli("check", "--tolerance", "1e308 kcal/mol").exit_code == 1  # refused, not stored
+    assert cli("check", "--tolerance", "1e308 kcal/mol").exit_code == 2  # refused, not stored
     assert json.loads(cli("show", "1", "--json").stdout)["findings"] == after["findings"]

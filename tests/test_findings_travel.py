@@ -314,7 +314,7 @@ def test_eyring_and_coalescence_plots_say_a_measurement_is_flagged(filled, tmp_p
 
 def test_paper_tables_leave_flagged_values_out_or_footnote_them(filled, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
     database, _ = filled
-    from registry.reports.tables import export_table
+    from registry.reports.table_file import export_table
 
     plain = export_table(database, tmp_path / "t.md", uncertainty="pm")
     assert (plain["measurements"], plain["flagged_left_out"], plain["flagged_included"]) == (

@@ -8,6 +8,8 @@ from pathlib import Path
 from typing import Any
 
 import pytest
+from hypothesis import assume, given, settings
+from hypothesis import strategies as st
 from openpyxl import load_workbook
 from test_io_import import write_csv, write_xlsx
 
@@ -179,3 +181,42 @@ def test_demo_findings_fall_on_the_planted_slips_only(database: Database) -> Non
             flagged.setdefault(label, set()).add(f["rule_id"])
     assert set(flagged) == {"HG-07", "HG-15", "HG-21", "LIT-05", "LIT-09"}
     assert all("coalescence-barrier" in rules for rules in flagged.values())
+
+
+#: texts with the pieces a workbook escape has to get right, among any other characters
+_TRICKY = st.lists(
+    st.sampled_from(["_x0041_", "_x005F_", "_x", "x0001_", "_", "\x01", "\x1f", "\r", "\r\n",
+                     "\n", "\t", " ", "\ufffe", "=1+1", "é"])
+    | st.text(alphabet=st.characters(blacklist_categories=("Cs",)), max_size=5),
+    max_size=8,
+).map("".join)  # fmt: skip
+
+
+@settings(max_examples=200, deadline=None)
+@given(text=_TRICKY)
+def test_any_text_goes_through_a_workbook_unchanged(text: str) -> None:
+    """The workbook format's own escapes (ECMA-376 ST_Xstring, ``_xHHHH_``): whatever a text
+    holds — control characters, a carriage return, a literal ``_x0041_``, a formula guarded by
+    its apostrophe — a reader that honours them (calamine, which the importer uses; Excel) gives
+    back exactly the text.
+    (A cell of nothing but blanks reads as empty, as every reader has it; the importer reads
+    it as empty anyway.)"""
+    import io
+
+    import python_calamine
+    from openpyxl import Workbook
+
+    from registry.io.cells import neutralise, unneutralise
+    from registry.io.export import workbook_text
+
+    assume(not text or not set(text) <= set(" \t\n"))
+    book = Workbook(write_only=True)
+    sheet = book.create_sheet("s")
+    sheet.append(["head", workbook_text(neutralise(text))])  # as the export writes it
+    buffer = io.BytesIO()
+    book.save(buffer)
+    buffer.seek(0)
+    read = python_calamine.CalamineWorkbook.from_filelike(buffer).get_sheet_by_name("s")
+    cells = read.to_python()[0]
+    back = unneutralise(cells[1] if len(cells) > 1 else "")  # as the importer reads it
+    assert back == text.replace("\ufffe", "\ufffd")

@@ -155,7 +155,7 @@ def test_eyring_output_is_checked_before_any_work(database, tmp_path: Path) -> N
     with pytest.raises(UsageError, match=r"x\.jpg: write a \.png or \.svg file"):
         api.plot_eyring(database, measurement_id=mid, out=tmp_path / "x.jpg")
     missing = tmp_path / "no-such-folder" / "x.png"
-    with pytest.raises(UsageError, match=r"the folder .*no-such-folder does not exist"):
+    with pytest.raises(UsageError, match=r"folder .*no-such-folder does not exist"):
         api.plot_eyring(database, measurement_id=mid, out=missing)
     # the output is checked first: a bad suffix wins over a measurement that does not exist
     with pytest.raises(UsageError, match=r"write a \.png or \.svg"):

@@ -15,7 +15,7 @@ from registry import api
 from registry.errors import NotFoundError
 from registry.record.entry import EntryInput
 from registry.reports import gather
-from registry.reports.tables import export_table
+from registry.reports.table_file import export_table
 
 pytest_plugins = ("conftest_pg",)
 pytestmark = pytest.mark.postgres

@@ -208,7 +208,7 @@ def test_export_command_writes_paper_tables(cli, tmp_path) -> None:  # type: ign
 def test_export_table_files(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
     from registry import api
     from registry.record.entry import EntryInput
-    from registry.reports.tables import export_table
+    from registry.reports.table_file import export_table
 
     api.add_measurement(
         database,
@@ -231,6 +231,7 @@ def test_export_table_files(database, tmp_path) -> None:  # type: ignore[no-unty
         "uncertainty": "paren",
         "flagged_included": 0,
         "flagged_left_out": 0,
+        "notes": [],
     }
     assert r"DEMO-T3 & bond-rotation & $18.1(2)$\textsuperscript{a} & $343.15$ \\" in (
         tmp_path / "t.tex"
@@ -256,7 +257,7 @@ def test_no_uncertainty_note_without_uncertainties() -> None:
 def test_export_table_takes_the_listing_filters(database, tmp_path) -> None:  # type: ignore[no-untyped-def]
     from registry import api
     from registry.record.entry import EntryInput
-    from registry.reports.tables import export_table
+    from registry.reports.table_file import export_table
 
     def add(label: str, smiles: str, dg: str) -> int:
         return api.add_measurement(
@@ -281,7 +282,7 @@ def test_export_table_takes_the_listing_filters(database, tmp_path) -> None:  # 
     before = out.read_text(encoding="utf-8")
     with pytest.raises(UsageError, match=r"uncertainty 'sd': use paren"):
         export_table(database, out, uncertainty="sd")
-    with pytest.raises(UsageError, match=r"the folder .* does not exist"):
+    with pytest.raises(UsageError, match=r"folder .* does not exist"):
         export_table(database, tmp_path / "missing" / "t.md")
     with pytest.raises(UnitError, match=r"^barrier_min: cannot read 'lots'"):
         export_table(database, out, barrier_min="lots")

@@ -6,11 +6,17 @@ backup never block writers). A backup is written to a temporary file, checked, a
 renamed into place, so a half-written backup never carries the final name. A restore copies a
 verified backup *into* the registry through the same API, inside one SQLite transaction: other
 processes that have the registry open wait for it and then see the restored content, never a mix.
+
+The backup's target is checked like every output (:func:`registry.outputs.check_target`: never
+the registry or the files SQLite keeps beside it, a folder, a symlink or a missing folder) and
+written through :func:`registry.outputs.write_file`; a full disk is said to be full, and no
+partial copy is left behind.
 """
 
 from __future__ import annotations
 
 import contextlib
+import errno
 import os
 import sqlite3
 import time
@@ -20,6 +26,7 @@ from pathlib import Path
 from typing import Any
 
 from registry.errors import DatabaseError, UsageError
+from registry.outputs import check_target, write_file
 from registry.storage.database import (
     BUSY_TIMEOUT_MS,
     Database,
@@ -94,32 +101,31 @@ def _temporary(path: Path) -> Iterator[Path]:
 
 
 def backup_target(dest: str | Path, registry_path: Path, label: str = "backup") -> Path:
-    """Where a backup goes: ``dest`` itself, or a time-stamped file when ``dest`` is a folder."""
+    """Where a backup goes: ``dest`` itself, or a time-stamped file when ``dest`` is a folder
+    (absolute; a symlinked file is not followed: :func:`backup` refuses it)."""
     target = Path(dest).expanduser()
     if target.is_dir():
         target = target / f"{registry_path.stem}.{label}-{_stamp()}.sqlite"
-    return target.resolve()
+    return Path(os.path.abspath(target))
 
 
 def backup(database: Database, dest: str | Path, *, overwrite: bool = False) -> dict[str, Any]:
     """Copy the registry to ``dest`` (a file, or a folder for a time-stamped name) while in use."""
     path = sqlite_file(database, "backup")
-    target = backup_target(dest, path)
-    if target == path.resolve():
-        raise UsageError("the backup must go to another file than the registry itself")
-    if not target.parent.is_dir():
-        raise UsageError(f"folder {target.parent} does not exist")
-    if target.exists() and not overwrite:
-        raise UsageError(f"{target} exists; choose another name, or allow replacing it (overwrite)")
+    if not str(dest).strip():
+        raise UsageError("backup: give a file or folder name")
+    target = check_target(
+        backup_target(dest, path), what="backup", protect=path, overwrite=overwrite,
+        database_output=True,
+    )  # fmt: skip
     started = time.perf_counter()
     source = _connect(path)
+    copied: list[int] = []
     try:
-        with _temporary(target) as tmp:
-            pages = _copy_snapshot(source, tmp)
-            os.replace(tmp, target)
+        write_file(target, lambda tmp: copied.append(_copy_into(source, tmp)))
     finally:
         source.close()
-    _fsync_dir(target.parent)
+    pages = copied[0]
     counts = _counts(target)
     return {
         "backup": str(target),
@@ -128,6 +134,30 @@ def backup(database: Database, dest: str | Path, *, overwrite: bool = False) -> 
         "seconds": round(time.perf_counter() - started, 3),
         **counts,
     }
+
+
+#: SQLite's result codes for the situations a file system causes, as the OS errors they are
+_SQLITE_AS_OS = {
+    sqlite3.SQLITE_FULL: errno.ENOSPC,
+    sqlite3.SQLITE_IOERR: errno.EIO,
+    sqlite3.SQLITE_READONLY: errno.EROFS,
+    sqlite3.SQLITE_CANTOPEN: errno.EACCES,
+}
+
+
+def _copy_into(source: sqlite3.Connection, tmp: Path) -> int:
+    """:func:`_copy_snapshot` for a backup: a full disk (SQLite's "database or disk is full")
+    becomes the OS error it is, so the message says so; SQLite's side files go with the copy."""
+    try:
+        return _copy_snapshot(source, tmp)
+    except sqlite3.Error as exc:
+        code = _SQLITE_AS_OS.get(getattr(exc, "sqlite_errorcode", -1) & 0xFF)
+        if code is None:
+            raise DatabaseError(f"the backup could not be written: {exc}") from exc
+        raise OSError(code, str(exc)) from exc
+    finally:
+        for side in ("-journal", "-wal", "-shm"):
+            Path(f"{tmp}{side}").unlink(missing_ok=True)
 
 
 def _fsync_dir(folder: Path) -> None:

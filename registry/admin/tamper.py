@@ -9,23 +9,26 @@ So ``verify`` also checks that
   of them, shows there;
 * every measurement was created by a revision, and every measurement a revision names exists
   (an inserted or deleted row shows);
-* every acceptance of a finding was recorded (``accepted_by`` set by hand shows);
+* every acceptance of a finding was recorded, as it is stored (``accepted_by`` set by hand
+  shows; :mod:`registry.admin.derived`);
 * every stored number is finite (infinity written behind fluxledger's back shows).
+
+What each measurement holds is held against its replayed history in :mod:`registry.admin.replay`,
+and the findings and statuses against the rules in :mod:`registry.admin.derived`.
 """
 
 from __future__ import annotations
 
-import json
 import math
 import re
 from typing import Any
 
+from registry.admin.derived import acceptance_problems
+from registry.admin.replay import History
 from registry.errors import UsageError
 from registry.record import fields
 from registry.storage.connection import Connection
 
-#: the actions that create a measurement (its first revision)
-CREATING = ("add", "import")
 _ANCHOR = re.compile(r"^\s*(\d+)\s*:\s*([0-9a-fA-F]{8,64})\s*$")
 
 
@@ -53,46 +56,17 @@ def anchor_problems(conn: Connection, kept: str) -> list[str]:
     return []
 
 
-def unaccounted(conn: Connection) -> list[str]:
-    """Rows whose state the history does not account for."""
+def unaccounted(conn: Connection, history: History) -> list[str]:
+    """Rows whose existence (or acceptance) the history does not account for."""
     problems: list[str] = []
-    created = set(
-        conn.column(
-            "SELECT DISTINCT entity_id FROM revision WHERE entity = 'measurement' "
-            "AND action IN ('add', 'import')"
-        )
-    )
-    mentioned = set(
-        conn.column("SELECT DISTINCT entity_id FROM revision WHERE entity = 'measurement'")
-    )
+    created = {mid for mid, state in history.measurements.items() if state.created is not None}
     stored = set(conn.column("SELECT id FROM measurement"))
     for mid in sorted(stored - created):
         problems.append(f"measurement {mid} has no revision that created it (inserted by hand?)")
-    for mid in sorted(mentioned - stored):
+    for mid in sorted(set(history.measurements) - stored):
         problems.append(f"measurement {mid} is in the history but not in the registry (deleted?)")
-    problems += _acceptances(conn)
+    problems += acceptance_problems(conn, history)
     return problems
-
-
-def _acceptances(conn: Connection) -> list[str]:
-    accepted = conn.rows(
-        "SELECT id, measurement_id, accepted_by FROM validation_finding "
-        "WHERE accepted_by IS NOT NULL"
-    )
-    if not accepted:
-        return []
-    recorded: set[tuple[int, str]] = set()
-    for actor, after in conn.rows(
-        "SELECT actor, after_json FROM revision WHERE action = 'accept-finding'"
-    ):
-        body = json.loads(after) if after else {}
-        if isinstance(body, dict) and body.get("finding") is not None:
-            recorded.add((int(body["finding"]), actor))
-    return [
-        f"finding {fid} of measurement {mid} is accepted by {who!r} without a recorded acceptance"
-        for fid, mid, who in accepted
-        if (fid, who) not in recorded
-    ]
 
 
 #: the float columns of each table that hold measured or derived numbers

@@ -7,7 +7,7 @@ import math
 from pathlib import Path
 from typing import Any
 
-from registry.admin import tamper
+from registry.admin import derived, replay, tamper
 from registry.admin.reread import reread_value, same_value, shift_mhz
 from registry.errors import UnitError
 from registry.record import fields
@@ -32,14 +32,42 @@ def verify_file(
         database.close()
 
 
-def _check(name: str, problems: list[str], detail: str = "") -> dict[str, Any]:
-    return {
+def _check(
+    name: str, problems: list[str], detail: str = "", notes: list[str] | None = None
+) -> dict[str, Any]:
+    """One check's result; ``notes`` say what it could not account for without blaming it."""
+    result = {
         "check": name,
         "ok": not problems,
         "problem_count": len(problems),
         "problems": problems[:MAX_LISTED],
         "detail": detail,
     }
+    if notes:
+        result["notes"] = notes
+    return result
+
+
+def _state_check(conn: Connection, past: replay.History) -> dict[str, Any]:
+    """Each measurement against the state its replayed history leaves (:mod:`.replay`)."""
+    problems = past.problems + replay.state_problems(conn, past)
+    replayed = sum(1 for s in past.measurements.values() if s.created is not None)
+    detail = f"{replay.plural(replayed, 'measurement')} replayed from the history"
+    summaries = sorted(mid for mid, s in past.measurements.items() if s.summary)
+    notes = []
+    if summaries:
+        notes.append(
+            f"{len(summaries)} measurement(s) created by a revision that holds a summary, not "
+            f"the whole entry (the first: measurement {summaries[0]}): only the fields their "
+            "history names are compared"
+        )
+    return _check("state", problems, detail, notes)
+
+
+def _findings_check(conn: Connection, past: replay.History) -> dict[str, Any]:
+    """Acceptances, statuses and stored findings against what can be derived (:mod:`.derived`)."""
+    found = derived.findings_check(conn, past)
+    return _check("findings", found.problems, "; ".join(found.detail), found.notes)
 
 
 def verify(
@@ -50,8 +78,11 @@ def verify(
     integrity (SQLite ``PRAGMA integrity_check``), foreign keys (``PRAGMA foreign_key_check``),
     schema (at the migration head, tables as the models say), history (the revision hash chain
     is intact and, given the ``anchor`` a user kept, still reaches it), accounted (the history
-    accounts for every measurement and acceptance), numbers (every stored number is finite)
-    and values (each ``*_text`` read again gives the stored canonical float).
+    accounts for every measurement and acceptance), state (each measurement holds what its
+    replayed history leaves: :mod:`registry.admin.replay`), findings (statuses follow the
+    findings, and the stored findings are the rules' where nothing changed since the last
+    check: :mod:`registry.admin.derived`), numbers (every stored number is finite) and values
+    (each ``*_text`` read again gives the stored canonical float).
     """
     checks: list[dict[str, Any]] = []
     if database.is_sqlite:
@@ -80,7 +111,12 @@ def verify(
             chain += tamper.anchor_problems(conn, anchor)
             detail += f", reaches the kept anchor {anchor}"
         checks.append(_check("history", chain, detail))
-        checks.append(_check("accounted", tamper.unaccounted(conn), "measurements and acceptances"))
+        past = replay.read_history(conn)
+        checks.append(
+            _check("accounted", tamper.unaccounted(conn, past), "measurements and acceptances")
+        )
+        checks.append(_state_check(conn, past))
+        checks.append(_findings_check(conn, past))
         checks.append(_check("numbers", tamper.non_finite(conn), "every stored number finite"))
     problems, count = value_problems(database)
     checks.append(_check("values", problems, f"{count} reported values read again"))

@@ -7,7 +7,7 @@ from collections.abc import Sequence
 from typing import TYPE_CHECKING
 
 from registry.api.registry import actor_name
-from registry.errors import UsageError
+from registry.errors import UnitError, UsageError
 from registry.record.ids import as_id, as_ids
 from registry.storage.database import Database
 
@@ -38,7 +38,10 @@ def check(
     config = CheckConfig()
     if tolerance is not None:
         if isinstance(tolerance, str):
-            value = parse_value(tolerance, "energy", field="tolerance").value
+            try:
+                value = parse_value(tolerance, "energy", field="tolerance").value
+            except UnitError as exc:  # a setting, not data: a usage error
+                raise UsageError(str(exc)) from exc
         else:
             value = float(tolerance)
         if not (value > 0 and math.isfinite(value) and value < 1000):

@@ -9,7 +9,7 @@ in any usual notation (``'15.2 ± 0.2 kcal/mol'``, ``'25 °C'``); only texts nee
 registry, so a plot of stored data in kJ/mol never builds it.
 
 Nothing here writes to the registry. Tables for papers are written by
-:func:`registry.reports.tables.export_table` (through ``export_measurements``).
+:func:`registry.reports.table_file.export_table` (through ``export_measurements``).
 
 A flagged measurement (an error finding nobody accepted) is marked wherever it is drawn: its
 Eyring plot and Tc points say so, and the overview leaves its ΔG‡ out unless
@@ -109,7 +109,7 @@ def plot_eyring(
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
-    canvas.check_output(out)
+    canvas.check_output(out, protect=database.path if database else None)
     series, source = _rate_series(database, measurement_id, points, file, sheet)
     from registry.kinetics import fit_eyring
     from registry.kinetics.constants import STANDARD_TEMPERATURE_K
@@ -267,7 +267,7 @@ def plot_coalescence(
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
-    canvas.check_output(out)
+    canvas.check_output(out, protect=database.path if database else None)
     lo = _number(min_field, "field", "min_field", default_unit="MHz")[0]
     hi = _number(max_field, "field", "max_field", default_unit="MHz")[0]
     if not 0 < lo < hi:
@@ -410,22 +410,18 @@ def _dnu_ppm(dnu: float | str, dnu_field: float | str | None) -> float:
 @dataclass(frozen=True)
 class OverviewPlot:
     """What :func:`plot_overview` drew: the grouping and each group's size, range (kJ/mol) and
-    flagged values drawn; ``left_out_flagged`` flagged values were not drawn."""
+    flagged values drawn; ``left_out_flagged`` flagged values were not drawn, nor
+    ``left_out_not_finite`` stored values that are not finite (inf or nan)."""
 
     file: str
     grouped_by: str
     groups: tuple[dict[str, Any], ...]
     include_flagged: bool = False
     left_out_flagged: int = 0
+    left_out_not_finite: int = 0
 
     def as_dict(self) -> dict[str, Any]:
-        return {
-            "file": self.file,
-            "grouped_by": self.grouped_by,
-            "groups": list(self.groups),
-            "include_flagged": self.include_flagged,
-            "left_out_flagged": self.left_out_flagged,
-        }
+        return {**_as_dict(self), "groups": list(self.groups)}
 
 
 def plot_overview(
@@ -448,7 +444,7 @@ def plot_overview(
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
-    canvas.check_output(out)
+    canvas.check_output(out, protect=database.path)
     if by not in ("auto", "kind", "motif"):
         raise UsageError(f"by {by!r}: use kind, motif or auto")
     groups = None
@@ -472,7 +468,9 @@ def plot_overview(
          "flagged": sum(groups.flagged[g])}
         for g, v in groups.values.items()
     )  # fmt: skip
-    return OverviewPlot(str(written), grouping, rows, include_flagged, groups.left_out)
+    return OverviewPlot(
+        str(written), grouping, rows, include_flagged, groups.left_out, groups.not_finite
+    )
 
 
 # ---------------------------------------------------------------- the HTML report

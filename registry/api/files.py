@@ -11,7 +11,7 @@ from registry.errors import UsageError
 from registry.storage.database import Database
 
 #: the file formats :func:`export_measurements` writes: data files, and tables for papers
-DATA_FORMATS = ("csv", "xlsx", "json")
+DATA_FORMATS = ("csv", "xlsx", "json", "sdf")
 TABLE_FORMATS = ("latex", "tex", "markdown", "md")
 
 
@@ -82,28 +82,36 @@ def export_measurements(
     """Write the measurements the filters select (the keywords of :func:`list_measurements`)
     to ``out``.
 
-    ``format`` is csv, xlsx or json (reported texts, normalized values, findings, rate points;
+    ``format`` is csv, xlsx, json or sdf (an SD file: each measurement's structure as a
+    Molfile, its columns as data items; reported texts, normalized values, findings, rate points;
     text cells a spreadsheet would evaluate get a leading apostrophe, which the importer strips
     again), or latex/markdown for a table in a paper (ΔG‡, ΔH‡, ΔS‡ in ``energy_unit``,
     uncertainties as ``62.3(4)`` with ``uncertainty='paren'`` or ``62.3 ± 0.4`` with
     ``'pm'``). Without ``format`` the file's suffix decides (.csv, .xlsx, .json, .tex, .md).
     A table leaves flagged measurements (an error finding nobody accepted) out unless
     ``include_flagged``, and footnotes them when included; a data file holds every selected
-    row (``flagged=False`` selects the clean ones). Returns what was written: file, format
-    and counts.
+    row (``flagged=False`` selects the clean ones). Returns what was written: file, format,
+    counts and ``notes`` (stored values the file could not show as they are).
+
+    ``out`` is checked first (:func:`registry.outputs.check_target`): the registry, a SQLite
+    file, a folder, a symlink or a missing folder is refused before anything is read, and the
+    file is written whole or not at all.
     """
     from registry.api.records import list_measurements
+    from registry.outputs import check_target
     from registry.search.filters import listing_filters
 
-    listing_filters(**filters)  # read and check the filters before anything is written
-    kind = (format or Path(out).suffix.lstrip(".")).lower()
+    listing_filters(**filters)  # read and check the filters and the file before any work
+    target = check_target(out, what="export", protect=database.path)
+    kind = (format or target.suffix.lstrip(".")).lower()
     if kind not in DATA_FORMATS + TABLE_FORMATS:
         raise UsageError(
-            f"format must be one of csv, xlsx, json, latex, markdown (got {kind or 'none'!r}); "
-            "name it, or end the file name in .csv, .xlsx, .json, .tex or .md"
+            "format must be one of csv, xlsx, json, sdf, latex, markdown "
+            f"(got {kind or 'none'!r}); "
+            "name it, or end the file name in .csv, .xlsx, .json, .sdf, .tex or .md"
         )
     if kind in TABLE_FORMATS:
-        from registry.reports.tables import export_table
+        from registry.reports.table_file import export_table
 
         return export_table(
             database, out, format, energy_unit=energy_unit, uncertainty=uncertainty, ids=ids,

@@ -58,6 +58,17 @@ def info(
         typer.echo(f"{name:<{width}}{value}")
 
 
+def _smiles_or_molfile(smiles: str | None, molfile: str | None) -> str | None:
+    """The structure ``add`` was given: a SMILES, or the SMILES a Molfile stands for."""
+    from registry import api
+
+    if molfile is None:
+        return smiles
+    if smiles is not None:
+        raise UsageError("give the structure once: --smiles or --molfile, not both")
+    return api.smiles_from_molfile(molfile)
+
+
 def add(
     ctx: typer.Context,
     method: str = typer.Option(
@@ -65,6 +76,9 @@ def add(
         help="coalescence, lineshape, 2d-exchange, saturation-transfer, equilibration, computed",
     ),
     smiles: str = typer.Option(None, help="Structure as SMILES."),
+    molfile: str = typer.Option(
+        None, help="Structure as a Molfile (V2000/V3000, e.g. from a structure editor)."
+    ),
     compound: str = typer.Option(None, help="The group's compound label."),
     name: str = typer.Option(None, help="Compound name."),
     process: str = typer.Option(None, help="Process kind (bond-rotation, ring-inversion …)."),
@@ -138,6 +152,7 @@ def add(
             raise UsageError(f"--rate {text!r}: write 'T, k', e.g. '298 K, 12.5 s-1'")
         t_text, k_text = (part.strip() for part in text.split(",", 1))
         rates.append((t_text, k_text))
+    smiles = _smiles_or_molfile(smiles, molfile)
     entry = dict(
         method=method, smiles=smiles, compound=compound, name=name, process=process, sites=sites,
         nucleus=nucleus, solvent=solvent, field=field, dg=dg, dg_t=dg_t, dh=dh, ds=ds, ea=ea,

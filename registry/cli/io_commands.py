@@ -118,7 +118,11 @@ def import_cmd(
         print_json(summary)
     else:
         typer.echo(render_summary(summary))
+    if summary.get("rejects_error"):  # the import was written; its side file was not
+        typer.echo(f"error: {summary['rejects_error']}", err=True)
     if (dry_run and summary["problems"] and not skip_bad) or summary["held"]:
+        raise typer.Exit(1)
+    if summary.get("rejects_error"):
         raise typer.Exit(1)
 
 
@@ -287,7 +291,7 @@ def export_cmd(
     fmt: str = typer.Option(
         None,
         "--format",
-        help="csv, xlsx, json, latex or markdown (default: from the file name; .tex, .md).",
+        help="csv, xlsx, json, sdf, latex or markdown (default: from the file name; .tex, .md).",
     ),
     compound: str = typer.Option(None, help="Compound label or name contains this text."),
     method: str = typer.Option(None, help="Only this method."),
@@ -347,3 +351,5 @@ def export_cmd(
             f"exported {result['measurements']} measurement(s), {result['rate_points']} rate "
             f"point(s), {result['findings']} finding(s) to {result['file']} ({result['format']})"
         )
+    for note in [] if as_json else result.get("notes", []):
+        typer.echo(f"note: {note}")

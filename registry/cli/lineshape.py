@@ -53,7 +53,7 @@ def simulate(
     k: str = typer.Option(
         ..., "--k", help="Rate constant for leaving site 1, s⁻¹ unless written: '120', '1.2 kHz'."
     ),
-    out: Path = typer.Option(..., "--out", "-o", help="CSV file to write (shift, intensity)."),
+    out: str = typer.Option(..., "--out", "-o", help="CSV file to write (shift, intensity)."),
     populations: str = _POPS,
     scheme: str = _SCHEME,
     width: str = typer.Option(

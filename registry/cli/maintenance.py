@@ -89,7 +89,8 @@ def verify(
     ),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
-    """Check the registry: integrity, foreign keys, schema, history chain, values vs their texts.
+    """Check the registry: integrity, foreign keys, schema, history chain, each measurement and
+    finding against what its history and the rules account for, values vs their texts.
 
     Exit status 1 when any check finds a problem.
     """
@@ -115,6 +116,8 @@ def _verify_text(report: dict[str, Any]) -> str:
             lines.append(f"          {problem}")
         if c["problem_count"] > len(c["problems"]):
             lines.append(f"          … and {c['problem_count'] - len(c['problems'])} more")
+        for note in c.get("notes", ()):
+            lines.append(f"          note: {note}")
     lines.append("all checks passed" if report["ok"] else "the registry has problems (exit 1)")
     return "\n".join(lines)
 

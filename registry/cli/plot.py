@@ -38,7 +38,7 @@ def eyring(
         help="A measurement id, or a CSV/TSV/spreadsheet with T and k columns "
         "(optional σk; units in the headers or in the cells). Or give --point instead.",
     ),
-    out: Path = _OUT,
+    out: str = _OUT,
     point: list[str] = typer.Option(
         None,
         "--point",
@@ -86,7 +86,7 @@ def eyring(
 @app.command("coalescence")
 def coalescence(
     ctx: typer.Context,
-    out: Path = _OUT,
+    out: str = _OUT,
     barrier: str = typer.Option(
         None, "--barrier", "--dg", help="ΔG‡ with unit, e.g. '15.2 ± 0.2 kcal/mol'."
     ),
@@ -154,7 +154,7 @@ def coalescence(
 @app.command("overview")
 def overview(
     ctx: typer.Context,
-    out: Path = _OUT,
+    out: str = _OUT,
     by: str = typer.Option(
         "auto",
         "--by",
@@ -196,4 +196,9 @@ def overview(
         typer.echo(
             f"note: {drawn.left_out_flagged} flagged value(s) left out (an error finding is "
             "open); --include-flagged draws them as crosses"
+        )
+    if drawn.left_out_not_finite:
+        typer.echo(
+            f"note: {drawn.left_out_not_finite} stored ΔG‡ value(s) are not finite (inf or nan) "
+            "and were left out; 'fluxledger verify' lists them"
         )

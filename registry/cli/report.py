@@ -5,8 +5,6 @@ Tables for papers are written by ``fluxledger export -o FILE.tex|FILE.md``.
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import typer
 
 from registry.cli import flags
@@ -20,7 +18,7 @@ def register(app: typer.Typer) -> None:
 
 def report(
     ctx: typer.Context,
-    out: Path = typer.Option(..., "-o", "--out", help="Folder to write (created if missing)."),
+    out: str = typer.Option(..., "-o", "--out", help="Folder to write (created if missing)."),
     title: str = typer.Option("Barrier registry", "--title", help="Title of the pages."),
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Show retracted measurements too."

@@ -12,23 +12,32 @@ them again. Rate points travel in one ``rates`` cell
 
 Text cells that a spreadsheet would evaluate (leading ``=``, ``+``, ``-``, ``@``) get a
 leading apostrophe (:func:`registry.io.cells.neutralise`); numeric columns stay numbers.
+
+The file is checked before anything is read and written whole or not at all
+(:mod:`registry.outputs`). Odd stored values never stop an export: a number that is not finite
+(put into the registry behind fluxledger's back) is written as ``inf``/``nan`` in csv and xlsx
+and as null in JSON (which has no such numbers), a text's control characters are kept — in
+xlsx in the workbook format's own escape ``_x0001_``, which Excel and the importer read back
+as the character — and the result's ``notes`` say where they were.
 """
 
 from __future__ import annotations
 
 import csv
 import json
+import re
 from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
 from registry.errors import UsageError
-from registry.io.cells import RATE_COLUMNS, format_rate_list, neutralise
+from registry.io.cells import RATE_COLUMNS, format_rate_list, keep_apostrophes, neutralise
 from registry.io.identity import UID_HEADER
+from registry.outputs import OddValues, check_target, not_finite, write_atomically, write_file
 from registry.record import fields
 from registry.storage.database import Database
 
-FORMATS = ("csv", "xlsx", "json")
+FORMATS = ("csv", "xlsx", "json", "sdf")
 
 #: which part of a gathered record each table's columns are in
 _PART = {"measurement": "m", "compound": "c", "process": "p", "coalescence": "co"}
@@ -222,38 +231,81 @@ def _safe(value: Any) -> Any:
 def write_export(
     database: Database, ids: Sequence[int], output: str | Path, fmt: str | None = None
 ) -> dict[str, Any]:
-    """Write the measurements ``ids`` as csv, xlsx or json (``fmt``, else the file's suffix)."""
-    path = Path(output)
+    """Write the measurements ``ids`` as csv, xlsx, json or sdf (``fmt``, else the file's
+    suffix)."""
+    path = check_target(output, what="export", protect=database.path)
     fmt = (fmt or path.suffix.lstrip(".")).lower()
     if fmt not in FORMATS:
         raise UsageError(f"format must be one of {', '.join(FORMATS)} (got {fmt!r})")
-    if not path.parent.exists():
-        raise UsageError(f"folder {path.parent} does not exist")
     records = gather(database, ids)
+    rows = [flat_row(r) for r in records]
+    odd = OddValues()
+    for rec, row in zip(records, rows, strict=True):
+        odd.scan(row, f"measurement {rec['m']['id']}")
     if fmt == "json":
-        path.write_text(
-            json.dumps([json_record(r) for r in records], ensure_ascii=False, indent=2, default=str)
-            + "\n",
-            encoding="utf-8",
-        )
+        text = json.dumps([_finite(json_record(r)) for r in records], ensure_ascii=False,
+                          indent=2, default=str, allow_nan=False)  # fmt: skip
+        with write_atomically(path) as fh:
+            fh.write(text + "\n")
+    elif fmt == "csv":
+        _write_csv(path, rows, _columns(rows))
+    elif fmt == "sdf":
+        from registry.io.sdfile import write_sd
+
+        titles = [(r["c"].get("smiles_input"), _title(r)) for r in records]
+        safe = [{c: _sd_text(v) for c, v in row.items()} for row in rows]
+        write_sd(path, titles, safe, _columns(rows))
     else:
-        rows = [flat_row(r) for r in records]
-        columns = _columns(rows)
-        if fmt == "csv":
-            _write_csv(path, rows, columns)
-        else:
-            _write_xlsx(path, rows, columns)
+        write_file(path, lambda tmp: _write_xlsx(tmp, rows, _columns(rows)))
     return {
         "file": str(path),
         "format": fmt,
         "measurements": len(records),
         "rate_points": sum(len(r["rates"]) for r in records),
         "findings": sum(len(r["findings"]) for r in records),
+        "notes": odd.notes(numbers=_ODD_NUMBERS[fmt], texts=_ODD_TEXTS[fmt]),
     }
 
 
+#: what each format does with a stored number that is not finite, and with control characters
+_ODD_NUMBERS = {
+    "csv": "written as inf or nan",
+    "xlsx": "written as the text inf or nan",
+    "json": "written as null (JSON has no inf or nan; the reported texts are kept)",
+    "sdf": "written as inf or nan",
+}
+_ODD_TEXTS = {
+    "csv": "kept as they are",
+    "xlsx": "kept, written as _x0001_ and the like, which Excel and 'fluxledger import' read "
+    "back as the character",
+    "json": "kept (written as \\u0001 and the like)",
+    "sdf": "kept as they are",
+}
+
+
+def _sd_text(value: Any) -> Any:
+    """An SD data item is no spreadsheet cell: texts as they are, apostrophes kept on import."""
+    return keep_apostrophes(value) if isinstance(value, str) else value
+
+
+def _title(rec: dict[str, Any]) -> str:
+    """The Molfile's name line: the compound's name, else its label (the import reads a title
+    that is not the label as the name)."""
+    c = rec["c"]
+    return c.get("name") or c.get("label") or f"measurement {rec['m']['id']}"
+
+
+def _finite(value: Any) -> Any:
+    """``value`` with every non-finite float replaced by None (JSON has no inf or nan)."""
+    if isinstance(value, dict):
+        return {k: _finite(v) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_finite(v) for v in value]
+    return None if not_finite(value) else value
+
+
 def _write_csv(path: Path, rows: Sequence[dict[str, Any]], columns: list[str]) -> None:
-    with path.open("w", newline="", encoding="utf-8") as fh:
+    with write_atomically(path, newline="") as fh:
         writer = csv.writer(fh)
         writer.writerow(columns)
         for row in rows:
@@ -268,12 +320,46 @@ def _csv_cell(value: Any) -> Any:
     return value
 
 
+#: what the workbook format cannot hold as is: characters XML 1.0 forbids, a carriage return
+#: (an XML reader turns it into a line feed) and a literal ``_xHHHH_`` (a reader would take it
+#: for an escape)
+_OOXML_ESCAPE = re.compile(r"_(?=x[0-9A-Fa-f]{4}_)|[\x00-\x08\x0b-\x1f\ufffe\uffff]")
+
+
+def _ooxml_escape(match: re.Match[str]) -> str:
+    char = match.group()
+    if char == "_":  # starts a literal '_x0041_' (overlapping ones too): escaped itself
+        return "_x005F_"
+    if char in "\ufffe\uffff":  # noncharacters no workbook holds, escaped or not
+        return "\ufffd"
+    return f"_x{ord(char):04X}_"
+
+
+def workbook_text(text: str) -> str:
+    """``text`` as a workbook cell holds it: escaped the format's own way (ECMA-376
+    ST_Xstring: ``\\x01`` → ``_x0001_``, a literal ``_x0041_`` → ``_x005F_x0041_``), which
+    Excel and the importer read back as the original text. The noncharacters U+FFFE and
+    U+FFFF, which no workbook can hold, become U+FFFD."""
+    return _OOXML_ESCAPE.sub(_ooxml_escape, text)
+
+
+def _xlsx_cell(value: Any) -> Any:
+    """A cell a workbook can hold: a guarded text escaped (:func:`workbook_text`), a
+    non-finite number as its text."""
+    value = _safe(value)
+    if isinstance(value, str):
+        return workbook_text(value)
+    if not_finite(value):
+        return repr(value)
+    return value
+
+
 def _write_xlsx(path: Path, rows: Sequence[dict[str, Any]], columns: list[str]) -> None:
     from openpyxl import Workbook
 
     book = Workbook(write_only=True)
     sheet = book.create_sheet("entries")
-    sheet.append(columns)
+    sheet.append([workbook_text(c) for c in columns])
     for row in rows:
-        sheet.append([_safe(row.get(c)) for c in columns])
+        sheet.append([_xlsx_cell(row.get(c)) for c in columns])
     book.save(path)

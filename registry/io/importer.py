@@ -15,7 +15,8 @@ The orchestrator over the stages (STYLE.md §11), each in its own module:
 touched. Without ``skip_bad`` any problem raises :class:`~registry.errors.ImportRowError` and
 nothing is written; any failure or Ctrl-C before the commit leaves the registry as it was. With
 ``skip_bad`` the rows with problems are left out (and written to a side CSV with the reason)
-and the rest is imported, still in one transaction.
+and the rest is imported, still in one transaction; the side CSV's path is checked
+(:func:`registry.outputs.check_target`) before anything is read, so a bad one costs nothing.
 
 A re-import never silently undoes work done in the registry (see :mod:`.merge`): a measurement
 whose fields were changed both in the file and in the registry is held back — nothing written
@@ -32,6 +33,7 @@ from registry.errors import ImportRowError, UsageError
 from registry.io import commit, prepare, rates, report, upsert
 from registry.io.merge import PREFER, MergeOptions
 from registry.io.results import Progress
+from registry.outputs import OutputError, check_target
 from registry.storage.connection import Connection
 from registry.storage.database import Database, current_user
 
@@ -56,6 +58,12 @@ def import_table(
         raise UsageError(f"prefer must be one of {', '.join(PREFER)} (got {prefer!r})")
     merge = MergeOptions(prefer=prefer, empty_clears=empty_clears)
     path = Path(path)
+    target = None
+    if skip_bad and (rejects or not dry_run):  # before any work, and before the transaction
+        target = check_target(
+            rejects or report.default_rejects_path(path), what="rejects", protect=database.path,
+            inputs=[path, *([mapping] if mapping else [])],
+        )  # fmt: skip
     who = actor or current_user()
     prep = prepare.prepare(
         database,
@@ -87,10 +95,12 @@ def import_table(
     outcome = database.write(work)
     report.written_report(summary, prep, outcome)
     all_problems = problems + outcome.late_problems
-    if all_problems:
-        target = Path(rejects) if rejects else report.default_rejects_path(path)
-        report.write_rejects(target, prep.read, all_problems)
-        summary["rejects_file"] = str(target)
+    if all_problems and target is not None:
+        try:
+            report.write_rejects(target, prep.read, all_problems)
+            summary["rejects_file"] = str(target)
+        except OutputError as exc:  # the import stands: say so, with the rows listed anyway
+            summary["rejects_error"] = f"{exc}; the import itself was written"
     touched = outcome.added_ids + outcome.updated_ids
     summary["validation"] = report.validation_report(database, touched, who)
     return summary

@@ -19,6 +19,7 @@ from registry.io.commit import Outcome, rows_read
 from registry.io.merge import CONFLICT, KEEP, UPDATE, WHY, FieldMerge
 from registry.io.results import Prepared, ReadResult, problem_record
 from registry.io.upsert import UpsertPlan
+from registry.outputs import write_atomically
 from registry.record.chem import Structure
 from registry.record.entry import NormalizedEntry
 from registry.storage.database import Database
@@ -181,7 +182,8 @@ def default_rejects_path(path: Path) -> Path:
 
 
 def write_rejects(target: Path, read: ReadResult, problems: Sequence[RowProblem]) -> None:
-    """The rejected rows with sheet, row, column and reason, plus their original cells."""
+    """The rejected rows with sheet, row, column and reason, plus their original cells; written
+    whole or not at all (``target`` was checked before the import)."""
     by_row: dict[tuple[str | None, int], list[RowProblem]] = defaultdict(list)
     for p in problems:
         by_row[(p.sheet, p.row or 0)].append(p)
@@ -190,7 +192,7 @@ def write_rejects(target: Path, read: ReadResult, problems: Sequence[RowProblem]
     headers: list[str] = []
     for plan in read.plans:
         headers.extend(c.header for c in plan.columns if c.header not in headers)
-    with target.open("w", newline="", encoding="utf-8") as fh:
+    with write_atomically(target, newline="") as fh:
         writer = csv.writer(fh)
         writer.writerow(["sheet", "row", "column", "text", "reason", *headers])
         for (sheet, row), probs in sorted(

@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from registry.errors import UsageError
+from registry.outputs import check_target, write_file
 from registry.reports import theme
 from registry.reports.numbers import format_uncertain
 
@@ -64,23 +65,21 @@ def new_figure(
     return fig
 
 
-def check_output(path: str | Path) -> str:
-    """The format of an output file, once its suffix and folder are known to be fine: checked
-    before any work so a bad name costs nothing."""
-    out = Path(path)
-    fmt = figure_format(out)
-    if not out.parent.exists():
-        raise UsageError(f"{out}: the folder {out.parent} does not exist")
-    return fmt
+def check_output(path: str | Path, *, protect: Path | None = None) -> str:
+    """The format of an output file, once the file may be written
+    (:func:`registry.outputs.check_target`: never the registry ``protect``, a SQLite file, a
+    folder or a symlink) and its suffix is known: checked before any work, so a bad name costs
+    nothing."""
+    return figure_format(check_target(path, what="plot", protect=protect))
 
 
-def save_figure(fig: Figure, path: str | Path) -> Path:
-    """Write ``fig`` as PNG (150 dpi) or SVG; the folder must exist."""
+def save_figure(fig: Figure, path: str | Path, *, protect: Path | None = None) -> Path:
+    """Write ``fig`` as PNG (150 dpi) or SVG, whole or not at all; the folder must exist."""
     out = Path(path)
-    fmt = check_output(out)
+    fmt = check_output(out, protect=protect)
     metadata = {"Date": None} if fmt == "svg" else {"Software": "fluxledger"}
     with styled():
-        fig.savefig(out, format=fmt, dpi=150, metadata=metadata)
+        write_file(out, lambda tmp: fig.savefig(tmp, format=fmt, dpi=150, metadata=metadata))
     return out
 
 

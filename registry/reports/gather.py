@@ -14,12 +14,14 @@ nothing beyond the storage layer.
 
 from __future__ import annotations
 
+import math
 from collections import defaultdict
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
-from registry.errors import NotFoundError, UsageError
+from registry.errors import DatabaseError, NotFoundError, UsageError
+from registry.outputs import not_finite
 from registry.record.fields import LISTING_COLUMNS
 from registry.storage.connection import Connection
 from registry.storage.database import Database
@@ -59,6 +61,18 @@ def series_from_points(
     return RateSeries(np.array(t_k, dtype=float), np.array(k_per_s, dtype=float), err, title)
 
 
+def not_finite_points(points: Sequence[Sequence[Any]]) -> str | None:
+    """What is wrong when rate points (T, k, σk …) hold a number that is not finite — inf or
+    nan, written into the registry behind fluxledger's back — else None."""
+    odd = [str(i) for i, p in enumerate(points, start=1) if any(map(not_finite, p))]
+    if not odd:
+        return None
+    return (
+        f"rate point(s) {', '.join(odd)} (by temperature) hold a number that is not finite (inf "
+        "or nan); no Eyring fit is drawn. 'fluxledger verify' lists such values"
+    )
+
+
 def rate_series(database: Database, measurement_id: int) -> RateSeries:
     """The stored rate points of a measurement, ordered by temperature."""
     of = {"id": measurement_id}
@@ -81,6 +95,9 @@ def rate_series(database: Database, measurement_id: int) -> RateSeries:
             f"measurement {measurement_id} has {len(points)} rate point(s); an Eyring plot needs"
             " at least 2"
         )
+    odd = not_finite_points(points)
+    if odd:
+        raise DatabaseError(f"measurement {measurement_id}: {odd}")
     series = series_from_points(
         [p[0] for p in points],
         [p[1] for p in points],
@@ -172,39 +189,46 @@ class BarrierGroups:
     """ΔG‡ values (kJ/mol) per group, largest group first, with which of them are flagged.
 
     Flagged values are in ``values`` only when they were asked for; ``left_out`` counts the
-    flagged values that were not.
+    flagged values that were not, ``not_finite`` the stored values that are not numbers one
+    can draw (inf or nan, written behind fluxledger's back), which are never drawn.
     """
 
     values: dict[str, list[float]]
     flagged: dict[str, list[bool]]
     left_out: int = 0
+    not_finite: int = 0
 
 
-def _groups(pairs: Mapping[str, list[tuple[float, bool]]], left_out: int) -> BarrierGroups:
+def _groups(
+    pairs: Mapping[str, list[tuple[float, bool]]], left_out: int, not_finite: int
+) -> BarrierGroups:
     """Largest group first, then by name (a stable order: the same data give the same figure)."""
     kept = sorted(((k, v) for k, v in pairs.items() if v), key=lambda kv: (-len(kv[1]), kv[0]))
     return BarrierGroups(
         {k: [value for value, _ in v] for k, v in kept},
         {k: [flag for _, flag in v] for k, v in kept},
         left_out,
+        not_finite,
     )
 
 
 def _barriers(
     conn: Connection, key: str, include_retracted: bool, include_flagged: bool
-) -> tuple[list[tuple[Any, float, bool]], int]:
-    """(key, ΔG‡, flagged) in id order, and how many flagged values were left out."""
+) -> tuple[list[tuple[Any, float, bool]], int, int]:
+    """(key, ΔG‡, flagged) in id order, how many flagged values were left out, and how many
+    values that are not finite."""
     sql = (
         f"SELECT {key}, m.dg_kj_mol, {LISTING_COLUMNS['flagged']} FROM measurement m "
         "LEFT OUTER JOIN process p ON p.id = m.process_id WHERE m.dg_kj_mol IS NOT NULL"
     )
     if not include_retracted:
         sql += " AND m.status != 'retracted'"
-    rows = [(k, float(dg), bool(flag)) for k, dg, flag in conn.rows(sql + " ORDER BY m.id")]
+    found = [(k, float(dg), bool(flag)) for k, dg, flag in conn.rows(sql + " ORDER BY m.id")]
+    rows = [r for r in found if math.isfinite(r[1])]
     if include_flagged:
-        return rows, 0
+        return rows, 0, len(found) - len(rows)
     kept = [r for r in rows if not r[2]]
-    return kept, len(rows) - len(kept)
+    return kept, len(rows) - len(kept), len(found) - len(rows)
 
 
 def barriers_by_kind(
@@ -214,10 +238,10 @@ def barriers_by_kind(
     values only with ``include_flagged``."""
     groups: dict[str, list[tuple[float, bool]]] = defaultdict(list)
     with database.read() as conn:
-        rows, left_out = _barriers(conn, "p.kind", include_retracted, include_flagged)
+        rows, left_out, odd = _barriers(conn, "p.kind", include_retracted, include_flagged)
     for kind, dg, flag in rows:
         groups[kind or NO_KIND].append((dg, flag))
-    return _groups(groups, left_out)
+    return _groups(groups, left_out, odd)
 
 
 def barriers_by_motif(
@@ -239,7 +263,7 @@ def barriers_by_motif(
     matches: dict[str, list[int]] = matcher(database)  # {motif name: [compound ids]}
     by_compound: dict[int, list[tuple[float, bool]]] = defaultdict(list)
     with database.read() as conn:
-        rows, left_out = _barriers(conn, "m.compound_id", include_retracted, include_flagged)
+        rows, left_out, odd = _barriers(conn, "m.compound_id", include_retracted, include_flagged)
     for cid, dg, flag in rows:
         by_compound[int(cid)].append((dg, flag))
     groups = {
@@ -250,7 +274,7 @@ def barriers_by_motif(
     groups[NO_MOTIF] = [
         p for cid, pairs in by_compound.items() if cid not in matched for p in pairs
     ]
-    return _groups(groups, left_out)
+    return _groups(groups, left_out, odd)
 
 
 # --- rows of measurements: tables and the HTML report ----------------------------------------

@@ -18,13 +18,15 @@ from collections.abc import Mapping, Sequence
 from html import escape
 from typing import Any
 
+from registry.outputs import not_finite, visible_controls
 from registry.reports import assets
 from registry.reports.numbers import format_uncertain
 
 
 def escaped(value: Any) -> str:
-    """Escaped text for HTML; None shows as nothing."""
-    return "" if value is None else escape(str(value), quote=True)
+    """Escaped text for HTML; None shows as nothing, a control character as its picture
+    (``\\x01`` → ``␁``: HTML cannot show it, and a reader should see that it is there)."""
+    return "" if value is None else escape(visible_controls(str(value)), quote=True)
 
 
 def _num(value: Any, digits: int = 1) -> str:
@@ -426,16 +428,16 @@ def render_compound(
 def barrier_range(measurements: Sequence[Mapping[str, Any]], include_flagged: bool) -> str:
     """The compound's ΔG‡ range as a sentence: flagged values left out (and said so) unless
     ``include_flagged``."""
-    values = [
-        float(m["dg_kj_mol"])
-        for m in measurements
-        if m.get("dg_kj_mol") is not None and (include_flagged or not m.get("flagged"))
-    ]
-    flagged = sum(1 for m in measurements if m.get("flagged") and m.get("dg_kj_mol") is not None)
+    shown = [m for m in measurements if m.get("dg_kj_mol") is not None]
+    odd = sum(1 for m in shown if not_finite(m["dg_kj_mol"]))  # inf/nan stored behind our back
+    shown = [m for m in shown if not not_finite(m["dg_kj_mol"])]
+    values = [float(m["dg_kj_mol"]) for m in shown if include_flagged or not m.get("flagged")]
+    flagged = sum(1 for m in shown if m.get("flagged"))
     if include_flagged:
         note = f" ({flagged} of them flagged)" if flagged else ""
     else:
         note = f"; {flagged} flagged value(s) left out" if flagged else ""
+    note += f"; {odd} value(s) that are not finite left out" if odd else ""
     if not values:
         text = "No ΔG‡ to sum up" + note + "."
     elif len(values) == 1:

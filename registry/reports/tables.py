@@ -20,10 +20,10 @@ import math
 import re
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
-from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from registry.errors import UsageError
+from registry.outputs import without_controls
 from registry.reports.numbers import format_uncertain
 
 if TYPE_CHECKING:
@@ -102,10 +102,10 @@ def table_rows(
     """The rows a table needs: the measurements a listing with these filters selects (the
     keywords of :func:`registry.search.filters.listing_filters`), with ΔH‡/ΔS‡ errors.
     Flagged measurements only with ``include_flagged`` (or ``flagged=True``)."""
-    return _selected(database, ids, limit, include_flagged, filters)[0]
+    return selected_rows(database, ids, limit, include_flagged, filters)[0]
 
 
-def _selected(
+def selected_rows(
     database: Database,
     ids: Sequence[int] | None,
     limit: int | None,
@@ -266,8 +266,9 @@ _MD_SPECIAL = re.compile(r"([\\`*_\[\]<>|#])")
 
 def _one_line(text: str) -> str:
     """User text on one line: every character Python counts as a line break (CR, form feed,
-    U+2028 …) becomes a space, so a label cannot end a table row early."""
-    return " ".join(text.splitlines()) if text else text
+    U+2028 …) becomes a space, so a label cannot end a table row early; other control
+    characters are dropped (LaTeX stops at them)."""
+    return without_controls(" ".join(text.splitlines())) if text else text
 
 
 def _md_escape(text: str) -> str:
@@ -437,62 +438,3 @@ def render_latex(
         lines += [f"  {note}\\\\" for note in notes[:-1]] + [f"  {notes[-1]}"]
     lines.append(r"\end{table}")
     return "\n".join(lines) + "\n"
-
-
-# --- files -----------------------------------------------------------------------------------
-
-#: table formats by name and by file suffix
-TABLE_FORMATS = {"latex": "latex", "tex": "latex", "markdown": "markdown", "md": "markdown"}
-
-
-def export_table(
-    database: Database,
-    output: str | Path,
-    fmt: str | None = None,
-    *,
-    energy_unit: str = "kJ/mol",
-    uncertainty: str = "paren",
-    caption: str | None = None,
-    include_flagged: bool = False,
-    **filters: Any,
-) -> dict[str, Any]:
-    """Write the measurements ``filters`` select as a LaTeX or Markdown table file.
-
-    ``fmt`` is latex/tex or markdown/md, or None to take it from the suffix (.tex, .md);
-    ``filters`` are the keywords of :func:`table_rows` (those of a measurement listing:
-    compound, method, solvent, process, status, barrier, barrier_min, barrier_max,
-    include_retracted, flagged, ids, limit). Flagged measurements are left out (the result
-    counts them in ``flagged_left_out``) unless ``include_flagged``; included, their ΔG‡
-    carries a † footnote. Everything is checked before the file is written, and the text is
-    written in one go, so a bad call leaves no half-written table behind.
-    """
-    path = Path(output)
-    energy_unit = energy_unit_name(energy_unit)
-    name = TABLE_FORMATS.get((fmt or path.suffix.lstrip(".")).lower())
-    if name is None:
-        raise UsageError(f"{path}: a table is written as latex (.tex) or markdown (.md)")
-    if uncertainty not in ("paren", "pm"):
-        raise UsageError(f"uncertainty {uncertainty!r}: use paren (62.3(4)) or pm (62.3 ± 0.4)")
-    if not path.parent.exists():
-        raise UsageError(f"{path}: the folder {path.parent} does not exist")
-    ids, limit = filters.pop("ids", None), filters.pop("limit", None)
-    rows, left_out = _selected(database, ids, limit, include_flagged, filters)
-    if not rows and left_out:
-        raise UsageError(
-            f"no measurements to put in a table: the {left_out} selected are flagged (an error"
-            " finding is open); include flagged values to show them with a footnote"
-        )
-    if name == "latex":
-        text = render_latex(rows, energy_unit=energy_unit, uncertainty=uncertainty, caption=caption)
-    else:
-        text = render_markdown(rows, energy_unit=energy_unit, uncertainty=uncertainty)
-    path.write_text(text, encoding="utf-8")
-    return {
-        "file": str(path),
-        "format": name,
-        "measurements": len(rows),
-        "energy_unit": energy_unit,
-        "uncertainty": uncertainty,
-        "flagged_included": sum(1 for r in rows if r.get("flagged")),
-        "flagged_left_out": left_out,
-    }

@@ -169,7 +169,8 @@ def check_measurements(
         else:
             stored = [f if f.new else _as_new(f) for f in stored]
         if id_list is None:  # a partial run does not move "since the last run" for the rest
-            record_check_run(conn, who, id_list, _counts(stored))
+            own = {r.id: r.version for r in RULES} if cfg == CheckConfig() else None
+            record_check_run(conn, who, id_list, _counts(stored), own)
         return stored, added, removed, changes
 
     stored, added, removed, changes = database.write(work)

@@ -232,18 +232,22 @@ def last_run(conn: Connection) -> datetime | None:
 
 
 def record_check_run(
-    conn: Connection, actor: str, ids: Sequence[int] | None, counts: dict[str, int]
+    conn: Connection,
+    actor: str,
+    ids: Sequence[int] | None,
+    counts: dict[str, int],
+    rules: dict[str, int] | None = None,
 ) -> None:
-    """One history entry per check run: who ran it, on what, and what it found."""
+    """One history entry per check run: who ran it, on what, and what it found.
+
+    ``rules`` (rule id → version) is given for a run with the registry's own settings: from it
+    ``verify`` knows which rules the stored findings come from, and derives them again.
+    """
     scope = "all" if ids is None else (list(ids) if len(ids) <= 20 else f"{len(ids)} measurements")
-    audit.record(
-        conn,
-        entity=RUN_ENTITY,
-        entity_id=0,
-        action=RUN_ACTION,
-        actor=actor,
-        after={"scope": scope, "counts": counts},
-    )
+    after: dict[str, Any] = {"scope": scope, "counts": counts}
+    if rules is not None:
+        after["rules"] = rules
+    audit.record(conn, entity=RUN_ENTITY, entity_id=0, action=RUN_ACTION, actor=actor, after=after)
 
 
 # ---------------------------------------------------------------- status follows the findings

@@ -1,0 +1,84 @@
+"""A table for a paper written to a file: LaTeX (.tex) or Markdown (.md).
+
+The rendering is :mod:`.tables`; here the file is checked before any work
+(:func:`registry.outputs.check_target`: never the registry, a SQLite file, a folder or a
+symlink) and written whole or not at all, and the result says which stored values the table
+could not show (numbers that are not finite, control characters in texts).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from registry.errors import UsageError
+from registry.outputs import OddValues, check_target, write_atomically
+from registry.reports.tables import energy_unit_name, render_latex, render_markdown, selected_rows
+
+if TYPE_CHECKING:
+    from registry.storage.database import Database
+
+#: table formats by name and by file suffix
+TABLE_FORMATS = {"latex": "latex", "tex": "latex", "markdown": "markdown", "md": "markdown"}
+
+
+def export_table(
+    database: Database,
+    output: str | Path,
+    fmt: str | None = None,
+    *,
+    energy_unit: str = "kJ/mol",
+    uncertainty: str = "paren",
+    caption: str | None = None,
+    include_flagged: bool = False,
+    **filters: Any,
+) -> dict[str, Any]:
+    """Write the measurements ``filters`` select as a LaTeX or Markdown table file.
+
+    ``fmt`` is latex/tex or markdown/md, or None to take it from the suffix (.tex, .md);
+    ``filters`` are the keywords of :func:`.tables.table_rows` (those of a measurement listing:
+    compound, method, solvent, process, status, barrier, barrier_min, barrier_max,
+    include_retracted, flagged, ids, limit). Flagged measurements are left out (the result
+    counts them in ``flagged_left_out``) unless ``include_flagged``; included, their ΔG‡
+    carries a † footnote. The file is checked first (:func:`registry.outputs.check_target`)
+    and written whole or not at all; ``notes`` say which stored values were left out (numbers
+    that are not finite, control characters in texts).
+    """
+    path = check_target(output, what="table", protect=database.path)
+    energy_unit = energy_unit_name(energy_unit)
+    name = TABLE_FORMATS.get((fmt or path.suffix.lstrip(".")).lower())
+    if name is None:
+        raise UsageError(f"{path}: a table is written as latex (.tex) or markdown (.md)")
+    if uncertainty not in ("paren", "pm"):
+        raise UsageError(f"uncertainty {uncertainty!r}: use paren (62.3(4)) or pm (62.3 ± 0.4)")
+    ids, limit = filters.pop("ids", None), filters.pop("limit", None)
+    rows, left_out = selected_rows(database, ids, limit, include_flagged, filters)
+    if not rows and left_out:
+        raise UsageError(
+            f"no measurements to put in a table: the {left_out} selected are flagged (an error"
+            " finding is open); include flagged values to show them with a footnote"
+        )
+    if name == "latex":
+        text = render_latex(rows, energy_unit=energy_unit, uncertainty=uncertainty, caption=caption)
+    else:
+        text = render_markdown(rows, energy_unit=energy_unit, uncertainty=uncertainty)
+    with write_atomically(path) as fh:
+        fh.write(text)
+    odd = OddValues()
+    for r in rows:
+        odd.scan({k: r.get(k) for k in _SHOWN}, f"measurement {r['id']}")
+    return {
+        "file": str(path),
+        "format": name,
+        "measurements": len(rows),
+        "energy_unit": energy_unit,
+        "uncertainty": uncertainty,
+        "flagged_included": sum(1 for r in rows if r.get("flagged")),
+        "flagged_left_out": left_out,
+        "notes": odd.notes(numbers="left empty", texts="the control characters dropped"),
+    }
+
+
+#: the row keys a table shows
+_SHOWN = ("compound", "process", "reference", "method", "solvent", "dg_kj_mol", "dg_err_kj_mol",
+          "dg_t_k", "dh_kj_mol", "dh_err_kj_mol", "ds_j_mol_k", "ds_err_j_mol_k")  # fmt: skip
