@@ -309,6 +309,11 @@ def plan(
     if as_json:
         print_json(res.to_dict())
         return
+    show_plan(res)
+
+
+def show_plan(res: Any) -> None:
+    """A coalescence plan as text (``calc plan`` and ``estimate`` print it alike)."""
     rows = [
         {
             "field (MHz)": "" if f.field_mhz is None else f"{f.field_mhz:g}",
