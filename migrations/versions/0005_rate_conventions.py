@@ -2,7 +2,7 @@
 
 Revision ID: 0005
 Revises: 0004
-Create Date: 2026-12-06 10:00:00
+Create Date: 2026-12-05 02:00:00
 
 * ``measurement`` gains what a barrier's rate constant is (see
   ``registry.record.conventions``): ``k_convention`` (per-site, exchange, observed,
