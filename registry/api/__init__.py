@@ -24,6 +24,7 @@ Grouped by what they act on:
   :func:`calc_timecourse` (kinetics at the bench, no database)
 * ``files``     — :func:`import_table`, :func:`export_measurements` (csv, xlsx, ods, SD files)
 * ``structures`` — :func:`smiles_from_molfile` (a Molfile read into the SMILES ``add`` takes)
+* ``comparison`` — :func:`compare_computed` (computed barriers against measured ones)
 * ``estimate``  — :func:`estimate_barrier` (a barrier from the nearest measured compounds, and a plan)
 * ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
   :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
@@ -53,6 +54,7 @@ from registry.api.calc import (
     calc_transfer,
 )
 from registry.api.checks import accept_finding, check
+from registry.api.comparison import Comparison, compare_computed
 from registry.api.estimate import BarrierEstimate, estimate_barrier
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.files import export_measurements, import_table
@@ -98,6 +100,7 @@ from registry.storage.database import Database, take_warnings
 __all__ = [
     "TABLE_COLUMNS",
     "BarrierEstimate",
+    "Comparison",
     "Database",
     "accept_finding",
     "actor_name",
@@ -120,6 +123,7 @@ __all__ = [
     "calc_transfer",
     "canonical_unit",
     "check",
+    "compare_computed",
     "convert",
     "deferred_checks",
     "edit_measurement",

@@ -34,3 +34,14 @@ def read_standard_state(text: str, field: str = "standard_state") -> str:
     if found is None:
         raise UnitError(field, text, f"a standard state is one of {', '.join(STANDARD_STATES)}")
     return found
+
+
+#: the measurement columns that say how a value was computed (part of its identity)
+THEORY_COLUMNS = ("theory_level", "theory_method", "theory_basis", "theory_solvation")
+
+
+def theory_key(measurement: dict[str, object]) -> str:
+    """What tells two computed values of one compound apart: their level of theory ("" for a
+    measured value), so that one compound's barrier at two levels is two measurements."""
+    parts = (str(measurement.get(c) or "").strip().casefold() for c in THEORY_COLUMNS)
+    return "|".join(parts).strip("|")
