@@ -1,7 +1,7 @@
 """how a computed barrier was computed: level of theory and standard state
 
 Revision ID: 0007
-Revises: 0006
+Revises: 0005
 Create Date: 2026-12-05 02:40:00
 
 ``measurement`` gains the level of theory of a computed barrier as written
