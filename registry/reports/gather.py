@@ -15,7 +15,7 @@ nothing beyond the storage layer.
 from __future__ import annotations
 
 import math
-from collections import defaultdict
+from collections import Counter, defaultdict
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
@@ -120,11 +120,16 @@ def open_errors(conn: Connection, measurement_id: int) -> tuple[tuple[int, str],
 def measurement_title(
     mid: int, m_label: str | None, c_label: str | None, c_name: str | None
 ) -> str:
-    """``measurement 7 — DEMO-1 (N,N-dimethylacetamide) [run 2]``: a default figure title."""
+    """``DEMO-1 (N,N-dimethylacetamide) [run 2]``: a default figure title, naming the compound
+    as the group does; ``measurement 7`` only when the compound has neither label nor name."""
     who = " ".join(x for x in (c_label, f"({c_name})" if c_name else None) if x)
-    return (
-        f"measurement {mid}" + (f" — {who}" if who else "") + (f" [{m_label}]" if m_label else "")
-    )
+    return (who or f"measurement {mid}") + (f" [{m_label}]" if m_label else "")
+
+
+def point_label(row: Mapping[str, Any]) -> str:
+    """What a point on a figure is called: the compound's label, else its name, else the
+    measurement's number."""
+    return str(row.get("compound") or row.get("compound_name") or f"#{row['measurement_id']}")
 
 
 _OBSERVED = (
@@ -166,7 +171,7 @@ def observed_coalescence(
     for r in rows:
         field = r["field_mhz"]
         r["dnu_ppm"] = r["dnu_hz"] / field if field else None
-        r["label"] = f"#{r['measurement_id']}"
+        r["label"] = point_label(r)
     return rows
 
 
@@ -197,10 +202,25 @@ class BarrierGroups:
     flagged: dict[str, list[bool]]
     left_out: int = 0
     not_finite: int = 0
+    #: measurements drawn: each once, unless ``overlap`` (then ``points`` may be more)
+    measurements: int = 0
+    #: measurements whose compound matches more than one motif
+    shared: int = 0
+    #: True when a measurement is drawn under every motif its compound matches
+    overlap: bool = False
+
+    @property
+    def points(self) -> int:
+        return sum(len(v) for v in self.values.values())
 
 
 def _groups(
-    pairs: Mapping[str, list[tuple[float, bool]]], left_out: int, not_finite: int
+    pairs: Mapping[str, list[tuple[float, bool]]],
+    left_out: int,
+    not_finite: int,
+    measurements: int,
+    shared: int = 0,
+    overlap: bool = False,
 ) -> BarrierGroups:
     """Largest group first, then by name (a stable order: the same data give the same figure)."""
     kept = sorted(((k, v) for k, v in pairs.items() if v), key=lambda kv: (-len(kv[1]), kv[0]))
@@ -209,6 +229,9 @@ def _groups(
         {k: [flag for _, flag in v] for k, v in kept},
         left_out,
         not_finite,
+        measurements,
+        shared,
+        overlap,
     )
 
 
@@ -241,17 +264,25 @@ def barriers_by_kind(
         rows, left_out, odd = _barriers(conn, "p.kind", include_retracted, include_flagged)
     for kind, dg, flag in rows:
         groups[kind or NO_KIND].append((dg, flag))
-    return _groups(groups, left_out, odd)
+    return _groups(groups, left_out, odd, len(rows))
 
 
 def barriers_by_motif(
-    database: Database, *, include_retracted: bool = False, include_flagged: bool = False
+    database: Database,
+    *,
+    include_retracted: bool = False,
+    include_flagged: bool = False,
+    overlap: bool = False,
 ) -> BarrierGroups | None:
     """ΔG‡ grouped by structural motif when :mod:`registry.search` offers motif matching.
 
-    Returns None when it does not (the caller falls back to process kinds). A compound that
-    matches several motifs counts in each of them; one that matches none is in ``(no motif)``.
-    Flagged values only with ``include_flagged``.
+    Returns None when it does not (the caller falls back to process kinds). Each measurement
+    is counted once: a compound that matches several motifs goes under the narrowest of them
+    (the motif matching the fewest compounds, then by name), so ``biaryl-ortho`` keeps the
+    ortho-substituted biaryls and ``biaryl`` the rest. With ``overlap`` it counts under each
+    motif it matches (``shared`` says how many measurements are drawn more than once). A
+    compound that matches none is in ``(no motif)``. Flagged values only with
+    ``include_flagged``.
     """
     try:
         from registry import search
@@ -266,15 +297,28 @@ def barriers_by_motif(
         rows, left_out, odd = _barriers(conn, "m.compound_id", include_retracted, include_flagged)
     for cid, dg, flag in rows:
         by_compound[int(cid)].append((dg, flag))
-    groups = {
-        motif: [pair for cid in ids for pair in by_compound.get(int(cid), [])]
-        for motif, ids in matches.items()
-    }
-    matched = {int(cid) for ids in matches.values() for cid in ids}
-    groups[NO_MOTIF] = [
-        p for cid, pairs in by_compound.items() if cid not in matched for p in pairs
-    ]
-    return _groups(groups, left_out, odd)
+    owners = _motifs_of(matches, overlap)
+    hits = Counter(int(cid) for ids in matches.values() for cid in set(ids))
+    groups: dict[str, list[tuple[float, bool]]] = defaultdict(list)
+    shared = 0
+    for cid, pairs in by_compound.items():
+        motifs = owners.get(cid) or [NO_MOTIF]
+        shared += len(pairs) if hits[cid] > 1 else 0
+        for motif in motifs:
+            groups[motif].extend(pairs)
+    return _groups(groups, left_out, odd, len(rows), shared, overlap)
+
+
+def _motifs_of(matches: Mapping[str, Sequence[int]], overlap: bool) -> dict[int, list[str]]:
+    """The motif(s) each compound is drawn under: every one it matches with ``overlap``, else
+    the narrowest (fewest compounds in the registry match it; ties by name)."""
+    order = sorted(matches, key=lambda m: (len(matches[m]), m))
+    owners: dict[int, list[str]] = defaultdict(list)
+    for motif in order:
+        for cid in matches[motif]:
+            if overlap or not owners[int(cid)]:
+                owners[int(cid)].append(motif)
+    return owners
 
 
 # --- rows of measurements: tables and the HTML report ----------------------------------------

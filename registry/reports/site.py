@@ -150,7 +150,11 @@ def _eyring_plot(m: Mapping[str, Any], out: Path) -> tuple[str | None, str | Non
     odd = not_finite_points([(p["t_k"], p["k_per_s"], p.get("k_err_per_s")) for p in points])
     if odd:
         return None, f"No Eyring plot: {odd}"
-    title = f"measurement {int(m['id'])}: {m.get('compound') or m.get('compound_name') or ''}"
+    from registry.reports.gather import measurement_title
+
+    title = measurement_title(
+        int(m["id"]), m.get("label"), m.get("compound"), m.get("compound_name")
+    )
     series = series_from_points(
         [p["t_k"] for p in points],
         [p["k_per_s"] for p in points],
