@@ -461,15 +461,19 @@ def build_report(
     include_retracted: bool = False,
     include_flagged: bool = False,
     plots: bool = True,
+    columns: Sequence[str] = (),
 ) -> ReportResult:
     """Write the static HTML report: a filterable, sortable index, a page per compound with its
     structure, measurements, findings and Eyring plots, and a ΔG‡ overview. ``plots=False``
     skips the figures (much faster on big registries). Only our own files are ever replaced.
     Flagged measurements are listed and marked; their ΔG‡ is left out of the overview and the
-    per-compound ranges unless ``include_flagged``."""
+    per-compound ranges unless ``include_flagged``. Pages name the registry by its file name
+    (or server database name), never by a path; each measurement page shows the group's own
+    columns kept with it (operator, notebook page, comments …), and ``columns`` adds some of
+    them to the index table."""
     from registry.reports.site import build_report as write
 
     return write(
         database, out_dir, title=title, include_retracted=include_retracted,
-        include_flagged=include_flagged, plots=plots,
+        include_flagged=include_flagged, plots=plots, columns=tuple(columns),
     )  # fmt: skip

@@ -27,6 +27,12 @@ def report(
     no_plots: bool = typer.Option(
         False, "--no-plots", help="Skip the Eyring and overview plots (faster for big registries)."
     ),
+    column: list[str] = typer.Option(
+        None,
+        "--column",
+        help="Add one of the group's own columns (e.g. operator, 'notebook page') to the "
+        "index table. Repeatable.",
+    ),
     as_json: bool = typer.Option(False, "--json", help="Print what was written as JSON."),
 ) -> None:
     """Write a browsable HTML view of the registry: a filterable, sortable index and a page per
@@ -36,7 +42,7 @@ def report(
     database = api.open_registry(state(ctx).db)
     result = api.build_report(
         database, out, title=title, include_retracted=include_retracted,
-        include_flagged=include_flagged, plots=not no_plots,
+        include_flagged=include_flagged, plots=not no_plots, columns=column or (),
     )  # fmt: skip
     if as_json:
         print_json(result.as_dict())

@@ -18,6 +18,7 @@ import math
 from collections import Counter, defaultdict
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
+from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from registry.errors import DatabaseError, NotFoundError, UsageError
@@ -331,6 +332,7 @@ _DETAIL_COLUMNS = {
     "dh_text": "m.dh_text",
     "ds_text": "m.ds_text",
     "sites": "p.sites",
+    "extra_json": "m.extra_json",
 }
 
 
@@ -352,9 +354,40 @@ def measurement_rows(
 
     chosen = filters or filtering.Filters(include_retracted=include_retracted)
     with database.read() as conn:
-        return filtering.listing_rows(
+        rows = filtering.listing_rows(
             conn, chosen, ids=ids, columns={**LISTING_COLUMNS, **_DETAIL_COLUMNS}
         )
+    for r in rows:
+        r["extra"] = extra_columns(r.pop("extra_json", None))
+    return rows
+
+
+def extra_columns(stored: str | None) -> dict[str, Any]:
+    """The group's own columns kept with a measurement (operator, notebook page, comments …:
+    the spreadsheet columns fluxledger has no field for, stored as JSON in ``extra_json`` by
+    the importer), header → value in the file's order; ``{}`` when none or unreadable."""
+    import json
+
+    if not stored:
+        return {}
+    try:
+        found = json.loads(stored)
+    except ValueError:
+        return {}
+    return {str(k): v for k, v in found.items()} if isinstance(found, dict) else {}
+
+
+def registry_title(database: Database) -> str:
+    """How pages name the registry: the SQLite file's name (never the folders above it: a
+    report travels, and a home folder path says more than it should), or the server's
+    database name (no host, user or password)."""
+    if database.path is not None:
+        return Path(database.path).name
+    if database.is_sqlite:
+        return "in-memory registry"
+    from urllib.parse import urlsplit
+
+    return urlsplit(database.name).path.lstrip("/") or "registry"
 
 
 def measurements_for_report(
