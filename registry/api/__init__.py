@@ -18,7 +18,7 @@ Grouped by what they act on:
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
 * ``lineshape`` — :func:`simulate_lineshape`, :func:`fit_lineshapes`, :func:`value_with_error_text`
 * ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
-  :func:`build_report`
+  :func:`build_report`; ``paper_tables`` — :func:`export_si_table`
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
   :func:`calc_halflife`, :func:`calc_plan` (kinetics at the bench, no database)
 * ``files``     — :func:`import_table`, :func:`export_measurements`
@@ -44,6 +44,7 @@ from registry.api.checks import accept_finding, check
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.files import export_measurements, import_table
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
+from registry.api.paper_tables import export_si_table
 from registry.api.records import (
     add_measurement,
     add_rate_points,
@@ -107,6 +108,7 @@ __all__ = [
     "edit_measurement",
     "enable_server_search",
     "export_measurements",
+    "export_si_table",
     "find",
     "fit_lineshapes",
     "get_measurement",

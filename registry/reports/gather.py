@@ -333,6 +333,8 @@ _DETAIL_COLUMNS = {
     "ds_text": "m.ds_text",
     "sites": "p.sites",
     "extra_json": "m.extra_json",
+    # the solvent table's name for a linked solvent: tables footnote one name per solvent
+    "solvent_name": "(SELECT s.name FROM solvent s WHERE s.id = m.solvent_id)",
 }
 
 
