@@ -298,3 +298,65 @@ def test_overview_by_motif_counts_each_measurement_once(database, tmp_path: Path
     assert "motifs overlap" in svg  # said on the figure, not only in the record
     with pytest.raises(UsageError, match="motif_overlap: applies to grouping by motif only"):
         api.plot_overview(database, out=tmp_path / "k.svg", by="kind", motif_overlap=True)
+
+
+def _inside(fig, artist) -> bool:  # type: ignore[no-untyped-def]
+    box = artist.get_window_extent(fig.canvas.get_renderer())
+    whole = fig.bbox
+    return whole.x0 - 0.5 <= box.x0 and box.x1 <= whole.x1 + 0.5 and box.y1 <= whole.y1 + 0.5
+
+
+@pytest.mark.parametrize("size", ["single", "double"])
+def test_long_titles_wrap_inside_a_journal_column(size: str) -> None:
+    from registry.kinetics import fit_eyring
+
+    fit = fit_eyring(np.array([260.0, 280.0, 300.0]), np.array([5.0, 60.0, 500.0]))
+    title = "DEMO-LONG (1-(2-methylphenyl)-2-(2,6-diisopropylphenyl)naphthalene) [run 12]"
+    look = figure_style("print", size=size, dpi=300)
+    fig, _ = plots.eyring_figure(fit, title=title, style=look)
+    fig.draw_without_rendering()
+    shown = [t for t in (fig.axes[0].title, fig.axes[0]._left_title) if t.get_text()]
+    assert shown and all(_inside(fig, t) for t in shown)
+    drawn = shown[0].get_text()
+    assert "".join(drawn.split()) == "".join(title.split())  # wrapped, nothing lost
+    assert ("\n" in drawn) == (size == "single")  # 76 characters do not fit 3.3 in at 8 pt
+
+
+def test_line_shape_labels_are_not_clipped(tmp_path: Path) -> None:
+    """The residual axis label (and every other) lies inside the figure at a column width."""
+    from registry.lineshape import plots as ls_plots
+
+    class Fit:  # invented numbers
+        source, method, width_hz, k_per_s, k_err_per_s = (
+            "long-spectrum-name-280K.csv",
+            "two-site",
+            1.2,
+            80.0,
+            4.0,
+        )
+        freq_hz = np.linspace(-100, 100, 201)
+        data = np.exp(-((freq_hz / 20) ** 2))
+        best_fit = data * 0.99
+        t_k = 280.0
+
+    look = figure_style("print", size="single", dpi=150)
+    captured = {}
+    from registry.reports import canvas as canvas_module
+
+    save = canvas_module.save_figure
+
+    def keep(fig, path, **kwargs):  # type: ignore[no-untyped-def]
+        captured["fig"] = fig
+        return save(fig, path, **kwargs)
+
+    canvas_module.save_figure = keep
+    try:
+        ls_plots.plot_fit(Fit(), tmp_path / "f.png", observe_mhz=400.0, style=look)
+    finally:
+        canvas_module.save_figure = save
+    fig = captured["fig"]
+    fig.draw_without_rendering()
+    for ax in fig.axes:
+        for artist in (ax.yaxis.label, ax.xaxis.label, ax._left_title):
+            if artist.get_text():
+                assert _inside(fig, artist), artist.get_text()

@@ -43,7 +43,7 @@ def plot_fit(
     style: FigureStyle = SCREEN,
 ) -> Path:
     """Data, fitted line shape and residuals of one spectrum (x in ppm when MHz is known)."""
-    from registry.reports.canvas import new_figure, save_figure, styled
+    from registry.reports.canvas import new_figure, save_figure, set_title, styled
 
     with styled(style):
         fig = new_figure(7.0, 5.2, None, style)
@@ -64,12 +64,12 @@ def plot_fit(
         fig.align_ylabels([top, bottom])
         top.tick_params(labelbottom=False)
         temp = f"{fit.t_k:.1f} K, " if fit.t_k is not None else ""
-        top.set_title(
+        title = (
             f"{Path(fit.source).name}: {temp}"
             f"k = {value_with_error_text(fit.k_per_s, fit.k_err_per_s, 's⁻¹')}, "
-            f"w = {fit.width_hz:.2f} Hz ({fit.method})",
-            fontsize=style.note_size + 1,
+            f"w = {fit.width_hz:.2f} Hz ({fit.method})"
         )
+        set_title(fig, top, title, style, style.note_size + 1)
         top.legend(loc="upper right", fontsize=style.note_size)
     return save_figure(fig, path, style=style)  # whole or not at all
 
@@ -82,7 +82,7 @@ def plot_eyring(
     style: FigureStyle = SCREEN,
 ) -> Path:
     """ln(k/T) against 1000/T with ±1σ bars, and the Eyring line when one was fitted."""
-    from registry.reports.canvas import new_figure, save_figure, styled
+    from registry.reports.canvas import new_figure, save_figure, set_title, styled
 
     usable = [f for f in fits if f.t_k is not None]
     if not usable:
@@ -100,11 +100,12 @@ def plot_eyring(
         if line is not None:
             tt = np.linspace(t.min() * 0.98, t.max() * 1.02, 100)
             ax.plot(1000.0 / tt, _ln_k(line, tt) - np.log(tt), color=style.fit, label="Eyring fit")
-            ax.set_title(
+            title = (
                 f"ΔH‡ = {value_with_error_text(line.dh_kj_mol, line.dh_err_kj_mol, 'kJ/mol')}, "
-                "ΔS‡ = " + value_with_error_text(line.ds_j_mol_k, line.ds_err_j_mol_k, "J/(mol·K)"),
-                fontsize=style.note_size + 1,
+                "ΔS‡ = " + value_with_error_text(line.ds_j_mol_k, line.ds_err_j_mol_k, "J/(mol·K)")
             )
+            size = style.note_size + 1
+            set_title(fig, ax, title, style, size)
         ax.set_xlabel("1000 K / T")
         ax.set_ylabel("ln(k / T)   (k in s⁻¹, T in K)")
     return save_figure(fig, path, style=style)  # whole or not at all

@@ -18,7 +18,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from registry.errors import UsageError
-from registry.reports.canvas import convert, energy_text, new_figure, styled
+from registry.reports.canvas import convert, energy_text, new_figure, set_title, styled
 from registry.reports.style import SCREEN, FigureStyle
 
 if TYPE_CHECKING:
@@ -130,7 +130,7 @@ def coalescence_figure(
         right.set_ylabel("Tc (°C)", color=style.muted)
         right.tick_params(colors=style.muted, labelcolor=style.muted)
         if title:
-            ax.set_title(title)
+            set_title(fig, ax, title, style)
         ax.legend(
             loc="lower right", fontsize=style.note_size
         )  # Tc rises with the field: below it is free

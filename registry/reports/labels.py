@@ -86,7 +86,7 @@ def fit_tick_labels(fig: Figure, ax: Axes, names: Sequence[str], counts: Sequenc
 
     with warnings.catch_warnings():  # a collapsed layout is what the loop below measures
         warnings.simplefilter("ignore", UserWarning)
-        if not overlapping(label_boxes(fig, ax)) and _room(fig, ax):
+        if _readable(fig, ax):
             return "wrapped"
         size = float(ax.get_xticklabels()[0].get_fontsize())
         for limit in (UPRIGHT_CHARS, 20, 14):
@@ -99,7 +99,7 @@ def fit_tick_labels(fig: Figure, ax: Axes, names: Sequence[str], counts: Sequenc
                     t.set_horizontalalignment("center")
                     t.set_verticalalignment("top")
                     t.set_fontsize(font)
-                if not overlapping(label_boxes(fig, ax)) and _room(fig, ax):
+                if _readable(fig, ax):
                     return "upright"
                 if font <= MIN_FONT_PT:
                     break
@@ -111,6 +111,12 @@ def fit_tick_labels(fig: Figure, ax: Axes, names: Sequence[str], counts: Sequenc
 MIN_AXES_SHARE = 0.35
 
 
-def _room(fig: Figure, ax: Axes) -> bool:
-    """True when the laid-out axes keep :data:`MIN_AXES_SHARE` of the figure's height."""
-    return ax.get_position().height >= MIN_AXES_SHARE
+def _readable(fig: Figure, ax: Axes) -> bool:
+    """No two labels overlap, all lie inside the figure, and the laid-out axes keep
+    :data:`MIN_AXES_SHARE` of the figure's height."""
+    boxes = label_boxes(fig, ax)
+    whole = fig.bbox
+    inside = all(
+        whole.x0 - 0.5 <= b.x0 and b.x1 <= whole.x1 + 0.5 and whole.y0 - 0.5 <= b.y0 for b in boxes
+    )
+    return inside and not overlapping(boxes) and ax.get_position().height >= MIN_AXES_SHARE

@@ -21,7 +21,14 @@ from numpy.typing import ArrayLike, NDArray
 
 from registry.errors import UsageError
 from registry.kinetics.constants import STANDARD_TEMPERATURE_K
-from registry.reports.canvas import convert, energy_text, entropy_text, new_figure, styled
+from registry.reports.canvas import (
+    convert,
+    energy_text,
+    entropy_text,
+    new_figure,
+    set_title,
+    styled,
+)
 from registry.reports.style import SCREEN, FigureStyle
 
 if TYPE_CHECKING:
@@ -144,9 +151,11 @@ def eyring_figure(
                 color=style.band,
                 alpha=0.45,
                 linewidth=0,
-                label="95 % confidence band of the line",
+                label="95 % band of the line" if narrow else "95 % confidence band of the line",
             )
-        ax.plot(1e3 * xs, line, color=style.fit, label="weighted Eyring fit")
+        ax.plot(
+            1e3 * xs, line, color=style.fit, label="Eyring fit" if narrow else "weighted Eyring fit"
+        )
         yerr = None
         if k_err_per_s is not None:
             yerr = np.asarray(k_err_per_s, dtype=float) / k  # σ(ln k) = σ_k / k
@@ -161,7 +170,7 @@ def eyring_figure(
             markeredgewidth=style.marker_size / 6,
             elinewidth=style.line_width * 0.6,
             capsize=2.5,
-            label="measured rate constants",
+            label="measured k" if narrow else "measured rate constants",
             zorder=3,
         )
         ax.set_xlabel("10³ / T   (K⁻¹)")
@@ -170,9 +179,13 @@ def eyring_figure(
         top.set_xlabel("T (K)", color=style.muted)
         top.tick_params(colors=style.muted, labelcolor=style.muted)
         if title:
-            ax.set_title(title)
+            set_title(fig, ax, title, style)
         _write_numbers(under if narrow else ax, eyring_text(summary, energy_unit), narrow, style)
-        ax.legend(loc="best" if narrow else "lower left", fontsize=style.note_size)
+        if narrow:  # no corner is free of a line that crosses the plot: a framed legend
+            ax.legend(loc="best", fontsize=style.note_size - 0.5, frameon=True,
+                      facecolor=style.paper, edgecolor=style.rule, framealpha=0.9)  # fmt: skip
+        else:
+            ax.legend(loc="lower left", fontsize=style.note_size)
     return fig, summary
 
 
@@ -277,7 +290,7 @@ def overview_figure(
             note = textwrap.fill(note, chars)
         ax.set_xlabel(group_title + (f"\n{note}" if note else ""))
         if title:
-            ax.set_title(title)
+            set_title(fig, ax, title, style)
         _fit_labels(fig, ax, names, [len(v) for v in values], style)
     return fig
 
