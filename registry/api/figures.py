@@ -27,7 +27,7 @@ from registry.api.figure_inputs import RatePointInput, barrier_and_shift, number
 from registry.errors import UsageError
 
 if TYPE_CHECKING:
-    from registry.reports.gather import RateSeries
+    from registry.reports.gather import BarrierGroups, RateSeries
     from registry.reports.plots import EyringSummary
     from registry.reports.site import ReportResult
     from registry.storage.database import Database
@@ -435,7 +435,7 @@ def plot_overview(
     )  # fmt: skip
 
 
-def _overview_notes(groups: Any) -> list[str]:
+def _overview_notes(groups: BarrierGroups) -> list[str]:
     """How shared motifs were counted (the first note is also written on the figure)."""
     if not groups.shared:
         return []
