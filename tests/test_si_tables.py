@@ -85,7 +85,13 @@ def test_si_latex_is_a_longtable() -> None:
 
 def _fill(database) -> None:  # type: ignore[no-untyped-def]
     for label, smiles, solvent, dg, extra in (
-        ("DEMO-W1", "CC(=O)N(C)C", "DMSO-D6", "15.0 ± 0.1 kcal/mol", {}),
+        (
+            "DEMO-W1",
+            "CC(=O)N(C)C",
+            "DMSO-D6",
+            "15.0 ± 0.1 kcal/mol",
+            {"operator": "A. Demo", "notebook page": 12},
+        ),
         ("=HYPERLINK(1)", "CN(C)C=O", "DMSO-d6", "70 kJ/mol", {}),
     ):
         api.add_measurement(
@@ -118,6 +124,25 @@ def test_si_workbook_has_one_column_per_quantity(database, tmp_path: Path) -> No
     assert {first["solvent"], second["solvent"]} == {first["solvent"]}  # one spelling
     assert "D6" not in first["solvent"]
     assert second["compound"] == "'=HYPERLINK(1)"  # a formula is never evaluated
+
+
+def test_si_table_takes_the_groups_own_columns(database, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    from openpyxl import load_workbook
+
+    _fill(database)
+    done = api.export_si_table(
+        database, tmp_path / "si.xlsx", columns=["Operator", "notebook page", "shoe size"]
+    )
+    assert done["columns"] == ["Operator", "notebook page", "shoe size"]
+    assert any("'shoe size': no selected measurement has it" in n for n in done["notes"])
+    rows = list(load_workbook(tmp_path / "si.xlsx").active.iter_rows(values_only=True))
+    head = list(rows[0])
+    first = dict(zip(head, rows[1], strict=True))
+    assert first["Operator"] == "A. Demo" and first["notebook page"] == 12  # a number stays one
+    assert dict(zip(head, rows[2], strict=True))["Operator"] is None
+    md = api.export_si_table(database, tmp_path / "si.md", columns=["operator"])
+    text = Path(md["file"]).read_text(encoding="utf-8")
+    assert "| operator |" in text.splitlines()[0] + " " and "A. Demo" in text
 
 
 def test_si_table_checks_before_writing(database, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]

@@ -79,6 +79,9 @@ def si_table(
         "paren", "--uncertainty", help="'paren' 62.3(4) or 'pm' 62.3 ± 0.4 (text tables)."
     ),
     caption: str = typer.Option(None, "--caption", help="LaTeX caption."),
+    column: list[str] = typer.Option(
+        None, "--column", help="Add one of the group's own columns (e.g. operator). Repeatable."
+    ),
     as_json: bool = typer.Option(False, "--json", help="Print what was written as JSON."),
 ) -> None:
     """A table for supporting information: ΔG‡, ΔH‡, ΔS‡ as reported and normalised, method,
@@ -90,7 +93,7 @@ def si_table(
         database, out, format=fmt, compound=compound, method=method, solvent=solvent,
         process=process, status=status, include_retracted=include_retracted,
         include_flagged=include_flagged, energy_unit=energy_unit, uncertainty=uncertainty,
-        caption=caption,
+        caption=caption, columns=column or (),
     )  # fmt: skip
     if as_json:
         print_json(result)

@@ -379,6 +379,15 @@ def extra_columns(stored: str | None) -> dict[str, Any]:
     return {str(k): v for k, v in found.items()} if isinstance(found, dict) else {}
 
 
+def extra_value(m: Mapping[str, Any], column: str) -> Any:
+    """The value of one of the group's own columns (matched without regard to case)."""
+    extra = m.get("extra") or {}
+    if column in extra:
+        return extra[column]
+    key = column.casefold()
+    return next((v for k, v in extra.items() if k.casefold() == key), None)
+
+
 def registry_title(database: Database) -> str:
     """How pages name the registry: the SQLite file's name (never the folders above it: a
     report travels, and a home folder path says more than it should), or the server's

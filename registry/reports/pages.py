@@ -20,6 +20,7 @@ from typing import Any
 
 from registry.outputs import not_finite, visible_controls
 from registry.reports import assets
+from registry.reports.gather import extra_value
 from registry.reports.numbers import format_uncertain
 
 
@@ -109,15 +110,6 @@ _INDEX_COLUMNS: list[tuple[str, str, str]] = [
     ("status", "Status", "text"),
     ("findings", "Findings", "num"),
 ]
-
-
-def extra_value(m: Mapping[str, Any], column: str) -> Any:
-    """The value of one of the group's own columns (matched without regard to case)."""
-    extra = m.get("extra") or {}
-    if column in extra:
-        return extra[column]
-    key = column.casefold()
-    return next((v for k, v in extra.items() if k.casefold() == key), None)
 
 
 def _index_row(m: Mapping[str, Any], extra: Sequence[str] = ()) -> str:

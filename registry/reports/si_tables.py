@@ -16,6 +16,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from registry.reports.gather import extra_value
 from registry.reports.numbers import format_uncertain
 from registry.reports.tables import (
     FLAG_MARK,
@@ -46,8 +47,9 @@ class Column:
     number: bool = False
 
 
-def columns(units: TableUnits) -> list[Column]:
-    """The SI table's columns; the workbook splits each value and its uncertainty."""
+def columns(units: TableUnits, extra: Sequence[str] = ()) -> list[Column]:
+    """The SI table's columns; the workbook splits each value and its uncertainty. ``extra``
+    adds the group's own columns (operator, notebook page …) before the flag."""
     e_md, e_tex = units.energy_label
     s_md, s_tex = units.entropy_label
     e_unit = units.energy.replace("*", "·")
@@ -71,13 +73,17 @@ def columns(units: TableUnits) -> list[Column]:
         Column("ds_text", "ΔS‡ as reported", r"$\Delta S^{\ddagger}$ as reported",
                "ΔS‡ as reported"),
         Column("reference", "Reference", "Reference", "reference"),
+        *(Column(f"extra:{name}", name, _latex_escape(name), name) for name in extra),
         Column("flagged", "", "", "flagged (an error finding is open)"),
     ]  # fmt: skip
 
 
-def si_values(rows: Iterable[Mapping[str, Any]], units: TableUnits) -> list[dict[str, Any]]:
+def si_values(
+    rows: Iterable[Mapping[str, Any]], units: TableUnits, extra: Sequence[str] = ()
+) -> list[dict[str, Any]]:
     """Each row's values by column key: numbers converted to ``units`` (floats, None when
-    absent), texts as reported, method and solvent normalised."""
+    absent), texts as reported, method and solvent normalised, the group's own ``extra``
+    columns as kept."""
     from registry.record.units import convert
 
     def value(v: Any, unit: str, canonical: str) -> float | None:
@@ -104,18 +110,28 @@ def si_values(rows: Iterable[Mapping[str, Any]], units: TableUnits) -> list[dict
                 "ds_text": r.get("ds_text") or "",
                 "reference": (r.get("reference") or "").strip(),
                 "flagged": "yes" if r.get("flagged") else "",
+                **{f"extra:{name}": _text(extra_value(r, name)) for name in extra},
             }
         )
     return out
 
 
-def _shown(values: list[dict[str, Any]], units: TableUnits) -> list[Column]:
+def _text(value: Any) -> Any:
+    """A kept cell as it was: numbers stay numbers, anything else becomes text."""
+    if value is None or (isinstance(value, (int, float)) and not isinstance(value, bool)):
+        return value
+    return str(value)
+
+
+def _shown(
+    values: list[dict[str, Any]], units: TableUnits, extra: Sequence[str] = ()
+) -> list[Column]:
     """The text table's columns: errors go into their value's cell, empty columns are left out
     (compound, ΔG‡ and its temperature always stay)."""
     keep = ("compound", "dg", "dg_t")
     return [
         c
-        for c in columns(units)
+        for c in columns(units, extra)
         if c.markdown and (c.key in keep or any(v[c.key] not in (None, "") for v in values))
     ]
 
@@ -136,13 +152,14 @@ def render_si_markdown(
     energy_unit: str = "kJ/mol",
     entropy_unit: str | None = None,
     uncertainty: str = "paren",
+    extra: Sequence[str] = (),
 ) -> str:
     """A pipe table, one row per measurement, every value as reported beside its normalised
     form; flagged rows (only there when asked for) carry † and a note."""
     rows = _check_rows(rows)
     units = table_units(energy_unit, entropy_unit)
-    values = si_values(rows, units)
-    shown = _shown(values, units)
+    values = si_values(rows, units, extra)
+    shown = _shown(values, units, extra)
     lines = [
         "| " + " | ".join(c.markdown for c in shown) + " |",
         "|" + "|".join("---:" if c.number else ":---" for c in shown) + "|",
@@ -171,12 +188,13 @@ def render_si_latex(
     uncertainty: str = "paren",
     caption: str | None = None,
     label: str = "tab:si-barriers",
+    extra: Sequence[str] = (),
 ) -> str:
     """A ``longtable`` (it runs over pages, as SI tables do) with booktabs rules."""
     rows = _check_rows(rows)
     units = table_units(energy_unit, entropy_unit)
-    values = si_values(rows, units)
-    shown = _shown(values, units)
+    values = si_values(rows, units, extra)
+    shown = _shown(values, units, extra)
     spec = "".join("r" if c.number else "l" for c in shown)
     head = " & ".join(c.latex for c in shown) + r" \\"
     lines = ["% written by fluxledger; needs \\usepackage{booktabs,longtable}"]
@@ -231,7 +249,9 @@ def _units_note(uncertainty: str, *, latex: bool = False) -> str:
     )
 
 
-def write_si_workbook(path: Path, rows: Sequence[Mapping[str, Any]], units: TableUnits) -> None:
+def write_si_workbook(
+    path: Path, rows: Sequence[Mapping[str, Any]], units: TableUnits, extra: Sequence[str] = ()
+) -> None:
     """A workbook, one column per quantity with its unit in the header, one row per
     measurement; numbers as numbers, texts guarded against formula evaluation and written in
     the workbook format's escapes (as the exports are)."""
@@ -240,8 +260,10 @@ def write_si_workbook(path: Path, rows: Sequence[Mapping[str, Any]], units: Tabl
     from registry.io.export import workbook_text
     from registry.outputs import not_finite
 
-    values = si_values(rows, units)
-    cols = [c for c in columns(units) if c.key != "flagged" or any(v["flagged"] for v in values)]
+    values = si_values(rows, units, extra)
+    cols = [
+        c for c in columns(units, extra) if c.key != "flagged" or any(v["flagged"] for v in values)
+    ]
     book = Workbook(write_only=True)
     sheet = book.create_sheet("barriers")
     sheet.append([workbook_text(c.workbook) for c in cols])

@@ -8,6 +8,7 @@ could not show (numbers that are not finite, control characters in texts).
 
 from __future__ import annotations
 
+from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -79,6 +80,13 @@ def export_table(
     }
 
 
+def _missing_columns(columns: Sequence[str], rows: Sequence[Mapping[str, Any]]) -> list[str]:
+    """A note for each asked-for column of the group's own that no selected row has."""
+    have = {k.casefold() for r in rows for k in (r.get("extra") or {})}
+    return [f"column {c!r}: no selected measurement has it (left empty)" for c in columns
+            if c.casefold() not in have]  # fmt: skip
+
+
 #: the row keys a table shows
 _SHOWN = ("compound", "process", "reference", "method", "solvent", "dg_kj_mol", "dg_err_kj_mol",
           "dg_t_k", "dh_kj_mol", "dh_err_kj_mol", "ds_j_mol_k", "ds_err_j_mol_k")  # fmt: skip
@@ -97,12 +105,14 @@ def export_si_table(
     uncertainty: str = "paren",
     caption: str | None = None,
     include_flagged: bool = False,
+    columns: Sequence[str] = (),
     **filters: Any,
 ) -> dict[str, Any]:
     """Write the measurements ``filters`` select as a supporting-information table: every
     value as reported and normalised, method, solvent (both normalised), the temperature of
-    each ΔG‡ and the reference; LaTeX (.tex), Markdown (.md) or a workbook (.xlsx, one column
-    per quantity with its unit in the header). Checked and written as :func:`export_table`."""
+    each ΔG‡ and the reference, and the group's own ``columns`` (operator, notebook page …);
+    LaTeX (.tex), Markdown (.md) or a workbook (.xlsx, one column per quantity with its unit in
+    the header). Checked and written as :func:`export_table`."""
     from registry.reports import si_tables
     from registry.reports.tables import table_units
 
@@ -123,10 +133,11 @@ def export_si_table(
             "no measurements to put in a table"
             + (f": the {left_out} selected are flagged; include flagged values" if left_out else "")
         )
-    options = {"energy_unit": energy_unit, "uncertainty": uncertainty}
+    extra = tuple(columns)
+    options = {"energy_unit": energy_unit, "uncertainty": uncertainty, "extra": extra}
     if name == "xlsx":
         units = table_units(energy_unit)
-        write_file(path, lambda tmp: si_tables.write_si_workbook(tmp, rows, units))
+        write_file(path, lambda tmp: si_tables.write_si_workbook(tmp, rows, units, extra))
     else:
         text = (
             si_tables.render_si_latex(rows, caption=caption, **options)
@@ -150,5 +161,14 @@ def export_si_table(
         "uncertainty": uncertainty,
         "flagged_included": sum(1 for r in rows if r.get("flagged")),
         "flagged_left_out": left_out,
-        "notes": odd.notes(numbers="left empty", texts="the control characters dropped"),
+        "columns": list(extra),
+        "notes": odd.notes(numbers="left empty", texts="the control characters dropped")
+        + _missing_columns(extra, rows),
     }
+
+
+def _missing_columns(columns: Sequence[str], rows: Sequence[Mapping[str, Any]]) -> list[str]:
+    """A note for each asked-for column of the group's own that no selected row has."""
+    have = {k.casefold() for r in rows for k in (r.get("extra") or {})}
+    return [f"column {c!r}: no selected measurement has it (left empty)" for c in columns
+            if c.casefold() not in have]  # fmt: skip
