@@ -81,6 +81,13 @@ class StructureError(ValueError, FluxledgerError):
         return f"SMILES {self.smiles!r}: {self.reason}"
 
 
+class MolfileError(StructureError):
+    """A Molfile (or one record of an SD file) that cannot be read; ``source`` says which."""
+
+    def __str__(self) -> str:
+        return f"{self.smiles}: {self.reason}"
+
+
 #: how much of a user's text a message quotes
 QUOTED_CHARACTERS = 120
 

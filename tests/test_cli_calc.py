@@ -11,13 +11,25 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from scipy import constants as codata
 from typer.testing import CliRunner
 
 from registry.cli.calc import app as calc_app
-from registry.kinetics import dg_from_dh_ds, eyring_rate
 
 runner = CliRunner()
 KCAL = 4.184  # thermochemical calorie, NIST SP 811 (2008) B.8
+R_KJ = codata.R / 1000  # CODATA 2018 via scipy.constants
+
+
+def eyring_rate(dg_kj_mol: float, t_k: float) -> float:
+    """k = (k_B·T/h)·exp(−ΔG‡/RT) (H. Eyring, J. Chem. Phys. 3, 107 (1935)), CODATA constants;
+    written here so no expected rate comes from the code under test."""
+    return codata.Boltzmann * t_k / codata.Planck * math.exp(-dg_kj_mol / (R_KJ * t_k))
+
+
+def dg_from_dh_ds(dh_kj_mol: float, ds_j_mol_k: float, t_k: float) -> float:
+    """ΔG‡ = ΔH‡ − T·ΔS‡ (Gibbs), kJ/mol."""
+    return dh_kj_mol - t_k * ds_j_mol_k / 1000
 
 
 def calc(*args: str):  # type: ignore[no-untyped-def]
@@ -72,6 +84,68 @@ def test_coalescence_unequal_populations_json() -> None:
     assert data["k_minor_to_major_per_s"] / data["k_major_to_minor_per_s"] == pytest.approx(3.0)
     diff = data["dg_major_to_minor_kj_mol"] - data["dg_minor_to_major_kj_mol"]
     assert diff == pytest.approx(8.314462618e-3 * 300.0 * math.log(3.0))
+
+
+# Ξ(¹³C) = 25.145020 % (R. K. Harris et al., Pure Appl. Chem. 73, 1795 (2001), Table 1: the
+# ¹³C frequency of TMS where the ¹H of TMS is at exactly 100 MHz). Close to the bare
+# magnetogyric ratio γ(¹³C)/γ(¹H) = 6.728284e7/26.7522128e7 = 0.251503 (CODATA/IUPAC values,
+# from memory); the shielding of TMS makes the small difference.
+XI_13C = 0.25145020
+
+
+def test_coalescence_carbon_shift_in_ppm_at_the_carbon_frequency() -> None:
+    data = calc_json(
+        "coalescence", "--tc", "300 K", "--tc-err", "1 K", "--dnu", "0.10 ppm",
+        "--field", "400 MHz", "--nucleus", "13C",
+    )  # fmt: skip
+    dnu = 0.10e-6 * 400e6 * XI_13C  # Hz: ppm × the ¹³C observe frequency
+    assert abs(XI_13C - 6.728284 / 26.7522128) < 1e-3  # the γ ratio check on Ξ
+    assert data["nucleus"] == "13C"
+    assert data["observe_mhz"] == pytest.approx(400 * XI_13C, rel=1e-8)
+    assert data["dnu_hz"] == pytest.approx(dnu, rel=1e-8)
+    k_c = math.pi * dnu / math.sqrt(2)  # Gutowsky & Holm, J. Chem. Phys. 25, 1228 (1956)
+    assert data["k_c_per_s"] == pytest.approx(k_c, rel=1e-8)
+    expected = R_KJ * 300.0 * math.log(codata.Boltzmann * 300.0 / (codata.Planck * k_c))
+    assert data["dg_kj_mol"] == pytest.approx(expected, rel=1e-9)
+    proton = calc_json("coalescence", "--tc", "300 K", "--dnu", "0.10 ppm", "--mhz", "400")
+    assert proton["k_c_per_s"] / data["k_c_per_s"] == pytest.approx(1 / XI_13C, rel=1e-8)
+    result = calc(
+        "coalescence", "--tc", "300 K", "--dnu", "0.10 ppm", "--mhz", "400", "--nucleus", "13C"
+    )
+    assert "  Δν          10.1 Hz (13C at 101 MHz, 400 MHz magnet)\n" in result.stdout
+
+
+def test_coalescence_nucleus_with_unequal_populations_and_hz() -> None:
+    data = calc_json(
+        "coalescence", "--tc", "300 K", "--dnu", "0.10 ppm", "--mhz", "400", "--nucleus", "13C",
+        "--ratio", "3",
+    )  # fmt: skip
+    assert data["dnu_hz"] == pytest.approx(0.10 * 400 * XI_13C, rel=1e-8)
+    in_hz = calc_json("coalescence", "--tc", "300 K", "--dnu", "10 Hz", "--nucleus", "13C")
+    assert in_hz["dnu_hz"] == 10.0  # a Δν in Hz needs no frequency
+
+
+def test_plan_carbon_shift_in_ppm() -> None:
+    data = calc_json(
+        "plan", "--dg", "60 kJ/mol", "--dnu", "1 ppm", "--mhz", "400", "--nucleus", "13C"
+    )
+    assert data["fields"][0]["dnu_hz"] == pytest.approx(400 * XI_13C, rel=1e-8)
+
+
+def test_nucleus_errors() -> None:
+    result = calc(
+        "coalescence", "--tc", "300 K", "--dnu", "0.1 ppm", "--mhz", "400", "--nucleus", "195Pt"
+    )
+    assert result.exit_code == 1
+    assert result.stderr == (
+        "error: dnu: cannot read '0.1 ppm': give Δν in Hz: the observe frequency of 195Pt is "
+        "not known to fluxledger\n"
+    )
+    result = calc(
+        "coalescence", "--tc", "300 K", "--dnu", "0.1 ppm", "--mhz", "400", "--nucleus", "Qx"
+    )
+    assert result.exit_code == 1
+    assert result.stderr.startswith("error: nucleus: cannot read 'Qx': unknown nucleus")
 
 
 def test_coalescence_coupled() -> None:
@@ -275,7 +349,16 @@ def test_plan_hz_with_two_fields_is_a_usage_error() -> None:
 
 
 def test_every_command_has_help() -> None:
-    for name in ("coalescence", "eyring", "rate", "halflife", "plan"):
+    for name in (
+        "coalescence",
+        "eyring",
+        "rate",
+        "halflife",
+        "plan",
+        "exsy",
+        "transfer",
+        "timecourse",
+    ):
         result = calc(name, "--help")
         assert result.exit_code == 0
         assert "--json" in result.stdout

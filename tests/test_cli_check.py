@@ -47,7 +47,7 @@ def test_error_exits_1_and_names_the_slip(cli) -> None:  # type: ignore[no-untyp
     assert "coalescence-barrier" in out and "[kcal-as-kj]" in out
     assert out.rstrip().endswith(
         "checked 2 measurements: 1 error, 1 warning, 0 notes (2 new since the last run, 0 accepted)"
-    )  # the warning: 16 "kJ/mol" is below what dynamic NMR can measure
+    )  # the warning: 16 "kJ/mol" at 300 K is k ≈ 10¹⁰ s⁻¹, faster than coalescence sees
 
 
 def test_json_objects(cli) -> None:  # type: ignore[no-untyped-def]

@@ -11,8 +11,8 @@ from registry.record.entry import (
     EntryInput,
     normalize_entry,
     normalize_nucleus,
-    parse_population_ratio,
 )
+from registry.record.populations import parse_population_ratio
 from registry.record.vocab import Vocabulary
 
 
@@ -91,13 +91,14 @@ def test_an_entry_is_read_with_the_registry_vocabulary() -> None:
 
 @pytest.mark.parametrize(
     ("text", "ratio"),
-    [("60:40", 1.5), ("40:60", 1.5), ("1.5", 1.5), ("0.6", 1.5), ("0.4", 1.5), ("1", 1.0)],
-)
+    [("60:40", 1.5), ("40:60", 1.5), ("1.5", 1.5), ("60%", 1.5), ("p = 0.4", 1.5), ("1", 1.0),
+     ("3:1", 3.0), ("1:3", 3.0), ("25 %", 3.0), ("x_A = 0.25", 3.0), ("60/40", 1.5)],
+)  # fmt: skip
 def test_population_ratio_forms(text: str, ratio: float) -> None:
     assert parse_population_ratio(text) == pytest.approx(ratio)
 
 
-@pytest.mark.parametrize("bad", ["0", "-2", "a:b", "60:0", "nan"])
+@pytest.mark.parametrize("bad", ["0", "-2", "a:b", "60:0", "nan", "0.5", "0.25", "100%", "p = 1"])
 def test_bad_population_ratio(bad: str) -> None:
     with pytest.raises(UnitError):
         parse_population_ratio(bad)

@@ -150,7 +150,9 @@ def test_json_export_has_reported_normalized_findings(filled: Database, tmp_path
 
 def test_filters_and_bad_format(filled: Database, tmp_path: Path) -> None:
     assert export_measurements(filled, tmp_path / "a.csv", method="DNMR")["measurements"] == 1
-    with pytest.raises(UsageError, match="format must be one of csv, xlsx, json, latex, markdown"):
+    with pytest.raises(
+        UsageError, match="format must be one of csv, xlsx, json, sdf, latex, markdown"
+    ):
         export_measurements(filled, tmp_path / "a.txt")
     with pytest.raises(UsageError, match=r"folder .* does not exist"):
         export_measurements(filled, tmp_path / "no" / "a.csv")

@@ -15,6 +15,8 @@ from typing import Any
 
 import pytest
 from test_io_import import write_csv
+from test_tamper import _sql
+from test_validation_paths import _load_dump
 
 from registry import api
 from registry.record.entry import EntryInput
@@ -37,15 +39,6 @@ ADD_3 = [
     "add", "--method", "lineshape", "--compound", "AM-3", "--name", "a biaryl",
     "--dh", "70 kJ/mol", "--rate", "250 K, 12.5 s-1", "--rate", "260 K, 30 s-1",
 ]  # fmt: skip
-
-
-def _sql(path: Path, *statements: str) -> None:
-    conn = sqlite3.connect(path)
-    conn.execute("PRAGMA foreign_keys = OFF")  # as a careless or hostile hand would
-    for statement in statements:
-        conn.execute(statement)
-    conn.commit()
-    conn.close()
 
 
 def _scalar(path: Path, statement: str) -> Any:
@@ -490,15 +483,6 @@ def test_the_demo_registry_verifies(cli, db_path: Path) -> None:  # type: ignore
     verified = cli("verify")
     assert verified.exit_code == 0, verified.stdout
     assert "  ok      state  (41 measurements replayed from the history)" in verified.stdout
-
-
-def _load_dump(path: Path, target: Path) -> None:
-    conn = sqlite3.connect(target)
-    try:
-        conn.executescript(path.read_text(encoding="utf-8"))
-        conn.commit()
-    finally:
-        conn.close()
 
 
 def test_an_older_registry_upgraded_shows_exactly_its_changes_by_hand(tmp_path: Path) -> None:

@@ -131,7 +131,9 @@ SLIP_CASES = {
         {},
     ),
     "dnu-ppm-as-hz": (lambda: gutowsky_holm(380.0, 40.0 / 400.0), {}),
-    "dnu-other-field": (lambda: gutowsky_holm(380.0, 40.0 * 800.0 / 400.0), {}),
+    # 500 MHz, not 800: Δν read at twice the field is a factor 2 in k, which a k_ex taken for
+    # k_AB reproduces exactly as well (both are named: test_factor_two_names_both_causes)
+    "dnu-other-field": (lambda: gutowsky_holm(380.0, 40.0 * 500.0 / 400.0), {}),
     "kc-pi-dnu": (lambda: eyring(math.pi * 40.0, 380.0), {}),
     "kc-2pi-dnu": (lambda: eyring(2 * math.pi * 40.0, 380.0), {}),
     "log10-for-ln": (lambda: gutowsky_holm(380.0, 40.0) / math.log(10), {}),
@@ -147,6 +149,14 @@ def test_each_slip_is_named(database: Database, slip: str) -> None:
     (f,) = coalescence_findings(database, mid, dg_tolerance_kj_mol=0.3)
     assert f.slips and f.slips[0] == slip, f.likely_cause
     assert f"[{slip}]" in (f.likely_cause or "")
+
+
+def test_factor_two_names_both_causes(database: Database) -> None:
+    # Δν read at 800 instead of 400 MHz doubles k_c exactly as k_ex = 2·k_AB does: both named
+    reported = gutowsky_holm(380.0, 80.0)
+    mid = add(database, tc="380 K", dnu="40 Hz", dg=f"{reported:.3f} kJ/mol")
+    (f,) = coalescence_findings(database, mid, dg_tolerance_kj_mol=0.3)
+    assert set(f.slips) == {"k-exchange-as-per-site", "dnu-other-field"}, f.likely_cause
 
 
 def test_celsius_written_as_kelvin_is_named(database: Database) -> None:

@@ -186,10 +186,33 @@ def test_inside_the_liquid_range_is_quiet(database: Database) -> None:
 
 
 def test_barrier_outside_the_nmr_range(database: Database) -> None:
+    # 3.5 kcal/mol at 150 K is k ≈ 2.5×10⁷ s⁻¹, faster than a line shape sees (≤ 10⁶ s⁻¹):
+    # the edge is ΔG‡ of k = 10⁶ s⁻¹ at 150 K, RT·ln(k_B·T/(h·10⁶)) (Eyring 1935)
     mid = add(database, dg="3.5 kcal/mol", dg_t="150 K")
     (f,) = findings(database, mid, "barrier-method-range")
     assert f.unit == "kcal/mol"
+    edge_kj = R_KJ * 150.0 * math.log(KB_H * 150.0 / 1.0e6)
+    assert f.recomputed == pytest.approx(edge_kj / C.calorie)
+    assert "faster than lineshape can measure" in f.message
+
+
+def test_barrier_without_temperature_uses_the_energy_window(database: Database) -> None:
+    mid = add(database, dg="3.5 kcal/mol")
+    (f,) = findings(database, mid, "barrier-method-range")
     assert f.recomputed == pytest.approx(20.0 / C.calorie)
+    assert "no temperature is stored" in f.message
+
+
+def test_slow_exsy_at_high_temperature_is_plausible(database: Database) -> None:
+    # 108 kJ/mol at 400 K: k = (k_B·T/h)·exp(−ΔG‡/RT) ≈ 0.066 s⁻¹, inside what EXSY measures
+    k = KB_H * 400.0 * math.exp(-108.0 / (R_KJ * 400.0))
+    assert 0.01 < k < 0.1
+    mid = add(database, method="2d-exchange", dg="108 kJ/mol", dg_t="400 K")
+    assert findings(database, mid, "barrier-method-range") == []
+    # the same barrier at 300 K is k ≈ 10⁻⁶ s⁻¹: no cross peaks build up
+    slow = add(database, method="2d-exchange", dg="108 kJ/mol", dg_t="300 K")
+    (f,) = findings(database, slow, "barrier-method-range")
+    assert "slower than 2d-exchange" in f.message
 
 
 def test_slow_kinetics_are_not_an_nmr_barrier(database: Database) -> None:

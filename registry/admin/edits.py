@@ -82,6 +82,9 @@ def stored_input(
     )
     if process is not None:
         inp.process, inp.sites, inp.nucleus = process["kind"], process["sites"], process["nucleus"]
+    for f in _RECORDED_TEXT_FIELDS:  # convention, degeneracy, order, direction, calibration
+        value = m.get(f.text_column or "")
+        setattr(inp, f.name, None if value is None else str(value))
     mhz = m["field_mhz"]
     for f in fields.stored_values("measurement"):
         _set_stored(inp, f, m[f.text_column], m[f.value_column], mhz)
@@ -92,7 +95,29 @@ def stored_input(
             at = shift_mhz(mhz, nucleus) if f.name == "dnu" else mhz
             _set_stored(inp, f, coalescence[f.text_column], coalescence[f.value_column], at)
         inp.population = coalescence["population_text"]
+        if _legacy_fraction(coalescence):
+            inp.units["population"] = "fraction"  # read so when it was stored
     return inp
+
+
+#: measurement text fields beyond those :func:`stored_input` sets by name
+_RECORDED_TEXT_FIELDS = tuple(
+    f for f in fields.FIELDS
+    if f.table == "measurement" and not f.is_value and f.entry
+    and f.name not in ("label", "method", "solvent", "reference", "status")
+)  # fmt: skip
+
+
+def _legacy_fraction(coalescence: dict[str, Any]) -> bool:
+    """A bare population number below 1 stored before such texts were refused as ambiguous was
+    read as one site's fraction; it keeps that reading (so an edit of another field works)."""
+    text = coalescence.get("population_text")
+    if text is None:
+        return False
+    from registry.record.populations import legacy_population_ratio
+
+    old = legacy_population_ratio(text)
+    return old is not None and same_value(old, coalescence.get("population_ratio"))
 
 
 def _set_stored(

@@ -38,14 +38,21 @@ from registry.storage.connection import Connection
 
 #: the actions that create a measurement (its first revision)
 CREATING = ("add", "import")
-#: the measurement columns an entry fills (those of :func:`registry.record.entry.normalize_entry`)
-COLUMNS: tuple[str, ...] = (
-    *(
+
+
+def _stored_columns(table: str) -> tuple[str, ...]:
+    """The text, value and error columns of a table's stored fields (the fields table)."""
+    return tuple(
         c
-        for f in fields.stored_values("measurement")
+        for f in fields.stored_values(table)
         for c in (f.text_column, f.value_column, f.error_column)
         if c
-    ),
+    )
+
+
+#: the measurement columns an entry fills (those of :func:`registry.record.entry.normalize_entry`)
+COLUMNS: tuple[str, ...] = (
+    *_stored_columns("measurement"),
     "label",
     "method",
     "solvent_text",
@@ -54,12 +61,7 @@ COLUMNS: tuple[str, ...] = (
 )
 #: the columns of a coalescence row an entry fills
 COALESCENCE_COLUMNS: tuple[str, ...] = (
-    *(
-        c
-        for f in fields.stored_values("coalescence")
-        for c in (f.text_column, f.value_column, f.error_column)
-        if c
-    ),
+    *_stored_columns("coalescence"),
     "population_ratio",
     "population_text",
     "field_mhz",

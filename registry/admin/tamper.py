@@ -77,6 +77,7 @@ _NUMBER_COLUMNS: dict[str, tuple[str, ...]] = {
     for table in ("measurement", "coalescence", "rate_point")
 }
 _NUMBER_COLUMNS["coalescence"] += ("population_ratio", "field_mhz")
+_NUMBER_COLUMNS["measurement"] += ("t_calibration_err_k",)
 _NUMBER_COLUMNS["validation_finding"] = ("reported", "recomputed", "difference")
 
 

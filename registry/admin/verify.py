@@ -11,7 +11,8 @@ from registry.admin import derived, replay, tamper
 from registry.admin.reread import reread_value, same_value, shift_mhz
 from registry.errors import UnitError
 from registry.record import fields
-from registry.record.entry import parse_population_ratio
+from registry.record.conventions import read_calibration
+from registry.record.populations import legacy_population_ratio, parse_population_ratio
 from registry.storage import audit, migrate
 from registry.storage.connection import Connection
 from registry.storage.database import Database, head_revision, open_database
@@ -250,12 +251,36 @@ def _columns(table: str) -> list[str]:
 
 def _measurement_values(conn: Connection, problems: list[str]) -> int:
     count = 0
-    columns = ", ".join(dict.fromkeys(["id", *_columns("measurement")]))
+    calibration = ["t_calibration_text", "t_calibration", "t_calibration_err_k"]
+    columns = ", ".join(dict.fromkeys(["id", *_columns("measurement"), *calibration]))
     for row in conn.records(f"SELECT {columns} FROM measurement ORDER BY id"):
         # ΔG‡ at Tc without a reported temperature is derived from the coalescence row
         skip = ("dg_t",) if row["dg_t_text"] is None else ()
         count += _check_values(f"measurement {row['id']}", row, "measurement", problems, skip=skip)
+        count += _calibration_problem(f"measurement {row['id']}", row, problems)
     return count
+
+
+def _calibration_problem(where: str, row: dict[str, Any], problems: list[str]) -> int:
+    """The calibration text must read as the stored calibration and σ(T); 1 when there is one."""
+    text = row["t_calibration_text"]
+    if text is None:
+        if row["t_calibration"] is not None or row["t_calibration_err_k"] is not None:
+            problems.append(f"{where}: a calibration is stored without its text")
+        return 0
+    try:
+        reading = read_calibration(text)
+    except UnitError:
+        problems.append(f"{where}: t_calibration_text {text!r} does not read as a calibration")
+        return 1
+    if reading.name != row["t_calibration"] or not same_value(
+        reading.sigma_k, row["t_calibration_err_k"]
+    ):
+        problems.append(
+            f"{where}: t_calibration_text {text!r} reads as {reading.name} ± "
+            f"{reading.sigma_k:g} K, stored {row['t_calibration']} ± {row['t_calibration_err_k']}"
+        )
+    return 1
 
 
 def _coalescence_values(conn: Connection, problems: list[str]) -> int:
@@ -279,8 +304,8 @@ def _coalescence_values(conn: Connection, problems: list[str]) -> int:
             count += 1
             try:
                 ratio = parse_population_ratio(row["population_text"])
-            except UnitError:
-                ratio = math.nan
+            except UnitError:  # a bare fraction stored before such texts were refused
+                ratio = legacy_population_ratio(row["population_text"]) or math.nan
             if not same_value(ratio, row["population_ratio"]):
                 problems.append(
                     f"{where}: population_text {row['population_text']!r} reads as ratio "

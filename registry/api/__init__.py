@@ -20,8 +20,11 @@ Grouped by what they act on:
 * ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
   :func:`build_report`; ``paper_tables`` — :func:`export_si_table`
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
-  :func:`calc_halflife`, :func:`calc_plan` (kinetics at the bench, no database)
-* ``files``     — :func:`import_table`, :func:`export_measurements`
+  :func:`calc_halflife`, :func:`calc_plan`, :func:`calc_exsy`, :func:`calc_transfer`,
+  :func:`calc_timecourse` (kinetics at the bench, no database)
+* ``files``     — :func:`import_table`, :func:`export_measurements` (csv, xlsx, ods, SD files)
+* ``structures`` — :func:`smiles_from_molfile` (a Molfile read into the SMILES ``add`` takes)
+* ``estimate``  — :func:`estimate_barrier` (a barrier from the nearest measured compounds, and a plan)
 * ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
   :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
 * ``server``    — :func:`migrate_to`, :func:`server_search_status`, :func:`enable_server_search`
@@ -39,8 +42,18 @@ from registry.api.admin import (
     upgrade_schema,
     verify,
 )
-from registry.api.calc import calc_coalescence, calc_eyring, calc_halflife, calc_plan, calc_rate
+from registry.api.calc import (
+    calc_coalescence,
+    calc_exsy,
+    calc_eyring,
+    calc_halflife,
+    calc_plan,
+    calc_rate,
+    calc_timecourse,
+    calc_transfer,
+)
 from registry.api.checks import accept_finding, check
+from registry.api.estimate import BarrierEstimate, estimate_barrier
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.files import export_measurements, import_table
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
@@ -68,6 +81,7 @@ from registry.api.search import (
     remove_motif,
 )
 from registry.api.server import enable_server_search, migrate_to, server_search_status
+from registry.api.structures import smiles_from_molfile
 from registry.api.values import canonical_unit, convert, read_value, spreadsheet_safe
 from registry.api.vocabulary import (
     add_alias,
@@ -84,6 +98,7 @@ from registry.storage.database import Database, take_warnings
 
 __all__ = [
     "TABLE_COLUMNS",
+    "BarrierEstimate",
     "Database",
     "accept_finding",
     "actor_name",
@@ -97,16 +112,20 @@ __all__ = [
     "backup",
     "build_report",
     "calc_coalescence",
+    "calc_exsy",
     "calc_eyring",
     "calc_halflife",
     "calc_plan",
     "calc_rate",
+    "calc_timecourse",
+    "calc_transfer",
     "canonical_unit",
     "check",
     "convert",
     "deferred_checks",
     "edit_measurement",
     "enable_server_search",
+    "estimate_barrier",
     "export_measurements",
     "export_si_table",
     "find",
@@ -138,6 +157,7 @@ __all__ = [
     "schema_state",
     "server_search_status",
     "simulate_lineshape",
+    "smiles_from_molfile",
     "spreadsheet_safe",
     "summarize_change",
     "take_warnings",

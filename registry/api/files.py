@@ -11,7 +11,7 @@ from registry.errors import UsageError
 from registry.storage.database import Database
 
 #: the file formats :func:`export_measurements` writes: data files, and tables for papers
-DATA_FORMATS = ("csv", "xlsx", "json")
+DATA_FORMATS = ("csv", "xlsx", "json", "sdf")
 TABLE_FORMATS = ("latex", "tex", "markdown", "md")
 
 
@@ -82,7 +82,8 @@ def export_measurements(
     """Write the measurements the filters select (the keywords of :func:`list_measurements`)
     to ``out``.
 
-    ``format`` is csv, xlsx or json (reported texts, normalized values, findings, rate points;
+    ``format`` is csv, xlsx, json or sdf (an SD file: each measurement's structure as a
+    Molfile, its columns as data items; reported texts, normalized values, findings, rate points;
     text cells a spreadsheet would evaluate get a leading apostrophe, which the importer strips
     again), or latex/markdown for a table in a paper (ΔG‡, ΔH‡, ΔS‡ in ``energy_unit``,
     uncertainties as ``62.3(4)`` with ``uncertainty='paren'`` or ``62.3 ± 0.4`` with
@@ -105,8 +106,9 @@ def export_measurements(
     kind = (format or target.suffix.lstrip(".")).lower()
     if kind not in DATA_FORMATS + TABLE_FORMATS:
         raise UsageError(
-            f"format must be one of csv, xlsx, json, latex, markdown (got {kind or 'none'!r}); "
-            "name it, or end the file name in .csv, .xlsx, .json, .tex or .md"
+            "format must be one of csv, xlsx, json, sdf, latex, markdown "
+            f"(got {kind or 'none'!r}); "
+            "name it, or end the file name in .csv, .xlsx, .json, .sdf, .tex or .md"
         )
     if kind in TABLE_FORMATS:
         from registry.reports.table_file import export_table

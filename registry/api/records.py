@@ -147,6 +147,7 @@ def list_measurements(
     *,
     ids: Sequence[int] | None = None,
     limit: int | None = None,
+    sort: str | None = None,
     **filters: Any,
 ) -> Rows:
     """Measurements with their compound, filtered; retracted ones only when asked for.
@@ -158,22 +159,32 @@ def list_measurements(
     kJ/mol), ``include_retracted`` and ``flagged`` (True: only measurements with an error
     finding nobody accepted; False: only clean ones; see
     :func:`registry.search.filters.listing_filters`). Every row has ``flagged`` (1 or 0).
+    ``at`` (a temperature: ``'298.15 K'``, ``'25 °C'``) adds ΔG‡ at that temperature to every
+    row — ΔH‡ − TΔS‡ where both are stored, the reported ΔG‡ where it was quoted there —
+    with its σ where the ΔH‡/ΔS‡ correlation is stored and whether it is extrapolated
+    beyond the measured range (:mod:`registry.search.at_temperature`); the ``barrier``
+    filters and the ``barrier`` sort then use it. ``sort``: ``id`` (default), ``barrier``,
+    ``-barrier``, ``temperature``, ``-temperature``, ``compound``, ``solvent``, ``method``.
     The result is a list of dicts; ``.to_frame()`` gives a pandas DataFrame.
     """
     from registry.search.filters import listing_filters
 
     return _listing(
-        database, listing_filters(**filters), None if ids is None else as_ids(ids), limit
+        database, listing_filters(**filters), None if ids is None else as_ids(ids), limit, sort
     )
 
 
 def _listing(
-    database: Database, filters: Any, ids: Sequence[int] | None, limit: int | None
+    database: Database,
+    filters: Any,
+    ids: Sequence[int] | None,
+    limit: int | None,
+    sort: str | None = None,
 ) -> Rows:
     from registry.search.filters import listing_rows
 
     with database.read() as conn:
-        return Rows(listing_rows(conn, filters, ids=ids, limit=limit))
+        return Rows(listing_rows(conn, filters, ids=ids, limit=limit, sort=sort))
 
 
 def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
@@ -223,8 +234,12 @@ def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
     if compound:
         compound["created_at"] = utc(compound["created_at"])
     extra = json.loads(m.pop("extra_json") or "null")
+    from registry.record.conventions import recorded
+
     return {
         **m,
+        "recorded": recorded(m),
+        "at_298": _at_standard(m, rates),
         "extra": extra,
         "compound": compound,
         "process": process,
@@ -234,6 +249,28 @@ def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
         "findings": findings,
         "flagged": bool(flagged),
         "revision_count": int(revisions),
+    }
+
+
+def _at_standard(m: dict[str, Any], rates: list[dict[str, Any]]) -> dict[str, Any] | None:
+    """ΔG‡ at 298.15 K from ΔH‡ − TΔS‡ (σ where the correlation is stored), None without
+    both; ``extrapolated`` as in a listing with a common temperature."""
+    from registry.search.at_temperature import DEFAULT_T_K, dg_at, extrapolated
+
+    value, err = dg_at(
+        m["dh_kj_mol"], m["ds_j_mol_k"], DEFAULT_T_K,
+        dh_err=m["dh_err_kj_mol"], ds_err=m["ds_err_j_mol_k"], corr=m.get("dh_ds_corr"),
+    )  # fmt: skip
+    if value is None:
+        return None
+    lo, hi = m["t_min_k"], m["t_max_k"]
+    if (lo is None or hi is None) and rates:
+        lo, hi = min(r["t_k"] for r in rates), max(r["t_k"] for r in rates)
+    return {
+        "t_k": DEFAULT_T_K,
+        "dg_kj_mol": value,
+        "dg_err_kj_mol": err,
+        "extrapolated": extrapolated(DEFAULT_T_K, lo, hi, "dh-ds"),
     }
 
 

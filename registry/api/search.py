@@ -38,6 +38,7 @@ def find(
     include_retracted: bool = False,
     flagged: bool | None = None,
     include_flagged: bool = False,
+    at: str | float | None = None,
     sort: str | None = None,
     limit: int | None = None,
     atoms: bool = False,
@@ -46,7 +47,8 @@ def find(
     output: str = "rows",
     time_limit: float | None = None,
 ) -> FindResult:
-    """Every measurement on a compound that contains ``smarts``/``smiles``/``motif`` (or is at
+    """
+    # long: the keyword arguments of every filter and their docstring; the body only forwardsEvery measurement on a compound that contains ``smarts``/``smiles``/``motif`` (or is at
     least ``min_similarity`` similar to the SMILES ``similar``), filtered.
 
     Give exactly one of ``smarts``, ``smiles``, ``motif``, ``similar``. Filters are texts as
@@ -63,6 +65,11 @@ def find(
     compound's barrier range from its clean values only, unless ``include_flagged``.
     ``time_limit`` (seconds) stops a search whose pattern confirms slowly with a clear error
     instead of running on; a Ctrl-C ends a search with no partial result.
+
+    ``at`` (a temperature, e.g. ``'298.15 K'``) gives every row ΔG‡ at that temperature —
+    ΔH‡ − TΔS‡ where both are stored, marked ``extrapolated`` outside the measured range; the
+    reported ΔG‡ where it was quoted there — and makes ``barrier`` and the ``barrier`` sort use
+    it (:mod:`registry.search.at_temperature`).
     """
     from registry import search
 
@@ -75,7 +82,7 @@ def find(
         barrier=barrier, temperature=temperature,
         solvent=[solvent] if isinstance(solvent, str) else list(solvent or []),
         method=method, process=process, nucleus=nucleus, status=status, reference=reference,
-        compound=compound, include_retracted=include_retracted, flagged=flagged,
+        compound=compound, include_retracted=include_retracted, flagged=flagged, at=at,
     )  # fmt: skip
     query = None
     if similar is None:

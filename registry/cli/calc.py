@@ -13,6 +13,16 @@ from typing import Any
 import typer
 
 from registry import api
+from registry.cli.calc_methods import register as register_methods
+from registry.cli.calc_text import (
+    dnu_text,
+    duration_text,
+    energy_text,
+    figures,
+    plus_minus,
+    print_lines,
+    temperature_text,
+)
 from registry.cli.context import ErrorBoundaryGroup
 from registry.cli.output import print_json, table_text
 
@@ -32,64 +42,16 @@ _DS = typer.Option(None, "--ds", help="Activation entropy ΔS‡ (use with --dh)
 _KAPPA = typer.Option(1.0, "--kappa", help="Transmission coefficient κ of the Eyring equation.")
 _BP = typer.Option(None, "--solvent-bp", help="Solvent boiling point, e.g. '61 °C', for cautions.")
 _MP = typer.Option(None, "--solvent-mp", help="Solvent melting point, e.g. '-64 °C', for cautions.")
+_NUCLEUS = typer.Option(
+    None,
+    "--nucleus",
+    help="Observed nucleus (1H, 13C, 19F …): a Δν in ppm is taken at its own frequency.",
+)
 _PAIR = typer.Option(
     False,
     "--pair",
     help="Half-life of the excess of one of two equally stable forms (racemization): ln2/(2k).",
 )
-
-
-# --- rendering helpers: numbers to text (the values in each unit come from the api) ----------
-
-
-def _g(x: float | None, digits: int = 3) -> str:
-    """A number with ``digits`` significant figures, plain notation where that reads well."""
-    if x is None or not math.isfinite(x):
-        return "n/a"
-    if x != 0 and (abs(x) >= 1e6 or abs(x) < 1e-3):
-        return f"{x:.{digits - 1}e}"
-    return f"{x:.{digits}g}" if abs(x) >= 10**digits else f"{x:#.{digits}g}".rstrip(".")
-
-
-def _pm(value: float, err: float | None, decimals: int = 1) -> str:
-    if err is None or not math.isfinite(err):
-        return f"{value:.{decimals}f}"
-    return f"{value:.{decimals}f} ± {err:.{decimals}f}"
-
-
-def _energy(e: Any) -> str:
-    """An :class:`~registry.kinetics.quantities.Energy` as 'x ± e kJ/mol  (y ± f kcal/mol)'."""
-    return (
-        f"{_pm(e.kj_mol, e.err_kj_mol, 2)} kJ/mol  ({_pm(e.kcal_mol, e.err_kcal_mol, 2)} kcal/mol)"
-    )
-
-
-def _temp(t: Any) -> str:
-    """A :class:`~registry.kinetics.quantities.Temperature` as 'x ± e K  (y °C)'."""
-    if not math.isfinite(t.k):
-        return "n/a"
-    return f"{_pm(t.k, t.err_k, 2)} K  ({t.celsius:.1f} °C)"
-
-
-def _duration(d: Any) -> str:
-    """A :class:`~registry.kinetics.quantities.Duration` in its largest unit."""
-    if not math.isfinite(d.seconds):
-        return "n/a"
-    return f"{_g(d.value)} {d.unit}"
-
-
-def _dnu_text(dnu_hz: float, err: float | None, field_mhz: float | None) -> str:
-    text = f"{_g(dnu_hz)}" + (f" ± {_g(err)}" if err else "") + " Hz"
-    return text + (f" at {_g(field_mhz)} MHz" if field_mhz else "")
-
-
-def _lines(title: str, pairs: list[tuple[str, str]], notes: list[str] | tuple[str, ...]) -> None:
-    typer.echo(title)
-    width = max(len(k) for k, _ in pairs)
-    for key, value in pairs:
-        typer.echo(f"  {key.ljust(width)}  {value}")
-    for note in notes:
-        typer.echo(f"note: {note}")
 
 
 # --- commands ---------------------------------------------------------------------------------
@@ -103,7 +65,10 @@ def coalescence(
     dnu: str = typer.Option(
         ..., "--dnu", help="Shift difference at slow exchange: '27 Hz', or '0.045 ppm' with --mhz."
     ),
-    mhz: str = typer.Option(None, "--mhz", help="Spectrometer frequency (¹H, MHz) for Δν in ppm."),
+    mhz: str = typer.Option(
+        None, "--mhz", "--field", help="Spectrometer frequency (¹H, MHz) for Δν in ppm."
+    ),
+    nucleus: str = _NUCLEUS,
     tc_err: str = typer.Option(
         None, "--tc-err", help="Uncertainty of Tc, e.g. '1 K' (default ±2 K if none is written)."
     ),
@@ -131,6 +96,7 @@ def coalescence(
         ratio=ratio,
         ratio_err=ratio_err,
         kappa=kappa,
+        nucleus=nucleus,
     )
     if as_json:
         print_json(res.to_dict())
@@ -142,14 +108,14 @@ def coalescence(
 
 def _show_equal(res: Any) -> None:
     pairs = [
-        ("Tc", _temp(res.tc)),
-        ("Δν", _dnu_text(res.dnu_hz, res.dnu_err_hz, res.field_mhz)),
+        ("Tc", temperature_text(res.tc)),
+        ("Δν", dnu_text(res.dnu_hz, res.dnu_err_hz, res.field_mhz, res.nucleus, res.observe_mhz)),
     ]
     if res.coupled:
-        pairs.append(("J", f"{_g(res.j_hz)} Hz"))
+        pairs.append(("J", f"{figures(res.j_hz)} Hz"))
     pairs += [
-        ("k_c", f"{_g(res.k_c_per_s)} s⁻¹"),
-        ("ΔG‡(Tc)", _energy(res.dg)),
+        ("k_c", f"{figures(res.k_c_per_s)} s⁻¹"),
+        ("ΔG‡(Tc)", energy_text(res.dg)),
         (
             "error from",
             f"Tc ±{res.dg_err_from_tc_kj_mol:.2f}, Δν ±{res.dg_err_from_dnu_kj_mol:.2f}"
@@ -157,20 +123,20 @@ def _show_equal(res: Any) -> None:
             + " kJ/mol",
         ),
     ]
-    _lines(f"Coalescence, {res.method}", pairs, res.notes)
+    print_lines(f"Coalescence, {res.method}", pairs, res.notes)
 
 
 def _show_unequal(res: Any) -> None:
     pairs = [
-        ("Tc", _temp(res.tc)),
-        ("Δν", _dnu_text(res.dnu_hz, res.dnu_err_hz, res.field_mhz)),
-        ("ratio", f"{_g(res.ratio)} (Δp = {res.delta_p:.3f}, X = {res.x:.4f})"),
-        ("k major→minor", f"{_g(res.k_major_to_minor_per_s)} s⁻¹"),
-        ("k minor→major", f"{_g(res.k_minor_to_major_per_s)} s⁻¹"),
-        ("ΔG‡ major→minor", _energy(res.dg_major_to_minor)),
-        ("ΔG‡ minor→major", _energy(res.dg_minor_to_major)),
+        ("Tc", temperature_text(res.tc)),
+        ("Δν", dnu_text(res.dnu_hz, res.dnu_err_hz, res.field_mhz, res.nucleus, res.observe_mhz)),
+        ("ratio", f"{figures(res.ratio)} (Δp = {res.delta_p:.3f}, X = {res.x:.4f})"),
+        ("k major→minor", f"{figures(res.k_major_to_minor_per_s)} s⁻¹"),
+        ("k minor→major", f"{figures(res.k_minor_to_major_per_s)} s⁻¹"),
+        ("ΔG‡ major→minor", energy_text(res.dg_major_to_minor)),
+        ("ΔG‡ minor→major", energy_text(res.dg_minor_to_major)),
     ]
-    _lines(f"Coalescence, {res.method}", pairs, res.notes)
+    print_lines(f"Coalescence, {res.method}", pairs, res.notes)
 
 
 @app.command()
@@ -198,30 +164,33 @@ def eyring(
     how = "weighted by σk" if res.weighted else "unweighted, errors from the scatter"
     ds = res.ds
     pairs = [
-        ("points", f"{res.n_points} ({how}), {_temp(res.t_min)} to {_temp(res.t_max)}"),
-        ("ΔH‡", _energy(res.dh)),
+        (
+            "points",
+            f"{res.n_points} ({how}), {temperature_text(res.t_min)} to {temperature_text(res.t_max)}",
+        ),
+        ("ΔH‡", energy_text(res.dh)),
         (
             "ΔS‡",
-            f"{_pm(ds.j_mol_k, ds.err_j_mol_k)} J/(mol·K)  ({_pm(ds.eu, ds.err_eu)} e.u.)",
+            f"{plus_minus(ds.j_mol_k, ds.err_j_mol_k)} J/(mol·K)  ({plus_minus(ds.eu, ds.err_eu)} e.u.)",
         ),
         ("corr(ΔH‡, ΔS‡)", f"{res.corr_dh_ds:.4f}"),
-        (f"ΔG‡({res.t_best_k:.2f} K)", _energy(res.dg_best)),
+        (f"ΔG‡({res.t_best_k:.2f} K)", energy_text(res.dg_best)),
     ]
-    pairs += [(f"ΔG‡({b.t_k:.2f} K)", _energy(b.dg)) for b in res.dg_at]
+    pairs += [(f"ΔG‡({b.t_k:.2f} K)", energy_text(b.dg)) for b in res.dg_at]
     pairs += [
-        ("Ea", _energy(res.ea)),
-        ("log10 A", f"{_pm(res.log10_a_per_s, res.log10_a_err, 2)}  (A in s⁻¹)"),
+        ("Ea", energy_text(res.ea)),
+        ("log10 A", f"{plus_minus(res.log10_a_per_s, res.log10_a_err, 2)}  (A in s⁻¹)"),
         ("R²", f"{res.r_squared:.5f}"),
-        ("95% interval", f"± {_g(res.ci95_factor)} × standard error"),
+        ("95% interval", f"± {figures(res.ci95_factor)} × standard error"),
     ]
-    _lines("Eyring fit: ln(k/T) against 1/T (± one standard error)", pairs, [])
+    print_lines("Eyring fit: ln(k/T) against 1/T (± one standard error)", pairs, [])
     typer.echo("  (ΔG‡ is best determined at the first temperature listed, the centre of the data)")
     typer.echo("")
     rows = [
         {
             "T (K)": f"{p.t_k:.2f}",
-            "k (s⁻¹)": _g(p.k_per_s, 4),
-            "σk (s⁻¹)": "" if p.k_err_per_s is None else _g(p.k_err_per_s, 2),
+            "k (s⁻¹)": figures(p.k_per_s, 4),
+            "σk (s⁻¹)": "" if p.k_err_per_s is None else figures(p.k_err_per_s, 2),
             "residual ln(k/T)": f"{p.residual_ln:+.4f}",
         }
         for p in res.points
@@ -253,8 +222,8 @@ def rate(
             "T (K)": f"{r.t.k:.2f}",
             "T (°C)": f"{r.t.celsius:.1f}",
             "ΔG‡ (kJ/mol)": f"{r.dg_kj_mol:.2f}",
-            "k (s⁻¹)": _g(r.k_per_s),
-            "t½": _duration(r.half_life),
+            "k (s⁻¹)": figures(r.k_per_s),
+            "t½": duration_text(r.half_life),
         }
         for r in res.rows
     ]
@@ -292,9 +261,9 @@ def halflife(
     if as_json:
         print_json(res.to_dict())
         return
-    _lines(
-        f"Temperature for a half-life of {_duration(res.half_life)}",
-        [("T", _temp(res.t)), ("k", f"{_g(res.k_per_s)} s⁻¹")],
+    print_lines(
+        f"Temperature for a half-life of {duration_text(res.half_life)}",
+        [("T", temperature_text(res.t)), ("k", f"{figures(res.k_per_s)} s⁻¹")],
         [],
     )
     for c in res.cautions:
@@ -307,12 +276,16 @@ def plan(
         ..., "--dnu", help="Shift difference: '0.15 ppm' (for each --mhz) or '9 Hz' (one field)."
     ),
     mhz: list[str] = typer.Option(
-        None, "--mhz", help="Spectrometer frequency (MHz). Repeatable; default 60–800 for ppm."
+        None,
+        "--mhz",
+        "--field",
+        help="Spectrometer frequency (MHz). Repeatable; default 60–800 for ppm.",
     ),
     dg: str = _DG,
     dh: str = _DH,
     ds: str = _DS,
     j: str = typer.Option(None, "--j", help="Coupling J between the two sites (AB case)."),
+    nucleus: str = _NUCLEUS,
     t: str = typer.Option("25 °C", "--t", help="Temperature to describe the exchange at."),
     solvent_bp: str = _BP,
     solvent_mp: str = _MP,
@@ -331,15 +304,21 @@ def plan(
         solvent_bp=solvent_bp,
         solvent_mp=solvent_mp,
         kappa=kappa,
+        nucleus=nucleus,
     )
     if as_json:
         print_json(res.to_dict())
         return
+    show_plan(res)
+
+
+def show_plan(res: Any) -> None:
+    """A coalescence plan as text (``calc plan`` and ``estimate`` print it alike)."""
     rows = [
         {
             "field (MHz)": "" if f.field_mhz is None else f"{f.field_mhz:g}",
             "Δν (Hz)": f"{f.dnu_hz:.4g}",
-            "k_c (s⁻¹)": _g(f.k_c_per_s),
+            "k_c (s⁻¹)": figures(f.k_c_per_s),
             "Tc (K)": f"{f.tc.k:.0f}" if math.isfinite(f.tc.k) else "n/a",
             "Tc (°C)": f"{f.tc.celsius:.0f}" if math.isfinite(f.tc.k) else "n/a",
             f"at {res.t.celsius:.0f} °C": f.regime_at_t,
@@ -347,21 +326,25 @@ def plan(
         }
         for f in res.fields
     ]
-    typer.echo("Predicted coalescence (two equally populated sites):")
+    observed = "" if res.nucleus == "1H" else f", {res.nucleus} (Δν at its own frequency)"
+    typer.echo(f"Predicted coalescence (two equally populated sites{observed}):")
     typer.echo(table_text(rows))
     typer.echo("")
-    _lines(
-        f"At {_temp(res.t)}:",
+    print_lines(
+        f"At {temperature_text(res.t)}:",
         [
-            ("ΔG‡", _energy(res.dg_at_t)),
-            ("k", f"{_g(res.k_at_t_per_s)} s⁻¹"),
-            ("t½", _duration(res.half_life_at_t)),
+            ("ΔG‡", energy_text(res.dg_at_t)),
+            ("k", f"{figures(res.k_at_t_per_s)} s⁻¹"),
+            ("t½", duration_text(res.half_life_at_t)),
             (
                 "if an atropisomer",
-                f"LaPlante {res.atropisomer_text}; t½(37 °C) = {_duration(res.half_life_37c)}",
+                f"LaPlante {res.atropisomer_text}; t½(37 °C) = {duration_text(res.half_life_37c)}",
             ),
         ],
         [],
     )
     for c in res.cautions:
         typer.echo(f"caution: {c}")
+
+
+register_methods(app)

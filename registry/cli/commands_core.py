@@ -58,6 +58,17 @@ def info(
         typer.echo(f"{name:<{width}}{value}")
 
 
+def _smiles_or_molfile(smiles: str | None, molfile: str | None) -> str | None:
+    """The structure ``add`` was given: a SMILES, or the SMILES a Molfile stands for."""
+    from registry import api
+
+    if molfile is None:
+        return smiles
+    if smiles is not None:
+        raise UsageError("give the structure once: --smiles or --molfile, not both")
+    return api.smiles_from_molfile(molfile)
+
+
 def add(
     ctx: typer.Context,
     method: str = typer.Option(
@@ -65,6 +76,9 @@ def add(
         help="coalescence, lineshape, 2d-exchange, saturation-transfer, equilibration, computed",
     ),
     smiles: str = typer.Option(None, help="Structure as SMILES."),
+    molfile: str = typer.Option(
+        None, help="Structure as a Molfile (V2000/V3000, e.g. from a structure editor)."
+    ),
     compound: str = typer.Option(None, help="The group's compound label."),
     name: str = typer.Option(None, help="Compound name."),
     process: str = typer.Option(None, help="Process kind (bond-rotation, ring-inversion …)."),
@@ -87,7 +101,35 @@ def add(
     j: str = typer.Option(
         None, "--j", help="Coupling between the exchanging sites (AB), e.g. '12 Hz'."
     ),
-    population: str = typer.Option(None, help="Population ratio, e.g. '60:40'."),
+    population: str = typer.Option(
+        None, help="Populations: '60:40', '3:1', '1.5' (major/minor), '25%', 'p = 0.25'."
+    ),
+    direction: str = typer.Option(
+        None, help="Unequal populations: major-to-minor or minor-to-major (which barrier ΔG‡ is)."
+    ),
+    convention: str = typer.Option(
+        None,
+        help="Which rate constant k and ΔG‡ mean: per-site (k_AB), exchange (k_ex = k_AB + "
+        "k_BA), observed, enantiomerization, racemization (k_rac = 2·k_enant).",
+    ),
+    degeneracy: str = typer.Option(
+        None, help="Path degeneracy (statistical factor σ, a whole number ≥ 1; default 1)."
+    ),
+    kappa: str = typer.Option(None, help="Transmission coefficient κ (default 1)."),
+    order: str = typer.Option(
+        None, help="Reaction order: 1, or 2 for a bimolecular exchange (needs --concentration)."
+    ),
+    concentration: str = typer.Option(
+        None, help="Partner concentration for order 2, e.g. '0.05 M' (ΔG‡ then refers to 1 M)."
+    ),
+    calibration: str = typer.Option(
+        None,
+        help="How the probe temperature was calibrated: methanol, ethylene glycol, thermocouple, "
+        "none, other; optionally with σ(T), e.g. 'methanol ± 0.3 K'.",
+    ),
+    dh_ds_corr: str = typer.Option(
+        None, "--dh-ds-corr", help="Correlation of ΔH‡ and ΔS‡ from their fit (−1 … 1)."
+    ),
     t_min: str = typer.Option(None, "--t-min", help="Lowest temperature measured."),
     t_max: str = typer.Option(None, "--t-max", help="Highest temperature measured."),
     rate: list[str] = typer.Option(
@@ -101,6 +143,7 @@ def add(
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """Add one measurement; values take units in any usual notation."""
+    # long: only by its option declarations; the body builds the entry and renders
     from registry import api
 
     rates = []
@@ -109,11 +152,14 @@ def add(
             raise UsageError(f"--rate {text!r}: write 'T, k', e.g. '298 K, 12.5 s-1'")
         t_text, k_text = (part.strip() for part in text.split(",", 1))
         rates.append((t_text, k_text))
+    smiles = _smiles_or_molfile(smiles, molfile)
     entry = dict(
         method=method, smiles=smiles, compound=compound, name=name, process=process, sites=sites,
         nucleus=nucleus, solvent=solvent, field=field, dg=dg, dg_t=dg_t, dh=dh, ds=ds, ea=ea,
         log10_a=log10_a, tc=tc, dnu=dnu, j=j, population=population, t_min=t_min, t_max=t_max,
-        reference=reference, label=label, status=status, rates=rates,
+        direction=direction, convention=convention, degeneracy=degeneracy, kappa=kappa,
+        order=order, concentration=concentration, calibration=calibration,
+        dh_ds_corr=dh_ds_corr, reference=reference, label=label, status=status, rates=rates,
         units={"field": "MHz"},  # the option is --mhz/--field: a bare number means MHz
     )  # fmt: skip
     st = state(ctx)
@@ -207,6 +253,7 @@ def _show_text(r: dict[str, Any]) -> str:
         lines.append(
             f"  T range      {_fmt(r['t_min_k'], None, 'K', None)} … {_fmt(r['t_max_k'], None, 'K', None)}"
         )
+    lines += _recorded_lines(r)
     for co in r["coalescence"]:
         extra = (f", J {co['j_hz']:.1f} Hz" if co["j_hz"] else "") + (
             f", populations {co['population_text']}" if co["population_text"] else ""
@@ -235,6 +282,50 @@ def _show_text(r: dict[str, Any]) -> str:
     return "\n".join(lines)
 
 
+def _recorded_lines(r: dict[str, Any]) -> list[str]:
+    """ΔG‡ at 298.15 K, which rate constant the values mean, and the temperature calibration."""
+    lines = []
+    at = r.get("at_298")
+    if at is not None:
+        err = "σ not available (no ΔH‡/ΔS‡ correlation stored)"
+        if at["dg_err_kj_mol"] is not None:
+            err = f"± {at['dg_err_kj_mol']:.2f}"
+        where = {"yes": ", extrapolated beyond the measured range", "no": ""}.get(
+            at["extrapolated"], ", measured range unknown"
+        )
+        lines.append(
+            f"  ΔG‡(298.15 K) {at['dg_kj_mol']:.2f} kJ/mol {err} (ΔH‡ − TΔS‡{where})".rstrip()
+        )
+    rec = r["recorded"]
+    if rec["convention"]:
+        k = f"{rec['convention']}: {rec['convention_meaning']}"
+    else:
+        k = f"unspecified (the checks read it as {rec['convention_read_as']})"
+    extras = []
+    if rec["degeneracy"] is not None:
+        extras.append(f"path degeneracy {rec['degeneracy']}")
+    if rec["kappa"] is not None:
+        extras.append(f"κ {rec['kappa']:g}")
+    if rec["order"] == 2:
+        extras.append(
+            f"bimolecular at {rec['concentration_m']:g} mol/L: ΔG‡ refers to the 1 M standard state"
+        )
+    elif rec["order"] == 1:
+        extras.append("first order")
+    if rec["direction"]:
+        extras.append(f"ΔG‡ {rec['direction']}")
+    lines.append(f"  rate const.  {k}" + (f"; {', '.join(extras)}" if extras else ""))
+    if rec["calibration"]:
+        how = "default for it" if rec["calibration_default_sigma"] else "as stated"
+        lines.append(
+            f"  T calibr.    {r['t_calibration_text']}: σ(T) {rec['calibration_sigma_k']:g} K "
+            f"({how})"
+        )
+    else:
+        lines.append("  T calibr.    not recorded")
+    return lines
+
+
 def list_cmd(
     ctx: typer.Context,
     compound: str = typer.Option(None, help="Compound label or name contains this text."),
@@ -245,10 +336,22 @@ def list_cmd(
     ),
     process: str = typer.Option(None, help="Only this process kind."),
     status: str = typer.Option(None, help="Only this status."),
+    barrier: str = typer.Option(
+        None, "--barrier", help="ΔG‡ range in any unit: '>= 22 kcal/mol', '80-100 kJ/mol'."
+    ),
     barrier_min: str = typer.Option(
         None, "--barrier-min", help="Lowest ΔG‡, any unit, e.g. '15 kcal/mol'."
     ),
     barrier_max: str = typer.Option(None, "--barrier-max", help="Highest ΔG‡, any unit."),
+    at: str = typer.Option(
+        None,
+        "--at",
+        help="Compare barriers at one temperature, e.g. '298.15 K': ΔG‡ = ΔH‡ − TΔS‡ where "
+        "both are stored (marked when extrapolated); --barrier and --sort barrier use it.",
+    ),
+    sort: str = typer.Option(
+        None, "--sort", help="id, barrier, -barrier, temperature, -temperature, compound, solvent."
+    ),
     include_retracted: bool = typer.Option(
         False, "--include-retracted", help="Show retracted measurements too."
     ),
@@ -265,10 +368,14 @@ def list_cmd(
     database = api.open_registry(state(ctx).db)
     rows = api.list_measurements(
         database, compound=compound, method=method, solvent=solvent, process=process,
-        status=status, barrier_min=barrier_min, barrier_max=barrier_max,
-        include_retracted=include_retracted, flagged=only, limit=limit,
+        status=status, barrier=barrier, barrier_min=barrier_min, barrier_max=barrier_max,
+        include_retracted=include_retracted, flagged=only, limit=limit, at=at, sort=sort,
     )  # fmt: skip
     if as_json or as_csv:
         render_rows(rows, as_json=as_json, as_csv=as_csv)
         return
-    render_rows(flags.marked(rows), columns=list(api.TABLE_COLUMNS["list"]))
+    columns = list(api.TABLE_COLUMNS["list"])
+    if at is not None:  # ΔG‡ at the common temperature beside each reported ΔG‡ and its T
+        at_columns = ["dg_at_kj_mol", "dg_at_err_kj_mol", "at_t_k", "extrapolated"]
+        columns[columns.index("dg_t_k") + 1 : columns.index("dg_t_k") + 1] = at_columns
+    render_rows(flags.marked(rows), columns=columns)

@@ -79,6 +79,12 @@ def find(
     flagged: bool = flags.FLAGGED,
     clean: bool = flags.CLEAN,
     include_flagged: bool = flags.include_option("the barrier ranges of --compounds"),
+    at: str = typer.Option(
+        None,
+        "--at",
+        help="Compare barriers at one temperature, e.g. '298.15 K': ΔG‡ = ΔH‡ − TΔS‡ where "
+        "both are stored (marked when extrapolated); --barrier and --sort barrier use it.",
+    ),
     sort: str = typer.Option(
         None,
         "--sort",
@@ -130,7 +136,7 @@ def find(
             barrier=barrier, temperature=temperature, solvent=solvent, method=method,
             process=process, nucleus=nucleus, status=status, reference=reference,
             include_retracted=include_retracted, flagged=only, include_flagged=include_flagged,
-            sort=sort, limit=None if compounds else limit, atoms=as_json and not no_atoms,
+            at=at, sort=sort, limit=None if compounds else limit, atoms=as_json and not no_atoms,
             threads=threads, rebuild_index=rebuild_index, time_limit=time_limit,
             output="csv" if as_csv and not compounds else "rows",
         )  # fmt: skip
@@ -150,6 +156,9 @@ def find(
         columns = list(api.TABLE_COLUMNS["find"])
         if similar is not None:
             columns = [*columns[:2], "similarity", *columns[2:]]
+        if at is not None:  # ΔG‡ at the common temperature beside each reported ΔG‡ and its T
+            where = columns.index("dg_t_k") + 1
+            columns[where:where] = ["dg_at_kj_mol", "dg_at_err_kj_mol", "at_t_k", "extrapolated"]
         rows = [{**r, "compound": r["compound"] or r["compound_name"]} for r in result.rows]
         render_rows(flags.marked(rows), columns=columns)
     typer.echo(_summary(result), err=True)

@@ -291,7 +291,7 @@ def export_cmd(
     fmt: str = typer.Option(
         None,
         "--format",
-        help="csv, xlsx, json, latex or markdown (default: from the file name; .tex, .md).",
+        help="csv, xlsx, json, sdf, latex or markdown (default: from the file name; .tex, .md).",
     ),
     compound: str = typer.Option(None, help="Compound label or name contains this text."),
     method: str = typer.Option(None, help="Only this method."),

@@ -30,7 +30,6 @@ _PLAIN_NUMBER = re.compile(
     r"(?:\s*(?:±|\+/-|\+-)\s*\+?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+\-]?\d+)?)?$"
 )
 _NUMBER_PREFIX = re.compile(r"^\s*([+\-−–]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+\-]?\d+)?)(.*)$")
-_TRIGGER_CHARS = "=+-@\t\r"
 
 
 #: where a spreadsheet may start a cell: the start of the text, and after a separator that a
@@ -45,6 +44,15 @@ def neutralise(text: str) -> str:
     start a cell there). Apostrophes the user typed before a trigger get one more, so
     :func:`unneutralise` gives back exactly the text."""
     return _TO_GUARD.sub(r"\1'\2", text) if text else text
+
+
+_APOSTROPHE_RUN = re.compile(r"(^|[;,\t])('+[=+\-@\t\r])")
+
+
+def keep_apostrophes(text: str) -> str:
+    """For files no spreadsheet opens (SD files): no guard, but an apostrophe the user typed
+    before a trigger gets one more, so that the importer's :func:`unneutralise` keeps it."""
+    return _APOSTROPHE_RUN.sub(r"\1'\2", text) if text else text
 
 
 def unneutralise(text: str) -> str:
@@ -94,8 +102,8 @@ def column_texts(series: Any) -> list[str | None]:
     for v in series.tolist():
         if type(v) is str:
             t = v.strip()
-            if len(t) > 1 and t[0] == "'" and t[1] in _TRIGGER_CHARS:
-                t = t[1:].strip()
+            if "'" in t:  # the same reading as cell_text's, only for texts that may need it
+                t = unneutralise(t).strip()
             append(t or None)
         else:
             append(cell_text(v))

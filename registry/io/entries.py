@@ -34,7 +34,8 @@ from registry.io.mapping import Column, SheetPlan
 from registry.io.readers import RawSheet
 from registry.io.results import ReadResult, RowSource
 from registry.record import fields
-from registry.record.entry import EntryInput
+from registry.record.conventions import read_convention
+from registry.record.entry import EntryInput, blank
 from registry.record.spelling import fold
 
 #: fields of one entry whose cells are kept as text (log10 A too: a bare number, read later)
@@ -345,7 +346,32 @@ def _row_rates(
             reason = "a rate constant needs its temperature (a T column)"
             problems.append(RowProblem(file, sheet, row_no, k_col.header, k_text, reason))
         else:
+            conflict = take_convention(entry, k_col.convention, k_col.header)
+            if conflict:
+                problems.append(
+                    RowProblem(file, sheet, row_no, k_col.header, entry.convention, conflict)
+                )
             err = texts[cols.k_error.index][i] if cols.k_error is not None else None
             entry.rates.append((entry.dg_t, with_unit(combine_error(k_text, err), k_col.unit)))
             sources.append((sheet, row_no))
     return sources
+
+
+def take_convention(entry: EntryInput, convention: str | None, header: str) -> str | None:
+    """Give ``entry`` the convention a rate column's header names; the reason when the entry
+    already says another one (a ``kex`` column under a row that records per-site k)."""
+    if convention is None:
+        return None
+    if blank(entry.convention):
+        entry.convention = convention
+        return None
+    try:
+        stated = read_convention(str(entry.convention))
+    except UnitError:
+        return None  # the entry's own text is reported when the entry is normalized
+    if stated == convention:
+        return None
+    return (
+        f"the column {header!r} holds {convention} rate constants, but the entry records the "
+        f"convention {stated}; one of them is wrong"
+    )

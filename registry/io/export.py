@@ -31,13 +31,13 @@ from pathlib import Path
 from typing import Any
 
 from registry.errors import UsageError
-from registry.io.cells import RATE_COLUMNS, format_rate_list, neutralise
+from registry.io.cells import RATE_COLUMNS, format_rate_list, keep_apostrophes, neutralise
 from registry.io.identity import UID_HEADER
 from registry.outputs import OddValues, check_target, not_finite, write_atomically, write_file
 from registry.record import fields
 from registry.storage.database import Database
 
-FORMATS = ("csv", "xlsx", "json")
+FORMATS = ("csv", "xlsx", "json", "sdf")
 
 #: which part of a gathered record each table's columns are in
 _PART = {"measurement": "m", "compound": "c", "process": "p", "coalescence": "co"}
@@ -231,7 +231,8 @@ def _safe(value: Any) -> Any:
 def write_export(
     database: Database, ids: Sequence[int], output: str | Path, fmt: str | None = None
 ) -> dict[str, Any]:
-    """Write the measurements ``ids`` as csv, xlsx or json (``fmt``, else the file's suffix)."""
+    """Write the measurements ``ids`` as csv, xlsx, json or sdf (``fmt``, else the file's
+    suffix)."""
     path = check_target(output, what="export", protect=database.path)
     fmt = (fmt or path.suffix.lstrip(".")).lower()
     if fmt not in FORMATS:
@@ -248,6 +249,12 @@ def write_export(
             fh.write(text + "\n")
     elif fmt == "csv":
         _write_csv(path, rows, _columns(rows))
+    elif fmt == "sdf":
+        from registry.io.sdfile import write_sd
+
+        titles = [(r["c"].get("smiles_input"), _title(r)) for r in records]
+        safe = [{c: _sd_text(v) for c, v in row.items()} for row in rows]
+        write_sd(path, titles, safe, _columns(rows))
     else:
         write_file(path, lambda tmp: _write_xlsx(tmp, rows, _columns(rows)))
     return {
@@ -265,13 +272,27 @@ _ODD_NUMBERS = {
     "csv": "written as inf or nan",
     "xlsx": "written as the text inf or nan",
     "json": "written as null (JSON has no inf or nan; the reported texts are kept)",
+    "sdf": "written as inf or nan",
 }
 _ODD_TEXTS = {
     "csv": "kept as they are",
     "xlsx": "kept, written as _x0001_ and the like, which Excel and 'fluxledger import' read "
     "back as the character",
     "json": "kept (written as \\u0001 and the like)",
+    "sdf": "kept as they are",
 }
+
+
+def _sd_text(value: Any) -> Any:
+    """An SD data item is no spreadsheet cell: texts as they are, apostrophes kept on import."""
+    return keep_apostrophes(value) if isinstance(value, str) else value
+
+
+def _title(rec: dict[str, Any]) -> str:
+    """The Molfile's name line: the compound's name, else its label (the import reads a title
+    that is not the label as the name)."""
+    c = rec["c"]
+    return c.get("name") or c.get("label") or f"measurement {rec['m']['id']}"
 
 
 def _finite(value: Any) -> Any:

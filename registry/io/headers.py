@@ -22,13 +22,14 @@ from registry.record import fields
 
 #: fields whose cells are physical values, and the quantity kind each is read as
 VALUE_QUANTITY: dict[str, str] = {
-    f.name: f.quantity for f in fields.FIELDS if f.quantity and f.name != "log10_a"
+    f.name: f.quantity for f in fields.FIELDS if f.quantity and f.quantity != "dimensionless"
 }
 
-#: fields whose cells are plain text (log10 A is a bare number: read as text, then parsed)
+#: fields whose cells are plain text (log10 A, κ, a correlation: bare numbers, read as text
+#: and then parsed, never given a header's unit)
 TEXT_FIELDS = (
     *(f.name for f in fields.FIELDS if not f.is_value),
-    "log10_a",
+    *(f.name for f in fields.FIELDS if f.quantity == "dimensionless"),
 )
 
 #: every field a column can be mapped to (besides '<value field>_err', 'extra', 'ignore')
@@ -76,6 +77,7 @@ _GREEK = {
     "σ": "sigma",
     "τ": "tau",
     "Ω": "omega",
+    "κ": "kappa",
 }
 _DAGGERS = ("‡", "≠", "#", "†", "^", "*")
 #: words that join a concept without naming it ("T for ΔG‡", "temperature of coalescence")
@@ -91,6 +93,8 @@ class HeaderGuess:
     field: str | None
     unit: str | None
     role: str  # "value", "error", "extra", "ignore", "derived"
+    #: for a rate column, the rate constant its header names (``kex`` → exchange), else None
+    convention: str | None = None
 
 
 def concept_key(name: str) -> str:
@@ -161,6 +165,9 @@ def guess_header(header: str) -> HeaderGuess:
         return HeaderGuess(raw, None, None, "derived")
     if low.startswith(EXTRA_PREFIX):
         return HeaderGuess(raw, None, None, "extra")
+    whole = concept_key(raw)
+    if "/" in raw and len(whole) > 4 and whole in CONCEPTS:  # "ΔH‡/ΔS‡ corr": one name
+        return HeaderGuess(raw, CONCEPTS[whole], None, "value")
     concept, unit = split_header(raw)
     field, is_error = _lookup(concept)
     if field is None and unit and concept_key(concept) in _ERROR_WORDS:
@@ -190,7 +197,24 @@ def guess_header(header: str) -> HeaderGuess:
         return HeaderGuess(raw, None, None, "extra")
     if field == "field" and unit is None and concept_key(concept) == "mhz":
         unit = "MHz"
+    if field == "k":
+        return _rate_header(raw, concept, unit)
     return HeaderGuess(raw, field, unit, "value")
+
+
+def _rate_header(raw: str, concept: str, unit: str | None) -> HeaderGuess:
+    """A rate column: the convention its name (``kex``, ``k_rac``) or remark (``k (per site)``,
+    ``k(AB)``) names; a remark that names one is not a unit."""
+    from registry.record.conventions import convention_of_header
+
+    key = concept_key(concept)
+    convention = convention_of_header(key)
+    if unit is not None:
+        remark = concept_key(unit)
+        named = convention_of_header(remark) or convention_of_header("k" + remark)
+        if named is not None:
+            convention, unit = convention or named, None
+    return HeaderGuess(raw, "k", unit, "value", convention)
 
 
 # ---------------------------------------------------------------- hints for unknown headers

@@ -51,6 +51,7 @@ from registry.io.headers import (
 from registry.io.readers import column_letter
 from registry.record import fields as field_table
 from registry.record import vocab
+from registry.record.populations import population_unit
 from registry.record.spelling import fold
 from registry.record.units import unit_of
 
@@ -105,6 +106,8 @@ class Column:
     unit: str | None
     role: str  # value | error | extra | ignore | derived
     source: str  # guess | mapping file
+    #: for a rate column: the rate constant its header names (``kex`` → exchange), else None
+    convention: str | None = None
 
     @property
     def letter(self) -> str:
@@ -273,6 +276,8 @@ def plan_sheet(
     for col in columns:
         if col.role in ("value", "error") and col.field in VALUE_QUANTITY and col.unit:
             _check_header_unit(file, sheet, header_row, col, problems, notes)
+        elif col.role == "value" and col.field == "population" and population_unit(col.unit):
+            pass  # "population (%)", "p_A (fraction)": how the column's bare numbers read
         elif col.role == "value" and col.field not in VALUE_QUANTITY and col.unit:
             col.unit = None  # "Solvent (deuterated)": a remark, not a unit
     notes.extend(_hints(columns))
@@ -343,16 +348,18 @@ def _column(index: int, header: str, mapping: MappingFile, previous: Column | No
             return Column(index, header, None, None, target, "mapping file")
         if target.endswith("_err") and target[:-4] in VALUE_QUANTITY:
             return Column(index, header, target[:-4], unit, "error", "mapping file")
+        guessed = guess_header(header)
         return Column(
-            index, header, target, unit or guess_header(header).unit, "value", "mapping file"
-        )
+            index, header, target, unit or guessed.unit, "value", "mapping file",
+            guessed.convention if target == "k" else None,
+        )  # fmt: skip
     guess: HeaderGuess = guess_header(header)
     if guess.role == "error" and guess.field is None:
         # a bare "±" column: the uncertainty of the value column just before it
         if previous is not None and previous.role == "value" and previous.field:
             return Column(index, header, previous.field, guess.unit, "error", "guess")
         return Column(index, header, None, None, "extra", "guess")
-    return Column(index, header, guess.field, guess.unit, guess.role, "guess")
+    return Column(index, header, guess.field, guess.unit, guess.role, "guess", guess.convention)
 
 
 def _demote_repeats(columns: list[Column], notes: list[str]) -> None:

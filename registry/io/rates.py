@@ -14,6 +14,7 @@ from typing import Any
 from registry.errors import RowProblem, UnitError
 from registry.io import upsert
 from registry.io.cells import cell_text, combine_error, is_formula_text, with_unit
+from registry.io.entries import take_convention
 from registry.io.mapping import Column, SheetPlan
 from registry.io.readers import RawSheet
 from registry.io.results import RateRow, ReadResult
@@ -83,6 +84,8 @@ def _rate_row(
         parsed.pop("k_full"),
         parsed,
         {c.header: texts[c.index] for c in plan.columns if c.index < len(texts)},
+        k_col.convention,
+        k_col.header,
     )
 
 
@@ -134,7 +137,15 @@ def attach_rates(result: ReadResult) -> None:
             )
             result.bad_rate_rows.add((rr.sheet, rr.row))
         elif idx:
-            result.inputs[idx[0]].rates.append((rr.t_text, rr.k_text))
+            entry = result.inputs[idx[0]]
+            problem = take_convention(entry, rr.convention, rr.k_header)
+            if problem:
+                result.problems.append(
+                    RowProblem(result.file, rr.sheet, rr.row, rr.k_header, rr.convention, problem)
+                )
+                result.bad_rate_rows.add((rr.sheet, rr.row))
+                continue
+            entry.rates.append((rr.t_text, rr.k_text))
             result.sources[idx[0]].rates.append((rr.sheet, rr.row))
         else:
             remaining.append(rr)
@@ -149,14 +160,16 @@ def plan_rate_rows(
 ) -> tuple[dict[int, list[dict[str, Any]]], list[RowProblem]]:
     """Rate rows whose label names a measurement already in the registry → {id: points}."""
     ids: dict[str, list[int]] = defaultdict(list)
-    for mid, label in sorted(
+    stated: dict[int, str | None] = {}
+    for mid, label, convention in sorted(
         conn.rows_where_in(
-            "SELECT id, label FROM measurement WHERE 1 = 1",
+            "SELECT id, label, k_convention FROM measurement WHERE 1 = 1",
             "label",
             {rr.label for rr in read.rate_rows},
         )
     ):
         ids[label].append(mid)
+        stated[mid] = convention
     problems: list[RowProblem] = []
     plan: dict[int, list[dict[str, Any]]] = defaultdict(list)
     for rr in read.rate_rows:
@@ -168,6 +181,17 @@ def plan_rate_rows(
                 else f"{len(found)} measurements in the registry carry this label"
             )
             problems.append(RowProblem(read.file, rr.sheet, rr.row, "label", rr.label, reason))
+            continue
+        if rr.convention is not None and stated[found[0]] != rr.convention:
+            now = stated[found[0]] or "no convention (unspecified)"
+            reason = (
+                f"the column holds {rr.convention} rate constants, but measurement {found[0]} "
+                f"records {now}; record its convention first (edit measurement {found[0]}: "
+                f"convention={rr.convention}) or fix the header"
+            )
+            problems.append(
+                RowProblem(read.file, rr.sheet, rr.row, rr.k_header, rr.convention, reason)
+            )
             continue
         plan[found[0]].append(rr.parsed)
     return dict(plan), problems

@@ -1,4 +1,4 @@
-"""Reading .xlsx, .ods, .csv and .tsv files into sheets of raw cells, with their row numbers.
+"""Reading .xlsx, .ods, .csv, .tsv and SD files into sheets of raw cells, with their row numbers.
 
 pandas reads the cells (the calamine engine for workbooks: ~15× faster than openpyxl, see
 PERFORMANCE.md); what pandas cannot tell us — formulas (calamine returns their cached value,
@@ -21,7 +21,7 @@ from typing import Any
 from registry.errors import FileFormatError
 from registry.io import workbook_xml
 
-SUPPORTED = (".xlsx", ".xlsm", ".ods", ".csv", ".tsv", ".txt")
+SUPPORTED = (".xlsx", ".xlsm", ".ods", ".csv", ".tsv", ".txt", ".sdf", ".sd")
 
 
 @dataclass
@@ -74,8 +74,14 @@ def read_file(path: Path, sheet: str | None = None) -> RawFile:
         return RawFile(path, digest, [raw], list(raw.notes))
     if suffix in (".xlsx", ".xlsm", ".ods"):
         return RawFile(path, digest, _read_workbook(path, data, sheet, suffix))
+    if suffix in (".sdf", ".sd"):
+        if sheet:
+            raise FileFormatError(str(path), "an SD file has no sheets; import it without one")
+        raw = _read_sd(path, data)
+        return RawFile(path, digest, [raw], list(raw.notes))
     raise FileFormatError(
-        str(path), f"unsupported file type {suffix or '(none)'}; use .xlsx, .ods, .csv or .tsv"
+        str(path),
+        f"unsupported file type {suffix or '(none)'}; use .xlsx, .ods, .csv, .tsv or .sdf",
     )
 
 
@@ -133,6 +139,18 @@ def _read_delimited(path: Path, data: bytes, suffix: str) -> RawSheet:
     if note:
         sheet.notes.append(note)
     return sheet
+
+
+def _read_sd(path: Path, data: bytes) -> RawSheet:
+    """An SD file as a sheet: one row per record (:mod:`registry.io.sdfile`)."""
+    import pandas as pd
+
+    from registry.io.sdfile import read_sd
+
+    text, note = decode_text(path, data)
+    rows, notes = read_sd(path, text)
+    frame = pd.DataFrame([["" if c is None else c for c in row] for row in rows], dtype=object)
+    return RawSheet(None, frame, notes=[*notes, *([note] if note else [])])
 
 
 def _read_workbook(path: Path, data: bytes, sheet: str | None, suffix: str) -> list[RawSheet]:

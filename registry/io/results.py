@@ -57,6 +57,9 @@ class RateRow:
     k_text: str
     parsed: dict[str, Any]  # the rate_point columns
     cells: dict[str, Any]
+    #: the rate constant the k column's header names (``kex`` → exchange), else None
+    convention: str | None = None
+    k_header: str = "k"
 
 
 @dataclass

@@ -9,7 +9,7 @@ see :mod:`.coalescence`); say what was assumed. Returns a frozen record whose
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 from registry.errors import UsageError
@@ -19,6 +19,7 @@ from registry.kinetics.quantities import (
     Temperature,
     energy,
     read_field_mhz,
+    read_observe_mhz,
     read_optional,
     read_positive,
     read_quantity,
@@ -50,6 +51,8 @@ class CoalescenceCalc:
     dg_err_from_dnu_kj_mol: float
     dg_err_from_j_kj_mol: float
     notes: tuple[str, ...]
+    nucleus: str = "1H"
+    observe_mhz: float | None = None  # where a Δν in ppm was converted (the nucleus' own)
 
     @property
     def coupled(self) -> bool:
@@ -62,6 +65,8 @@ class CoalescenceCalc:
             "tc_err_k": self.tc.err_k,
             "dnu_hz": self.dnu_hz,
             "dnu_err_hz": self.dnu_err_hz,
+            "nucleus": self.nucleus,
+            "observe_mhz": self.observe_mhz,
             "j_hz": self.j_hz,
             "k_c_per_s": self.k_c_per_s,
             "dg_kj_mol": self.dg.kj_mol,
@@ -92,6 +97,8 @@ class UnequalCoalescenceCalc:
     dg_major_to_minor: Energy
     dg_minor_to_major: Energy
     notes: tuple[str, ...]
+    nucleus: str = "1H"
+    observe_mhz: float | None = None
 
     def to_dict(self) -> dict[str, Any]:
         return {
@@ -100,6 +107,8 @@ class UnequalCoalescenceCalc:
             "tc_err_k": self.tc.err_k,
             "dnu_hz": self.dnu_hz,
             "dnu_err_hz": self.dnu_err_hz,
+            "nucleus": self.nucleus,
+            "observe_mhz": self.observe_mhz,
             "ratio": self.ratio,
             "delta_p": self.delta_p,
             "x": self.x,
@@ -127,16 +136,20 @@ def calc_coalescence(
     ratio: QuantityInput | None = None,
     ratio_err: QuantityInput | None = None,
     kappa: float = 1.0,
+    nucleus: str | None = None,
 ) -> CoalescenceCalc | UnequalCoalescenceCalc:
     """ΔG‡ at Tc with its uncertainty from Tc and Δν (and J or the population ratio).
 
-    ``dnu`` in ppm needs ``field`` (MHz). An uncertainty written with the value
+    ``dnu`` in ppm needs ``field`` (the ¹H frequency, MHz) and is converted at the observe
+    frequency of ``nucleus`` (default ¹H: a ¹³C Δν in ppm on a 600 MHz magnet is taken at
+    150.9 MHz). An uncertainty written with the value
     (``'261 ± 1 K'``) counts when the separate one is not given; with none for Tc, ±2 K is
     assumed and said in ``notes``.
     """
     field_mhz = read_field_mhz(field)
+    observed, observe_mhz = read_observe_mhz(field_mhz, nucleus, dnu)
     tc_k, tc_written_err = read_positive(tc, "temperature", "tc")
-    dnu_hz, dnu_written_err = read_positive(dnu, "shift", "dnu", spectrometer_mhz=field_mhz)
+    dnu_hz, dnu_written_err = read_positive(dnu, "shift", "dnu", spectrometer_mhz=observe_mhz)
     notes: list[str] = []
     tc_e = read_optional(tc_err, "temperature_difference", "tc_err", default_unit="K")
     if tc_e is None:
@@ -144,7 +157,7 @@ def calc_coalescence(
     if tc_e is None:
         tc_e = DEFAULT_TC_ERR_K
         notes.append("no Tc uncertainty given: ±2 K assumed (typical for coalescence)")
-    dnu_e = read_optional(dnu_err, "shift", "dnu_err", spectrometer_mhz=field_mhz)
+    dnu_e = read_optional(dnu_err, "shift", "dnu_err", spectrometer_mhz=observe_mhz)
     if dnu_e is None:
         dnu_e = dnu_written_err
     if dnu_e is None:
@@ -156,7 +169,8 @@ def calc_coalescence(
         r_e = (
             None if ratio_err is None else read_quantity(ratio_err, "dimensionless", "ratio_err")[0]
         )
-        return _unequal(tc_k, tc_e, dnu_hz, dnu_e, field_mhz, r, r_e, kappa, notes)
+        res = _unequal(tc_k, tc_e, dnu_hz, dnu_e, field_mhz, r, r_e, kappa, notes)
+        return replace(res, nucleus=observed, observe_mhz=observe_mhz)
     from registry.kinetics.coalescence import coalescence_barrier
 
     j_hz = read_optional(j, "frequency", "j", default_unit="Hz")
@@ -175,6 +189,8 @@ def calc_coalescence(
         dg_err_from_dnu_kj_mol=float(res.dg_err_from_dnu_kj_mol),
         dg_err_from_j_kj_mol=float(res.dg_err_from_j_kj_mol),
         notes=tuple(notes),
+        nucleus=observed,
+        observe_mhz=observe_mhz,
     )
 
 

@@ -26,6 +26,7 @@ from registry.kinetics.quantities import (
     energy,
     read_barrier,
     read_field_mhz,
+    read_observe_mhz,
     read_optional,
     read_quantity,
     temperature,
@@ -182,9 +183,11 @@ class PlanCalc:
     half_life_37c: Duration
     atropisomer_text: str
     cautions: tuple[str, ...]
+    nucleus: str = "1H"
 
     def to_dict(self) -> dict[str, Any]:
         return {
+            "nucleus": self.nucleus,
             "T_K": self.t.k,
             "dg_at_T_kj_mol": self.dg_at_t.kj_mol,
             "k_at_T_per_s": self.k_at_t_per_s,
@@ -221,11 +224,12 @@ def calc_plan(
     solvent_bp: QuantityInput | None = None,
     solvent_mp: QuantityInput | None = None,
     kappa: float = 1.0,
+    nucleus: str | None = None,
 ) -> PlanCalc:
     """Predicted Tc per field, the exchange regime at ``t``, half-life and LaPlante class.
 
-    ``dnu`` in ppm is taken at each of ``field`` (default 60–800 MHz); in Hz it belongs to
-    one field.
+    ``dnu`` in ppm is taken at each of ``field`` (¹H frequencies, default 60–800 MHz), at the
+    observe frequency of ``nucleus`` there (default ¹H); in Hz it belongs to one field.
     """
     from registry.kinetics.experiment import plan_coalescence
     from registry.record.units import clean_text
@@ -233,6 +237,7 @@ def calc_plan(
     barrier = read_barrier(dg, dh, ds)
     fields_in = [field] if isinstance(field, (str, int, float)) else list(field or [])
     fields = [read_field_mhz(m) for m in fields_in]
+    observed, ratio = read_observe_mhz(1.0, nucleus, dnu)
     kw: dict[str, float | None] = {"dnu_ppm": None, "dnu_hz": None}
     if isinstance(dnu, str) and clean_text(dnu).lower().endswith("ppm"):
         kw["dnu_ppm"] = read_quantity(dnu, "shift", "dnu", spectrometer_mhz=1.0)[0]
@@ -247,6 +252,7 @@ def calc_plan(
         solvent_bp_k=read_optional(solvent_bp, "temperature", "solvent_bp"),
         solvent_mp_k=read_optional(solvent_mp, "temperature", "solvent_mp"),
         kappa=kappa,
+        observe_ratio=ratio or 1.0,
     )
     atrop = res.atropisomer
     return PlanCalc(
@@ -271,4 +277,5 @@ def calc_plan(
         half_life_37c=duration(atrop.half_life_37c_s),
         atropisomer_text=atrop.description,
         cautions=tuple(res.cautions),
+        nucleus=observed,
     )

@@ -69,14 +69,19 @@ def plan_coalescence(
     solvent_bp_k: float | None = None,
     solvent_mp_k: float | None = None,
     kappa: float = 1.0,
+    observe_ratio: float = 1.0,
 ) -> ExperimentPlan:
-    """Plan from Δν (Hz at one field, or ppm for each of ``fields_mhz``) and a barrier."""
+    """Plan from Δν (Hz at one field, or ppm for each of ``fields_mhz``) and a barrier.
+
+    ``fields_mhz`` are ¹H frequencies; a Δν in ppm of another nucleus is converted at its own
+    observe frequency, ``observe_ratio`` × the ¹H frequency (0.2515 for ¹³C).
+    """
     if (dnu_hz is None) == (dnu_ppm is None):
         raise UsageError("give the shift difference once: in Hz, or in ppm with the field(s)")
     if dnu_ppm is not None:
         fields = [float(f) for f in (fields_mhz or COMMON_FIELDS_MHZ)]
         checked("fields_mhz", fields, what="must be > 0 MHz")
-        dnus = [dnu_ppm * f for f in fields]
+        dnus = [dnu_ppm * f * observe_ratio for f in fields]
         labels: list[float | None] = list(fields)
     else:
         if len(fields_mhz) > 1:

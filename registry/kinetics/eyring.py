@@ -48,3 +48,24 @@ def dg_from_dh_ds(
     ds = check_finite("ds_j_mol_k", ds_j_mol_k)
     t = checked("t_k", t_k, what="must be above 0 K")
     return scalar_or_array(dh - t * ds / 1000.0)
+
+
+def barrier_with_error(
+    k_per_s: float,
+    t_k: float,
+    *,
+    k_err_per_s: float | None = None,
+    t_err_k: float | None = None,
+    kappa: float = 1.0,
+) -> tuple[float, float | None]:
+    """ΔG‡ (kJ/mol) of one rate constant at T, and its first-order σ from σk and σT.
+
+    ∂ΔG‡/∂k = −RT/k; ∂ΔG‡/∂T = ΔG‡/T + R (differentiating RT·ln(κ·k_B·T/(h·k)) at fixed k).
+    The σ is None when neither σk nor σT is known.
+    """
+    dg = float(eyring_barrier(k_per_s, t_k, kappa))
+    if k_err_per_s is None and t_err_k is None:
+        return dg, None
+    from_k = R_KJ_MOL_K * t_k * (k_err_per_s or 0.0) / k_per_s
+    from_t = (dg / t_k + R_KJ_MOL_K) * (t_err_k or 0.0)
+    return dg, float(np.hypot(from_k, from_t))

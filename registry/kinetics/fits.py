@@ -3,8 +3,11 @@
 Both are straight lines in x = 1/T: ln(k/T) = ln(κ·k_B/h) + ΔS‡/R − (ΔH‡/R)·x (Eyring) and
 ln k = ln A − (Ea/R)·x (Arrhenius), fitted by weighted least squares with weights 1/σ_y²,
 σ_y = σ_k/k. Standard errors come from the full 2×2 covariance of slope and intercept, so
-ΔG‡(T) = ΔH‡ − T·ΔS‡ carries the (strongly negative) ΔH‡/ΔS‡ covariance and is best
-determined at T* = 1/x̄ (weighted mean of 1/T), far better than ΔH‡ or ΔS‡ alone.
+ΔG‡(T) = ΔH‡ − T·ΔS‡ carries the ΔH‡/ΔS‡ covariance and is best determined at T* = 1/x̄
+(weighted mean of 1/T), far better than ΔH‡ or ΔS‡ alone. That covariance is strongly
+*positive*: slope and intercept of the line are negatively correlated (all x = 1/T > 0), and
+ΔH‡ ∝ −slope while ΔS‡ ∝ +intercept, so a steeper line raises both (r ≈ +0.99 over a
+typical 40–60 K range; the enthalpy–entropy compensation of fits).
 
 With σ_k given the covariance is taken as absolute (trusting σ_k; a χ² check warns when the
 scatter says otherwise) and 95 % intervals use the normal quantile. Without σ_k the points
@@ -86,7 +89,7 @@ class EyringFit:
     def dg_at(self, t_k: float) -> BarrierAt:
         """ΔG‡ and its standard error at ``t_k``, with a warning when that is extrapolated."""
         dg, err = _eyring_dg(self.line, float(t_k), self.kappa)
-        return BarrierAt(float(t_k), dg, err, _extrapolation(self.t_k, float(t_k)))
+        return BarrierAt(float(t_k), dg, err, extrapolation_warning(self.t_k, float(t_k)))
 
 
 @dataclass(frozen=True)
@@ -190,7 +193,8 @@ def _common_warnings(t: NDArray, line: LineFit) -> list[str]:
     return notes
 
 
-def _extrapolation(t: NDArray, t_at: float) -> str | None:
+def extrapolation_warning(t: NDArray, t_at: float) -> str | None:
+    """The warning for ΔG‡ at ``t_at`` more than EXTRAPOLATION_WARN_K outside ``t``'s range."""
     lo, hi = float(t.min()), float(t.max())
     beyond = max(lo - t_at, t_at - hi)
     if beyond <= EXTRAPOLATION_WARN_K:
@@ -237,7 +241,7 @@ def fit_eyring(
     t_best = 1.0 / line.x_mean
     dg_best, dg_best_err = _eyring_dg(line, t_best, kap)
     notes = _common_warnings(t, line)
-    extrapolated = _extrapolation(t, float(t_ref_k))
+    extrapolated = extrapolation_warning(t, float(t_ref_k))
     if extrapolated:
         notes.append(extrapolated)
     return EyringFit(

@@ -76,6 +76,31 @@ def read_field_mhz(value: QuantityInput | None, field: str = "field") -> float |
     return mhz
 
 
+def read_observe_mhz(
+    field_mhz: float | None, nucleus: str | None, dnu: QuantityInput | None = None
+) -> tuple[str, float | None]:
+    """(the observed nucleus as stored, the frequency at which its Δν in ppm becomes Hz).
+
+    A spectrometer is named by its ¹H frequency; a ¹³C signal on a 600 MHz magnet is observed
+    near 150.9 MHz (:mod:`registry.record.nuclei`), so ppm is converted there, as ``add`` does.
+    A nucleus whose frequency ratio is not known cannot take a Δν in ppm (``dnu``).
+    """
+    if nucleus is None:
+        return "1H", field_mhz
+    from registry.record.nuclei import observe_frequency_mhz
+    from registry.record.vocab import nucleus_name
+
+    name = nucleus_name(str(nucleus))
+    if field_mhz is None:
+        return name, None
+    observe = observe_frequency_mhz(field_mhz, name)
+    if observe is None and isinstance(dnu, str) and dnu.strip().lower().endswith("ppm"):
+        raise UnitError(
+            "dnu", dnu, f"give Δν in Hz: the observe frequency of {name} is not known to fluxledger"
+        )
+    return name, observe
+
+
 def read_ratio(value: QuantityInput, field: str = "ratio") -> float:
     """A population ratio major/minor: ``3``, ``'3'``, ``'3:1'`` or ``'75:25'`` (≥ 1)."""
     text = str(value)
@@ -96,6 +121,65 @@ def read_ratio(value: QuantityInput, field: str = "ratio") -> float:
             field, text, "the ratio is major/minor and must be ≥ 1 (e.g. '3' or '75:25')"
         )
     return ratio
+
+
+def read_fraction(value: QuantityInput, field: str) -> tuple[float, float | None]:
+    """A ratio or fraction as a plain number (``0.42``) or a percentage (``'42 %'``)."""
+    if isinstance(value, str) and value.strip().endswith("%"):
+        from registry.record.units import convert
+
+        number, err = read_quantity(value.strip()[:-1], "dimensionless", field)
+        scale = convert(1.0, "percent", "")
+        return number * scale, None if err is None else err * scale
+    return read_quantity(value, "dimensionless", field)
+
+
+def read_temperature(
+    value: QuantityInput | None, field: str = "temperature"
+) -> tuple[float, float | None] | None:
+    """An optional temperature (K, with the uncertainty written with it), None when absent."""
+    if value is None:
+        return None
+    t = read_quantity(value, "temperature", field)
+    if not t[0] > 0:
+        raise UnitError(field, str(value), "must be above 0 K")
+    return t
+
+
+def barrier_at(
+    k_per_s: float,
+    k_err_per_s: float | None,
+    t: tuple[float, float | None] | None,
+    kappa: float,
+    notes: list[str],
+) -> Energy | None:
+    """ΔG‡ (± σ from σk and σT) of one molecule's rate constant at the temperature read by
+    :func:`read_temperature`; None without a temperature, or for k ≤ 0 (said in ``notes``)."""
+    if t is None:
+        return None
+    if not k_per_s > 0:
+        if "a rate constant ≤ 0 has no ΔG‡" not in notes:
+            notes.append("a rate constant ≤ 0 has no ΔG‡")
+        return None
+    from registry.kinetics.eyring import barrier_with_error
+
+    dg, err = barrier_with_error(k_per_s, t[0], k_err_per_s=k_err_per_s, t_err_k=t[1], kappa=kappa)
+    return energy(dg, err)
+
+
+def kj_mol(e: Energy | None) -> float | None:
+    """An optional energy's value in kJ/mol (for JSON)."""
+    return None if e is None else e.kj_mol
+
+
+def kj_mol_err(e: Energy | None) -> float | None:
+    """An optional energy's σ in kJ/mol (for JSON)."""
+    return None if e is None else e.err_kj_mol
+
+
+def optional_temperature(t: tuple[float, float | None] | None) -> Temperature | None:
+    """The :class:`Temperature` of a value read by :func:`read_temperature`."""
+    return None if t is None else temperature(t[0], t[1])
 
 
 def read_barrier(

@@ -233,20 +233,52 @@ def fit_spectrum(
 
 
 def eyring_from_fits(fits: Sequence[LineShapeFit]) -> EyringFit | None:
-    """The weighted Eyring line through per-temperature rates (None below two temperatures)."""
-    usable = [f for f in fits if f.t_k is not None]
+    """The weighted Eyring line through per-temperature rates (None below two temperatures).
+
+    Failed fits (k at its bound, :attr:`LineShapeFit.failed`) are left out and said so; a point
+    without σ_k gets the least weight of the others (:func:`k_errors`), said in the warnings.
+    """
+    from dataclasses import replace
+
+    usable = [f for f in fits if f.t_k is not None and not f.failed]
     if len({round(f.t_k, 6) for f in usable if f.t_k is not None}) < 2:
         return None
-    return fit_eyring(
+    errors, note = fill_k_errors(usable)
+    line = fit_eyring(
         [f.t_k for f in usable],  # type: ignore[misc]
         [f.k_per_s for f in usable],
-        k_errors(usable),
+        errors,
     )
+    left_out = [f.source for f in fits if f.failed]
+    notes = [note] if note else []
+    if left_out:
+        notes.append(f"left out of the Eyring line (the fit failed): {', '.join(left_out)}")
+    return replace(line, warnings=(*line.warnings, *notes)) if notes else line
 
 
 def k_errors(fits: Sequence[LineShapeFit]) -> list[float] | None:
-    """Weights for an Eyring line: the fits' errors of k, or none (unweighted) if any lacks one."""
-    errs = [f.k_err_per_s for f in fits]
-    if any(e is None or not e > 0 for e in errs):
-        return None
-    return [float(e) for e in errs]  # type: ignore[arg-type]
+    """Weights for an Eyring line (see :func:`fill_k_errors`)."""
+    return fill_k_errors(fits)[0]
+
+
+def fill_k_errors(fits: Sequence[LineShapeFit]) -> tuple[list[float] | None, str | None]:
+    """σ_k of each fit for a weighted Eyring line, and a note when some were filled in.
+
+    A fit without σ_k (k not pinned) does not make the whole line unweighted: it gets the
+    largest *relative* σ of the points that have one (the least weight any measured point has),
+    and the note says which. Only when no point has σ_k is the line unweighted (None).
+    """
+    rel = [f.k_err_per_s / f.k_per_s if f.k_err_per_s and f.k_err_per_s > 0 else None
+           for f in fits]  # fmt: skip
+    known = [r for r in rel if r is not None]
+    if not known:
+        return None, None
+    worst = max(known)
+    missing = [f.source for f, r in zip(fits, rel, strict=True) if r is None]
+    errors = [(worst if r is None else r) * f.k_per_s for f, r in zip(fits, rel, strict=True)]
+    if not missing:
+        return errors, None
+    return errors, (
+        f"no σ_k for {', '.join(missing)}: weighted as the least certain of the other points "
+        f"(σ_k/k = {worst:.2g})"
+    )

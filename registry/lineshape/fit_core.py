@@ -40,11 +40,33 @@ POORLY_DETERMINED = (
     "against the intrinsic width, so fix the width (measured without exchange)"
 )
 WIDTH_COLLAPSED = "the intrinsic width ran down to the point spacing: fix the width"
+#: what a fit's message says when k ended at the bound of the search or above k_B·T/h: the fit
+#: failed (no rate reproduces the spectrum), whatever the optimiser reported
+AT_BOUND = "k ran to the bound of the search"
+
+#: the bound of ln k (and of ln of every exp'd parameter) in the search
+LN_BOUND = 40.0
 
 
 def bounded_exp(x: float) -> float:
     """exp with its argument held to ±40, so a wild Levenberg–Marquardt trial step cannot overflow."""
-    return math.exp(min(max(float(x), -40.0), 40.0))
+    return math.exp(min(max(float(x), -LN_BOUND), LN_BOUND))
+
+
+def bound_problem(k: float, t_k: float | None, kappa: float = 1.0) -> str | None:
+    """Why a fitted k is no result: at the search's bound (±40 in ln k), or above the largest
+    rate transition-state theory allows, κ·k_B·T/h (Eyring 1935; ~6.2×10¹² s⁻¹ at 298 K)."""
+    from registry.kinetics.constants import KB_OVER_H_PER_S_K
+
+    if abs(math.log(k)) >= LN_BOUND - 1e-6:
+        return f"{AT_BOUND} (k = {k:.3g} s⁻¹): the fit failed; no exchange rate fits this spectrum"
+    if t_k is not None and k > kappa * KB_OVER_H_PER_S_K * t_k:
+        limit = kappa * KB_OVER_H_PER_S_K * t_k
+        return (
+            f"{AT_BOUND}: k = {k:.3g} s⁻¹ exceeds κ·k_B·T/h = {limit:.3g} s⁻¹ at {t_k:.2f} K, "
+            "the fastest rate a barrier can give: the fit failed"
+        )
+    return None
 
 
 class LineShapeFitError(FluxledgerError):
@@ -95,12 +117,20 @@ class LineShapeFit:
         return {k: getattr(self, k) for k in self.__dataclass_fields__ if k not in skip}
 
     @property
+    def failed(self) -> bool:
+        """k ended at the bound of the search or above κ·k_B·T/h (see :func:`bound_problem`):
+        no result, never stored nor used in an Eyring line."""
+        return AT_BOUND in self.message
+
+    @property
     def remark(self) -> str:
         """A few words for a table when the fit needs a second look, else ''.
 
         'k poorly determined' stands in for 'not converged' (it says what to do about it);
         'width collapsed' is added to either.
         """
+        if self.failed:
+            return "failed: k at its bound"
         note = "" if self.converged else "not converged"
         if POORLY_DETERMINED in self.message:
             note = "k poorly determined"
@@ -309,7 +339,11 @@ def make_fit(
     model_y = a * prep.shape.value(k, width, offset) + b0 + b1 * prep.u
     resid = model_y - prep.y
     message = str(result.message)
-    if ln_k_err is None or ln_k_err > 1.0:
+    bound = bound_problem(k, prep.t_k)
+    if bound:
+        message += "; " + bound
+        ln_k_err = None
+    elif ln_k_err is None or ln_k_err > 1.0:
         message += "; " + POORLY_DETERMINED
     if width <= 1.01 * prep.width_floor:
         message += "; " + WIDTH_COLLAPSED
@@ -331,7 +365,7 @@ def make_fit(
         rms=math.sqrt(float(resid @ resid) / len(resid)) * prep.ynorm,
         n_points=len(prep.y),
         n_params=n_par,
-        converged=bool(result.success),
+        converged=bool(result.success) and not bound,
         message=message,
         method=method,
         freq_hz=prep.freq,

@@ -17,7 +17,8 @@ import numpy as np
 from scipy.optimize import OptimizeResult, least_squares
 
 from registry.kinetics.constants import R_KJ_MOL_K
-from registry.kinetics.fits import fit_eyring
+from registry.kinetics.constants import STANDARD_TEMPERATURE_K as T_STANDARD_K
+from registry.kinetics.fits import extrapolation_warning, fit_eyring
 from registry.lineshape.eyring import (
     EyringParameters,
     harmonic_mean_temperature,
@@ -61,6 +62,8 @@ class GlobalFit:
     chi2_reduced: float
     converged: bool
     message: str
+    #: ΔG‡(298.15 K) extrapolated beyond the fitted temperatures, as the Eyring line says it
+    warnings: tuple[str, ...] = ()
 
 
 class _GlobalProblem:
@@ -235,4 +238,12 @@ def fit_global(
         "global line-shape fit",
     )
     fits = _fits_at(problem, result, cov)
-    return GlobalFit(eyring, fits, problem.n_total, chi2, bool(result.success), str(result.message))
+    note = extrapolation_warning(temps, T_STANDARD_K)
+    failed = [f.source for f in fits if f.failed]
+    message = str(result.message)
+    if failed:  # a rate at the bound is no result: nor is the fit that implies it
+        message += f"; k ran to the bound of the search at {', '.join(failed)}: the fit failed"
+    return GlobalFit(
+        eyring, fits, problem.n_total, chi2, bool(result.success) and not failed, message,
+        (note,) if note else (),
+    )  # fmt: skip

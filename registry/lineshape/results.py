@@ -120,6 +120,8 @@ class LineShapeAnalysis:
         """Every note: the fits', the Eyring line's warnings, the global fit's."""
         line = tuple(self.eyring_line.warnings) if self.eyring_line is not None else ()
         last = (self.global_note,) if self.global_note else ()
+        if self.global_fit is not None:
+            last += tuple(f"global fit: {w}" for w in self.global_fit.warnings)
         return self.fit_notes + line + last
 
     def to_dict(self) -> dict[str, Any]:
@@ -154,6 +156,7 @@ def _global_dict(result: GlobalFit) -> dict[str, Any]:
         **result.eyring.to_dict(),
         "converged": result.converged,
         "message": result.message,
+        "warnings": list(result.warnings),
         "n_points": result.n_points,
         "fits": [f.to_dict() for f in result.fits],
     }

@@ -36,9 +36,14 @@ def value_with_error_text(value: float, error: float | None, unit: str) -> str:
 
 
 def rate_points(fits: Sequence[LineShapeFit]) -> list[dict[str, Any]]:
-    """Rate points {t_k, t_text, k_per_s, k_err_per_s, k_text} for ``api.add_rate_points``."""
+    """Rate points {t_k, t_text, k_per_s, k_err_per_s, k_text} for ``api.add_rate_points``.
+
+    A failed fit (k at the bound of the search or above κ·k_B·T/h) gives no rate point: its
+    message says so in the analysis' notes."""
     points = []
     for fit in fits:
+        if fit.failed:
+            continue
         if fit.t_k is None:
             raise UsageError(
                 f"{fit.source}: no temperature known, so its rate cannot be stored; "

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from functools import cache, lru_cache
 from typing import Any
 
-from registry.errors import StructureError
+from registry.errors import MolfileError, StructureError
 
 
 @dataclass(frozen=True)
@@ -164,3 +164,69 @@ def _describe(
 def structure_for(smiles: str | None) -> Structure | None:
     """The structure of a SMILES as stored (None when there is none)."""
     return read_structure(smiles) if smiles else None
+
+
+#: a Molfile of MAX_ATOMS atoms is well under this; far larger input is not one molecule
+MAX_MOLFILE_CHARACTERS = 1_000_000
+
+
+def smiles_from_molfile(text: str, source: str = "Molfile") -> str:
+    """The SMILES a Molfile (V2000 or V3000) stands for: what the registry stores.
+
+    The connection table is what a structure editor drew, so it decides the structure; RDKit
+    writes dative bonds as ``->`` (organometallics keep them), stereo from wedges and 2D
+    coordinates, explicit hydrogens folded in. A table RDKit reads but cannot sanitize is kept
+    unsanitized, as for SMILES; an empty table gives ``""`` (no structure).
+    """
+    Chem = _rdkit()
+    if len(text) > MAX_MOLFILE_CHARACTERS:
+        raise MolfileError(source, f"{len(text):,} characters; not one molecule's Molfile")
+    if "M  END" not in text:
+        raise MolfileError(source, "not a Molfile (no 'M  END' line ends a connection table)")
+    mol = Chem.MolFromMolBlock(text, sanitize=True, removeHs=True)
+    if mol is None:
+        mol = Chem.MolFromMolBlock(text, sanitize=False, removeHs=False)
+    if mol is None:
+        raise MolfileError(
+            source, "not a readable Molfile (its counts line, atom or bond block is malformed)"
+        )
+    if mol.GetNumAtoms() > MAX_ATOMS:
+        raise MolfileError(source, f"{mol.GetNumAtoms():,} atoms; at most {MAX_ATOMS:,} are kept")
+    if mol.GetNumAtoms() == 0:
+        return ""
+    try:
+        return Chem.MolToSmiles(mol)
+    except Exception as exc:  # RDKit raises several exception classes for odd valences
+        raise MolfileError(source, f"RDKit cannot write this structure as SMILES: {exc}") from None
+
+
+def molfile_from_smiles(smiles: str | None, title: str = "") -> str:
+    """A Molfile with 2D coordinates for a stored SMILES (V3000 where V2000 cannot say it, e.g.
+    dative bonds); an empty connection table when there is no structure."""
+    Chem = _rdkit()
+    from rdkit.Chem import rdDepictor
+
+    mol = None
+    if smiles:
+        mol = Chem.MolFromSmiles(smiles)
+        if mol is None:  # stored unsanitized (organometallics): write what RDKit can read
+            mol = Chem.MolFromSmiles(smiles, sanitize=False)
+            if mol is not None:
+                mol.UpdatePropertyCache(strict=False)
+    if mol is None:
+        mol = Chem.Mol()
+    with contextlib.suppress(Exception):  # coordinates are a courtesy, not the structure
+        rdDepictor.Compute2DCoords(mol)
+    block = Chem.MolToMolBlock(mol, kekulize=mol.GetNumAtoms() > 0 and _kekulizable(mol))
+    lines = block.split("\n")
+    lines[0] = " ".join((title or "").split())[:80]  # the Molfile's name line: one line of text
+    return "\n".join(lines)
+
+
+def _kekulizable(mol: Any) -> bool:
+    Chem = _rdkit()
+    try:
+        Chem.Kekulize(Chem.Mol(mol), clearAromaticFlags=True)
+    except Exception:  # RDKit's KekulizeException and friends
+        return False
+    return True

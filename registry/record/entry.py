@@ -13,8 +13,9 @@ from dataclasses import field as dc_field
 from typing import Any
 
 from registry.errors import FluxledgerError, UnitError
-from registry.record import fields, vocab
+from registry.record import conventions, fields, vocab
 from registry.record.nuclei import observe_frequency_mhz
+from registry.record.populations import parse_population_ratio
 from registry.record.spelling import read_nucleus
 from registry.record.units import ParsedValue, parse_value
 
@@ -48,6 +49,14 @@ class EntryInput:
     dnu: str | None = None
     j: str | None = None
     population: str | None = None
+    direction: str | None = None  # which direction an unequal-population barrier refers to
+    convention: str | None = None  # which rate constant k and ΔG‡ refer to
+    degeneracy: str | None = None  # path degeneracy (statistical factor σ)
+    kappa: str | None = None  # transmission coefficient κ
+    order: str | None = None  # reaction order: 1, or 2 for bimolecular exchange
+    concentration: str | None = None  # of the exchange partner, for order 2
+    calibration: str | None = None  # how the probe temperature was calibrated (± σ)
+    dh_ds_corr: str | None = None  # correlation of ΔH‡ and ΔS‡ from their fit
     reference: str | None = None
     status: str | None = None
     extra: dict[str, Any] = dc_field(default_factory=dict)
@@ -111,25 +120,6 @@ def text_of(value: object) -> str | None:
     return str(value).strip()
 
 
-def parse_population_ratio(text: str, field_name: str = "population") -> float:
-    """``60:40``, ``1.5`` (major/minor) or ``0.6`` (one site's fraction) → ratio major/minor ≥ 1."""
-    t = text.strip().replace("/", ":")
-    try:
-        if ":" in t:
-            a, b = (float(x) for x in t.split(":", 1))
-            if a <= 0 or b <= 0:
-                raise ValueError
-            return max(a, b) / min(a, b)
-        x = float(t)
-    except ValueError as exc:
-        raise UnitError(field_name, text, "expected a ratio such as '60:40' or '1.5'") from exc
-    if x <= 0 or not math.isfinite(x):
-        raise UnitError(field_name, text, "a population ratio must be positive")
-    if x < 1:  # a fraction of one site: the ratio is the same whichever site it names
-        return max(x, 1 - x) / min(x, 1 - x)
-    return x
-
-
 def _parse(
     inp: EntryInput, name: str, problems: list[Problem], *, mhz: float | None = None
 ) -> ParsedValue | None:
@@ -158,10 +148,12 @@ def normalize_entry(
     method, kind, status, nucleus = _vocabulary(inp, vocab.Vocabulary.of(known_kinds), problems)
     values = _values(inp, nucleus, problems)
     ratio = _population(inp, problems)
+    recorded = _recorded(inp, values, problems)
     rates = _rates(inp, problems)
     if problems:
         return None, problems
     measurement = _measurement_columns(values)
+    measurement.update(recorded)
     tc, dg_t = values.get("tc"), values.get("dg_t")
     if dg_t is None and tc is not None and values.get("dg") is not None:
         measurement["dg_t_k"] = tc.value  # ΔG‡ reported at Tc
@@ -260,10 +252,72 @@ def _population(inp: EntryInput, problems: list[Problem]) -> float | None:
     if blank(inp.population):
         return None
     try:
-        return parse_population_ratio(str(inp.population))
+        return parse_population_ratio(
+            str(text_of(inp.population)), unit=inp.units.get("population")
+        )
     except UnitError as exc:
         problems.append(Problem("population", str(inp.population), exc.reason))
         return None
+
+
+#: the measurement columns :func:`_recorded` fills (always all of them, None when not given)
+RECORDED_COLUMNS = ("k_convention", "path_degeneracy", "reaction_order", "dg_direction",
+                    "t_calibration_text", "t_calibration", "t_calibration_err_k")  # fmt: skip
+
+
+def _recorded(
+    inp: EntryInput, values: dict[str, ParsedValue], problems: list[Problem]
+) -> dict[str, Any]:
+    """What the entry records about its rate constant and its temperatures (see
+    :mod:`registry.record.conventions`), checked: the readers' words, κ > 0, −1 ≤ r ≤ 1, and
+    a concentration for a bimolecular exchange."""
+    out: dict[str, Any] = dict.fromkeys(RECORDED_COLUMNS)
+    readers = (
+        ("convention", "k_convention", conventions.read_convention),
+        ("degeneracy", "path_degeneracy", conventions.read_degeneracy),
+        ("order", "reaction_order", conventions.read_order),
+        ("direction", "dg_direction", conventions.read_direction),
+    )
+    for name, column, read in readers:
+        raw = text_of(getattr(inp, name))
+        if raw is None:
+            continue
+        try:
+            out[column] = read(raw, name)
+        except UnitError as exc:
+            problems.append(Problem(name, raw, exc.reason))
+    calibration = text_of(inp.calibration)
+    if calibration is not None:
+        try:
+            cal = conventions.read_calibration(calibration)
+        except UnitError as exc:
+            problems.append(Problem("calibration", calibration, exc.reason))
+        else:
+            out.update(t_calibration_text=cal.text, t_calibration=cal.name,
+                       t_calibration_err_k=cal.sigma_k)  # fmt: skip
+    _check_ranges(values, out, problems)
+    return out
+
+
+def _check_ranges(
+    values: dict[str, ParsedValue], recorded: dict[str, Any], problems: list[Problem]
+) -> None:
+    kappa, corr, conc = values.get("kappa"), values.get("dh_ds_corr"), values.get("concentration")
+    if kappa is not None and not 0.0 < kappa.value <= 100.0:
+        problems.append(Problem("kappa", kappa.text, "the transmission coefficient κ must be > 0"))
+    if corr is not None and not -1.0 <= corr.value <= 1.0:
+        problems.append(Problem("dh_ds_corr", corr.text, "a correlation lies between −1 and 1"))
+    if conc is not None and conc.value <= 0:
+        problems.append(Problem("concentration", conc.text, "a concentration must be positive"))
+    if recorded.get("reaction_order") == 2 and conc is None:
+        problems.append(
+            Problem(
+                "concentration",
+                "",
+                "a bimolecular exchange (order 2) needs the concentration of its partner: "
+                "k₂ = k/[X], and its ΔG‡ refers to the 1 M standard state",
+            )
+        )
 
 
 def _rates(inp: EntryInput, problems: list[Problem]) -> list[dict[str, Any]]:

@@ -84,6 +84,13 @@ def _text(
     return Field(name, title, table, None, column, None, None, headers, editable, entry)
 
 
+#: folded headers of a rate column that also name the convention (see conventions.py)
+RATE_HEADERS = (
+    "kex", "kexch", "kexchange", "kobs", "kobsd", "kobserved", "krac", "kracemization",
+    "kracemisation", "kenant", "kenantiomerization", "kenantiomerisation", "kab", "kba",
+    "kpersite", "kapp", "krelax", "kf", "kforward",
+)  # fmt: skip
+
 #: every field, in the order an export writes them
 # fmt: off
 FIELDS: tuple[Field, ...] = (
@@ -143,6 +150,26 @@ FIELDS: tuple[Field, ...] = (
         "population", "populations", "popratio", "papb", "ratio", "majorminor", "pop",
         "populationratio", "ez", "ze", "ezratio", "isomerratio", "rotamerratio",
         "conformerratio")),
+    _text("direction", "direction of ΔG‡ (unequal populations)", "measurement", "dg_direction",
+          headers=("direction", "dgdirection", "barrierdirection", "whichdirection")),
+    _text("convention", "rate-constant convention", "measurement", "k_convention", headers=(
+        "convention", "kconvention", "rateconvention", "ktype", "rateconstanttype",
+        "kdefinition", "whichk", "rateconstantconvention")),
+    _text("degeneracy", "path degeneracy", "measurement", "path_degeneracy", headers=(
+        "degeneracy", "pathdegeneracy", "statisticalfactor", "statfactor", "reactionpathdegeneracy")),
+    _value("kappa", "transmission coefficient κ", "dimensionless", "measurement", "kappa",
+           error=False, headers=("kappa", "transmissioncoefficient", "transmission")),
+    _text("order", "reaction order", "measurement", "reaction_order", headers=(
+        "order", "reactionorder", "kineticorder", "molecularity")),
+    _value("concentration", "concentration (bimolecular exchange)", "concentration",
+           "measurement", "concentration_m", headers=(
+               "concentration", "conc", "partnerconcentration", "ligandconcentration")),
+    _text("calibration", "temperature calibration", "measurement", "t_calibration_text",
+          headers=("calibration", "tcalibration", "temperaturecalibration", "thermometer",
+                   "tcal", "vtcalibration", "calibrant")),
+    _value("dh_ds_corr", "correlation of ΔH‡ and ΔS‡", "dimensionless", "measurement",
+           "dh_ds_corr", error=False, text_column="dh_ds_corr_text", headers=(
+               "dhdscorr", "corrdhds", "rdhds", "correlationdhds", "dhdscorrelation")),
     _text("reference", "reference", "measurement", "reference", headers=(
         "ref", "reference", "references", "doi", "citation", "source", "literature", "lit",
         "litref")),
@@ -150,8 +177,10 @@ FIELDS: tuple[Field, ...] = (
     # the columns of a rates sheet: one rate constant at one temperature
     _value("t", "T (rate point)", "temperature", "rate_point", "t_k", editable=False,
            entry=False, headers=("t", "temp", "temperature")),
+    # a rate column's header may also say which rate constant it holds (``kex``, ``k_rac``):
+    # registry.record.conventions.convention_of_header reads it
     _value("k", "k (rate point)", "rate", "rate_point", "k_per_s", editable=False, entry=False,
-           headers=("k", "kex", "rate", "rateconstant", "kobs", "kexch")),
+           headers=("k", "rate", "rateconstant", *RATE_HEADERS)),
     _text("rates", "rate points", "rate_point", None, editable=False, entry=False,
           headers=("rates", "ratepoints", "ratesktt")),
 )
@@ -169,6 +198,15 @@ EDIT_ALIASES: dict[str, str] = {
     "solvent_text": "solvent",
     "log_a": "log10_a",
     "delta_nu": "dnu",
+    "k_convention": "convention",
+    "rate_convention": "convention",
+    "path_degeneracy": "degeneracy",
+    "statistical_factor": "degeneracy",
+    "reaction_order": "order",
+    "t_calibration": "calibration",
+    "temperature_calibration": "calibration",
+    "corr": "dh_ds_corr",
+    "κ": "kappa",
 }
 
 
@@ -203,6 +241,7 @@ def value_columns_of_text() -> dict[str, tuple[str, ...]]:
             out[f.text_column] = tuple(c for c in (f.value_column, f.error_column) if c)
     out["solvent_text"] = ("solvent_id",)
     out["population_text"] = ("population_ratio",)
+    out["t_calibration_text"] = ("t_calibration", "t_calibration_err_k")
     return out
 
 
@@ -240,6 +279,8 @@ LISTING_COLUMNS: dict[str, str] = {
     "compound_id": "m.compound_id",
     "t_min_k": "m.t_min_k",
     "t_max_k": "m.t_max_k",
+    # which rate constant ΔG‡ refers to (migration 0005; None: unspecified)
+    "k_convention": "m.k_convention",
     # 1 while an error finding is open (OPEN_ERROR_SQL), else 0: the same integer on SQLite
     # and PostgreSQL (a bare EXISTS would be an integer on one and a boolean on the other)
     "flagged": f"CASE WHEN {OPEN_ERROR_SQL} THEN 1 ELSE 0 END",
@@ -260,6 +301,7 @@ TABLE_COLUMNS: dict[str, tuple[str, ...]] = {
         "solvent",
         "dg_kj_mol",
         "dg_t_k",
+        "k_convention",
         "status",
         "flagged",
     ),

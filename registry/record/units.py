@@ -44,6 +44,7 @@ CANONICAL: dict[str, str] = {
     "rate": "1/s",
     "field": "MHz",
     "time": "s",
+    "concentration": "mol/L",
     "dimensionless": "",
 }
 
@@ -58,6 +59,7 @@ CANONICAL_LABEL: dict[str, str] = {
     "rate": "s⁻¹",
     "field": "MHz",
     "time": "s",
+    "concentration": "mol/L",
     "dimensionless": "",
 }
 
@@ -69,6 +71,7 @@ _DIMENSION = {
     "rate": "1 / [time]",
     "field": "1 / [time]",
     "time": "[time]",
+    "concentration": "[substance] / [length] ** 3",
     "temperature": "[temperature]",
     "temperature_difference": "[temperature]",
 }
@@ -122,6 +125,10 @@ _UNIT_ALIASES: dict[str, str] = {
     "wavenumbers": "1/cm",
     "ev": "eV",
     "ppm": "ppm",
+    "m": "mol/L",
+    "mm": "mmol/L",
+    "µm": "µmol/L",
+    "um": "µmol/L",
 }
 
 #: quantity kinds whose values are per molecule when written in these units
@@ -245,6 +252,7 @@ def _dimension_problem(quantity: str, unit: pint.Unit) -> str | None:
         "rate": "a rate constant (s-1)",
         "field": "a spectrometer frequency (MHz)",
         "time": "a time (s, min, h)",
+        "concentration": "a concentration (mol/L, M, mM)",
         "temperature": "a temperature (K, °C, °F)",
         "temperature_difference": "a temperature difference (K)",
     }
@@ -354,6 +362,9 @@ def _linear_map(unit_text: str, quantity: str) -> _LinearMap:
     if problem:
         return _LinearMap(math.nan, math.nan, problem)
     target = CANONICAL[quantity]
+    angular = _radian_power(unit)
+    if angular:
+        return _angular_map(unit_text, unit, quantity, angular)
     try:
         if quantity == "temperature":
             offset = float(Q_(0.0, unit).to(target).magnitude)
@@ -366,6 +377,38 @@ def _linear_map(unit_text: str, quantity: str) -> _LinearMap:
     except pint.errors.DimensionalityError:
         return _LinearMap(math.nan, math.nan, f"{unit_text!r} cannot be read as {quantity}")
     return _LinearMap(scale, offset)
+
+
+#: quantities whose values are frequencies in Hz (or MHz): an angular frequency is one of them
+#: divided by 2π (ω = 2πν)
+_FREQUENCIES = ("frequency", "shift", "field")
+
+
+def _radian_power(unit: pint.Unit) -> int:
+    """The power of the radian in ``unit``'s root units (rad/s → 1, Hz → 0, turn/s → 1).
+
+    pint counts the radian as dimensionless, so ``628.3 rad/s`` would convert to 628.3 Hz; an
+    angular frequency ω is 2π times the frequency ν. Angles written in degrees, turns or
+    cycles all reduce to radians here.
+    """
+    root = Q_(1.0, unit).to_root_units()
+    return int(dict(root.units._units).get("radian", 0))
+
+
+def _angular_map(unit_text: str, unit: pint.Unit, quantity: str, power: int) -> _LinearMap:
+    """An angular frequency as a frequency: divided by one turn (2π rad), through pint; refused
+    for a rate constant (a number of events per second, not an angle per second)."""
+    if quantity == "rate":
+        reason = (
+            f"{unit_text!r} is an angular frequency: a rate constant counts events per second; "
+            "give it in s-1"
+        )
+        return _LinearMap(math.nan, math.nan, reason)
+    if quantity not in _FREQUENCIES or power != 1:
+        reason = f"{unit_text!r} is not a frequency: only an angle per time (rad/s) converts, by 2π"
+        return _LinearMap(math.nan, math.nan, reason)
+    per_turn = Q_(1.0, unit) / Q_(1.0, "turn")  # ω/2π: rad/s → Hz
+    return _LinearMap(float(per_turn.to(CANONICAL[quantity]).magnitude), 0.0)
 
 
 def _convert(

@@ -296,6 +296,25 @@ def solvent_suggestions(text: str, spellings: Mapping[str, str] | None = None) -
 # few kelvin at most; where only the parent's value is known to us it is used and said so.
 _CRC = "CRC Handbook of Chemistry and Physics (physical constants of organic compounds), parent compound; from memory"
 _DEUT = "deuterated-solvent supplier data sheet value; from memory"
+_D2O = (
+    "CRC Handbook of Chemistry and Physics, properties of heavy water D2O (mp 3.82 °C, "
+    "bp 101.42 °C at 1 atm); from memory"
+)
+_H2O = (
+    "CRC Handbook of Chemistry and Physics, fixed points of ordinary water H2O (mp 0.00 °C, "
+    "bp 99.97 °C at 1 atm, ITS-90); from memory"
+)
+_DMSO_D6 = (
+    "deuterated-solvent supplier data sheet (DMSO-d6: mp 20.2 °C, bp 189 °C; from memory, not "
+    "found in a handbook we could search), not the parent DMSO's 18.5 °C (Dictionary of Organic "
+    "Compounds, as quoted at www.chm.bris.ac.uk/webprojects2006/Moss/properties.htm)"
+)
+#: solvent rows as an older seed wrote them, which migration 0005 brings up to date:
+#: name → (old mp °C, old bp °C, old aliases)
+SEED_CORRECTIONS: dict[str, tuple[float, float, str]] = {
+    "dimethyl sulfoxide-d6": (18.5, 189.0, "dmsod6|d6dmso|dmso|cd32so|dimethylsulfoxide"),
+    "deuterium oxide": (3.8, 101.4, "d2o|heavywater|water|deuteriumoxide"),
+}
 
 #: name, formula, deuterated, mp °C, bp °C, source, aliases
 # fmt: off
@@ -304,7 +323,7 @@ SOLVENTS: list[tuple[str, str, bool, float, float, str, tuple[str, ...]]] = [
      ("cdcl3", "chloroform", "deuterochloroform", "dcloroform", "chcl3")),
     ("dichloromethane-d2", "CD2Cl2", True, -97.0, 40.0, _CRC,
      ("cd2cl2", "dcm", "dcmd2", "dichloromethane", "methylenechloride", "ch2cl2", "d2dcm")),
-    ("dimethyl sulfoxide-d6", "C2D6OS", True, 18.5, 189.0, _CRC,
+    ("dimethyl sulfoxide-d6", "C2D6OS", True, 20.2, 189.0, _DMSO_D6,
      ("dmsod6", "d6dmso", "dmso", "cd32so", "dimethylsulfoxide")),
     ("acetone-d6", "C3D6O", True, -95.0, 56.0, _CRC,
      ("acetoned6", "d6acetone", "acetone", "cd32co")),
@@ -314,8 +333,10 @@ SOLVENTS: list[tuple[str, str, bool, float, float, str, tuple[str, ...]]] = [
      ("c6d6", "benzened6", "d6benzene", "benzene")),
     ("methanol-d4", "CD3OD", True, -98.0, 65.0, _CRC,
      ("cd3od", "methanold4", "d4methanol", "methanol", "meod", "meodd4")),
-    ("deuterium oxide", "D2O", True, 3.8, 101.4, _DEUT,
-     ("d2o", "heavywater", "water", "deuteriumoxide")),
+    ("deuterium oxide", "D2O", True, 3.82, 101.42, _D2O,
+     ("d2o", "heavywater", "deuteriumoxide", "heavyh2o")),
+    ("water", "H2O", False, 0.0, 99.97, _H2O,
+     ("h2o", "protiowater", "ordinarywater", "lightwater", "h2od2o")),
     ("acetonitrile-d3", "CD3CN", True, -45.0, 82.0, _CRC,
      ("cd3cn", "acetonitriled3", "d3acetonitrile", "acetonitrile", "mecn", "mecnd3")),
     ("tetrahydrofuran-d8", "C4D8O", True, -108.0, 66.0, _CRC,

@@ -62,6 +62,19 @@ def rows_for(conn: Connection, where: Where, compound_ids: Sequence[int]) -> lis
     )
 
 
+def rows_at(
+    conn: Connection, where: Where, compound_ids: Sequence[int], at_t_k: float
+) -> tuple[tuple[str, ...], list[tuple[Any, ...]]]:
+    """:func:`rows_for` with ΔG‡ at a common temperature (see :mod:`.at_temperature`)."""
+    from registry.record.fields import LISTING_COLUMNS, LISTING_FROM
+    from registry.search.at_temperature import AT_COLUMNS, finish_tuples
+
+    chosen = {**LISTING_COLUMNS, **AT_COLUMNS}
+    sql = f"SELECT {', '.join(chosen.values())} FROM {LISTING_FROM} WHERE {where.sql()}"
+    rows = conn.rows_where_in(sql, "m.compound_id", compound_ids, {**where.params, "at_t": at_t_k})
+    return finish_tuples(tuple(chosen), rows)
+
+
 def _check(
     query: Query | None, similar: str | None, min_similarity: float, limit: int | None
 ) -> None:
@@ -103,6 +116,9 @@ def find(
         raise ValueError(f"output={output!r}: 'rows' or 'csv'")
     column, descending = sort_key(sort, similar is not None)
     filters = filters or Filters()
+    at = filters.at_t_k
+    if at is not None and column == "dg_kj_mol":
+        column = "dg_at_kj_mol"  # the barrier at the common temperature
     stats = SearchStats()
     warnings: list[str] = []
     with database.read() as conn:
@@ -111,8 +127,10 @@ def find(
         warnings += index.take_notes()
         stats.indexed = len(index)
         where = conditions(conn, filters)
-        listing = (
-            None if similar is not None else load_listing(database, conn, rebuild=rebuild_index)
+        listing = (  # ΔG‡ at a common temperature is computed in SQL: no ready listing rows
+            None
+            if similar is not None or at is not None
+            else load_listing(database, conn, rebuild=rebuild_index)
         )
         if listing is not None:
             warnings += listing.take_notes()
@@ -144,7 +162,10 @@ def find(
                 stats,
             )  # fmt: skip
         else:
-            table, columns = rows_for(conn, where, hit_ids.tolist()), ROW_COLUMNS
+            if at is not None:
+                columns, table = rows_at(conn, where, hit_ids.tolist(), at)
+            else:
+                table, columns = rows_for(conn, where, hit_ids.tolist()), ROW_COLUMNS
             table, columns, total, counts, returned = _arrange(
                 table, columns, similarity, column, descending, limit, stats
             )

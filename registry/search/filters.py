@@ -52,7 +52,7 @@ SOLVENT_CLASSES: dict[str, tuple[str, ...]] = {
         "N,N-dimethylformamide-d7",  # ε 38
         "nitrobenzene-d5",  # ε 35
     ),
-    "protic": ("methanol-d4", "deuterium oxide"),
+    "protic": ("methanol-d4", "deuterium oxide", "water"),
 }
 _CLASS_ALIASES = {"nonpolar": "nonpolar", "apolar": "nonpolar", "chlorinated": "chlorinated"}
 _CLASS_ALIASES |= {"polaraprotic": "polar-aprotic", "aprotic": "polar-aprotic"}
@@ -169,6 +169,9 @@ class Filters:
     include_retracted: bool = False
     #: True: only flagged measurements (an open error finding); False: only clean ones
     flagged: bool | None = None
+    #: the common temperature (K) the barrier filter and sort refer to: ΔG‡ at it
+    #: (:mod:`.at_temperature`); None: each ΔG‡ at its own temperature
+    at_t_k: float | None = None
 
     def active(self) -> bool:
         """Does any filter narrow the measurements beyond 'not retracted'?"""
@@ -189,6 +192,8 @@ class Filters:
             out["include_retracted"] = True
         if self.flagged is not None:
             out["flagged" if self.flagged else "clean"] = True
+        if self.at_t_k is not None:
+            out["at_t_k"] = self.at_t_k
         return out
 
 
@@ -205,11 +210,14 @@ def make_filters(
     compound: str | None = None,
     include_retracted: bool = False,
     flagged: bool | None = None,
+    at: str | float | None = None,
 ) -> Filters:
     """Check and normalize filter texts (vocabulary names, units) before any query runs.
 
     ``flagged=True`` keeps only flagged measurements (an error finding nobody accepted),
-    ``flagged=False`` only clean ones; None keeps both.
+    ``flagged=False`` only clean ones; None keeps both. ``at`` (a temperature, text with a
+    unit or kelvin) makes the barrier filter and sort use ΔG‡ at that temperature
+    (:mod:`registry.search.at_temperature`).
     """
     from registry.record import vocab
 
@@ -228,7 +236,23 @@ def make_filters(
         compound=compound.strip() if compound and compound.strip() else None,
         include_retracted=include_retracted,
         flagged=_flag_choice(flagged),
+        at_t_k=read_at(at),
     )
+
+
+def read_at(at: str | float | None) -> float | None:
+    """The common temperature asked for, in K (a text with a unit, or a number in kelvin)."""
+    if at is None:
+        return None
+    if isinstance(at, bool):
+        raise UsageError(f"at {at!r}: give a temperature, e.g. '298.15 K' or '25 °C'")
+    if isinstance(at, (int, float)):
+        value = float(at)
+    else:
+        value, _ = _value(str(at), "temperature", "at", "K")
+    if not (value > 0 and value < 2000):
+        raise UnitError("at", str(at), "a common temperature must lie between 0 and 2000 K")
+    return value
 
 
 def _flag_choice(flagged: Any) -> bool | None:
@@ -296,7 +320,12 @@ def conditions(conn: Connection, filters: Filters) -> Where:
     out = Where()
     params = out.params
     if filters.barrier:
-        out.clauses.append(filters.barrier.sql("m.dg_kj_mol", "barrier", params))
+        column = "m.dg_kj_mol"
+        if filters.at_t_k is not None:
+            from registry.search.at_temperature import DG_AT_SQL
+
+            column, params["at_t"] = DG_AT_SQL, filters.at_t_k
+        out.clauses.append(filters.barrier.sql(column, "barrier", params))
     if filters.temperature:
         out.clauses.append(filters.temperature.sql("m.dg_t_k", "temperature", params))
     if filters.method:
@@ -373,6 +402,7 @@ def listing_filters(
     barrier_max: str | float | None = None,
     include_retracted: bool = False,
     flagged: bool | None = None,
+    at: str | float | None = None,
 ) -> Filters:
     """The filters a listing takes (``list``, exports, paper tables), read and checked.
 
@@ -383,7 +413,7 @@ def listing_filters(
     """
     found = make_filters(
         barrier=barrier, solvent=solvent, method=method, process=process, status=status,
-        compound=compound, include_retracted=include_retracted, flagged=flagged,
+        compound=compound, include_retracted=include_retracted, flagged=flagged, at=at,
     )  # fmt: skip
     return with_bounds(found, barrier_min, barrier_max)
 
@@ -395,23 +425,44 @@ def listing_rows(
     ids: Any = None,
     limit: int | None = None,
     columns: dict[str, str] | None = None,
+    sort: str | None = None,
 ) -> list[dict[str, Any]]:
-    """The measurements passing ``filters`` as listing rows (dicts), in id order.
+    """The measurements passing ``filters`` as listing rows (dicts), in id order or ``sort``.
 
     The one listing query: ``list``, exports and reports read through it. ``columns`` (name →
     SQL over ``measurement m``, ``compound c``, ``process p``) default to
     :data:`registry.record.fields.LISTING_COLUMNS`; ``ids`` narrows to those measurements.
+    With a common temperature (``filters.at_t_k``) each row also carries ΔG‡ at it
+    (:data:`registry.search.at_temperature.SHOWN`). ``sort`` is a sort name of ``find``
+    (``barrier``, ``-temperature`` …), sorted as ``find`` sorts (missing values last, ties in
+    id order); with a common temperature ``barrier`` means ΔG‡ at it.
     """
     from registry.record.fields import LISTING_COLUMNS, LISTING_FROM
+    from registry.search.result import listing_order, sort_rows
 
-    chosen = columns or LISTING_COLUMNS
+    chosen = dict(columns or LISTING_COLUMNS)
     where = conditions(conn, filters)
+    at = filters.at_t_k is not None
+    if at:
+        from registry.search.at_temperature import AT_COLUMNS
+
+        chosen.update(AT_COLUMNS)
+        where.params["at_t"] = filters.at_t_k
+    column, descending = listing_order(sort, at)
     sql = f"SELECT {', '.join(chosen.values())} FROM {LISTING_FROM} WHERE {where.sql()}"
+    names = list(chosen)
     if ids is not None:
         rows = sorted(conn.rows_where_in(sql, "m.id", ids, where.params), key=lambda r: r[0])
-        rows = rows[:limit] if limit else rows
     else:
-        sql += " ORDER BY m.id" + (f" LIMIT {int(limit)}" if limit else "")
+        by_id = column == "id"
+        sql += " ORDER BY m.id" + (f" LIMIT {int(limit)}" if limit and by_id else "")
         rows = conn.rows(sql, where.params)
-    names = list(chosen)
-    return [dict(zip(names, r, strict=True)) for r in rows]
+    if column != "id":  # in Python, as find sorts: the same order on every server
+        sort_rows(rows, names, column, descending)
+    rows = rows[:limit] if limit else rows
+    out = [dict(zip(names, r, strict=True)) for r in rows]
+    if at:
+        from registry.search.at_temperature import finish
+
+        out = finish(out)
+    return out

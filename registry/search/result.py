@@ -29,6 +29,9 @@ ROW_COLUMNS: tuple[str, ...] = tuple(LISTING_COLUMNS)
 #: the columns of ``find --csv`` (a similarity search adds ``similarity`` third)
 CSV_COLUMNS: tuple[str, ...] = TABLE_COLUMNS["find_csv"]
 
+#: the columns ΔG‡ at a common temperature adds (see registry.search.at_temperature.SHOWN)
+AT_SHOWN = ("dg_at_kj_mol", "dg_at_err_kj_mol", "at_t_k", "dg_at_from", "extrapolated")
+
 #: sort names → (column, descending)
 SORT_KEYS = {
     "id": ("id", False),
@@ -104,6 +107,9 @@ class FindResult:
         columns = list(CSV_COLUMNS)
         if "similarity" in self.columns:
             columns.insert(2, "similarity")
+        if "dg_at_kj_mol" in self.columns:  # ΔG‡ at a common temperature, after its own T
+            at = columns.index("dg_t_k") + 1
+            columns[at:at] = [c for c in AT_SHOWN if c in self.columns]
         return columns
 
     def write_csv(self, out: BinaryIO) -> None:
@@ -188,6 +194,17 @@ def sort_key(sort: str | None, similar: bool) -> tuple[str, bool]:
     if key_name not in SORT_KEYS:
         raise UsageError(f"sort {sort!r}: choose one of {', '.join(SORT_KEYS)}")
     return SORT_KEYS[key_name]
+
+
+def listing_order(sort: str | None, at: bool) -> tuple[str, bool]:
+    """(column, descending) of a listing's sort name; with a common temperature (``at``) the
+    barrier sort is by ΔG‡ at it (``dg_at_kj_mol``). Similarity is for similarity searches."""
+    column, descending = sort_key(sort, False)
+    if column == "similarity":
+        raise UsageError("sort 'similarity': only a similarity search (find --similar) has it")
+    if at and column == "dg_kj_mol":
+        column = "dg_at_kj_mol"
+    return column, descending
 
 
 def sort_rows(

@@ -156,6 +156,26 @@ class Measurement(Base):
     log10_a_err: Mapped[float | None] = mapped_column(Float)
     log10_a_text: Mapped[str | None] = mapped_column(Text)
     reference: Mapped[str | None] = mapped_column(Text)
+    # which rate constant k and ΔG‡ refer to, and how (migration 0005; NULL = unspecified,
+    # see registry.record.conventions): per-site, exchange, observed, enantiomerization,
+    # racemization; the path degeneracy σ, the transmission coefficient κ, the reaction order
+    # (2: bimolecular, with the partner's concentration in mol/L), the direction of an
+    # unequal-population barrier, the probe temperature's calibration and its σ(T) in K, and
+    # the correlation of ΔH‡ and ΔS‡ from their fit
+    k_convention: Mapped[str | None] = mapped_column(String(32))
+    path_degeneracy: Mapped[int | None] = mapped_column(Integer)
+    kappa: Mapped[float | None] = mapped_column(Float)
+    kappa_text: Mapped[str | None] = mapped_column(Text)
+    reaction_order: Mapped[int | None] = mapped_column(Integer)
+    concentration_m: Mapped[float | None] = mapped_column(Float)
+    concentration_err_m: Mapped[float | None] = mapped_column(Float)
+    concentration_text: Mapped[str | None] = mapped_column(Text)
+    dg_direction: Mapped[str | None] = mapped_column(String(16))
+    t_calibration: Mapped[str | None] = mapped_column(String(32))
+    t_calibration_text: Mapped[str | None] = mapped_column(Text)
+    t_calibration_err_k: Mapped[float | None] = mapped_column(Float)
+    dh_ds_corr: Mapped[float | None] = mapped_column(Float)
+    dh_ds_corr_text: Mapped[str | None] = mapped_column(Text)
     extra_json: Mapped[str | None] = mapped_column(Text)  # unknown spreadsheet columns, kept
     entered_by: Mapped[str] = mapped_column(String(128))
     entered_at: Mapped[datetime] = mapped_column(DateTime(timezone=True))

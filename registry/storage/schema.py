@@ -18,7 +18,15 @@ _NETWORK_FS = ("nfs", "cifs", "smb", "fuse.sshfs", "9p", "afs", "ceph", "gluster
 
 
 def script_location() -> str:
-    """Where the migration scripts are, installed or in a checkout."""
+    """Where the migration scripts are, installed or in a checkout.
+
+    A source checkout's own scripts win (its ``pyproject.toml`` beside ``migrations/``): an
+    editable install maps ``registry._migrations`` to the tree it was installed from, which
+    is not the tree a second working copy runs from.
+    """
+    root = Path(__file__).resolve().parents[2]
+    if (root / "pyproject.toml").is_file() and (root / "migrations" / "versions").is_dir():
+        return str(root / "migrations")
     try:
         import registry._migrations as pkg  # type: ignore[import-not-found]
 

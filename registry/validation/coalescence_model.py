@@ -8,6 +8,12 @@ two directions have different barriers. The Eyring equation turns k_c into ΔG�
 barrier functions are those of :mod:`registry.kinetics`; this module only lets a caller swap
 one ingredient at a time (the temperature, Δν, J, the k_c factor, ln vs log10) so that the
 slips in :mod:`.slips` are the same computation with one thing done wrong.
+
+The rate that enters the Eyring equation is the one the measurement records
+(:mod:`.conventions`): one direction's k (per-site, enantiomerization, or unspecified) or the
+sum of both (exchange, observed, racemization), divided by σ·c·κ. With unequal populations a
+recorded direction (major-to-minor: leaving the major site) picks that direction's barrier;
+without one the check takes whichever direction is nearer the reported value.
 """
 
 from __future__ import annotations
@@ -33,6 +39,11 @@ class CoalescenceInputs:
     field_mhz: Array
     dg_t_k: Array  # NaN unless a temperature for ΔG‡ was stated
     reported_kj_mol: Array
+    summed: NDArray[np.bool_]  # k is k_AB + k_BA (exchange, observed, racemization)
+    divisor: Array  # σ·c·κ: the Eyring equation takes k / divisor
+    direction: NDArray[np.int64]  # 0 not recorded, 1 major-to-minor, 2 minor-to-major
+    convention: NDArray[np.object_]  # the recorded convention (None: unspecified)
+    degeneracy: Array  # the recorded path degeneracy (NaN: not recorded)
 
     @property
     def unequal(self) -> NDArray[np.bool_]:
@@ -54,17 +65,23 @@ class CoalescenceInputs:
 class Recomputed:
     """Rate constants and ΔG‡ for leaving each site (equal for equal populations)."""
 
-    k1_per_s: Array  # leaving the major (or either) site
+    k1_per_s: Array  # leaving the major (or either) site, as it enters the Eyring equation
     k2_per_s: Array  # leaving the minor site
     dg1_kj_mol: Array
     dg2_kj_mol: Array
+    direction: NDArray[np.int64]  # the recorded direction (0: none)
 
     def take(self, mask: NDArray[np.bool_]) -> Recomputed:
         return Recomputed(*(v[mask] for v in self.__dict__.values()))
 
+    def with_barriers(self, dg1: Array, dg2: Array) -> Recomputed:
+        return Recomputed(self.k1_per_s, self.k2_per_s, dg1, dg2, self.direction)
+
     def nearest(self, reported: Array) -> tuple[Array, NDArray[np.bool_]]:
-        """Per row, whichever direction's barrier is closer to the reported one."""
+        """Per row, the recorded direction's barrier, else whichever is closer to the reported
+        one (True where that is leaving the major site, or either of equal ones)."""
         first = ~(np.abs(reported - self.dg2_kj_mol) < np.abs(reported - self.dg1_kj_mol))
+        first = np.where(self.direction == 1, True, np.where(self.direction == 2, False, first))
         return np.where(first, self.dg1_kj_mol, self.dg2_kj_mol), first
 
 
@@ -90,6 +107,14 @@ def rates(inp: CoalescenceInputs) -> tuple[Array, Array]:
     return k1, k2
 
 
+def on_basis(inp: CoalescenceInputs, k1: Array, k2: Array) -> tuple[Array, Array]:
+    """Each direction's rate as the measurement's convention has it, over σ·c·κ."""
+    total = k1 + k2
+    k1 = np.where(inp.summed, total, k1) / inp.divisor
+    k2 = np.where(inp.summed, total, k2) / inp.divisor
+    return k1, k2
+
+
 def recompute(
     inp: CoalescenceInputs,
     *,
@@ -100,10 +125,11 @@ def recompute(
 ) -> Recomputed:
     """ΔG‡ from the coalescence data; the keywords reproduce a slip (see :mod:`.slips`).
 
-    ``rates_per_s`` are the rates of ``inp`` when the caller has them already (a slip that
-    changes only the temperature or the k_c factor), so they are not computed again.
+    ``rates_per_s`` are the rates as they enter the Eyring equation (convention and σ·c·κ
+    applied) when the caller has them already (a slip that changes only the temperature or
+    the k_c factor), so they are not computed again.
     """
-    k1, k2 = rates(inp) if rates_per_s is None else rates_per_s
+    k1, k2 = on_basis(inp, *rates(inp)) if rates_per_s is None else rates_per_s
     k1 = k1 * kc_scale
     k2 = k2 * kc_scale
     t = inp.tc_k if t_eyring_k is None else t_eyring_k
@@ -117,7 +143,7 @@ def recompute(
     if log10:
         dg1 = dg1 / np.log(10.0)
         dg2 = dg2 / np.log(10.0)
-    return Recomputed(k1, k2, dg1, dg2)
+    return Recomputed(k1, k2, dg1, dg2, inp.direction)
 
 
 def stack(inputs: list[CoalescenceInputs]) -> CoalescenceInputs:

@@ -63,6 +63,16 @@ _MEASUREMENT_COLUMNS = {
     "structure_ok": "c.structure_ok",
     "structure_problem": "c.structure_problem",
     "nucleus": "p.nucleus",
+    # what the measurement records about its rate constant and temperatures (migration 0005)
+    "k_convention": "m.k_convention",
+    "path_degeneracy": "m.path_degeneracy",
+    "kappa": "m.kappa",
+    "reaction_order": "m.reaction_order",
+    "concentration_m": "m.concentration_m",
+    "dg_direction": "m.dg_direction",
+    "t_calibration": "m.t_calibration",
+    "t_calibration_err_k": "m.t_calibration_err_k",
+    "dh_ds_corr": "m.dh_ds_corr",
 }
 
 _MEASUREMENT_SQL = (
@@ -97,7 +107,8 @@ _FLOAT_COLUMNS = {
     "field_mhz", "t_min_k", "t_max_k", "dg_kj_mol", "dg_err_kj_mol", "dg_t_k", "dh_kj_mol",
     "dh_err_kj_mol", "ds_j_mol_k", "ds_err_j_mol_k", "ea_kj_mol", "ea_err_kj_mol", "mp_k",
     "bp_k", "tc_k", "tc_err_k", "dnu_hz", "dnu_err_hz", "j_hz", "population_ratio",
-    "co_field_mhz", "t_k", "k_per_s", "k_err_per_s",
+    "co_field_mhz", "t_k", "k_per_s", "k_err_per_s", "path_degeneracy", "kappa",
+    "reaction_order", "concentration_m", "t_calibration_err_k", "dh_ds_corr",
 }  # fmt: skip
 
 #: the columns whose values make up a measurement's inputs hash, in hashing order, and how
@@ -140,6 +151,21 @@ HASHED_COLUMNS: dict[str, str] = {
     "rate_sum_err": "float",
 }
 
+#: columns added later (migration 0005), hashed after :data:`HASHED_COLUMNS` only for a
+#: measurement that records any of them: every stored finding of a measurement that records
+#: none keeps its hash (existing rows record none)
+RECORDED_HASHED: dict[str, str] = {
+    "k_convention": "text",
+    "path_degeneracy": "float",
+    "kappa": "float",
+    "reaction_order": "float",
+    "concentration_m": "float",
+    "dg_direction": "text",
+    "t_calibration": "text",
+    "t_calibration_err_k": "float",
+    "dh_ds_corr": "float",
+}
+
 #: what a repeated measurement is matched and compared on
 PEER_COLUMNS = (
     "id",
@@ -151,6 +177,10 @@ PEER_COLUMNS = (
     "dg_kj_mol",
     "dg_err_kj_mol",
     "dg_t_k",
+    "dh_kj_mol",
+    "ds_j_mol_k",
+    "t_min_k",
+    "t_max_k",
 )
 #: live measurements of a compound that has another live one (only those can be repeats)
 _PEER_SQL = (
@@ -286,7 +316,31 @@ def _row_digests(data: CheckData, rows: list[int], variant: frozenset[str]) -> l
         hashed[c] = digest.hash_integers(data.columns[c][at].astype(np.int64))
     for c in by_kind.get("flag", []):
         hashed[c] = digest.hash_flags(data.columns[c][at].tolist())
-    return [f"{h:016x}" for h in digest.combine([hashed[c] for c in names], n).tolist()]
+    base = digest.combine([hashed[c] for c in names], n)
+    return [f"{h:016x}" for h in _with_recorded(data, at, base).tolist()]
+
+
+def _with_recorded(data: CheckData, at: Ints, base: digest.U64) -> digest.U64:
+    """The digests of rows that record a convention, calibration … (:data:`RECORDED_HASHED`)
+    folded with those columns; the others unchanged."""
+    texts = [c for c, kind in RECORDED_HASHED.items() if kind == "text"]
+    floats = [c for c, kind in RECORDED_HASHED.items() if kind == "float"]
+    present = np.zeros(at.size, dtype=bool)
+    for c in floats:
+        present |= ~np.isnan(data.columns[c][at])
+    for c in texts:
+        present |= np.array([v is not None for v in data.columns[c][at].tolist()], dtype=bool)
+    if not present.any():
+        return base
+    n = at.size
+    parts: dict[str, digest.U64] = {}
+    block = digest.hash_floats(np.concatenate([data.columns[c][at] for c in floats]))
+    parts.update((c, block[k * n : (k + 1) * n]) for k, c in enumerate(floats))
+    values = [v for c in texts for v in data.columns[c][at].tolist()]
+    block = digest.hash_texts(values)
+    parts.update((c, block[k * n : (k + 1) * n]) for k, c in enumerate(texts))
+    recorded = digest.combine([parts[c] for c in RECORDED_HASHED], n)
+    return np.where(present, digest.combine([base, recorded], n), base)
 
 
 # ---------------------------------------------------------------- loading
@@ -338,7 +392,8 @@ def _load_peers(conn: Connection, compound_ids: NDArray[Any]) -> dict[str, NDArr
     """The live measurements of these compounds that could be a repeat (their compound has
     another live measurement), by id."""
     wanted = sorted({int(c) for c in compound_ids.tolist() if c is not None})
-    floats = {"dg_kj_mol", "dg_err_kj_mol", "dg_t_k"}
+    floats = {"dg_kj_mol", "dg_err_kj_mol", "dg_t_k", "dh_kj_mol", "ds_j_mol_k", "t_min_k",
+              "t_max_k"}  # fmt: skip
     peers = columns_of(_fetch(conn, _PEER_SQL, wanted, "m.compound_id"), PEER_COLUMNS, floats)
     return take(peers, np.argsort(peers["id"].astype(np.int64), kind="stable"))
 

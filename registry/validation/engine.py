@@ -20,10 +20,10 @@ from registry.validation.rule_activation import (
 )
 from registry.validation.rule_coalescence import CoalescenceBarrier
 from registry.validation.rule_plausibility import (
-    BarrierInMethodRange,
     PpmConvertedAtObserveFrequency,
     ShiftMatchesField,
 )
+from registry.validation.rule_rates import BarrierInMethodRange, RateBelowLimit
 from registry.validation.rule_refit import ActivationRefit
 from registry.validation.rule_structure import RepeatsAgree, StructureParses
 from registry.validation.rule_temperatures import (
@@ -39,6 +39,7 @@ RULES: tuple[Rule, ...] = (
     CoalescenceBarrier(),
     FreeEnergyFromEnthalpyEntropy(),
     ActivationRefit(),
+    RateBelowLimit(),
     ArrheniusEnergyFromEnthalpy(),
     TemperatureAboveZero(),
     TemperatureRangeOrder(),

@@ -8,6 +8,12 @@ from registry.validation import slips
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.coalescence_model import CoalescenceInputs, recompute, uncertainty
 from registry.validation.columns import present
+from registry.validation.conventions import (
+    basis_note,
+    calibration_notes,
+    default_t_sigma,
+    rate_basis,
+)
 from registry.validation.data import CheckData
 from registry.validation.reported import as_temperature, energy_units, temperature_units
 
@@ -17,6 +23,7 @@ def coalescence_inputs(data: CheckData, rows: np.ndarray) -> CoalescenceInputs:
     field = data.col("co_field_mhz")[rows]
     field = np.where(np.isfinite(field), field, data.col("field_mhz")[rows])
     stated = present(data.text("dg_t_text")[rows])
+    basis = rate_basis(data, rows)
     return CoalescenceInputs(
         tc_k=data.col("tc_k")[rows],
         dnu_hz=data.col("dnu_hz")[rows],
@@ -25,6 +32,11 @@ def coalescence_inputs(data: CheckData, rows: np.ndarray) -> CoalescenceInputs:
         field_mhz=field,
         dg_t_k=np.where(stated, data.col("dg_t_k")[rows], np.nan),
         reported_kj_mol=data.col("dg_kj_mol")[rows],
+        summed=basis.summed,
+        divisor=basis.divisor,
+        direction=basis.direction,
+        convention=np.array(basis.convention, dtype=object),
+        degeneracy=basis.degeneracy,
     )
 
 
@@ -38,7 +50,7 @@ class CoalescenceBarrier(Rule):
     """
 
     id = "coalescence-barrier"
-    version = 1
+    version = 2
     severity = "error"
     title = "ΔG‡ against the coalescence data"
     uses = ("dg_tolerance_kj_mol", "coverage", "ds_allowance_j_mol_k", "standard_fields_mhz")
@@ -54,15 +66,7 @@ class CoalescenceBarrier(Rule):
         inp = coalescence_inputs(data, rows)
         rec = recompute(inp)
         recomputed, first = rec.nearest(inp.reported_kj_mol)
-        e1, e2 = uncertainty(inp, data.col("tc_err_k")[rows], data.col("dnu_err_hz")[rows])
-        rec_err = np.where(first, e1, e2)
-        rep_err = np.nan_to_num(data.col("dg_err_kj_mol")[rows], nan=0.0)
-        away = np.nan_to_num(np.abs(inp.dg_t_k - inp.tc_k), nan=0.0)
-        tol = (
-            config.dg_tolerance_kj_mol
-            + config.coverage * np.sqrt(rec_err**2 + rep_err**2)
-            + away * config.ds_allowance_j_mol_k / 1000.0
-        )
+        tol = _tolerance(data, rows, inp, first, config)
         diff = inp.reported_kj_mol - recomputed
         with np.errstate(invalid="ignore"):
             bad = np.isfinite(recomputed) & ~(np.abs(diff) <= tol)
@@ -80,6 +84,7 @@ class CoalescenceBarrier(Rule):
         rec_bad, tol_bad, first_bad = recomputed[bad].tolist(), tol[bad].tolist(), first[bad]
         kinds = np.where(sub.unequal, 2, np.where(sub.coupled, 1, 0)).tolist()
         ids = data.ids[positions]
+        calibrated = calibration_notes(data, positions)
         out: list[Finding] = []
         for i in range(positions.size):
             unit, f = labels[i], float(factors[i])
@@ -96,7 +101,7 @@ class CoalescenceBarrier(Rule):
                 f"ΔG‡ {fnum(rep_u, 2)} {unit} does not match {fnum(rec_u, 2)} {unit} recomputed "
                 f"from Tc {as_temperature(float(sub.tc_k[i]), tc_labels[i])} and Δν "
                 f"{sub.dnu_hz[i]:.4g} Hz ({formula}): off by {rep_u - rec_u:+.2f} {unit}, "
-                f"tolerance ±{tol_u:.2f} {unit}{where}"
+                f"tolerance ±{tol_u:.2f} {unit}{where}{_basis(sub, i)}{calibrated[i]}"
             )
             cause = None
             if diagnosis.slips[i]:
@@ -125,6 +130,24 @@ class CoalescenceBarrier(Rule):
         return out
 
 
+def _tolerance(
+    data: CheckData, rows: np.ndarray, inp: CoalescenceInputs, first: np.ndarray,
+    config: CheckConfig,
+) -> np.ndarray:  # fmt: skip
+    """Base tolerance + coverage·√(σ_recomputed² + σ_reported²) + |T − Tc|·ΔS‡ allowance, with
+    σ(Tc) as stated, else the one the recorded temperature calibration gives."""
+    tc_err = default_t_sigma(data, rows, data.col("tc_err_k")[rows])
+    e1, e2 = uncertainty(inp, tc_err, data.col("dnu_err_hz")[rows])
+    rec_err = np.where(first, e1, e2)
+    rep_err = np.nan_to_num(data.col("dg_err_kj_mol")[rows], nan=0.0)
+    away = np.nan_to_num(np.abs(inp.dg_t_k - inp.tc_k), nan=0.0)
+    return (
+        config.dg_tolerance_kj_mol
+        + config.coverage * np.sqrt(rec_err**2 + rep_err**2)
+        + away * config.ds_allowance_j_mol_k / 1000.0
+    )
+
+
 def _formula_text(
     inp: CoalescenceInputs, i: int, kind: int, major: bool, k1: float, k2: float
 ) -> str:
@@ -139,3 +162,13 @@ def _formula_text(
     if kind == 1:
         return f"coupled AB, J = {inp.j_hz[i]:.3g} Hz, k_c = π√(Δν²+6J²)/√2 = {k1:.4g} s⁻¹"
     return f"Gutowsky–Holm, k_c = πΔν/√2 = {k1:.4g} s⁻¹"
+
+
+def _basis(inp: CoalescenceInputs, i: int) -> str:
+    """'; k as exchange …' for a message: which rate constant the barrier was recomputed for."""
+    from registry.validation.conventions import RateBasis
+
+    basis = RateBasis(inp.summed, inp.divisor, inp.direction, list(inp.convention),
+                      inp.degeneracy)  # fmt: skip
+    note = basis_note(basis, i)
+    return f"; {note}" if note else ""

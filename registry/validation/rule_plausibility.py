@@ -1,5 +1,5 @@
-"""Plausibility rules: the barrier inside what the method can measure; Δν consistent with the
-stated field and nucleus.
+"""Plausibility rules: Δν consistent with the stated field and nucleus. (What each method can
+measure: :mod:`.rule_rates`.)
 """
 
 from __future__ import annotations
@@ -7,13 +7,9 @@ from __future__ import annotations
 import numpy as np
 
 from registry.record.nuclei import FREQUENCY_RATIO_TO_1H
-from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
+from registry.validation.base import CheckConfig, Finding, Rule, opt
 from registry.validation.data import CheckData
-from registry.validation.reported import energy_units, leading_number, unit_part
-
-#: methods that watch exchange on the NMR time scale (dynamic NMR)
-DYNAMIC_NMR_METHODS = ("coalescence", "lineshape", "2d-exchange", "saturation-transfer")
-
+from registry.validation.reported import leading_number, unit_part
 
 #: spectrometer (1H) frequencies outside this range are not NMR magnets (common practice, no source)
 FIELD_MIN_MHZ, FIELD_MAX_MHZ = 40.0, 1300.0
@@ -22,49 +18,6 @@ FIELD_MIN_MHZ, FIELD_MAX_MHZ = 40.0, 1300.0
 def _nuclei(data: CheckData) -> list[str]:
     """The observed nucleus of each row ('' where none is stored)."""
     return ["" if x is None else str(x) for x in data.text("nucleus").tolist()]
-
-
-class BarrierInMethodRange(Rule):
-    """A dynamic-NMR barrier outside roughly 20–100 kJ/mol is outside what the method can see.
-
-    Below ~20 kJ/mol exchange stays fast even at the lowest temperatures a probe reaches; above
-    ~100 kJ/mol it stays slow at the highest (common practice, no source).
-    """
-
-    id = "barrier-method-range"
-    version = 1
-    severity = "warning"
-    title = "barrier inside the range the method can measure"
-    uses = ("nmr_barrier_min_kj_mol", "nmr_barrier_max_kj_mol")
-
-    def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
-        dg = data.col("dg_kj_mol")
-        nmr = np.array([m in DYNAMIC_NMR_METHODS for m in data.text("method").tolist()], dtype=bool)
-        lo, hi = config.nmr_barrier_min_kj_mol, config.nmr_barrier_max_kj_mol
-        with np.errstate(invalid="ignore"):
-            rows = np.flatnonzero(nmr & np.isfinite(dg) & ((dg < lo) | (dg > hi)))
-        if rows.size == 0:
-            return []
-        labels, factors = energy_units(data.text("dg_text")[rows], data.col("dg_kj_mol")[rows])
-        method = data.text("method")
-        out = []
-        for i, p in enumerate(rows):
-            u, f = labels[i], float(factors[i])
-            edge = lo if dg[p] < lo else hi
-            side = "below" if dg[p] < lo else "above"
-            out.append(
-                self.finding(
-                    int(data.ids[p]),
-                    f"ΔG‡ {fnum(dg[p] * f, 2)} {u} is {side} the range dynamic NMR can measure "
-                    f"(about {fnum(lo * f, 0)}–{fnum(hi * f, 0)} {u}) for a {method[p]} "
-                    "measurement: check the value, its unit, or the method",
-                    reported=opt(dg[p] * f),
-                    recomputed=opt(edge * f),
-                    difference=opt((dg[p] - edge) * f),
-                    unit=u,
-                )
-            )
-        return out
 
 
 class ShiftMatchesField(Rule):

@@ -42,28 +42,33 @@ class RepeatsAgree(Rule):
     """The same compound, process, solvent and method measured twice must give one barrier.
 
     Two barriers disagree when they differ by more than the base tolerance plus the coverage
-    times their combined uncertainty; barriers quoted more than ``duplicate_max_dt_k`` apart
-    in temperature are not compared (ΔS‡ may legitimately separate them).
+    times their combined uncertainty. Barriers quoted at different temperatures differ by
+    ΔT·ΔS‡ even for one process: where either stores ΔS‡, the checked one is moved to the
+    other's temperature (ΔG‡(T₂) = ΔG‡(T₁) − (T₂ − T₁)·ΔS‡) and compared there; where
+    neither does, up to ``duplicate_max_dt_k`` apart the tolerance grows by
+    |ΔT|·``ds_allowance_j_mol_k``, and further apart the two are not comparable (not compared).
     """
 
     id = "repeat-disagrees"
-    version = 1
+    version = 2
     severity = "warning"
     title = "repeated measurements agree"
-    uses = ("dg_tolerance_kj_mol", "coverage", "duplicate_max_dt_k")
+    uses = ("dg_tolerance_kj_mol", "coverage", "duplicate_max_dt_k", "ds_allowance_j_mol_k")
 
     def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
         pairs = _disagreeing_pairs(data, config)
         if pairs is None:
             return []
-        mine, other, tol, excess = pairs
+        mine, other, tol, excess, shift = pairs
         # per checked row the worst disagreement (ties: the repeat stored first), and how many
         order = np.lexsort((other, -excess, mine))
-        mine, other, tol = mine[order], other[order], tol[order]
+        mine, other, tol, shift = mine[order], other[order], tol[order], shift[order]
         first = np.r_[True, mine[1:] != mine[:-1]]
         disagreeing = np.diff(np.r_[np.flatnonzero(first), mine.size])
-        rows, peers, tol = mine[first], other[first], tol[first]
-        dg, dg_o = data.col("dg_kj_mol")[rows], data.peers["dg_kj_mol"][peers]
+        rows, peers, tol, shift = mine[first], other[first], tol[first], shift[first]
+        # the peer's ΔG‡ at this row's temperature (moved with ΔS‡ where it was; see the class)
+        dg, dg_o = data.col("dg_kj_mol")[rows], data.peers["dg_kj_mol"][peers] - shift
+        t_mine = data.col("dg_t_k")[rows]
         err_o = np.nan_to_num(data.peers["dg_err_kj_mol"][peers], nan=0.0)
         t_o = data.peers["dg_t_k"][peers]
         peer_ids = data.peers["id"][peers]
@@ -74,13 +79,19 @@ class RepeatsAgree(Rule):
             mine_dg, their_dg, their_id = float(dg[i]), float(dg_o[i]), int(peer_ids[i])
             more = int(disagreeing[i]) - 1
             extra = f" (and {more} other repeat(s) disagree too)" if more else ""
+            theirs = f"{fnum(their_dg * f, 2)} {u}"
+            if shift[i] != 0.0:
+                theirs = (
+                    f"{fnum((their_dg + shift[i]) * f, 2)} {u} at {t_o[i]:.1f} K, i.e. {theirs} "
+                    f"at {t_mine[i]:.1f} K with ΔS‡: ΔG‡(T₁) = ΔG‡(T₂) − (T₁ − T₂)·ΔS‡"
+                )
             out.append(
                 self.finding(
                     int(data.ids[p]),
                     f"ΔG‡ {fnum(mine_dg * f, 2)} {u} disagrees with measurement {their_id} of "
-                    f"the same compound, process, solvent and method ({fnum(their_dg * f, 2)} "
-                    f"{u}): they differ by {fnum((mine_dg - their_dg) * f, 2)} {u}, more than "
-                    f"their combined uncertainty allows (±{float(tol[i]) * f:.2f} {u}){extra}",
+                    f"the same compound, process, solvent and method ({theirs}): they differ "
+                    f"by {fnum((mine_dg - their_dg) * f, 2)} {u}, more than their combined "
+                    f"uncertainty allows (±{float(tol[i]) * f:.2f} {u}){extra}",
                     reported=opt(mine_dg * f),
                     recomputed=opt(their_dg * f),
                     difference=opt((mine_dg - their_dg) * f),
@@ -130,8 +141,10 @@ def _match_codes(data: CheckData) -> tuple[NDArray[np.int64], NDArray[np.int64]]
 
 def _disagreeing_pairs(
     data: CheckData, config: CheckConfig
-) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.float64], NDArray[np.float64]] | None:
-    """(checked row, peer row, tolerance, excess) of every repeat pair that disagrees."""
+) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.float64], NDArray[np.float64],
+           NDArray[np.float64]] | None:  # fmt: skip
+    """(checked row, peer row, tolerance, excess, ΔG‡ shift of the checked row) of every repeat
+    pair that disagrees (the shift moves it to the peer's temperature; 0 where not moved)."""
     peers = data.peers
     if len(data) == 0 or peers["id"].size == 0:
         return None
@@ -155,12 +168,27 @@ def _disagreeing_pairs(
     dg, dg_o = data.col("dg_kj_mol")[mine], peers["dg_kj_mol"][other]
     err = np.nan_to_num(data.col("dg_err_kj_mol")[mine], nan=0.0)
     err_o = np.nan_to_num(peers["dg_err_kj_mol"][other], nan=0.0)
-    dt = np.abs(data.col("dg_t_k")[mine] - peers["dg_t_k"][other])
+    # ΔG‡ of the checked row moved to the peer's temperature with ΔS‡ (its own, else the peer's)
+    t_m, t_o = data.col("dg_t_k")[mine], peers["dg_t_k"][other]
+    ds = data.col("ds_j_mol_k")[mine]
+    ds = np.where(np.isfinite(ds), ds, peers["ds_j_mol_k"][other])
     with np.errstate(invalid="ignore"):
-        close_t = np.isnan(dt) | (dt <= config.duplicate_max_dt_k)
-    tol = config.dg_tolerance_kj_mol + config.coverage * np.sqrt(err**2 + err_o**2)
-    excess = np.abs(dg - dg_o) - tol
-    bad = close_t & (excess > 0)
+        apart = np.isfinite(t_m) & np.isfinite(t_o) & (np.abs(t_o - t_m) > _SAME_T_K)
+        movable = apart & np.isfinite(ds)
+        shift = np.where(movable, -(t_o - t_m) * ds / 1000.0, 0.0)
+        dt = np.where(apart & ~movable, np.abs(t_o - t_m), 0.0)
+        comparable = dt <= config.duplicate_max_dt_k
+    tol = (
+        config.dg_tolerance_kj_mol
+        + config.coverage * np.sqrt(err**2 + err_o**2)
+        + dt * config.ds_allowance_j_mol_k / 1000.0
+    )
+    excess = np.abs(dg + shift - dg_o) - tol
+    bad = comparable & (excess > 0)
     if not bad.any():
         return None
-    return mine[bad], other[bad], tol[bad], excess[bad]
+    return mine[bad], other[bad], tol[bad], excess[bad], shift[bad]
+
+
+#: temperatures this close count as the same (rounding; common practice, no source)
+_SAME_T_K = 0.5

@@ -5,7 +5,12 @@ named only when it reproduces the reported number within the same tolerance the 
 when several do, all are named, best first (slips without a free choice before those that pick
 a field or a temperature from a list, then by closeness). The list mirrors the errors that
 recur in the dynamic-NMR literature (common practice, no source): unit mix-ups, Celsius taken
-for kelvin, ppm taken for Hz, the wrong k_c expression, log10 for ln, the wrong temperature.
+for kelvin, ppm taken for Hz, the wrong k_c expression, log10 for ln, the wrong temperature,
+and a factor in k — k_ex for k_AB, k_rac for k_enant, a statistical factor
+(:mod:`.conventions`; which of them can apply depends on the convention the entry records).
+Where a factor slip reproduces the number, k_c = πΔν and 2πΔν — which sit RT·ln√2 on either
+side of a factor 2 — are named only if they do so as well (:data:`NAMING_MARGIN_KJ_MOL`): an
+RT·ln 2 difference is a factor 2 in k, not both k_c forms at once.
 """
 
 from __future__ import annotations
@@ -17,9 +22,12 @@ from functools import lru_cache
 import numpy as np
 from numpy.typing import NDArray
 
+from registry.validation import conventions
 from registry.validation.coalescence_model import (
     CoalescenceInputs,
     Recomputed,
+    on_basis,
+    rates,
     recompute,
     stack,
 )
@@ -94,8 +102,7 @@ def _nearest_of_each(
 
 def _scaled(inp: CoalescenceInputs, correct: Recomputed, factor: float) -> Array:
     """Both directions' barriers times ``factor``, whichever is nearer the reported value."""
-    scaled = Recomputed(correct.k1_per_s, correct.k2_per_s, correct.dg1_kj_mol * factor,
-                        correct.dg2_kj_mol * factor)  # fmt: skip
+    scaled = correct.with_barriers(correct.dg1_kj_mol * factor, correct.dg2_kj_mol * factor)
     return scaled.nearest(inp.reported_kj_mol)[0]
 
 
@@ -177,7 +184,10 @@ def _coupled_as_uncoupled(
 def _populations_ignored(
     inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]
 ) -> Candidate:
-    unequal = inp.unequal
+    """Only where the entry records which direction its barrier refers to: the equal-population
+    value lies within ~0.4 kJ/mol of the barrier for leaving the minor site at every ratio, so
+    without a direction that value is a correct barrier and the slip cannot be told from it."""
+    unequal = inp.unequal & (inp.direction > 0)
     values = np.full(unequal.size, np.nan)
     if unequal.any():
         values = np.where(unequal, _nearest(inp.with_(ratio=np.ones_like(inp.ratio))), np.nan)
@@ -224,6 +234,45 @@ def _other_temperature(
     return _best(inp, options)
 
 
+#: factor slips that take the sum of both directions for one direction's k, and the reverse
+_TO_SUM = ("k-exchange-as-per-site", "racemization-as-enantiomerization")
+_TO_ONE = ("k-per-site-as-exchange", "enantiomerization-as-racemization")
+
+SlipFunction = Callable[[CoalescenceInputs, Recomputed, tuple[float, ...]], Candidate]
+
+
+def _factor_slip(slip_id: str) -> SlipFunction:
+    """The coalescence form of a factor slip of :mod:`.conventions` (the barrier from k·f),
+    for the rows whose recorded convention and degeneracy allow it."""
+
+    def compute(inp: CoalescenceInputs, correct: Recomputed, _f: tuple[float, ...]) -> Candidate:
+        n = inp.tc_k.size
+        options: dict[float, tuple[NDArray[np.bool_], list[str]]] = {}
+        for i, (conv, sigma) in enumerate(zip(inp.convention, inp.degeneracy, strict=True)):
+            for found, factor, text in conventions.factor_options(conv, float(sigma)):
+                if found == slip_id:
+                    mask, texts = options.setdefault(factor, (np.zeros(n, bool), [""] * n))
+                    mask[i], texts[i] = True, text
+        if not options:
+            return Candidate(np.full(n, np.nan), [""] * n)
+        k1, k2 = _same_rates(correct)
+        if slip_id in _TO_ONE:  # one direction's k where the sum belongs
+            k1, k2 = on_basis(inp.with_(summed=np.zeros(n, dtype=bool)), *rates(inp))
+        factors = list(options)
+        versions = [
+            (k1 + k2, k1 + k2) if slip_id in _TO_SUM else (k1, k2) if slip_id in _TO_ONE
+            else (k1 * f, k2 * f)
+            for f in factors
+        ]  # fmt: skip
+        values = _nearest_of_each([inp] * len(factors), rates_per_s=(
+            np.concatenate([v[0] for v in versions]), np.concatenate([v[1] for v in versions])
+        ))  # fmt: skip
+        return _best(inp, [(np.where(options[f][0], vals, np.nan), options[f][1])
+                           for f, vals in zip(factors, values, strict=True)])  # fmt: skip
+
+    return compute
+
+
 SLIPS: tuple[Slip, ...] = (
     Slip("kcal-as-kj", False, _kcal_as_kj),
     Slip("kj-as-kcal", False, _kj_as_kcal),
@@ -235,11 +284,24 @@ SLIPS: tuple[Slip, ...] = (
     Slip("kc-pi-dnu", False, _kc_pi),
     Slip("kc-2pi-dnu", False, _kc_2pi),
     Slip("log10-for-ln", False, _log10),
+    *(
+        Slip(slip_id, slip_id == conventions.STATISTICAL_FACTOR, _factor_slip(slip_id))
+        for slip_id in conventions.FACTOR_SLIP_IDS
+    ),
     Slip("dnu-other-field", True, _dnu_other_field),
     Slip("dg-other-temperature", True, _other_temperature),
 )
 
 SLIP_IDS = tuple(s.id for s in SLIPS)
+
+#: slips whose recomputed ΔG‡ lies further than this beyond the best one's from the reported
+#: value are not named. A slip is arithmetic on the very numbers stored, so the true one
+#: reproduces the report to its rounding; the margin is half of RT·ln√2 (0.49 kJ/mol at
+#: 170 K), what separates k_c = πΔν (×√2) and 2πΔν (×2√2) from a factor 2 in k
+#: (common practice, no source)
+NAMING_MARGIN_KJ_MOL = 0.25
+#: the k_c slips that sit RT·ln√2 on either side of a factor 2 in k
+_KC_FORMS = ("kc-pi-dnu", "kc-2pi-dnu")
 
 
 @dataclass(frozen=True)
@@ -276,6 +338,19 @@ def diagnose(
             )
     slips, details, values = [], [], []
     for hits in found:
+        # a statistical factor the entry does not record is a guess: named only when nothing
+        # else explains the number
+        if any(h[2] != conventions.STATISTICAL_FACTOR for h in hits):
+            hits = [h for h in hits if h[2] != conventions.STATISTICAL_FACTOR]
+        if hits:  # a factor in k named only if as good as the best other explanation
+            best = min(h[1] for h in hits)
+            hits = [h for h in hits if h[2] not in conventions.FACTOR_SLIP_IDS
+                    or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
+        factors = [h[1] for h in hits if h[2] in conventions.FACTOR_SLIP_IDS]
+        if factors:  # a factor in k explains it: k_c = πΔν or 2πΔν only if as good
+            best = min(factors)
+            hits = [h for h in hits
+                    if h[2] not in _KC_FORMS or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
         hits.sort(key=lambda h: (h[0], h[1]))
         slips.append(tuple(h[2] for h in hits))
         details.append(tuple(h[3] for h in hits))
