@@ -18,7 +18,7 @@ Grouped by what they act on:
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
 * ``lineshape`` — :func:`simulate_lineshape`, :func:`fit_lineshapes`, :func:`value_with_error_text`
 * ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
-  :func:`build_report`
+  :func:`build_report`; ``paper_tables`` — :func:`export_si_table`
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
   :func:`calc_halflife`, :func:`calc_plan`, :func:`calc_exsy`, :func:`calc_transfer`,
   :func:`calc_timecourse` (kinetics at the bench, no database)
@@ -59,6 +59,7 @@ from registry.api.estimate import BarrierEstimate, estimate_barrier
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.files import export_measurements, import_table
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
+from registry.api.paper_tables import export_si_table
 from registry.api.records import (
     add_measurement,
     add_rate_points,
@@ -130,6 +131,7 @@ __all__ = [
     "enable_server_search",
     "estimate_barrier",
     "export_measurements",
+    "export_si_table",
     "find",
     "fit_lineshapes",
     "get_measurement",
