@@ -199,3 +199,23 @@ def test_migration_0007_up_and_down(tmp_path: Path) -> None:
 def test_the_library_refuses_a_bad_temperature(database: Database) -> None:
     with pytest.raises(UsageError):
         api.compare_computed(database, plot="x.gif")
+
+
+@pytest.mark.parametrize("suffix", [".png", ".svg", ".pdf"])
+def test_the_parity_plot_in_the_print_style(
+    database: Database, tmp_path: Path, suffix: str
+) -> None:
+    _filled(database)
+    out = tmp_path / f"parity{suffix}"
+    res = api.compare_computed(database, plot=str(out), style="print", size="single", dpi=200)
+    data = out.read_bytes()
+    assert res.plot == str(out) and len(data) > 1000
+    if suffix == ".png":  # a single journal column (3.3 in wide) at 200 dpi: 660 pixels
+        width = int.from_bytes(data[16:20], "big")
+        assert width == round(3.3 * 200)
+    elif suffix == ".pdf":
+        assert data.startswith(b"%PDF")
+    else:
+        assert b"<svg" in data[:2000]
+    with pytest.raises(UsageError):
+        api.compare_computed(database, plot=str(out), style="poster")

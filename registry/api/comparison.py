@@ -56,12 +56,16 @@ def compare_computed(
     include_flagged: bool = False,
     level: str | None = None,
     plot: str | Path | None = None,
+    style: str | None = None,
+    size: str | None = None,
+    dpi: int | None = None,
 ) -> Comparison:
     """Computed barriers (method ``computed``) against measured ones of the same compound and
     process, at ``at`` (K, or a temperature text) where ΔH‡ and ΔS‡ allow, else at the
     temperature both were quoted at; per level of theory N, mean signed/absolute error, RMS and
     largest error with bootstrap 95 % intervals. ``level`` keeps the levels whose text contains
-    it; ``plot`` writes a parity plot (.png/.svg/.pdf)."""
+    it; ``plot`` writes a parity plot (.png/.svg/.pdf) in the figure ``style`` (screen or
+    print) at ``size`` and ``dpi``, as every plot command."""
     from registry.comparison.pairs import make_pairs, read_rows
     from registry.comparison.stats import error_stats
     from registry.kinetics.quantities import read_quantity
@@ -69,7 +73,9 @@ def compare_computed(
     t_k = float(at) if isinstance(at, (int, float)) else read_quantity(at, "temperature", "at")[0]
     if plot is not None:
         from registry.reports.canvas import check_output
+        from registry.reports.style import figure_style
 
+        chosen = figure_style(style, size=size, dpi=dpi)
         check_output(plot, protect=database.path)
     pairs, alone = make_pairs(read_rows(database, t_k, include_flagged), t_k)
     if level:
@@ -85,7 +91,7 @@ def compare_computed(
         from registry.reports.parity_plot import parity_figure
 
         written = str(parity_figure([p for p in pairs if p.t_k is not None], stats, plot,
-                                    protect=database.path))  # fmt: skip
+                                    protect=database.path, style=chosen))  # fmt: skip
     elif plot is not None:
         notes += ("no aligned pair: no parity plot written",)
     return Comparison(t_k, tuple(pairs), tuple(stats), alone, include_flagged, written, notes)

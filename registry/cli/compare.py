@@ -24,15 +24,19 @@ def compare(
     include_flagged: bool = typer.Option(
         False, "--include-flagged", help="Count flagged measured values too."
     ),
-    plot: str = typer.Option(None, "--plot", help="Write a parity plot (.png, .svg)."),
+    plot: str = typer.Option(None, "--plot", help="Write a parity plot (.png, .svg, .pdf)."),
+    style: str = typer.Option("screen", "--style", help="Plot style: screen or print."),
+    size: str = typer.Option(None, "--size", help="Plot size: single, double or WxH inches."),
+    dpi: int = typer.Option(None, "--dpi", help="Dots per inch of a PNG plot."),
     show_pairs: bool = typer.Option(False, "--pairs", help="List every pair."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
 ) -> None:
     """How far computed barriers lie from measured ones, per level of theory."""
     database = api.open_registry(state(ctx).db)
     res = api.compare_computed(
-        database, at=at, include_flagged=include_flagged, level=level, plot=plot
-    )
+        database, at=at, include_flagged=include_flagged, level=level, plot=plot, style=style,
+        size=size, dpi=dpi,
+    )  # fmt: skip
     if as_json:
         print_json(res.to_dict())
     else:

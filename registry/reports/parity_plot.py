@@ -8,12 +8,13 @@ from collections.abc import Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from registry.reports import theme
-from registry.reports.canvas import new_figure, save_figure, styled
+from registry.reports.canvas import new_figure, save_figure, set_title, styled
+from registry.reports.style import SCREEN
 
 if TYPE_CHECKING:
     from registry.comparison.pairs import Pair
     from registry.comparison.stats import ErrorStats
+    from registry.reports.style import FigureStyle
 
 #: half-width of the shaded band: 1 kcal/mol in kJ/mol (thermochemical calorie)
 BAND_KJ_MOL = 4.184
@@ -22,11 +23,17 @@ LABELLED = 5
 
 
 def parity_figure(
-    pairs: Sequence[Pair], stats: Sequence[ErrorStats], path: str | Path, *, protect: Any = None
+    pairs: Sequence[Pair],
+    stats: Sequence[ErrorStats],
+    path: str | Path,
+    *,
+    protect: Any = None,
+    style: FigureStyle = SCREEN,
 ) -> Path:
-    """Draw and write the parity plot of the aligned ``pairs``; returns the file written."""
-    with styled():
-        fig = new_figure(5.0, 4.6)
+    """Draw and write the parity plot of the aligned ``pairs`` in the figure ``style``
+    (:mod:`.style`); returns the file written."""
+    with styled(style):
+        fig = new_figure(5.0, 4.6, style=style)
         ax = fig.add_subplot(1, 1, 1)
         xs = [p.measured_kj_mol for p in pairs]
         ys = [p.computed_kj_mol for p in pairs]
@@ -34,19 +41,20 @@ def parity_figure(
         pad = max(2.0, 0.06 * (hi - lo))
         lo, hi = lo - pad, hi + pad
         ax.fill_between([lo, hi], [lo - BAND_KJ_MOL, hi - BAND_KJ_MOL],
-                        [lo + BAND_KJ_MOL, hi + BAND_KJ_MOL], color=theme.RULE, lw=0,
+                        [lo + BAND_KJ_MOL, hi + BAND_KJ_MOL], color=style.rule, lw=0,
                         label="±1 kcal/mol")  # fmt: skip
-        ax.plot([lo, hi], [lo, hi], color=theme.MUTED, lw=1.0)
+        ax.plot([lo, hi], [lo, hi], color=style.muted, lw=1.0)
         for i, s in enumerate(stats):
             mine = [p for p in pairs if p.level == s.level]
             ax.scatter([p.measured_kj_mol for p in mine], [p.computed_kj_mol for p in mine],
-                       s=22, color=theme.GROUPS[i % len(theme.GROUPS)], zorder=3,
+                       s=22, color=style.groups[i % len(style.groups)], zorder=3,
                        label=f"{_short(s.level)} (N={s.n}, MAE {s.mae:.1f})")  # fmt: skip
         far = sorted((p for p in pairs if abs(p.error_kj_mol or 0) > BAND_KJ_MOL),
                      key=lambda p: -abs(p.error_kj_mol or 0))[:LABELLED]  # fmt: skip
         for p in far:
-            ax.annotate(p.compound, (p.measured_kj_mol, p.computed_kj_mol), fontsize=7,
-                        xytext=(4, 4), textcoords="offset points", color=theme.INK)  # fmt: skip
+            ax.annotate(p.compound, (p.measured_kj_mol, p.computed_kj_mol),
+                        fontsize=style.label_size, xytext=(4, 4), textcoords="offset points",
+                        color=style.ink)  # fmt: skip
         ax.set_xlim(lo, hi)
         ax.set_ylim(lo, hi)
         ax.set_aspect("equal")
@@ -54,9 +62,10 @@ def parity_figure(
         at = f" at {t.pop():.2f} K" if len(t) == 1 else " (each pair at its own temperature)"
         ax.set_xlabel("measured ΔG‡ (kJ/mol)")
         ax.set_ylabel("computed ΔG‡ (kJ/mol)")
-        ax.set_title(f"Computed against measured barriers{at}", fontsize=9)
-        ax.legend(fontsize=7, loc="upper left", frameon=False)
-    return save_figure(fig, path, protect=protect)
+        set_title(fig, ax, f"Computed vs measured ΔG‡{at}", style)
+        # under the plot, laid out with it: level-of-theory names are long, a column narrow
+        fig.legend(fontsize=style.label_size, loc="outside lower center", frameon=False)
+    return save_figure(fig, path, protect=protect, style=style)
 
 
 def _short(level: str, width: int = 38) -> str:
