@@ -348,3 +348,47 @@ def _read_quantity(text: str) -> str:
 def has_raw(row: dict[str, Any]) -> bool:
     """True when a stored row holds any raw data of these methods."""
     return any(row.get(c) for c in ("volumes_json", "ss_ratio", "course_json"))
+
+
+def _floats(value: Any) -> float | None:
+    return None if value is None or (isinstance(value, float) and value != value) else value
+
+
+def raw_summary(m: dict[str, Any]) -> dict[str, Any] | None:
+    """A stored row's raw data, read back for ``show`` and the JSON of a record (None: none)."""
+    if m.get("volumes_json"):
+        names = m.get("site_names")
+        return {
+            "kind": "exsy",
+            "mixing_text": m.get("mixing_text"),
+            "mixing_s": json.loads(m["mixing_json"]),
+            "volumes_text": m.get("volumes_text"),
+            "volumes": json.loads(m["volumes_json"]),
+            "volume_err": _floats(m.get("volume_err")),
+            "populations_text": m.get("populations_text"),
+            "populations": json.loads(m["populations_json"]) if m.get("populations_json") else None,
+            "site_names": names.split(",") if names else None,
+        }
+    if _floats(m.get("ss_ratio")) is not None:
+        return {
+            "kind": "saturation",
+            "ratio_text": m.get("ss_ratio_text"),
+            "ratio": m["ss_ratio"],
+            "ratio_err": _floats(m.get("ss_ratio_err")),
+            "t1_text": m.get("t1_text"),
+            "t1_s": _floats(m.get("t1_s")),
+            "t1_err_s": _floats(m.get("t1_err_s")),
+            "t1_kind": m.get("t1_kind"),
+        }
+    if m.get("course_json"):
+        course = Course.from_json(m["course_json"])
+        return {
+            "kind": course.quantity,
+            "course_text": m.get("course_text"),
+            "headers": list(course.headers),
+            "t_s": list(course.t_s),
+            "values": [list(v) for v in course.values],
+            "x_eq_text": m.get("x_eq_text"),
+            "x_eq": _floats(m.get("x_eq")),
+        }
+    return None
