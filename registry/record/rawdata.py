@@ -25,6 +25,7 @@ Notations (one cell each, so a spreadsheet row holds a whole measurement):
 from __future__ import annotations
 
 import json
+import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
@@ -392,3 +393,43 @@ def raw_summary(m: dict[str, Any]) -> dict[str, Any] | None:
             "x_eq": _floats(m.get("x_eq")),
         }
     return None
+
+
+def _close(a: Any, b: Any) -> bool:
+    """Two JSON values equal, floats to 1e-9 relative (what ``edit`` and ``verify`` allow)."""
+    if isinstance(a, dict) and isinstance(b, dict):
+        return a.keys() == b.keys() and all(_close(a[k], b[k]) for k in a)
+    if isinstance(a, list) and isinstance(b, list):
+        return len(a) == len(b) and all(_close(x, y) for x, y in zip(a, b, strict=True))
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)):
+        return math.isclose(a, b, rel_tol=1e-9, abs_tol=1e-12)
+    return bool(a == b)
+
+
+def reread_problems(where: str, row: dict[str, Any]) -> tuple[list[str], int]:
+    """Each stored raw-data text read again against its stored JSON (for ``verify``); the
+    problems and how many texts were read."""
+    n = len(json.loads(row["volumes_json"])[0]) if row.get("volumes_json") else None
+    readers = {
+        "mixing_text": read_mixing,
+        "volumes_text": read_volume_sets,
+        "populations_text": lambda t: read_site_populations(t, n),
+        "course_text": lambda t: json.loads(read_course(t, row.get("course_quantity")).as_json()),
+    }
+    problems, count = [], 0
+    for text_column, read in readers.items():
+        text, stored = row.get(text_column), row.get(JSON_OF_TEXT[text_column])
+        if text is None:
+            if stored is not None:
+                problems.append(f"{where}: {JSON_OF_TEXT[text_column]} is stored without its text")
+            continue
+        count += 1
+        try:
+            again = read(text)
+        except (UnitError, FluxledgerError) as exc:
+            problems.append(f"{where}: {text_column} {text!r} does not read any more: {exc}")
+            continue
+        if stored is None or not _close(again, json.loads(stored)):
+            problems.append(f"{where}: {text_column} {text!r} reads as {json.dumps(again)}, "
+                            f"stored {stored}")  # fmt: skip
+    return problems, count
