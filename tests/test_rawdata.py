@@ -225,7 +225,9 @@ def test_three_sites_and_several_mixing_times(database: Database) -> None:
 # ---------------------------------------------------------------- inversion transfer
 
 
-def inversion_course(k_ab: float, p_a: float, r1: tuple[float, float], delays_ms: list[float]) -> str:
+def inversion_course(
+    k_ab: float, p_a: float, r1: tuple[float, float], delays_ms: list[float]
+) -> str:
     p = np.array([p_a, 1 - p_a])
     k_ba = k_ab * p_a / p[1]
     kin = np.array([[k_ab, -k_ba], [-k_ab, k_ba]])

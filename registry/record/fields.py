@@ -187,8 +187,8 @@ FIELDS: tuple[Field, ...] = (
     _text("site_names", "site names (EXSY)", "measurement", "site_names", headers=(
         "sitenames", "exsysites", "sitelabels")),
     _value("ss_ratio", "M_ss/M0 (saturation transfer)", "dimensionless", "measurement",
-           "ss_ratio", headers=("ssratio", "mssm0", "msatm0", "saturationratio",
-                                "transferratio", "mzm0", "mssovermo")),
+           "ss_ratio", headers=("ssratio", "mssratio", "saturationratio", "transferratio",
+                                "steadystateratio")),
     _value("t1", "T1 of the observed site", "time", "measurement", "t1_s", headers=(
         "t1", "t1app", "t1obs", "t1sat", "t1a")),
     _text("t1_kind", "which T1 (apparent or intrinsic)", "measurement", "t1_kind", headers=(

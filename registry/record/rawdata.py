@@ -77,8 +77,9 @@ class Course:
 # ---------------------------------------------------------------- EXSY
 
 
-def read_mixing(text: str, field: str = "mixing") -> list[float]:
-    """``'0, 100 ms, 0.3 s'`` → seconds; ``0`` (no unit needed) is the reference spectrum."""
+def read_mixing(text: str, field: str = "mixing", unit: str | None = None) -> list[float]:
+    """``'0, 100 ms, 0.3 s'`` → seconds; ``0`` (no unit needed) is the reference spectrum;
+    ``unit``: the unit a column header gives bare numbers."""
     from registry.record.units import parse_value
 
     parts = [p.strip() for p in str(text).replace(";", ",").split(",")]
@@ -86,7 +87,11 @@ def read_mixing(text: str, field: str = "mixing") -> list[float]:
         raise UnitError(field, str(text), "write the mixing times separated by ',', e.g. '0.3 s'")
     out = []
     for part in parts:
-        seconds = 0.0 if part in ("0", "0.0") else parse_value(part, "time", field=field).value
+        seconds = (
+            0.0
+            if part in ("0", "0.0")
+            else parse_value(part, "time", field=field, default_unit=unit).value
+        )
         if seconds < 0:
             raise UnitError(field, part, "a mixing time cannot be negative")
         out.append(seconds)
@@ -259,13 +264,27 @@ class _Reader:
             return None
 
 
+def _with_unit(text: str | None, unit: str | None) -> str | None:
+    """Mixing times under a header that gives their unit (``mixing time (ms)``: ``100, 300``)
+    are stored with it (``100 ms, 300 ms``): the stored text then reads alone, as ``edit`` and
+    ``verify`` read it again."""
+    if text is None or not unit:
+        return text
+    parts = [p.strip() for p in text.replace(";", ",").split(",")]
+    bare = [p and p.replace(".", "", 1).replace("e", "", 1).lstrip("+-").isdigit() for p in parts]
+    if not any(bare):
+        return text
+    return ", ".join(f"{p} {unit}" if b and p not in ("0", "0.0") else p
+                     for p, b in zip(parts, bare, strict=True))  # fmt: skip
+
+
 def read_raw(inp: Any, values: dict[str, Any], problems: list[Any]) -> dict[str, Any]:
     """The raw-data columns of one entry (:data:`RAW_COLUMNS`), checked for completeness."""
     from registry.record.entry import Problem, text_of
 
     out: dict[str, Any] = dict.fromkeys(RAW_COLUMNS)
     read = _Reader(problems)
-    mixing, volumes = text_of(inp.mixing), text_of(inp.volumes)
+    mixing, volumes = _with_unit(text_of(inp.mixing), inp.units.get("mixing")), text_of(inp.volumes)
     taus = read("mixing", mixing, read_mixing)
     mats = read("volumes", volumes, read_volume_sets)
     n = len(mats[0]) if mats else None
