@@ -26,6 +26,7 @@ import numpy as np
 
 from registry.validation import conventions, slips
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
+from registry.validation.columns import present
 from registry.validation.conventions import (
     RateBasis,
     basis_note,
@@ -88,10 +89,13 @@ class RawDataBarrier(Rule):
     uses = ("dg_tolerance_kj_mol", "coverage")
 
     def run(self, data: CheckData, config: CheckConfig) -> list[Finding]:
-        rows = [i for i in range(len(data)) if kind_of(self._row(data, i))]
-        if not rows:
+        with np.errstate(invalid="ignore"):
+            saturation = np.isfinite(data.col("ss_ratio")) & np.isfinite(data.col("t1_s"))
+        has = present(data.text("volumes_json")) | present(data.text("course_json")) | saturation
+        positions = np.flatnonzero(has)
+        if positions.size == 0:
             return []
-        positions = np.asarray(rows, dtype=np.int64)
+        rows = positions.tolist()
         basis = rate_basis(data, positions)
         t_err = default_t_sigma(data, positions, np.full(positions.size, np.nan))
         labels, factors = energy_units(
