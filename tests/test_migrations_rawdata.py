@@ -1,4 +1,4 @@
-"""Migration 0006 (the raw data of 2D-exchange, transfer and time-course measurements) runs up
+"""Migration 0008 (the raw data of 2D-exchange, transfer and time-course measurements) runs up
 and down on SQLite and PostgreSQL and keeps every row; an upgraded registry takes raw data."""
 
 from __future__ import annotations
@@ -38,9 +38,9 @@ def _columns(database: Database) -> set[str]:
     return {c["name"] for c in inspect(database.sqlalchemy_engine()).get_columns("measurement")}
 
 
-def test_0006_up_and_down_keeps_rows(empty: Database) -> None:
+def test_0008_up_and_down_keeps_rows(empty: Database) -> None:
     database = empty
-    migrate.upgrade(database, "0005")
+    migrate.upgrade(database, "0007")
     assert not NEW_COLUMNS & _columns(database)
     now = datetime(2026, 1, 1, tzinfo=UTC)
     with database.sqlalchemy_engine().begin() as sa:
@@ -52,12 +52,12 @@ def test_0006_up_and_down_keeps_rows(empty: Database) -> None:
                  ":now, 'u1', 70.0)"),
             {"now": now},
         )  # fmt: skip
-    migrate.upgrade(database, "0006")
+    migrate.upgrade(database, "0008")
     assert _columns(database) >= NEW_COLUMNS
     with database.read() as conn:
         row = conn.record("SELECT volumes_json, ss_ratio, course_json, dg_kj_mol FROM measurement")
     assert row == {"volumes_json": None, "ss_ratio": None, "course_json": None, "dg_kj_mol": 70.0}
-    migrate.downgrade(database, "0005")
+    migrate.downgrade(database, "0007")
     assert not NEW_COLUMNS & _columns(database)
     with database.read() as conn:
         assert conn.scalar("SELECT dg_kj_mol FROM measurement") == 70.0

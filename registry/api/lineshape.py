@@ -86,6 +86,10 @@ def fit_lineshapes(
     measurement_id: int | None = None,
     actor: str | None = None,
     solvent_bp: Quantity | None = None,
+    plot_format: str = "png",
+    plot_style: str = "screen",
+    plot_size: str | tuple[float, float] | None = None,
+    plot_dpi: int | None = None,
 ) -> LineShapeAnalysis:
     """Fit the exchange rate k to each spectrum (one per temperature) and analyse the rates.
 
@@ -98,8 +102,15 @@ def fit_lineshapes(
     ``global_fit`` also fits ΔH‡ and ΔS‡ to all spectra at once; ``plots_dir`` gets a PNG per
     spectrum and ``eyring.png``. With ``database`` and ``measurement_id`` the per-temperature
     rates are added to that measurement as rate points (one transaction, in its history).
-    ``solvent_bp`` (K unless written) sharpens the safety cautions.
+    ``solvent_bp`` (K unless written) sharpens the safety cautions. The plots are
+    ``plot_format`` (png, svg, pdf) in the one figure style (``plot_style`` screen or print,
+    ``plot_size``, ``plot_dpi``: see :func:`registry.reports.style.figure_style`).
     """
+    from registry.reports.style import figure_style
+
+    look = figure_style(plot_style, size=plot_size, dpi=plot_dpi)
+    if plot_format not in ("png", "svg", "pdf"):
+        raise UsageError(f"plot_format {plot_format!r}: use png, svg or pdf")
     from registry.lineshape import inputs, workflow
 
     single = isinstance(files, (str, Path)) or not hasattr(files, "__iter__")
@@ -125,6 +136,7 @@ def fit_lineshapes(
     result = workflow.analyse(
         spectra, model, mhz, width_hz=width_hz, fix_width=fix_width, window_hz=window_hz,
         global_fit=global_fit, plots_dir=plots_dir, solvent_bp_k=bp_k,
+        plot_style=look, plot_format=plot_format,
     )  # fmt: skip
     if measurement_id is None:
         return result

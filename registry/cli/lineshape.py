@@ -131,6 +131,14 @@ def fit(
     plots: Path = typer.Option(
         None, "--plots", help="Write a PNG per spectrum and an Eyring plot into this directory."
     ),
+    plot_format: str = typer.Option("png", "--plot-format", help="With --plots: png, svg or pdf."),
+    style: str = typer.Option(
+        "screen", "--style", help="With --plots: screen (150 dpi) or print (journal, 600 dpi)."
+    ),
+    size: str = typer.Option(
+        None, "--size", help="With --plots: single or double (journal column) or WxH inches."
+    ),
+    dpi: int = typer.Option(None, "--dpi", help="With --plots: dots per inch of a PNG."),
     measurement: int = typer.Option(
         None,
         "--measurement",
@@ -152,6 +160,7 @@ def fit(
             x_unit=x_unit, width=width, fix_width=fix_width, region=region,
             global_fit=global_fit, plots_dir=plots, database=database,
             measurement_id=measurement, actor=st.actor, solvent_bp=solvent_bp,
+            plot_format=plot_format, plot_style=style, plot_size=size, plot_dpi=dpi,
         )  # fmt: skip
     finally:
         if database is not None:

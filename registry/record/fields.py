@@ -173,7 +173,7 @@ FIELDS: tuple[Field, ...] = (
            "dh_ds_corr", error=False, text_column="dh_ds_corr_text", headers=(
                "dhdscorr", "corrdhds", "rdhds", "correlationdhds", "dhdscorrelation")),
     # the raw data of 2D exchange, saturation/inversion transfer and time courses (migration
-    # 0006; read by registry.record.rawdata)
+    # 0008; read by registry.record.rawdata)
     _text("mixing", "EXSY mixing time(s)", "measurement", "mixing_text", headers=(
         "mixing", "mixingtime", "mixingtimes", "taum", "tmix", "tm")),
     _text("volumes", "EXSY peak volumes", "measurement", "volumes_text", headers=(
@@ -199,6 +199,22 @@ FIELDS: tuple[Field, ...] = (
           headers=("coursequantity", "followed", "quantityfollowed")),
     _value("x_eq", "equilibrium fraction", "dimensionless", "measurement", "x_eq", error=False,
            headers=("xeq", "equilibriumfraction", "xequilibrium", "fractionateq")),
+    # how a computed barrier was computed (registry.record.theory): free texts as written
+    _text("theory", "level of theory", "measurement", "theory_level", headers=(
+        "theory", "leveloftheory", "level", "theorylevel", "computationallevel",
+        "computationalmethod", "modelchemistry")),
+    _text("functional", "electronic-structure method", "measurement", "theory_method", headers=(
+        "functional", "dftfunctional", "qmmethod", "theorymethod", "electronicstructuremethod",
+        "dft")),
+    _text("basis", "basis set", "measurement", "theory_basis", headers=(
+        "basis", "basisset", "basissets")),
+    _text("solvation", "solvation model", "measurement", "theory_solvation", headers=(
+        "solvation", "solvationmodel", "solventmodel", "implicitsolvent", "continuummodel",
+        "pcm")),
+    _text("conformers", "conformer treatment", "measurement", "theory_conformers", headers=(
+        "conformers", "conformertreatment", "conformersearch", "conformations")),
+    _text("standard_state", "standard state", "measurement", "standard_state", headers=(
+        "standardstate", "stdstate", "referencestate")),
     _text("reference", "reference", "measurement", "reference", headers=(
         "ref", "reference", "references", "doi", "citation", "source", "literature", "lit",
         "litref")),
@@ -237,6 +253,9 @@ EDIT_ALIASES: dict[str, str] = {
     "corr": "dh_ds_corr",
     "κ": "kappa",
     "mixing_time": "mixing",
+    "level_of_theory": "theory",
+    "basis_set": "basis",
+    "solvation_model": "solvation",
 }
 
 

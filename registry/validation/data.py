@@ -37,6 +37,11 @@ _MEASUREMENT_COLUMNS = {
     "method": "m.method",
     "solvent_id": "m.solvent_id",
     "solvent_text": "m.solvent_text",
+    # a computed value's level of theory: one compound's barrier at two levels is no repeat
+    "theory_level": "m.theory_level",
+    "theory_method": "m.theory_method",
+    "theory_basis": "m.theory_basis",
+    "theory_solvation": "m.theory_solvation",
     "field_mhz": "m.field_mhz",
     "t_min_k": "m.t_min_k",
     "t_min_text": "m.t_min_text",
@@ -73,7 +78,7 @@ _MEASUREMENT_COLUMNS = {
     "t_calibration": "m.t_calibration",
     "t_calibration_err_k": "m.t_calibration_err_k",
     "dh_ds_corr": "m.dh_ds_corr",
-    # the raw data of 2D exchange, transfer and time courses (migration 0006)
+    # the raw data of 2D exchange, transfer and time courses (migration 0008)
     "mixing_json": "m.mixing_json",
     "volumes_json": "m.volumes_json",
     "volume_err": "m.volume_err",
@@ -180,7 +185,7 @@ RECORDED_HASHED: dict[str, str] = {
     "dh_ds_corr": "float",
 }
 
-#: the raw data (migration 0006), hashed after the recorded columns only for a measurement
+#: the raw data (migration 0008), hashed after the recorded columns only for a measurement
 #: that holds any of it (existing rows hold none, so their stored findings keep their hash)
 RAW_HASHED: dict[str, str] = {
     "mixing_json": "text",
@@ -205,6 +210,10 @@ PEER_COLUMNS = (
     "method",
     "solvent_id",
     "solvent_text",
+    "theory_level",
+    "theory_method",
+    "theory_basis",
+    "theory_solvation",
     "dg_kj_mol",
     "dg_err_kj_mol",
     "dg_t_k",

@@ -8,6 +8,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from registry.record import vocab
+from registry.record.theory import THEORY_COLUMNS, theory_key
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.data import CheckData
 from registry.validation.reported import energy_units
@@ -114,7 +115,8 @@ def _integers(values: NDArray[Any], missing: int = -1) -> NDArray[np.int64]:
 def _match_keys(columns: dict[str, NDArray[Any]], methods: dict[str, int]) -> NDArray[np.int64]:
     """(compound, process, method, solvent) of each row as four integers: the solvent is its
     table id, else (negative) the code of its spelling's key; -1 for no process."""
-    method = [methods.setdefault(str(m), len(methods)) for m in columns["method"].tolist()]
+    method = [methods.setdefault(_method_of(columns, i), len(methods))
+              for i in range(len(columns["method"]))]  # fmt: skip
     solvent = _integers(columns["solvent_id"], missing=-1)
     for row in np.flatnonzero(solvent < 0).tolist():
         text = columns["solvent_text"][row]
@@ -123,6 +125,15 @@ def _match_keys(columns: dict[str, NDArray[Any]], methods: dict[str, int]) -> ND
     return np.column_stack(
         [_integers(columns["compound_id"]), _integers(columns["process_id"]), method, solvent]
     )
+
+
+def _method_of(columns: dict[str, NDArray[Any]], row: int) -> str:
+    """The method as repeats are matched on: a computed value with its level of theory (two
+    levels of theory for one compound are two methods, not a repeat)."""
+    method = str(columns["method"][row])
+    if method != "computed":
+        return method
+    return "computed|" + theory_key({c: columns[c][row] for c in THEORY_COLUMNS})
 
 
 def _match_codes(data: CheckData) -> tuple[NDArray[np.int64], NDArray[np.int64]]:

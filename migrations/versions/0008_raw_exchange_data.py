@@ -1,7 +1,7 @@
 """the raw data of 2D-exchange, transfer and time-course measurements
 
-Revision ID: 0006
-Revises: 0005
+Revision ID: 0008
+Revises: 0007
 Create Date: 2026-12-05 03:00:00
 
 ``measurement`` gains the raw data a 2D-exchange (EXSY), saturation- or inversion-transfer
@@ -21,8 +21,8 @@ from collections.abc import Sequence
 import sqlalchemy as sa
 from alembic import op
 
-revision: str = "0006"
-down_revision: str | None = "0005"
+revision: str = "0008"
+down_revision: str | None = "0007"
 branch_labels: str | Sequence[str] | None = None
 depends_on: str | Sequence[str] | None = None
 
