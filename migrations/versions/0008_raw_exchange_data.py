@@ -2,7 +2,7 @@
 
 Revision ID: 0008
 Revises: 0007
-Create Date: 2026-12-05 03:00:00
+Create Date: 2026-12-05 02:45:00
 
 ``measurement`` gains the raw data a 2D-exchange (EXSY), saturation- or inversion-transfer
 or equilibration/racemization measurement is recomputed from (see
