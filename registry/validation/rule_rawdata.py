@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -146,7 +147,7 @@ class RawDataBarrier(Rule):
         tol = config.dg_tolerance_kj_mol + config.coverage * math.hypot(rec_err, rep_err)
         if abs(reported - dg) <= tol:
             return None
-        hits = _diagnose(row, rates, basis, j, t_k, reported, tol, k)
+        hits = _diagnose(_Case(row, rates, basis, j, t_k, reported, k), tol)
         unit, f = shown
         note = basis_note(basis, j)
         div = "" if divisor == 1 else f", divided by {divisor:.4g} (σ·c·κ)"
@@ -186,107 +187,120 @@ def _correct(
 Candidate = tuple[str, bool, float, str]  # slip id, parametric, ΔG‡, words
 
 
-def _diagnose(
-    row: dict[str, Any], rates: Rates, basis: RateBasis, j: int, t_k: float, reported: float,
-    tol: float, k_correct: float,
-) -> list[slips.Hit]:  # fmt: skip
-    divisor = float(basis.divisor[j])
-    cands: list[Candidate] = []
-    for make in _CANDIDATES:
-        cands.extend(make(row, rates, basis, j, t_k, reported, divisor, k_correct))
+@dataclass(frozen=True)
+class _Case:
+    """One flagged row, as every slip sees it: its stored raw data, the rate constants they
+    give, its basis (row ``j``), the temperature, the reported ΔG‡ and the correct k."""
+
+    row: dict[str, Any]
+    rates: Rates
+    basis: RateBasis
+    j: int
+    t_k: float
+    reported: float
+    k: float
+
+    def dg(self, k: float) -> float:
+        """ΔG‡ of a rate constant on this row's basis (÷ σ·c·κ)."""
+        return _barrier(k, self.t_k, float(self.basis.divisor[self.j]))
+
+    def nearest(self, ks: list[float]) -> float:
+        """The barrier among those of ``ks`` nearest the reported one."""
+        values = [self.dg(k) for k in ks if k > 0]
+        return min(values, key=lambda dg: abs(dg - self.reported), default=math.nan)
+
+
+def _diagnose(case: _Case, tol: float) -> list[slips.Hit]:
+    cands = [c for make in _CANDIDATES for c in make(case)]
     hits = [
-        (int(par), abs(reported - dg), slip_id, words, dg)
+        (int(par), abs(case.reported - dg), slip_id, words, dg)
         for slip_id, par, dg, words in cands
-        if np.isfinite(dg) and abs(reported - dg) <= tol
+        if np.isfinite(dg) and abs(case.reported - dg) <= tol
     ]
     return slips.choose(hits)
 
 
-def _units(row, rates, basis, j, t_k, reported, divisor, k):  # type: ignore[no-untyped-def]
+def _units(case: _Case) -> list[Candidate]:
     from registry.record import units
 
     kcal = units.convert(1.0, "kcal/mol", "kJ/mol")
-    dg = _barrier(k, t_k, divisor)
+    dg = case.dg(case.k)
     return [("kcal-as-kj", False, dg / kcal, "a kcal/mol value labelled kJ/mol"),
             ("kj-as-kcal", False, dg * kcal, "a kJ/mol value labelled kcal/mol")]  # fmt: skip
 
 
-def _factors(row, rates, basis, j, t_k, reported, divisor, k):  # type: ignore[no-untyped-def]
+_TO_SUM = ("k-exchange-as-per-site", "racemization-as-enantiomerization")
+_TO_ONE = ("k-per-site-as-exchange", "enantiomerization-as-racemization")
+_K_RAC_WORDS = (
+    "ΔG‡ computed from k_rac = 2·k_enant (the decay rate of ee) while the measurement means k_enant"
+)
+
+
+def _factors(case: _Case) -> list[Candidate]:
     """The factor slips of :mod:`.conventions` the entry's convention allows, computed with
-    the other rate constant the raw data give (exact for unequal populations)."""
-    out = []
-    for slip_id, factor, words in conventions.factor_options(
-        basis.convention[j], float(basis.degeneracy[j])
-    ):
-        if slip_id in ("k-exchange-as-per-site", "racemization-as-enantiomerization"):
+    the other rate constant the raw data give (exact for unequal populations); for an ee
+    course the sum of both directions is k_rac, so those slips carry the racemization names."""
+    rates, out = case.rates, []
+    options = conventions.factor_options(
+        case.basis.convention[case.j], float(case.basis.degeneracy[case.j])
+    )
+    for slip_id, factor, words in options:
+        if slip_id in _TO_SUM:
             if rates.summed is None:
                 continue
             if rates.kind == "ee":
-                slip_id = "racemization-as-enantiomerization"
-                words = (
-                    "ΔG‡ computed from k_rac = 2·k_enant (the decay rate of ee) while the "
-                    "measurement means k_enant"
-                )
-            out.append((slip_id, False, _barrier(rates.summed[0], t_k, divisor), words))
-        elif slip_id in ("k-per-site-as-exchange", "enantiomerization-as-racemization"):
-            if rates.kind == "ee" and slip_id == "k-per-site-as-exchange":
+                slip_id, words = "racemization-as-enantiomerization", _K_RAC_WORDS
+            out.append((slip_id, False, case.dg(rates.summed[0]), words))
+        elif slip_id in _TO_ONE:
+            if rates.kind == "ee":
                 slip_id = "enantiomerization-as-racemization"
-            near = min((_barrier(kk, t_k, divisor) for _w, kk, _e in rates.one if kk > 0),
-                       key=lambda dg: abs(dg - reported), default=math.nan)  # fmt: skip
-            out.append((slip_id, False, near, words))
+            out.append((slip_id, False, case.nearest([k for _w, k, _e in rates.one]), words))
         else:
-            out.append((slip_id, slip_id == conventions.STATISTICAL_FACTOR,
-                        _barrier(k * factor, t_k, divisor), words))  # fmt: skip
+            parametric = slip_id == conventions.STATISTICAL_FACTOR
+            out.append((slip_id, parametric, case.dg(case.k * factor), words))
     return out
 
 
-def _time_units(row, rates, basis, j, t_k, reported, divisor, k):  # type: ignore[no-untyped-def]
+def _time_units(case: _Case) -> list[Candidate]:
     return [
-        ("time-unit", True, _barrier(k * f, t_k, divisor), f"{words} (k {f:.4g}× the true k)")
+        ("time-unit", True, case.dg(case.k * f), f"{words} (k {f:.4g}× the true k)")
         for kinds, f, words in TIME_SLIPS
-        if rates.kind in kinds
+        if case.rates.kind in kinds
     ]
 
 
-def _t1_swapped(row, rates, basis, j, t_k, reported, divisor, k):  # type: ignore[no-untyped-def]
-    if rates.kind != "saturation":
+def _t1_swapped(case: _Case) -> list[Candidate]:
+    if case.rates.kind != "saturation":
         return []
-    other = "intrinsic" if (row.get("t1_kind") or "apparent") == "apparent" else "apparent"
+    stored = case.row.get("t1_kind") or "apparent"
+    other = "intrinsic" if stored == "apparent" else "apparent"
     try:
-        swapped = recompute(row, t1_kind=other).one[0][1]
+        swapped = recompute(case.row, t1_kind=other).one[0][1]
     except NotRecomputed:
         return []
-    stored = "intrinsic" if other == "apparent" else "apparent"
     words = (
         f"the {stored} T1 used as if it were the {other} one in Forsén–Hoffman "
         "(k off by the factor M_ss/M0)"
     )
-    return [("t1-kind-swapped", False, _barrier(swapped, t_k, divisor), words)]
+    return [("t1-kind-swapped", False, case.dg(swapped), words)]
 
 
-def _populations(row, rates, basis, j, t_k, reported, divisor, k):  # type: ignore[no-untyped-def]
-    pops = rates.populations
-    if rates.kind != "exsy" or not pops or max(pops) / min(pops) < _EQUAL_WITHIN:
+def _populations(case: _Case) -> list[Candidate]:
+    pops = case.rates.populations
+    if case.rates.kind != "exsy" or not pops or max(pops) / min(pops) < _EQUAL_WITHIN:
         return []
     try:
-        equal = recompute(row, equal_populations=True)
+        equal = recompute(case.row, equal_populations=True)
     except NotRecomputed:
         return []
-    options = [_barrier(kk, t_k, divisor) for _w, kk, _e in equal.one if kk > 0]
-    if basis.summed[j] and equal.summed is not None:
-        options = [_barrier(equal.summed[0], t_k, divisor)]
-    near = min(options, key=lambda dg: abs(dg - reported), default=math.nan)
+    ks = [k for _w, k, _e in equal.one]
+    if case.basis.summed[case.j] and equal.summed is not None:
+        ks = [equal.summed[0]]
     shown = ":".join(f"{p:.2g}" for p in pops)
-    return [
-        (
-            "populations-ignored",
-            False,
-            near,
-            f"the unequal site populations ({shown}) taken as equal in the EXSY computation",
-        )
-    ]
+    words = f"the unequal site populations ({shown}) taken as equal in the EXSY computation"
+    return [("populations-ignored", False, case.nearest(ks), words)]
 
 
-_CANDIDATES: tuple[Callable[..., list[Candidate]], ...] = (
+_CANDIDATES: tuple[Callable[[_Case], list[Candidate]], ...] = (
     _units, _factors, _t1_swapped, _populations, _time_units,
 )  # fmt: skip
