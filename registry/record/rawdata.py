@@ -45,7 +45,6 @@ JSON_OF_TEXT = {
     "populations_text": "populations_json",
     "course_text": "course_json",
 }
-T1_KINDS = ("apparent", "intrinsic")
 COURSE_QUANTITIES = ("ee", "fraction", "inversion")
 #: fewest different times a course needs (the fits' parameter counts, registry.kinetics)
 MIN_TIMES = {"ee": 3, "fraction": 3, "inversion": 4}
@@ -211,9 +210,10 @@ def read_course(text: str, quantity: str | None = None, field: str = "course") -
     if quantity != "inversion":
         bad = [i for i, v in enumerate(cols[0].tolist()) if not lo <= v <= 1.0]
         if bad:
-            raise UnitError(field, str(table.cells[bad[0]][others[0].index]),
-                            f"outside {lo:g}…1 as a fraction; write '%' in the header if these "
-                            "are percentages")  # fmt: skip
+            cell = table.cells[bad[0]][others[0].index]
+            raise UnitError(field, str(text),
+                            f"row {bad[0] + 2}: {cell!r} lies outside {lo:g}…1 as a fraction; "
+                            "write '%' in the header if these are percentages")  # fmt: skip
     if problems:
         raise UnitError(field, str(text), str(ImportRowError(problems)))
     if len(set(secs.tolist())) < MIN_TIMES[quantity]:
@@ -306,6 +306,9 @@ def read_raw(inp: Any, values: dict[str, Any], problems: list[Any]) -> dict[str,
         )
     pops_text = text_of(inp.site_populations)
     pops = read("site_populations", pops_text, lambda t: read_site_populations(t, n))
+    if pops is not None and taus is not None and 0.0 in taus:
+        problems.append(Problem("site_populations", pops_text or "", "give the populations or "
+                                "a τm = 0 reference spectrum, not both"))  # fmt: skip
     names = read("site_names", text_of(inp.site_names), lambda t: read_site_names(t, n))
     out.update(
         mixing_text=mixing, mixing_json=None if taus is None else json.dumps(taus),
@@ -363,11 +366,6 @@ def _read_quantity(text: str) -> str:
     if key not in COURSE_QUANTITIES:
         raise UnitError("course_quantity", str(text), f"one of {', '.join(COURSE_QUANTITIES)}")
     return key
-
-
-def has_raw(row: dict[str, Any]) -> bool:
-    """True when a stored row holds any raw data of these methods."""
-    return any(row.get(c) for c in ("volumes_json", "ss_ratio", "course_json"))
 
 
 def _floats(value: Any) -> float | None:

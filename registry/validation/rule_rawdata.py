@@ -168,7 +168,11 @@ class RawDataBarrier(Rule):
 def _correct(
     rates: Rates, basis: RateBasis, j: int, t_k: float, reported: float
 ) -> tuple[str, float, float | None, float] | None:
-    """The rate constant (words, k, σk) the entry's convention names, and its barrier."""
+    """The rate constant (words, k, σk) the entry's convention names, and its barrier: the sum
+    of both directions for k_ex, k_obs and k_rac; else one direction's — the recorded one for
+    two sites (leaving the major site: the higher barrier), or the k(i→j) whose barrier is
+    nearest the reported one (a barrier of either direction, or of any pair of n sites, is a
+    correct barrier when the entry does not say which it is)."""
     divisor = float(basis.divisor[j])
     if basis.summed[j] and rates.summed is not None:
         k, err = rates.summed
