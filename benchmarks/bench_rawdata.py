@@ -112,10 +112,11 @@ def main(argv: list[str]) -> None:
     for name, value in med.items():
         print(f"  {name:<18} {value:.3f} s")
     print(f"  ratio all/without  {med['all rules'] / med['without raw-data']:.2f}")
-    print(
-        f"  raw-data rule: {med['alone'] / max(m, 1) * 1000:.1f} ms per raw-data measurement, "
-        f"{found} findings"
-    )
+    if m:
+        print(f"  raw-data rule: {med['alone'] / m * 1000:.1f} ms per raw-data measurement, "
+              f"{found} findings")  # fmt: skip
+    else:
+        print(f"  raw-data rule on rows without raw data: {med['alone'] * 1000:.1f} ms in all")
 
 
 if __name__ == "__main__":
