@@ -460,3 +460,24 @@ def test_find_at_a_common_temperature(database: Database) -> None:
     assert [r["id"] for r in every.rows] == [low, high]
     with pytest.raises(FluxledgerError):
         api.find(database, smarts="C(=O)N", at="-5 K")
+
+
+def _eyring_k(t: float, dh_kj: float, ds_j: float, kappa: float = 1.0) -> float:
+    """k = κ·(k_B·T/h)·exp(ΔS‡/R)·exp(−ΔH‡/RT) (Eyring 1935) with CODATA constants."""
+    return kappa * C.k * t / C.h * math.exp(ds_j / C.R) * math.exp(-dh_kj * 1000 / (C.R * t))
+
+
+@pytest.mark.parametrize(("recorded", "flagged"), [("0.1", False), (None, True)])
+def test_the_refit_uses_the_recorded_kappa(
+    database: Database, recorded: str | None, flagged: bool
+) -> None:
+    """Rate points made with κ = 0.1 and ΔH‡ 60 kJ/mol, ΔS‡ −10 J/(mol·K): with κ recorded the
+    reported values match the refit; without it the refit's ΔS‡ is lower by R·ln 10 =
+    19.1 J/(mol·K) (CODATA R) and the rule says so."""
+    rates = [
+        (f"{t} K", f"{_eyring_k(t, 60.0, -10.0, 0.1)!r} s-1") for t in (250, 260, 270, 280, 290)
+    ]
+    mid = api.add_measurement(database, {"method": "lineshape", "compound": "K1", "dh": "60 kJ/mol",
+        "ds": "-10 J/(mol K)", "rates": rates, "kappa": recorded})  # fmt: skip
+    rules = {f["rule_id"] for f in api.get_measurement(database, mid)["findings"]}
+    assert ("activation-refit" in rules) is flagged
