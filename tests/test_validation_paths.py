@@ -46,6 +46,36 @@ def gutowsky_holm_dg(tc: float, dnu: float) -> float:
     return R_KJ * tc * math.log(KB_H * tc / (math.pi * dnu / math.sqrt(2)))
 
 
+def eyring_dg(k: float, t: float) -> float:
+    """ΔG‡ = RT·ln(k_B·T/(h·k)) (Eyring 1935), kJ/mol."""
+    return R_KJ * t * math.log(KB_H * t / k)
+
+
+def _raw_entries(tag: str) -> list[dict[str, Any]]:
+    """Raw-data entries whose reported ΔG‡ carries a slip (invented data): saturation transfer
+    with the apparent T1 used as the intrinsic one — k = (1 − r)/(r·T1) instead of
+    (1 − r)/T1 (S. Forsén, R. A. Hoffman, J. Chem. Phys. 39, 2892 (1963)); an ee course
+    ee = 0.98·exp(−k_rac·t) whose barrier is that of k_rac, not k_enant = k_rac/2; an
+    equal-population two-site EXSY spectrum A = exp(−L·τm)·p (Perrin & Dwyer, Chem. Rev. 90,
+    935 (1990)), k = 2 s⁻¹, τm = 0.1 s, whose ΔG‡ is that of k_ex = 2k."""
+    k_rac = 1.0e-4
+    course = "t (min),ee (%); " + "; ".join(
+        f"{t},{98 * math.exp(-k_rac * 60 * t):.4f}" for t in (0, 30, 60, 120, 240)
+    )
+    e = math.exp(-2 * 2.0 * 0.1)  # two-site, equal populations: diagonal (1+e)/4, cross (1−e)/4
+    vol = f"{(1 + e) / 4:.6f},{(1 - e) / 4:.6f};{(1 - e) / 4:.6f},{(1 + e) / 4:.6f}"
+    return [
+        {"method": "saturation-transfer", "compound": f"{tag}-SAT", "solvent": "CDCl3",
+         "ss_ratio": "0.42", "t1": "1.2 s", "dg": f"{eyring_dg(0.58 / 1.2 / 0.42, 298.15):.2f} kJ/mol",
+         "dg_t": "298.15 K"},
+        {"method": "equilibration", "compound": f"{tag}-RAC", "solvent": "DMSO-d6",
+         "course": course, "dg": f"{eyring_dg(k_rac, 333.15):.2f} kJ/mol", "dg_t": "60 °C"},
+        {"method": "2d-exchange", "compound": f"{tag}-EXSY", "solvent": "toluene-d8",
+         "mixing": "100 ms", "volumes": vol, "dg": f"{eyring_dg(4.0, 300.0):.2f} kJ/mol",
+         "dg_t": "300 K"},
+    ]  # fmt: skip
+
+
 def _rates(dh: float, ds: float, temps: tuple[float, ...]) -> list[tuple[str, str]]:
     return [(f"{t:g} K", f"{eyring_k(dh, ds, t):.6g} s-1") for t in temps]
 
@@ -98,6 +128,7 @@ def _entries(tag: str) -> list[dict[str, Any]]:
         {**ls, "compound": f"{tag}-GONE", "dg": "5 kJ/mol", "dg_t": "300 K"},
         {**ls, "compound": f"{tag}-SOLV", "solvent": "CDC13", "dg": "60 kJ/mol",
          "dg_t": "300 K"},  # a digit for the l of CDCl3: not in the solvent table
+        *_raw_entries(tag),
     ]  # fmt: skip
 
 

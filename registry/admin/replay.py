@@ -34,6 +34,7 @@ from typing import Any
 
 from registry.admin.reread import same_value
 from registry.record import fields
+from registry.record.rawdata import RAW_COLUMNS
 from registry.storage.connection import Connection
 
 #: the actions that create a measurement (its first revision)
@@ -58,6 +59,7 @@ COLUMNS: tuple[str, ...] = (
     "solvent_text",
     "reference",
     "status",
+    *RAW_COLUMNS,  # the raw data of EXSY, transfer and courses (texts and their JSON)
 )
 #: the columns of a coalescence row an entry fills
 COALESCENCE_COLUMNS: tuple[str, ...] = (

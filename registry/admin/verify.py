@@ -13,6 +13,7 @@ from registry.errors import UnitError
 from registry.record import fields
 from registry.record.conventions import read_calibration
 from registry.record.populations import legacy_population_ratio, parse_population_ratio
+from registry.record.rawdata import JSON_OF_TEXT, reread_problems
 from registry.storage import audit, migrate
 from registry.storage.connection import Connection
 from registry.storage.database import Database, head_revision, open_database
@@ -252,12 +253,16 @@ def _columns(table: str) -> list[str]:
 def _measurement_values(conn: Connection, problems: list[str]) -> int:
     count = 0
     calibration = ["t_calibration_text", "t_calibration", "t_calibration_err_k"]
-    columns = ", ".join(dict.fromkeys(["id", *_columns("measurement"), *calibration]))
+    raw = [*JSON_OF_TEXT, *JSON_OF_TEXT.values(), "course_quantity"]
+    columns = ", ".join(dict.fromkeys(["id", *_columns("measurement"), *calibration, *raw]))
     for row in conn.records(f"SELECT {columns} FROM measurement ORDER BY id"):
         # ΔG‡ at Tc without a reported temperature is derived from the coalescence row
         skip = ("dg_t",) if row["dg_t_text"] is None else ()
         count += _check_values(f"measurement {row['id']}", row, "measurement", problems, skip=skip)
         count += _calibration_problem(f"measurement {row['id']}", row, problems)
+        found, read = reread_problems(f"measurement {row['id']}", row)
+        problems += found
+        count += read
     return count
 
 

@@ -22,6 +22,8 @@ Grouped by what they act on:
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
   :func:`calc_halflife`, :func:`calc_plan`, :func:`calc_exsy`, :func:`calc_transfer`,
   :func:`calc_timecourse` (kinetics at the bench, no database)
+* ``rawdata``   — :func:`course_text` (a time-course file as the text the field ``course``
+  stores; EXSY, transfer and course raw data enter through :func:`add_measurement`)
 * ``files``     — :func:`import_table`, :func:`export_measurements` (csv, xlsx, ods, SD files)
 * ``structures`` — :func:`smiles_from_molfile` (a Molfile read into the SMILES ``add`` takes)
 * ``comparison`` — :func:`compare_computed` (computed barriers against measured ones)
@@ -60,6 +62,7 @@ from registry.api.figures import build_report, plot_coalescence, plot_eyring, pl
 from registry.api.files import export_measurements, import_table
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
 from registry.api.paper_tables import export_si_table
+from registry.api.rawdata import course_text
 from registry.api.records import (
     add_measurement,
     add_rate_points,
@@ -126,6 +129,7 @@ __all__ = [
     "check",
     "compare_computed",
     "convert",
+    "course_text",
     "deferred_checks",
     "edit_measurement",
     "enable_server_search",

@@ -235,10 +235,12 @@ def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
         compound["created_at"] = utc(compound["created_at"])
     extra = json.loads(m.pop("extra_json") or "null")
     from registry.record.conventions import recorded
+    from registry.record.rawdata import raw_summary
 
     return {
         **m,
         "recorded": recorded(m),
+        "raw_data": raw_summary(m),
         "at_298": _at_standard(m, rates),
         "extra": extra,
         "compound": compound,

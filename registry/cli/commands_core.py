@@ -10,6 +10,7 @@ import typer
 from registry.cli import flags
 from registry.cli.context import read_id, state
 from registry.cli.output import render_record, render_rows
+from registry.cli.rawdata_text import raw_data_lines
 from registry.errors import UsageError
 
 
@@ -130,6 +131,39 @@ def add(
     dh_ds_corr: str = typer.Option(
         None, "--dh-ds-corr", help="Correlation of ΔH‡ and ΔS‡ from their fit (−1 … 1)."
     ),
+    mixing: str = typer.Option(
+        None, help="EXSY mixing time(s), e.g. '0.3 s' or '0, 100 ms, 300 ms' (0: reference)."
+    ),
+    volumes: str = typer.Option(
+        None,
+        help="EXSY peak volumes, one matrix per mixing time: 'I_AA,I_AB;I_BA,I_BB' (rows split "
+        "at ';', matrices at '|').",
+    ),
+    volume_err: str = typer.Option(None, "--volume-err", help="σ of one EXSY volume."),
+    populations: str = typer.Option(
+        None, help="EXSY site populations: '0.7,0.3', '70,30' or '7:3'."
+    ),
+    site_names: str = typer.Option(None, "--site-names", help="EXSY site names, e.g. 'A,B'."),
+    ratio: str = typer.Option(
+        None, help="Saturation transfer: M_ss/M0 of the observed site, partner saturated."
+    ),
+    t1: str = typer.Option(
+        None, "--t1", help="T1 of the observed site measured while the partner is saturated."
+    ),
+    t1_intrinsic: str = typer.Option(
+        None, "--t1-intrinsic", help="Or its T1 without exchange (intrinsic) instead."
+    ),
+    course: str = typer.Option(
+        None,
+        help="Time-course file (CSV/.xlsx): 't (min)' and 'ee (%)' or 'fraction', or two "
+        "intensity columns after a selective inversion; stored as text.",
+    ),
+    course_quantity: str = typer.Option(
+        None, "--course-quantity", help="What the course follows: ee, fraction or inversion."
+    ),
+    x_eq: str = typer.Option(
+        None, "--x-eq", help="Equilibrium fraction of a fraction course, if known."
+    ),
     theory: str = typer.Option(
         None, help="Computed barrier: level of theory as written, e.g. 'ωB97X-D/def2-TZVP, SMD'."
     ),
@@ -163,7 +197,9 @@ def add(
         t_text, k_text = (part.strip() for part in text.split(",", 1))
         rates.append((t_text, k_text))
     smiles = _smiles_or_molfile(smiles, molfile)
-    entry = dict(
+    raw = _raw_options(mixing, volumes, volume_err, populations, site_names, ratio, t1,
+                       t1_intrinsic, course, course_quantity, x_eq)  # fmt: skip
+    entry = dict(**raw,
         method=method, smiles=smiles, compound=compound, name=name, process=process, sites=sites,
         nucleus=nucleus, solvent=solvent, field=field, dg=dg, dg_t=dg_t, dh=dh, ds=ds, ea=ea,
         log10_a=log10_a, tc=tc, dnu=dnu, j=j, population=population, t_min=t_min, t_max=t_max,
@@ -190,6 +226,25 @@ def add(
                 typer.echo(f"    likely cause: {finding['likely_cause']}")
         if record["flagged"]:
             typer.echo(f"  status flagged: {_FLAGGED_NOTE}")
+
+
+def _raw_options(
+    mixing: str | None, volumes: str | None, volume_err: str | None, populations: str | None,
+    site_names: str | None, ratio: str | None, t1: str | None, t1_intrinsic: str | None,
+    course: str | None, course_quantity: str | None, x_eq: str | None,
+) -> dict[str, Any]:  # fmt: skip
+    """The raw-data fields of ``add``: one T1 (saturated or intrinsic), the course file read."""
+    from registry import api
+
+    if t1 is not None and t1_intrinsic is not None:
+        raise UsageError("give --t1 (partner saturated) or --t1-intrinsic, not both")
+    return dict(
+        mixing=mixing, volumes=volumes, volume_err=volume_err, site_populations=populations,
+        site_names=site_names, ss_ratio=ratio, t1=t1 if t1 is not None else t1_intrinsic,
+        t1_kind="intrinsic" if t1_intrinsic is not None else None,
+        course=None if course is None else api.course_text(course),
+        course_quantity=course_quantity, x_eq=x_eq,
+    )  # fmt: skip
 
 
 def show(
@@ -273,6 +328,7 @@ def _show_text(r: dict[str, Any]) -> str:
         lines.append(
             f"  coalescence  Tc {co['tc_k']:.1f} K ({co['tc_text']}), Δν {co['dnu_hz']:.2f} Hz ({co['dnu_text']}){extra}"
         )
+    lines += raw_data_lines(r.get("raw_data"))
     if r["rate_points"]:
         lines.append(f"  rate points  {len(r['rate_points'])}")
         for rp in r["rate_points"]:

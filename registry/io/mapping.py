@@ -278,6 +278,8 @@ def plan_sheet(
             _check_header_unit(file, sheet, header_row, col, problems, notes)
         elif col.role == "value" and col.field == "population" and population_unit(col.unit):
             pass  # "population (%)", "p_A (fraction)": how the column's bare numbers read
+        elif col.role == "value" and col.field == "mixing" and col.unit:
+            _check_time_unit(col, notes)  # "mixing time (ms)": the unit of bare mixing times
         elif col.role == "value" and col.field not in VALUE_QUANTITY and col.unit:
             col.unit = None  # "Solvent (deuterated)": a remark, not a unit
     notes.extend(_hints(columns))
@@ -402,6 +404,15 @@ def _sheet_kind(sheet: str | None, columns: list[Column], mapping: MappingFile) 
             if col.field == "dg_t":
                 col.field = "t"
     return kind
+
+
+def _check_time_unit(col: Column, notes: list[str]) -> None:
+    """A time unit over the (text) column of mixing times is kept for its bare numbers."""
+    try:
+        unit_of(col.unit or "", "time", field=col.header)
+    except Exception:  # not a time unit (pint raises assorted errors): a remark
+        notes.append(f"column {col.letter} {col.header!r}: {col.unit!r} is not a time unit")
+        col.unit = None
 
 
 def _check_header_unit(

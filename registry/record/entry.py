@@ -13,7 +13,7 @@ from dataclasses import field as dc_field
 from typing import Any
 
 from registry.errors import FluxledgerError, UnitError
-from registry.record import conventions, fields, vocab
+from registry.record import conventions, fields, rawdata, vocab
 from registry.record.nuclei import observe_frequency_mhz
 from registry.record.populations import parse_population_ratio
 from registry.record.spelling import read_nucleus
@@ -58,6 +58,18 @@ class EntryInput:
     concentration: str | None = None  # of the exchange partner, for order 2
     calibration: str | None = None  # how the probe temperature was calibrated (± σ)
     dh_ds_corr: str | None = None  # correlation of ΔH‡ and ΔS‡ from their fit
+    # raw data of 2D exchange, transfer and time courses (registry.record.rawdata)
+    mixing: str | None = None  # EXSY mixing time(s)
+    volumes: str | None = None  # one peak-volume matrix per mixing time
+    volume_err: str | None = None  # σ of one volume
+    site_populations: str | None = None
+    site_names: str | None = None
+    ss_ratio: str | None = None  # M_ss/M0 of the observed site, partner saturated
+    t1: str | None = None  # T1 of the observed site
+    t1_kind: str | None = None  # apparent (partner saturated; default) or intrinsic
+    course: str | None = None  # a time course as one text (header row first)
+    course_quantity: str | None = None  # ee, fraction or inversion
+    x_eq: str | None = None  # equilibrium fraction of a fraction course, if known
     theory: str | None = None  # a computed barrier's level of theory, as written
     functional: str | None = None  # its electronic-structure method (e.g. a DFT functional)
     basis: str | None = None  # its basis set
@@ -156,11 +168,13 @@ def normalize_entry(
     values = _values(inp, nucleus, problems)
     ratio = _population(inp, problems)
     recorded = _recorded(inp, values, problems)
+    raw = rawdata.read_raw(inp, values, problems)
     rates = _rates(inp, problems)
     if problems:
         return None, problems
     measurement = _measurement_columns(values)
     measurement.update(recorded)
+    measurement.update(raw)
     tc, dg_t = values.get("tc"), values.get("dg_t")
     if dg_t is None and tc is not None and values.get("dg") is not None:
         measurement["dg_t_k"] = tc.value  # ΔG‡ reported at Tc

@@ -55,7 +55,9 @@ def _value(
     error_column = None
     if error:
         error_column = (
-            f"{value_column}_err" if len(stem) == 1 or name == "log10_a" else _err(value_column)
+            f"{value_column}_err"
+            if len(stem) == 1 or name in ("log10_a", "ss_ratio")
+            else _err(value_column)
         )
     return Field(
         name, title, table, quantity, text, value_column, error_column, headers, editable, entry
@@ -170,6 +172,33 @@ FIELDS: tuple[Field, ...] = (
     _value("dh_ds_corr", "correlation of ΔH‡ and ΔS‡", "dimensionless", "measurement",
            "dh_ds_corr", error=False, text_column="dh_ds_corr_text", headers=(
                "dhdscorr", "corrdhds", "rdhds", "correlationdhds", "dhdscorrelation")),
+    # the raw data of 2D exchange, saturation/inversion transfer and time courses (migration
+    # 0008; read by registry.record.rawdata)
+    _text("mixing", "EXSY mixing time(s)", "measurement", "mixing_text", headers=(
+        "mixing", "mixingtime", "mixingtimes", "taum", "tmix", "tm")),
+    _text("volumes", "EXSY peak volumes", "measurement", "volumes_text", headers=(
+        "volumes", "peakvolumes", "exsyvolumes", "volumematrix", "volumematrices", "intensities",
+        "exsyintensities")),
+    _value("volume_err", "σ of one EXSY volume", "dimensionless", "measurement", "volume_err",
+           error=False, headers=("volumeerr", "volumesigma", "sigmavolume", "volumeerror",
+                                 "volumeuncertainty", "noise")),
+    _text("site_populations", "site populations (EXSY)", "measurement", "populations_text",
+          headers=("sitepopulations", "exsypopulations", "populationsofsites")),
+    _text("site_names", "site names (EXSY)", "measurement", "site_names", headers=(
+        "sitenames", "exsysites", "sitelabels")),
+    _value("ss_ratio", "M_ss/M0 (saturation transfer)", "dimensionless", "measurement",
+           "ss_ratio", headers=("ssratio", "mssratio", "saturationratio", "transferratio",
+                                "steadystateratio")),
+    _value("t1", "T1 of the observed site", "time", "measurement", "t1_s", headers=(
+        "t1", "t1app", "t1obs", "t1sat", "t1a")),
+    _text("t1_kind", "which T1 (apparent or intrinsic)", "measurement", "t1_kind", headers=(
+        "t1kind", "whicht1", "t1type")),
+    _text("course", "time course", "measurement", "course_text", headers=(
+        "course", "timecourse", "inversioncourse", "kineticdata", "eecourse")),
+    _text("course_quantity", "what the time course follows", "measurement", "course_quantity",
+          headers=("coursequantity", "followed", "quantityfollowed")),
+    _value("x_eq", "equilibrium fraction", "dimensionless", "measurement", "x_eq", error=False,
+           headers=("xeq", "equilibriumfraction", "xequilibrium", "fractionateq")),
     # how a computed barrier was computed (registry.record.theory): free texts as written
     _text("theory", "level of theory", "measurement", "theory_level", headers=(
         "theory", "leveloftheory", "level", "theorylevel", "computationallevel",
@@ -223,6 +252,7 @@ EDIT_ALIASES: dict[str, str] = {
     "temperature_calibration": "calibration",
     "corr": "dh_ds_corr",
     "κ": "kappa",
+    "mixing_time": "mixing",
     "level_of_theory": "theory",
     "basis_set": "basis",
     "solvation_model": "solvation",
@@ -261,6 +291,8 @@ def value_columns_of_text() -> dict[str, tuple[str, ...]]:
     out["solvent_text"] = ("solvent_id",)
     out["population_text"] = ("population_ratio",)
     out["t_calibration_text"] = ("t_calibration", "t_calibration_err_k")
+    out.update(mixing_text=("mixing_json",), volumes_text=("volumes_json",),
+               populations_text=("populations_json",), course_text=("course_json",))  # fmt: skip
     return out
 
 

@@ -176,6 +176,30 @@ class Measurement(Base):
     t_calibration_err_k: Mapped[float | None] = mapped_column(Float)
     dh_ds_corr: Mapped[float | None] = mapped_column(Float)
     dh_ds_corr_text: Mapped[str | None] = mapped_column(Text)
+    # the raw data of a 2D-exchange, transfer or time-course measurement (migration 0008; see
+    # registry.record.rawdata): each as reported (``*_text``) and read (canonical floats;
+    # lists and matrices as JSON of floats in s and fractions)
+    mixing_text: Mapped[str | None] = mapped_column(Text)
+    mixing_json: Mapped[str | None] = mapped_column(Text)
+    volumes_text: Mapped[str | None] = mapped_column(Text)
+    volumes_json: Mapped[str | None] = mapped_column(Text)
+    volume_err: Mapped[float | None] = mapped_column(Float)
+    volume_err_text: Mapped[str | None] = mapped_column(Text)
+    populations_text: Mapped[str | None] = mapped_column(Text)
+    populations_json: Mapped[str | None] = mapped_column(Text)
+    site_names: Mapped[str | None] = mapped_column(Text)
+    ss_ratio: Mapped[float | None] = mapped_column(Float)
+    ss_ratio_err: Mapped[float | None] = mapped_column(Float)
+    ss_ratio_text: Mapped[str | None] = mapped_column(Text)
+    t1_s: Mapped[float | None] = mapped_column(Float)
+    t1_err_s: Mapped[float | None] = mapped_column(Float)
+    t1_text: Mapped[str | None] = mapped_column(Text)
+    t1_kind: Mapped[str | None] = mapped_column(String(16))
+    course_text: Mapped[str | None] = mapped_column(Text)
+    course_json: Mapped[str | None] = mapped_column(Text)
+    course_quantity: Mapped[str | None] = mapped_column(String(16))
+    x_eq: Mapped[float | None] = mapped_column(Float)
+    x_eq_text: Mapped[str | None] = mapped_column(Text)
     # how a computed barrier was computed (migration 0007; registry.record.theory): level of
     # theory as written, method, basis set, solvation model, conformer treatment, and the
     # standard state (1 M, 1 atm, 1 bar) it refers to

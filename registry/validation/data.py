@@ -78,6 +78,19 @@ _MEASUREMENT_COLUMNS = {
     "t_calibration": "m.t_calibration",
     "t_calibration_err_k": "m.t_calibration_err_k",
     "dh_ds_corr": "m.dh_ds_corr",
+    # the raw data of 2D exchange, transfer and time courses (migration 0008)
+    "mixing_json": "m.mixing_json",
+    "volumes_json": "m.volumes_json",
+    "volume_err": "m.volume_err",
+    "populations_json": "m.populations_json",
+    "site_names": "m.site_names",
+    "ss_ratio": "m.ss_ratio",
+    "ss_ratio_err": "m.ss_ratio_err",
+    "t1_s": "m.t1_s",
+    "t1_err_s": "m.t1_err_s",
+    "t1_kind": "m.t1_kind",
+    "course_json": "m.course_json",
+    "x_eq": "m.x_eq",
 }
 
 _MEASUREMENT_SQL = (
@@ -113,7 +126,8 @@ _FLOAT_COLUMNS = {
     "dh_err_kj_mol", "ds_j_mol_k", "ds_err_j_mol_k", "ea_kj_mol", "ea_err_kj_mol", "mp_k",
     "bp_k", "tc_k", "tc_err_k", "dnu_hz", "dnu_err_hz", "j_hz", "population_ratio",
     "co_field_mhz", "t_k", "k_per_s", "k_err_per_s", "path_degeneracy", "kappa",
-    "reaction_order", "concentration_m", "t_calibration_err_k", "dh_ds_corr",
+    "reaction_order", "concentration_m", "t_calibration_err_k", "dh_ds_corr", "volume_err",
+    "ss_ratio", "ss_ratio_err", "t1_s", "t1_err_s", "x_eq",
 }  # fmt: skip
 
 #: the columns whose values make up a measurement's inputs hash, in hashing order, and how
@@ -169,6 +183,23 @@ RECORDED_HASHED: dict[str, str] = {
     "t_calibration": "text",
     "t_calibration_err_k": "float",
     "dh_ds_corr": "float",
+}
+
+#: the raw data (migration 0008), hashed after the recorded columns only for a measurement
+#: that holds any of it (existing rows hold none, so their stored findings keep their hash)
+RAW_HASHED: dict[str, str] = {
+    "mixing_json": "text",
+    "volumes_json": "text",
+    "volume_err": "float",
+    "populations_json": "text",
+    "site_names": "text",
+    "ss_ratio": "float",
+    "ss_ratio_err": "float",
+    "t1_s": "float",
+    "t1_err_s": "float",
+    "t1_kind": "text",
+    "course_json": "text",
+    "x_eq": "float",
 }
 
 #: what a repeated measurement is matched and compared on
@@ -326,14 +357,17 @@ def _row_digests(data: CheckData, rows: list[int], variant: frozenset[str]) -> l
     for c in by_kind.get("flag", []):
         hashed[c] = digest.hash_flags(data.columns[c][at].tolist())
     base = digest.combine([hashed[c] for c in names], n)
-    return [f"{h:016x}" for h in _with_recorded(data, at, base).tolist()]
+    folded = _with_recorded(data, at, _with_recorded(data, at, base), RAW_HASHED)
+    return [f"{h:016x}" for h in folded.tolist()]
 
 
-def _with_recorded(data: CheckData, at: Ints, base: digest.U64) -> digest.U64:
-    """The digests of rows that record a convention, calibration … (:data:`RECORDED_HASHED`)
-    folded with those columns; the others unchanged."""
-    texts = [c for c, kind in RECORDED_HASHED.items() if kind == "text"]
-    floats = [c for c, kind in RECORDED_HASHED.items() if kind == "float"]
+def _with_recorded(
+    data: CheckData, at: Ints, base: digest.U64, hashed: dict[str, str] = RECORDED_HASHED
+) -> digest.U64:
+    """The digests of rows that record a convention, calibration … (:data:`RECORDED_HASHED`;
+    or hold raw data: :data:`RAW_HASHED`) folded with those columns; the others unchanged."""
+    texts = [c for c, kind in hashed.items() if kind == "text"]
+    floats = [c for c, kind in hashed.items() if kind == "float"]
     present = np.zeros(at.size, dtype=bool)
     for c in floats:
         present |= ~np.isnan(data.columns[c][at])
@@ -348,7 +382,7 @@ def _with_recorded(data: CheckData, at: Ints, base: digest.U64) -> digest.U64:
     values = [v for c in texts for v in data.columns[c][at].tolist()]
     block = digest.hash_texts(values)
     parts.update((c, block[k * n : (k + 1) * n]) for k, c in enumerate(texts))
-    recorded = digest.combine([parts[c] for c in RECORDED_HASHED], n)
+    recorded = digest.combine([parts[c] for c in hashed], n)
     return np.where(present, digest.combine([base, recorded], n), base)
 
 

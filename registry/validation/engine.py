@@ -24,6 +24,7 @@ from registry.validation.rule_plausibility import (
     ShiftMatchesField,
 )
 from registry.validation.rule_rates import BarrierInMethodRange, RateBelowLimit
+from registry.validation.rule_rawdata import RawDataBarrier
 from registry.validation.rule_refit import ActivationRefit
 from registry.validation.rule_structure import RepeatsAgree, StructureParses
 from registry.validation.rule_temperatures import (
@@ -37,6 +38,7 @@ from registry.validation.rule_vocabulary import SolventInTable
 #: every rule, in the order findings are listed
 RULES: tuple[Rule, ...] = (
     CoalescenceBarrier(),
+    RawDataBarrier(),
     FreeEnergyFromEnthalpyEntropy(),
     ActivationRefit(),
     RateBelowLimit(),

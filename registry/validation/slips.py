@@ -292,7 +292,8 @@ SLIPS: tuple[Slip, ...] = (
     Slip("dg-other-temperature", True, _other_temperature),
 )
 
-SLIP_IDS = tuple(s.id for s in SLIPS)
+#: every slip a rule can name: the coalescence ones, and those only raw data can show
+SLIP_IDS = (*(s.id for s in SLIPS), "t1-kind-swapped", "time-unit")
 
 #: slips whose recomputed ΔG‡ lies further than this beyond the best one's from the reported
 #: value are not named. A slip is arithmetic on the very numbers stored, so the true one
@@ -321,7 +322,7 @@ def diagnose(
 ) -> Diagnosis:
     """Which slips reproduce ``inp.reported_kj_mol`` within ``tolerance_kj_mol`` (per row)."""
     n = inp.tc_k.size
-    found: list[list[tuple[int, float, str, str, float]]] = [[] for _ in range(n)]
+    found: list[list[Hit]] = [[] for _ in range(n)]
     for slip in SLIPS:
         cand = slip.compute(inp, correct, fields_mhz)
         resid = np.abs(inp.reported_kj_mol - cand.values)
@@ -338,21 +339,32 @@ def diagnose(
             )
     slips, details, values = [], [], []
     for hits in found:
-        # a statistical factor the entry does not record is a guess: named only when nothing
-        # else explains the number
-        if any(h[2] != conventions.STATISTICAL_FACTOR for h in hits):
-            hits = [h for h in hits if h[2] != conventions.STATISTICAL_FACTOR]
-        if hits:  # a factor in k named only if as good as the best other explanation
-            best = min(h[1] for h in hits)
-            hits = [h for h in hits if h[2] not in conventions.FACTOR_SLIP_IDS
-                    or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
-        factors = [h[1] for h in hits if h[2] in conventions.FACTOR_SLIP_IDS]
-        if factors:  # a factor in k explains it: k_c = πΔν or 2πΔν only if as good
-            best = min(factors)
-            hits = [h for h in hits
-                    if h[2] not in _KC_FORMS or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
-        hits.sort(key=lambda h: (h[0], h[1]))
+        hits = choose(hits)
         slips.append(tuple(h[2] for h in hits))
         details.append(tuple(h[3] for h in hits))
         values.append(tuple(h[4] for h in hits))
     return Diagnosis(slips, details, values)
+
+
+#: one slip that reproduces a reported value: (1 if it picks from a list else 0, |residual|,
+#: slip id, detail, the slip's ΔG‡ in kJ/mol)
+Hit = tuple[int, float, str, str, float]
+
+
+def choose(hits: list[Hit]) -> list[Hit]:
+    """The slips worth naming among those that reproduce one row's value, best first: a
+    statistical factor the entry does not record only when nothing else explains it, a factor
+    in k only if as good as the best other explanation, and the k_c forms only if as good as
+    a factor in k (the rules of this module's docstring; the raw-data rule uses them too)."""
+    if any(h[2] != conventions.STATISTICAL_FACTOR for h in hits):
+        hits = [h for h in hits if h[2] != conventions.STATISTICAL_FACTOR]
+    if hits:
+        best = min(h[1] for h in hits)
+        hits = [h for h in hits if h[2] not in conventions.FACTOR_SLIP_IDS
+                or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
+    factors = [h[1] for h in hits if h[2] in conventions.FACTOR_SLIP_IDS]
+    if factors:
+        best = min(factors)
+        hits = [h for h in hits
+                if h[2] not in _KC_FORMS or h[1] <= best + NAMING_MARGIN_KJ_MOL]  # fmt: skip
+    return sorted(hits, key=lambda h: (h[0], h[1]))

@@ -1,0 +1,71 @@
+"""Migration 0008 (the raw data of 2D-exchange, transfer and time-course measurements) runs up
+and down on SQLite and PostgreSQL and keeps every row; an upgraded registry takes raw data."""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+from datetime import UTC, datetime
+from pathlib import Path
+
+import pytest
+from sqlalchemy import inspect, text
+
+from registry import api
+from registry.storage import migrate
+from registry.storage.database import Database, open_database
+
+pytest_plugins = ("conftest_pg",)
+
+NEW_COLUMNS = {"mixing_text", "mixing_json", "volumes_text", "volumes_json", "volume_err",
+               "volume_err_text", "populations_text", "populations_json", "site_names",
+               "ss_ratio", "ss_ratio_err", "ss_ratio_text", "t1_s", "t1_err_s", "t1_text",
+               "t1_kind", "course_text", "course_json", "course_quantity", "x_eq",
+               "x_eq_text"}  # fmt: skip
+
+
+@pytest.fixture(params=["sqlite", pytest.param("postgres", marks=pytest.mark.postgres)])
+def empty(request: pytest.FixtureRequest, tmp_path: Path) -> Iterator[Database]:
+    if request.param == "sqlite":
+        location = str(tmp_path / "m.sqlite")
+    else:
+        location = request.getfixturevalue("pg_url")
+    database = open_database(location, must_exist=False)
+    yield database
+    database.close()
+
+
+def _columns(database: Database) -> set[str]:
+    return {c["name"] for c in inspect(database.sqlalchemy_engine()).get_columns("measurement")}
+
+
+def test_0008_up_and_down_keeps_rows(empty: Database) -> None:
+    database = empty
+    migrate.upgrade(database, "0007")
+    assert not NEW_COLUMNS & _columns(database)
+    now = datetime(2026, 1, 1, tzinfo=UTC)
+    with database.sqlalchemy_engine().begin() as sa:
+        sa.execute(text("INSERT INTO compound (id, label, structure_ok, created_at) "
+                        "VALUES (100, 'X-1', :ok, :now)"), {"ok": True, "now": now})  # fmt: skip
+        sa.execute(
+            text("INSERT INTO measurement (id, compound_id, method, status, entered_by, "
+                 "entered_at, uid, dg_kj_mol) VALUES (100, 100, '2d-exchange', 'draft', 'tester', "
+                 ":now, 'u1', 70.0)"),
+            {"now": now},
+        )  # fmt: skip
+    migrate.upgrade(database, "0008")
+    assert _columns(database) >= NEW_COLUMNS
+    with database.read() as conn:
+        row = conn.record("SELECT volumes_json, ss_ratio, course_json, dg_kj_mol FROM measurement")
+    assert row == {"volumes_json": None, "ss_ratio": None, "course_json": None, "dg_kj_mol": 70.0}
+    migrate.downgrade(database, "0007")
+    assert not NEW_COLUMNS & _columns(database)
+    with database.read() as conn:
+        assert conn.scalar("SELECT dg_kj_mol FROM measurement") == 70.0
+    migrate.upgrade(database)
+    assert migrate.current_revision(database) == migrate.head_revision()
+    mid = api.add_measurement(
+        database,
+        {"method": "saturation-transfer", "compound": "X-2", "ss_ratio": "0.5", "t1": "2 s"},
+        actor="tester",
+    )
+    assert api.get_measurement(database, mid)["raw_data"]["t1_kind"] == "apparent"
