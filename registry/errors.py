@@ -189,6 +189,12 @@ class OpenFindingError(FluxledgerError):
                 "written; correct the values so that the check passes, or accept the finding "
                 "with a reason and then set the status"
             )
+        if self.findings and all(fid is None for fid, _, _ in self.findings):
+            return (  # its values were never checked: the finding is not stored yet
+                f"status: measurement {self.measurement_id} cannot become {self.status!r}: the "
+                f"check finds an error in its values — {named}. Nothing was written; correct "
+                "the values, or check it and accept the finding with a reason"
+            )
         return (
             f"status: measurement {self.measurement_id} stays 'flagged' while an error finding is"
             f" open, so it cannot become {self.status!r} — {named}. Correct the values so that"

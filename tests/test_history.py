@@ -286,3 +286,22 @@ def test_accepting_a_finding_appears_in_the_measurement_history(cli, db_path: Pa
     assert last["summary"] == (
         f"accepted finding {finding['id']} [{finding['rule_id']}] {finding['severity']}"
     )
+
+
+def test_a_status_is_judged_on_values_never_checked(database) -> None:  # type: ignore[no-untyped-def]
+    """Found by hypothesis (test_io_roundtrip_properties): a measurement added without a check
+    had no stored finding, so 'reviewed' was granted and the check right after took it back to
+    'flagged'. The rules now judge the values inside the edit, and nothing is written."""
+    import pytest
+
+    from registry import api
+    from registry.errors import OpenFindingError
+
+    # Tc 300 K and Δν 20 Hz give ΔG‡ ≈ 61 kJ/mol (Gutowsky–Holm and Eyring), not 5 kcal/mol
+    mid = api.add_measurement(database, {"method": "coalescence", "compound": "H1", "tc": "300 K",
+        "dnu": "20 Hz", "field": "400 MHz", "dg": "5 kcal/mol"}, check=False)  # fmt: skip
+    with pytest.raises(
+        OpenFindingError, match="cannot become 'reviewed': the check finds an error"
+    ):
+        api.edit_measurement(database, mid, {"status": "reviewed"})
+    assert api.get_measurement(database, mid)["status"] == "draft"

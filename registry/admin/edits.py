@@ -191,6 +191,9 @@ def edit_measurement(
         asks_status = status is not None and stored.m["status"] not in (status, "retracted")
         if asks_status and set(wanted) == {"status"}:
             _refuse_while_open(conn, measurement_id, status)  # (the check follows a restore)
+            # a measurement entered without a check has no stored findings to go by: the
+            # rules judge its values here, so a status is never granted and then taken back
+            _refuse_if_values_fail(conn, measurement_id, status, edited=False)
         normalized = _renormalized(conn, stored, wanted)
         change = _measurement_change(conn, stored, normalized, wanted)
         if len(stored.coalescence) <= 1:
@@ -200,7 +203,7 @@ def edit_measurement(
         change.updates["updated_at"] = datetime.now(UTC)
         conn.update("measurement", change.updates, id=measurement_id)
         if asks_status and set(wanted) != {"status"}:
-            _refuse_if_edited_values_fail(conn, measurement_id, status)
+            _refuse_if_values_fail(conn, measurement_id, status, edited=True)
         action = "status" if set(change.after) == {"status"} else "edit"
         audit.record(
             conn, entity="measurement", entity_id=measurement_id, action=action, actor=who,
@@ -257,16 +260,18 @@ def _refuse_while_open(conn: Connection, measurement_id: int, status: str) -> No
         raise OpenFindingError(measurement_id, status, [(int(i), r, m) for i, r, m in found])
 
 
-def _refuse_if_edited_values_fail(conn: Connection, measurement_id: int, status: str) -> None:
-    """An edit that corrects values and asks for a status in one go is judged on the corrected
-    values: the rules run inside the edit's transaction, and an error they still find refuses
-    the whole edit (nothing is written)."""
+def _refuse_if_values_fail(
+    conn: Connection, measurement_id: int, status: str, *, edited: bool
+) -> None:
+    """A status asked for is judged on the values it would stand on — the corrected ones when
+    the edit also corrects values: the rules run inside the edit's transaction, and an error
+    they find (and nobody accepted) refuses the whole edit (nothing is written)."""
     from registry.validation import errors_left_open
 
     found = errors_left_open(conn, measurement_id)
     if found:
         raise OpenFindingError(
-            measurement_id, status, [(None, f.rule_id, f.message) for f in found], edited=True
+            measurement_id, status, [(None, f.rule_id, f.message) for f in found], edited=edited
         )
 
 
