@@ -3,16 +3,14 @@ and down on SQLite and PostgreSQL and keeps every row; an upgraded registry take
 
 from __future__ import annotations
 
-from collections.abc import Iterator
 from datetime import UTC, datetime
-from pathlib import Path
 
-import pytest
-from sqlalchemy import inspect, text
+from sqlalchemy import text
+from test_migrations_conventions import _columns, empty  # noqa: F401  (a fixture)
 
 from registry import api
 from registry.storage import migrate
-from registry.storage.database import Database, open_database
+from registry.storage.database import Database
 
 pytest_plugins = ("conftest_pg",)
 
@@ -23,22 +21,7 @@ NEW_COLUMNS = {"mixing_text", "mixing_json", "volumes_text", "volumes_json", "vo
                "x_eq_text"}  # fmt: skip
 
 
-@pytest.fixture(params=["sqlite", pytest.param("postgres", marks=pytest.mark.postgres)])
-def empty(request: pytest.FixtureRequest, tmp_path: Path) -> Iterator[Database]:
-    if request.param == "sqlite":
-        location = str(tmp_path / "m.sqlite")
-    else:
-        location = request.getfixturevalue("pg_url")
-    database = open_database(location, must_exist=False)
-    yield database
-    database.close()
-
-
-def _columns(database: Database) -> set[str]:
-    return {c["name"] for c in inspect(database.sqlalchemy_engine()).get_columns("measurement")}
-
-
-def test_0008_up_and_down_keeps_rows(empty: Database) -> None:
+def test_0008_up_and_down_keeps_rows(empty: Database) -> None:  # noqa: F811 (the fixture)
     database = empty
     migrate.upgrade(database, "0007")
     assert not NEW_COLUMNS & _columns(database)
