@@ -1,0 +1,275 @@
+"""A variable-temperature series of two-site spectra whose site parameters move with temperature.
+
+Each spectrum is fitted with its site parameters free (:mod:`registry.lineshape.sitefit`); where a
+spectrum determines Δν and the populations (slow and intermediate exchange: two lines, or a broad
+line that still shows them) they stay as fitted. Where it does not (fast exchange: one averaged
+line, whose width fixes only p₁p₂Δν²/k), they are tied to the series' smooth functions of
+temperature, fitted through the spectra that do determine them:
+
+* Δν: a straight line in T (shifts drift linearly over a VT series);
+* the populations: van 't Hoff, ln K = −ΔH°/(RT) + ΔS°/R with K = p₂/p₁, giving ΔH° and ΔS° of
+  the site equilibrium with their errors.
+
+A tied value enters with its prediction σ (a Gaussian prior), so the rate's error includes it.
+``auto`` does the above; ``fit`` leaves every spectrum free; ``hold`` keeps the given values;
+``tie`` ties every spectrum. The width comes from a reference line of each spectrum (or their
+weighted mean, tied), or is held or fitted as before. Rows come back in temperature order.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from registry.errors import UsageError
+from registry.kinetics.constants import R_KJ_MOL_K
+from registry.lineshape.coupled import CoupledABModel
+from registry.lineshape.fit import fit_spectrum
+from registry.lineshape.fit_core import FloatArray, LineShapeFit, prepare
+from registry.lineshape.reference import ReferenceWidth, fit_reference, tie_widths
+from registry.lineshape.simulate import ExchangeModel
+from registry.lineshape.sitefit import Setting, fit_sites, settings_from_model
+
+#: how a site parameter varies across the series (see the module docstring)
+MODES = ("auto", "fit", "hold", "tie")
+#: a fitted Δν is "determined" when its σ is below this fraction of |Δν| …
+DELTA_REL = 0.05
+#: … and p₁ when its σ is below this (absolute)
+POP_ABS = 0.03
+
+
+@dataclass(frozen=True)
+class Trend:
+    """A parameter tied across the series: y = a + b·x, x = T − T̄ (drift) or 1/T (van 't Hoff)."""
+
+    name: str
+    kind: str
+    a: float
+    b: float
+    cov: tuple[tuple[float, float], tuple[float, float]]
+    x_ref: float
+    sources: tuple[str, ...]
+
+    def _x(self, t_k: float) -> float:
+        return t_k - self.x_ref if self.kind == "linear drift" else 1.0 / t_k
+
+    def predict(self, t_k: float) -> tuple[float, float]:
+        """Value and σ at T in natural units (Hz for Δν, p₁ for the populations)."""
+        x = self._x(t_k)
+        y = self.a + self.b * x
+        c = np.array(self.cov)
+        sd = math.sqrt(max(float(np.array([1.0, x]) @ c @ np.array([1.0, x])), 0.0))
+        if self.kind == "linear drift":
+            return y, sd
+        p1 = 1.0 / (1.0 + math.exp(y))  # y = ln K = ln(p₂/p₁)
+        return p1, p1 * (1.0 - p1) * sd
+
+    def to_dict(self) -> dict[str, object]:
+        out: dict[str, object] = {"parameter": self.name, "kind": self.kind,
+                                  "from": list(self.sources)}  # fmt: skip
+        if self.kind == "linear drift":
+            out.update(
+                at_k=self.x_ref, value_hz=self.a, error_hz=math.sqrt(self.cov[0][0]),
+                slope_hz_per_k=self.b, slope_err_hz_per_k=math.sqrt(self.cov[1][1]),
+            )  # fmt: skip
+        else:
+            out.update(self.thermodynamics())
+        return out
+
+    def thermodynamics(self) -> dict[str, float]:
+        """ΔH° (kJ/mol) and ΔS° (J/(mol·K)) of site 1 ⇌ site 2 with their errors."""
+        return {
+            "dh_kj_mol": -R_KJ_MOL_K * self.b,
+            "dh_err_kj_mol": R_KJ_MOL_K * math.sqrt(self.cov[1][1]),
+            "ds_j_mol_k": 1000.0 * R_KJ_MOL_K * self.a,
+            "ds_err_j_mol_k": 1000.0 * R_KJ_MOL_K * math.sqrt(self.cov[0][0]),
+        }
+
+
+def weighted_line(
+    x: Sequence[float], y: Sequence[float], sigma: Sequence[float]
+) -> tuple[float, float, FloatArray]:
+    """y = a + b·x by weighted least squares; covariance widened by the Birge ratio when the
+    scatter exceeds the errors. One point gives a constant (b = 0) with its own σ."""
+    xa, ya, sa = (np.asarray(v, float) for v in (x, y, sigma))
+    if len(xa) == 1:
+        return float(ya[0]), 0.0, np.array([[sa[0] ** 2, 0.0], [0.0, 0.0]])
+    design = np.column_stack([np.ones_like(xa), xa]) / sa[:, None]
+    coef, *_ = np.linalg.lstsq(design, ya / sa, rcond=None)
+    cov = np.linalg.inv(design.T @ design)
+    if len(xa) > 2:
+        chi2 = float(np.sum(((ya - design @ coef * sa) / sa) ** 2)) / (len(xa) - 2)
+        cov = cov * max(chi2, 1.0)
+    return float(coef[0]), float(coef[1]), cov
+
+
+def _trend(name: str, fits: Sequence[LineShapeFit]) -> Trend | None:
+    """The drift of Δν or the van 't Hoff line of p₁ through the fits that determine them."""
+    rows = []
+    for f in fits:
+        par = {n: (v, e) for n, v, e, _h in f.parameters}
+        value, err = par.get(name, (math.nan, None))
+        how = next((h for n, _v, _e, h in f.parameters if n == name), "")
+        if f.failed or f.problems or how != "fitted" or f.t_k is None or err is None or err <= 0:
+            continue
+        limit = DELTA_REL * abs(value) if name == "delta" else POP_ABS
+        if err < limit:
+            rows.append((f.t_k, value, err, f.source))
+    if not rows:
+        return None
+    temps = [r[0] for r in rows]
+    sources = tuple(r[3] for r in rows)
+    if name == "delta":
+        t_ref = float(np.mean(temps))
+        a, b, cov = weighted_line([t - t_ref for t in temps], [r[1] for r in rows],
+                                  [r[2] for r in rows])  # fmt: skip
+        return Trend(name, "linear drift", a, b, _pair(cov), t_ref, sources)
+    y = [math.log((1.0 - r[1]) / r[1]) for r in rows]
+    s = [r[2] / (r[1] * (1.0 - r[1])) for r in rows]
+    a, b, cov = weighted_line([1.0 / t for t in temps], y, s)
+    return Trend(name, "van 't Hoff", a, b, _pair(cov), 0.0, sources)
+
+
+def _pair(cov: FloatArray) -> tuple[tuple[float, float], tuple[float, float]]:
+    return ((float(cov[0, 0]), float(cov[0, 1])), (float(cov[1, 0]), float(cov[1, 1])))
+
+
+@dataclass(frozen=True, eq=False)
+class SeriesFit:
+    """The fits in temperature order, the trends the parameters were tied to, the widths."""
+
+    fits: tuple[LineShapeFit, ...]
+    trends: tuple[Trend, ...] = ()
+    widths: tuple[ReferenceWidth, ...] = ()
+    tied_width: ReferenceWidth | None = None
+    notes: tuple[str, ...] = field(default=())
+
+
+@dataclass(frozen=True)
+class SiteOptions:
+    """How Δν (``shifts``), the populations and the width vary; J fitted or held."""
+
+    shifts: str = "auto"
+    populations: str = "auto"
+    width_hz: float = 1.0
+    fix_width: bool = False
+    reference_hz: tuple[float, float] | None = None
+    tie_width: bool = False
+    fit_coupling: bool = False
+
+    def __post_init__(self) -> None:
+        for name in ("shifts", "populations"):
+            if getattr(self, name) not in MODES:
+                raise UsageError(
+                    f"{name}_mode must be one of {', '.join(MODES)}, not {getattr(self, name)!r}"
+                )
+        if self.tie_width and self.reference_hz is None:
+            raise UsageError("tie_width needs a reference window (reference)")
+
+
+def _start(freq: FloatArray, y: FloatArray, model, width: float, fixed: bool, meta) -> tuple:  # type: ignore[no-untyped-def]
+    """The per-temperature fit with the given sites: k, A, baseline and noise to start from."""
+    f0 = fit_spectrum(freq, y, model, width_hz=width, fix_width=fixed, source=meta[0],
+                      t_k=meta[1], t_text=meta[2])  # fmt: skip
+    prep = prepare(freq, y, model, meta[0], meta[1], meta[2], 8)
+    linear = (f0.area / prep.ynorm, f0.baseline_at_centre / prep.ynorm,
+              f0.baseline_slope_per_hz * prep.half_span / prep.ynorm)  # fmt: skip
+    return f0, prep, linear
+
+
+def fit_series(
+    spectra: Sequence,  # SpectrumInput of fit_global: freq_hz, intensity, t_k, source, t_text
+    model: ExchangeModel | CoupledABModel,
+    options: SiteOptions,
+    references: Sequence[ReferenceWidth] | None = None,
+) -> SeriesFit:
+    """Fit every spectrum with its site parameters as ``options`` say; see the module docstring.
+
+    ``references`` are the widths measured on each spectrum's reference line
+    (:func:`reference_widths`, on the whole spectrum before the region is cut), in order.
+    """
+    if len(model.shifts_hz) != 2:
+        raise UsageError("shifts and populations can vary only for two sites; hold them")
+    widths: list[ReferenceWidth | None] = (
+        list(references) if references is not None else [None] * len(spectra)
+    )
+    tied = tie_widths([w for w in widths if w is not None]) if options.tie_width else None
+    coupled = isinstance(model, CoupledABModel)
+    centre = 0.5 * (model.shifts_hz[0] + model.shifts_hz[1])
+    pops_mode = "hold" if coupled else options.populations
+    first: list[tuple] = []
+    for s, w in zip(spectra, widths, strict=True):
+        ref = tied or w
+        width = ref.width_hz if ref else options.width_hz
+        t_k = None if s.t_k is None or math.isnan(s.t_k) else s.t_k
+        f0, prep, linear = _start(s.freq_hz, s.intensity, model, width,
+                                  bool(ref) or options.fix_width, (s.source, t_k, s.t_text))  # fmt: skip
+        settings = settings_from_model(model, width, f0.offset_hz)
+        settings["width"] = _width_setting(ref, width, options.fix_width)
+        for name, mode in (("delta", options.shifts), ("population", pops_mode)):
+            if mode == "hold":
+                settings[name] = Setting(settings[name].value, "held")
+        if coupled and options.fit_coupling:
+            settings["coupling"] = Setting(settings["coupling"].value, "fitted")
+        noise = f0.rms / prep.ynorm
+        fit = fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
+                        coupled=coupled, centre_given=centre)  # fmt: skip
+        first.append((fit, f0, prep, linear, settings, noise))
+    trends = {}
+    for name, mode in (("delta", options.shifts), ("population", pops_mode)):
+        if mode in ("auto", "tie"):
+            trends[name] = _trend(name, [row[0] for row in first])
+    fits = [_second(row, trends, options, pops_mode, coupled, centre) for row in first]
+    fits.sort(key=lambda f: (f.t_k is None, f.t_k or 0.0))
+    notes = [
+        f"{words} not determined by any spectrum: held at the given value"
+        for name, words in (("delta", "Δν"), ("population", "the populations"))
+        if name in trends and trends[name] is None
+    ]
+    return SeriesFit(
+        tuple(fits), tuple(t for t in trends.values() if t is not None),
+        tuple(w for w in widths if w is not None), tied, tuple(notes),
+    )  # fmt: skip
+
+
+def _second(  # type: ignore[no-untyped-def]
+    row: tuple, trends: dict, options: SiteOptions, pops_mode: str, coupled: bool, centre: float
+):
+    """Refit one spectrum with the parameters it does not determine tied to their trend."""
+    fit, f0, prep, linear, settings, noise = row
+    changed = False
+    for name, mode in (("delta", options.shifts), ("population", pops_mode)):
+        if mode not in ("auto", "tie"):
+            continue
+        trend = trends.get(name)
+        determined = trend is not None and fit.source in trend.sources
+        if mode == "auto" and determined:
+            continue
+        changed = True
+        if trend is None or prep.t_k is None:
+            settings = {**settings, name: Setting(settings[name].value, "held")}
+            continue
+        value, sd = trend.predict(prep.t_k)
+        how = "tied (drift)" if name == "delta" else "tied (van 't Hoff)"
+        settings = {**settings, name: Setting(value, how, max(sd, 1e-9))}
+    if not changed:
+        return fit
+    return fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
+                     coupled=coupled, centre_given=centre)  # fmt: skip
+
+
+def reference_widths(spectra: Sequence, window_hz: tuple[float, float]) -> list[ReferenceWidth]:
+    """The reference line's width in each spectrum (freq_hz, intensity, source)."""
+    return [fit_reference(s.freq_hz, s.intensity, window_hz, s.source) for s in spectra]
+
+
+def _width_setting(ref: ReferenceWidth | None, width: float, fix: bool) -> Setting:
+    if ref is not None:
+        if ref.width_err_hz is None:
+            return Setting(ref.width_hz, "held")
+        return Setting(ref.width_hz, "reference" if ref.source != "series" else "tied (series)",
+                       ref.width_err_hz)  # fmt: skip
+    return Setting(width, "held" if fix else "fitted")
