@@ -86,10 +86,14 @@ def test_fit_table_and_global(cli, vt_files: list[Path]) -> None:  # type: ignor
     )  # fmt: skip
     assert result.exit_code == 0, result.stderr
     lines = result.stdout.splitlines()
-    assert lines[0].split() == ["file", "T/K", "k/s-1", "±k", "w/Hz", "offset/Hz", "rms", "note"]
+    assert lines[0].split() == [
+        "file", "T/K", "k/s-1", "±k", "w/Hz", "offset/Hz", "Δν/Hz", "p1", "rms", "note"
+    ]  # fmt: skip
     assert [ln.split()[0] for ln in lines[2:5]] == ["vt_270.csv", "vt_285.csv", "vt_300.csv"]
-    assert lines[5].startswith("Eyring line (weighted, 3 rates): ΔH‡ = ")
-    assert lines[6].startswith("global fit (3 spectra, χ²/dof = ")
+    assert lines[5] == "Δν, p1: fitted; ~ tied to the series; = held; ? fitted, not determined"
+    rest = [ln for ln in lines[6:] if not ln.startswith(("Δν drift", "populations, van"))]
+    assert rest[0].startswith("Eyring line (weighted, 3 rates): ΔH‡ = ")
+    assert rest[1].startswith("global fit (3 spectra, χ²/dof = ")
     data = json.loads(
         cli("lineshape", "fit", *map(str, vt_files), "--sites", SITES, "--width", "1.2",
             "--fix-width", "--global", "--json").stdout
