@@ -106,10 +106,13 @@ def weighted_line(
     return float(coef[0]), float(coef[1]), cov
 
 
-def _trend(name: str, fits: Sequence[LineShapeFit]) -> Trend | None:
-    """The drift of Δν or the van 't Hoff line of p₁ through the fits that determine them."""
+def _trend(name: str, fits: Sequence[LineShapeFit], exclude: str | None = None) -> Trend | None:
+    """The drift of Δν or the van 't Hoff line of p₁ through the fits that determine them
+    (without the spectrum ``exclude``)."""
     rows = []
     for f in fits:
+        if f.source == exclude:
+            continue
         par = {n: (v, e) for n, v, e, _h in f.parameters}
         value, err = par.get(name, (math.nan, None))
         how = next((h for n, _v, _e, h in f.parameters if n == name), "")
@@ -222,7 +225,8 @@ def fit_series(
     for name, mode in (("delta", options.shifts), ("population", pops_mode)):
         if mode in ("auto", "tie"):
             trends[name] = _trend(name, [row[0] for row in first])
-    fits = [_second(row, trends, options, pops_mode, coupled, centre) for row in first]
+    firsts = [row[0] for row in first]
+    fits = [_second(row, firsts, trends, options, pops_mode, coupled, centre) for row in first]
     fits.sort(key=lambda f: (f.t_k is None, f.t_k or 0.0))
     notes = [
         f"{words} not determined by any spectrum: held at the given value"
@@ -236,29 +240,48 @@ def fit_series(
 
 
 def _second(  # type: ignore[no-untyped-def]
-    row: tuple, trends: dict, options: SiteOptions, pops_mode: str, coupled: bool, centre: float
+    row: tuple,
+    firsts: list[LineShapeFit],
+    trends: dict,
+    options: SiteOptions,
+    pops_mode: str,
+    coupled: bool,
+    centre: float,
 ):
-    """Refit one spectrum with the parameters it does not determine tied to their trend."""
+    """Refit one spectrum with the parameters the series knows better tied to their trend.
+
+    A spectrum that helped draw a trend is compared with the trend of the *other* spectra
+    (leave-one-out, so its own value is not counted twice): where their prediction is more
+    precise than its own fit ('auto'), or always ('tie'), it is tied to that prediction.
+    """
     fit, f0, prep, linear, settings, noise = row
     changed = False
     for name, mode in (("delta", options.shifts), ("population", pops_mode)):
+        trend = trends.get(name)
         if mode not in ("auto", "tie"):
             continue
-        trend = trends.get(name)
-        determined = trend is not None and fit.source in trend.sources
-        if mode == "auto" and determined:
+        own = trend is not None and fit.source in trend.sources
+        basis = _trend(name, firsts, exclude=fit.source) if own else trend
+        if basis is None or prep.t_k is None:
+            if not own:
+                settings = {**settings, name: Setting(settings[name].value, "held")}
+                changed = True
             continue
-        changed = True
-        if trend is None or prep.t_k is None:
-            settings = {**settings, name: Setting(settings[name].value, "held")}
+        value, sd = basis.predict(prep.t_k)
+        if mode == "auto" and own and not sd < _error(fit, name):
             continue
-        value, sd = trend.predict(prep.t_k)
         how = "tied (drift)" if name == "delta" else "tied (van 't Hoff)"
         settings = {**settings, name: Setting(value, how, max(sd, 1e-9))}
+        changed = True
     if not changed:
         return fit
     return fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
                      coupled=coupled, centre_given=centre)  # fmt: skip
+
+
+def _error(fit: LineShapeFit, name: str) -> float:
+    err = next((e for n, _v, e, _h in fit.parameters if n == name), None)
+    return math.inf if err is None else err
 
 
 def reference_widths(spectra: Sequence, window_hz: tuple[float, float]) -> list[ReferenceWidth]:
