@@ -17,10 +17,11 @@ import pytest
 from scipy import constants as C
 
 from registry import api
+from registry.lineshape.diagnose import durbin_watson_z
 from registry.lineshape.fit_core import prepare
 from registry.lineshape.reference import fit_reference, tie_widths
 from registry.lineshape.simulate import ExchangeModel, two_site_spectrum
-from registry.lineshape.sitefit import Setting, durbin_watson_z, fit_sites
+from registry.lineshape.sitefit import Setting, fit_sites
 from registry.lineshape.spectrum import Spectrum
 
 R = C.R  # J/(mol·K), CODATA

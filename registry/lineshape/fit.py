@@ -229,7 +229,14 @@ def fit_spectrum(
         n_par=n_par,
         result=best,
         method="per temperature",
+        width_free=not fix_width,
+        k_width_corr=None if fix_width or cov is None else _corr(cov, 0, 1),
     )
+
+
+def _corr(cov: FloatArray, i: int, j: int) -> float | None:
+    denom = math.sqrt(abs(float(cov[i, i] * cov[j, j])))
+    return float(cov[i, j]) / denom if denom > 0 else None
 
 
 def eyring_from_fits(fits: Sequence[LineShapeFit]) -> EyringFit | None:

@@ -360,8 +360,14 @@ def make_fit(
     n_par: int,
     result: OptimizeResult,
     method: str,
+    width_free: bool = False,
+    k_width_corr: float | None = None,
 ) -> LineShapeFit:
-    """A :class:`LineShapeFit` in the data's own units, with a warning when k is not pinned."""
+    """A :class:`LineShapeFit` in the data's own units, with a warning when k is not pinned
+    and the problems of :mod:`registry.lineshape.diagnose` (``k_width_corr`` when the width
+    was fitted: None means not separable)."""
+    from registry.lineshape.diagnose import K_UNDETERMINED, residual_problem, width_problem
+
     a, b0, b1 = linear
     model_y = a * prep.shape.value(k, width, offset) + b0 + b1 * prep.u
     resid = model_y - prep.y
@@ -375,6 +381,15 @@ def make_fit(
     if width <= 1.01 * prep.width_floor:
         notes.append(WIDTH_COLLAPSED)
     message = "; ".join(notes)
+    problems = []
+    if not bound:
+        width_words = width_problem(k_width_corr) if width_free else None
+        if width_words:
+            problems.append(width_words)
+        elif ln_k_err is None or ln_k_err > 1.0:
+            problems.append(K_UNDETERMINED)
+        words = residual_problem(resid, model_y - b0 - b1 * prep.u)
+        problems += [words] if words else []
     return LineShapeFit(
         source=prep.source,
         t_k=prep.t_k,
@@ -396,6 +411,7 @@ def make_fit(
         converged=bool(result.success) and not bound,
         message=message,
         method=method,
+        problems=tuple(problems),
         freq_hz=prep.freq,
         data=prep.y * prep.ynorm,
         best_fit=model_y * prep.ynorm,

@@ -13,10 +13,8 @@ enters as a Gaussian prior: one more residual s·(value − μ)/σ, s the noise 
 The errors of k then include the uncertainty of everything it was tied to. Area and a straight
 baseline are fitted with analytic derivatives, the rest by central differences (two-site shapes
 cost microseconds). Afterwards :func:`diagnose` says in plain words what makes the rate
-doubtful: a parameter at its bound, k strongly correlated with the width, residuals that are not
-noise-like (the Durbin–Watson statistic of the residuals over the points that carry signal;
-zero-filled or apodised spectra have correlated noise and can be flagged falsely, so fit
-spectra as recorded).
+doubtful (:mod:`registry.lineshape.diagnose`): a parameter at its bound, k strongly correlated
+with the width or with Δν or the populations, residuals that are not noise-like.
 """
 
 from __future__ import annotations
@@ -29,6 +27,12 @@ import numpy as np
 from scipy.optimize import least_squares
 
 from registry.lineshape.coupled import CoupledABModel
+from registry.lineshape.diagnose import (
+    K_UNDETERMINED,
+    MAX_CORRELATION,
+    residual_problem,
+    width_problem,
+)
 from registry.lineshape.fit_core import (
     MAX_EVALUATIONS,
     POORLY_DETERMINED,
@@ -43,10 +47,6 @@ from registry.lineshape.simulate import ExchangeModel, two_site_spectrum
 
 #: the parameters besides k, in the order of the vector θ after ln k
 NAMES = ("centre", "delta", "population", "width", "coupling")
-#: |correlation| of ln k with another fitted parameter above which k is not pinned by the data
-MAX_CORRELATION = 0.95
-#: Durbin–Watson z below which the residuals are called not noise-like (white noise: < 0.2 %)
-MIN_DW_Z = -3.0
 
 
 @dataclass(frozen=True)
@@ -274,15 +274,6 @@ def correlation(problem: _Problem, cov: FloatArray | None, name: str) -> float |
     return float(cov[0, j] / denom) if denom > 0 else None
 
 
-def durbin_watson_z(residuals: FloatArray) -> tuple[float, float]:
-    """Durbin–Watson d = Σ(eₜ − eₜ₋₁)²/Σeₜ² of consecutive residuals and its z against white
-    noise, for which d ≈ 2 with σ ≈ 2/√n (Durbin & Watson, Biometrika 37, 409 (1950); the
-    large-n σ from memory). A smooth misfit makes neighbours alike: d well below 2."""
-    n = len(residuals)
-    d = float(np.sum(np.diff(residuals) ** 2) / np.sum(residuals**2))
-    return d, (d - 2.0) / (2.0 / math.sqrt(n))
-
-
 def diagnose(
     problem: _Problem,
     fit: LineShapeFit,
@@ -306,19 +297,12 @@ def diagnose(
             f"population at its bound: p₁ ran to {p:.3f}; hold the populations or tie them "
             "across the series"
         )
-    r = correlation(problem, cov, "width")
     width_free = "width" in problem.free and problem.settings["width"].sigma is None
-    if width_free and (r is None or abs(r) > MAX_CORRELATION):
-        size = "≈ ±1" if r is None else f"{r:+.2f}"
-        out.append(
-            f"k–width correlation {size}: this spectrum cannot tell a faster exchange from a "
-            "broader line; hold the width or add a reference window"
-        )
+    width_words = width_problem(correlation(problem, cov, "width")) if width_free else None
+    if width_words:
+        out.append(width_words)
     elif fit.ln_k_err is None or fit.ln_k_err > 1.0:
-        out.append(
-            "k not determined: the spectrum fixes no rate (slow- or fast-exchange limit); hold "
-            "the width, add a reference window or tie Δν and the populations to the series"
-        )
+        out.append(K_UNDETERMINED)
     for name, words in (("delta", "Δν"), ("population", "the populations")):
         r = correlation(problem, cov, name)
         if r is not None and problem.settings[name].sigma is None and abs(r) > 0.99:
@@ -326,17 +310,8 @@ def diagnose(
                 f"k–{words} correlation {r:+.2f}: this spectrum does not fix {words}; tie them "
                 "to the series or hold them"
             )
-    big = np.abs(signal) > 0.02 * float(np.abs(signal).max())
-    if big.sum() >= 20:
-        d, z = durbin_watson_z(resid[big])
-        if z < MIN_DW_Z:
-            out.append(
-                f"residuals not noise-like: Durbin–Watson d = {d:.2f} over the lines where "
-                f"noise gives 2.00 ± {2 / math.sqrt(int(big.sum())):.2f}; the model misses part "
-                "of the spectrum: narrow the region to the exchanging lines, or let the shifts "
-                "and populations vary"
-            )
-    return out
+    words = residual_problem(resid, signal)
+    return [*out, words] if words else out
 
 
 def settings_from_model(
