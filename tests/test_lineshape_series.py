@@ -100,7 +100,9 @@ def test_held_equal_populations_are_called_doubtful_and_not_stored() -> None:
     assert all(any("residuals not noise-like" in p for p in f.problems) for f in result.fits)
     assert all("Durbin–Watson" in p for f in result.fits for p in f.problems)
     assert result.rate_points == ()
-    assert any("not stored" in n and "store_doubtful" in n for n in result.series_notes)
+    assert any("no rate point" in n and "store_doubtful" in n for n in result.series_notes)
+    assert result.eyring_line is not None
+    assert any("doubtful rates (vt_270, vt_280)" in w for w in result.eyring_line.warnings)
     again = _fit(spectra, populations_mode="hold", shifts_mode="hold", store_doubtful=True)
     assert len(again.rate_points) == 2
     # letting them vary (the default) fits the same spectra without complaint

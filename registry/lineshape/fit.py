@@ -243,7 +243,8 @@ def eyring_from_fits(fits: Sequence[LineShapeFit]) -> EyringFit | None:
     """The weighted Eyring line through per-temperature rates (None below two temperatures).
 
     Failed fits (k at its bound, :attr:`LineShapeFit.failed`) are left out and said so; a point
-    without σ_k gets the least weight of the others (:func:`k_errors`), said in the warnings.
+    without σ_k gets the least weight of the others (:func:`k_errors`), said in the warnings;
+    doubtful fits (:attr:`LineShapeFit.problems`) stay in, and the warnings name them.
     """
     from dataclasses import replace
 
@@ -257,7 +258,13 @@ def eyring_from_fits(fits: Sequence[LineShapeFit]) -> EyringFit | None:
         errors,
     )
     left_out = [f.source for f in fits if f.failed]
+    doubtful = [f.source for f in usable if f.doubtful]
     notes = [note] if note else []
+    if doubtful:
+        notes.append(
+            f"the line runs through doubtful rates ({', '.join(doubtful)}): read their notes "
+            "before trusting ΔH‡ and ΔS‡"
+        )
     if left_out:
         notes.append(f"left out of the Eyring line (the fit failed): {', '.join(left_out)}")
     return replace(line, warnings=(*line.warnings, *notes)) if notes else line

@@ -116,7 +116,7 @@ def _trend(name: str, fits: Sequence[LineShapeFit], exclude: str | None = None) 
         par = {n: (v, e) for n, v, e, _h in f.parameters}
         value, err = par.get(name, (math.nan, None))
         how = next((h for n, _v, _e, h in f.parameters if n == name), "")
-        if f.failed or f.problems or how != "fitted" or f.t_k is None or err is None or err <= 0:
+        if f.failed or _misfit(f) or how != "fitted" or f.t_k is None or not err or err <= 0:
             continue
         limit = DELTA_REL * abs(value) if name == "delta" else POP_ABS
         if err < limit:
@@ -134,6 +134,12 @@ def _trend(name: str, fits: Sequence[LineShapeFit], exclude: str | None = None) 
     s = [r[2] / (r[1] * (1.0 - r[1])) for r in rows]
     a, b, cov = weighted_line([1.0 / t for t in temps], y, s)
     return Trend(name, "van 't Hoff", a, b, _pair(cov), 0.0, sources)
+
+
+def _misfit(fit: LineShapeFit) -> bool:
+    """A fit whose model misses the data or ran a parameter to a bound says nothing about Δν or
+    the populations (a k–width correlation does not spoil them)."""
+    return any(p.startswith("residuals") or "at its bound" in p for p in fit.problems)
 
 
 def _pair(cov: FloatArray) -> tuple[tuple[float, float], tuple[float, float]]:
@@ -248,11 +254,11 @@ def _second(  # type: ignore[no-untyped-def]
     coupled: bool,
     centre: float,
 ):
-    """Refit one spectrum with the parameters the series knows better tied to their trend.
+    """Refit one spectrum with the parameters it does not determine tied to their trend.
 
-    A spectrum that helped draw a trend is compared with the trend of the *other* spectra
-    (leave-one-out, so its own value is not counted twice): where their prediction is more
-    precise than its own fit ('auto'), or always ('tie'), it is tied to that prediction.
+    'auto' keeps what the spectrum determines as fitted. 'tie' ties every spectrum; one that
+    helped draw the trend is tied to the trend of the *other* spectra (leave-one-out), so its
+    own value is not counted twice.
     """
     fit, f0, prep, linear, settings, noise = row
     changed = False
@@ -261,6 +267,8 @@ def _second(  # type: ignore[no-untyped-def]
         if mode not in ("auto", "tie"):
             continue
         own = trend is not None and fit.source in trend.sources
+        if mode == "auto" and own:
+            continue
         basis = _trend(name, firsts, exclude=fit.source) if own else trend
         if basis is None or prep.t_k is None:
             if not own:
@@ -268,8 +276,6 @@ def _second(  # type: ignore[no-untyped-def]
                 changed = True
             continue
         value, sd = basis.predict(prep.t_k)
-        if mode == "auto" and own and not sd < _error(fit, name):
-            continue
         how = "tied (drift)" if name == "delta" else "tied (van 't Hoff)"
         settings = {**settings, name: Setting(value, how, max(sd, 1e-9))}
         changed = True
@@ -277,11 +283,6 @@ def _second(  # type: ignore[no-untyped-def]
         return fit
     return fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
                      coupled=coupled, centre_given=centre)  # fmt: skip
-
-
-def _error(fit: LineShapeFit, name: str) -> float:
-    err = next((e for n, _v, e, _h in fit.parameters if n == name), None)
-    return math.inf if err is None else err
 
 
 def reference_widths(spectra: Sequence, window_hz: tuple[float, float]) -> list[ReferenceWidth]:

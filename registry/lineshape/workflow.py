@@ -232,8 +232,8 @@ def analyse(
     notes = list(series.notes)
     if left_out:
         notes.append(
-            f"not stored, the fit is doubtful (see its note): {', '.join(left_out)}; "
-            "store them anyway with store_doubtful"
+            f"no rate point to store, the fit is doubtful (see its note): {', '.join(left_out)}; "
+            "keep them with store_doubtful"
         )
     return LineShapeAnalysis(
         sites_hz=tuple(model.shifts_hz),
