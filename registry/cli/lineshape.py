@@ -252,6 +252,8 @@ def _render_series(result: Any) -> None:
     if any(f.parameters for f in result.fits):
         typer.echo("Δν, p1: fitted; ~ tied to the series; = held; ? fitted, not determined")
     for t in result.trends:
+        if len(t.sources) < 2:  # one spectrum's value, shown in its row
+            continue
         d = t.to_dict()
         if t.kind == "linear drift":
             typer.echo(

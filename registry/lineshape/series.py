@@ -70,7 +70,10 @@ class Trend:
     def to_dict(self) -> dict[str, object]:
         out: dict[str, object] = {"parameter": self.name, "kind": self.kind,
                                   "from": list(self.sources)}  # fmt: skip
-        if self.kind == "linear drift":
+        if len(self.sources) < 2:  # one spectrum gives a value, not a line
+            value, err = self.predict(self.x_ref or 300.0)
+            out.update(kind="one spectrum's value", value=value, error=err)
+        elif self.kind == "linear drift":
             out.update(
                 at_k=self.x_ref, value_hz=self.a, error_hz=math.sqrt(self.cov[0][0]),
                 slope_hz_per_k=self.b, slope_err_hz_per_k=math.sqrt(self.cov[1][1]),
@@ -256,33 +259,53 @@ def _second(  # type: ignore[no-untyped-def]
 ):
     """Refit one spectrum with the parameters it does not determine tied to their trend.
 
-    'auto' keeps what the spectrum determines as fitted. 'tie' ties every spectrum; one that
-    helped draw the trend is tied to the trend of the *other* spectra (leave-one-out), so its
-    own value is not counted twice.
+    'auto' keeps what the spectrum determines as fitted; when tying one parameter leaves the
+    other undetermined in the refit, that one is tied too (one more refit). 'tie' ties every
+    spectrum; one that helped draw the trend is tied to the trend of the *other* spectra
+    (leave-one-out), so its own value is not counted twice.
     """
     fit, f0, prep, linear, settings, noise = row
-    changed = False
-    for name, mode in (("delta", options.shifts), ("population", pops_mode)):
-        trend = trends.get(name)
-        if mode not in ("auto", "tie"):
-            continue
-        own = trend is not None and fit.source in trend.sources
-        if mode == "auto" and own:
-            continue
-        basis = _trend(name, firsts, exclude=fit.source) if own else trend
-        if basis is None or prep.t_k is None:
-            if not own:
-                settings = {**settings, name: Setting(settings[name].value, "held")}
-                changed = True
-            continue
-        value, sd = basis.predict(prep.t_k)
-        how = "tied (drift)" if name == "delta" else "tied (van 't Hoff)"
-        settings = {**settings, name: Setting(value, how, max(sd, 1e-9))}
-        changed = True
-    if not changed:
-        return fit
-    return fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
-                     coupled=coupled, centre_given=centre)  # fmt: skip
+    modes = {"delta": options.shifts, "population": pops_mode}
+    keep = {n for n, m in modes.items() if m == "auto" and _own(trends.get(n), fit)}
+    for _ in range(2):
+        todo = [
+            n for n, m in modes.items()
+            if m in ("auto", "tie") and settings[n].how == "fitted"
+            and (n not in keep or _how(fit, n) == "fitted, not determined")
+        ]  # fmt: skip
+        if not todo:
+            return fit
+        for name in todo:
+            settings = {**settings, name: _tied(name, trends.get(name), firsts, fit, settings)}
+        fit = fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
+                        coupled=coupled, centre_given=centre)  # fmt: skip
+        keep = {n for n in keep if settings[n].how == "fitted"}
+    return fit
+
+
+def _own(trend: Trend | None, fit: LineShapeFit) -> bool:
+    return trend is not None and fit.source in trend.sources
+
+
+def _how(fit: LineShapeFit, name: str) -> str:
+    return next((h for n, _v, _e, h in fit.parameters if n == name), "")
+
+
+def _tied(
+    name: str,
+    trend: Trend | None,
+    firsts: list[LineShapeFit],
+    fit: LineShapeFit,
+    settings: dict[str, Setting],
+) -> Setting:
+    """The setting tying ``name`` to its trend at this temperature (without this spectrum's
+    own value when it helped draw the trend); held at the given value when there is none."""
+    basis = _trend(name, firsts, exclude=fit.source) if _own(trend, fit) else trend
+    if basis is None or fit.t_k is None:
+        return Setting(settings[name].value, "held")
+    value, sd = basis.predict(fit.t_k)
+    how = "tied (drift)" if name == "delta" else "tied (van 't Hoff)"
+    return Setting(value, how, max(sd, 1e-9))
 
 
 def reference_widths(spectra: Sequence, window_hz: tuple[float, float]) -> list[ReferenceWidth]:

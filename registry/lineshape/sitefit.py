@@ -303,12 +303,12 @@ def diagnose(
         out.append(width_words)
     elif fit.ln_k_err is None or fit.ln_k_err > 1.0:
         out.append(K_UNDETERMINED)
-    for name, words in (("delta", "Δν"), ("population", "the populations")):
+    for name, words in (("delta", "Δν"), ("population", "p₁")):
         r = correlation(problem, cov, name)
         if r is not None and problem.settings[name].sigma is None and abs(r) > 0.99:
             out.append(
-                f"k–{words} correlation {r:+.2f}: this spectrum does not fix {words}; tie them "
-                "to the series or hold them"
+                f"k–{words} correlation {r:+.2f}: this spectrum does not fix {words}; tie it "
+                "to the series or hold it"
             )
     words = residual_problem(resid, signal)
     return [*out, words] if words else out
