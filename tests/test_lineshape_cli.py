@@ -90,7 +90,7 @@ def test_fit_table_and_global(cli, vt_files: list[Path]) -> None:  # type: ignor
         "file", "T/K", "k/s-1", "±k", "w/Hz", "offset/Hz", "Δν/Hz", "p1", "rms", "note"
     ]  # fmt: skip
     assert [ln.split()[0] for ln in lines[2:5]] == ["vt_270.csv", "vt_285.csv", "vt_300.csv"]
-    assert lines[5] == "Δν, p1: fitted; ~ tied to the series; = held; ? fitted, not determined"
+    assert lines[5] == "after a value: ~ tied to the series, = held, ? fitted but not determined"
     rest = [ln for ln in lines[6:] if not ln.startswith(("Δν drift", "populations, van"))]
     assert rest[0].startswith("Eyring line (weighted, 3 rates): ΔH‡ = ")
     assert rest[1].startswith("global fit (3 spectra, χ²/dof = ")

@@ -250,7 +250,7 @@ def _render_series(result: Any) -> None:
     from registry.api import value_with_error_text as pm
 
     if any(f.parameters for f in result.fits):
-        typer.echo("Δν, p1: fitted; ~ tied to the series; = held; ? fitted, not determined")
+        typer.echo("after a value: ~ tied to the series, = held, ? fitted but not determined")
     for t in result.trends:
         if len(t.sources) < 2:  # one spectrum's value, shown in its row
             continue

@@ -244,7 +244,7 @@ def _record(problem: _Problem, result: object, cov: FloatArray | None, method: s
         if name == "population" and problem.coupled:
             continue
         how = s.how
-        if how == "fitted" and name in ("delta", "population"):
+        if how == "fitted" and name in ("delta", "population", "coupling"):
             r = correlation(problem, cov, name)
             err = errors.get(name)
             if r is None or err is None or abs(r) > MAX_CORRELATION:
@@ -303,7 +303,7 @@ def diagnose(
         out.append(width_words)
     elif fit.ln_k_err is None or fit.ln_k_err > 1.0:
         out.append(K_UNDETERMINED)
-    for name, words in (("delta", "Δν"), ("population", "p₁")):
+    for name, words in (("delta", "Δν"), ("population", "p₁"), ("coupling", "J")):
         r = correlation(problem, cov, name)
         if r is not None and problem.settings[name].sigma is None and abs(r) > 0.99:
             out.append(
