@@ -137,6 +137,7 @@ def fit_lineshapes(
     parameter at a bound, k–width correlation, residuals not noise-like; see each fit's
     ``problems``) are not stored unless ``store_doubtful``.
     """
+    # long: the docstring names every argument; the body reads them and calls the workflow
     from registry.lineshape import inputs, workflow
     from registry.lineshape.series import SiteOptions
 
@@ -151,20 +152,15 @@ def fit_lineshapes(
     spectra = workflow.load_spectra(sources, temperatures, inputs.read_x_unit(x_unit), mhz_given)
     mhz = workflow.common_mhz(spectra, mhz_given)
     model, unit = inputs.read_sites(sites, populations, scheme, mhz)
-    j_hz = inputs.read_coupling(coupling)
-    if j_hz is not None:
-        model = inputs.coupled_model(model, j_hz, populations is not None)
-    elif fit_coupling:
-        raise UsageError("fit_coupling: give the coupling J to start from (coupling)")
-    width_hz = inputs.read_positive(width, "shift", "width", "Hz")
+    model = _coupled(model, coupling, fit_coupling, populations is not None)
     window_hz = None if region is None else inputs.read_window(region, "region", unit, mhz)
     reference_hz = (
         None if reference is None else inputs.read_window(reference, "reference", unit, mhz)
     )
     options = SiteOptions(
-        shifts=shifts_mode, populations=populations_mode, width_hz=width_hz,
-        fix_width=fix_width, reference_hz=reference_hz, tie_width=tie_width,
-        fit_coupling=fit_coupling,
+        shifts=shifts_mode, populations=populations_mode,
+        width_hz=inputs.read_positive(width, "shift", "width", "Hz"), fix_width=fix_width,
+        reference_hz=reference_hz, tie_width=tie_width, fit_coupling=fit_coupling,
     )  # fmt: skip
     bp_k = None
     if solvent_bp is not None:
@@ -182,6 +178,18 @@ def fit_lineshapes(
     assert database is not None
     stored = add_rate_points(database, measurement_id, result.rate_points, actor=actor)
     return replace(result, stored_rate_points=stored, measurement_id=measurement_id)
+
+
+def _coupled(model, coupling: Quantity | None, fit_coupling: bool, pops_given: bool):  # type: ignore[no-untyped-def]
+    """The two sites as a coupled AB pair when a coupling is given."""
+    from registry.lineshape import inputs
+
+    j_hz = inputs.read_coupling(coupling)
+    if j_hz is not None:
+        return inputs.coupled_model(model, j_hz, pops_given)
+    if fit_coupling:
+        raise UsageError("fit_coupling: give the coupling J to start from (coupling)")
+    return model
 
 
 def _require_measurement(database: Database | None, measurement_id: int) -> None:

@@ -180,6 +180,7 @@ def fit(
     as_json: bool = _JSON,
 ) -> None:
     """Fit exchange rates to spectra; Eyring line through them; optionally store the rates."""
+    # long: one typer option per line of the signature; the body only calls the api
     from registry import api
 
     st = state(ctx)
