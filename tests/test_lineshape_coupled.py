@@ -146,3 +146,27 @@ def test_coupled_series_with_j_fitted_through_the_api() -> None:
         assert how == "fitted" and j_err is not None and abs(j - 12.0) < 4 * j_err
         assert fit.k_err_per_s is not None and abs(fit.k_per_s - k) < 4 * fit.k_err_per_s
     assert result.scheme == "coupled AB" and result.populations == (0.5, 0.5)
+
+
+def test_global_fit_of_a_coupled_series() -> None:
+    """ΔH‡ = 62 kJ/mol, ΔS‡ = 0 (invented); rates from the Eyring equation (CODATA k_B/h)."""
+    from scipy import constants
+
+    from registry import api
+    from registry.lineshape.spectrum import Spectrum
+
+    kb_h = constants.Boltzmann / constants.Planck
+    spectra = []
+    for i, t in enumerate((280.0, 290.0, 300.0, 310.0)):
+        k = kb_h * t * math.exp(-62000.0 / (constants.R * t))
+        sim = api.simulate_lineshape(
+            "30,-30 Hz", k, coupling="12 Hz", width="1 Hz", points=2048, noise=0.01,
+            seed=i + 10, window="-150,150 Hz",
+        )  # fmt: skip
+        spectra.append(Spectrum(sim.x, sim.intensity, "Hz", f"ab_{t:.0f}", t_k=t))
+    result = api.fit_lineshapes(
+        spectra, "30,-30 Hz", coupling="12 Hz", width="1 Hz", fix_width=True, global_fit=True
+    )
+    g = result.global_fit
+    assert g is not None and g.converged
+    assert abs(g.eyring.dh_kj_mol - 62.0) < 4 * g.eyring.dh_err_kj_mol
