@@ -28,7 +28,7 @@ from registry.errors import UsageError
 from registry.kinetics.constants import R_KJ_MOL_K
 from registry.lineshape.coupled import CoupledABModel
 from registry.lineshape.fit import fit_spectrum
-from registry.lineshape.fit_core import FloatArray, LineShapeFit, prepare
+from registry.lineshape.fit_core import FloatArray, LineShapeFit, Prepared, prepare
 from registry.lineshape.reference import ReferenceWidth, fit_reference, tie_widths
 from registry.lineshape.simulate import ExchangeModel
 from registry.lineshape.sitefit import Setting, fit_sites, settings_from_model
@@ -182,14 +182,55 @@ class SiteOptions:
             raise UsageError("tie_width needs a reference window (reference)")
 
 
-def _start(freq: FloatArray, y: FloatArray, model, width: float, fixed: bool, meta) -> tuple:  # type: ignore[no-untyped-def]
-    """The per-temperature fit with the given sites: k, A, baseline and noise to start from."""
-    f0 = fit_spectrum(freq, y, model, width_hz=width, fix_width=fixed, source=meta[0],
-                      t_k=meta[1], t_text=meta[2])  # fmt: skip
-    prep = prepare(freq, y, model, meta[0], meta[1], meta[2], 8)
-    linear = (f0.area / prep.ynorm, f0.baseline_at_centre / prep.ynorm,
-              f0.baseline_slope_per_hz * prep.half_span / prep.ynorm)  # fmt: skip
-    return f0, prep, linear
+@dataclass
+class _First:
+    """One spectrum after the first pass: the fit, its start, and what a refit needs."""
+
+    fit: LineShapeFit
+    start: LineShapeFit
+    prep: Prepared
+    linear: tuple[float, float, float]
+    settings: dict[str, Setting]
+    noise: float
+    coupled: bool
+    centre: float
+
+    def refit(self, settings: dict[str, Setting]) -> LineShapeFit:
+        return fit_sites(
+            self.prep, settings, k0=self.start.k_per_s, linear0=self.linear, noise=self.noise,
+            coupled=self.coupled, centre_given=self.centre,
+        )  # fmt: skip
+
+
+def _first(
+    spectrum,  # type: ignore[no-untyped-def]
+    ref: ReferenceWidth | None,
+    model: ExchangeModel | CoupledABModel,
+    options: SiteOptions,
+    pops_mode: str,
+) -> _First:
+    """The start (per-temperature fit with the given sites), then the fit with the site
+    parameters free (or held, as the modes say)."""
+    coupled = isinstance(model, CoupledABModel)
+    width = ref.width_hz if ref else options.width_hz
+    t_k = None if spectrum.t_k is None or math.isnan(spectrum.t_k) else spectrum.t_k
+    freq, y, source = spectrum.freq_hz, spectrum.intensity, spectrum.source
+    start = fit_spectrum(freq, y, model, width_hz=width, fix_width=bool(ref) or options.fix_width,
+                         source=source, t_k=t_k, t_text=spectrum.t_text)  # fmt: skip
+    prep = prepare(freq, y, model, source, t_k, spectrum.t_text, 8)
+    linear = (start.area / prep.ynorm, start.baseline_at_centre / prep.ynorm,
+              start.baseline_slope_per_hz * prep.half_span / prep.ynorm)  # fmt: skip
+    settings = settings_from_model(model, width, start.offset_hz)
+    settings["width"] = _width_setting(ref, width, options.fix_width)
+    for name, mode in (("delta", options.shifts), ("population", pops_mode)):
+        if mode == "hold":
+            settings[name] = Setting(settings[name].value, "held")
+    if coupled and options.fit_coupling:
+        settings["coupling"] = Setting(settings["coupling"].value, "fitted")
+    centre = 0.5 * (model.shifts_hz[0] + model.shifts_hz[1])
+    row = _First(start, start, prep, linear, settings, start.rms / prep.ynorm, coupled, centre)
+    row.fit = row.refit(settings)
+    return row
 
 
 def fit_series(
@@ -209,33 +250,15 @@ def fit_series(
         list(references) if references is not None else [None] * len(spectra)
     )
     tied = tie_widths([w for w in widths if w is not None]) if options.tie_width else None
-    coupled = isinstance(model, CoupledABModel)
-    centre = 0.5 * (model.shifts_hz[0] + model.shifts_hz[1])
-    pops_mode = "hold" if coupled else options.populations
-    first: list[tuple] = []
-    for s, w in zip(spectra, widths, strict=True):
-        ref = tied or w
-        width = ref.width_hz if ref else options.width_hz
-        t_k = None if s.t_k is None or math.isnan(s.t_k) else s.t_k
-        f0, prep, linear = _start(s.freq_hz, s.intensity, model, width,
-                                  bool(ref) or options.fix_width, (s.source, t_k, s.t_text))  # fmt: skip
-        settings = settings_from_model(model, width, f0.offset_hz)
-        settings["width"] = _width_setting(ref, width, options.fix_width)
-        for name, mode in (("delta", options.shifts), ("population", pops_mode)):
-            if mode == "hold":
-                settings[name] = Setting(settings[name].value, "held")
-        if coupled and options.fit_coupling:
-            settings["coupling"] = Setting(settings["coupling"].value, "fitted")
-        noise = f0.rms / prep.ynorm
-        fit = fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
-                        coupled=coupled, centre_given=centre)  # fmt: skip
-        first.append((fit, f0, prep, linear, settings, noise))
-    trends = {}
-    for name, mode in (("delta", options.shifts), ("population", pops_mode)):
-        if mode in ("auto", "tie"):
-            trends[name] = _trend(name, [row[0] for row in first])
-    firsts = [row[0] for row in first]
-    fits = [_second(row, firsts, trends, options, pops_mode, coupled, centre) for row in first]
+    pops_mode = "hold" if isinstance(model, CoupledABModel) else options.populations
+    rows = [
+        _first(s, tied or w, model, options, pops_mode)
+        for s, w in zip(spectra, widths, strict=True)
+    ]
+    firsts = [row.fit for row in rows]
+    modes = {"delta": options.shifts, "population": pops_mode}
+    trends = {n: _trend(n, firsts) for n, m in modes.items() if m in ("auto", "tie")}
+    fits = [_second(row, firsts, trends, modes) for row in rows]
     fits.sort(key=lambda f: (f.t_k is None, f.t_k or 0.0))
     notes = [
         f"{words} not determined by any spectrum: held at the given value"
@@ -248,15 +271,9 @@ def fit_series(
     )  # fmt: skip
 
 
-def _second(  # type: ignore[no-untyped-def]
-    row: tuple,
-    firsts: list[LineShapeFit],
-    trends: dict,
-    options: SiteOptions,
-    pops_mode: str,
-    coupled: bool,
-    centre: float,
-):
+def _second(
+    row: _First, firsts: list[LineShapeFit], trends: dict[str, Trend | None], modes: dict[str, str]
+) -> LineShapeFit:
     """Refit one spectrum with the parameters it does not determine tied to their trend.
 
     'auto' keeps what the spectrum determines as fitted; when tying one parameter leaves the
@@ -264,8 +281,7 @@ def _second(  # type: ignore[no-untyped-def]
     spectrum; one that helped draw the trend is tied to the trend of the *other* spectra
     (leave-one-out), so its own value is not counted twice.
     """
-    fit, f0, prep, linear, settings, noise = row
-    modes = {"delta": options.shifts, "population": pops_mode}
+    fit, settings = row.fit, row.settings
     keep = {n for n, m in modes.items() if m == "auto" and _own(trends.get(n), fit)}
     for _ in range(2):
         todo = [
@@ -277,8 +293,7 @@ def _second(  # type: ignore[no-untyped-def]
             return fit
         for name in todo:
             settings = {**settings, name: _tied(name, trends.get(name), firsts, fit, settings)}
-        fit = fit_sites(prep, settings, k0=f0.k_per_s, linear0=linear, noise=noise,
-                        coupled=coupled, centre_given=centre)  # fmt: skip
+        fit = row.refit(settings)
         keep = {n for n in keep if settings[n].how == "fitted"}
     return fit
 
