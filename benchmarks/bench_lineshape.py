@@ -242,7 +242,7 @@ def drifting_series(repeats: int) -> None:
             f"  {mode:<16}{f'median {np.median(w):.1%}, max {w.max():.1%}':>22}"
             f"{np.mean(w <= 0.05):>12.0%} "
             f"{f'{np.median(dh_err[mode]):.2f} / {max(dh_err[mode]):.2f} kJ/mol':>18}"
-            f"{np.mean(z < 1):>7.0%}{np.mean(z < 2):>7.0%}"
+            f"{np.mean(z < 1):>7.0%}{np.mean(z < 2):>7.0%} "
             f"{f'{c:.3f} s ({c / base:.1f}×)':>14}"
         )
     print("  (ΔH‡ error: median / max; |z|: share of rates within 1σ, 2σ — normal 68 %, 95 %)")

@@ -35,10 +35,12 @@ from registry.lineshape.sitefit import Setting, fit_sites, settings_from_model
 
 #: how a site parameter varies across the series (see the module docstring)
 MODES = ("auto", "fit", "hold", "tie")
-#: a fitted Δν is "determined" when its σ is below this fraction of |Δν| …
-DELTA_REL = 0.05
-#: … and p₁ when its σ is below this (absolute)
-POP_ABS = 0.03
+#: a fitted Δν "determines" it when its σ is below this fraction of |Δν|: k goes about as Δν
+#: near coalescence and as Δν² in fast exchange, so 1 % in Δν costs at most ~2 % in k; a spectrum
+#: that knows Δν less well is better served by the series' drift …
+DELTA_REL = 0.01
+#: … and p₁ when its σ is below this (absolute; k goes as p₁p₂ in fast exchange)
+POP_ABS = 0.01
 
 
 @dataclass(frozen=True)
