@@ -148,6 +148,15 @@ class LineShapeFit:
         return AT_BOUND in self.message
 
     @property
+    def full_note(self) -> str:
+        """The message and the problems in full; the short "k is poorly determined" is left
+        out when a problem says it at length."""
+        words = [w for w in self.message.split("; ") if w]
+        if self.problems:
+            words = [w for w in words if w != POORLY_DETERMINED]
+        return "; ".join([*words, *self.problems])
+
+    @property
     def remark(self) -> str:
         """A few words for a table when the fit needs a second look, else ''.
 

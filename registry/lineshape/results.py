@@ -115,12 +115,7 @@ class LineShapeAnalysis:
     @property
     def fit_notes(self) -> tuple[str, ...]:
         """``file: message`` for each fit that needs a second look (see ``LineShapeFit.remark``)."""
-        out = []
-        for f in self.fits:
-            if f.remark:
-                words = [f.message] if f.message else []
-                out.append(f"{Path(f.source).name}: {'; '.join([*words, *f.problems])}")
-        return tuple(out)
+        return tuple(f"{Path(f.source).name}: {f.full_note}" for f in self.fits if f.remark)
 
     @property
     def global_note(self) -> str | None:
