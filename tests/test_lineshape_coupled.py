@@ -170,3 +170,24 @@ def test_global_fit_of_a_coupled_series() -> None:
     g = result.global_fit
     assert g is not None and g.converged
     assert abs(g.eyring.dh_kj_mol - 62.0) < 4 * g.eyring.dh_err_kj_mol
+
+
+def test_simulated_record_and_refusals() -> None:
+    from registry import api
+    from registry.errors import UsageError
+
+    sim = api.simulate_lineshape("30,-30 Hz", 50.0, coupling="12 Hz", points=512)
+    data = sim.to_dict()
+    assert data["coupling_hz"] == 12.0 and data["scheme"] == "coupled AB"
+    assert data["populations"] == [0.5, 0.5] and data["reference_hz"] is None
+    with pytest.raises(UsageError, match=r"^populations: the two spins"):
+        api.simulate_lineshape("30,-30 Hz", 50.0, coupling="12 Hz", populations="0.6,0.4")
+    with pytest.raises(UsageError, match=r"^coupling: a coupled AB pair has exactly two sites"):
+        api.simulate_lineshape("30,0,-30 Hz", 50.0, coupling="12 Hz")
+    from registry.lineshape.spectrum import Spectrum
+
+    spec = Spectrum(sim.x, sim.intensity, "Hz", "ab", t_k=300.0)
+    with pytest.raises(UsageError, match=r"^populations_mode: the two sites of a coupled AB"):
+        api.fit_lineshapes([spec], "30,-30 Hz", coupling="12 Hz", populations_mode="fit")
+    with pytest.raises(UsageError, match=r"^fit_coupling: give the coupling J"):
+        api.fit_lineshapes([spec], "30,-30 Hz", fit_coupling=True)

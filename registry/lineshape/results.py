@@ -59,6 +59,9 @@ class SimulatedSpectrum:
     noise: float
     seed: int | None
     t_k: float | None
+    #: J of a coupled AB pair (Hz), and the non-exchanging reference line's position (Hz)
+    coupling_hz: float | None = None
+    reference_hz: float | None = None
     #: abscissa in ``x_unit`` (ppm when the sites were given in ppm with a field), intensities
     x: NDArray[np.float64] | None = field(default=None, repr=False)
     intensity: NDArray[np.float64] | None = field(default=None, repr=False)
@@ -79,6 +82,8 @@ class SimulatedSpectrum:
             "noise": self.noise,
             "seed": self.seed,
             "t_k": self.t_k,
+            "coupling_hz": self.coupling_hz,
+            "reference_hz": self.reference_hz,
         }
 
 

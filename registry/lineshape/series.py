@@ -252,6 +252,11 @@ def fit_series(
         list(references) if references is not None else [None] * len(spectra)
     )
     tied = tie_widths([w for w in widths if w is not None]) if options.tie_width else None
+    if isinstance(model, CoupledABModel) and options.populations not in ("auto", "hold"):
+        raise UsageError(
+            "populations_mode: the two sites of a coupled AB pair are equally populated; "
+            "leave it at auto or hold"
+        )
     pops_mode = "hold" if isinstance(model, CoupledABModel) else options.populations
     rows = [
         _first(s, tied or w, model, options, pops_mode)

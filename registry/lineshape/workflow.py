@@ -115,6 +115,8 @@ def simulate(
         noise=noise,
         seed=seed if noise > 0 else None,
         t_k=None if temperature is None else temperature.value,
+        coupling_hz=getattr(model, "j_hz", None),
+        reference_hz=reference_hz,
         x=x,
         intensity=intensity,
     )
