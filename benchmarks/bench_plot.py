@@ -8,7 +8,8 @@ the load average before and after. The registry is built once under ``benchmarks
 values: compounds without structures, one measurement each, and six rate points per measurement
 made with the Eyring equation from an invented ΔH‡/ΔS‡ with a little scatter — demo data, not
 chemistry. It also prints which heavy libraries the command imports (it should need only numpy
-and matplotlib's object API).
+and matplotlib's object API). It also times the print style (a single journal column,
+600 dpi PNG, and the same as PDF), alternated with the rest, as ratios to the screen PNG.
 
 Run: ``PYTHONPATH=$PWD .venv/bin/python benchmarks/bench_plot.py [--runs 5] [--size 10000]``
 """
@@ -162,12 +163,16 @@ def main() -> None:
         plot += ["-o", str(out)]
         bare = [sys.executable, "-c", "import typer"]
         floor = [sys.executable, "-c", FLOOR]
+        printed = [*plot[:-1], str(Path(tmp) / "print.png"), "--style", "print", "--size", "single"]
+        pdf = [*printed[:-5], str(Path(tmp) / "print.pdf"), *printed[-4:]]
         timed(bare), timed(plot), timed(floor)  # warm the file cache once, not counted
-        typer_s, plot_s, floor_s = [], [], []
+        typer_s, plot_s, floor_s, print_s, pdf_s = [], [], [], [], []
         for _ in range(args.runs):
             typer_s.append(timed(bare))
             plot_s.append(timed(plot))
             floor_s.append(timed(floor))
+            print_s.append(timed(printed))
+            pdf_s.append(timed(pdf))
         heavy = heavy_modules(db, out, measurement_id)
     load_after = os.getloadavg()
     t_typer, t_plot = statistics.median(typer_s), statistics.median(plot_s)
@@ -177,6 +182,9 @@ def main() -> None:
     print(f"python -c 'import typer'         {t_typer:.3f} s")
     print(f"fluxledger plot eyring (PNG)      {t_plot:.3f} s   ratio {t_plot / t_typer:.1f}x")
     print(f"floor: numpy + Figure/Agg, 1 PNG  {t_floor:.3f} s   ratio {t_floor / t_typer:.1f}x")
+    for name, runs in (("print, single column, 600 dpi PNG", print_s), ("print, PDF", pdf_s)):
+        t = statistics.median(runs)
+        print(f"plot eyring --style {name}: {t:.3f} s   ratio to the screen PNG {t / t_plot:.2f}x")
     print(f"modules the plot command imports: {', '.join(heavy) or 'none of the heavy ones'}")
     print(
         "load average (1/5/15 min) before: "

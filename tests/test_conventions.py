@@ -394,7 +394,11 @@ def test_repeat_rule_moves_dg_with_ds(database: Database) -> None:
     assert [f for f in found if f.rule_id == "repeat-disagrees"] == []
     third = add(database, compound="CV-REP", method="lineshape", dg="72.7 kJ/mol", dg_t="300 K")
     found = check_measurements(database, [third]).findings
-    hits = [f for f in found if f.rule_id == "repeat-disagrees" and f.measurement_id == third]
+    hits = [
+        f
+        for f in found
+        if f.rule_id == "repeat-disagrees" and f.measurement_id == third and f.severity == "warning"
+    ]  # (a note says it was not compared with the 340 K one)
     (f,) = hits
     assert f.reported == pytest.approx(72.7)
     # measurement 2 moved from 340 to 300 K with ΔS‡ of measurement 1: 70.2 − 40·0.030 = 69.0
@@ -405,11 +409,13 @@ def test_repeats_far_apart_without_entropy_are_not_compared(database: Database) 
     a = add(database, compound="CV-FAR", method="lineshape", dg="60.0 kJ/mol", dg_t="250 K")
     b = add(database, compound="CV-FAR", method="lineshape", dg="66.0 kJ/mol", dg_t="350 K")
     found = check_measurements(database, [a, b]).findings
-    assert [f for f in found if f.rule_id == "repeat-disagrees"] == []
+    repeats = [f for f in found if f.rule_id == "repeat-disagrees"]
+    assert {(f.measurement_id, f.severity) for f in repeats} == {(a, "note"), (b, "note")}
+    assert "100 K apart" in repeats[0].message  # not compared, and said so
     # 15 K apart without ΔS‡: compared, with 15 K × 10 J/(mol·K) = 0.15 kJ/mol more room
     c = add(database, compound="CV-FAR", method="lineshape", dg="61.1 kJ/mol", dg_t="265 K")
     found = check_measurements(database, [c]).findings
-    assert [f for f in found if f.rule_id == "repeat-disagrees"] == []
+    assert [f for f in found if f.rule_id == "repeat-disagrees" and f.severity != "note"] == []
 
 
 # ---------------------------------------------------------------- solvents
@@ -460,3 +466,37 @@ def test_find_at_a_common_temperature(database: Database) -> None:
     assert [r["id"] for r in every.rows] == [low, high]
     with pytest.raises(FluxledgerError):
         api.find(database, smarts="C(=O)N", at="-5 K")
+
+
+def _eyring_k(t: float, dh_kj: float, ds_j: float, kappa: float = 1.0) -> float:
+    """k = κ·(k_B·T/h)·exp(ΔS‡/R)·exp(−ΔH‡/RT) (Eyring 1935) with CODATA constants."""
+    return kappa * C.k * t / C.h * math.exp(ds_j / C.R) * math.exp(-dh_kj * 1000 / (C.R * t))
+
+
+@pytest.mark.parametrize(("recorded", "flagged"), [("0.1", False), (None, True)])
+def test_the_refit_uses_the_recorded_kappa(
+    database: Database, recorded: str | None, flagged: bool
+) -> None:
+    """Rate points made with κ = 0.1 and ΔH‡ 60 kJ/mol, ΔS‡ −10 J/(mol·K): with κ recorded the
+    reported values match the refit; without it the refit's ΔS‡ is lower by R·ln 10 =
+    19.1 J/(mol·K) (CODATA R) and the rule says so."""
+    rates = [
+        (f"{t} K", f"{_eyring_k(t, 60.0, -10.0, 0.1)!r} s-1") for t in (250, 260, 270, 280, 290)
+    ]
+    mid = api.add_measurement(database, {"method": "lineshape", "compound": "K1", "dh": "60 kJ/mol",
+        "ds": "-10 J/(mol K)", "rates": rates, "kappa": recorded})  # fmt: skip
+    rules = {f["rule_id"] for f in api.get_measurement(database, mid)["findings"]}
+    assert ("activation-refit" in rules) is flagged
+
+
+def test_repeats_too_far_apart_in_temperature_are_said_not_compared(database: Database) -> None:
+    same = {"method": "lineshape", "compound": "R1", "process": "bond-rotation",
+            "solvent": "CDCl3"}  # fmt: skip
+    low = api.add_measurement(database, {**same, "label": "a", "dg": "60 kJ/mol", "dg_t": "250 K"})
+    high = api.add_measurement(database, {**same, "label": "b", "dg": "66 kJ/mol", "dg_t": "320 K"})
+    api.check(database)
+    notes = [f for f in api.get_measurement(database, high)["findings"]
+             if f["rule_id"] == "repeat-disagrees"]  # fmt: skip
+    assert [f["severity"] for f in notes] == ["note"]
+    assert f"not compared with measurement {low}" in notes[0]["message"]
+    assert "70 K apart" in notes[0]["message"]

@@ -126,7 +126,7 @@ def test_edit_with_the_same_value_writes_nothing(cli, db_path: Path) -> None:  #
     ("args", "code", "message"),
     [
         (["edit", "1", "--set", "dg=14"], 1, "error: dg: cannot read '14': no unit given; write one, e.g. '14 kJ/mol'\n"),
-        (["edit", "1", "--set", "colour=blue"], 2, "error: cannot edit 'colour'; editable fields: label, process, sites, nucleus, method, solvent, field, t_min, t_max, dg, dg_t, dh, ds, ea, log10_a, tc, dnu, j, population, direction, convention, degeneracy, kappa, order, concentration, calibration, dh_ds_corr, reference, status\n"),
+        (["edit", "1", "--set", "colour=blue"], 2, "error: cannot edit 'colour'; editable fields: label, process, sites, nucleus, method, solvent, field, t_min, t_max, dg, dg_t, dh, ds, ea, log10_a, tc, dnu, j, population, direction, convention, degeneracy, kappa, order, concentration, calibration, dh_ds_corr, theory, functional, basis, solvation, conformers, standard_state, reference, status\n"),
         (["edit", "1", "--set", "dg"], 2, "error: 'dg': write FIELD=VALUE, e.g. dg=\"14.5 kcal/mol\"\n"),
         (["edit", "1"], 2, "error: nothing to change; give at least one --set FIELD=VALUE\n"),
         (["edit", "1", "--set", "tc="], 1, "error: tc: missing: coalescence data needs both Tc and Δν\n"),

@@ -67,7 +67,7 @@ def test_eyring_from_a_stored_measurement(database, tmp_path: Path) -> None:  # 
     assert Path(drawn.file) == tmp_path / "e.png"
     assert (tmp_path / "e.png").read_bytes().startswith(PNG_MAGIC)
     assert drawn.source == f"measurement {mid}"
-    assert drawn.title == f"measurement {mid} — DEMO-E1 (N,N-dimethylacetamide)"
+    assert drawn.title == "DEMO-E1 (N,N-dimethylacetamide)"  # the compound, not a row number
     s = drawn.summary
     assert s.n_points == 6
     # exact Eyring rates: the straight line gives back ΔH‡ and ΔS‡ (to the 10 digits stored)
@@ -152,13 +152,13 @@ def test_eyring_bad_calls_are_usage_errors(tmp_path: Path, kwargs, message) -> N
 
 def test_eyring_output_is_checked_before_any_work(database, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
     mid = _with_rates(database)
-    with pytest.raises(UsageError, match=r"x\.jpg: write a \.png or \.svg file"):
+    with pytest.raises(UsageError, match=r"x\.jpg: write a \.png, \.svg or \.pdf file"):
         api.plot_eyring(database, measurement_id=mid, out=tmp_path / "x.jpg")
     missing = tmp_path / "no-such-folder" / "x.png"
     with pytest.raises(UsageError, match=r"folder .*no-such-folder does not exist"):
         api.plot_eyring(database, measurement_id=mid, out=missing)
     # the output is checked first: a bad suffix wins over a measurement that does not exist
-    with pytest.raises(UsageError, match=r"write a \.png or \.svg"):
+    with pytest.raises(UsageError, match=r"write a \.png, \.svg or \.pdf"):
         api.plot_eyring(database, measurement_id=999, out=tmp_path / "x.gif")
 
 
@@ -271,7 +271,8 @@ def test_coalescence_from_a_measurement(database, tmp_path: Path) -> None:  # ty
             "flagged": False,  # added unchecked: no finding
         },
     )
-    assert f"#{mid}" in (tmp_path / "m.svg").read_text(encoding="utf-8")
+    svg = (tmp_path / "m.svg").read_text(encoding="utf-8")
+    assert "DEMO-C1" in svg and f"#{mid}" not in svg  # the point says which compound
     by_name = api.plot_coalescence(database, out=tmp_path / "n.svg", barrier=66.0, dnu=0.2,
                                    compound="c1")  # fmt: skip
     assert [o["measurement_id"] for o in by_name.observed] == [mid]  # case-insensitive match
@@ -338,8 +339,8 @@ def test_overview(database, tmp_path: Path) -> None:  # type: ignore[no-untyped-
     assert len(every.groups) == 2
     with pytest.raises(UsageError, match="by 'colour': use kind, motif or auto"):
         api.plot_overview(database, out=tmp_path / "o.svg", by="colour")
-    with pytest.raises(UsageError, match=r"write a \.png or \.svg"):
-        api.plot_overview(database, out=tmp_path / "o.pdf", by="kind")
+    with pytest.raises(UsageError, match=r"write a \.png, \.svg or \.pdf"):
+        api.plot_overview(database, out=tmp_path / "o.eps", by="kind")
 
 
 def test_build_report_returns_what_it_wrote(database, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]

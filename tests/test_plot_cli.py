@@ -117,7 +117,7 @@ def test_eyring_errors(cli, filled, tmp_path: Path) -> None:  # type: ignore[no-
     suffix = cli("plot", "eyring", str(filled["rates"]), "-o", str(tmp_path / "x.jpg"))
     assert suffix.exit_code == 2
     assert suffix.stderr == (
-        f"error: {tmp_path / 'x.jpg'}: write a .png or .svg file (the suffix chooses the format)\n"
+        f"error: {tmp_path / 'x.jpg'}: write a .png, .svg or .pdf file (the suffix chooses the format)\n"
     )
     unit = cli("plot", "eyring", str(filled["rates"]), "-o", "x.svg", "--energy-unit", "eV")
     assert unit.exit_code == 2 and "use kJ/mol or kcal/mol" in unit.stderr
@@ -137,7 +137,8 @@ def test_coalescence_from_a_measurement(cli, filled, tmp_path: Path) -> None:  #
     # chloroform boils at 61 °C (CRC Handbook): a predicted Tc above it brings the caution
     above = max(data["tc_range_k"]) > 273.15 + 61.0
     assert above == any("pressure-rated sealed" in c for c in data["cautions"])
-    assert "#" + str(filled["coalescence"]) in out.read_text(encoding="utf-8")
+    svg = out.read_text(encoding="utf-8")
+    assert ">DEMO-P2<" in svg  # the observed point is labelled with its compound
 
 
 def test_coalescence_cautions_above_the_boiling_point(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
@@ -259,4 +260,7 @@ def test_plot_eyring_as_a_real_process(cli, filled, db_path: Path, tmp_path: Pat
         capture_output=True, text=True, timeout=120,
     )  # fmt: skip
     assert bad.returncode == 2
-    assert bad.stderr == "error: x.gif: write a .png or .svg file (the suffix chooses the format)\n"
+    assert (
+        bad.stderr
+        == "error: x.gif: write a .png, .svg or .pdf file (the suffix chooses the format)\n"
+    )

@@ -96,8 +96,8 @@ def test_eyring_figure_files_by_suffix(tmp_path: Path) -> None:
     assert f"ΔH‡ = {dh_kcal:.1f}" in svg or f"ΔH‡ = {dh_kcal:.2f}" in svg
     assert "ΔG‡(298.15 K) = " in svg and "mean T" in svg
     assert "95 % confidence band of the line" in svg
-    with pytest.raises(UsageError, match=r"\.png or \.svg"):
-        canvas.save_figure(fig, tmp_path / "e.pdf")
+    with pytest.raises(UsageError, match=r"\.png, \.svg or \.pdf"):
+        canvas.save_figure(fig, tmp_path / "e.eps")
     with pytest.raises(UsageError, match="does not exist"):
         canvas.save_figure(fig, tmp_path / "missing" / "e.svg")
 

@@ -329,6 +329,11 @@ def test_index_loads_clean_filters_and_sorts(browser: Browser, built, tmp_path: 
     )
     assert browser.problems(mark) == []
     assert browser.js("window.fluxErrors.length") == 0
+    heads = browser.js(
+        "[...document.querySelectorAll('#measurements thead th')].map(h => h.textContent)"
+    )
+    assert heads[-2:] == ["Operator", "notebook page"]  # the group's own columns, as asked
+    assert str(out.parent) not in browser.js("document.body.innerText")  # no machine path
 
 
 def test_filter_from_the_address(browser: Browser, built) -> None:  # type: ignore[no-untyped-def]
@@ -364,6 +369,24 @@ def test_compound_page_shows_structure_and_plot(browser: Browser, built, tmp_pat
     browser.open((out / "compounds" / f"c{nitro}.html").as_uri())
     assert browser.js("document.querySelector('#structure svg')") is None
     assert "stored unsanitized" in browser.js("document.getElementById('structure').textContent")
+
+    # no machine path anywhere a reader sees; the group's own columns are on the page
+    seen = browser.js("document.body.innerText")
+    assert str(out.parent) not in seen and "registry.sqlite" in seen
+    dma = api.get_measurement(database, ids["dma"])["compound"]["id"]
+    browser.open((out / "compounds" / f"c{dma}.html").as_uri())
+    seen = browser.js("document.body.innerText")
+    assert "Kept with this entry" in seen and "NB-7 p. 12" in seen and "A. Demo" in seen
+    assert str(out.parent) not in seen
+    # printed: white paper, the rate points unfolded, no filter box
+    browser.call("Emulation.setEmulatedMedia", {"media": "print"}, session=True)
+    try:
+        paper = browser.js("getComputedStyle(document.body).backgroundColor")
+        assert paper == "rgb(255, 255, 255)", paper  # on screen it is the cream paper
+        browser.screenshot(tmp_path / "compound-print.png")
+    finally:
+        browser.call("Emulation.setEmulatedMedia", {"media": ""}, session=True)
+    assert browser.problems(mark) == []
 
     browser.click("header.band a")  # back to the index from a compound page
     browser.wait_event("Page.loadEventFired", len(browser.events) - 1)

@@ -18,12 +18,13 @@ Grouped by what they act on:
 * ``values``    — :func:`read_value`, :func:`convert`, :func:`canonical_unit`
 * ``lineshape`` — :func:`simulate_lineshape`, :func:`fit_lineshapes`, :func:`value_with_error_text`
 * ``figures``   — :func:`plot_eyring`, :func:`plot_coalescence`, :func:`plot_overview`,
-  :func:`build_report`
+  :func:`build_report`; ``paper_tables`` — :func:`export_si_table`
 * ``calc``      — :func:`calc_coalescence`, :func:`calc_eyring`, :func:`calc_rate`,
   :func:`calc_halflife`, :func:`calc_plan`, :func:`calc_exsy`, :func:`calc_transfer`,
   :func:`calc_timecourse` (kinetics at the bench, no database)
 * ``files``     — :func:`import_table`, :func:`export_measurements` (csv, xlsx, ods, SD files)
 * ``structures`` — :func:`smiles_from_molfile` (a Molfile read into the SMILES ``add`` takes)
+* ``comparison`` — :func:`compare_computed` (computed barriers against measured ones)
 * ``estimate``  — :func:`estimate_barrier` (a barrier from the nearest measured compounds, and a plan)
 * ``search``    — :func:`find`, :func:`motif_matches`, :func:`list_motifs`, :func:`get_motif`,
   :func:`add_motif`, :func:`add_motifs_from_file`, :func:`remove_motif`, :func:`motif_database`
@@ -53,10 +54,12 @@ from registry.api.calc import (
     calc_transfer,
 )
 from registry.api.checks import accept_finding, check
+from registry.api.comparison import Comparison, compare_computed
 from registry.api.estimate import BarrierEstimate, estimate_barrier
 from registry.api.figures import build_report, plot_coalescence, plot_eyring, plot_overview
 from registry.api.files import export_measurements, import_table
 from registry.api.lineshape import fit_lineshapes, simulate_lineshape, value_with_error_text
+from registry.api.paper_tables import export_si_table
 from registry.api.records import (
     add_measurement,
     add_rate_points,
@@ -98,6 +101,7 @@ from registry.storage.database import Database, take_warnings
 __all__ = [
     "TABLE_COLUMNS",
     "BarrierEstimate",
+    "Comparison",
     "Database",
     "accept_finding",
     "actor_name",
@@ -120,12 +124,14 @@ __all__ = [
     "calc_transfer",
     "canonical_unit",
     "check",
+    "compare_computed",
     "convert",
     "deferred_checks",
     "edit_measurement",
     "enable_server_search",
     "estimate_barrier",
     "export_measurements",
+    "export_si_table",
     "find",
     "fit_lineshapes",
     "get_measurement",

@@ -23,16 +23,14 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from registry.api.figure_inputs import RatePointInput, barrier_and_shift, number, read_points
 from registry.errors import UsageError
 
 if TYPE_CHECKING:
-    from registry.reports.gather import RateSeries
+    from registry.reports.gather import BarrierGroups, RateSeries
     from registry.reports.plots import EyringSummary
     from registry.reports.site import ReportResult
     from registry.storage.database import Database
-
-#: a rate point given by a caller: ``"T, k"`` / ``"T; k; σk"`` text, or (T/K, k/s⁻¹[, σk/s⁻¹])
-RatePointInput = str | Sequence[float | None]
 
 
 def _as_dict(record: Any) -> dict[str, Any]:
@@ -96,9 +94,14 @@ def plot_eyring(
     t_ref: float | str | None = None,
     title: str | None = None,
     energy_unit: str = "kJ/mol",
+    style: str = "screen",
+    size: str | tuple[float, float] | None = None,
+    dpi: int | None = None,
 ) -> EyringPlot:
     """ln(k/T) against 1/T with the weighted fit, its 95 % band, ΔH‡, ΔS‡ and ΔG‡ (at the mean
-    measured T and at ``t_ref``, default 25 °C), written to ``out`` (.png or .svg).
+    measured T and at ``t_ref``, default 25 °C), written to ``out`` (.png, .svg or .pdf).
+    ``style`` (screen or print), ``size`` (single, double or 'W×H' inches) and ``dpi``: see
+    :func:`registry.reports.style.figure_style`.
 
     The rate points come from exactly one of: a stored measurement (``measurement_id``, needs
     ``database``), ``points`` (texts ``'T, k'`` / ``'T; k; σk'`` or tuples in K and s⁻¹), or a
@@ -106,9 +109,11 @@ def plot_eyring(
     spreadsheet). σk weights the fit only when every point has one.
     """
     from registry.reports import canvas, plots
+    from registry.reports.style import figure_style
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
+    look = figure_style(style, size=size, dpi=dpi)
     canvas.check_output(out, protect=database.path if database else None)
     series, source = _rate_series(database, measurement_id, points, file, sheet)
     from registry.kinetics import fit_eyring
@@ -116,15 +121,16 @@ def plot_eyring(
 
     t_ref_k = STANDARD_TEMPERATURE_K
     if t_ref is not None:
-        t_ref_k = _number(t_ref, "temperature", "t_ref", default_unit="K")[0]
+        t_ref_k = number(t_ref, "temperature", "t_ref", default_unit="K")[0]
 
     fit = fit_eyring(series.t_k, series.k_per_s, series.k_err_per_s, t_ref_k=t_ref_k)
     shown = series.title if title is None else title
     drawn_title = f"{shown} — flagged: an error finding is open" if series.open_errors else shown
     fig, summary = plots.eyring_figure(
-        fit, title=drawn_title, energy_unit=unit, t_ref_k=t_ref_k, k_err_per_s=series.k_err_per_s
-    )
-    written = canvas.save_figure(fig, out)
+        fit, title=drawn_title, energy_unit=unit, t_ref_k=t_ref_k,
+        k_err_per_s=series.k_err_per_s, style=look,
+    )  # fmt: skip
+    written = canvas.save_figure(fig, out, style=look)
     return EyringPlot(
         str(written), source, shown, unit, summary, tuple(plots.eyring_text(summary, unit)),
         series.open_errors,
@@ -163,52 +169,8 @@ def _rate_series(
         table = read_rate_table(file, sheet=sheet)
         series = gather.RateSeries(table.t_k, table.k_per_s, table.k_err_per_s, Path(file).name)
         return series, str(file)
-    t, k, k_err = _read_points(points or [])
+    t, k, k_err = read_points(points or [])
     return gather.series_from_points(t, k, k_err, f"{len(t)} rate points"), "points"
-
-
-def _read_points(
-    points: Sequence[RatePointInput],
-) -> tuple[list[float], list[float], list[float | None]]:
-    """Texts through the rate-point reader (units), tuples as K and s⁻¹; σk for all or none."""
-    t: list[float] = []
-    k: list[float] = []
-    errs: list[float | None] = []
-    for i, point in enumerate(points, start=1):
-        if isinstance(point, str):
-            from registry.kinetics.rate_table import parse_point
-
-            ti, ki, ei = parse_point(point, field=f"points[{i}]")
-        else:
-            values = list(point)
-            if len(values) not in (2, 3):
-                raise UsageError(f"points[{i}] {point!r}: give (T in K, k in s⁻¹) or (T, k, σk)")
-            ti, ki = float(values[0]), float(values[1])  # type: ignore[arg-type]
-            ei = float(values[2]) if len(values) == 3 and values[2] is not None else None
-        t.append(ti)
-        k.append(ki)
-        errs.append(ei)
-    if len(t) < 2:
-        raise UsageError(f"points: {len(t)} rate point(s); an Eyring plot needs at least 2")
-    if any(e is None for e in errs) and not all(e is None for e in errs):
-        raise UsageError("points: σk is given for some points but not all; give all or none")
-    return t, k, errs
-
-
-def _number(
-    value: float | str, quantity: str, name: str, *, default_unit: str | None = None
-) -> tuple[float, float | None]:
-    """A float (canonical unit) as is; a text read by the unit registry. (value, error)."""
-    if isinstance(value, bool):
-        raise UsageError(f"{name} {value!r}: give a number or a text with a unit")
-    if isinstance(value, (int, float)):
-        return float(value), None
-    if not isinstance(value, str):
-        raise UsageError(f"{name} {value!r}: give a number or a text with a unit")
-    from registry.record.units import parse_value
-
-    parsed = parse_value(value, quantity, field=name, default_unit=default_unit)
-    return parsed.value, parsed.error
 
 
 # ---------------------------------------------------------------- coalescence
@@ -251,6 +213,9 @@ def plot_coalescence(
     max_field: float | str = 1000.0,
     title: str | None = None,
     energy_unit: str = "kJ/mol",
+    style: str = "screen",
+    size: str | tuple[float, float] | None = None,
+    dpi: int | None = None,
 ) -> CoalescencePlot:
     """Predicted coalescence temperature against spectrometer field (Gutowsky–Holm k_c with
     Eyring), the observed Tc of a measurement or of compounds, and the solvent's liquid range.
@@ -259,17 +224,20 @@ def plot_coalescence(
     the field it was measured at) and ``j`` (Hz) default to the values stored with
     ``measurement_id``; ``compound`` marks the observed Tc of compounds whose label or name
     contains it; ``solvent`` (default: the measurement's) shades temperatures outside its
-    liquid range. Looking anything up needs ``database``.
+    liquid range. Looking anything up needs ``database``. ``style``, ``size``, ``dpi``: as
+    for :func:`plot_eyring`.
     """
     import numpy as np
 
     from registry.reports import canvas, coalescence_plot, gather
+    from registry.reports.style import figure_style
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
+    look = figure_style(style, size=size, dpi=dpi)
     canvas.check_output(out, protect=database.path if database else None)
-    lo = _number(min_field, "field", "min_field", default_unit="MHz")[0]
-    hi = _number(max_field, "field", "max_field", default_unit="MHz")[0]
+    lo = number(min_field, "field", "min_field", default_unit="MHz")[0]
+    hi = number(max_field, "field", "max_field", default_unit="MHz")[0]
     if not 0 < lo < hi:
         raise UsageError(f"min_field {lo:g} MHz must be above 0 and below max_field ({hi:g} MHz)")
     for name, value in (("measurement_id", measurement_id), ("compound", compound),
@@ -277,7 +245,7 @@ def plot_coalescence(
         if database is None and value is not None:
             raise UsageError(f"{name}: looking it up needs an open registry (database)")
     observed, own = _observed(database, measurement_id, compound)
-    dg, dg_err, dnu_ppm, j_hz = _barrier_and_shift(own, barrier, dnu, dnu_field, j)
+    dg, dg_err, dnu_ppm, j_hz = barrier_and_shift(own, barrier, dnu, dnu_field, j)
     solvent = solvent or own.get("solvent_text")
     solvent_info = gather.solvent_range(database, solvent) if database and solvent else None
     notes = _flagged_points(observed, own)
@@ -287,21 +255,45 @@ def plot_coalescence(
         dg, dnu_ppm, np.linspace(lo, hi, 240), dg_err_kj_mol=dg_err, j_hz=j_hz
     )
     fig = coalescence_plot.coalescence_figure(
-        prediction, observed=observed, solvent=solvent_info, title=title, energy_unit=unit
+        prediction, observed=observed, solvent=solvent_info, title=title, energy_unit=unit,
+        style=look,
+    )  # fmt: skip
+    written = canvas.save_figure(fig, out, style=look)
+    return _coalescence_record(
+        str(written), prediction, (lo, hi), observed, solvent_info, notes, j_hz
     )
-    written = canvas.save_figure(fig, out)
+
+
+def _coalescence_record(
+    file: str,
+    prediction: Any,
+    field_range: tuple[float, float],
+    observed: Sequence[Mapping[str, Any]],
+    solvent_info: dict[str, Any] | None,
+    notes: list[str],
+    j_hz: float,
+) -> CoalescencePlot:
+    """What was drawn, with Tc at the usual spectrometer fields inside the range."""
+    import numpy as np
+
+    from registry.reports import coalescence_plot
+
+    p = prediction
+    lo, hi = field_range
     fields = [f for f in coalescence_plot.COMMON_FIELDS_MHZ if lo <= f <= hi]
     at_fields = (
-        coalescence_plot.predict_coalescence(dg, dnu_ppm, fields, j_hz=j_hz).tc_k if fields else []
+        coalescence_plot.predict_coalescence(p.dg_kj_mol, p.dnu_ppm, fields, j_hz=j_hz).tc_k
+        if fields
+        else []
     )
     return CoalescencePlot(
-        file=str(written),
-        dg_kj_mol=float(dg),
-        dg_err_kj_mol=dg_err,
-        dnu_ppm=float(dnu_ppm),
+        file=file,
+        dg_kj_mol=float(p.dg_kj_mol),
+        dg_err_kj_mol=p.dg_err_kj_mol,
+        dnu_ppm=float(p.dnu_ppm),
         j_hz=j_hz,
         field_range_mhz=(lo, hi),
-        tc_range_k=(float(np.nanmin(prediction.tc_k)), float(np.nanmax(prediction.tc_k))),
+        tc_range_k=(float(np.nanmin(p.tc_k)), float(np.nanmax(p.tc_k))),
         predicted=tuple(
             {"field_mhz": f, "tc_k": float(t), "tc_c": float(t) - 273.15}
             for f, t in zip(fields, at_fields, strict=True)
@@ -313,7 +305,7 @@ def plot_coalescence(
         ),
         solvent=solvent_info,
         notes=tuple(notes),
-        cautions=tuple(_cautions(prediction.tc_k, solvent_info)),
+        cautions=tuple(_cautions(p.tc_k, solvent_info)),
     )
 
 
@@ -342,31 +334,6 @@ def _flagged_points(observed: Sequence[Mapping[str, Any]], own: Mapping[str, Any
     ]
 
 
-def _barrier_and_shift(
-    own: Mapping[str, Any],
-    barrier: float | str | None,
-    dnu: float | str | None,
-    dnu_field: float | str | None,
-    j: float | str | None,
-) -> tuple[float, float | None, float, float]:
-    """ΔG‡ (and its error), Δν in ppm and J in Hz: as given, else the measurement's."""
-    dg, dg_err = own.get("dg_kj_mol"), own.get("dg_err_kj_mol")
-    if barrier is not None:
-        dg, dg_err = _number(barrier, "energy", "barrier")
-    dnu_ppm = _dnu_ppm(dnu, dnu_field) if dnu is not None else own.get("dnu_ppm")
-    j_hz = _number(j, "frequency", "j", default_unit="Hz")[0] if j is not None else None
-    if dg is None:
-        raise UsageError("barrier: give ΔG‡, or a measurement with a stored ΔG‡")
-    if dnu_ppm is None:
-        raise UsageError("dnu: give Δν, or a measurement with a stored coalescence Δν and field")
-    return (
-        float(dg),
-        dg_err,
-        float(dnu_ppm),
-        float(j_hz if j_hz is not None else own.get("j_hz") or 0.0),
-    )
-
-
 def _cautions(tc_k: Any, solvent: Mapping[str, Any] | None) -> list[str]:
     """The usual cautions (pressure-rated sealed tube above the boiling point, freezing, heat,
     cryogens); they defer to the facility's rules."""
@@ -379,31 +346,6 @@ def _cautions(tc_k: Any, solvent: Mapping[str, Any] | None) -> list[str]:
     )
 
 
-def _dnu_ppm(dnu: float | str, dnu_field: float | str | None) -> float:
-    """Δν in ppm; a frequency needs the field it was measured at (Δν in Hz scales with field)."""
-    if isinstance(dnu, (int, float)) and not isinstance(dnu, bool):
-        if dnu <= 0:
-            raise UsageError(f"dnu {dnu!r}: Δν must be > 0 (ppm)")
-        return float(dnu)
-    if not isinstance(dnu, str):
-        raise UsageError(f"dnu {dnu!r}: give Δν in ppm or a text with a unit")
-    from registry.record.units import parse_value
-
-    # read at a nominal 1 MHz: a value in ppm comes back as Hz per MHz, i.e. in ppm
-    parsed = parse_value(dnu, "shift", field="dnu", spectrometer_mhz=1.0)
-    if parsed.unit.strip().lower() == "ppm":
-        return parsed.value
-    if dnu_field is None:
-        raise UsageError(
-            f"dnu {dnu!r}: a Δν in Hz holds at one field only; give the field it was measured"
-            " at (dnu_field, e.g. '400 MHz') or Δν in ppm"
-        )
-    field_mhz = _number(dnu_field, "field", "dnu_field", default_unit="MHz")[0]
-    if field_mhz <= 0:
-        raise UsageError(f"dnu_field {dnu_field!r}: the field must be > 0")
-    return parsed.value / field_mhz
-
-
 # ---------------------------------------------------------------- overview
 
 
@@ -411,7 +353,9 @@ def _dnu_ppm(dnu: float | str, dnu_field: float | str | None) -> float:
 class OverviewPlot:
     """What :func:`plot_overview` drew: the grouping and each group's size, range (kJ/mol) and
     flagged values drawn; ``left_out_flagged`` flagged values were not drawn, nor
-    ``left_out_not_finite`` stored values that are not finite (inf or nan)."""
+    ``left_out_not_finite`` stored values that are not finite (inf or nan). ``measurements``
+    were drawn as ``points`` points: the same number unless ``motif_overlap`` (then
+    ``shared`` measurements whose compound matches several motifs are drawn under each)."""
 
     file: str
     grouped_by: str
@@ -419,9 +363,14 @@ class OverviewPlot:
     include_flagged: bool = False
     left_out_flagged: int = 0
     left_out_not_finite: int = 0
+    measurements: int = 0
+    points: int = 0
+    shared: int = 0
+    motif_overlap: bool = False
+    notes: tuple[str, ...] = ()
 
     def as_dict(self) -> dict[str, Any]:
-        return {**_as_dict(self), "groups": list(self.groups)}
+        return {**_as_dict(self), "groups": list(self.groups), "notes": list(self.notes)}
 
 
 def plot_overview(
@@ -431,46 +380,74 @@ def plot_overview(
     by: str = "auto",
     include_retracted: bool = False,
     include_flagged: bool = False,
+    motif_overlap: bool = False,
     title: str | None = None,
     energy_unit: str = "kJ/mol",
+    style: str = "screen",
+    size: str | tuple[float, float] | None = None,
+    dpi: int | None = None,
 ) -> OverviewPlot:
-    """ΔG‡ of every measurement, grouped, as boxes (≥ 3 values) and points.
+    """ΔG‡ of every measurement, grouped: every value a point, a box for groups of ≥ 5.
 
     ``by``: ``'kind'`` (process kind), ``'motif'`` (structural motif; needs motif matching),
-    or ``'auto'`` (motif when available, else kind). Flagged values (an error finding nobody
-    accepted) are left out unless ``include_flagged``; then they are drawn as crosses.
+    or ``'auto'`` (motif when available, else kind). Each measurement is drawn once; by motif
+    a compound matching several motifs goes under the narrowest, unless ``motif_overlap``
+    (then under each, and the figure says so). Flagged values (an error finding nobody
+    accepted, the rule of the listings) are left out unless ``include_flagged``; then they
+    are drawn as crosses. ``style``, ``size``, ``dpi``: as for :func:`plot_eyring`.
     """
     from registry.reports import canvas, gather, plots
+    from registry.reports.style import figure_style
     from registry.reports.tables import energy_unit_name
 
     unit = energy_unit_name(energy_unit)
+    look = figure_style(style, size=size, dpi=dpi)
     canvas.check_output(out, protect=database.path)
     if by not in ("auto", "kind", "motif"):
         raise UsageError(f"by {by!r}: use kind, motif or auto")
+    if motif_overlap and by == "kind":
+        raise UsageError("motif_overlap: applies to grouping by motif only")
     groups = None
     grouping = "process kind"
     chosen = {"include_retracted": include_retracted, "include_flagged": include_flagged}
     if by in ("auto", "motif"):
-        groups = gather.barriers_by_motif(database, **chosen)
+        groups = gather.barriers_by_motif(database, overlap=motif_overlap, **chosen)
         if groups is None and by == "motif":
             raise UsageError("by 'motif': motif matching is not available here; use kind")
         if groups is not None:
             grouping = "structural motif"
     if groups is None:
         groups = gather.barriers_by_kind(database, **chosen)
+    notes = _overview_notes(groups)
     fig = plots.overview_figure(
         groups.values, flagged=groups.flagged, energy_unit=unit, group_title=grouping,
-        title=title,
+        title=title, note=notes[0] if notes else None, style=look,
     )  # fmt: skip
-    written = canvas.save_figure(fig, out)
+    written = canvas.save_figure(fig, out, style=look)
     rows = tuple(
         {"group": g, "n": len(v), "min_kj_mol": min(v), "max_kj_mol": max(v),
          "flagged": sum(groups.flagged[g])}
         for g, v in groups.values.items()
     )  # fmt: skip
     return OverviewPlot(
-        str(written), grouping, rows, include_flagged, groups.left_out, groups.not_finite
-    )
+        str(written), grouping, rows, include_flagged, groups.left_out, groups.not_finite,
+        groups.measurements, groups.points, groups.shared, groups.overlap, tuple(notes),
+    )  # fmt: skip
+
+
+def _overview_notes(groups: BarrierGroups) -> list[str]:
+    """How shared motifs were counted (the first note is also written on the figure)."""
+    if not groups.shared:
+        return []
+    if groups.overlap:
+        return [
+            f"motifs overlap: {groups.shared} of {groups.measurements} measurements match"
+            f" several motifs and are drawn under each ({groups.points} points)"
+        ]
+    return [
+        f"each measurement drawn once: {groups.shared} whose compound matches several motifs"
+        " are under the narrowest"
+    ]
 
 
 # ---------------------------------------------------------------- the HTML report
@@ -484,15 +461,19 @@ def build_report(
     include_retracted: bool = False,
     include_flagged: bool = False,
     plots: bool = True,
+    columns: Sequence[str] = (),
 ) -> ReportResult:
     """Write the static HTML report: a filterable, sortable index, a page per compound with its
     structure, measurements, findings and Eyring plots, and a ΔG‡ overview. ``plots=False``
     skips the figures (much faster on big registries). Only our own files are ever replaced.
     Flagged measurements are listed and marked; their ΔG‡ is left out of the overview and the
-    per-compound ranges unless ``include_flagged``."""
+    per-compound ranges unless ``include_flagged``. Pages name the registry by its file name
+    (or server database name), never by a path; each measurement page shows the group's own
+    columns kept with it (operator, notebook page, comments …), and ``columns`` adds some of
+    them to the index table."""
     from registry.reports.site import build_report as write
 
     return write(
         database, out_dir, title=title, include_retracted=include_retracted,
-        include_flagged=include_flagged, plots=plots,
+        include_flagged=include_flagged, plots=plots, columns=tuple(columns),
     )  # fmt: skip

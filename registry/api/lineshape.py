@@ -112,6 +112,10 @@ def fit_lineshapes(
     coupling: Quantity | None = None,
     fit_coupling: bool = False,
     store_doubtful: bool = False,
+    plot_format: str = "png",
+    plot_style: str = "screen",
+    plot_size: str | tuple[float, float] | None = None,
+    plot_dpi: int | None = None,
 ) -> LineShapeAnalysis:
     """Fit the exchange rate k to each spectrum (one per temperature) and analyse the rates.
 
@@ -124,7 +128,9 @@ def fit_lineshapes(
     ``global_fit`` also fits ΔH‡ and ΔS‡ to all spectra at once; ``plots_dir`` gets a PNG per
     spectrum and ``eyring.png``. With ``database`` and ``measurement_id`` the per-temperature
     rates are added to that measurement as rate points (one transaction, in its history).
-    ``solvent_bp`` (K unless written) sharpens the safety cautions.
+    ``solvent_bp`` (K unless written) sharpens the safety cautions. The plots are
+    ``plot_format`` (png, svg, pdf) in the one figure style (``plot_style`` screen or print,
+    ``plot_size``, ``plot_dpi``: see :func:`registry.reports.style.figure_style`).
 
     Two sites may drift with temperature. ``shifts_mode`` (Δν; the centre is always fitted) and
     ``populations_mode`` are each ``'auto'`` (fitted in each spectrum that determines them, tied
@@ -138,6 +144,11 @@ def fit_lineshapes(
     ``problems``) are not stored unless ``store_doubtful``.
     """
     # long: the docstring names every argument; the body reads them and calls the workflow
+    from registry.reports.style import figure_style
+
+    look = figure_style(plot_style, size=plot_size, dpi=plot_dpi)
+    if plot_format not in ("png", "svg", "pdf"):
+        raise UsageError(f"plot_format {plot_format!r}: use png, svg or pdf")
     from registry.lineshape import inputs, workflow
     from registry.lineshape.series import SiteOptions
 
@@ -172,6 +183,7 @@ def fit_lineshapes(
     result = workflow.analyse(
         spectra, model, mhz, options=options, window_hz=window_hz, global_fit=global_fit,
         plots_dir=plots_dir, solvent_bp_k=bp_k, store_doubtful=store_doubtful,
+        plot_style=look, plot_format=plot_format,
     )  # fmt: skip
     if measurement_id is None:
         return result

@@ -130,6 +130,16 @@ def add(
     dh_ds_corr: str = typer.Option(
         None, "--dh-ds-corr", help="Correlation of ΔH‡ and ΔS‡ from their fit (−1 … 1)."
     ),
+    theory: str = typer.Option(
+        None, help="Computed barrier: level of theory as written, e.g. 'ωB97X-D/def2-TZVP, SMD'."
+    ),
+    functional: str = typer.Option(None, help="Computed: electronic-structure method."),
+    basis: str = typer.Option(None, help="Computed: basis set."),
+    solvation: str = typer.Option(None, help="Computed: solvation model, e.g. 'SMD(CHCl3)'."),
+    conformers: str = typer.Option(None, help="Computed: how conformers were treated."),
+    standard_state: str = typer.Option(
+        None, "--standard-state", help="Computed: 1 M, 1 atm or 1 bar."
+    ),
     t_min: str = typer.Option(None, "--t-min", help="Lowest temperature measured."),
     t_max: str = typer.Option(None, "--t-max", help="Highest temperature measured."),
     rate: list[str] = typer.Option(
@@ -159,7 +169,9 @@ def add(
         log10_a=log10_a, tc=tc, dnu=dnu, j=j, population=population, t_min=t_min, t_max=t_max,
         direction=direction, convention=convention, degeneracy=degeneracy, kappa=kappa,
         order=order, concentration=concentration, calibration=calibration,
-        dh_ds_corr=dh_ds_corr, reference=reference, label=label, status=status, rates=rates,
+        dh_ds_corr=dh_ds_corr, theory=theory, functional=functional, basis=basis,
+        solvation=solvation, conformers=conformers, standard_state=standard_state,
+        reference=reference, label=label, status=status, rates=rates,
         units={"field": "MHz"},  # the option is --mhz/--field: a bare number means MHz
     )  # fmt: skip
     st = state(ctx)
@@ -315,6 +327,9 @@ def _recorded_lines(r: dict[str, Any]) -> list[str]:
     if rec["direction"]:
         extras.append(f"ΔG‡ {rec['direction']}")
     lines.append(f"  rate const.  {k}" + (f"; {', '.join(extras)}" if extras else ""))
+    lines += _theory_lines(r)
+    if r.get("method") == "computed":
+        return lines
     if rec["calibration"]:
         how = "default for it" if rec["calibration_default_sigma"] else "as stated"
         lines.append(
@@ -324,6 +339,18 @@ def _recorded_lines(r: dict[str, Any]) -> list[str]:
     else:
         lines.append("  T calibr.    not recorded")
     return lines
+
+
+_THEORY_SHOWN = (
+    ("theory_level", "theory"), ("theory_method", "  method"), ("theory_basis", "  basis"),
+    ("theory_solvation", "  solvation"), ("theory_conformers", "  conformers"),
+    ("standard_state", "std. state"),
+)  # fmt: skip
+
+
+def _theory_lines(r: dict[str, Any]) -> list[str]:
+    """How a computed barrier was computed (only what was recorded)."""
+    return [f"  {title:<13}{r[col]}" for col, title in _THEORY_SHOWN if r.get(col)]
 
 
 def list_cmd(

@@ -144,6 +144,14 @@ def fit(
     plots: Path = typer.Option(
         None, "--plots", help="Write a PNG per spectrum and an Eyring plot into this directory."
     ),
+    plot_format: str = typer.Option("png", "--plot-format", help="With --plots: png, svg or pdf."),
+    style: str = typer.Option(
+        "screen", "--style", help="With --plots: screen (150 dpi) or print (journal, 600 dpi)."
+    ),
+    size: str = typer.Option(
+        None, "--size", help="With --plots: single or double (journal column) or WxH inches."
+    ),
+    dpi: int = typer.Option(None, "--dpi", help="With --plots: dots per inch of a PNG."),
     measurement: int = typer.Option(
         None,
         "--measurement",
@@ -194,6 +202,7 @@ def fit(
             shifts_mode=shifts_mode, populations_mode=populations_mode, reference=reference,
             tie_width=tie_width, coupling=coupling, fit_coupling=fit_coupling,
             store_doubtful=store_doubtful,
+            plot_format=plot_format, plot_style=style, plot_size=size, plot_dpi=dpi,
         )  # fmt: skip
     finally:
         if database is not None:

@@ -104,6 +104,7 @@ _GROUPS: tuple[str, ...] = (
     "history",
     "maintenance",
     "calc",
+    "compare",
     "estimate",
     "lineshape",
     "plot",

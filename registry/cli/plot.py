@@ -1,4 +1,5 @@
-"""``fluxledger plot``: figures as PNG or SVG (the output file's suffix chooses).
+"""``fluxledger plot``: figures as PNG, SVG or PDF (the output file's suffix chooses), in the
+screen or print style, at a journal column's size or any size, at any dpi.
 
 Each command parses its options, calls one :mod:`registry.api` function and says what it wrote;
 ``--json`` prints the numbers drawn. The api is imported inside the commands (``--help`` stays fast); it loads matplotlib,
@@ -20,10 +21,22 @@ NAME = "plot"
 
 app = typer.Typer(
     no_args_is_help=True,
-    help="Figures, PNG or SVG by the output suffix: Eyring plots, Tc against field, overviews.",
+    help="Figures, PNG, SVG or PDF by the output suffix: Eyring plots, Tc against field, "
+    "overviews; --style print for journals.",
 )
 
-_OUT = typer.Option(..., "-o", "--out", help="Output file; .png or .svg chooses the format.")
+_OUT = typer.Option(..., "-o", "--out", help="Output file; .png, .svg or .pdf chooses the format.")
+_STYLE = typer.Option(
+    "screen",
+    "--style",
+    help="screen (our colours, 150 dpi) or print (white, journal type sizes, 600 dpi).",
+)
+_SIZE = typer.Option(
+    None,
+    "--size",
+    help="single or double (journal column, 3.3 or 7 in wide) or WxH in inches, e.g. 3.3x2.5.",
+)
+_DPI = typer.Option(None, "--dpi", help="Dots per inch of a PNG (default: 150 screen, 600 print).")
 _JSON = typer.Option(False, "--json", help="Print what was drawn as JSON (canonical units).")
 _UNIT = typer.Option(
     "kJ/mol", "--energy-unit", help="Energy unit written on the figure: kJ/mol or kcal/mol."
@@ -52,12 +65,15 @@ def eyring(
     ),
     title: str = typer.Option(None, "--title", help="Figure title (default: what was plotted)."),
     energy_unit: str = _UNIT,
+    style: str = _STYLE,
+    size: str = _SIZE,
+    dpi: int = _DPI,
     as_json: bool = _JSON,
 ) -> None:
     """ln(k/T) against 1/T with the weighted fit, its 95 % confidence band, ΔH‡, ΔS‡ and ΔG‡."""
     from registry import api
 
-    options = dict(out=out, title=title, energy_unit=energy_unit)
+    options = dict(out=out, title=title, energy_unit=energy_unit, style=style, size=size, dpi=dpi)
     if t_ref is not None:
         options["t_ref"] = t_ref
     if point:
@@ -112,6 +128,9 @@ def coalescence(
     max_field: str = typer.Option("1000 MHz", "--max-field", help="Highest field drawn."),
     title: str = typer.Option(None, "--title", help="Figure title."),
     energy_unit: str = _UNIT,
+    style: str = _STYLE,
+    size: str = _SIZE,
+    dpi: int = _DPI,
     as_json: bool = _JSON,
 ) -> None:
     """Predicted coalescence temperature against spectrometer field, with observed points."""
@@ -134,6 +153,9 @@ def coalescence(
         max_field=max_field,
         title=title,
         energy_unit=energy_unit,
+        style=style,
+        size=size,
+        dpi=dpi,
     )
     if as_json:
         print_json(drawn.as_dict())
@@ -165,12 +187,21 @@ def overview(
         False, "--include-retracted", help="Plot retracted measurements too."
     ),
     include_flagged: bool = flags.include_option("the plot, drawn as crosses"),
+    motif_overlap: bool = typer.Option(
+        False,
+        "--motif-overlap",
+        help="By motif: draw a measurement under every motif its compound matches (default: "
+        "once, under the narrowest).",
+    ),
     title: str = typer.Option(None, "--title", help="Figure title."),
     energy_unit: str = _UNIT,
+    style: str = _STYLE,
+    size: str = _SIZE,
+    dpi: int = _DPI,
     as_json: bool = _JSON,
 ) -> None:
-    """ΔG‡ of every measurement, grouped, as boxes (≥ 3 values) and points; flagged values
-    are left out unless asked for."""
+    """ΔG‡ of every measurement, grouped: every value a point, a box for groups of ≥ 5;
+    each measurement once; flagged values are left out unless asked for."""
     from registry import api
 
     database = api.open_registry(state(ctx).db)
@@ -180,14 +211,20 @@ def overview(
         by=by,
         include_retracted=include_retracted,
         include_flagged=include_flagged,
+        motif_overlap=motif_overlap,
         title=title,
         energy_unit=energy_unit,
+        style=style,
+        size=size,
+        dpi=dpi,
     )
     if as_json:
         print_json(drawn.as_dict())
         return
-    total = sum(g["n"] for g in drawn.groups)
-    typer.echo(f"wrote {drawn.file}: ΔG‡ by {drawn.grouped_by}, {total} value(s)")
+    typer.echo(
+        f"wrote {drawn.file}: ΔG‡ by {drawn.grouped_by}, {drawn.measurements} measurement(s)"
+        + (f" as {drawn.points} points" if drawn.points != drawn.measurements else "")
+    )
     columns = ["group", "n", "min_kj_mol", "max_kj_mol"]
     typer.echo(
         table_text(list(drawn.groups), [*columns, "flagged"] if include_flagged else columns)
@@ -202,3 +239,5 @@ def overview(
             f"note: {drawn.left_out_not_finite} stored ΔG‡ value(s) are not finite (inf or nan) "
             "and were left out; 'fluxledger verify' lists them"
         )
+    for note in drawn.notes:
+        typer.echo(f"note: {note}")

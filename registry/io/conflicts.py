@@ -3,7 +3,7 @@
 A compound label names one structure and a structure carries one label, in the file and in the
 registry. Two rows of one file that claim one measurement are one too many: the same ``uid``,
 the same compound and measurement label, or the same natural key (compound, process, solvent,
-method, reference and label — see :mod:`.matching`); the later row's problem names the earlier.
+method, reference, label and a computed value's level of theory — see :mod:`.matching`); the later row's problem names the earlier.
 Each such row becomes a problem naming its sheet, row and column, so that the whole file is
 judged before anything is written.
 """
@@ -17,6 +17,7 @@ from registry.errors import RowProblem
 from registry.io.results import ReadResult, RowSource
 from registry.record.chem import Structure
 from registry.record.entry import NormalizedEntry
+from registry.record.theory import theory_key
 from registry.storage.connection import Connection
 
 
@@ -68,8 +69,8 @@ def screen_entries(
 
 
 _SAME_KEY = (
-    "same compound, process, solvent, method, reference and label; remove it or give each "
-    "measurement its own label"
+    "same compound, process, solvent, method, reference, label (and level of theory); remove it "
+    "or give each measurement its own label"
 )
 
 
@@ -132,6 +133,7 @@ def match_key(
         solvent,
         m["reference"] or "",
         m["label"] or "",
+        theory_key(m),
     )
 
 

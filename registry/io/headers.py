@@ -82,7 +82,10 @@ _GREEK = {
 _DAGGERS = ("‡", "≠", "#", "†", "^", "*")
 #: words that join a concept without naming it ("T for ΔG‡", "temperature of coalescence")
 _FILLERS = re.compile(r"\b(?:for|of|at|the|a|an)\b", re.I)
-_UNIT_BRACKETS = re.compile(r"^(?P<name>.*?)\s*[(\[{](?P<unit>[^()\[\]{}]*)[)\]}]\s*$")
+#: ``name (unit)``, the unit may hold one level of parentheses itself: ``dS (J/(mol K))``
+_UNIT_BRACKETS = re.compile(
+    r"^(?P<name>.*?)\s*[(\[{](?P<unit>(?:[^()\[\]{}]|\([^()\[\]{}]*\))*)[)\]}]\s*$"
+)
 
 
 @dataclass(frozen=True)

@@ -8,7 +8,9 @@ In this order (the first that finds one decides):
 2. **label** — the group's label of the measurement, unique per compound: a row with compound
    ``HG-A1`` and label ``m1`` is the measurement labelled ``m1`` of ``HG-A1``, whatever its
    solvent, method or reference say (so that correcting one of them updates it).
-3. **natural key** — compound, process, solvent, method, reference and label together.
+3. **natural key** — compound, process, solvent, method, reference and label together (and,
+   for a computed value, its level of theory: one compound's barrier at two levels is two
+   measurements).
 
 Everything here only reads, so a dry run shows what would happen.
 """
@@ -23,6 +25,7 @@ from typing import Any
 from registry.record import vocab
 from registry.record.chem import Structure
 from registry.record.entry import NormalizedEntry
+from registry.record.theory import THEORY_COLUMNS, theory_key
 from registry.storage.connection import Connection
 from registry.storage.writer import solvent_index
 
@@ -64,14 +67,17 @@ def find_matches(
         processes[(cid, kind, sites, nucleus)] = pid
     by_key: dict[MatchKey, list[int]] = defaultdict(list)
     by_label: dict[tuple[int, str], list[int]] = defaultdict(list)
-    for mid, cid, pid, method, solvent_id, solvent_text, reference, label in conn.rows_where_in(
-        "SELECT id, compound_id, process_id, method, solvent_id, solvent_text, reference, label "
-        "FROM measurement WHERE 1 = 1",
+    for row in conn.records_where_in(
+        "SELECT id, compound_id, process_id, method, solvent_id, solvent_text, reference, label, "
+        f"{', '.join(THEORY_COLUMNS)} FROM measurement WHERE 1 = 1",
         "compound_id",
         known,
     ):
+        mid, cid, label = row["id"], row["compound_id"], row["label"]
         key = (
-            cid, pid, method, _solvent_part(solvent_id, solvent_text), reference or "", label or ""
+            cid, row["process_id"], row["method"],
+            _solvent_part(row["solvent_id"], row["solvent_text"]), row["reference"] or "",
+            label or "", theory_key(row),
         )  # fmt: skip
         by_key[key].append(mid)
         if label:
@@ -94,7 +100,7 @@ def find_matches(
             sid = solvents.get(e.solvent_key) if e.solvent_key else None
             key = (
                 cid, pid, m["method"], _solvent_part(sid, m["solvent_text"]), m["reference"] or "",
-                m["label"] or "",
+                m["label"] or "", theory_key(m),
             )  # fmt: skip
             if e.process is not None and pid is None:
                 key = None  # a process this compound does not have yet: no stored measurement

@@ -1,7 +1,10 @@
-"""PNG pictures of line-shape fits and of the Eyring plot of the fitted rates.
+"""Pictures of line-shape fits and of the Eyring plot of the fitted rates (PNG, SVG or PDF).
 
-matplotlib is imported inside the functions and drives a bare ``Figure`` on the Agg canvas
-(no pyplot state, no display needed), so importing this module costs nothing.
+Drawn in the one figure style of every plot (:mod:`registry.reports.style`: screen or print,
+size, dpi) on the shared canvas (:mod:`registry.reports.canvas`: matplotlib's Agg canvas, no
+pyplot state, the layout fitted to the text so no axis label is clipped, files written whole
+or not at all). matplotlib is imported inside the functions, so importing this module costs
+nothing.
 """
 
 from __future__ import annotations
@@ -16,57 +19,59 @@ import numpy as np
 
 from registry.errors import UsageError
 from registry.lineshape.store_link import value_with_error_text
-from registry.outputs import write_file
+from registry.reports.style import SCREEN, FigureStyle
 
 if TYPE_CHECKING:
-    from matplotlib.figure import Figure
-
     from registry.kinetics.fits import EyringFit
     from registry.lineshape.eyring import EyringParameters
     from registry.lineshape.fit_core import LineShapeFit
 
 
-def _figure(height: float = 4.8) -> Figure:
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
-    fig = Figure(figsize=(7.0, height), dpi=110)
-    FigureCanvasAgg(fig)
-    return fig
+#: the formats the line-shape pictures can be written in (the file suffix)
+PLOT_FORMATS = ("png", "svg", "pdf")
 
 
 def _safe_stem(source: str) -> str:
     return re.sub(r"[^A-Za-z0-9_.-]+", "_", Path(source).stem) or "spectrum"
 
 
-def plot_fit(fit: LineShapeFit, path: str | Path, *, observe_mhz: float | None = None) -> Path:
+def plot_fit(
+    fit: LineShapeFit,
+    path: str | Path,
+    *,
+    observe_mhz: float | None = None,
+    style: FigureStyle = SCREEN,
+) -> Path:
     """Data, fitted line shape and residuals of one spectrum (x in ppm when MHz is known)."""
-    fig = _figure(5.2)
-    grid = fig.add_gridspec(2, 1, height_ratios=(3, 1), hspace=0.05)
-    top = fig.add_subplot(grid[0])
-    bottom = fig.add_subplot(grid[1], sharex=top)
-    x = fit.freq_hz / observe_mhz if observe_mhz else fit.freq_hz
-    top.plot(x, fit.data, color="0.35", lw=0.8, label="data")
-    top.plot(x, fit.best_fit, color="tab:red", lw=1.1, label="fit")
-    bottom.plot(x, fit.data - fit.best_fit, color="0.35", lw=0.6)
-    bottom.axhline(0.0, color="tab:red", lw=0.8)
-    if observe_mhz:  # NMR convention: shift increases to the left
-        top.invert_xaxis()
-    bottom.set_xlabel("δ / ppm" if observe_mhz else "ν / Hz")
-    top.set_ylabel("intensity")
-    bottom.set_ylabel("residual")
-    top.tick_params(labelbottom=False)
-    temp = f"{fit.t_k:.1f} K, " if fit.t_k is not None else ""
-    top.set_title(
-        f"{Path(fit.source).name}: {temp}"
-        f"k = {value_with_error_text(fit.k_per_s, fit.k_err_per_s, 's⁻¹')}, "
-        f"w = {fit.width_hz:.2f} Hz ({fit.method})",
-        fontsize=9,
-    )
-    top.legend(loc="upper right", fontsize=8, frameon=False)
-    out = Path(path)
-    write_file(out, fig.savefig)  # whole or not at all
-    return out
+    from registry.reports.canvas import new_figure, save_figure, set_title, styled
+
+    with styled(style):
+        fig = new_figure(7.0, 5.2, None, style)
+        grid = fig.add_gridspec(2, 1, height_ratios=(3, 1))
+        top = fig.add_subplot(grid[0])
+        bottom = fig.add_subplot(grid[1], sharex=top)
+        x = fit.freq_hz / observe_mhz if observe_mhz else fit.freq_hz
+        thin = style.line_width * 0.45
+        top.plot(x, fit.data, color=style.muted, lw=thin, label="data")
+        top.plot(x, fit.best_fit, color=style.fit, lw=style.line_width * 0.6, label="fit")
+        bottom.plot(x, fit.data - fit.best_fit, color=style.muted, lw=thin * 0.75)
+        bottom.axhline(0.0, color=style.fit, lw=thin)
+        if observe_mhz:  # NMR convention: shift increases to the left
+            top.invert_xaxis()
+        bottom.set_xlabel("δ / ppm" if observe_mhz else "ν / Hz")
+        top.set_ylabel("intensity")
+        bottom.set_ylabel("residual")
+        fig.align_ylabels([top, bottom])
+        top.tick_params(labelbottom=False)
+        temp = f"{fit.t_k:.1f} K, " if fit.t_k is not None else ""
+        title = (
+            f"{Path(fit.source).name}: {temp}"
+            f"k = {value_with_error_text(fit.k_per_s, fit.k_err_per_s, 's⁻¹')}, "
+            f"w = {fit.width_hz:.2f} Hz ({fit.method})"
+        )
+        set_title(fig, top, title, style, style.note_size + 1)
+        top.legend(loc="upper right", fontsize=style.note_size)
+    return save_figure(fig, path, style=style)  # whole or not at all
 
 
 def plot_eyring(
@@ -74,30 +79,36 @@ def plot_eyring(
     path: str | Path,
     *,
     line: EyringFit | EyringParameters | None = None,
+    style: FigureStyle = SCREEN,
 ) -> Path:
     """ln(k/T) against 1000/T with ±1σ bars, and the Eyring line when one was fitted."""
+    from registry.reports.canvas import new_figure, save_figure, set_title, styled
+
     usable = [f for f in fits if f.t_k is not None]
     if not usable:
         raise UsageError("an Eyring plot needs temperatures")
     t = np.array([f.t_k for f in usable], dtype=float)
     y = np.log(np.array([f.k_per_s for f in usable]) / t)
     yerr = np.array([f.ln_k_err if f.ln_k_err is not None else math.nan for f in usable])
-    fig = _figure()
-    ax = fig.add_subplot()
-    ax.errorbar(1000.0 / t, y, yerr=np.nan_to_num(yerr), fmt="o", color="0.2", ms=4, capsize=2)
-    if line is not None:
-        tt = np.linspace(t.min() * 0.98, t.max() * 1.02, 100)
-        ax.plot(1000.0 / tt, _ln_k(line, tt) - np.log(tt), color="tab:red", lw=1.0)
-        ax.set_title(
-            f"ΔH‡ = {value_with_error_text(line.dh_kj_mol, line.dh_err_kj_mol, 'kJ/mol')}, "
-            f"ΔS‡ = {value_with_error_text(line.ds_j_mol_k, line.ds_err_j_mol_k, 'J/(mol·K)')}",
-            fontsize=9,
-        )
-    ax.set_xlabel("1000 K / T")
-    ax.set_ylabel("ln(k / T)   (k in s⁻¹, T in K)")
-    out = Path(path)
-    write_file(out, fig.savefig)  # whole or not at all
-    return out
+    with styled(style):
+        fig = new_figure(7.0, 4.8, None, style)
+        ax = fig.add_subplot()
+        ax.errorbar(
+            1000.0 / t, y, yerr=np.nan_to_num(yerr), fmt="o", color=style.data,
+            ms=style.marker_size * 0.7, capsize=2, label="fitted rate constants",
+        )  # fmt: skip
+        if line is not None:
+            tt = np.linspace(t.min() * 0.98, t.max() * 1.02, 100)
+            ax.plot(1000.0 / tt, _ln_k(line, tt) - np.log(tt), color=style.fit, label="Eyring fit")
+            title = (
+                f"ΔH‡ = {value_with_error_text(line.dh_kj_mol, line.dh_err_kj_mol, 'kJ/mol')}, "
+                "ΔS‡ = " + value_with_error_text(line.ds_j_mol_k, line.ds_err_j_mol_k, "J/(mol·K)")
+            )
+            size = style.note_size + 1
+            set_title(fig, ax, title, style, size)
+        ax.set_xlabel("1000 K / T")
+        ax.set_ylabel("ln(k / T)   (k in s⁻¹, T in K)")
+    return save_figure(fig, path, style=style)  # whole or not at all
 
 
 def _ln_k(line: EyringFit | EyringParameters, t: np.ndarray) -> np.ndarray:
@@ -112,8 +123,13 @@ def write_plots(
     *,
     line: EyringFit | EyringParameters | None = None,
     observe_mhz: Sequence[float | None] | None = None,
+    style: FigureStyle = SCREEN,
+    fmt: str = "png",
 ) -> list[Path]:
-    """One PNG per spectrum (``<stem>_fit.png``) and ``eyring.png`` when temperatures are known."""
+    """One picture per spectrum (``<stem>_fit.png``) and ``eyring.png`` when temperatures are
+    known; ``fmt`` png, svg or pdf, in ``style``."""
+    if fmt not in PLOT_FORMATS:
+        raise UsageError(f"plot format {fmt!r}: use png, svg or pdf")
     out_dir = Path(directory)
     try:
         out_dir.mkdir(parents=True, exist_ok=True)
@@ -124,9 +140,9 @@ def write_plots(
     for i, fit in enumerate(fits):
         stem = _safe_stem(fit.source)
         seen[stem] = seen.get(stem, 0) + 1
-        name = f"{stem}_fit.png" if seen[stem] == 1 else f"{stem}_{seen[stem]}_fit.png"
+        name = f"{stem}_fit.{fmt}" if seen[stem] == 1 else f"{stem}_{seen[stem]}_fit.{fmt}"
         mhz = observe_mhz[i] if observe_mhz is not None else None
-        written.append(plot_fit(fit, out_dir / name, observe_mhz=mhz))
+        written.append(plot_fit(fit, out_dir / name, observe_mhz=mhz, style=style))
     if any(f.t_k is not None for f in fits):
-        written.append(plot_eyring(fits, out_dir / "eyring.png", line=line))
+        written.append(plot_eyring(fits, out_dir / f"eyring.{fmt}", line=line, style=style))
     return written

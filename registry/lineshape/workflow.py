@@ -33,6 +33,7 @@ if TYPE_CHECKING:  # the fit modules load scipy.optimize: only the fit workflow 
     from registry.lineshape.fit_global import GlobalFit, SpectrumInput
     from registry.lineshape.reference import ReferenceWidth
     from registry.lineshape.series import SeriesFit, SiteOptions
+    from registry.reports.style import FigureStyle
 
 #: a spectrum as a caller names it: a file (CSV or JCAMP-DX) or one already in memory
 SpectrumSource = str | Path | Spectrum
@@ -203,6 +204,8 @@ def analyse(
     plots_dir: str | Path | None,
     solvent_bp_k: float | None,
     store_doubtful: bool = False,
+    plot_style: FigureStyle | None = None,
+    plot_format: str = "png",
 ) -> LineShapeAnalysis:
     """Fit every spectrum, draw the Eyring line, optionally the global fit and the plots.
 
@@ -226,7 +229,7 @@ def analyse(
     plots: list[str] = []
     if plots_dir is not None:
         observe = [mhz if s.x_unit == "ppm" else None for s in spectra]
-        plots = _plots(fits, global_result, line, plots_dir, observe)
+        plots = _plots(fits, global_result, line, plots_dir, observe, plot_style, plot_format)
     temps_k = [f.t_k for f in fits if f.t_k is not None]
     cautions = safety_notes(np.array(temps_k), solvent_bp_k=solvent_bp_k) if temps_k else []
     stored = [f for f in fits if store_doubtful or not f.doubtful]
@@ -334,6 +337,8 @@ def _plots(
     line: EyringFit | None,
     directory: str | Path,
     observe_mhz: list[float | None],
+    style: FigureStyle | None,
+    fmt: str,
 ) -> list[str]:
     """One PNG per spectrum and the Eyring plot: of the global fit when there is one."""
     from registry.lineshape.plots import write_plots
@@ -343,5 +348,7 @@ def _plots(
         directory,
         line=global_result.eyring if global_result else line,
         observe_mhz=observe_mhz,
+        fmt=fmt,
+        **({"style": style} if style is not None else {}),
     )
     return [str(p) for p in written]

@@ -17,6 +17,7 @@ from registry.record import conventions, fields, vocab
 from registry.record.nuclei import observe_frequency_mhz
 from registry.record.populations import parse_population_ratio
 from registry.record.spelling import read_nucleus
+from registry.record.theory import read_standard_state
 from registry.record.units import ParsedValue, parse_value
 
 #: value fields read on their own (the frequency is read first and Δν at it)
@@ -57,6 +58,12 @@ class EntryInput:
     concentration: str | None = None  # of the exchange partner, for order 2
     calibration: str | None = None  # how the probe temperature was calibrated (± σ)
     dh_ds_corr: str | None = None  # correlation of ΔH‡ and ΔS‡ from their fit
+    theory: str | None = None  # a computed barrier's level of theory, as written
+    functional: str | None = None  # its electronic-structure method (e.g. a DFT functional)
+    basis: str | None = None  # its basis set
+    solvation: str | None = None  # its solvation model
+    conformers: str | None = None  # how conformers were treated
+    standard_state: str | None = None  # 1 M, 1 atm or 1 bar (registry.record.theory)
     reference: str | None = None
     status: str | None = None
     extra: dict[str, Any] = dc_field(default_factory=dict)
@@ -262,7 +269,13 @@ def _population(inp: EntryInput, problems: list[Problem]) -> float | None:
 
 #: the measurement columns :func:`_recorded` fills (always all of them, None when not given)
 RECORDED_COLUMNS = ("k_convention", "path_degeneracy", "reaction_order", "dg_direction",
-                    "t_calibration_text", "t_calibration", "t_calibration_err_k")  # fmt: skip
+                    "t_calibration_text", "t_calibration", "t_calibration_err_k",
+                    "theory_level", "theory_method", "theory_basis", "theory_solvation",
+                    "theory_conformers", "standard_state")  # fmt: skip
+#: a computed barrier's free texts: field → column (stored as written)
+_THEORY_TEXTS = (("theory", "theory_level"), ("functional", "theory_method"),
+                 ("basis", "theory_basis"), ("solvation", "theory_solvation"),
+                 ("conformers", "theory_conformers"))  # fmt: skip
 
 
 def _recorded(
@@ -295,6 +308,14 @@ def _recorded(
         else:
             out.update(t_calibration_text=cal.text, t_calibration=cal.name,
                        t_calibration_err_k=cal.sigma_k)  # fmt: skip
+    for name, column in _THEORY_TEXTS:
+        out[column] = text_of(getattr(inp, name))
+    state = text_of(inp.standard_state)
+    if state is not None:
+        try:
+            out["standard_state"] = read_standard_state(state)
+        except UnitError as exc:
+            problems.append(Problem("standard_state", state, exc.reason))
     _check_ranges(values, out, problems)
     return out
 

@@ -170,6 +170,22 @@ FIELDS: tuple[Field, ...] = (
     _value("dh_ds_corr", "correlation of ΔH‡ and ΔS‡", "dimensionless", "measurement",
            "dh_ds_corr", error=False, text_column="dh_ds_corr_text", headers=(
                "dhdscorr", "corrdhds", "rdhds", "correlationdhds", "dhdscorrelation")),
+    # how a computed barrier was computed (registry.record.theory): free texts as written
+    _text("theory", "level of theory", "measurement", "theory_level", headers=(
+        "theory", "leveloftheory", "level", "theorylevel", "computationallevel",
+        "computationalmethod", "modelchemistry")),
+    _text("functional", "electronic-structure method", "measurement", "theory_method", headers=(
+        "functional", "dftfunctional", "qmmethod", "theorymethod", "electronicstructuremethod",
+        "dft")),
+    _text("basis", "basis set", "measurement", "theory_basis", headers=(
+        "basis", "basisset", "basissets")),
+    _text("solvation", "solvation model", "measurement", "theory_solvation", headers=(
+        "solvation", "solvationmodel", "solventmodel", "implicitsolvent", "continuummodel",
+        "pcm")),
+    _text("conformers", "conformer treatment", "measurement", "theory_conformers", headers=(
+        "conformers", "conformertreatment", "conformersearch", "conformations")),
+    _text("standard_state", "standard state", "measurement", "standard_state", headers=(
+        "standardstate", "stdstate", "referencestate")),
     _text("reference", "reference", "measurement", "reference", headers=(
         "ref", "reference", "references", "doi", "citation", "source", "literature", "lit",
         "litref")),
@@ -207,6 +223,9 @@ EDIT_ALIASES: dict[str, str] = {
     "temperature_calibration": "calibration",
     "corr": "dh_ds_corr",
     "κ": "kappa",
+    "level_of_theory": "theory",
+    "basis_set": "basis",
+    "solvation_model": "solvation",
 }
 
 

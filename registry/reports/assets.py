@@ -88,6 +88,29 @@ figure.plot figcaption { font-size: 12.5px; color: var(--muted); }
   border: 1px solid #d59a90; margin: 10px 28px 0; }
 footer { color: var(--muted); font-size: 12px; padding: 10px 28px 24px; }
 @media (max-width: 760px) { .compound-head { grid-template-columns: 1fr; } main { padding: 14px; } }
+@page { margin: 15mm 14mm; }
+@media print {
+  html, body { background: #fff; color: #000; font-size: 9.5pt; }
+  header.band { background: none; color: #000; border-bottom: 1pt solid #000; padding: 0 0 5pt; }
+  header.band h1 { font-size: 15pt; }
+  header.band .sub, header.band a { color: #333; }
+  header.band a { text-decoration: none; }
+  .tools, #page-errors, .print-hide { display: none !important; }
+  main { padding: 6pt 0 0; max-width: none; }
+  a { color: #000; text-decoration: none; }
+  .chips li, .badge { background: none; border-color: #999; }
+  section.card { border: 0; border-top: 0.75pt solid #999; border-radius: 0; padding: 6pt 0;
+    margin: 8pt 0; break-inside: avoid; page-break-inside: avoid; }
+  table.grid { background: none; border-color: #999; font-size: 8.5pt; }
+  table.grid thead th { position: static; background: #eee; }
+  table.grid tbody tr:nth-child(even), table.grid tbody tr:hover { background: none; }
+  table.grid tr { break-inside: avoid; page-break-inside: avoid; }
+  .compound-head { grid-template-columns: 42% 1fr; break-inside: avoid; }
+  figure.structure { border: 0; min-height: 0; }
+  figure.plot { break-inside: avoid; page-break-inside: avoid; }
+  figure.plot img { max-width: 100%; max-height: 110mm; border: 0; }
+  .muted, figure.plot figcaption { color: #444; }
+}
 """
 )
 
@@ -100,6 +123,14 @@ window.onerror = function (message, source, line, column) {
   if (box) { box.hidden = false; box.textContent = window.fluxErrors.join("\\n"); }
   return false;
 };
+"""
+
+#: before printing, every folded part (rate points …) is opened so the paper shows it all
+PRINT_JS = """
+window.addEventListener("beforeprint", function () {
+  var folded = document.querySelectorAll("details");
+  for (var i = 0; i < folded.length; i++) { folded[i].open = true; }
+});
 """
 
 TABLE_JS = """

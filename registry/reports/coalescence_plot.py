@@ -18,8 +18,8 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from registry.errors import UsageError
-from registry.reports import theme
-from registry.reports.canvas import convert, energy_text, new_figure, styled
+from registry.reports.canvas import convert, energy_text, new_figure, set_title, styled
+from registry.reports.style import SCREEN, FigureStyle
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
@@ -88,22 +88,24 @@ def coalescence_figure(
     energy_unit: str = "kJ/mol",
     width: float = 6.4,
     height: float = 4.4,
+    style: FigureStyle = SCREEN,
 ) -> Figure:
     """Predicted Tc against field, observed (field, Tc) points, and the solvent's liquid range.
 
     ``observed``: mappings with ``field_mhz``, ``tc_k``, ``label`` and ``flagged``. ``solvent``: ``name``,
     ``mp_k``, ``bp_k`` (either may be None); temperatures outside the liquid range are shaded.
+    ``style`` (:mod:`.style`) sets colours, type and size.
     """
     p = prediction
-    with styled():
-        fig = new_figure(width, height, (0.75, 0.55, 0.75, 0.45 if title else 0.15))
+    with styled(style):
+        fig = new_figure(width, height, (0.75, 0.55, 0.75, 0.45 if title else 0.15), style)
         ax = fig.add_subplot()
         if p.tc_low_k is not None and p.tc_high_k is not None:
             ax.fill_between(
                 p.fields_mhz,
                 p.tc_low_k,
                 p.tc_high_k,
-                color=theme.BAND,
+                color=style.band,
                 alpha=0.45,
                 linewidth=0,
                 label=f"ΔG‡ ± {convert(p.dg_err_kj_mol or 0.0, 'kJ/mol', energy_unit):.2g}"
@@ -112,43 +114,44 @@ def coalescence_figure(
         ax.plot(
             p.fields_mhz,
             p.tc_k,
-            color=theme.FIT,
-            linewidth=1.8,
+            color=style.fit,
             label=f"predicted, ΔG‡ = {energy_text(p.dg_kj_mol, None, energy_unit)}, "
             f"Δν = {p.dnu_ppm:g} ppm" + (f", J = {p.j_hz:g} Hz" if p.j_hz else ""),
         )
         for field in COMMON_FIELDS_MHZ:
             if p.fields_mhz.min() <= field <= p.fields_mhz.max():
-                ax.axvline(field, color=theme.RULE, linewidth=1.0, zorder=0)
-        _mark_observed(ax, observed)
+                ax.axvline(field, color=style.rule, linewidth=1.0, zorder=0)
+        _mark_observed(ax, observed, style)
         if solvent:
-            _shade_outside_liquid_range(ax, solvent, p.fields_mhz)
+            _shade_outside_liquid_range(ax, solvent, p.fields_mhz, style)
         ax.set_xlabel("spectrometer frequency, ¹H (MHz)")
         ax.set_ylabel("coalescence temperature Tc (K)")
         right = ax.secondary_yaxis("right", functions=(_k_to_c, _c_to_k))
-        right.set_ylabel("Tc (°C)", color=theme.MUTED)
-        right.tick_params(colors=theme.MUTED, labelcolor=theme.MUTED)
+        right.set_ylabel("Tc (°C)", color=style.muted)
+        right.tick_params(colors=style.muted, labelcolor=style.muted)
         if title:
-            ax.set_title(title)
-        ax.legend(loc="lower right", fontsize=8)  # Tc rises with the field: below it is free
+            set_title(fig, ax, title, style)
+        ax.legend(
+            loc="lower right", fontsize=style.note_size
+        )  # Tc rises with the field: below it is free
     return fig
 
 
-def _mark_observed(ax: Axes, observed: Sequence[Mapping[str, Any]]) -> None:
-    """Observed (field, Tc) points, each labelled (``#id``); flagged ones (an open error
-    finding) as crosses in the warning colour."""
+def _mark_observed(ax: Axes, observed: Sequence[Mapping[str, Any]], style: FigureStyle) -> None:
+    """Observed (field, Tc) points, each labelled (its compound's label or name); flagged ones
+    (an open error finding) as crosses in the warning colour."""
     points = [o for o in observed if o.get("field_mhz") and o.get("tc_k")]
     if not points:
         return
-    for flagged, style, label in (
+    for flagged, marker, label in (
         (
             False,
-            {"marker": "D", "color": theme.DATA, "markersize": 6.5},
+            {"marker": "D", "color": style.data, "markersize": style.marker_size * 1.08},
             "observed in the registry",
         ),
         (
             True,
-            {"marker": "X", "color": theme.WARN, "markersize": 9.0},
+            {"marker": "X", "color": style.warn, "markersize": style.marker_size * 1.5},
             "observed, flagged: an error finding is open",
         ),
     ):
@@ -159,10 +162,10 @@ def _mark_observed(ax: Axes, observed: Sequence[Mapping[str, Any]]) -> None:
             [o["field_mhz"] for o in chosen],
             [o["tc_k"] for o in chosen],
             linestyle="none",
-            markeredgecolor=theme.PAPER,
+            markeredgecolor=style.paper,
             label=label,
             zorder=3,
-            **style,
+            **marker,
         )
     for o in points:
         ax.annotate(
@@ -170,12 +173,14 @@ def _mark_observed(ax: Axes, observed: Sequence[Mapping[str, Any]]) -> None:
             (o["field_mhz"], o["tc_k"]),
             textcoords="offset points",
             xytext=(5, 5),
-            fontsize=7.5,
-            color=theme.MUTED,
+            fontsize=style.note_size - 0.5,
+            color=style.muted,
         )
 
 
-def _shade_outside_liquid_range(ax: Axes, solvent: Mapping[str, Any], fields_mhz: NDArray) -> None:
+def _shade_outside_liquid_range(
+    ax: Axes, solvent: Mapping[str, Any], fields_mhz: NDArray, style: FigureStyle
+) -> None:
     """Shade above the boiling point (with the sealed-tube warning written on) and below the
     melting point; a boiling point just above the drawn range is brought into view."""
     lo_y, hi_y = ax.get_ylim()
@@ -184,20 +189,27 @@ def _shade_outside_liquid_range(ax: Axes, solvent: Mapping[str, Any], fields_mhz
         hi_y = bp + 0.2 * NEAR_BOILING_K  # close enough that the reader should see it
     name = solvent.get("name") or "solvent"
     if bp is not None and bp < hi_y:
-        ax.axhspan(bp, hi_y, color=theme.WARN, alpha=0.08, linewidth=0)
-        ax.axhline(bp, color=theme.WARN, linewidth=1.0, linestyle="--")
+        ax.axhspan(bp, hi_y, color=style.warn, alpha=0.08, linewidth=0)
+        ax.axhline(bp, color=style.warn, linewidth=1.0, linestyle="--")
         ax.text(
             fields_mhz.max(),
             bp,
             f"b.p. {name}: above it only in a pressure-rated sealed tube ",
             va="bottom",
             ha="right",
-            fontsize=7.5,
-            color=theme.WARN,
+            fontsize=style.note_size - 0.5,
+            color=style.warn,
         )
     if mp is not None and mp > lo_y:
-        ax.axhspan(lo_y, mp, color=theme.MUTED, alpha=0.10, linewidth=0)
-        ax.text(fields_mhz.min(), mp, f" m.p. {name}", va="top", fontsize=7.5, color=theme.MUTED)
+        ax.axhspan(lo_y, mp, color=style.muted, alpha=0.10, linewidth=0)
+        ax.text(
+            fields_mhz.min(),
+            mp,
+            f" m.p. {name}",
+            va="top",
+            fontsize=style.note_size - 0.5,
+            color=style.muted,
+        )
     ax.set_ylim(lo_y, hi_y)
 
 

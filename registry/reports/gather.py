@@ -15,9 +15,10 @@ nothing beyond the storage layer.
 from __future__ import annotations
 
 import math
-from collections import defaultdict
+from collections import Counter, defaultdict
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
+from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from registry.errors import DatabaseError, NotFoundError, UsageError
@@ -120,11 +121,16 @@ def open_errors(conn: Connection, measurement_id: int) -> tuple[tuple[int, str],
 def measurement_title(
     mid: int, m_label: str | None, c_label: str | None, c_name: str | None
 ) -> str:
-    """``measurement 7 — DEMO-1 (N,N-dimethylacetamide) [run 2]``: a default figure title."""
+    """``DEMO-1 (N,N-dimethylacetamide) [run 2]``: a default figure title, naming the compound
+    as the group does; ``measurement 7`` only when the compound has neither label nor name."""
     who = " ".join(x for x in (c_label, f"({c_name})" if c_name else None) if x)
-    return (
-        f"measurement {mid}" + (f" — {who}" if who else "") + (f" [{m_label}]" if m_label else "")
-    )
+    return (who or f"measurement {mid}") + (f" [{m_label}]" if m_label else "")
+
+
+def point_label(row: Mapping[str, Any]) -> str:
+    """What a point on a figure is called: the compound's label, else its name, else the
+    measurement's number."""
+    return str(row.get("compound") or row.get("compound_name") or f"#{row['measurement_id']}")
 
 
 _OBSERVED = (
@@ -166,7 +172,7 @@ def observed_coalescence(
     for r in rows:
         field = r["field_mhz"]
         r["dnu_ppm"] = r["dnu_hz"] / field if field else None
-        r["label"] = f"#{r['measurement_id']}"
+        r["label"] = point_label(r)
     return rows
 
 
@@ -197,10 +203,25 @@ class BarrierGroups:
     flagged: dict[str, list[bool]]
     left_out: int = 0
     not_finite: int = 0
+    #: measurements drawn: each once, unless ``overlap`` (then ``points`` may be more)
+    measurements: int = 0
+    #: measurements whose compound matches more than one motif
+    shared: int = 0
+    #: True when a measurement is drawn under every motif its compound matches
+    overlap: bool = False
+
+    @property
+    def points(self) -> int:
+        return sum(len(v) for v in self.values.values())
 
 
 def _groups(
-    pairs: Mapping[str, list[tuple[float, bool]]], left_out: int, not_finite: int
+    pairs: Mapping[str, list[tuple[float, bool]]],
+    left_out: int,
+    not_finite: int,
+    measurements: int,
+    shared: int = 0,
+    overlap: bool = False,
 ) -> BarrierGroups:
     """Largest group first, then by name (a stable order: the same data give the same figure)."""
     kept = sorted(((k, v) for k, v in pairs.items() if v), key=lambda kv: (-len(kv[1]), kv[0]))
@@ -209,6 +230,9 @@ def _groups(
         {k: [flag for _, flag in v] for k, v in kept},
         left_out,
         not_finite,
+        measurements,
+        shared,
+        overlap,
     )
 
 
@@ -241,17 +265,25 @@ def barriers_by_kind(
         rows, left_out, odd = _barriers(conn, "p.kind", include_retracted, include_flagged)
     for kind, dg, flag in rows:
         groups[kind or NO_KIND].append((dg, flag))
-    return _groups(groups, left_out, odd)
+    return _groups(groups, left_out, odd, len(rows))
 
 
 def barriers_by_motif(
-    database: Database, *, include_retracted: bool = False, include_flagged: bool = False
+    database: Database,
+    *,
+    include_retracted: bool = False,
+    include_flagged: bool = False,
+    overlap: bool = False,
 ) -> BarrierGroups | None:
     """ΔG‡ grouped by structural motif when :mod:`registry.search` offers motif matching.
 
-    Returns None when it does not (the caller falls back to process kinds). A compound that
-    matches several motifs counts in each of them; one that matches none is in ``(no motif)``.
-    Flagged values only with ``include_flagged``.
+    Returns None when it does not (the caller falls back to process kinds). Each measurement
+    is counted once: a compound that matches several motifs goes under the narrowest of them
+    (the motif matching the fewest compounds, then by name), so ``biaryl-ortho`` keeps the
+    ortho-substituted biaryls and ``biaryl`` the rest. With ``overlap`` it counts under each
+    motif it matches (``shared`` says how many measurements are drawn more than once). A
+    compound that matches none is in ``(no motif)``. Flagged values only with
+    ``include_flagged``.
     """
     try:
         from registry import search
@@ -266,15 +298,28 @@ def barriers_by_motif(
         rows, left_out, odd = _barriers(conn, "m.compound_id", include_retracted, include_flagged)
     for cid, dg, flag in rows:
         by_compound[int(cid)].append((dg, flag))
-    groups = {
-        motif: [pair for cid in ids for pair in by_compound.get(int(cid), [])]
-        for motif, ids in matches.items()
-    }
-    matched = {int(cid) for ids in matches.values() for cid in ids}
-    groups[NO_MOTIF] = [
-        p for cid, pairs in by_compound.items() if cid not in matched for p in pairs
-    ]
-    return _groups(groups, left_out, odd)
+    owners = _motifs_of(matches, overlap)
+    hits = Counter(int(cid) for ids in matches.values() for cid in set(ids))
+    groups: dict[str, list[tuple[float, bool]]] = defaultdict(list)
+    shared = 0
+    for cid, pairs in by_compound.items():
+        motifs = owners.get(cid) or [NO_MOTIF]
+        shared += len(pairs) if hits[cid] > 1 else 0
+        for motif in motifs:
+            groups[motif].extend(pairs)
+    return _groups(groups, left_out, odd, len(rows), shared, overlap)
+
+
+def _motifs_of(matches: Mapping[str, Sequence[int]], overlap: bool) -> dict[int, list[str]]:
+    """The motif(s) each compound is drawn under: every one it matches with ``overlap``, else
+    the narrowest (fewest compounds in the registry match it; ties by name)."""
+    order = sorted(matches, key=lambda m: (len(matches[m]), m))
+    owners: dict[int, list[str]] = defaultdict(list)
+    for motif in order:
+        for cid in matches[motif]:
+            if overlap or not owners[int(cid)]:
+                owners[int(cid)].append(motif)
+    return owners
 
 
 # --- rows of measurements: tables and the HTML report ----------------------------------------
@@ -287,6 +332,9 @@ _DETAIL_COLUMNS = {
     "dh_text": "m.dh_text",
     "ds_text": "m.ds_text",
     "sites": "p.sites",
+    "extra_json": "m.extra_json",
+    # the solvent table's name for a linked solvent: tables footnote one name per solvent
+    "solvent_name": "(SELECT s.name FROM solvent s WHERE s.id = m.solvent_id)",
 }
 
 
@@ -308,9 +356,49 @@ def measurement_rows(
 
     chosen = filters or filtering.Filters(include_retracted=include_retracted)
     with database.read() as conn:
-        return filtering.listing_rows(
+        rows = filtering.listing_rows(
             conn, chosen, ids=ids, columns={**LISTING_COLUMNS, **_DETAIL_COLUMNS}
         )
+    for r in rows:
+        r["extra"] = extra_columns(r.pop("extra_json", None))
+    return rows
+
+
+def extra_columns(stored: str | None) -> dict[str, Any]:
+    """The group's own columns kept with a measurement (operator, notebook page, comments …:
+    the spreadsheet columns fluxledger has no field for, stored as JSON in ``extra_json`` by
+    the importer), header → value in the file's order; ``{}`` when none or unreadable."""
+    import json
+
+    if not stored:
+        return {}
+    try:
+        found = json.loads(stored)
+    except ValueError:
+        return {}
+    return {str(k): v for k, v in found.items()} if isinstance(found, dict) else {}
+
+
+def extra_value(m: Mapping[str, Any], column: str) -> Any:
+    """The value of one of the group's own columns (matched without regard to case)."""
+    extra = m.get("extra") or {}
+    if column in extra:
+        return extra[column]
+    key = column.casefold()
+    return next((v for k, v in extra.items() if k.casefold() == key), None)
+
+
+def registry_title(database: Database) -> str:
+    """How pages name the registry: the SQLite file's name (never the folders above it: a
+    report travels, and a home folder path says more than it should), or the server's
+    database name (no host, user or password)."""
+    if database.path is not None:
+        return Path(database.path).name
+    if database.is_sqlite:
+        return "in-memory registry"
+    from urllib.parse import urlsplit
+
+    return urlsplit(database.name).path.lstrip("/") or "registry"
 
 
 def measurements_for_report(

@@ -20,6 +20,7 @@ from typing import Any
 
 from registry.outputs import not_finite, visible_controls
 from registry.reports import assets
+from registry.reports.gather import extra_value
 from registry.reports.numbers import format_uncertain
 
 
@@ -59,7 +60,7 @@ def _page(title: str, body: str, *, subtitle: str = "", home: str | None = None)
 <meta name="generator" content="fluxledger">
 <link rel="icon" href="data:,">
 <title>{escaped(title)}</title>
-<script>{assets.ERROR_SINK_JS}</script>
+<script>{assets.ERROR_SINK_JS}{assets.PRINT_JS}</script>
 <style>{assets.CSS}</style>
 </head>
 <body>
@@ -111,7 +112,7 @@ _INDEX_COLUMNS: list[tuple[str, str, str]] = [
 ]
 
 
-def _index_row(m: Mapping[str, Any]) -> str:
+def _index_row(m: Mapping[str, Any], extra: Sequence[str] = ()) -> str:
     findings = m.get("findings") or []
     open_findings = [f for f in findings if not f.get("accepted_by")]
     search = " ".join(
@@ -130,6 +131,8 @@ def _index_row(m: Mapping[str, Any]) -> str:
             "reference",
         )
     ).lower() + (" flagged" if m.get("flagged") else "")
+    if extra:
+        search += " " + " ".join(str(extra_value(m, c) or "") for c in extra).lower()
     compound_text = m.get("compound") or m.get("compound_name") or f"compound {m['compound_id']}"
     cells = [
         f'<td class="num" data-v="{int(m["id"])}">{int(m["id"])}</td>',
@@ -151,6 +154,7 @@ def _index_row(m: Mapping[str, Any]) -> str:
             else ""
         )
         + "</td>",
+        *(f'<td class="extra">{escaped(extra_value(m, c))}</td>' for c in extra),
     ]
     flagged = ' class="flagged"' if m.get("flagged") else ""
     return f'<tr{flagged} data-search="{escaped(search)}">' + "".join(cells) + "</tr>"
@@ -164,15 +168,18 @@ def render_index(
     counts: Mapping[str, int],
     overview: str | None,
     overview_note: str = "",
+    extra: Sequence[str] = (),
 ) -> str:
     """The index page: counts, the filter box, the sortable table, the overview plot (with
-    ``overview_note`` under it: which values it leaves out)."""
+    ``overview_note`` under it: which values it leaves out). ``extra`` names the group's own
+    columns (operator, notebook page …) to add to the table."""
+    columns = [*_INDEX_COLUMNS, *((f"extra:{c}", c, "text") for c in extra)]
     head = "".join(
         f'<th scope="col" class="{"num" if kind == "num" else ""}" data-type="{kind}">'
         f'<button type="button">{escaped(label)}</button></th>'
-        for _key, label, kind in _INDEX_COLUMNS
+        for _key, label, kind in columns
     )
-    rows = "\n".join(_index_row(m) for m in measurements)
+    rows = "\n".join(_index_row(m, extra) for m in measurements)
     chips = "".join(f"<li><b>{n}</b> {escaped(label)}</li>" for label, n in counts.items())
     plot = (
         f'<section class="card"><h2>Barriers by process kind</h2><figure class="plot">'
@@ -196,7 +203,8 @@ def render_index(
 </table>
 <p class="muted small">Click a column header to sort; click again to reverse. Every word typed in
 the filter must appear somewhere in a row (compound, name, SMILES, process, method, solvent,
-status, reference; type <b>flagged</b> for the rows with an open error finding).</p>
+status, reference{", the added columns" if extra else ""}; type <b>flagged</b> for the rows with an
+open error finding).</p>
 {plot}
 <script>{assets.TABLE_JS}</script>"""
     return _page(title, body, subtitle=subtitle)
@@ -305,6 +313,18 @@ def _values_table(m: Mapping[str, Any]) -> str:
     return '<table class="grid small">' + "".join(rows) + "</table>"
 
 
+def _extra_table(m: Mapping[str, Any]) -> str:
+    """The group's own columns kept with the entry (operator, notebook page, comments …)."""
+    extra = m.get("extra") or {}
+    shown = [(k, v) for k, v in extra.items() if v not in (None, "")]
+    if not shown:
+        return ""
+    rows = "".join(
+        f"<tr><th scope='row'>{escaped(k)}</th><td>{escaped(v)}</td></tr>" for k, v in shown
+    )
+    return f'<h3>Kept with this entry</h3><table class="grid small extra-columns">{rows}</table>'
+
+
 def _rates_table(points: Sequence[Mapping[str, Any]]) -> str:
     if not points:
         return ""
@@ -367,6 +387,7 @@ def _measurement_card(m: Mapping[str, Any], plot: str | None, plot_note: str | N
 <p class="muted small">{" · ".join(escaped(b) for b in bits)}</p>
 {flag_note}
 {_values_table(m)}
+{_extra_table(m)}
 {_rates_table(m.get("rate_points") or [])}
 {findings_html}
 {plot_html}

@@ -11,6 +11,7 @@ D. C. Montgomery and G. C. Runger, Applied Statistics and Probability for Engine
 
 from __future__ import annotations
 
+import textwrap
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
@@ -20,13 +21,25 @@ from numpy.typing import ArrayLike, NDArray
 
 from registry.errors import UsageError
 from registry.kinetics.constants import STANDARD_TEMPERATURE_K
-from registry.reports import theme
-from registry.reports.canvas import convert, energy_text, entropy_text, new_figure, styled
+from registry.reports.canvas import (
+    convert,
+    energy_text,
+    entropy_text,
+    new_figure,
+    set_title,
+    styled,
+)
+from registry.reports.style import SCREEN, FigureStyle
 
 if TYPE_CHECKING:
+    from matplotlib.axes import Axes
     from matplotlib.figure import Figure
 
     from registry.kinetics import EyringFit
+
+#: a figure narrower than this (inches: a journal column) writes its fitted numbers under the
+#: plot, where they cannot cover the points
+NARROW_IN = 5.0
 
 # --- Eyring ----------------------------------------------------------------------------------
 
@@ -106,10 +119,13 @@ def eyring_figure(
     k_err_per_s: ArrayLike | None = None,
     width: float = 6.4,
     height: float = 4.4,
+    style: FigureStyle = SCREEN,
 ) -> tuple[Figure, EyringSummary]:
     """ln(k/T) against 1/T with the weighted fit line, its 95 % band and the parameters written on.
 
-    ``k_err_per_s`` (the σ_k the fit was given, in the same order) draws error bars.
+    ``k_err_per_s`` (the σ_k the fit was given, in the same order) draws error bars; ``style``
+    (:mod:`.style`) sets colours, type and the size (``width`` × ``height`` inches unless it
+    asks for one).
     """
     summary = eyring_summary(fit, t_ref_k=t_ref_k)
     t, k = fit.t_k, fit.k_per_s
@@ -118,20 +134,28 @@ def eyring_figure(
     span = float(inv.max() - inv.min()) or float(inv.mean()) * 0.02
     xs = np.linspace(inv.min() - 0.06 * span, inv.max() + 0.06 * span, 200)
     line, half = eyring_band(fit, xs)
-    with styled():
-        fig = new_figure(width, height, (0.75, 0.55, 0.15, 0.75 if title else 0.5))
-        ax = fig.add_subplot()
+    with styled(style):
+        fig = new_figure(width, height, (0.75, 0.55, 0.15, 0.75 if title else 0.5), style)
+        narrow = fig.get_size_inches()[0] < NARROW_IN
+        if narrow:  # a journal column: the numbers go under the plot, not over the points
+            grid = fig.add_gridspec(2, 1, height_ratios=(2.6, 1.0))
+            ax, under = fig.add_subplot(grid[0]), fig.add_subplot(grid[1])
+            under.set_axis_off()
+        else:
+            ax = fig.add_subplot()
         if summary.band:
             ax.fill_between(
                 1e3 * xs,
                 line - half,
                 line + half,
-                color=theme.BAND,
+                color=style.band,
                 alpha=0.45,
                 linewidth=0,
-                label="95 % confidence band of the line",
+                label="95 % band of the line" if narrow else "95 % confidence band of the line",
             )
-        ax.plot(1e3 * xs, line, color=theme.FIT, linewidth=1.8, label="weighted Eyring fit")
+        ax.plot(
+            1e3 * xs, line, color=style.fit, label="Eyring fit" if narrow else "weighted Eyring fit"
+        )
         yerr = None
         if k_err_per_s is not None:
             yerr = np.asarray(k_err_per_s, dtype=float) / k  # σ(ln k) = σ_k / k
@@ -140,37 +164,46 @@ def eyring_figure(
             y,
             yerr=yerr,
             fmt="o",
-            color=theme.DATA,
-            markersize=6,
-            markeredgecolor=theme.PAPER,
-            markeredgewidth=1.0,
-            elinewidth=1.0,
+            color=style.data,
+            markersize=style.marker_size,
+            markeredgecolor=style.paper,
+            markeredgewidth=style.marker_size / 6,
+            elinewidth=style.line_width * 0.6,
             capsize=2.5,
-            label="measured rate constants",
+            label="measured k" if narrow else "measured rate constants",
             zorder=3,
         )
         ax.set_xlabel("10³ / T   (K⁻¹)")
         ax.set_ylabel("ln(k / T)   (k in s⁻¹, T in K)")
         top = ax.secondary_xaxis("top", functions=(_thousand_over, _thousand_over))
-        top.set_xlabel("T (K)", color=theme.MUTED)
-        top.tick_params(colors=theme.MUTED, labelcolor=theme.MUTED)
+        top.set_xlabel("T (K)", color=style.muted)
+        top.tick_params(colors=style.muted, labelcolor=style.muted)
         if title:
-            ax.set_title(title)
-        lines = eyring_text(summary, energy_unit)
-        ax.text(
-            0.98,
-            0.97,
-            "\n".join(lines),
-            transform=ax.transAxes,
-            ha="right",
-            va="top",
-            fontsize=8.5,
-            color=theme.INK,
-            linespacing=1.45,
-            bbox={"boxstyle": "round,pad=0.5", "fc": "#ffffff", "ec": theme.RULE, "alpha": 0.92},
-        )
-        ax.legend(loc="lower left", fontsize=8)
+            set_title(fig, ax, title, style)
+        _write_numbers(under if narrow else ax, eyring_text(summary, energy_unit), narrow, style)
+        if narrow:  # no corner is free of a line that crosses the plot: a framed legend
+            ax.legend(loc="best", fontsize=style.note_size - 0.5, frameon=True,
+                      facecolor=style.paper, edgecolor=style.rule, framealpha=0.9)  # fmt: skip
+        else:
+            ax.legend(loc="lower left", fontsize=style.note_size)
     return fig, summary
+
+
+def _write_numbers(where: Axes, lines: list[str], narrow: bool, style: FigureStyle) -> None:
+    """The fitted numbers: in a box in the plot's corner, or under a narrow plot."""
+    box = {"boxstyle": "round,pad=0.5", "fc": "#ffffff", "ec": style.rule, "alpha": 0.92}
+    where.text(
+        0.0 if narrow else 0.98,
+        1.0 if narrow else 0.97,
+        "\n".join(lines),
+        transform=where.transAxes,
+        ha="left" if narrow else "right",
+        va="top",
+        fontsize=style.note_size + (0.0 if narrow else 0.5),
+        color=style.ink,
+        linespacing=1.3 if narrow else 1.45,
+        bbox=None if narrow else box,
+    )
 
 
 def _thousand_over(x: NDArray) -> NDArray:
@@ -198,6 +231,15 @@ def eyring_text(s: EyringSummary, energy_unit: str) -> list[str]:
 
 # --- overview --------------------------------------------------------------------------------
 
+#: a group with fewer values than this is drawn as its points only: a box (quartiles and
+#: whiskers) of two to four values suggests a spread the data cannot show (common practice;
+#: e.g. T. L. Weissgerber et al., PLoS Biol. 2015, 13, e1002128, on showing small samples as
+#: points; from memory)
+MIN_BOX = 5
+#: the overview's own width grows with the groups up to this (inches); beyond it the labels
+#: are rotated rather than the figure made wider
+MAX_OWN_WIDTH_IN = 9.0
+
 
 def overview_figure(
     groups: Mapping[str, Sequence[float]],
@@ -206,15 +248,22 @@ def overview_figure(
     energy_unit: str = "kJ/mol",
     group_title: str = "process kind",
     title: str | None = None,
+    note: str | None = None,
     width: float | None = None,
     height: float = 4.6,
+    style: FigureStyle = SCREEN,
 ) -> Figure:
-    """Barriers (kJ/mol in, shown in ``energy_unit``) per group: a box per group with ≥ 3 values
-    and every value as a point (jittered deterministically so the same data give the same file).
+    """Barriers (kJ/mol in, shown in ``energy_unit``) per group: every value as a point
+    (jittered deterministically so the same data give the same file), with a box when the
+    group has at least :data:`MIN_BOX` values.
 
     ``flagged`` (per group, parallel to its values) marks values with an open error finding:
-    they are drawn as crosses in the warning colour, with a legend entry saying why.
+    they are drawn as crosses in the warning colour, with a legend entry saying why. ``note``
+    is written under the axis title (e.g. that groups overlap). Group names are wrapped,
+    rotated or shortened until no two labels overlap (:func:`.labels.fit_tick_labels`).
     """
+    from registry.reports.labels import wrap_label
+
     names = [g for g in groups if len(groups[g])]
     if not names:
         raise UsageError("no barriers (ΔG‡) to plot")
@@ -223,58 +272,98 @@ def overview_figure(
     marks = [
         np.array((flagged or {}).get(g) or [False] * len(groups[g]), dtype=bool) for g in names
     ]
-    with styled():
-        fig = new_figure(width or max(5.0, 1.1 * len(names) + 2.4), height)
+    own = width or min(MAX_OWN_WIDTH_IN, max(5.0, 0.8 * len(names) + 2.4))
+    with styled(style):
+        fig = new_figure(own, height, None, style)
         ax = fig.add_subplot()
         positions = np.arange(1, len(names) + 1)
-        boxed = [i for i, v in enumerate(values) if v.size >= 3]
-        if boxed:
-            ax.boxplot(
-                [values[i] for i in boxed],
-                positions=positions[boxed],
-                widths=0.5,
-                showfliers=False,
-                patch_artist=True,
-                boxprops={"facecolor": "#ffffff", "edgecolor": theme.MUTED},
-                medianprops={"color": theme.INK, "linewidth": 1.6},
-                whiskerprops={"color": theme.MUTED},
-                capprops={"color": theme.MUTED},
-            )
-        labelled = False
-        for i, v in enumerate(values):
-            jitter = rng.uniform(-0.16, 0.16, v.size)
-            clean = ~marks[i]
-            ax.scatter(
-                positions[i] + jitter[clean],
-                v[clean],
-                s=26,
-                color=theme.GROUPS[i % len(theme.GROUPS)],
-                edgecolors=theme.PAPER,
-                linewidths=0.6,
-                zorder=3,
-            )
-            if marks[i].any():
-                ax.scatter(
-                    positions[i] + jitter[marks[i]],
-                    v[marks[i]],
-                    s=46,
-                    marker="X",
-                    color=theme.WARN,
-                    edgecolors=theme.PAPER,
-                    linewidths=0.6,
-                    zorder=4,
-                    label=None if labelled else "flagged: an error finding is open",
-                )
-                labelled = True
-        if labelled:
-            ax.legend(loc="best", fontsize=8)
-        ax.set_xticks(
-            positions, [f"{n}\n(n = {len(v)})" for n, v in zip(names, values, strict=True)]
-        )
+        _boxes(ax, values, positions, style)
+        if _points(ax, values, marks, positions, rng, style):
+            ax.legend(loc="best", fontsize=style.note_size)
+        labels = [f"{wrap_label(n)}\n(n = {len(v)})" for n, v in zip(names, values, strict=True)]
+        ax.set_xticks(positions, labels)
         ax.set_xlim(0.4, len(names) + 0.6)
         ax.grid(axis="x", visible=False)
         ax.set_ylabel(f"ΔG‡ ({energy_unit})")
-        ax.set_xlabel(group_title)
+        if note:  # wrapped to the figure's width (about 12 characters an inch at note size)
+            chars = max(30, int(fig.get_size_inches()[0] * 96 / style.note_size))
+            note = textwrap.fill(note, chars)
+        ax.set_xlabel(group_title + (f"\n{note}" if note else ""))
         if title:
-            ax.set_title(title)
+            set_title(fig, ax, title, style)
+        _fit_labels(fig, ax, names, [len(v) for v in values], style)
     return fig
+
+
+def _fit_labels(
+    fig: Figure, ax: Axes, names: list[str], counts: list[int], style: FigureStyle
+) -> None:
+    """Labels that do not overlap; at the figure's own size it is widened for very many
+    groups, at a size the user chose a crowded figure is refused rather than drawn illegibly."""
+    from registry.reports.labels import fit_tick_labels
+
+    while fit_tick_labels(fig, ax, names, counts) == "crowded":
+        width, height = fig.get_size_inches()
+        if style.size is not None or width >= 40.0:
+            raise UsageError(
+                f"{len(names)} groups do not fit side by side in {width:g} in with readable "
+                "labels; choose a wider size (e.g. double, or 10x4)"
+            )
+        fig.set_size_inches(min(40.0, width * 1.5), height)
+
+
+def _boxes(ax: Axes, values: list[NDArray], positions: NDArray, style: FigureStyle) -> None:
+    """A box for each group of at least :data:`MIN_BOX` values."""
+    boxed = [i for i, v in enumerate(values) if v.size >= MIN_BOX]
+    if not boxed:
+        return
+    ax.boxplot(
+        [values[i] for i in boxed],
+        positions=positions[boxed],
+        widths=0.5,
+        showfliers=False,
+        patch_artist=True,
+        boxprops={"facecolor": "#ffffff", "edgecolor": style.muted},
+        medianprops={"color": style.ink, "linewidth": style.line_width * 0.9},
+        whiskerprops={"color": style.muted},
+        capprops={"color": style.muted},
+    )
+
+
+def _points(
+    ax: Axes,
+    values: list[NDArray],
+    marks: list[NDArray],
+    positions: NDArray,
+    rng: np.random.Generator,
+    style: FigureStyle,
+) -> bool:
+    """Every value as a point, flagged ones as crosses; True when a cross was drawn."""
+    size = (style.marker_size * 0.85) ** 2
+    labelled = False
+    for i, v in enumerate(values):
+        jitter = rng.uniform(-0.16, 0.16, v.size)
+        clean = ~marks[i]
+        ax.scatter(
+            positions[i] + jitter[clean],
+            v[clean],
+            s=size,
+            color=style.groups[i % len(style.groups)],
+            edgecolors=style.paper,
+            linewidths=0.6,
+            zorder=3,
+        )
+        if marks[i].any():
+            ax.scatter(
+                positions[i] + jitter[marks[i]],
+                v[marks[i]],
+                s=size * 1.8,
+                marker="X",
+                color=style.warn,
+                edgecolors=style.paper,
+                linewidths=0.6,
+                zorder=4,
+                label=None if labelled else "flagged: an error finding is open",
+            )
+            labelled = True
+    return labelled

@@ -150,7 +150,11 @@ def _eyring_plot(m: Mapping[str, Any], out: Path) -> tuple[str | None, str | Non
     odd = not_finite_points([(p["t_k"], p["k_per_s"], p.get("k_err_per_s")) for p in points])
     if odd:
         return None, f"No Eyring plot: {odd}"
-    title = f"measurement {int(m['id'])}: {m.get('compound') or m.get('compound_name') or ''}"
+    from registry.reports.gather import measurement_title
+
+    title = measurement_title(
+        int(m["id"]), m.get("label"), m.get("compound"), m.get("compound_name")
+    )
     series = series_from_points(
         [p["t_k"] for p in points],
         [p["k_per_s"] for p in points],
@@ -191,12 +195,15 @@ def build_report(
     include_retracted: bool = False,
     include_flagged: bool = False,
     plots: bool = True,
+    columns: Sequence[str] = (),
 ) -> ReportResult:
     """Write the report folder (index, a page per compound, plots) and say what went in.
 
     The folder is checked before anything is read and the registry is read before anything is
     written; the new pages replace the old ones only once all are written. So a refused
-    folder, an unreadable registry or a full disk leaves an existing report intact.
+    folder, an unreadable registry or a full disk leaves an existing report intact. Pages
+    name the registry by its file name (or server database name), never by a path.
+    ``columns`` adds the group's own columns (operator, notebook page …) to the index table.
     """
     from registry.reports import gather
 
@@ -209,10 +216,11 @@ def build_report(
     groups = gather.barriers_by_kind(
         database, include_retracted=include_retracted, include_flagged=include_flagged
     )
+    shown, column_notes = _known_columns(columns, measurements)
     staging = _prepare(out)
     try:
         when = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
-        subtitle = escaped(f"{database.name} · written {when} by fluxledger")
+        subtitle = escaped(f"{gather.registry_title(database)} · written {when} by fluxledger")
         result = ReportResult(directory=str(out), index=str(out / "index.html"))
         result.measurements = len(measurements)
         result.flagged = sum(1 for m in measurements if m.get("flagged"))
@@ -232,13 +240,32 @@ def build_report(
         index = render_index(
             measurements, title=title, subtitle=subtitle,
             counts=_counts(measurements, compounds), overview=overview,
-            overview_note=_overview_note(groups.left_out, include_flagged),
+            overview_note=_overview_note(groups.left_out, include_flagged), extra=shown,
         )  # fmt: skip
         _put_in_place(out, staging, index)
     finally:
         shutil.rmtree(staging, ignore_errors=True)
     result.notes.extend(_notes(result, groups, measurements, compounds))
+    result.notes.extend(column_notes)
     return result
+
+
+def _known_columns(
+    columns: Sequence[str], measurements: Sequence[Mapping[str, Any]]
+) -> tuple[list[str], list[str]]:
+    """The asked-for columns some measurement has, and a note for each one none has (naming
+    the ones there are)."""
+    known: dict[str, str] = {}
+    for m in measurements:
+        for k in m.get("extra") or {}:
+            known.setdefault(k.casefold(), k)
+    shown = [c for c in columns if c.casefold() in known]
+    missing = [c for c in columns if c.casefold() not in known]
+    there = ", ".join(sorted(known.values())) or "none"
+    return shown, [
+        f"column {c!r}: no measurement has it, left out (the group's own columns here: {there})"
+        for c in missing
+    ]
 
 
 @dataclass(frozen=True)

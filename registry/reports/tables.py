@@ -202,8 +202,7 @@ def _layout(
         e = convert(float(err), "J/(mol*K)", units.entropy) if _present(err) else None
         return format_uncertain(v, e, style=style, minus=minus, plus_minus=pm)
 
-    for r in rows:
-        key = (r.get("method") or None, r.get("solvent") or None)
+    for r, key in zip(rows, normalised_conditions(rows), strict=True):
         marker = None
         if any(key):
             marker = conditions.setdefault(key, _letters(len(conditions)))
@@ -237,6 +236,46 @@ def _layout(
         [(m, method, solvent) for (method, solvent), m in conditions.items()],
         list(references),
     )
+
+
+def normalised_conditions(rows: Sequence[Mapping[str, Any]]) -> list[tuple[str | None, str | None]]:
+    """(method, solvent) of each row, normalised so that one condition gets one footnote.
+
+    The method is named as the vocabulary names it. Solvents are the same when the registry's
+    solvent table links them to one entry (the ``solvent_name`` a row carries), else when the
+    built-in solvent table knows the spelling, else when they fold to the same letters and
+    digits; each is then written as the table first spells it, its deuterium label in lower
+    case (``DMSO-D6`` → ``DMSO-d6``: the isotope symbol in a labelled solvent's name is a
+    lower-case d, as in chloroform-d; IUPAC Red Book isotope nomenclature, from memory)."""
+    from registry.record import vocab
+
+    builtin = _builtin_solvents()
+    shown: dict[str, str] = {}
+    out: list[tuple[str | None, str | None]] = []
+    for row in rows:
+        method = (row.get("method") or "").strip() or None
+        if method:
+            method = vocab.read_method(method).name or method
+        text = " ".join((row.get("solvent") or "").split())
+        if not text:
+            out.append((method, row.get("solvent_name") or None))
+            continue
+        folded = vocab.solvent_key(text)
+        key = row.get("solvent_name") or builtin.get(folded) or folded
+        spelled = re.sub(r"(?<=[-\s])D(\d+)\b", r"d\1", text)
+        out.append((method, shown.setdefault(key, spelled)))
+    return out
+
+
+def _builtin_solvents() -> dict[str, str]:
+    """Folded spelling (name, formula, aliases) → name, of the built-in solvent table."""
+    from registry.record import vocab
+
+    out: dict[str, str] = {}
+    for name, formula, _deut, _mp, _bp, _src, aliases in vocab.SOLVENTS:
+        for spelled in (name, formula, *aliases):
+            out.setdefault(vocab.solvent_key(spelled), name)
+    return out
 
 
 def _has_paren(layout: _Layout) -> bool:

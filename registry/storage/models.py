@@ -176,6 +176,15 @@ class Measurement(Base):
     t_calibration_err_k: Mapped[float | None] = mapped_column(Float)
     dh_ds_corr: Mapped[float | None] = mapped_column(Float)
     dh_ds_corr_text: Mapped[str | None] = mapped_column(Text)
+    # how a computed barrier was computed (migration 0007; registry.record.theory): level of
+    # theory as written, method, basis set, solvation model, conformer treatment, and the
+    # standard state (1 M, 1 atm, 1 bar) it refers to
+    theory_level: Mapped[str | None] = mapped_column(Text)
+    theory_method: Mapped[str | None] = mapped_column(Text)
+    theory_basis: Mapped[str | None] = mapped_column(Text)
+    theory_solvation: Mapped[str | None] = mapped_column(Text)
+    theory_conformers: Mapped[str | None] = mapped_column(Text)
+    standard_state: Mapped[str | None] = mapped_column(String(8))
     extra_json: Mapped[str | None] = mapped_column(Text)  # unknown spreadsheet columns, kept
     entered_by: Mapped[str] = mapped_column(String(128))
     entered_at: Mapped[datetime] = mapped_column(DateTime(timezone=True))

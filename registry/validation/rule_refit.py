@@ -10,13 +10,14 @@ taken as absolute), otherwise equal weights with the covariance scaled by the re
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from numpy.typing import NDArray
 
 from registry.kinetics.constants import LN_KB_OVER_H, R_J_MOL_K, R_KJ_MOL_K
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
+from registry.validation.conventions import rate_basis
 from registry.validation.data import CheckData
 from registry.validation.reported import energy_units, value_units
 
@@ -107,7 +108,7 @@ class ActivationRefit(Rule):
     """Reported ΔH‡, ΔS‡ and ΔG‡ must agree with an Eyring refit of the stored rate points."""
 
     id = "activation-refit"
-    version = 1
+    version = 2  # 2: the recorded path degeneracy, κ and concentration (σ·c·κ) are used
     severity = "warning"
     title = "ΔH‡/ΔS‡/ΔG‡ against a refit of the rate points"
     uses = (
@@ -122,6 +123,11 @@ class ActivationRefit(Rule):
         fit = fit_rate_points(data)
         if fit is None:
             return []
+        # the barrier refers to k/(σ·c·κ) as recorded (see .conventions): a constant factor
+        # leaves ΔH‡ alone and moves ΔS‡ by −R·ln(divisor), ΔG‡(T) by +RT·ln(divisor)
+        ln_div = np.log(rate_basis(data, np.arange(len(data))).divisor)
+        fit = replace(fit, ds_j_mol_k=fit.ds_j_mol_k - R_J_MOL_K * ln_div,
+                      intercept=fit.intercept - ln_div)  # fmt: skip
         enough = (fit.n_points >= config.min_rate_points) & np.isfinite(fit.dh_kj_mol)
         out: list[Finding] = []
         c = config.coverage

@@ -8,6 +8,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from registry.record import vocab
+from registry.record.theory import THEORY_COLUMNS, theory_key
 from registry.validation.base import CheckConfig, Finding, Rule, fnum, opt
 from registry.validation.data import CheckData
 from registry.validation.reported import energy_units
@@ -46,11 +47,12 @@ class RepeatsAgree(Rule):
     ΔT·ΔS‡ even for one process: where either stores ΔS‡, the checked one is moved to the
     other's temperature (ΔG‡(T₂) = ΔG‡(T₁) − (T₂ − T₁)·ΔS‡) and compared there; where
     neither does, up to ``duplicate_max_dt_k`` apart the tolerance grows by
-    |ΔT|·``ds_allowance_j_mol_k``, and further apart the two are not comparable (not compared).
+    |ΔT|·``ds_allowance_j_mol_k``, and further apart the two are not comparable: a note says
+    so (they are not compared).
     """
 
     id = "repeat-disagrees"
-    version = 2
+    version = 3  # 3: repeats too far apart in temperature to compare get a note saying so
     severity = "warning"
     title = "repeated measurements agree"
     uses = ("dg_tolerance_kj_mol", "coverage", "duplicate_max_dt_k", "ds_allowance_j_mol_k")
@@ -59,7 +61,10 @@ class RepeatsAgree(Rule):
         pairs = _disagreeing_pairs(data, config)
         if pairs is None:
             return []
-        mine, other, tol, excess, shift = pairs
+        mine, other, tol, excess, shift, far_mine, far_other = pairs
+        out = self._not_comparable(data, far_mine, far_other, config)
+        if mine.size == 0:
+            return out
         # per checked row the worst disagreement (ties: the repeat stored first), and how many
         order = np.lexsort((other, -excess, mine))
         mine, other, tol, shift = mine[order], other[order], tol[order], shift[order]
@@ -73,7 +78,6 @@ class RepeatsAgree(Rule):
         t_o = data.peers["dg_t_k"][peers]
         peer_ids = data.peers["id"][peers]
         labels, factors = energy_units(data.text("dg_text")[rows], data.col("dg_kj_mol")[rows])
-        out = []
         for i, p in enumerate(rows.tolist()):
             u, f = labels[i], float(factors[i])
             mine_dg, their_dg, their_id = float(dg[i]), float(dg_o[i]), int(peer_ids[i])
@@ -101,6 +105,36 @@ class RepeatsAgree(Rule):
             )
         return out
 
+    def _not_comparable(
+        self, data: CheckData, mine: NDArray[np.int64], other: NDArray[np.int64],
+        config: CheckConfig,
+    ) -> list[Finding]:  # fmt: skip
+        """A note per checked row whose repeats lie too far apart in temperature, without ΔS‡
+        on either side, to say whether they agree (the nearest one named)."""
+        if mine.size == 0:
+            return []
+        t_m, t_o = data.col("dg_t_k")[mine], data.peers["dg_t_k"][other]
+        gap = np.abs(t_o - t_m)
+        order = np.lexsort((gap, mine))
+        mine, other, gap = mine[order], other[order], gap[order]
+        first = np.r_[True, mine[1:] != mine[:-1]]
+        out = []
+        for p, o, dt in zip(mine[first].tolist(), other[first].tolist(), gap[first].tolist(),
+                            strict=True):  # fmt: skip
+            peer = int(data.peers["id"][o])
+            out.append(
+                self.finding(
+                    int(data.ids[p]),
+                    f"not compared with measurement {peer} of the same compound, process, "
+                    f"solvent and method: their ΔG‡ were taken {dt:.0f} K apart (more than "
+                    f"{config.duplicate_max_dt_k:g} K) and neither stores ΔS‡ to move one to the "
+                    "other's temperature",
+                    severity="note",
+                    context=f"far:{peer}",
+                )
+            )
+        return out
+
 
 def _integers(values: NDArray[Any], missing: int = -1) -> NDArray[np.int64]:
     """An object column of integer ids as int64 (``missing`` where None)."""
@@ -114,7 +148,8 @@ def _integers(values: NDArray[Any], missing: int = -1) -> NDArray[np.int64]:
 def _match_keys(columns: dict[str, NDArray[Any]], methods: dict[str, int]) -> NDArray[np.int64]:
     """(compound, process, method, solvent) of each row as four integers: the solvent is its
     table id, else (negative) the code of its spelling's key; -1 for no process."""
-    method = [methods.setdefault(str(m), len(methods)) for m in columns["method"].tolist()]
+    method = [methods.setdefault(_method_of(columns, i), len(methods))
+              for i in range(len(columns["method"]))]  # fmt: skip
     solvent = _integers(columns["solvent_id"], missing=-1)
     for row in np.flatnonzero(solvent < 0).tolist():
         text = columns["solvent_text"][row]
@@ -123,6 +158,15 @@ def _match_keys(columns: dict[str, NDArray[Any]], methods: dict[str, int]) -> ND
     return np.column_stack(
         [_integers(columns["compound_id"]), _integers(columns["process_id"]), method, solvent]
     )
+
+
+def _method_of(columns: dict[str, NDArray[Any]], row: int) -> str:
+    """The method as repeats are matched on: a computed value with its level of theory (two
+    levels of theory for one compound are two methods, not a repeat)."""
+    method = str(columns["method"][row])
+    if method != "computed":
+        return method
+    return "computed|" + theory_key({c: columns[c][row] for c in THEORY_COLUMNS})
 
 
 def _match_codes(data: CheckData) -> tuple[NDArray[np.int64], NDArray[np.int64]]:
@@ -142,9 +186,10 @@ def _match_codes(data: CheckData) -> tuple[NDArray[np.int64], NDArray[np.int64]]
 def _disagreeing_pairs(
     data: CheckData, config: CheckConfig
 ) -> tuple[NDArray[np.int64], NDArray[np.int64], NDArray[np.float64], NDArray[np.float64],
-           NDArray[np.float64]] | None:  # fmt: skip
+           NDArray[np.float64], NDArray[np.int64], NDArray[np.int64]] | None:  # fmt: skip
     """(checked row, peer row, tolerance, excess, ΔG‡ shift of the checked row) of every repeat
-    pair that disagrees (the shift moves it to the peer's temperature; 0 where not moved)."""
+    pair that disagrees (the shift moves it to the peer's temperature; 0 where not moved), and
+    (checked row, peer row) of the repeats too far apart in temperature to compare."""
     peers = data.peers
     if len(data) == 0 or peers["id"].size == 0:
         return None
@@ -185,9 +230,8 @@ def _disagreeing_pairs(
     )
     excess = np.abs(dg + shift - dg_o) - tol
     bad = comparable & (excess > 0)
-    if not bad.any():
-        return None
-    return mine[bad], other[bad], tol[bad], excess[bad], shift[bad]
+    far = ~comparable
+    return (mine[bad], other[bad], tol[bad], excess[bad], shift[bad], mine[far], other[far])
 
 
 #: temperatures this close count as the same (rounding; common practice, no source)
