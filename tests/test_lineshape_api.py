@@ -248,3 +248,16 @@ def test_simulate_loads_no_optimizer_or_plotting() -> None:
         [sys.executable, "-c", code], capture_output=True, text=True, check=True, timeout=120
     )
     assert out.stdout.strip() == "[]"
+
+
+def test_three_sites_keep_their_sites_and_say_so() -> None:
+    """Δν and populations vary only for two sites; more sites refuse other modes by name."""
+    from registry.errors import UsageError
+    from registry.lineshape.spectrum import Spectrum
+
+    sim = api.simulate_lineshape("-80,10,75 Hz", 100.0, scheme="cycle", points=1024)
+    spec = Spectrum(sim.x, sim.intensity, "Hz", "three", t_k=300.0)
+    with pytest.raises(UsageError, match=r"^shifts_mode, populations_mode: Δν and the pop"):
+        api.fit_lineshapes([spec], "-80,10,75 Hz", scheme="cycle", shifts_mode="tie")
+    result = api.fit_lineshapes([spec], "-80,10,75 Hz", scheme="cycle", width=1.0)
+    assert result.fits[0].parameters == ()

@@ -247,7 +247,10 @@ def fit_series(
     (:func:`reference_widths`, on the whole spectrum before the region is cut), in order.
     """
     if len(model.shifts_hz) != 2:
-        raise UsageError("shifts and populations can vary only for two sites; hold them")
+        raise UsageError(
+            "shifts_mode, populations_mode: Δν and the populations vary only for two sites; "
+            "use auto or hold"
+        )
     widths: list[ReferenceWidth | None] = (
         list(references) if references is not None else [None] * len(spectra)
     )

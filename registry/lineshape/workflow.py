@@ -272,7 +272,10 @@ def _fit_all(
     if len(model.shifts_hz) == 2:
         return fit_series(inputs, model, options, references)
     if options.shifts not in ("auto", "hold") or options.populations not in ("auto", "hold"):
-        raise UsageError("shifts and populations can vary only for two sites; hold them")
+        raise UsageError(
+            "shifts_mode, populations_mode: Δν and the populations vary only for two sites; "
+            "use auto or hold"
+        )
     tied = tie_widths(references) if references and options.tie_width else None
     widths = [tied or r for r in references] if references else [None] * len(inputs)
     fits = [
