@@ -265,7 +265,6 @@ def _fit_all(
     references: list[ReferenceWidth] | None,
 ) -> SeriesFit:
     """Two sites: the series fit; more: each spectrum with its sites held (reference width held)."""
-    from registry.lineshape.fit import fit_spectrum
     from registry.lineshape.reference import tie_widths
     from registry.lineshape.series import SeriesFit, fit_series
 
@@ -278,21 +277,40 @@ def _fit_all(
         )
     tied = tie_widths(references) if references and options.tie_width else None
     widths = [tied or r for r in references] if references else [None] * len(inputs)
-    fits = [
-        fit_spectrum(
-            s.freq_hz,
-            s.intensity,
-            model,
-            width_hz=options.width_hz if w is None else w.width_hz,
-            fix_width=options.fix_width or w is not None,
-            source=s.source,
-            t_k=None if math.isnan(s.t_k) else s.t_k,
-            t_text=s.t_text,
-        )
-        for s, w in zip(inputs, widths, strict=True)
-    ]
+    fits = [_held_sites_fit(s, model, options, w) for s, w in zip(inputs, widths, strict=True)]
     fits.sort(key=lambda f: (f.t_k is None, f.t_k or 0.0))
     return SeriesFit(tuple(fits), (), tuple(references or ()), tied)
+
+
+def _held_sites_fit(
+    s: SpectrumInput,
+    model: ExchangeModel | CoupledABModel,
+    options: SiteOptions,
+    ref: ReferenceWidth | None,
+) -> LineShapeFit:
+    """One spectrum with its sites as given; a measured width is held, and its σ carried into
+    σ(ln k) by refitting at w + σ_w (the change of ln k, added in quadrature)."""
+    from dataclasses import replace
+
+    from registry.lineshape.fit import fit_spectrum
+
+    def fit(width: float, fixed: bool) -> LineShapeFit:
+        return fit_spectrum(
+            s.freq_hz, s.intensity, model, width_hz=width, fix_width=fixed, source=s.source,
+            t_k=None if math.isnan(s.t_k) else s.t_k, t_text=s.t_text,
+        )  # fmt: skip
+
+    if ref is None:
+        return fit(options.width_hz, options.fix_width)
+    best = fit(ref.width_hz, True)
+    if not ref.width_err_hz or best.ln_k_err is None or best.failed:
+        return best
+    shifted = fit(ref.width_hz + ref.width_err_hz, True)
+    ln_k_err = math.hypot(best.ln_k_err, shifted.ln_k - best.ln_k)
+    return replace(
+        best, ln_k_err=ln_k_err, k_err_per_s=best.k_per_s * ln_k_err,
+        width_err_hz=ref.width_err_hz,
+    )  # fmt: skip
 
 
 def _global(
