@@ -248,3 +248,38 @@ def test_simulate_loads_no_optimizer_or_plotting() -> None:
         [sys.executable, "-c", code], capture_output=True, text=True, check=True, timeout=120
     )
     assert out.stdout.strip() == "[]"
+
+
+def test_three_sites_keep_their_sites_and_say_so() -> None:
+    """Δν and populations vary only for two sites; more sites refuse other modes by name."""
+    from registry.errors import UsageError
+    from registry.lineshape.spectrum import Spectrum
+
+    sim = api.simulate_lineshape("-80,10,75 Hz", 100.0, scheme="cycle", points=1024)
+    spec = Spectrum(sim.x, sim.intensity, "Hz", "three", t_k=300.0)
+    with pytest.raises(UsageError, match=r"^shifts_mode, populations_mode: Δν and the pop"):
+        api.fit_lineshapes([spec], "-80,10,75 Hz", scheme="cycle", shifts_mode="tie")
+    result = api.fit_lineshapes([spec], "-80,10,75 Hz", scheme="cycle", width=1.0)
+    assert result.fits[0].parameters == ()
+
+
+def test_three_sites_carry_the_reference_width_error_into_k() -> None:
+    """A held measured width: σ(ln k) grows by the change of ln k over one σ_w (added in
+    quadrature): σ_k is larger than with the same width held as exact."""
+    from registry.lineshape.spectrum import Spectrum
+
+    sim = api.simulate_lineshape(
+        "-80,10,75 Hz", 30.0, scheme="cycle", points=4096, width=1.0, noise=0.002, seed=3,
+        reference="-250 Hz", window="-300,200 Hz",
+    )  # fmt: skip
+    spec = Spectrum(sim.x, sim.intensity, "Hz", "three", t_k=300.0)
+    measured = api.fit_lineshapes(
+        [spec], "-80,10,75 Hz", scheme="cycle", reference="-280,-220 Hz", region="-200,200 Hz"
+    ).fits[0]
+    held = api.fit_lineshapes(
+        [spec], "-80,10,75 Hz", scheme="cycle", width=1.0, fix_width=True, region="-200,200 Hz"
+    ).fits[0]
+    assert measured.width_err_hz is not None and measured.width_err_hz > 0
+    assert measured.k_err_per_s is not None and held.k_err_per_s is not None
+    assert measured.k_err_per_s > held.k_err_per_s
+    assert abs(measured.k_per_s - 30.0) < 4 * measured.k_err_per_s

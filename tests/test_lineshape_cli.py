@@ -86,10 +86,14 @@ def test_fit_table_and_global(cli, vt_files: list[Path]) -> None:  # type: ignor
     )  # fmt: skip
     assert result.exit_code == 0, result.stderr
     lines = result.stdout.splitlines()
-    assert lines[0].split() == ["file", "T/K", "k/s-1", "±k", "w/Hz", "offset/Hz", "rms", "note"]
+    assert lines[0].split() == [
+        "file", "T/K", "k/s-1", "±k", "w/Hz", "offset/Hz", "Δν/Hz", "p1", "rms", "note"
+    ]  # fmt: skip
     assert [ln.split()[0] for ln in lines[2:5]] == ["vt_270.csv", "vt_285.csv", "vt_300.csv"]
-    assert lines[5].startswith("Eyring line (weighted, 3 rates): ΔH‡ = ")
-    assert lines[6].startswith("global fit (3 spectra, χ²/dof = ")
+    assert lines[5] == "after a value: ~ tied to the series, = held, ? fitted but not determined"
+    rest = [ln for ln in lines[6:] if not ln.startswith(("Δν drift", "populations, van"))]
+    assert rest[0].startswith("Eyring line (weighted, 3 rates): ΔH‡ = ")
+    assert rest[1].startswith("global fit (3 spectra, χ²/dof = ")
     data = json.loads(
         cli("lineshape", "fit", *map(str, vt_files), "--sites", SITES, "--width", "1.2",
             "--fix-width", "--global", "--json").stdout
@@ -274,3 +278,40 @@ def test_cli_module_import_is_light() -> None:
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
+
+
+def test_reference_window_tied_width_and_modes(cli, tmp_path: Path) -> None:  # type: ignore[no-untyped-def]
+    """simulate --reference adds a singlet; fit --reference --tie-width holds one width for the
+    series, measured on it (simulated at 1.2 Hz), and says so for every spectrum."""
+    files = []
+    for i, t in enumerate(TEMPS):
+        path = tmp_path / f"r_{t:.0f}.csv"
+        k = math.exp(eyring_ln_rate(t, DH, DS))
+        result = cli(
+            "lineshape", "simulate", "--sites", SITES, "--field", "400.13", "--k", f"{k:.6g}",
+            "--width", "1.2", "--points", "8192", "--noise", "0.01", "--seed", str(i + 1),
+            "--temperature", f"{t} K", "--reference", "2.40", "--window", "3.5,2.2",
+            "--out", str(path),
+        )  # fmt: skip
+        assert result.exit_code == 0, result.stderr
+        files.append(path)
+    result = cli(
+        "lineshape", "fit", *map(str, files), "--sites", SITES, "--region", "3.4,2.6",
+        "--reference", "2.45,2.35", "--tie-width", "--json",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.stderr
+    data = json.loads(result.stdout)
+    tied = data["tied_width"]
+    assert abs(tied["width_hz"] - 1.2) < 4 * tied["width_err_hz"]
+    assert len(data["reference_widths"]) == 3
+    for fit in data["fits"]:
+        width = next(p for p in fit["parameters"] if p["name"] == "width")
+        assert width["how"] == "tied (series)"
+        k_true = math.exp(eyring_ln_rate(fit["t_k"], DH, DS))
+        assert abs(fit["k_per_s"] - k_true) < 4 * fit["k_err_per_s"]
+    bad = cli("lineshape", "fit", *map(str, files), "--sites", SITES, "--shifts-mode", "drift")
+    assert bad.exit_code == 2
+    assert bad.stderr == "error: shifts_mode must be one of auto, fit, hold, tie, not 'drift'\n"
+    lonely = cli("lineshape", "fit", *map(str, files), "--sites", SITES, "--tie-width")
+    assert lonely.exit_code == 2
+    assert lonely.stderr == "error: tie_width needs a reference window (reference)\n"

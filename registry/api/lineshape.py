@@ -40,6 +40,8 @@ def simulate_lineshape(
     noise: float = 0.0,
     seed: int = 0,
     temperature: Quantity | None = None,
+    coupling: Quantity | None = None,
+    reference: Quantity | None = None,
 ) -> SimulatedSpectrum:
     """The unit-area spectrum of exchanging sites; written as CSV to ``out`` when given.
 
@@ -47,8 +49,10 @@ def simulate_lineshape(
     frequency in MHz); ``k`` the rate constant for leaving site 1 (s⁻¹ unless written);
     ``width`` the intrinsic FWHM (Hz unless written); ``window`` 'lo,hi' in the sites' unit
     (default: the sites with a margin); ``noise`` Gaussian noise as a fraction of the tallest
-    point, drawn from ``seed``; ``temperature`` is only noted in the file. The record holds the
-    points too (``x`` in the sites' unit, ``intensity``).
+    point, drawn from ``seed``; ``temperature`` is only noted in the file. ``coupling`` (J, Hz
+    unless written) makes the two sites a coupled AB pair in mutual exchange; ``reference``
+    (the sites' unit) adds a non-exchanging singlet of the intrinsic width and half the area of
+    the sites there. The record holds the points too (``x`` in the sites' unit, ``intensity``).
     """
     from registry.lineshape import inputs, workflow
 
@@ -58,14 +62,29 @@ def simulate_lineshape(
         raise UsageError(f"noise must be ≥ 0 (a fraction of the tallest point), not {noise!r}")
     mhz = inputs.read_field(field)
     model, unit = inputs.read_sites(sites, populations, scheme, mhz)
+    j_hz = inputs.read_coupling(coupling)
+    if j_hz is not None:
+        model = inputs.coupled_model(model, j_hz, populations is not None)
     k_per_s = inputs.read_positive(k, "rate", "k", "1/s")
     width_hz = inputs.read_positive(width, "shift", "width", "Hz")
     window_hz = None if window is None else inputs.read_window(window, "window", unit, mhz)
     t = None if temperature is None else inputs.read_temperature(temperature)
+    ref_hz = None if reference is None else _reference_position(reference, unit, mhz)
     return workflow.simulate(
         model, k_per_s, width_hz, x_unit=unit, mhz=mhz, points=points, window_hz=window_hz,
-        noise=float(noise), seed=int(seed), temperature=t, out=out,
+        noise=float(noise), seed=int(seed), temperature=t, out=out, reference_hz=ref_hz,
     )  # fmt: skip
+
+
+def _reference_position(value: Quantity, unit: str, mhz: float | None) -> float:
+    from registry.lineshape import inputs
+
+    """One position: a text as written (ppm unless it says Hz), a bare number in the sites' unit."""
+    text = value if isinstance(value, str) else f"{value} {unit}"
+    values, vunit = inputs.read_shifts(text, "reference")
+    if len(values) != 1:
+        raise UsageError("reference: give one position, e.g. '0.00' (ppm) or '-250 Hz'")
+    return inputs.shifts_in_hz(values, vunit, mhz, "reference")[0]
 
 
 def fit_lineshapes(
@@ -86,6 +105,13 @@ def fit_lineshapes(
     measurement_id: int | None = None,
     actor: str | None = None,
     solvent_bp: Quantity | None = None,
+    shifts_mode: str = "auto",
+    populations_mode: str = "auto",
+    reference: QuantityList | None = None,
+    tie_width: bool = False,
+    coupling: Quantity | None = None,
+    fit_coupling: bool = False,
+    store_doubtful: bool = False,
     plot_format: str = "png",
     plot_style: str = "screen",
     plot_size: str | tuple[float, float] | None = None,
@@ -105,13 +131,26 @@ def fit_lineshapes(
     ``solvent_bp`` (K unless written) sharpens the safety cautions. The plots are
     ``plot_format`` (png, svg, pdf) in the one figure style (``plot_style`` screen or print,
     ``plot_size``, ``plot_dpi``: see :func:`registry.reports.style.figure_style`).
+
+    Two sites may drift with temperature. ``shifts_mode`` (Δν; the centre is always fitted) and
+    ``populations_mode`` are each ``'auto'`` (fitted in each spectrum that determines them, tied
+    elsewhere to the series' linear drift / van 't Hoff line), ``'fit'``, ``'hold'`` (as given)
+    or ``'tie'`` (every spectrum on the series' function). ``reference`` is a window 'lo,hi'
+    (sites' unit) holding a non-exchanging line in every spectrum: its width, with its error,
+    is the intrinsic width of that spectrum (``tie_width``: one weighted mean for the series).
+    ``coupling`` (J, Hz unless written) makes the two sites a coupled AB pair in mutual
+    exchange, J held or, with ``fit_coupling``, fitted. Fits whose rate is doubtful (a
+    parameter at a bound, k–width correlation, residuals not noise-like; see each fit's
+    ``problems``) are not stored unless ``store_doubtful``.
     """
+    # long: the docstring names every argument; the body reads them and calls the workflow
     from registry.reports.style import figure_style
 
     look = figure_style(plot_style, size=plot_size, dpi=plot_dpi)
     if plot_format not in ("png", "svg", "pdf"):
         raise UsageError(f"plot_format {plot_format!r}: use png, svg or pdf")
     from registry.lineshape import inputs, workflow
+    from registry.lineshape.series import SiteOptions
 
     single = isinstance(files, (str, Path)) or not hasattr(files, "__iter__")
     sources = [] if single else list(files)
@@ -124,8 +163,16 @@ def fit_lineshapes(
     spectra = workflow.load_spectra(sources, temperatures, inputs.read_x_unit(x_unit), mhz_given)
     mhz = workflow.common_mhz(spectra, mhz_given)
     model, unit = inputs.read_sites(sites, populations, scheme, mhz)
-    width_hz = inputs.read_positive(width, "shift", "width", "Hz")
+    model = _coupled(model, coupling, fit_coupling, populations is not None)
     window_hz = None if region is None else inputs.read_window(region, "region", unit, mhz)
+    reference_hz = (
+        None if reference is None else inputs.read_window(reference, "reference", unit, mhz)
+    )
+    options = SiteOptions(
+        shifts=shifts_mode, populations=populations_mode,
+        width_hz=inputs.read_positive(width, "shift", "width", "Hz"), fix_width=fix_width,
+        reference_hz=reference_hz, tie_width=tie_width, fit_coupling=fit_coupling,
+    )  # fmt: skip
     bp_k = None
     if solvent_bp is not None:
         bp_k = inputs.read_positive(solvent_bp, "temperature", "solvent_bp", "K")
@@ -134,8 +181,8 @@ def fit_lineshapes(
     if measurement_id is not None:
         _require_measurement(database, measurement_id)  # before the fits: fail early
     result = workflow.analyse(
-        spectra, model, mhz, width_hz=width_hz, fix_width=fix_width, window_hz=window_hz,
-        global_fit=global_fit, plots_dir=plots_dir, solvent_bp_k=bp_k,
+        spectra, model, mhz, options=options, window_hz=window_hz, global_fit=global_fit,
+        plots_dir=plots_dir, solvent_bp_k=bp_k, store_doubtful=store_doubtful,
         plot_style=look, plot_format=plot_format,
     )  # fmt: skip
     if measurement_id is None:
@@ -143,6 +190,18 @@ def fit_lineshapes(
     assert database is not None
     stored = add_rate_points(database, measurement_id, result.rate_points, actor=actor)
     return replace(result, stored_rate_points=stored, measurement_id=measurement_id)
+
+
+def _coupled(model, coupling: Quantity | None, fit_coupling: bool, pops_given: bool):  # type: ignore[no-untyped-def]
+    """The two sites as a coupled AB pair when a coupling is given."""
+    from registry.lineshape import inputs
+
+    j_hz = inputs.read_coupling(coupling)
+    if j_hz is not None:
+        return inputs.coupled_model(model, j_hz, pops_given)
+    if fit_coupling:
+        raise UsageError("fit_coupling: give the coupling J to start from (coupling)")
+    return model
 
 
 def _require_measurement(database: Database | None, measurement_id: int) -> None:

@@ -39,6 +39,12 @@ _SCHEME = typer.Option(
     "--scheme",
     help="How more than two sites exchange: 'mutual' (every pair) or 'cycle' (1→2→…→n→1).",
 )
+_COUPLING = typer.Option(
+    None,
+    "--coupling",
+    help="J of two coupled sites (Hz unless written): an AB pair whose spins trade places.",
+)
+_MODES = "auto (fitted where a spectrum shows it, else tied), fit, hold, tie"
 _FIELD = typer.Option(
     None, "--field", "--mhz", help="Spectrometer (observe) frequency, e.g. '400.13 MHz'."
 )
@@ -71,6 +77,12 @@ def simulate(
     temperature: str = typer.Option(
         None, "--temperature", help="Temperature to note in the file, e.g. '298 K' or '-20 °C'."
     ),
+    coupling: str = _COUPLING,
+    reference: str = typer.Option(
+        None,
+        "--reference",
+        help="Add a non-exchanging singlet (same width, half the sites' area) at this shift.",
+    ),
     as_json: bool = _JSON,
 ) -> None:
     """Write the spectrum of exchanging sites (unit area) as CSV."""
@@ -79,6 +91,7 @@ def simulate(
     result = api.simulate_lineshape(
         sites, k, out=out, populations=populations, scheme=scheme, width=width, field=field,
         points=points, window=window, noise=noise, seed=seed, temperature=temperature,
+        coupling=coupling, reference=reference,
     )  # fmt: skip
     if as_json:
         print_json(result.to_dict())
@@ -147,9 +160,35 @@ def fit(
     solvent_bp: str = typer.Option(
         None, "--solvent-bp", help="Solvent boiling point, e.g. '61 °C', for the safety notes."
     ),
+    shifts_mode: str = typer.Option(
+        "auto", "--shifts-mode", help=f"How Δν of two sites varies: {_MODES} (linear drift)."
+    ),
+    populations_mode: str = typer.Option(
+        "auto",
+        "--populations-mode",
+        help=f"How the populations of two sites vary: {_MODES} (van 't Hoff).",
+    ),
+    reference: str = typer.Option(
+        None,
+        "--reference",
+        help="Window 'lo,hi' (sites' unit) with a non-exchanging line: its width is the "
+        "intrinsic width of each spectrum.",
+    ),
+    tie_width: bool = typer.Option(
+        False, "--tie-width", help="One intrinsic width for the series: the reference lines' mean."
+    ),
+    coupling: str = _COUPLING,
+    fit_coupling: bool = typer.Option(False, "--fit-coupling", help="Fit J (from --coupling)."),
+    store_doubtful: bool = typer.Option(
+        False,
+        "--store-doubtful",
+        help="Store the rates of doubtful fits too (a parameter at a bound, k–width "
+        "correlation, residuals not noise-like).",
+    ),
     as_json: bool = _JSON,
 ) -> None:
     """Fit exchange rates to spectra; Eyring line through them; optionally store the rates."""
+    # long: one typer option per line of the signature; the body only calls the api
     from registry import api
 
     st = state(ctx)
@@ -160,6 +199,9 @@ def fit(
             x_unit=x_unit, width=width, fix_width=fix_width, region=region,
             global_fit=global_fit, plots_dir=plots, database=database,
             measurement_id=measurement, actor=st.actor, solvent_bp=solvent_bp,
+            shifts_mode=shifts_mode, populations_mode=populations_mode, reference=reference,
+            tie_width=tie_width, coupling=coupling, fit_coupling=fit_coupling,
+            store_doubtful=store_doubtful,
             plot_format=plot_format, plot_style=style, plot_size=size, plot_dpi=dpi,
         )  # fmt: skip
     finally:
@@ -181,17 +223,65 @@ def _sig(value: float | None, digits: int = 4) -> str:
     return text
 
 
+#: how a site parameter was found, as one mark after its value in the table
+_MARKS = {"fitted": "", "held": "=", "reference": "", "fitted, not determined": "?"}
+
+
+def _mark(how: str) -> str:
+    return "~" if how.startswith("tied") else _MARKS.get(how, "")
+
+
 def _fit_row(fit: Any) -> dict[str, Any]:
-    return {
+    row = {
         "file": Path(fit.source).name,
         "T/K": "" if fit.t_k is None else f"{fit.t_k:.2f}",
         "k/s-1": _sig(fit.k_per_s),
         "±k": _sig(fit.k_err_per_s, 2),
         "w/Hz": _sig(fit.width_hz, 3),
         "offset/Hz": f"{fit.offset_hz:.3f}",
-        "rms": _sig(fit.rms, 2),
-        "note": fit.remark,
     }
+    params = {n: (v, h) for n, v, _e, h in fit.parameters}
+    if params:
+        delta, how = params["delta"]
+        row["Δν/Hz"] = f"{delta:.2f}{_mark(how)}"
+        if "population" in params:
+            p1, how = params["population"]
+            row["p1"] = f"{p1:.3f}{_mark(how)}"
+        if "coupling" in params:
+            j, how = params["coupling"]
+            row["J/Hz"] = f"{j:.2f}{_mark(how)}"
+    row["rms"] = _sig(fit.rms, 2)
+    row["note"] = fit.remark
+    return row
+
+
+def _render_series(result: Any) -> None:
+    """What the sites were tied to, and the reference widths."""
+    from registry.api import value_with_error_text as pm
+
+    if any(f.parameters for f in result.fits):
+        typer.echo("after a value: ~ tied to the series, = held, ? fitted but not determined")
+    for t in result.trends:
+        if len(t.sources) < 2:  # one spectrum's value, shown in its row
+            continue
+        d = t.to_dict()
+        if t.kind == "linear drift":
+            typer.echo(
+                f"Δν drift (from {len(t.sources)} spectra): "
+                f"{pm(d['value_hz'], d['error_hz'], 'Hz')} at {d['at_k']:.1f} K, "
+                f"{pm(d['slope_hz_per_k'], d['slope_err_hz_per_k'], 'Hz/K')}"
+            )
+        else:
+            typer.echo(
+                f"populations, van 't Hoff (from {len(t.sources)} spectra; K = p2/p1): "
+                f"ΔH° = {pm(d['dh_kj_mol'], d['dh_err_kj_mol'], 'kJ/mol')}, "
+                f"ΔS° = {pm(d['ds_j_mol_k'], d['ds_err_j_mol_k'], 'J/(mol·K)')}"
+            )
+    if result.tied_width is not None:
+        w = result.tied_width
+        typer.echo(f"intrinsic width {w.how}: {pm(w.width_hz, w.width_err_hz, 'Hz')}")
+    elif result.reference_widths:
+        typer.echo("intrinsic width: from each spectrum's reference line")
 
 
 def _render_fit(result: Any) -> None:
@@ -199,7 +289,8 @@ def _render_fit(result: Any) -> None:
     from registry.api import value_with_error_text as pm
 
     typer.echo(table_text([_fit_row(f) for f in result.fits]))
-    for note in result.fit_notes:
+    _render_series(result)
+    for note in (*result.fit_notes, *result.series_notes):
         typer.echo(f"note: {note}")
     line = result.eyring_line
     if line is not None:

@@ -229,14 +229,22 @@ def fit_spectrum(
         n_par=n_par,
         result=best,
         method="per temperature",
+        width_free=not fix_width,
+        k_width_corr=None if fix_width or cov is None else _corr(cov, 0, 1),
     )
+
+
+def _corr(cov: FloatArray, i: int, j: int) -> float | None:
+    denom = math.sqrt(abs(float(cov[i, i] * cov[j, j])))
+    return float(cov[i, j]) / denom if denom > 0 else None
 
 
 def eyring_from_fits(fits: Sequence[LineShapeFit]) -> EyringFit | None:
     """The weighted Eyring line through per-temperature rates (None below two temperatures).
 
     Failed fits (k at its bound, :attr:`LineShapeFit.failed`) are left out and said so; a point
-    without σ_k gets the least weight of the others (:func:`k_errors`), said in the warnings.
+    without σ_k gets the least weight of the others (:func:`k_errors`), said in the warnings;
+    doubtful fits (:attr:`LineShapeFit.problems`) stay in, and the warnings name them.
     """
     from dataclasses import replace
 
@@ -250,7 +258,13 @@ def eyring_from_fits(fits: Sequence[LineShapeFit]) -> EyringFit | None:
         errors,
     )
     left_out = [f.source for f in fits if f.failed]
+    doubtful = [f.source for f in usable if f.doubtful]
     notes = [note] if note else []
+    if doubtful:
+        notes.append(
+            f"the line runs through doubtful rates ({', '.join(doubtful)}): read their notes "
+            "before trusting ΔH‡ and ΔS‡"
+        )
     if left_out:
         notes.append(f"left out of the Eyring line (the fit failed): {', '.join(left_out)}")
     return replace(line, warnings=(*line.warnings, *notes)) if notes else line

@@ -53,6 +53,14 @@ def bounded_exp(x: float) -> float:
     return math.exp(min(max(float(x), -LN_BOUND), LN_BOUND))
 
 
+def not_converged(result: OptimizeResult) -> str:
+    """The plain words for a fit that stopped before converging (never the optimiser's text)."""
+    return (
+        f"the fit stopped after {result.nfev} evaluations without converging: narrow the "
+        "region to the exchanging lines or hold the width"
+    )
+
+
 def bound_problem(k: float, t_k: float | None, kappa: float = 1.0) -> str | None:
     """Why a fitted k is no result: at the search's bound (±40 in ln k), or above the largest
     rate transition-state theory allows, κ·k_B·T/h (Eyring 1935; ~6.2×10¹² s⁻¹ at 298 K)."""
@@ -107,20 +115,46 @@ class LineShapeFit:
     converged: bool
     message: str
     method: str = "per temperature"
+    #: (name, value, error, how) of each site parameter: fitted, held, tied or reference
+    parameters: tuple[tuple[str, float, float | None, str], ...] = ()
+    #: what makes the rate doubtful, in plain words with what to do (see registry.lineshape.sitefit)
+    problems: tuple[str, ...] = ()
     freq_hz: FloatArray = field(default_factory=lambda: np.empty(0), repr=False)
     data: FloatArray = field(default_factory=lambda: np.empty(0), repr=False)
     best_fit: FloatArray = field(default_factory=lambda: np.empty(0), repr=False)
 
     def to_dict(self) -> dict[str, object]:
         """Plain values for JSON and tables (the arrays are left out)."""
-        skip = {"freq_hz", "data", "best_fit"}
-        return {k: getattr(self, k) for k in self.__dataclass_fields__ if k not in skip}
+        skip = {"freq_hz", "data", "best_fit", "parameters", "problems"}
+        out: dict[str, object] = {
+            k: getattr(self, k) for k in self.__dataclass_fields__ if k not in skip
+        }
+        out["parameters"] = [
+            {"name": n, "value": v, "error": e, "how": h} for n, v, e, h in self.parameters
+        ]
+        out["problems"] = list(self.problems)
+        out["doubtful"] = self.doubtful
+        return out
+
+    @property
+    def doubtful(self) -> bool:
+        """The fit ran but its rate should not be trusted without a look (see ``problems``)."""
+        return bool(self.problems) and not self.failed
 
     @property
     def failed(self) -> bool:
         """k ended at the bound of the search or above κ·k_B·T/h (see :func:`bound_problem`):
         no result, never stored nor used in an Eyring line."""
         return AT_BOUND in self.message
+
+    @property
+    def full_note(self) -> str:
+        """The message and the problems in full; the short "k is poorly determined" is left
+        out when a problem says it at length."""
+        words = [w for w in self.message.split("; ") if w]
+        if self.problems:
+            words = [w for w in words if w != POORLY_DETERMINED]
+        return "; ".join([*words, *self.problems])
 
     @property
     def remark(self) -> str:
@@ -131,6 +165,8 @@ class LineShapeFit:
         """
         if self.failed:
             return "failed: k at its bound"
+        if self.problems:
+            return "doubtful: " + "; ".join(p.split(":")[0] for p in self.problems)
         note = "" if self.converged else "not converged"
         if POORLY_DETERMINED in self.message:
             note = "k poorly determined"
@@ -333,20 +369,36 @@ def make_fit(
     n_par: int,
     result: OptimizeResult,
     method: str,
+    width_free: bool = False,
+    k_width_corr: float | None = None,
 ) -> LineShapeFit:
-    """A :class:`LineShapeFit` in the data's own units, with a warning when k is not pinned."""
+    """A :class:`LineShapeFit` in the data's own units, with a warning when k is not pinned
+    and the problems of :mod:`registry.lineshape.diagnose` (``k_width_corr`` when the width
+    was fitted: None means not separable)."""
+    from registry.lineshape.diagnose import K_UNDETERMINED, residual_problem, width_problem
+
     a, b0, b1 = linear
     model_y = a * prep.shape.value(k, width, offset) + b0 + b1 * prep.u
     resid = model_y - prep.y
-    message = str(result.message)
+    notes = [] if result.success else [not_converged(result)]
     bound = bound_problem(k, prep.t_k)
     if bound:
-        message += "; " + bound
+        notes.append(bound)
         ln_k_err = None
     elif ln_k_err is None or ln_k_err > 1.0:
-        message += "; " + POORLY_DETERMINED
+        notes.append(POORLY_DETERMINED)
     if width <= 1.01 * prep.width_floor:
-        message += "; " + WIDTH_COLLAPSED
+        notes.append(WIDTH_COLLAPSED)
+    message = "; ".join(notes)
+    problems = []
+    if not bound:
+        width_words = width_problem(k_width_corr) if width_free else None
+        if width_words:
+            problems.append(width_words)
+        elif ln_k_err is None or ln_k_err > 1.0:
+            problems.append(K_UNDETERMINED)
+        words = residual_problem(resid, model_y - b0 - b1 * prep.u)
+        problems += [words] if words else []
     return LineShapeFit(
         source=prep.source,
         t_k=prep.t_k,
@@ -368,6 +420,7 @@ def make_fit(
         converged=bool(result.success) and not bound,
         message=message,
         method=method,
+        problems=tuple(problems),
         freq_hz=prep.freq,
         data=prep.y * prep.ynorm,
         best_fit=model_y * prep.ynorm,

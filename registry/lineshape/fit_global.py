@@ -35,6 +35,7 @@ from registry.lineshape.fit_core import (
     bounded_exp,
     covariance,
     make_fit,
+    not_converged,
     prepare,
     std_err,
 )
@@ -50,6 +51,10 @@ class SpectrumInput:
     t_k: float
     source: str
     t_text: str | None = None
+    #: this spectrum's own sites (Δν, populations fitted or tied per spectrum), else the common
+    model: ExchangeModel | None = None
+    #: this spectrum's own intrinsic width to hold (a reference line's), else the common one
+    width_hz: float | None = None
 
 
 @dataclass(frozen=True)
@@ -74,14 +79,14 @@ class _GlobalProblem:
         preps: list[Prepared],
         temps: FloatArray,
         sigmas: FloatArray,
-        width_hz: float,
+        widths: Sequence[float],
         fix_width: bool,
     ) -> None:
         self.preps = preps
         self.temps_array = temps
         self.temps = [float(t) for t in temps]
         self.sigmas = sigmas
-        self.width_hz = width_hz
+        self.widths = list(widths)
         self.fix_width = fix_width
         self.per = 4 if fix_width else 5
         self.t_m = harmonic_mean_temperature(temps)
@@ -100,7 +105,7 @@ class _GlobalProblem:
         """θ → w, δ, A, b₀, b₁ of spectrum i."""
         block = theta[2 + self.per * i : 2 + self.per * (i + 1)]
         if self.fix_width:
-            return self.width_hz, *block
+            return self.widths[i], *block
         return self.preps[i].width(block[0]), *block[1:]
 
     def residuals(self, theta: FloatArray) -> FloatArray:
@@ -133,7 +138,7 @@ def _start(problem: _GlobalProblem, starts: Sequence[LineShapeFit]) -> FloatArra
     t_m = problem.t_m
     line = fit_eyring(problem.temps_array, [f.k_per_s for f in starts], k_errors(starts))
     theta0 = [line.dh_kj_mol - t_m * line.ds_j_mol_k / 1000.0, line.dh_kj_mol]
-    for f, p in zip(starts, problem.preps, strict=True):
+    for i, (f, p) in enumerate(zip(starts, problem.preps, strict=True)):
         local0 = [
             f.offset_hz,
             f.area / p.ynorm,
@@ -141,7 +146,7 @@ def _start(problem: _GlobalProblem, starts: Sequence[LineShapeFit]) -> FloatArra
             f.baseline_slope_per_hz * p.half_span / p.ynorm,
         ]
         # a start whose width collapsed (see fit_core.make_fit) restarts from the given width
-        w0 = f.width_hz if f.width_hz > 1.01 * p.width_floor else problem.width_hz
+        w0 = f.width_hz if f.width_hz > 1.01 * p.width_floor else problem.widths[i]
         theta0 += local0 if problem.fix_width else [p.theta_w(w0), *local0]
     return np.asarray(theta0, dtype=float)
 
@@ -201,8 +206,8 @@ def fit_global(
             fit_spectrum(
                 s.freq_hz,
                 s.intensity,
-                model,
-                width_hz=width_hz,
+                s.model or model,
+                width_hz=width_hz if s.width_hz is None else s.width_hz,
                 fix_width=fix_width,
                 source=s.source,
                 t_k=s.t_k,
@@ -212,11 +217,13 @@ def fit_global(
         ]
     per = 4 if fix_width else 5
     preps = [
-        prepare(s.freq_hz, s.intensity, model, s.source, s.t_k, s.t_text, per + 2) for s in spectra
+        prepare(s.freq_hz, s.intensity, s.model or model, s.source, s.t_k, s.t_text, per + 2)
+        for s in spectra
     ]
     sigmas = np.array([max(f.rms / p.ynorm, 1e-12) for f, p in zip(starts, preps, strict=True)])
     temps = np.array([s.t_k for s in spectra])
-    problem = _GlobalProblem(preps, temps, sigmas, width_hz, fix_width)
+    widths = [width_hz if s.width_hz is None else s.width_hz for s in spectra]
+    problem = _GlobalProblem(preps, temps, sigmas, widths, fix_width)
     result = least_squares(
         problem.residuals,
         _start(problem, starts),
@@ -240,9 +247,10 @@ def fit_global(
     fits = _fits_at(problem, result, cov)
     note = extrapolation_warning(temps, T_STANDARD_K)
     failed = [f.source for f in fits if f.failed]
-    message = str(result.message)
+    notes = [] if result.success else [not_converged(result)]
     if failed:  # a rate at the bound is no result: nor is the fit that implies it
-        message += f"; k ran to the bound of the search at {', '.join(failed)}: the fit failed"
+        notes.append(f"k ran to the bound of the search at {', '.join(failed)}: the fit failed")
+    message = "; ".join(notes)
     return GlobalFit(
         eyring, fits, problem.n_total, chi2, bool(result.success) and not failed, message,
         (note,) if note else (),

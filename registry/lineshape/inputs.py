@@ -178,3 +178,24 @@ def read_x_unit(value: str | None) -> str | None:
     if unit is None:
         raise UsageError(f"x_unit must be 'ppm' or 'Hz', not {value!r}")
     return unit
+
+
+def read_coupling(value: Quantity | None) -> float | None:
+    """J of a coupled AB pair in Hz (a bare number means Hz); may be zero or negative."""
+    if value is None:
+        return None
+    return parse_value(value, "shift", field="coupling", default_unit="Hz").value
+
+
+def coupled_model(model: ExchangeModel, j_hz: float, populations_given: bool):  # type: ignore[no-untyped-def]
+    """The coupled AB pair of two sites; mutual exchange of its spins keeps populations equal."""
+    from registry.lineshape.coupled import CoupledABModel
+
+    if len(model.shifts_hz) != 2:
+        raise UsageError("coupling: a coupled AB pair has exactly two sites")
+    if populations_given:
+        raise UsageError(
+            "populations: the two spins of a coupled AB pair trade places, so their sites are "
+            "equally populated; leave the populations out"
+        )
+    return CoupledABModel((model.shifts_hz[0], model.shifts_hz[1]), j_hz)

@@ -17,6 +17,8 @@ if TYPE_CHECKING:
     from registry.kinetics.fits import EyringFit
     from registry.lineshape.fit_core import LineShapeFit
     from registry.lineshape.fit_global import GlobalFit
+    from registry.lineshape.reference import ReferenceWidth
+    from registry.lineshape.series import Trend
 
 #: which k every result means (see registry.lineshape.simulate)
 K_CONVENTION = "k = rate constant for leaving site 1 (k_AB = 1/tau_A), s-1"
@@ -57,6 +59,9 @@ class SimulatedSpectrum:
     noise: float
     seed: int | None
     t_k: float | None
+    #: J of a coupled AB pair (Hz), and the non-exchanging reference line's position (Hz)
+    coupling_hz: float | None = None
+    reference_hz: float | None = None
     #: abscissa in ``x_unit`` (ppm when the sites were given in ppm with a field), intensities
     x: NDArray[np.float64] | None = field(default=None, repr=False)
     intensity: NDArray[np.float64] | None = field(default=None, repr=False)
@@ -77,6 +82,8 @@ class SimulatedSpectrum:
             "noise": self.noise,
             "seed": self.seed,
             "t_k": self.t_k,
+            "coupling_hz": self.coupling_hz,
+            "reference_hz": self.reference_hz,
         }
 
 
@@ -102,11 +109,18 @@ class LineShapeAnalysis:
     stored_rate_points: int | None = None
     measurement_id: int | None = None
     k_convention: str = K_CONVENTION
+    #: Δν's drift and the populations' van 't Hoff line the spectra were tied to
+    trends: tuple[Trend, ...] = ()
+    #: the intrinsic width measured on each spectrum's reference line, and the tied value
+    reference_widths: tuple[ReferenceWidth, ...] = ()
+    tied_width: ReferenceWidth | None = None
+    #: what the series fit says (parameters held for want of data, rates not stored)
+    series_notes: tuple[str, ...] = ()
 
     @property
     def fit_notes(self) -> tuple[str, ...]:
         """``file: message`` for each fit that needs a second look (see ``LineShapeFit.remark``)."""
-        return tuple(f"{Path(f.source).name}: {f.message}" for f in self.fits if f.remark)
+        return tuple(f"{Path(f.source).name}: {f.full_note}" for f in self.fits if f.remark)
 
     @property
     def global_note(self) -> str | None:
@@ -122,7 +136,7 @@ class LineShapeAnalysis:
         last = (self.global_note,) if self.global_note else ()
         if self.global_fit is not None:
             last += tuple(f"global fit: {w}" for w in self.global_fit.warnings)
-        return self.fit_notes + line + last
+        return self.fit_notes + self.series_notes + line + last
 
     def to_dict(self) -> dict[str, Any]:
         """Plain values for JSON; keys carry their unit."""
@@ -141,6 +155,9 @@ class LineShapeAnalysis:
             "measurement_id": self.measurement_id,
             "cautions": list(self.cautions),
             "notes": list(self.notes),
+            "trends": [t.to_dict() for t in self.trends],
+            "reference_widths": [w.to_dict() for w in self.reference_widths],
+            "tied_width": None if self.tied_width is None else self.tied_width.to_dict(),
         }
 
 
