@@ -109,11 +109,20 @@ def test_group_sums_and_means_equal_pandas(groups: list[int], data: st.DataObjec
     v = np.array(values, dtype=float)
     sums, counts = group_sums(g, v, 7)
     frame = pd.DataFrame({"g": g, "v": v}).groupby("g")["v"]
+    # both sum with Kahan compensation, but may round the last step differently where a sum
+    # passes 2^53 (hypothesis found 1 + 9007199254740994 + 0: …994 here, …996 in pandas, both
+    # one unit in the last place from the exact 9007199254740995): allowed is what any
+    # compensated sum may be off by, 2·eps·Σ|v| of the group (Higham, Accuracy and Stability
+    # of Numerical Algorithms, 2002, §4.3)
+    finite = np.where(np.isfinite(v), np.abs(v), 0.0)
+    bound = 2 * np.finfo(float).eps * np.bincount(g, weights=finite, minlength=7)
     for name, ours in (("sum", sums), ("mean", _mean(sums, counts))):
         theirs = getattr(frame, name)()
         for group, expected in theirs.items():
-            got = ours[int(group)]
-            assert got == expected or (math.isnan(got) and math.isnan(expected)), (name, group)
+            got, k = ours[int(group)], int(group)
+            room = bound[k] if name == "sum" else bound[k] / max(int(counts[k]), 1)
+            same = got == expected or (math.isnan(got) and math.isnan(expected))
+            assert same or abs(got - expected) <= room, (name, group, got, expected)
     low, high = group_extremes(g, v, 7)
     for group, expected in frame.min().items():
         assert low[int(group)] == expected or (math.isnan(low[group]) and math.isnan(expected))
