@@ -102,3 +102,22 @@ def test_global_fit_warns_when_298_is_extrapolated() -> None:
         spectra.append(SpectrumInput(freq, y, t, f"T{t:g}"))
     result = fit_global(spectra, TWO_SITE, width_hz=1.5, fix_width=True)
     assert any("extrapolated" in w and "298.1" in w for w in result.warnings)
+
+
+def test_plots_zoom_to_the_lines_by_default(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    """A Lorentzian of half-width γ stands above 1 % of its height where |x − x0| < γ·√99
+    (L ∝ 1/(1 + (x − x0)²/γ²)); the zoomed view is that span widened by 30 % on each side."""
+    import numpy as np
+
+    from registry.lineshape.plots import _zoomed
+
+    x = np.linspace(-500.0, 500.0, 200001)
+    gamma, x0 = 2.0, 40.0
+    shape = 1.0 / (1.0 + ((x - x0) / gamma) ** 2)
+    floor = 1.0 / (1.0 + ((-500.0 - x0) / gamma) ** 2)  # the shape's lowest point
+    level = floor + 0.01 * (1.0 - floor)
+    half = gamma * np.sqrt(1.0 / level - 1.0)  # ≈ γ·√99
+    lo, hi = _zoomed(x, shape)
+    assert lo == pytest.approx(x0 - half - 0.3 * 2 * half, abs=0.01)  # grid step 0.005
+    assert hi == pytest.approx(x0 + half + 0.3 * 2 * half, abs=0.01)
+    assert _zoomed(x, np.zeros_like(x)) == (-500.0, 500.0)  # nothing to zoom on: the window

@@ -116,6 +116,7 @@ def fit_lineshapes(
     plot_style: str = "screen",
     plot_size: str | tuple[float, float] | None = None,
     plot_dpi: int | None = None,
+    plot_zoom: bool = True,
 ) -> LineShapeAnalysis:
     """Fit the exchange rate k to each spectrum (one per temperature) and analyse the rates.
 
@@ -130,7 +131,8 @@ def fit_lineshapes(
     rates are added to that measurement as rate points (one transaction, in its history).
     ``solvent_bp`` (K unless written) sharpens the safety cautions. The plots are
     ``plot_format`` (png, svg, pdf) in the one figure style (``plot_style`` screen or print,
-    ``plot_size``, ``plot_dpi``: see :func:`registry.reports.style.figure_style`).
+    ``plot_size``, ``plot_dpi``: see :func:`registry.reports.style.figure_style`), zoomed to
+    the exchanging lines unless ``plot_zoom`` is False.
 
     Two sites may drift with temperature. ``shifts_mode`` (Δν; the centre is always fitted) and
     ``populations_mode`` are each ``'auto'`` (fitted in each spectrum that determines them, tied
@@ -183,7 +185,7 @@ def fit_lineshapes(
     result = workflow.analyse(
         spectra, model, mhz, options=options, window_hz=window_hz, global_fit=global_fit,
         plots_dir=plots_dir, solvent_bp_k=bp_k, store_doubtful=store_doubtful,
-        plot_style=look, plot_format=plot_format,
+        plot_style=look, plot_format=plot_format, plot_zoom=plot_zoom,
     )  # fmt: skip
     if measurement_id is None:
         return result

@@ -145,6 +145,9 @@ def fit(
         None, "--plots", help="Write a PNG per spectrum and an Eyring plot into this directory."
     ),
     plot_format: str = typer.Option("png", "--plot-format", help="With --plots: png, svg or pdf."),
+    plot_full: bool = typer.Option(
+        False, "--plot-full", help="With --plots: the whole fitted window, not the lines zoomed."
+    ),
     style: str = typer.Option(
         "screen", "--style", help="With --plots: screen (150 dpi) or print (journal, 600 dpi)."
     ),
@@ -203,6 +206,7 @@ def fit(
             tie_width=tie_width, coupling=coupling, fit_coupling=fit_coupling,
             store_doubtful=store_doubtful,
             plot_format=plot_format, plot_style=style, plot_size=size, plot_dpi=dpi,
+            plot_zoom=not plot_full,
         )  # fmt: skip
     finally:
         if database is not None:

@@ -41,8 +41,10 @@ def plot_fit(
     *,
     observe_mhz: float | None = None,
     style: FigureStyle = SCREEN,
+    zoom: bool = True,
 ) -> Path:
-    """Data, fitted line shape and residuals of one spectrum (x in ppm when MHz is known)."""
+    """Data, fitted line shape and residuals of one spectrum (x in ppm when MHz is known);
+    ``zoom`` shows where the exchanging lines are (:func:`_zoomed`), else the whole window."""
     from registry.reports.canvas import new_figure, save_figure, set_title, styled
 
     with styled(style):
@@ -56,6 +58,9 @@ def plot_fit(
         top.plot(x, fit.best_fit, color=style.fit, lw=style.line_width * 0.6, label="fit")
         bottom.plot(x, fit.data - fit.best_fit, color=style.muted, lw=thin * 0.75)
         bottom.axhline(0.0, color=style.fit, lw=thin)
+        if zoom:
+            lo, hi = _zoomed(x, fit.best_fit)
+            top.set_xlim(lo, hi)
         if observe_mhz:  # NMR convention: shift increases to the left
             top.invert_xaxis()
         bottom.set_xlabel("δ / ppm" if observe_mhz else "ν / Hz")
@@ -117,6 +122,29 @@ def _ln_k(line: EyringFit | EyringParameters, t: np.ndarray) -> np.ndarray:
     return eyring_ln_rate(t, line.dh_kj_mol, line.ds_j_mol_k)
 
 
+#: the zoomed view keeps the fitted shape where it stands above this fraction of its height
+#: over the baseline, with this fraction of that span added on each side (common practice,
+#: no source)
+ZOOM_LEVEL, ZOOM_MARGIN = 0.01, 0.3
+
+
+def _zoomed(x: np.ndarray, fitted: np.ndarray) -> tuple[float, float]:
+    """The x range of the exchanging lines: where the fitted shape rises above
+    :data:`ZOOM_LEVEL` of its height over its lowest point, widened by :data:`ZOOM_MARGIN`,
+    within the data (the whole window when the shape is flat)."""
+    lo, hi = float(np.min(x)), float(np.max(x))
+    if fitted.size == 0:
+        return lo, hi
+    above = fitted - float(np.min(fitted))
+    top = float(np.max(above))
+    inside = x[above > ZOOM_LEVEL * top] if top > 0 else x[:0]
+    if inside.size == 0:
+        return lo, hi
+    a, b = float(np.min(inside)), float(np.max(inside))
+    pad = ZOOM_MARGIN * max(b - a, 1e-9)
+    return max(lo, a - pad), min(hi, b + pad)
+
+
 def write_plots(
     fits: Sequence[LineShapeFit],
     directory: str | Path,
@@ -125,6 +153,7 @@ def write_plots(
     observe_mhz: Sequence[float | None] | None = None,
     style: FigureStyle = SCREEN,
     fmt: str = "png",
+    zoom: bool = True,
 ) -> list[Path]:
     """One picture per spectrum (``<stem>_fit.png``) and ``eyring.png`` when temperatures are
     known; ``fmt`` png, svg or pdf, in ``style``."""
@@ -142,7 +171,7 @@ def write_plots(
         seen[stem] = seen.get(stem, 0) + 1
         name = f"{stem}_fit.{fmt}" if seen[stem] == 1 else f"{stem}_{seen[stem]}_fit.{fmt}"
         mhz = observe_mhz[i] if observe_mhz is not None else None
-        written.append(plot_fit(fit, out_dir / name, observe_mhz=mhz, style=style))
+        written.append(plot_fit(fit, out_dir / name, observe_mhz=mhz, style=style, zoom=zoom))
     if any(f.t_k is not None for f in fits):
         written.append(plot_eyring(fits, out_dir / f"eyring.{fmt}", line=line, style=style))
     return written

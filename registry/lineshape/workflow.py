@@ -206,6 +206,7 @@ def analyse(
     store_doubtful: bool = False,
     plot_style: FigureStyle | None = None,
     plot_format: str = "png",
+    plot_zoom: bool = True,
 ) -> LineShapeAnalysis:
     """Fit every spectrum, draw the Eyring line, optionally the global fit and the plots.
 
@@ -229,7 +230,8 @@ def analyse(
     plots: list[str] = []
     if plots_dir is not None:
         observe = [mhz if s.x_unit == "ppm" else None for s in spectra]
-        plots = _plots(fits, global_result, line, plots_dir, observe, plot_style, plot_format)
+        plots = _plots(fits, global_result, line, plots_dir, observe, plot_style, plot_format,
+                       plot_zoom)  # fmt: skip
     temps_k = [f.t_k for f in fits if f.t_k is not None]
     cautions = safety_notes(np.array(temps_k), solvent_bp_k=solvent_bp_k) if temps_k else []
     stored = [f for f in fits if store_doubtful or not f.doubtful]
@@ -360,6 +362,7 @@ def _plots(
     observe_mhz: list[float | None],
     style: FigureStyle | None,
     fmt: str,
+    zoom: bool = True,
 ) -> list[str]:
     """One PNG per spectrum and the Eyring plot: of the global fit when there is one."""
     from registry.lineshape.plots import write_plots
@@ -370,6 +373,7 @@ def _plots(
         line=global_result.eyring if global_result else line,
         observe_mhz=observe_mhz,
         fmt=fmt,
+        zoom=zoom,
         **({"style": style} if style is not None else {}),
     )
     return [str(p) for p in written]
