@@ -16,6 +16,7 @@ SQLAlchemy's ``text()``. What differs between the two stays behind this door:
 from __future__ import annotations
 
 import sqlite3
+from abc import ABC, abstractmethod
 from collections.abc import Iterable, Mapping, Sequence
 from datetime import UTC, datetime
 from typing import Any
@@ -63,7 +64,7 @@ def utc(value: datetime | None) -> datetime | None:
 # ---------------------------------------------------------------- the connection
 
 
-class Connection:
+class Connection(ABC):
     """One open transaction (a read snapshot or the write transaction) on a registry.
 
     Obtained from :meth:`registry.storage.database.Database.read` or ``write``; never commit or
@@ -77,27 +78,29 @@ class Connection:
 
     # -- the primitive every other method uses
 
+    @abstractmethod
     def rows(self, sql: str, params: Params = None) -> list[Row]:
         """Every row of ``sql`` as a tuple."""
-        raise NotImplementedError  # pragma: no cover - abstract
 
+    @abstractmethod
     def records(self, sql: str, params: Params = None) -> list[dict[str, Any]]:
         """Every row of ``sql`` as a dict (column name → value)."""
-        raise NotImplementedError  # pragma: no cover - abstract
 
+    @abstractmethod
     def execute(self, sql: str, params: Params = None) -> int:
         """Run one statement; the number of rows it changed."""
-        raise NotImplementedError  # pragma: no cover - abstract
 
+    @abstractmethod
     def execute_many(self, sql: str, rows: Sequence[Mapping[str, Any]]) -> None:
         """Run one statement once per parameter set (one round trip per batch where possible)."""
-        raise NotImplementedError  # pragma: no cover - abstract
 
-    def _new_ids(self, table: str, count: int) -> list[int]:  # pragma: no cover - abstract
-        raise NotImplementedError
+    @abstractmethod
+    def _new_ids(self, table: str, count: int) -> list[int]:
+        """``count`` new ids of ``table`` (under the write lock on SQLite; a server sequence)."""
 
+    @abstractmethod
     def _where_in(self, column: str, keys: list[Any], params: dict[str, Any]) -> str:
-        raise NotImplementedError  # pragma: no cover - abstract
+        """SQL testing ``column`` against ``keys``, binding them into ``params``."""
 
     # -- built on the primitives
 
