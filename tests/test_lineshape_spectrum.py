@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+
 from pathlib import Path
 
 import numpy as np
@@ -112,15 +114,19 @@ def _fit(t_k: float | None, k: float, err: float | None) -> LineShapeFit:
 
 
 def test_rate_points_read_back_as_the_same_numbers() -> None:
+    """What is stored is what the text says (``verify`` re-reads texts to 1e-9); the fit's
+    unrounded k and σ stay in the fit record."""
     points = rate_points([_fit(250.0, 123.456, 4.567), _fit(260.0, 12345.6, 456.0)])
-    assert [set(p) for p in points] == [{"t_k", "t_text", "k_per_s", "k_err_per_s", "k_text"}] * 2
+    keys = {"t_k", "t_text", "k_per_s", "k_err_per_s", "k_text", "fit_json"}
+    assert [set(p) for p in points] == [keys] * 2
     assert points[0]["k_text"] == "123.5 ± 4.6 s-1"
     assert points[1]["k_text"] == "12350 ± 460 s-1"
-    for p in points:
+    for p, k in zip(points, (123.456, 12345.6), strict=True):
         parsed = parse_value(p["k_text"], "rate")
-        assert parsed.value == pytest.approx(p["k_per_s"], rel=5e-3)
-        assert parsed.error == pytest.approx(p["k_err_per_s"], rel=0.05)
+        assert parsed.value == pytest.approx(p["k_per_s"], rel=1e-12)
+        assert parsed.error == pytest.approx(p["k_err_per_s"], rel=1e-12)
         assert parse_value(p["t_text"], "temperature").value == p["t_k"]
+        assert json.loads(p["fit_json"])["k_per_s"] == k
 
 
 def test_rate_texts() -> None:

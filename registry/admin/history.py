@@ -64,6 +64,18 @@ def _short(value: Any) -> str:
     return repr(value) if isinstance(value, str) else str(value)
 
 
+def _short_rates(value: Any) -> str:
+    """Rate points as ``k @ T; …``, a line-shape fit record only counted (each runs to a
+    kilobyte; ``show`` and the JSON give them whole)."""
+    if not isinstance(value, list):
+        return _short(value)
+    if not value:
+        return "[]"
+    texts = "; ".join(f"{p[1]} @ {p[0]}" for p in value if isinstance(p, list) and len(p) >= 2)
+    fitted = sum(1 for p in value if isinstance(p, list) and len(p) > 2)
+    return texts + (f" ({fitted} with fit records)" if fitted else "")
+
+
 def summarize(action: str, before: Any, after: Any) -> str:
     """One line saying what a revision changed: texts as reported, values only when no text moved."""
     if action in _VOCABULARY_ACTIONS:
@@ -88,8 +100,9 @@ def summarize(action: str, before: Any, after: Any) -> str:
         for k in keys
         for c in _VALUE_COLUMNS_OF_TEXT.get(k.rpartition(".")[2], ())
     }
+    short = _short_rates if "rates" in keys else _short
     shown = [
-        f"{key}: {_short(old.get(key))} → {_short(new.get(key))}"
+        f"{key}: {short(old.get(key))} → {short(new.get(key))}"
         for key in keys
         if key not in hidden  # the float behind a text shown already
     ]

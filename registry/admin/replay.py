@@ -12,7 +12,8 @@ overwritten later by fluxledger shows there).
 
 Tracked: the columns an entry fills (:data:`COLUMNS`: texts, canonical values, uncertainties,
 label, method, solvent text, reference, status), the process (kind, sites, nucleus), the
-coalescence row and the rate points (their texts; ``verify`` re-reads the floats from them).
+coalescence row and the rate points (their texts and fit records; ``verify`` re-reads the
+floats from the texts).
 Not tracked: the compound (shared by measurements and matched by structure, so one entry's
 snapshot does not say which row it ends up on), the solvent link (the vocabulary's reading of
 the solvent text), extra attributes, timestamps and uids.
@@ -270,7 +271,12 @@ def state_problems(conn: Connection, history: History) -> list[str]:
         conn.rows(f"SELECT measurement_id, {picked} FROM coalescence ORDER BY id")
     )
     rates = _by_measurement(
-        conn.rows("SELECT measurement_id, t_text, k_text FROM rate_point ORDER BY id")
+        [
+            row if row[3] else row[:3]  # the fit record is third where there is one
+            for row in conn.rows(
+                "SELECT measurement_id, t_text, k_text, fit_json FROM rate_point ORDER BY id"
+            )
+        ]
     )
     problems: list[str] = []
     picked = ", ".join(COLUMNS)
@@ -340,6 +346,11 @@ def _rate_problems(mid: int, state: Replayed, rows: list[tuple[Any, ...]]) -> li
             f"{_points(len(then))} ({where}): {how} without a revision"
         ]
     for i, (now, was) in enumerate(zip(rows, then, strict=True), start=1):
+        if same(now[:2], was[:2]) and not same(now[2:], was[2:]):
+            return [
+                f"measurement {mid}: the fit record of rate point {i} {_point(now)} is not the "
+                f"one its history ends with ({where}): changed without a revision"
+            ]
         if not same(now, was):
             return [
                 f"measurement {mid}: rate point {i} is {_point(now)} but its history ends at "
@@ -403,7 +414,9 @@ def _row_text(row: Any) -> str:
 
 
 def _point(point: Sequence[Any]) -> str:
-    return f"({', '.join(shown(p) for p in point)})"
+    """(T text, k text), the fit record only named (it runs to a kilobyte)."""
+    record = ", with a fit record" if len(point) > 2 else ""
+    return f"({', '.join(shown(p) for p in point[:2])}{record})"
 
 
 def plural(n: int, word: str) -> str:

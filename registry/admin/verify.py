@@ -3,6 +3,7 @@ stored value against the text it was read from."""
 
 from __future__ import annotations
 
+import json
 import math
 from pathlib import Path
 from typing import Any
@@ -322,7 +323,26 @@ def _coalescence_values(conn: Connection, problems: list[str]) -> int:
 def _rate_values(conn: Connection, problems: list[str]) -> int:
     count = 0
     columns = ", ".join(_columns("rate_point"))
-    for row in conn.records(f"SELECT id, measurement_id, {columns} FROM rate_point ORDER BY id"):
+    sql = f"SELECT id, measurement_id, {columns}, fit_json FROM rate_point ORDER BY id"
+    for row in conn.records(sql):
         where = f"measurement {row['measurement_id']} rate point {row['id']}"
         count += _check_values(where, row, "rate_point", problems)
+        if row["fit_json"] is not None:
+            count += 1
+            problem = _fit_record_problem(row["fit_json"])
+            if problem:
+                problems.append(f"{where}: fit_json {problem}")
     return count
+
+
+def _fit_record_problem(text: str) -> str | None:
+    """A fit record fluxledger wrote is a JSON object in canonical form (sorted keys)."""
+    from registry.lineshape.store_link import fit_json
+
+    try:
+        record = json.loads(text)
+    except ValueError:
+        return "is not JSON"
+    if not isinstance(record, dict):
+        return "is not a JSON object"
+    return None if fit_json(record) == text else "is not in the form fluxledger writes"

@@ -234,6 +234,8 @@ def get_measurement(database: Database, measurement_id: int) -> dict[str, Any]:
     if compound:
         compound["created_at"] = utc(compound["created_at"])
     extra = json.loads(m.pop("extra_json") or "null")
+    for rate in rates:  # the fit record a line-shape fit left, as an object
+        rate["fit"] = json.loads(rate.pop("fit_json") or "null")
     from registry.record.conventions import recorded
     from registry.record.rawdata import raw_summary
 
@@ -287,7 +289,11 @@ def add_rate_points(
     actor: str | None = None,
     replace: bool = False,
 ) -> int:
-    """Attach rate points (t_k, t_text, k_per_s, k_text, optional errors) to a measurement."""
+    """Attach rate points (t_k, t_text, k_per_s, k_text, optional errors) to a measurement.
+
+    A point may carry ``fit_json``, how its rate was obtained (a JSON object's text, as
+    :func:`registry.lineshape.store_link.rate_points` writes it); it is kept with the point
+    and in the history."""
     measurement_id = as_id(measurement_id)
     if not points:
         return 0
@@ -304,26 +310,29 @@ def add_rate_points(
                 "k_per_s": float(p["k_per_s"]),
                 "k_err_per_s": p.get("k_err_per_s"),
                 "k_text": p.get("k_text") or f"{p['k_per_s']:.6g} s-1",
+                "fit_json": _fit_json(p.get("fit_json")),
             }
         )
     who = actor_name(actor)
 
     def work(conn: Connection) -> int:
         from registry.storage import audit
+        from registry.storage.writer import history_rates
 
         of = {"id": measurement_id}
         if conn.scalar("SELECT id FROM measurement WHERE id = :id", of) is None:
             raise NotFoundError(f"no measurement with id {measurement_id}")
-        before = [
-            list(r)
-            for r in conn.rows(
-                "SELECT t_text, k_text FROM rate_point WHERE measurement_id = :id ORDER BY id", of
+        before = history_rates(
+            conn.records(
+                "SELECT t_text, k_text, fit_json FROM rate_point WHERE measurement_id = :id "
+                "ORDER BY id",
+                of,
             )
-        ]
+        )
         if replace:
             conn.execute("DELETE FROM rate_point WHERE measurement_id = :id", of)
         conn.insert_many("rate_point", rows)
-        after = ([] if replace else before) + [[r["t_text"], r["k_text"]] for r in rows]
+        after = ([] if replace else before) + history_rates(rows)
         audit.record(
             conn,
             entity="measurement",
@@ -336,6 +345,21 @@ def add_rate_points(
         return len(rows)
 
     return database.write(work)
+
+
+def _fit_json(text: Any) -> str | None:
+    """A rate point's fit record: None, or the canonical text of a JSON object."""
+    if text is None:
+        return None
+    from registry.lineshape.store_link import fit_json
+
+    try:
+        record = json.loads(text) if isinstance(text, str) else text
+    except ValueError as exc:
+        raise UsageError(f"rate point fit_json: not JSON ({exc})") from None
+    if not isinstance(record, Mapping):
+        raise UsageError("rate point fit_json: must be a JSON object")
+    return fit_json(record)
 
 
 def edit_measurement(

@@ -10,6 +10,7 @@ import typer
 from registry.cli import flags
 from registry.cli.context import read_id, state
 from registry.cli.output import render_record, render_rows
+from registry.cli.ratefit_text import rate_fit_lines
 from registry.cli.rawdata_text import raw_data_lines
 from registry.errors import UsageError
 
@@ -331,10 +332,7 @@ def _show_text(r: dict[str, Any]) -> str:
     lines += raw_data_lines(r.get("raw_data"))
     if r["rate_points"]:
         lines.append(f"  rate points  {len(r['rate_points'])}")
-        for rp in r["rate_points"]:
-            lines.append(
-                f"               T {rp['t_k']:.1f} K   k {rp['k_per_s']:.4g} s⁻¹   ({rp['t_text']}; {rp['k_text']})"
-            )
+        lines += rate_fit_lines(r["rate_points"])
     lines.append(f"  reference    {r['reference'] or '—'}")
     lines.append(f"  entered      {r['entered_by']} at {r['entered_at']}")
     if r["extra"]:

@@ -15,6 +15,7 @@ import typer
 
 from registry.cli.context import ErrorBoundaryGroup, state
 from registry.cli.output import print_json, table_text
+from registry.cli.ratefit_text import trend_text
 
 NAME = "lineshape"
 
@@ -266,21 +267,9 @@ def _render_series(result: Any) -> None:
     if any(f.parameters for f in result.fits):
         typer.echo("after a value: ~ tied to the series, = held, ? fitted but not determined")
     for t in result.trends:
-        if len(t.sources) < 2:  # one spectrum's value, shown in its row
-            continue
-        d = t.to_dict()
-        if t.kind == "linear drift":
-            typer.echo(
-                f"Δν drift (from {len(t.sources)} spectra): "
-                f"{pm(d['value_hz'], d['error_hz'], 'Hz')} at {d['at_k']:.1f} K, "
-                f"{pm(d['slope_hz_per_k'], d['slope_err_hz_per_k'], 'Hz/K')}"
-            )
-        else:
-            typer.echo(
-                f"populations, van 't Hoff (from {len(t.sources)} spectra; K = p2/p1): "
-                f"ΔH° = {pm(d['dh_kj_mol'], d['dh_err_kj_mol'], 'kJ/mol')}, "
-                f"ΔS° = {pm(d['ds_j_mol_k'], d['ds_err_j_mol_k'], 'J/(mol·K)')}"
-            )
+        text = trend_text(t.to_dict())
+        if text:  # one spectrum's value is shown in its row
+            typer.echo(text)
     if result.tied_width is not None:
         w = result.tied_width
         typer.echo(f"intrinsic width {w.how}: {pm(w.width_hz, w.width_err_hz, 'Hz')}")

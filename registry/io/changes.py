@@ -28,7 +28,13 @@ from registry.io.results import Prepared
 from registry.record.entry import NormalizedEntry, normalize_entry
 from registry.storage import audit
 from registry.storage.connection import Connection
-from registry.storage.writer import resolve_compounds, resolve_processes, solvent_index
+from registry.storage.writer import (
+    carry_fit_records,
+    history_rates,
+    resolve_compounds,
+    resolve_processes,
+    solvent_index,
+)
 
 
 @dataclass
@@ -110,9 +116,9 @@ def build_change(
         change.before["compound"] = {"name": stored_compound.get("name")}
         change.after["compound"] = {"name": change.rename}
     if RATES in applied:
-        change.rates = entry.rates
-        change.before["rates"] = [[r["t_text"], r["k_text"]] for r in state["rates"]]
-        change.after["rates"] = [[r["t_text"], r["k_text"]] for r in entry.rates]
+        change.rates = carry_fit_records(state["rates"], entry.rates)
+        change.before["rates"] = history_rates(state["rates"])
+        change.after["rates"] = history_rates(change.rates)
     _extra_change(change, mm, m)
     return change
 

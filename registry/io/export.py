@@ -179,7 +179,10 @@ def json_record(rec: dict[str, Any]) -> dict[str, Any]:
             for _, col in NORMALIZED
             if flat[f"{col} (normalized)"] is not None
         },
-        "rate_points": [{k: r[k] for k in RATE_COLUMNS} for r in rec["rates"]],
+        "rate_points": [
+            {**{k: r[k] for k in RATE_COLUMNS}, "fit": json.loads(r.get("fit_json") or "null")}
+            for r in rec["rates"]
+        ],
         "extra": json.loads(m["extra_json"]) if m.get("extra_json") else {},
         "findings": [
             {

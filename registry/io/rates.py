@@ -22,6 +22,7 @@ from registry.record import fields
 from registry.record.units import parse_value
 from registry.storage import audit
 from registry.storage.connection import Connection
+from registry.storage.writer import carry_fit_records, history_rates
 
 # ---------------------------------------------------------------- reading a rates sheet
 
@@ -208,14 +209,15 @@ def apply_rate_plan(
     for mid, points in plan.items():
         if upsert.same_rates(stored.get(mid, []), points):
             continue
+        points = carry_fit_records(stored.get(mid, []), points)
         upsert.replace_rate_points(conn, mid, points)
         changed.append(
             {
                 "entity": "measurement",
                 "entity_id": mid,
                 "action": "import-rates",
-                "before": {"rates": [[r["t_text"], r["k_text"]] for r in stored.get(mid, [])]},
-                "after": {"rates": [[r["t_text"], r["k_text"]] for r in points]},
+                "before": {"rates": history_rates(stored.get(mid, []))},
+                "after": {"rates": history_rates(points)},
                 "batch_id": batch_id,
             }
         )

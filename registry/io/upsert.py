@@ -291,16 +291,20 @@ def replace_rate_points(
     conn.execute("DELETE FROM rate_point WHERE measurement_id = :id", {"id": measurement_id})
     conn.insert_many(
         "rate_point",
-        [{**{k: r.get(k) for k in RATE_COLUMNS}, "measurement_id": measurement_id} for r in rates],
+        [
+            {**{k: r.get(k) for k in (*RATE_COLUMNS, "fit_json")}, "measurement_id": measurement_id}
+            for r in rates
+        ],
     )
 
 
 def stored_rates(conn: Connection, ids: Sequence[int]) -> dict[int, list[dict[str, Any]]]:
-    """Rate points of measurements, as dicts of the rate columns, in insertion order."""
+    """Rate points of measurements, as dicts of the rate columns (and the fit record a
+    line-shape fit left), in insertion order."""
     out: dict[int, list[dict[str, Any]]] = defaultdict(list)
     rows = conn.records_where_in("SELECT * FROM rate_point WHERE 1 = 1", "measurement_id", ids)
     for row in sorted(rows, key=lambda r: r["id"]):
-        out[row["measurement_id"]].append({k: row[k] for k in RATE_COLUMNS})
+        out[row["measurement_id"]].append({k: row[k] for k in (*RATE_COLUMNS, "fit_json")})
     return out
 
 

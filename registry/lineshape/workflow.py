@@ -193,6 +193,39 @@ def _inputs(
     return inputs
 
 
+def _series_record(
+    model: ExchangeModel | CoupledABModel,
+    mhz: float | None,
+    options: SiteOptions,
+    window_hz: tuple[float, float] | None,
+    series: SeriesFit,
+) -> dict[str, object]:
+    """The run a stored rate belongs to: what was given, how the sites and width were allowed
+    to vary, and the trends the spectra were tied to (kept with each rate point)."""
+    tied = series.tied_width
+    return {
+        "sites_hz": [float(v) for v in model.shifts_hz],
+        "populations_given": [float(p) for p in model.populations],
+        "scheme": model.scheme,
+        "coupling_hz": getattr(model, "j_hz", None),
+        "observe_mhz": mhz,
+        "shifts_mode": options.shifts,
+        "populations_mode": options.populations,
+        "region_hz": None if window_hz is None else list(window_hz),
+        "reference_hz": None if options.reference_hz is None else list(options.reference_hz),
+        "width": _width_setting(options),
+        "trends": [t.to_dict() for t in series.trends],
+        "tied_width": None if tied is None else tied.to_dict(),
+        "spectra": len(series.fits),
+    }
+
+
+def _width_setting(options: SiteOptions) -> str:
+    if options.reference_hz is not None:
+        return "tied reference width" if options.tie_width else "reference line per spectrum"
+    return f"held at {options.width_hz:g} Hz" if options.fix_width else "fitted"
+
+
 def analyse(
     spectra: Sequence[Spectrum],
     model: ExchangeModel | CoupledABModel,
@@ -250,7 +283,11 @@ def analyse(
         fits=tuple(fits),
         eyring_line=line,
         global_fit=global_result,
-        rate_points=tuple(rate_points(stored)) if len(temps_k) == len(fits) else (),
+        rate_points=(
+            tuple(rate_points(stored, _series_record(model, mhz, options, window_hz, series)))
+            if len(temps_k) == len(fits)
+            else ()
+        ),
         plots=tuple(plots),
         cautions=tuple(cautions),
         trends=series.trends,

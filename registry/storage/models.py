@@ -259,6 +259,8 @@ class RatePoint(Base):
     k_per_s: Mapped[float] = mapped_column(Float)
     k_err_per_s: Mapped[float | None] = mapped_column(Float)
     k_text: Mapped[str] = mapped_column(Text)
+    #: how the rate was obtained (a line-shape fit's parameters and series; migration 0009)
+    fit_json: Mapped[str | None] = mapped_column(Text)
 
     measurement: Mapped[Measurement] = relationship(back_populates="rate_points")
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import json
 import uuid
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from datetime import UTC, datetime
 from typing import Any
@@ -350,5 +350,27 @@ def snapshot(entry: NormalizedEntry) -> dict[str, Any]:
     if entry.coalescence:
         body["coalescence"] = {k: v for k, v in entry.coalescence.items() if v is not None}
     if entry.rates:
-        body["rates"] = [[r["t_text"], r["k_text"]] for r in entry.rates]
+        body["rates"] = history_rates(entry.rates)
     return body
+
+
+def carry_fit_records(
+    old: Sequence[Mapping[str, Any]], new: Sequence[Mapping[str, Any]]
+) -> list[dict[str, Any]]:
+    """New rate points (a sheet's) with the fit record of the old point they repeat word for
+    word: correcting one rate in a sheet leaves how the others were fitted on record."""
+    records = {(r["t_text"], r["k_text"]): r.get("fit_json") for r in old if r.get("fit_json")}
+    return [
+        {**r, "fit_json": r.get("fit_json") or records.get((r["t_text"], r["k_text"]))} for r in new
+    ]
+
+
+def history_rates(points: Sequence[Mapping[str, Any]]) -> list[list[str]]:
+    """Rate points as a revision keeps them: ``[T text, k text]``, and the fit record's JSON
+    text third where the point has one (see :mod:`registry.lineshape.store_link`)."""
+    return [
+        [p["t_text"], p["k_text"], p["fit_json"]]
+        if p.get("fit_json")
+        else [p["t_text"], p["k_text"]]
+        for p in points
+    ]
