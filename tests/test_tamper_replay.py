@@ -15,6 +15,7 @@ from typing import Any
 
 import pytest
 from test_io_import import write_csv
+from test_lineshape_store import series
 from test_tamper import _sql
 from test_validation_paths import _load_dump
 
@@ -383,6 +384,10 @@ def _every_command(database: Database, tmp_path: Path) -> None:
     api.add_rate_points(database, m3, [{"t_k": 383.15, "t_text": "110 °C", "k_per_s": 300.0,
                                         "k_text": "300 s-1"}], **who)  # fmt: skip
     api.add_rate_points(database, 2, [{"t_k": 270.0, "k_per_s": 70.0}], replace=True, **who)
+    api.fit_lineshapes(
+        series(), "50,-50 Hz", populations="0.55,0.45", region="-200,300 Hz",  # type: ignore[arg-type]
+        reference="-280,-220 Hz", database=database, measurement_id=2, store_doubtful=True, **who,
+    )  # fmt: skip
     write_csv(rates, ["label", "T (°C)", "k (s-1)"], [["m3", 90, 61.0], ["m3", 100, 140.0]])
     assert api.import_table(database, rates, actor="kofi", prefer="file")["updated"] == 1
     api.edit_measurement(database, 1, {"reference": "notebook 7", "field": "500 MHz"}, **who)

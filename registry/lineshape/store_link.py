@@ -107,7 +107,9 @@ def fit_record(fit: LineShapeFit, series: Mapping[str, Any]) -> dict[str, Any]:
 def fit_json(record: Mapping[str, Any]) -> str:
     """Canonical JSON (sorted keys, no spaces, non-finite numbers as null): the same text in
     the row and in the history, on SQLite and PostgreSQL."""
-    return json.dumps(_finite(record), sort_keys=True, ensure_ascii=False, separators=(",", ":"))
+    return json.dumps(
+        _finite(record), sort_keys=True, ensure_ascii=False, separators=(",", ":"), allow_nan=False
+    )
 
 
 def _finite(value: Any) -> Any:
