@@ -191,3 +191,52 @@ def test_simulated_record_and_refusals() -> None:
         api.fit_lineshapes([spec], "30,-30 Hz", coupling="12 Hz", populations_mode="fit")
     with pytest.raises(UsageError, match=r"^fit_coupling: give the coupling J"):
         api.fit_lineshapes([spec], "30,-30 Hz", fit_coupling=True)
+
+
+def test_j_is_tied_to_the_series_where_fast_exchange_loses_it() -> None:
+    """Slow and intermediate AB spectra fix J (−14.5 Hz, invented); the fast one (k = 2000 s⁻¹,
+    one collapsing line) does not: its J is tied to the weighted mean of the others (checked
+    with numpy.average), with that mean's σ, and its rate stays within its error."""
+    from registry import api
+    from registry.lineshape.spectrum import Spectrum
+
+    rates = [(280.0, 10.0), (300.0, 60.0), (340.0, 2000.0)]
+    spectra = []
+    for i, (t, k) in enumerate(rates):
+        sim = api.simulate_lineshape(
+            "25,-25 Hz", k, coupling="-14.5 Hz", width="0.9 Hz", points=4096, noise=0.01,
+            seed=20 + i, window="-150,150 Hz",
+        )  # fmt: skip
+        spectra.append(Spectrum(sim.x, sim.intensity, "Hz", f"ab_{t:.0f}", t_k=t))
+    result = api.fit_lineshapes(
+        spectra, "25,-25 Hz", coupling="-12 Hz", fit_coupling=True, width="0.9 Hz", fix_width=True
+    )
+    js = [{n: (v, e, h) for n, v, e, h in f.parameters}["coupling"] for f in result.fits]
+    assert [h for _j, _e, h in js] == ["fitted", "fitted", "tied (mean)"]
+    mean = np.average([j for j, _e, _h in js[:2]], weights=[1 / e**2 for _j, e, _h in js[:2]])
+    (trend,) = [t for t in result.trends if t.name == "coupling"]
+    assert trend.to_dict()["value_hz"] == pytest.approx(mean, rel=1e-9)
+    assert js[2][0] == pytest.approx(mean, abs=3 * js[2][1])  # a prior, not a clamp
+    assert abs(mean + 14.5) < 4 * math.sqrt(trend.cov[0][0])
+    fast = result.fits[2]
+    assert fast.k_err_per_s is not None and abs(fast.k_per_s - 2000.0) < 3 * fast.k_err_per_s
+
+
+def test_j_held_with_a_note_when_no_spectrum_fixes_it() -> None:
+    """Only fast-exchange spectra: no spectrum fixes J, so it is held at the value given."""
+    from registry import api
+    from registry.lineshape.spectrum import Spectrum
+
+    spectra = []
+    for i, (t, k) in enumerate([(330.0, 3000.0), (340.0, 5000.0)]):
+        sim = api.simulate_lineshape(
+            "25,-25 Hz", k, coupling="-14.5 Hz", width="0.9 Hz", points=2048, noise=0.01,
+            seed=40 + i, window="-150,150 Hz",
+        )  # fmt: skip
+        spectra.append(Spectrum(sim.x, sim.intensity, "Hz", f"ab_{t:.0f}", t_k=t))
+    result = api.fit_lineshapes(
+        spectra, "25,-25 Hz", coupling="-12 Hz", fit_coupling=True, width="0.9 Hz", fix_width=True
+    )
+    hows = [{n: h for n, _v, _e, h in f.parameters}["coupling"] for f in result.fits]
+    assert hows == ["held", "held"]
+    assert "J not determined by any spectrum: held at the given value" in result.series_notes

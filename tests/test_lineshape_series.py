@@ -14,6 +14,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 from scipy import constants as C
 
 from registry import api
@@ -240,3 +242,21 @@ def test_errors_cover_the_truth_at_their_stated_level() -> None:
         # the check can fail: errors half or twice as large as reported would not pass it
         assert not _coverage_ok(2.0 * z)
         assert not _coverage_ok(0.5 * z)
+
+
+@given(
+    st.lists(st.tuples(st.floats(-100.0, 100.0), st.floats(0.01, 10.0)), min_size=1, max_size=12)
+)
+def test_weighted_mean_and_its_birge_widened_variance(rows: list[tuple[float, float]]) -> None:
+    """Against numpy.average and the textbook variance 1/Σw, times the reduced χ² when that
+    exceeds 1 (Birge ratio squared; Birge 1932)."""
+    from registry.lineshape.reference import weighted_mean
+
+    values, sigma = [r[0] for r in rows], [r[1] for r in rows]
+    w = 1.0 / np.square(sigma)
+    mean, var = weighted_mean(values, sigma)
+    expected = float(np.average(values, weights=w))
+    assert mean == pytest.approx(expected, rel=1e-9, abs=1e-9)
+    chi2 = float(np.sum(w * (np.array(values) - expected) ** 2)) / max(len(rows) - 1, 1)
+    factor = max(chi2, 1.0) if len(rows) > 1 else 1.0
+    assert var == pytest.approx(factor / float(np.sum(w)), rel=1e-9)

@@ -17,6 +17,8 @@ def trend_text(trend: dict[str, Any]) -> str | None:
     sources = trend.get("from") or []
     if len(sources) < 2:
         return None
+    if trend["kind"] == "constant":
+        return f"J (from {len(sources)} spectra, weighted mean): {pm(trend['value_hz'], trend['error_hz'], 'Hz')}"
     if trend["kind"] == "linear drift":
         return (
             f"Δν drift (from {len(sources)} spectra): "

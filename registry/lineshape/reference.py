@@ -102,10 +102,15 @@ def tie_widths(widths: Sequence[ReferenceWidth]) -> ReferenceWidth:
         mean = float(values.mean())
         spread = float(values.std(ddof=1) / math.sqrt(len(values))) if len(values) > 1 else None
         return ReferenceWidth(mean, spread, math.nan, "series", "tied (mean of the series)")
-    weights = 1.0 / np.square(np.array(errs, dtype=float))
-    mean = float((weights * values).sum() / weights.sum())
-    err = math.sqrt(1.0 / float(weights.sum()))
-    chi2 = float((weights * (values - mean) ** 2).sum()) / (len(values) - 1)
-    return ReferenceWidth(
-        mean, err * math.sqrt(max(chi2, 1.0)), math.nan, "series", "tied (weighted mean)"
-    )
+    mean, var = weighted_mean(values, errs)  # type: ignore[arg-type]  (no None: checked)
+    return ReferenceWidth(mean, math.sqrt(var), math.nan, "series", "tied (weighted mean)")
+
+
+def weighted_mean(values: Sequence[float], sigma: Sequence[float]) -> tuple[float, float]:
+    """Mean and its variance, widened by the Birge ratio when the scatter exceeds the errors."""
+    y, w = np.asarray(values, float), 1.0 / np.asarray(sigma, float) ** 2
+    mean = float(np.sum(w * y) / np.sum(w))
+    var = 1.0 / float(np.sum(w))
+    if len(y) > 1:
+        var *= max(float(np.sum(w * (y - mean) ** 2)) / (len(y) - 1), 1.0)
+    return mean, var

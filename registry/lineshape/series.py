@@ -8,7 +8,9 @@ temperature, fitted through the spectra that do determine them:
 
 * Δν: a straight line in T (shifts drift linearly over a VT series);
 * the populations: van 't Hoff, ln K = −ΔH°/(RT) + ΔS°/R with K = p₂/p₁, giving ΔH° and ΔS° of
-  the site equilibrium with their errors.
+  the site equilibrium with their errors;
+* J of a coupled pair, when fitted: one value for the series (their weighted mean; a coupling
+  constant hardly moves with temperature), since the collapsing pair of fast exchange loses it.
 
 A tied value enters with its prediction σ (a Gaussian prior), so the rate's error includes it.
 ``auto`` does the above; ``fit`` leaves every spectrum free; ``hold`` keeps the given values;
@@ -29,7 +31,7 @@ from registry.kinetics.constants import R_KJ_MOL_K
 from registry.lineshape.coupled import CoupledABModel
 from registry.lineshape.fit import fit_spectrum
 from registry.lineshape.fit_core import FloatArray, LineShapeFit, Prepared, prepare
-from registry.lineshape.reference import ReferenceWidth, fit_reference, tie_widths
+from registry.lineshape.reference import ReferenceWidth, fit_reference, tie_widths, weighted_mean
 from registry.lineshape.simulate import ExchangeModel
 from registry.lineshape.sitefit import Setting, fit_sites, settings_from_model
 
@@ -39,13 +41,17 @@ MODES = ("auto", "fit", "hold", "tie")
 #: near coalescence and as Δν² in fast exchange, so 1 % in Δν costs at most ~2 % in k; a spectrum
 #: that knows Δν less well is better served by the series' drift …
 DELTA_REL = 0.01
-#: … and p₁ when its σ is below this (absolute; k goes as p₁p₂ in fast exchange)
+#: … and p₁ when its σ is below this (absolute; k goes as p₁p₂ in fast exchange); J, like Δν,
+#: when its σ is below DELTA_REL of |J|
 POP_ABS = 0.01
+#: how a tied value is marked, by parameter
+TIED_HOW = {"delta": "tied (drift)", "population": "tied (van 't Hoff)", "coupling": "tied (mean)"}
 
 
 @dataclass(frozen=True)
 class Trend:
-    """A parameter tied across the series: y = a + b·x, x = T − T̄ (drift) or 1/T (van 't Hoff)."""
+    """A parameter tied across the series: y = a + b·x, x = T − T̄ (drift) or 1/T (van 't Hoff),
+    or y = a (a constant: J)."""
 
     name: str
     kind: str
@@ -56,6 +62,8 @@ class Trend:
     sources: tuple[str, ...]
 
     def _x(self, t_k: float) -> float:
+        if self.kind == "constant":
+            return 0.0
         return t_k - self.x_ref if self.kind == "linear drift" else 1.0 / t_k
 
     def predict(self, t_k: float) -> tuple[float, float]:
@@ -64,7 +72,7 @@ class Trend:
         y = self.a + self.b * x
         c = np.array(self.cov)
         sd = math.sqrt(max(float(np.array([1.0, x]) @ c @ np.array([1.0, x])), 0.0))
-        if self.kind == "linear drift":
+        if self.kind in ("linear drift", "constant"):
             return y, sd
         p1 = 1.0 / (1.0 + math.exp(y))  # y = ln K = ln(p₂/p₁)
         return p1, p1 * (1.0 - p1) * sd
@@ -75,6 +83,8 @@ class Trend:
         if len(self.sources) < 2:  # one spectrum gives a value, not a line
             value, err = self.predict(self.x_ref or 300.0)
             out.update(kind="one spectrum's value", value=value, error=err)
+        elif self.kind == "constant":
+            out.update(value_hz=self.a, error_hz=math.sqrt(self.cov[0][0]))
         elif self.kind == "linear drift":
             out.update(
                 at_k=self.x_ref, value_hz=self.a, error_hz=math.sqrt(self.cov[0][0]),
@@ -123,13 +133,16 @@ def _trend(name: str, fits: Sequence[LineShapeFit], exclude: str | None = None) 
         how = next((h for n, _v, _e, h in f.parameters if n == name), "")
         if f.failed or _misfit(f) or how != "fitted" or f.t_k is None or not err or err <= 0:
             continue
-        limit = DELTA_REL * abs(value) if name == "delta" else POP_ABS
+        limit = POP_ABS if name == "population" else DELTA_REL * abs(value)
         if err < limit:
             rows.append((f.t_k, value, err, f.source))
     if not rows:
         return None
     temps = [r[0] for r in rows]
     sources = tuple(r[3] for r in rows)
+    if name == "coupling":
+        mean, var = weighted_mean([r[1] for r in rows], [r[2] for r in rows])
+        return Trend(name, "constant", mean, 0.0, ((var, 0.0), (0.0, 0.0)), 0.0, sources)
     if name == "delta":
         t_ref = float(np.mean(temps))
         a, b, cov = weighted_line([t - t_ref for t in temps], [r[1] for r in rows],
@@ -267,12 +280,14 @@ def fit_series(
     ]
     firsts = [row.fit for row in rows]
     modes = {"delta": options.shifts, "population": pops_mode}
+    if isinstance(model, CoupledABModel) and options.fit_coupling:
+        modes["coupling"] = "auto"
     trends = {n: _trend(n, firsts) for n, m in modes.items() if m in ("auto", "tie")}
     fits = [_second(row, firsts, trends, modes) for row in rows]
     fits.sort(key=lambda f: (f.t_k is None, f.t_k or 0.0))
     notes = [
         f"{words} not determined by any spectrum: held at the given value"
-        for name, words in (("delta", "Δν"), ("population", "the populations"))
+        for name, words in (("delta", "Δν"), ("population", "the populations"), ("coupling", "J"))
         if name in trends and trends[name] is None
     ]
     return SeriesFit(
@@ -329,8 +344,7 @@ def _tied(
     if basis is None or fit.t_k is None:
         return Setting(settings[name].value, "held")
     value, sd = basis.predict(fit.t_k)
-    how = "tied (drift)" if name == "delta" else "tied (van 't Hoff)"
-    return Setting(value, how, max(sd, 1e-9))
+    return Setting(value, TIED_HOW[name], max(sd, 1e-9))
 
 
 def reference_widths(spectra: Sequence, window_hz: tuple[float, float]) -> list[ReferenceWidth]:
