@@ -193,21 +193,28 @@ def test_simulated_record_and_refusals() -> None:
         api.fit_lineshapes([spec], "30,-30 Hz", fit_coupling=True)
 
 
+def _ab_series(rates: list[tuple[float, float]], points: int, seed: int) -> list[object]:
+    """AB spectra (sites ±25 Hz, J = −14.5 Hz, width 0.9 Hz, 1 % noise; invented) at (T, k)."""
+    from registry import api
+    from registry.lineshape.spectrum import Spectrum
+
+    spectra: list[object] = []
+    for i, (t, k) in enumerate(rates):
+        sim = api.simulate_lineshape(
+            "25,-25 Hz", k, coupling="-14.5 Hz", width="0.9 Hz", points=points, noise=0.01,
+            seed=seed + i, window="-150,150 Hz",
+        )  # fmt: skip
+        spectra.append(Spectrum(sim.x, sim.intensity, "Hz", f"ab_{t:.0f}", t_k=t))
+    return spectra
+
+
 def test_j_is_tied_to_the_series_where_fast_exchange_loses_it() -> None:
     """Slow and intermediate AB spectra fix J (−14.5 Hz, invented); the fast one (k = 2000 s⁻¹,
     one collapsing line) does not: its J is tied to the weighted mean of the others (checked
     with numpy.average), with that mean's σ, and its rate stays within its error."""
     from registry import api
-    from registry.lineshape.spectrum import Spectrum
 
-    rates = [(280.0, 10.0), (300.0, 60.0), (340.0, 2000.0)]
-    spectra = []
-    for i, (t, k) in enumerate(rates):
-        sim = api.simulate_lineshape(
-            "25,-25 Hz", k, coupling="-14.5 Hz", width="0.9 Hz", points=4096, noise=0.01,
-            seed=20 + i, window="-150,150 Hz",
-        )  # fmt: skip
-        spectra.append(Spectrum(sim.x, sim.intensity, "Hz", f"ab_{t:.0f}", t_k=t))
+    spectra = _ab_series([(280.0, 10.0), (300.0, 60.0), (340.0, 2000.0)], 4096, 20)
     result = api.fit_lineshapes(
         spectra, "25,-25 Hz", coupling="-12 Hz", fit_coupling=True, width="0.9 Hz", fix_width=True
     )
@@ -225,15 +232,8 @@ def test_j_is_tied_to_the_series_where_fast_exchange_loses_it() -> None:
 def test_j_held_with_a_note_when_no_spectrum_fixes_it() -> None:
     """Only fast-exchange spectra: no spectrum fixes J, so it is held at the value given."""
     from registry import api
-    from registry.lineshape.spectrum import Spectrum
 
-    spectra = []
-    for i, (t, k) in enumerate([(330.0, 3000.0), (340.0, 5000.0)]):
-        sim = api.simulate_lineshape(
-            "25,-25 Hz", k, coupling="-14.5 Hz", width="0.9 Hz", points=2048, noise=0.01,
-            seed=40 + i, window="-150,150 Hz",
-        )  # fmt: skip
-        spectra.append(Spectrum(sim.x, sim.intensity, "Hz", f"ab_{t:.0f}", t_k=t))
+    spectra = _ab_series([(330.0, 3000.0), (340.0, 5000.0)], 2048, 40)
     result = api.fit_lineshapes(
         spectra, "25,-25 Hz", coupling="-12 Hz", fit_coupling=True, width="0.9 Hz", fix_width=True
     )

@@ -38,6 +38,23 @@ def empty(request: pytest.FixtureRequest, tmp_path: Path) -> Iterator[Database]:
     database.close()
 
 
+def one_measurement(database: Database, method: str, **values: object) -> None:
+    """Compound 100 and measurement 100 (``method``, extra ``values``) written in SQL, as an
+    older schema holds them (invented)."""
+    now = datetime(2026, 1, 1, tzinfo=UTC)
+    names = "".join(f", {k}" for k in values)
+    marks = "".join(f", :{k}" for k in values)
+    with database.sqlalchemy_engine().begin() as sa:
+        sa.execute(text("INSERT INTO compound (id, label, structure_ok, created_at) "
+                        "VALUES (100, 'X-1', :ok, :now)"), {"ok": True, "now": now})  # fmt: skip
+        sa.execute(
+            text("INSERT INTO measurement (id, compound_id, method, status, entered_by, "
+                 f"entered_at, uid{names}) VALUES (100, 100, :method, 'draft', 'tester', :now, "
+                 f"'u1'{marks})"),
+            {"now": now, "method": method, **values},
+        )  # fmt: skip
+
+
 def _columns(database: Database) -> set[str]:
     return {c["name"] for c in inspect(database.sqlalchemy_engine()).get_columns("measurement")}
 

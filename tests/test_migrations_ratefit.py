@@ -3,10 +3,8 @@ and keeps every row; an upgraded registry stores fit records."""
 
 from __future__ import annotations
 
-from datetime import UTC, datetime
-
 from sqlalchemy import inspect, text
-from test_migrations_conventions import empty  # noqa: F401  (a fixture)
+from test_migrations_conventions import empty, one_measurement  # noqa: F401
 
 from registry import api
 from registry.storage import migrate
@@ -23,15 +21,8 @@ def test_0009_up_and_down_keeps_rows(empty: Database) -> None:  # noqa: F811 (th
     database = empty
     migrate.upgrade(database, "0008")
     assert "fit_json" not in _rate_columns(database)
-    now = datetime(2026, 1, 1, tzinfo=UTC)
+    one_measurement(database, "lineshape")
     with database.sqlalchemy_engine().begin() as sa:
-        sa.execute(text("INSERT INTO compound (id, label, structure_ok, created_at) "
-                        "VALUES (100, 'X-1', :ok, :now)"), {"ok": True, "now": now})  # fmt: skip
-        sa.execute(
-            text("INSERT INTO measurement (id, compound_id, method, status, entered_by, "
-                 "entered_at, uid) VALUES (100, 100, 'lineshape', 'draft', 'tester', :now, 'u1')"),
-            {"now": now},
-        )  # fmt: skip
         sa.execute(text("INSERT INTO rate_point (measurement_id, t_k, t_text, k_per_s, k_text) "
                         "VALUES (100, 300.0, '300 K', 12.5, '12.5 s-1')"))  # fmt: skip
     migrate.upgrade(database, "0009")

@@ -3,10 +3,7 @@ and down on SQLite and PostgreSQL and keeps every row; an upgraded registry take
 
 from __future__ import annotations
 
-from datetime import UTC, datetime
-
-from sqlalchemy import text
-from test_migrations_conventions import _columns, empty  # noqa: F401  (a fixture)
+from test_migrations_conventions import _columns, empty, one_measurement  # noqa: F401
 
 from registry import api
 from registry.storage import migrate
@@ -25,16 +22,7 @@ def test_0008_up_and_down_keeps_rows(empty: Database) -> None:  # noqa: F811 (th
     database = empty
     migrate.upgrade(database, "0007")
     assert not NEW_COLUMNS & _columns(database)
-    now = datetime(2026, 1, 1, tzinfo=UTC)
-    with database.sqlalchemy_engine().begin() as sa:
-        sa.execute(text("INSERT INTO compound (id, label, structure_ok, created_at) "
-                        "VALUES (100, 'X-1', :ok, :now)"), {"ok": True, "now": now})  # fmt: skip
-        sa.execute(
-            text("INSERT INTO measurement (id, compound_id, method, status, entered_by, "
-                 "entered_at, uid, dg_kj_mol) VALUES (100, 100, '2d-exchange', 'draft', 'tester', "
-                 ":now, 'u1', 70.0)"),
-            {"now": now},
-        )  # fmt: skip
+    one_measurement(database, "2d-exchange", dg_kj_mol=70.0)
     migrate.upgrade(database, "0008")
     assert _columns(database) >= NEW_COLUMNS
     with database.read() as conn:
