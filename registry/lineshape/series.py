@@ -45,7 +45,8 @@ POP_ABS = 0.01
 
 @dataclass(frozen=True)
 class Trend:
-    """A parameter tied across the series: y = a + b·x, x = T − T̄ (drift) or 1/T (van 't Hoff)."""
+    """A parameter tied across the series: y = a + b·x, x = T − T̄ (drift) or 1/T (van 't Hoff),
+    or y = a (constant); y is ln K = ln(p₂/p₁) for the populations."""
 
     name: str
     kind: str
@@ -64,7 +65,7 @@ class Trend:
         y = self.a + self.b * x
         c = np.array(self.cov)
         sd = math.sqrt(max(float(np.array([1.0, x]) @ c @ np.array([1.0, x])), 0.0))
-        if self.kind == "linear drift":
+        if self.name != "population":
             return y, sd
         p1 = 1.0 / (1.0 + math.exp(y))  # y = ln K = ln(p₂/p₁)
         return p1, p1 * (1.0 - p1) * sd
@@ -72,7 +73,10 @@ class Trend:
     def to_dict(self) -> dict[str, object]:
         out: dict[str, object] = {"parameter": self.name, "kind": self.kind,
                                   "from": list(self.sources)}  # fmt: skip
-        if len(self.sources) < 2:  # one spectrum gives a value, not a line
+        if self.kind == "constant":  # one value for the whole series (the global fit's)
+            value, err = self.predict(self.x_ref or 300.0)
+            out.update(value=value, error=err)
+        elif len(self.sources) < 2:  # one spectrum gives a value, not a line
             value, err = self.predict(self.x_ref or 300.0)
             out.update(kind="one spectrum's value", value=value, error=err)
         elif self.kind == "linear drift":
