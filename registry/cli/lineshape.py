@@ -259,6 +259,27 @@ def _fit_row(fit: Any) -> dict[str, Any]:
     return row
 
 
+def _trend_text(trend: Any, whence: str) -> str:
+    """One line for a Δν drift, a van 't Hoff line of the populations or one shared value."""
+    from registry.api import value_with_error_text as pm
+
+    d = trend.to_dict()
+    if trend.kind == "linear drift":
+        return (
+            f"Δν drift ({whence}): {pm(d['value_hz'], d['error_hz'], 'Hz')} at "
+            f"{d['at_k']:.1f} K, {pm(d['slope_hz_per_k'], d['slope_err_hz_per_k'], 'Hz/K')}"
+        )
+    if trend.kind == "constant":
+        words = {"delta": ("Δν", "Hz"), "population": ("p1", ""), "coupling": ("J", "Hz")}
+        name, unit = words.get(trend.name, (trend.name, ""))
+        return f"{name} ({whence}, one value): {pm(d['value'], d['error'], unit).strip()}"
+    return (
+        f"populations, van 't Hoff ({whence}; K = p2/p1): "
+        f"ΔH° = {pm(d['dh_kj_mol'], d['dh_err_kj_mol'], 'kJ/mol')}, "
+        f"ΔS° = {pm(d['ds_j_mol_k'], d['ds_err_j_mol_k'], 'J/(mol·K)')}"
+    )
+
+
 def _render_series(result: Any) -> None:
     """What the sites were tied to, and the reference widths."""
     from registry.api import value_with_error_text as pm
@@ -268,19 +289,7 @@ def _render_series(result: Any) -> None:
     for t in result.trends:
         if len(t.sources) < 2:  # one spectrum's value, shown in its row
             continue
-        d = t.to_dict()
-        if t.kind == "linear drift":
-            typer.echo(
-                f"Δν drift (from {len(t.sources)} spectra): "
-                f"{pm(d['value_hz'], d['error_hz'], 'Hz')} at {d['at_k']:.1f} K, "
-                f"{pm(d['slope_hz_per_k'], d['slope_err_hz_per_k'], 'Hz/K')}"
-            )
-        else:
-            typer.echo(
-                f"populations, van 't Hoff (from {len(t.sources)} spectra; K = p2/p1): "
-                f"ΔH° = {pm(d['dh_kj_mol'], d['dh_err_kj_mol'], 'kJ/mol')}, "
-                f"ΔS° = {pm(d['ds_j_mol_k'], d['ds_err_j_mol_k'], 'J/(mol·K)')}"
-            )
+        typer.echo(_trend_text(t, f"from {len(t.sources)} spectra"))
     if result.tied_width is not None:
         w = result.tied_width
         typer.echo(f"intrinsic width {w.how}: {pm(w.width_hz, w.width_err_hz, 'Hz')}")
@@ -315,6 +324,8 @@ def _render_fit(result: Any) -> None:
             f"ΔS‡ = {pm(g.ds_j_mol_k, g.ds_err_j_mol_k, 'J/(mol·K)')}, "
             f"ΔG‡(298.15 K) = {pm(g.dg_298_kj_mol, g.dg_298_err_kj_mol, 'kJ/mol')}"
         )
+        for t in result.global_fit.trends:
+            typer.echo(_trend_text(t, "global fit"))
         if result.global_note:
             typer.echo(f"note: {result.global_note}")
     for p in result.plots:
