@@ -5,7 +5,14 @@ The fit shares ΔH‡ and ΔS‡ (through ΔG‡ at the mean temperature, see
 residuals weighted by each spectrum's noise from its own per-temperature fit
 (:func:`registry.lineshape.fit.fit_spectrum`), so χ²/dof ≈ 1 by construction. The model of one
 spectrum and the error estimate are those of :mod:`registry.lineshape.fit_core`.
-"""
+
+Δν, the populations and J are not held at what the series fit found: where the series tied
+them to smooth functions of temperature, those functions (Δν's linear drift, the van 't Hoff
+line of the site equilibrium, one J) are parameters of this fit too, shared by every spectrum
+(:mod:`registry.lineshape.global_sites`, which says why); a width measured on a reference line
+enters as a prior of its σ (one more residual (w − w_ref)/σ). So the covariance is that of the
+whole problem, and σ(k), σ(ΔH‡), σ(ΔS‡) carry what Δν, p₁ and the widths are not known to.
+Their derivatives are analytic (:meth:`~registry.lineshape.fit_core.ModelShape.along`).
 
 from __future__ import annotations
 
