@@ -13,6 +13,7 @@ line of the site equilibrium, one J) are parameters of this fit too, shared by e
 enters as a prior of its σ (one more residual (w − w_ref)/σ). So the covariance is that of the
 whole problem, and σ(k), σ(ΔH‡), σ(ΔS‡) carry what Δν, p₁ and the widths are not known to.
 Their derivatives are analytic (:meth:`~registry.lineshape.fit_core.ModelShape.along`).
+"""
 
 from __future__ import annotations
 
