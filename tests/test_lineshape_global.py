@@ -142,12 +142,11 @@ def _coverage_ok(z: np.ndarray) -> bool:
     return 0.50 <= inside1 <= 0.86 and inside2 >= 0.85
 
 
-def test_global_errors_cover_the_truth_at_their_stated_level() -> None:
-    """60 seeded series fitted globally with Δν and p₁ on shared lines (auto) and the width
-    from a reference line: the z of one rate per series (the temperature taken in turn) and
-    of ΔH‡ must cover the truth as normal errors do; halved or doubled errors must not."""
+def _z_values(seeds: int) -> tuple[np.ndarray, np.ndarray]:
+    """z of one rate per series (the temperature taken in turn) and of ΔH‡, Δν and p₁ 'auto'
+    and the width from a reference line."""
     z_rate, z_dh = [], []
-    for seed in range(60):
+    for seed in range(seeds):
         result = api.fit_lineshapes(
             _series(seed), "50,-50 Hz", populations="0.5,0.5", region="-200,200 Hz",
             reference="-280,-220 Hz", store_doubtful=True, global_fit=True,
@@ -157,11 +156,28 @@ def test_global_errors_cover_the_truth_at_their_stated_level() -> None:
         fit = g.fits[seed % len(TEMPS)]
         z_rate.append((fit.k_per_s - _rate(fit.t_k)) / fit.k_err_per_s)  # type: ignore[arg-type, operator]
         z_dh.append((g.eyring.dh_kj_mol - DH) / g.eyring.dh_err_kj_mol)  # type: ignore[operator]
-    for z in (np.array(z_rate), np.array(z_dh)):
+    return np.array(z_rate), np.array(z_dh)
+
+
+def test_global_errors_cover_the_truth_at_their_stated_level() -> None:
+    """60 seeded series fitted globally with Δν and p₁ on shared lines: the rates' and ΔH‡'s z
+    must cover the truth as normal errors do; halved or doubled errors must not."""
+    for z in _z_values(60):
         assert _coverage_ok(z)
         # the check can fail: errors half or twice as large as reported would not pass it
         assert not _coverage_ok(2.0 * z)
         assert not _coverage_ok(0.5 * z)
+
+
+def test_coverage_fails_with_the_sites_held(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Holding Δν and p₁ at the series fit's values (as the global fit once did) leaves their
+    uncertainty out of the errors, and the same check catches it."""
+    import registry.lineshape.global_sites as global_sites
+
+    monkeypatch.setattr(global_sites, "plan_for", lambda *args: SitePlan())
+    z_rate, z_dh = _z_values(60)
+    assert not _coverage_ok(z_rate)
+    assert not _coverage_ok(z_dh)
 
 
 def test_global_fit_reports_its_shared_lines() -> None:
