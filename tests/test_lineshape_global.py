@@ -7,6 +7,7 @@ The demo series here are invented (sites, barrier and site equilibrium made up f
 
 from __future__ import annotations
 
+import json
 import math
 
 import numpy as np
@@ -229,3 +230,31 @@ def test_site_derivative_refuses_what_a_model_has_not() -> None:
         ExchangeModel((-60.0, 60.0), (0.5, 0.5)).site_derivative("coupling", 1.0)
     with pytest.raises(ValueError, match="no derivative for 'population'"):
         CoupledABModel((-30.0, 30.0), 10.0).site_derivative("population", 1.0)
+
+
+def test_cli_shows_the_global_lines(cli, tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from registry.lineshape.spectrum import csv_text
+
+    files = []
+    for s in _series(0):
+        path = tmp_path / f"{s.source}.csv"
+        path.write_text(csv_text(s.x, s.intensity, "Hz", {"temperature": f"{s.t_k:.2f} K"}))
+        files.append(str(path))
+    args = ("lineshape", "fit", *files, "--sites", "50,-50 Hz", "--populations", "0.5,0.5",
+            "--region", "-200,200 Hz", "--reference", "-280,-220 Hz", "--global")  # fmt: skip
+    result = cli(*args)
+    assert result.exit_code == 0, result.stderr
+    lines = result.stdout.splitlines()
+    at = next(i for i, ln in enumerate(lines) if ln.startswith("global fit (5 spectra, "))
+    assert lines[at + 1].startswith("Δν drift (global fit): ")
+    assert lines[at + 1].endswith(" Hz/K") and " at 300.0 K, " in lines[at + 1]
+    assert lines[at + 2].startswith("populations, van 't Hoff (global fit; K = p2/p1): ΔH° = ")
+    data = json.loads(cli(*args, "--json").stdout)
+    trends = data["global"]["trends"]
+    assert [(t["parameter"], t["kind"]) for t in trends] == [
+        ("delta", "linear drift"), ("population", "van 't Hoff")
+    ]  # fmt: skip
+    assert trends[0]["from"] == files
+    rows = data["global"]["fits"][0]["parameters"]
+    assert [r["how"] for r in rows] == ["global drift", "global van 't Hoff", "reference"]
+    assert all(r["error"] is not None and r["error"] > 0 for r in rows)
