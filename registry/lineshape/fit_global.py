@@ -106,7 +106,8 @@ class _Spectrum:
     #: Δν, ln K, J as the series fit found them (what a held site parameter stays at)
     held: dict[str, float]
     width_hz: float
-    #: how the width enters: 'held', 'fitted' or 'reference' (fitted with a prior of σ below)
+    #: how the width enters: 'held', 'fitted', 'reference' (fitted with a prior of σ below) or
+    #: 'tied (series)' (one width for every spectrum, with one prior)
     width_how: str
     width_sigma: float | None
     #: index in θ of every parameter this spectrum depends on (shared ones included)
@@ -140,7 +141,13 @@ class _GlobalProblem:
         self.t_m = harmonic_mean_temperature(temps)
         self.t_bar = float(np.mean(temps))
         self.n_data = spectra[-1].rows.stop
-        self.prior = [s for s in spectra if s.width_how == "reference"]
+        # one prior row per width parameter (a tied width is one column shared by all)
+        seen: set[int] = set()
+        self.prior = []
+        for s in spectra:
+            if s.width_sigma is not None and s.columns["width"] not in seen:
+                seen.add(s.columns["width"])
+                self.prior.append(s)
         self.n_total = self.n_data + len(self.prior)
         self.dlnk_dg = -1.0 / (R_KJ_MOL_K * self.t_m)
         self._shapes: dict[int, tuple[tuple[float, ...], ModelShape]] = {}
@@ -216,7 +223,7 @@ class _GlobalProblem:
             block[:, 0] = a * d_lnk * self.dlnk_dg
             block[:, 1] = a * d_lnk * self.dlnk_dh(s.t_k)
             if s.width_how != "held":
-                block[:, c["width"]] = a * (w - s.prep.width_floor) * d_w
+                block[:, c["width"]] += a * (w - s.prep.width_floor) * d_w
             block[:, c["offset"]] = a * d_off
             block[:, c["area"]] = value
             block[:, c["b0"]] = 1.0
@@ -253,9 +260,13 @@ def _build(
     starts: Sequence[LineShapeFit],
     width_hz: float,
     fix_width: bool,
+    tie_width: bool = False,
 ) -> tuple[_GlobalProblem, FloatArray]:
     """The problem (columns of θ for every spectrum) and its start θ₀ from the series fits."""
     shared = ["dg", "dh", *plan.shared()]
+    tie_width = tie_width and not fix_width
+    if tie_width:
+        shared.append("width")
     columns0 = {n: i for i, n in enumerate(shared)}
     col, row = len(shared), 0
     parts: list[_Spectrum] = []
@@ -266,9 +277,12 @@ def _build(
         width = width_hz if s.width_hz is None else s.width_hz
         if fix_width or (s.width_err_hz is not None and s.width_err_hz <= 0):
             how = "held"
+        elif tie_width:
+            how = "tied (series)"
         else:
             how = "reference" if s.width_err_hz else "fitted"
-        names = ([] if how == "held" else ["width"]) + plan.own() + ["offset", "area", "b0", "b1"]
+        own_width = ["width"] if how in ("reference", "fitted") else []
+        names = own_width + plan.own() + ["offset", "area", "b0", "b1"]
         prep = prepare(s.freq_hz, s.intensity, own_model, s.source, s.t_k, s.t_text,
                        len(names) + len(shared))  # fmt: skip
         columns = {**columns0, **{n: col + j for j, n in enumerate(names)}}
@@ -277,7 +291,7 @@ def _build(
         row += len(prep.y)
         sigma = max(f.rms / prep.ynorm, 1e-12)
         parts.append(_Spectrum(prep, s.t_k, sigma, own_model, _held_sites(own_model), width, how,
-                               s.width_err_hz if how == "reference" else None, columns, rows))  # fmt: skip
+                               s.width_err_hz if how != "held" else None, columns, rows))  # fmt: skip
     problem = _GlobalProblem(parts, plan, col)
     return problem, _start(problem, starts)
 
@@ -303,7 +317,7 @@ def _start(problem: _GlobalProblem, starts: Sequence[LineShapeFit]) -> FloatArra
         if s.width_how != "held":
             # a start whose width collapsed (see fit_core.make_fit) restarts from the given width
             w0 = f.width_hz if f.width_hz > 1.01 * p.width_floor else s.width_hz
-            theta0[c["width"]] = p.theta_w(w0)
+            theta0[c["width"]] = p.theta_w(s.width_hz if s.width_how == "tied (series)" else w0)
     return theta0
 
 
@@ -376,6 +390,7 @@ def fit_global(
     fix_width: bool = False,
     starts: Sequence[LineShapeFit] | None = None,
     plan: SitePlan | None = None,
+    tie_width: bool = False,
 ) -> GlobalFit:
     """Fit ΔH‡ and ΔS‡ to all spectra at once (k(T) from the Eyring equation).
 
@@ -383,7 +398,8 @@ def fit_global(
     they give the starting values and each spectrum's noise level for the weights. ``plan``
     says how Δν, the populations and J enter (:class:`~registry.lineshape.global_sites.SitePlan`;
     default: held at each spectrum's own model). The width is held (``fix_width``), fitted with
-    a prior (a spectrum with ``width_err_hz``: its reference line's σ) or fitted freely.
+    a prior (a spectrum with ``width_err_hz``: its reference line's σ) or fitted freely;
+    ``tie_width`` makes it one width for all spectra (one prior: the series' tied width and σ).
     Parameters θ: ΔG‡(T_m), ΔH‡ (kJ/mol), the shared site parameters, then per spectrum
     [θ_w,] [own Δν, ln K,] δ, A, b₀, b₁; every error is from the joint covariance.
     """
@@ -404,7 +420,7 @@ def fit_global(
             )
             for s in spectra
         ]
-    problem, theta0 = _build(spectra, model, plan, starts, width_hz, fix_width)
+    problem, theta0 = _build(spectra, model, plan, starts, width_hz, fix_width, tie_width)
     result = least_squares(
         problem.residuals,
         theta0,

@@ -343,7 +343,7 @@ def _global(
     plan = plan_for(model, options, series.trends)
     held = options.fix_width and options.reference_hz is None
     return fit_global(spectra, model, width_hz=options.width_hz, fix_width=held, starts=starts,
-                      plan=plan)  # fmt: skip
+                      plan=plan, tie_width=series.tied_width is not None)  # fmt: skip
 
 
 def _own_model(
