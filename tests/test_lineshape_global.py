@@ -258,3 +258,48 @@ def test_cli_shows_the_global_lines(cli, tmp_path) -> None:  # type: ignore[no-u
     rows = data["global"]["fits"][0]["parameters"]
     assert [r["how"] for r in rows] == ["global drift", "global van 't Hoff", "reference"]
     assert all(r["error"] is not None and r["error"] > 0 for r in rows)
+
+
+def test_modes_other_than_auto() -> None:
+    """'fit' gives each spectrum its own Δν and p₁ (no shared lines); 'hold' holds them; a
+    tied width is one width for all spectra."""
+    spectra = _series(1)
+    common = dict(populations="0.5,0.5", region="-200,200 Hz", reference="-280,-220 Hz",
+                  store_doubtful=True, global_fit=True)  # fmt: skip
+    own = api.fit_lineshapes(spectra, "50,-50 Hz", shifts_mode="fit", populations_mode="fit",
+                             **common).global_fit  # type: ignore[arg-type]  # fmt: skip
+    assert own is not None and own.trends == ()
+    assert [h for _n, _v, _e, h in own.fits[0].parameters] == ["fitted", "fitted", "reference"]
+    # the slow-exchange spectrum at 270 K fixes its own Δν: 100 Hz there (from the setup)
+    delta = own.fits[0].parameters[0]
+    assert abs(delta[1] - 100.0) < 4 * delta[2]
+    held = api.fit_lineshapes(spectra, "50,-50 Hz", shifts_mode="hold", populations_mode="hold",
+                              **common).global_fit  # type: ignore[arg-type]  # fmt: skip
+    assert held is not None and held.trends == ()
+    assert [(v, e, h) for _n, v, e, h in held.fits[0].parameters[:2]] == [
+        (100.0, None, "held"), (0.5, None, "held")
+    ]  # fmt: skip
+    tied = api.fit_lineshapes(spectra, "50,-50 Hz", tie_width=True, **common).global_fit  # type: ignore[arg-type]
+    assert tied is not None
+    widths = {(v, e, h) for f in tied.fits for n, v, e, h in f.parameters if n == "width"}
+    assert len(widths) == 1 and next(iter(widths))[2] == "tied (series)"
+
+
+def test_coupled_pair_shares_one_coupling() -> None:
+    """An invented AB series (J = 12 Hz, ΔH‡ = 62 kJ/mol, ΔS‡ = 0) with J fitted: one J for
+    the whole series, within its error of the value simulated."""
+    rng = np.random.default_rng(11)
+    freq = np.linspace(-120.0, 120.0, 2048)
+    spectra = []
+    for t in (280.0, 295.0, 310.0, 325.0):
+        rate = k * t / h * math.exp(-62000.0 / (R * t))  # Eyring, κ = 1, CODATA constants
+        y = CoupledABModel((30.0, -30.0), 12.0).spectrum(freq, rate, 1.0)
+        spectra.append(Spectrum(freq, y + rng.normal(0.0, 0.01 * y.max(), freq.size), "Hz",
+                                f"ab{t:.0f}", t_k=t))  # fmt: skip
+    result = api.fit_lineshapes(spectra, "30,-30 Hz", coupling="10 Hz", fit_coupling=True,
+                                width="1 Hz", fix_width=True, global_fit=True)  # fmt: skip
+    g = result.global_fit
+    assert g is not None and g.converged
+    j = next(t for t in g.trends if t.name == "coupling")
+    assert j.kind == "constant" and abs(j.a - 12.0) < 4 * math.sqrt(j.cov[0][0])
+    assert abs(g.eyring.dh_kj_mol - 62.0) < 4 * g.eyring.dh_err_kj_mol  # type: ignore[operator]
