@@ -32,7 +32,9 @@ import numpy as np
 
 from registry.errors import UsageError
 from registry.lineshape.fit_core import FloatArray, LineShapeFit
-from registry.lineshape.series import Trend
+from registry.lineshape.coupled import CoupledABModel
+from registry.lineshape.series import SiteOptions, Trend
+from registry.lineshape.simulate import ExchangeModel
 
 #: how Δν, the populations and J may enter (see the module docstring)
 DELTA_PLANS = ("held", "own", "level", "drift")
@@ -193,17 +195,18 @@ def value_error(grads: list[tuple[int, float]], cov: FloatArray | None) -> float
     return math.sqrt(var) if math.isfinite(var) and var >= 0 else None
 
 
-def plan_for(model: object, options: object, series_trends: Sequence[Trend]) -> SitePlan:
+def plan_for(
+    model: ExchangeModel | CoupledABModel, options: SiteOptions, series_trends: Sequence[Trend]
+) -> SitePlan:
     """The plan for the series' modes (``options.shifts``, ``options.populations``: see
     :mod:`registry.lineshape.series`): 'auto' and 'tie' share the trend the series fit drew
     (a line through two or more spectra, one value through one; held where no spectrum
     determined it), 'fit' leaves each spectrum its own, 'hold' holds. J is shared when the
     series fitted it. More than two sites keep everything held."""
-    shifts = getattr(model, "shifts_hz", ())
-    if len(shifts) != 2:
+    if len(model.shifts_hz) != 2:
         return SitePlan()
     drawn = {t.name: len(t.sources) for t in series_trends}
-    coupled = hasattr(model, "j_hz")
+    coupled = isinstance(model, CoupledABModel)
     out = {}
     for name, mode, line in (("delta", options.shifts, "drift"),
                              ("population", options.populations, "van 't Hoff")):  # fmt: skip
@@ -214,5 +217,5 @@ def plan_for(model: object, options: object, series_trends: Sequence[Trend]) -> 
         else:
             n = drawn.get(name, 0)
             out[name] = line if n >= 2 else ("level" if n == 1 else "held")
-    fit_j = coupled and bool(getattr(options, "fit_coupling", False))
+    fit_j = coupled and options.fit_coupling
     return SitePlan(out["delta"], out["population"], "shared" if fit_j else "held")
