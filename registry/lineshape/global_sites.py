@@ -31,8 +31,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from registry.errors import UsageError
-from registry.lineshape.fit_core import FloatArray, LineShapeFit
 from registry.lineshape.coupled import CoupledABModel
+from registry.lineshape.fit_core import FloatArray, LineShapeFit
 from registry.lineshape.series import SiteOptions, Trend
 from registry.lineshape.simulate import ExchangeModel
 
