@@ -71,7 +71,8 @@ class SpectrumInput:
     t_k: float
     source: str
     t_text: str | None = None
-    #: this spectrum's own sites (Δν, populations fitted or tied per spectrum), else the common
+    #: this spectrum's own sites (as its series fit found them): the centre of its sites, and
+    #: what its held site parameters stay at; else the common model
     model: ExchangeModel | CoupledABModel | None = None
     #: this spectrum's own intrinsic width (a reference line's), else the common one …
     width_hz: float | None = None
