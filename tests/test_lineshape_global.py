@@ -303,3 +303,22 @@ def test_coupled_pair_shares_one_coupling() -> None:
     j = next(t for t in g.trends if t.name == "coupling")
     assert j.kind == "constant" and abs(j.a - 12.0) < 4 * math.sqrt(j.cov[0][0])
     assert abs(g.eyring.dh_kj_mol - 62.0) < 4 * g.eyring.dh_err_kj_mol  # type: ignore[operator]
+
+
+@pytest.mark.parametrize("sigma", [-0.1, math.nan, math.inf])
+def test_global_fit_refuses_a_width_sigma_that_is_no_sigma(sigma: float) -> None:
+    model = ExchangeModel((50.0, -50.0), (0.5, 0.5))
+    freq = np.linspace(-150.0, 150.0, 600)
+    spectra = [
+        SpectrumInput(
+            freq,
+            model.spectrum(freq, 20.0 * (i + 1), 1.0),
+            t,
+            f"s{i}",
+            width_hz=1.0,
+            width_err_hz=sigma,
+        )
+        for i, t in enumerate((290.0, 310.0))
+    ]
+    with pytest.raises(UsageError, match=r"s0: width_err_hz must be a finite σ ≥ 0, not "):
+        fit_global(spectra, model, width_hz=1.0)

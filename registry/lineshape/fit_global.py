@@ -276,6 +276,9 @@ def _build(
         if len(own_model.shifts_hz) != 2 and not plan.all_held:
             raise UsageError("global fit: Δν and the populations vary only for two sites")
         width = width_hz if s.width_hz is None else s.width_hz
+        sigma_w = s.width_err_hz
+        if sigma_w is not None and not (math.isfinite(sigma_w) and sigma_w >= 0):
+            raise UsageError(f"{s.source}: width_err_hz must be a finite σ ≥ 0, not {sigma_w!r}")
         if fix_width or (s.width_err_hz is not None and s.width_err_hz <= 0):
             how = "held"
         elif tie_width:
