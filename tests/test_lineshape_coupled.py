@@ -222,7 +222,7 @@ def test_j_is_tied_to_the_series_where_fast_exchange_loses_it() -> None:
     assert [h for _j, _e, h in js] == ["fitted", "fitted", "tied (mean)"]
     mean = np.average([j for j, _e, _h in js[:2]], weights=[1 / e**2 for _j, e, _h in js[:2]])
     (trend,) = [t for t in result.trends if t.name == "coupling"]
-    assert trend.to_dict()["value_hz"] == pytest.approx(mean, rel=1e-9)
+    assert trend.to_dict()["value"] == pytest.approx(mean, rel=1e-9)
     assert js[2][0] == pytest.approx(mean, abs=3 * js[2][1])  # a prior, not a clamp
     assert abs(mean + 14.5) < 4 * math.sqrt(trend.cov[0][0])
     fast = result.fits[2]

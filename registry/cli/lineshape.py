@@ -304,6 +304,8 @@ def _render_fit(result: Any) -> None:
             f"ΔS‡ = {pm(g.ds_j_mol_k, g.ds_err_j_mol_k, 'J/(mol·K)')}, "
             f"ΔG‡(298.15 K) = {pm(g.dg_298_kj_mol, g.dg_298_err_kj_mol, 'kJ/mol')}"
         )
+        for t in result.global_fit.trends:
+            typer.echo(trend_text(t.to_dict(), "global fit"))
         if result.global_note:
             typer.echo(f"note: {result.global_note}")
     for p in result.plots:

@@ -12,24 +12,34 @@ _SHOWN = (("delta", "Δν", "Hz"), ("population", "p1", ""), ("coupling", "J", "
           ("width", "width", "Hz"))  # fmt: skip
 
 
-def trend_text(trend: dict[str, Any]) -> str | None:
-    """One line for a trend's ``to_dict`` (None for one spectrum's value: no line to show)."""
-    sources = trend.get("from") or []
-    if len(sources) < 2:
+def trend_text(trend: dict[str, Any], whence: str | None = None) -> str | None:
+    """One line for a trend's ``to_dict``: a Δν drift, a van 't Hoff line of the populations or
+    one shared value; ``whence`` says where it came from (default: how many spectra drew it).
+    None for one spectrum's value (shown in that spectrum's row)."""
+    kind = trend["kind"]
+    if kind == "one spectrum's value":
         return None
-    if trend["kind"] == "constant":
-        return f"J (from {len(sources)} spectra, weighted mean): {pm(trend['value_hz'], trend['error_hz'], 'Hz')}"
-    if trend["kind"] == "linear drift":
+    if whence is None:
+        n = len(trend.get("from") or [])
+        whence = f"from {n} spectr{'um' if n == 1 else 'a'}"
+    if kind == "linear drift":
         return (
-            f"Δν drift (from {len(sources)} spectra): "
-            f"{pm(trend['value_hz'], trend['error_hz'], 'Hz')} at {trend['at_k']:.1f} K, "
+            f"Δν drift ({whence}): {pm(trend['value_hz'], trend['error_hz'], 'Hz')} at "
+            f"{trend['at_k']:.1f} K, "
             f"{pm(trend['slope_hz_per_k'], trend['slope_err_hz_per_k'], 'Hz/K')}"
         )
+    if kind == "constant":
+        name, unit = _CONSTANT_WORDS.get(trend["parameter"], (trend["parameter"], ""))
+        return f"{name} ({whence}, one value): {pm(trend['value'], trend['error'], unit).strip()}"
     return (
-        f"populations, van 't Hoff (from {len(sources)} spectra; K = p2/p1): "
+        f"populations, van 't Hoff ({whence}; K = p2/p1): "
         f"ΔH° = {pm(trend['dh_kj_mol'], trend['dh_err_kj_mol'], 'kJ/mol')}, "
         f"ΔS° = {pm(trend['ds_j_mol_k'], trend['ds_err_j_mol_k'], 'J/(mol·K)')}"
     )
+
+
+#: a shared value's name and unit, by parameter
+_CONSTANT_WORDS = {"delta": ("Δν", "Hz"), "population": ("p1", ""), "coupling": ("J", "Hz")}
 
 
 def rate_fit_lines(rates: list[dict[str, Any]]) -> list[str]:

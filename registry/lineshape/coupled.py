@@ -93,6 +93,18 @@ class CoupledABModel:
     def resolvent(self, k_per_s: float) -> Resolvent:
         return _diagonalise(self._precession + self.generator(k_per_s), np.full(4, 0.25))
 
+    def site_derivative(
+        self, name: str, k_per_s: float
+    ) -> tuple[NDArray[np.complex128], NDArray[np.complex128]]:
+        """∂L and ∂p with respect to Δν = ν_A − ν_B (``delta``, the centre held) or J
+        (``coupling``): L's coherent part is linear in both, so ∂L is that part at
+        (ν_A, ν_B, J) = (½, −½, 0) or (0, 0, 1); p does not move."""
+        if name == "delta":
+            return ab_precession(0.5, -0.5, 0.0), np.zeros(4, complex)
+        if name == "coupling":
+            return ab_precession(0.0, 0.0, 1.0), np.zeros(4, complex)
+        raise ValueError(f"no derivative for {name!r}")
+
     def spectrum(
         self, freq_hz: ArrayLike, k_per_s: float, width_hz: float = 0.0, offset_hz: float = 0.0
     ) -> FloatArray:

@@ -220,6 +220,46 @@ class ModelShape:
         ds_dlnk = 2.0 * dk_c.real
         return s, ds_dlnk, ds_dw, ds_doff
 
+    def along(
+        self,
+        k: float,
+        width: float,
+        offset: float,
+        d_liou: NDArray[np.complex128],
+        d_pops: NDArray[np.complex128],
+    ) -> FloatArray:
+        """∂S along a change ∂L of the matrix and ∂p of the populations (a site parameter:
+        Δν, p₁, J; see the models' ``site_derivative``).
+
+        S = 2·Re[1ᵀG·p] with G = (iω − L)⁻¹ gives ∂S = 2·Re[1ᵀG·∂L·G·p + 1ᵀG·∂p]; with
+        L = VΛV⁻¹ that is 2·Re[Σ (1ᵀV)ₘ(V⁻¹∂LV)ₘq(V⁻¹p)q·DₘDq + Σ (1ᵀV)ₘ(V⁻¹∂p)ₘDₘ].
+        Near a defective L the resolvent is solved at each frequency instead.
+        """
+        res = self.resolvent(k)
+        shift = -np.pi * width + 2j * np.pi * offset
+        if res.direct:
+            n = len(res.populations)
+            eye = np.eye(n)
+            mats = 1j * self.omega[:, None, None] * eye - (res.liouvillian + shift * eye)[None]
+            g_p = np.linalg.solve(mats, np.broadcast_to(res.populations.astype(complex), (len(self.omega), n))[..., None])[..., 0]  # fmt: skip
+            ones = np.ones((len(self.omega), n, 1), complex)
+            one_g = np.linalg.solve(np.swapaxes(mats, 1, 2), ones)[..., 0]
+            val = np.einsum("ni,ij,nj->n", one_g, d_liou, g_p) + one_g @ d_pops
+            return 2.0 * val.real
+        lam = res.eigenvalues + shift
+        iw = 1j * self.omega
+        d = [1.0 / (iw - lam_m) for lam_m in lam]
+        c = res.inverse @ d_liou @ res.vectors
+        moved = res.inverse @ d_pops
+        n = len(lam)
+        total = sum(res.left[m] * moved[m] * d[m] for m in range(n))
+        total = total + sum(
+            (res.left[m] * c[m, q] * res.right[q]) * (d[m] * d[q])
+            for m in range(n)
+            for q in range(n)
+        )
+        return 2.0 * np.real(total)
+
     def _numeric(
         self, k: float, width: float, offset: float
     ) -> tuple[FloatArray, FloatArray, FloatArray, FloatArray]:

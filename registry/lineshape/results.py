@@ -175,5 +175,6 @@ def _global_dict(result: GlobalFit) -> dict[str, Any]:
         "message": result.message,
         "warnings": list(result.warnings),
         "n_points": result.n_points,
+        "trends": [t.to_dict() for t in result.trends],
         "fits": [f.to_dict() for f in result.fits],
     }

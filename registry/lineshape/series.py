@@ -51,7 +51,8 @@ TIED_HOW = {"delta": "tied (drift)", "population": "tied (van 't Hoff)", "coupli
 @dataclass(frozen=True)
 class Trend:
     """A parameter tied across the series: y = a + b·x, x = T − T̄ (drift) or 1/T (van 't Hoff),
-    or y = a (a constant: J)."""
+    or y = a (constant: J, or one value for the series); y is ln K = ln(p₂/p₁) for the
+    populations."""
 
     name: str
     kind: str
@@ -72,7 +73,7 @@ class Trend:
         y = self.a + self.b * x
         c = np.array(self.cov)
         sd = math.sqrt(max(float(np.array([1.0, x]) @ c @ np.array([1.0, x])), 0.0))
-        if self.kind in ("linear drift", "constant"):
+        if self.name != "population":
             return y, sd
         p1 = 1.0 / (1.0 + math.exp(y))  # y = ln K = ln(p₂/p₁)
         return p1, p1 * (1.0 - p1) * sd
@@ -80,11 +81,12 @@ class Trend:
     def to_dict(self) -> dict[str, object]:
         out: dict[str, object] = {"parameter": self.name, "kind": self.kind,
                                   "from": list(self.sources)}  # fmt: skip
-        if len(self.sources) < 2:  # one spectrum gives a value, not a line
+        if self.kind == "constant":  # one value for the whole series (the global fit's)
+            value, err = self.predict(self.x_ref or 300.0)
+            out.update(value=value, error=err)
+        elif len(self.sources) < 2:  # one spectrum gives a value, not a line
             value, err = self.predict(self.x_ref or 300.0)
             out.update(kind="one spectrum's value", value=value, error=err)
-        elif self.kind == "constant":
-            out.update(value_hz=self.a, error_hz=math.sqrt(self.cov[0][0]))
         elif self.kind == "linear drift":
             out.update(
                 at_k=self.x_ref, value_hz=self.a, error_hz=math.sqrt(self.cov[0][0]),

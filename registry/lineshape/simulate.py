@@ -326,6 +326,26 @@ class ExchangeModel:
         """Diagonalised matrix for rate k with zero intrinsic width (width is added later)."""
         return _diagonalise(self._precession + self.generator(k_per_s), self._pops)
 
+    def site_derivative(
+        self, name: str, k_per_s: float
+    ) -> tuple[NDArray[np.complex128], NDArray[np.complex128]]:
+        """∂L and ∂p with respect to Δν = ν₁ − ν₂ (``delta``, the centre held) or p₁
+        (``population``, p₂ = 1 − p₁) of two sites, at rate k.
+
+        ν₁,₂ = centre ± Δν/2 puts ±iπ on L's diagonal. With k₁₂ = k and k₂₁ = k·p₁/p₂ (detailed
+        balance) the generator is k·[[−1, p₁/p₂], [1, −p₁/p₂]], whose p₁-derivative is
+        k/p₂²·[[0, 1], [0, −1]]; the starting magnetization p moves by (1, −1).
+        """
+        if len(self.shifts_hz) != 2:
+            raise ValueError("Δν and p₁ are parameters of two sites only")
+        if name == "delta":
+            return np.diag([1j * np.pi, -1j * np.pi]), np.zeros(2, complex)
+        if name == "population":
+            p2 = float(self._pops[1])
+            d_gen = k_per_s / (p2 * p2) * np.array([[0.0, 1.0], [0.0, -1.0]])
+            return d_gen.astype(complex), np.array([1.0, -1.0], complex)
+        raise ValueError(f"no derivative for {name!r}")
+
     def spectrum(
         self, freq_hz: ArrayLike, k_per_s: float, width_hz: float = 0.0, offset_hz: float = 0.0
     ) -> FloatArray:

@@ -358,20 +358,29 @@ def _global(
     model: ExchangeModel | CoupledABModel,
     options: SiteOptions,
 ) -> GlobalFit:
-    """The Eyring-tied fit, each spectrum keeping the sites and width its own fit found."""
+    """The Eyring-tied fit, Δν and the populations on shared lines fitted with it where the
+    series tied them (:func:`registry.lineshape.global_sites.plan_for`), each spectrum's width
+    held, fitted with its reference line's σ, or fitted."""
     from dataclasses import replace
 
     from registry.lineshape.fit_global import fit_global
+    from registry.lineshape.global_sites import plan_for
 
     by_source = {f.source: f for f in series.fits}
     ordered = sorted(inputs, key=lambda s: s.t_k)
     starts = [by_source[s.source] for s in ordered]
-    held = options.fix_width or options.reference_hz is not None
-    spectra = [
-        replace(s, model=_own_model(model, f), width_hz=f.width_hz if held else None)
-        for s, f in zip(ordered, starts, strict=True)
-    ]
-    return fit_global(spectra, model, width_hz=options.width_hz, fix_width=held, starts=starts)
+    refs = {w.source: w for w in series.widths}
+    spectra = []
+    for s, f in zip(ordered, starts, strict=True):
+        ref = series.tied_width or refs.get(s.source)
+        # a reference width enters with its σ (0: held exactly); a held width stays as given
+        width = ref.width_hz if ref else (f.width_hz if options.fix_width else None)
+        sigma = (ref.width_err_hz or 0.0) if ref else None
+        spectra.append(replace(s, model=_own_model(model, f), width_hz=width, width_err_hz=sigma))
+    plan = plan_for(model, options, series.trends)
+    held = options.fix_width and options.reference_hz is None
+    return fit_global(spectra, model, width_hz=options.width_hz, fix_width=held, starts=starts,
+                      plan=plan, tie_width=series.tied_width is not None)  # fmt: skip
 
 
 def _own_model(
