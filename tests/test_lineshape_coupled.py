@@ -235,8 +235,11 @@ def test_j_held_with_a_note_when_no_spectrum_fixes_it() -> None:
 
     spectra = _ab_series([(330.0, 3000.0), (340.0, 5000.0)], 2048, 40)
     result = api.fit_lineshapes(
-        spectra, "25,-25 Hz", coupling="-12 Hz", fit_coupling=True, width="0.9 Hz", fix_width=True
-    )
+        spectra, "25,-25 Hz", coupling="-12 Hz", fit_coupling=True, width="0.9 Hz",
+        fix_width=True, global_fit=True,
+    )  # fmt: skip
     hows = [{n: h for n, _v, _e, h in f.parameters}["coupling"] for f in result.fits]
     assert hows == ["held", "held"]
     assert "J not determined by any spectrum: held at the given value" in result.series_notes
+    assert result.global_fit is not None  # the global fit holds it too, rather than guess it
+    assert "coupling" not in {t.name for t in result.global_fit.trends}

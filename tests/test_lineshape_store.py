@@ -21,6 +21,7 @@ import numpy as np
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
+from scipy import constants as C
 from test_io_import import write_csv
 
 from registry import api
@@ -43,7 +44,8 @@ def series(seed: int = 7) -> list[Spectrum]:
     freq = np.linspace(-300.0, 300.0, 1536)
     out = []
     for i, t in enumerate(TEMPS):
-        k = 2.0837e10 * t * math.exp(-58000.0 / (8.314462618 * t) - 7.0 / 8.314462618)
+        # Eyring k = (k_B T/h)·exp(−ΔH‡/RT + ΔS‡/R), constants CODATA (scipy.constants)
+        k = C.k * t / C.h * math.exp(-58000.0 / (C.R * t) - 7.0 / C.R)
         y = two_site_spectrum(freq, 50.0 + i, -50.0 + i / 3, k, 0.57 - 0.01 * i, 1.2, 1.2)
         y = y + 0.5 * (0.6 / math.pi) / ((freq + 250.0) ** 2 + 0.36)
         y = y + rng.normal(0.0, 0.01 * y.max(), freq.size)

@@ -33,7 +33,7 @@ import numpy as np
 from registry.errors import UsageError
 from registry.lineshape.coupled import CoupledABModel
 from registry.lineshape.fit_core import FloatArray, LineShapeFit
-from registry.lineshape.series import SiteOptions, Trend
+from registry.lineshape.series import SiteOptions, Trend, pair
 from registry.lineshape.simulate import ExchangeModel
 
 #: how Δν, the populations and J may enter (see the module docstring)
@@ -163,10 +163,10 @@ def trends(
             a, b = float(theta[columns[f"{name}_0"]]), float(theta[columns[f"{name}_1"]])
             c = block([f"{name}_0", f"{name}_1"])
             if name == "delta":
-                out.append(Trend(label, kind, a, b, _pair(c), t_bar, sources))
+                out.append(Trend(label, kind, a, b, pair(c), t_bar, sources))
             else:  # y = a + b(1/T − 1/T_m) = (a − b/T_m) + b/T: the Trend's x is 1/T
                 move = np.array([[1.0, -1.0 / t_m], [0.0, 1.0]])
-                out.append(Trend(label, kind, a - b / t_m, b, _pair(move @ c @ move.T), 0.0,
+                out.append(Trend(label, kind, a - b / t_m, b, pair(move @ c @ move.T), 0.0,
                                  sources))  # fmt: skip
         elif f"{name}_0" in columns:
             a = float(theta[columns[f"{name}_0"]])
@@ -178,10 +178,6 @@ def trends(
         out.append(Trend("coupling", "constant", float(theta[columns["coupling"]]), 0.0,
                          ((float(c[0, 0]), 0.0), (0.0, 0.0)), 0.0, sources))  # fmt: skip
     return tuple(out)
-
-
-def _pair(cov: FloatArray) -> tuple[tuple[float, float], tuple[float, float]]:
-    return ((float(cov[0, 0]), float(cov[0, 1])), (float(cov[1, 0]), float(cov[1, 1])))
 
 
 def value_error(grads: list[tuple[int, float]], cov: FloatArray | None) -> float | None:
@@ -202,7 +198,8 @@ def plan_for(
     :mod:`registry.lineshape.series`): 'auto' and 'tie' share the trend the series fit drew
     (a line through two or more spectra, one value through one; held where no spectrum
     determined it), 'fit' leaves each spectrum its own, 'hold' holds. J is shared when the
-    series fitted it. More than two sites keep everything held."""
+    series fitted it and a spectrum fixed it (else held, as the series fit held it). More than
+    two sites keep everything held."""
     if len(model.shifts_hz) != 2:
         return SitePlan()
     drawn = {t.name: len(t.sources) for t in series_trends}
@@ -217,5 +214,5 @@ def plan_for(
         else:
             n = drawn.get(name, 0)
             out[name] = line if n >= 2 else ("level" if n == 1 else "held")
-    fit_j = coupled and options.fit_coupling
+    fit_j = coupled and options.fit_coupling and drawn.get("coupling", 0) >= 1
     return SitePlan(out["delta"], out["population"], "shared" if fit_j else "held")

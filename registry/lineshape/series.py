@@ -149,11 +149,11 @@ def _trend(name: str, fits: Sequence[LineShapeFit], exclude: str | None = None) 
         t_ref = float(np.mean(temps))
         a, b, cov = weighted_line([t - t_ref for t in temps], [r[1] for r in rows],
                                   [r[2] for r in rows])  # fmt: skip
-        return Trend(name, "linear drift", a, b, _pair(cov), t_ref, sources)
+        return Trend(name, "linear drift", a, b, pair(cov), t_ref, sources)
     y = [math.log((1.0 - r[1]) / r[1]) for r in rows]
     s = [r[2] / (r[1] * (1.0 - r[1])) for r in rows]
     a, b, cov = weighted_line([1.0 / t for t in temps], y, s)
-    return Trend(name, "van 't Hoff", a, b, _pair(cov), 0.0, sources)
+    return Trend(name, "van 't Hoff", a, b, pair(cov), 0.0, sources)
 
 
 def _misfit(fit: LineShapeFit) -> bool:
@@ -162,7 +162,8 @@ def _misfit(fit: LineShapeFit) -> bool:
     return any(p.startswith("residuals") or "at its bound" in p for p in fit.problems)
 
 
-def _pair(cov: FloatArray) -> tuple[tuple[float, float], tuple[float, float]]:
+def pair(cov: FloatArray) -> tuple[tuple[float, float], tuple[float, float]]:
+    """A 2×2 covariance as the nested tuples a frozen :class:`Trend` keeps."""
     return ((float(cov[0, 0]), float(cov[0, 1])), (float(cov[1, 0]), float(cov[1, 1])))
 
 
